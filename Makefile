@@ -1,0 +1,98 @@
+# slowscan — build, test, demo, bench, install.
+#   make            build/slowscan and build/libslowscan.a
+#   make check      the test suite, plain and under AddressSanitizer + UBSan
+#   make demo       screen the bundled demo data and print the table
+#   make bench      speed ratios, measured in one run
+#   make install    PREFIX=/usr/local DESTDIR=
+# `check` and `demo` first install missing Debian packages (scripts/install-deps.sh).
+
+PREFIX  ?= /usr/local
+DESTDIR ?=
+VERSION := 0.1.0
+
+CC      ?= cc
+PKGS    := gsl fftw3 netcdf plplot
+CFLAGS  ?= -O2 -g
+WARN    := -std=c11 -Wall -Wextra -Werror -D_POSIX_C_SOURCE=200809L
+INCS     = -Iinclude $(shell pkg-config --cflags $(PKGS) 2>/dev/null)
+LIBS     = $(shell pkg-config --libs $(PKGS) 2>/dev/null || echo -lgsl -lgslcblas -lfftw3 -lnetcdf -lplplot) \
+           -lfftw3_threads -lcsv -lpthread -lm
+SAN     := -fsanitize=address,undefined -fno-omit-frame-pointer -fno-sanitize-recover=undefined
+
+CORE_DIRS := detrend indicators surrogates response io report data
+LIB_SRC   := $(foreach d,$(CORE_DIRS),$(wildcard $(d)/*.c))
+CLI_SRC   := $(wildcard cli/*.c)
+TEST_SRC  := $(wildcard tests/*.c)
+BENCH_SRC := $(wildcard bench/*.c)
+
+B := build
+LIB_OBJ   := $(LIB_SRC:%.c=$(B)/obj/%.o)
+CLI_OBJ   := $(CLI_SRC:%.c=$(B)/obj/%.o)
+TEST_OBJ  := $(TEST_SRC:%.c=$(B)/obj/%.o)
+SLIB_OBJ  := $(LIB_SRC:%.c=$(B)/asan/%.o)
+SCLI_OBJ  := $(CLI_SRC:%.c=$(B)/asan/%.o)
+STEST_OBJ := $(TEST_SRC:%.c=$(B)/asan/%.o)
+BENCH_BIN := $(BENCH_SRC:bench/%.c=$(B)/bench/%)
+
+.PHONY: all deps check demo bench install clean
+all: $(B)/slowscan $(B)/libslowscan.a
+
+deps:
+	@sh scripts/install-deps.sh
+
+$(B)/obj/%.o: %.c
+	@mkdir -p $(dir $@)
+	$(CC) $(CFLAGS) $(WARN) -DSLOWSCAN_VERSION='"$(VERSION)"' $(INCS) -MMD -MP -c $< -o $@
+
+$(B)/asan/%.o: %.c
+	@mkdir -p $(dir $@)
+	$(CC) -O1 -g $(SAN) $(WARN) -DSLOWSCAN_VERSION='"$(VERSION)"' $(INCS) -MMD -MP -c $< -o $@
+
+$(B)/libslowscan.a: $(LIB_OBJ)
+	@rm -f $@
+	ar rcs $@ $^
+
+$(B)/slowscan: $(CLI_OBJ) $(B)/libslowscan.a
+	$(CC) $(CFLAGS) -o $@ $(CLI_OBJ) $(B)/libslowscan.a $(LIBS)
+
+$(B)/run_tests: $(TEST_OBJ) $(B)/libslowscan.a
+	$(CC) $(CFLAGS) -o $@ $(TEST_OBJ) $(B)/libslowscan.a $(LIBS)
+
+$(B)/asan/slowscan: $(SCLI_OBJ) $(SLIB_OBJ)
+	$(CC) $(SAN) -o $@ $^ $(LIBS)
+
+$(B)/asan/run_tests: $(STEST_OBJ) $(SLIB_OBJ)
+	$(CC) $(SAN) -o $@ $^ $(LIBS)
+
+$(B)/bench/%: bench/%.c $(B)/libslowscan.a
+	@mkdir -p $(dir $@)
+	$(CC) -O2 -g $(WARN) $(INCS) -o $@ $< $(B)/libslowscan.a $(LIBS)
+
+# Each run ends in a line "LABEL: N passed, N failed"; the last one is the sanitized run.
+check: deps
+	@$(MAKE) --no-print-directory all $(B)/run_tests $(B)/asan/slowscan $(B)/asan/run_tests
+	SLOWSCAN_BIN=$(B)/slowscan SLOWSCAN_LABEL=plain $(B)/run_tests
+	ASAN_OPTIONS=detect_leaks=1:abort_on_error=0 UBSAN_OPTIONS=print_stacktrace=1 \
+	  SLOWSCAN_BIN=$(B)/asan/slowscan SLOWSCAN_LABEL=sanitized $(B)/asan/run_tests
+
+DEMO_OUT ?= demo-output
+demo: deps
+	@$(MAKE) --no-print-directory all
+	@mkdir -p $(DEMO_OUT)
+	$(B)/slowscan screen --surrogates 0 --rolling $(DEMO_OUT)/rolling.csv \
+	  -o $(DEMO_OUT)/summary.csv data/stations.csv
+	@$(B)/slowscan table $(DEMO_OUT)/summary.csv
+
+bench: all $(BENCH_BIN)
+	@for b in $(BENCH_BIN); do echo "== $$b"; $$b || exit 1; done
+
+install: all
+	install -d $(DESTDIR)$(PREFIX)/bin $(DESTDIR)$(PREFIX)/lib $(DESTDIR)$(PREFIX)/include/slowscan
+	install -m 755 $(B)/slowscan $(DESTDIR)$(PREFIX)/bin/slowscan
+	install -m 644 $(B)/libslowscan.a $(DESTDIR)$(PREFIX)/lib/libslowscan.a
+	install -m 644 include/slowscan/*.h $(DESTDIR)$(PREFIX)/include/slowscan/
+
+clean:
+	rm -rf $(B)
+
+-include $(shell find $(B) -name '*.d' 2>/dev/null)

@@ -1,0 +1,81 @@
+/* slowscan — input and output: the series table, CSV reading (libcsv), grid checks,
+ * resampling, and atomic output files (module prefixes: series_table_, csv_, table_, atomic_).
+ *
+ * Unlike the numerical core, io/ deals with files, but it still never prints or exits: errors
+ * come back as a status code plus a message in an io_error that names the file, the row
+ * (1-based, the header being row 1) and the column where it applies. */
+#ifndef SLOWSCAN_IO_H
+#define SLOWSCAN_IO_H
+
+#include <stddef.h>
+#include <stdio.h>
+
+typedef struct {
+    char message[1024];
+} io_error;
+
+/* A set of series sharing one time column. values[k][i] is series k at time[i]; NaN is
+ * missing. Rows are strictly increasing in time once read. */
+typedef struct {
+    char *source;     /* file name as given ("-" for standard input), for messages */
+    char *time_name;  /* name of the time column */
+    size_t n;         /* rows */
+    size_t nseries;
+    double *time;     /* n */
+    char **names;     /* nseries */
+    double **values;  /* nseries arrays of n */
+    size_t *rows;     /* n: the file row each sample came from (for messages); NULL after resampling */
+} series_table;
+
+void series_table_free(series_table *table);
+
+typedef struct {
+    const char *time_column; /* NULL: the first column */
+    const char *vars;        /* comma-separated list, NULL: every column but time */
+} csv_read_options;
+
+/* Reads a CSV file with a header row ("-" reads standard input). The delimiter (comma,
+ * semicolon or tab) is detected from the header; quoted fields, CRLF line ends and a UTF-8
+ * byte-order mark are accepted. Empty cells, NA, NaN (any case) are missing. Errors, each
+ * naming file, row and column: unreadable file, empty file, header only, ragged row, a cell
+ * that is not a number, an infinite value, a missing time, a non-increasing time, an unknown
+ * or duplicated column in `vars`, a header with no series column. */
+int csv_read_table(const char *path, const csv_read_options *options, series_table *table,
+                   io_error *err);
+
+/* Keeps the rows with from <= time <= until (NaN: no limit). SLOWSCAN_ESHORT with a message
+ * when fewer than 2 rows remain. */
+int table_select_span(series_table *table, double from, double until, io_error *err);
+
+/* Checks that the time steps are regular: every step within 1e-6 (relative) of
+ * dt = (t_last - t_first)/(n-1). On failure the message names the first offending row and
+ * suggests --resample. */
+int table_check_grid(const series_table *table, double *dt, io_error *err);
+
+/* Interpolates every series linearly onto t_first, t_first+step, ... <= t_last. A grid point
+ * whose bracketing samples include a missing one is missing (unless it hits a present sample
+ * exactly). SLOWSCAN_EINVAL for step <= 0 or step > span. */
+int table_resample(series_table *table, double step, io_error *err);
+
+/* Replaces every value by its natural logarithm; a value <= 0 is an error naming row and
+ * column. */
+int table_log(series_table *table, io_error *err);
+
+/* Output written to a temporary file next to the target and renamed into place on commit, so
+ * a failed run leaves no partial file. path NULL or "-" writes to standard output directly. */
+typedef struct {
+    FILE *fp;
+    char *path;      /* final path, NULL for stdout */
+    char *temp_path; /* NULL for stdout */
+} atomic_file;
+
+int atomic_open(atomic_file *file, const char *path, io_error *err);
+/* Flushes, checks for write errors, closes and renames. On failure the temp file is removed. */
+int atomic_commit(atomic_file *file, io_error *err);
+/* Closes and removes the temporary file; safe to call on a committed or unopened file. */
+void atomic_abort(atomic_file *file);
+
+/* 1 if the two paths name the same existing file (same device and inode), else 0. */
+int io_same_file(const char *a, const char *b);
+
+#endif

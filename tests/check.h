@@ -1,0 +1,56 @@
+/* slowscan test harness: a plain C runner. Each tests/test_*.c file defines one suite
+ * function listed in tests/run_tests.c; checks count into the runner's totals, which end the
+ * run in a line "LABEL: N passed, N failed".
+ *
+ * Every check against something outside the project names its source in a comment beside it
+ * (a paper, a handbook, a reference library, a data set shipped by a package, or "common
+ * practice, no source"; values recalled from memory say so). */
+#ifndef SLOWSCAN_TESTS_CHECK_H
+#define SLOWSCAN_TESTS_CHECK_H
+
+#include <stddef.h>
+
+void check_record(int ok, const char *file, int line, const char *fmt, ...)
+    __attribute__((format(printf, 4, 5)));
+
+/* CHECK(cond, "what %d", arg): one check; prints the message when it fails. */
+#define CHECK(cond, ...) check_record((cond) ? 1 : 0, __FILE__, __LINE__, __VA_ARGS__)
+
+/* |got - want| <= abs_tol + rel_tol*|want|; NaN equals NaN only when both are NaN. */
+int check_close(double got, double want, double rel_tol, double abs_tol);
+#define CHECK_CLOSE(got, want, rel, abs_, what)                                              \
+    do {                                                                                     \
+        double g_ = (got), w_ = (want);                                                      \
+        check_record(check_close(g_, w_, (rel), (abs_)), __FILE__, __LINE__,                 \
+                     "%s: got %.17g, want %.17g", (what), g_, w_);                           \
+    } while (0)
+
+/* The slowscan binary under test ($SLOWSCAN_BIN, default build/slowscan). */
+const char *check_binary(void);
+
+/* A fresh scratch directory for this run (removed at exit); returns a path inside it. */
+const char *check_tmp_path(const char *name);
+
+/* Writes `text` to a file; returns 0 on success. */
+int check_write_file(const char *path, const char *text);
+/* Reads a whole file into a malloc'd NUL-terminated buffer (NULL on failure). */
+char *check_read_file(const char *path);
+int check_file_exists(const char *path);
+
+/* Runs a shell command line; returns its exit status (or -1), captures stdout and stderr
+ * (either pointer may be NULL; free the buffers). */
+int check_run(const char *command, char **out, char **err);
+
+/* Runs `/usr/bin/python3 tests/reference/SCRIPT ARGS` (Debian's numpy/scipy/statsmodels)
+ * and parses whitespace-separated numbers from its stdout into values (at most max);
+ * returns how many were read, or -1 if the script failed. */
+int check_python(const char *script_and_args, double *values, size_t max);
+
+/* Deterministic standard normal draws for tests (GSL's mt19937, seeded). */
+typedef struct check_rng check_rng;
+check_rng *check_rng_alloc(unsigned long seed);
+double check_rng_gaussian(check_rng *rng);
+double check_rng_uniform(check_rng *rng);
+void check_rng_free(check_rng *rng);
+
+#endif

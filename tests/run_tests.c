@@ -1,0 +1,34 @@
+/* slowscan test runner: runs every suite, then prints "LABEL: N passed, N failed". */
+#include "check.h"
+
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+int check_totals(const char *label);
+
+void suite_detrend(void);
+void suite_io(void);
+void suite_indicators(void);
+void suite_kendall(void);
+void suite_cli(void);
+
+static const struct {
+    const char *name;
+    void (*run)(void);
+} suites[] = {
+    {"detrend", suite_detrend},       {"io", suite_io},   {"indicators", suite_indicators},
+    {"kendall", suite_kendall},       {"cli", suite_cli},
+};
+
+int main(int argc, char **argv)
+{
+    const char *label = getenv("SLOWSCAN_LABEL");
+    for (size_t i = 0; i < sizeof suites / sizeof suites[0]; i++) {
+        if (argc > 1 && strcmp(argv[1], suites[i].name) != 0)
+            continue;
+        fprintf(stderr, "-- %s\n", suites[i].name);
+        suites[i].run();
+    }
+    return check_totals(label && *label ? label : "tests");
+}
