@@ -42,11 +42,11 @@ deps:
 
 $(B)/obj/%.o: %.c
 	@mkdir -p $(dir $@)
-	$(CC) $(CFLAGS) $(WARN) -DSLOWSCAN_VERSION='"$(VERSION)"' $(INCS) -MMD -MP -c $< -o $@
+	@echo "CC $<"; $(CC) $(CFLAGS) $(WARN) -DSLOWSCAN_VERSION='"$(VERSION)"' $(INCS) -MMD -MP -c $< -o $@
 
 $(B)/asan/%.o: %.c
 	@mkdir -p $(dir $@)
-	$(CC) -O1 -g $(SAN) $(WARN) -DSLOWSCAN_VERSION='"$(VERSION)"' $(INCS) -MMD -MP -c $< -o $@
+	@echo "CC(san) $<"; $(CC) -O1 -g $(SAN) $(WARN) -DSLOWSCAN_VERSION='"$(VERSION)"' $(INCS) -MMD -MP -c $< -o $@
 
 $(B)/libslowscan.a: $(LIB_OBJ)
 	@rm -f $@
@@ -76,12 +76,13 @@ check: deps
 	  SLOWSCAN_BIN=$(B)/asan/slowscan SLOWSCAN_LABEL=sanitized $(B)/asan/run_tests
 
 DEMO_OUT ?= demo-output
+DEMO_ARGS := --deseason 364 --indicators variance,lag1,ar1
 demo: deps
 	@$(MAKE) --no-print-directory all
 	@mkdir -p $(DEMO_OUT)
-	$(B)/slowscan screen --surrogates 0 --rolling $(DEMO_OUT)/rolling.csv \
+	$(B)/slowscan screen $(DEMO_ARGS) --rolling $(DEMO_OUT)/rolling.csv \
 	  -o $(DEMO_OUT)/summary.csv data/stations.csv
-	@$(B)/slowscan table $(DEMO_OUT)/summary.csv
+	@$(B)/slowscan screen $(DEMO_ARGS) --format table data/stations.csv
 
 bench: all $(BENCH_BIN)
 	@for b in $(BENCH_BIN); do echo "== $$b"; $$b || exit 1; done

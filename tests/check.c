@@ -116,7 +116,7 @@ int check_file_exists(const char *path)
 int check_run(const char *command, char **out, char **err)
 {
     static int serial;
-    char out_path[512], err_path[512], line[2048];
+    char out_path[512], err_path[600], line[2048];
     snprintf(out_path, sizeof out_path, "%s", check_tmp_path("run.out"));
     snprintf(err_path, sizeof err_path, "%s.%d.err", out_path, serial++);
     snprintf(line, sizeof line, "( %s ) >'%s' 2>'%s' </dev/null", command, out_path, err_path);

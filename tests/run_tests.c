@@ -11,6 +11,7 @@ void suite_detrend(void);
 void suite_io(void);
 void suite_indicators(void);
 void suite_kendall(void);
+void suite_surrogates(void);
 void suite_cli(void);
 
 static const struct {
@@ -18,7 +19,7 @@ static const struct {
     void (*run)(void);
 } suites[] = {
     {"detrend", suite_detrend},       {"io", suite_io},   {"indicators", suite_indicators},
-    {"kendall", suite_kendall},       {"cli", suite_cli},
+    {"kendall", suite_kendall},       {"surrogates", suite_surrogates}, {"cli", suite_cli},
 };
 
 int main(int argc, char **argv)

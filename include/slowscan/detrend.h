@@ -47,10 +47,12 @@ int detrend_apply(const detrend_spec *spec, double dt, const double *x, size_t n
                   double *trend, double *residual);
 
 /* Removes the mean cycle of period `period` (time units) in place: the sample at index i
- * belongs to phase i mod P, P = round(period/dt); each phase's mean (over finite samples),
- * minus the mean of all phase means, is subtracted, so the series keeps its level.
+ * belongs to phase i mod P, P = round(period/dt). The cycle is estimated as in the additive
+ * classical decomposition: phase means of the series minus its centred one-period moving
+ * average (2xP average for even P; windows with a missing sample are skipped), normalised
+ * to mean zero, so a trend does not leak into the cycle and the series keeps its level.
  * SLOWSCAN_EINVAL if period/dt is not within 1e-6 (relative) of an integer P >= 2, or if
- * P > n/2 (fewer than two full cycles); SLOWSCAN_ESHORT if a phase has no finite sample. */
+ * P > n/2 (fewer than two full cycles); SLOWSCAN_ESHORT if a phase has no usable sample. */
 int detrend_deseason(double dt, double period, double *x, size_t n);
 
 #endif

@@ -1,0 +1,149 @@
+/* slowscan command line: shared declarations of the cli/ files. */
+#ifndef SLOWSCAN_CLI_H
+#define SLOWSCAN_CLI_H
+
+#include "slowscan/detrend.h"
+#include "slowscan/indicators.h"
+#include "slowscan/io.h"
+
+#include <stddef.h>
+#include <stdio.h>
+
+/* Exit codes (DESIGN §4). */
+enum { EXIT_OK = 0, EXIT_BAD_INPUT = 1, EXIT_INTERNAL = 2 };
+
+/* A length given as "N%" of the span or as a bare number of time units. */
+typedef struct {
+    double amount;
+    int percent;
+    const char *text; /* as the user wrote it, for messages */
+} cli_length;
+
+typedef struct {
+    const char *command;
+    /* input */
+    const char *time_column, *vars;
+    double from, until, resample; /* NaN: not given */
+    int log_values;
+    /* detrending */
+    detrend_spec detrend;
+    const char *detrend_text;
+    cli_length bandwidth;
+    double deseason; /* NaN: not given */
+    /* indicators */
+    cli_length window;
+    indicator_kind indicators[INDICATOR_COUNT];
+    size_t nindicators;
+    const char *indicators_text;
+    double min_coverage;
+    recovery_method recovery;
+    /* significance (screen) */
+    long surrogates;
+    /* outputs */
+    const char *output, *rolling_output;
+    const char *format; /* "csv" or "table" */
+    int progress;       /* -1: auto (stderr is a TTY) */
+    const char *out_dir; /* demo */
+    unsigned long seed;
+    /* positional */
+    const char **files;
+    size_t nfiles;
+} cli_options;
+
+/* Prints "slowscan: MESSAGE" on stderr. */
+void cli_error(const char *fmt, ...) __attribute__((format(printf, 1, 2)));
+void cli_warning(const char *fmt, ...) __attribute__((format(printf, 1, 2)));
+
+/* Parses argv[first..argc) for `command`; returns EXIT_OK, EXIT_BAD_INPUT (message printed),
+ * or -1 when help was printed. */
+int cli_parse(const char *command, int argc, char **argv, int first, cli_options *opts);
+void cli_options_free(cli_options *opts);
+
+/* Help texts. */
+int cli_help(const char *topic, FILE *out);
+
+/* One series prepared for analysis: cut, resampled, logged, deseasoned and detrended. */
+typedef struct {
+    const char *name;
+    const char *source;
+    size_t n;
+    const double *time;
+    double dt, span;
+    double *value, *trend, *residual; /* n each; value = what was detrended */
+    size_t finite;                    /* finite samples of value */
+    size_t window;                    /* W, samples */
+    double bandwidth;                 /* time units (NaN when the method has none) */
+    int constant; /* 1: constant input, 2: residual at round-off level; indicators NA */
+} prepared_series;
+
+/* The inputs of a run: every table read and made ready (span, grid, log). */
+typedef struct {
+    series_table *tables;
+    size_t ntables;
+} cli_inputs;
+
+int cli_inputs_load(const cli_options *opts, cli_inputs *inputs);
+void cli_inputs_free(cli_inputs *inputs);
+/* Number of series over all tables; series k of the run in order. */
+size_t cli_inputs_series_count(const cli_inputs *inputs);
+
+/* Detrends series `k` of table `t`; returns EXIT_OK or an exit code (message printed). */
+int cli_prepare_series(const cli_options *opts, const series_table *table, size_t k,
+                       prepared_series *ps);
+void cli_prepared_free(prepared_series *ps);
+
+/* Rolling indicators of a prepared series: values[j] (j < opts->nindicators) gets ps->n
+ * entries, allocated here and released by cli_indicator_values_free even on failure. A
+ * constant series gets NA everywhere, with a warning. */
+int cli_indicator_values(const cli_options *opts, const prepared_series *ps, double **values);
+void cli_indicator_values_free(const cli_options *opts, double **values);
+
+/* The outputs of a command, opened before any work (so an unwritable path fails first) and
+ * committed together at the end, or all removed. */
+typedef struct {
+    atomic_file files[4];
+    size_t count;
+} cli_outputs;
+
+/* Opens `path` (NULL or "-" = stdout) after checking it is not one of the inputs. */
+int cli_outputs_open(cli_outputs *outs, const cli_options *opts, const char *path,
+                     const char *option, FILE **fp);
+int cli_outputs_commit(cli_outputs *outs);
+void cli_outputs_abort(cli_outputs *outs);
+
+/* Writes a number the way every slowscan CSV does: %.12g, NA for non-finite. */
+void cli_put_number(FILE *fp, double v);
+/* Writes a CSV field, quoted when it holds a delimiter, quote or line break (RFC 4180). */
+void cli_put_field(FILE *fp, const char *s);
+
+/* Progress line on stderr ("screen: 12/40 series"), when enabled. */
+void cli_progress(const cli_options *opts, const char *what, size_t done, size_t total);
+
+/* Called once per prepared series, in input order. */
+typedef int (*series_visitor)(const cli_options *opts, const prepared_series *ps, void *context);
+/* Prepares every series of the inputs in turn and hands it to `visit`. */
+int cli_for_each_series(const cli_options *opts, const cli_inputs *in, series_visitor visit,
+                        void *context);
+/* How a series command runs: open its outputs (after the inputs are read, before any work),
+ * visit every series, then finish (write what needs all series). NULL hooks are skipped. */
+typedef struct {
+    int (*open)(const cli_options *opts, cli_outputs *outs, void *context);
+    series_visitor visit;
+    int (*finish)(const cli_options *opts, void *context);
+    void *context;
+} series_command;
+/* Load, open, visit, finish, then commit every output — or remove them all on failure. */
+int cli_run_series_command(const cli_options *opts, const series_command *command);
+
+/* The long rolling-indicator table `series,time,indicator,value` (indicators, screen --rolling). */
+extern const char cli_rolling_header[];
+void cli_write_rolling(FILE *fp, const cli_options *opts, const prepared_series *ps,
+                       double *const *values);
+
+/* Commands. */
+int cmd_detrend(const cli_options *opts);
+int cmd_indicators(const cli_options *opts);
+int cmd_screen(const cli_options *opts);
+int cmd_demo(const cli_options *opts);
+
+#endif

@@ -1,0 +1,41 @@
+/* slowscan detrend: trend and residual of every series, `series,time,value,trend,residual`. */
+#include "cli.h"
+
+typedef struct {
+    FILE *out;
+} detrend_run;
+
+static int open_outputs(const cli_options *opts, cli_outputs *outs, void *context)
+{
+    detrend_run *run = context;
+    int rc = cli_outputs_open(outs, opts, opts->output, "-o", &run->out);
+    if (rc == 0)
+        fputs("series,time,value,trend,residual\n", run->out);
+    return rc;
+}
+
+static int write_series(const cli_options *opts, const prepared_series *ps, void *context)
+{
+    (void)opts;
+    detrend_run *run = context;
+    if (ps->constant || ps->finite < 2)
+        cli_warning("%s: column '%s' has %s; trend and residual are NA", ps->source, ps->name,
+                    ps->constant ? "a constant value" : "fewer than 2 finite samples");
+    for (size_t i = 0; i < ps->n; i++) {
+        cli_put_field(run->out, ps->name);
+        const double cells[] = {ps->time[i], ps->value[i], ps->trend[i], ps->residual[i]};
+        for (size_t c = 0; c < sizeof cells / sizeof cells[0]; c++) {
+            fputc(',', run->out);
+            cli_put_number(run->out, cells[c]);
+        }
+        fputc('\n', run->out);
+    }
+    return EXIT_OK;
+}
+
+int cmd_detrend(const cli_options *opts)
+{
+    detrend_run run = {0};
+    series_command cmd = {open_outputs, write_series, NULL, &run};
+    return cli_run_series_command(opts, &cmd);
+}

@@ -1,0 +1,122 @@
+/* Help texts: `slowscan help [COMMAND]` and `COMMAND --help`. */
+#include "cli.h"
+
+#include <string.h>
+
+static const char overview[] =
+    "slowscan — screen time series for critical slowing down ahead of a tipping point\n"
+    "\n"
+    "usage: slowscan COMMAND [options] FILE...\n"
+    "\n"
+    "commands:\n"
+    "  screen      the main job: detrend, rolling indicators, Kendall trend per series\n"
+    "  indicators  rolling-window indicators per series (series,time,indicator,value)\n"
+    "  detrend     trend and residual per series (series,time,value,trend,residual)\n"
+    "  demo        write the invented demo data set (lake stations) to data/ or --out DIR\n"
+    "  help        this text, or 'slowscan help COMMAND'\n"
+    "\n"
+    "FILE is a CSV with a header row (comma, semicolon or tab), or - for standard input.\n"
+    "'slowscan --version' prints the version.\n";
+
+static const char input_options[] =
+    "input:\n"
+    "  --time NAME          time column (default: the first column)\n"
+    "  --vars A,B,...       series to analyse (default: every other column)\n"
+    "  --from T, --until T  analyse only times within [T_from, T_until]\n"
+    "  --resample STEP      interpolate linearly onto a regular grid of step STEP\n"
+    "                       (without it, irregular time steps are an error)\n"
+    "  --log                analyse the natural logarithm of the values (values must be > 0)\n"
+    "detrending:\n"
+    "  --detrend METHOD     gaussian (default), moving, loess, linear, poly:K, difference, none\n"
+    "  --bandwidth LEN      kernel bandwidth / span of gaussian, moving and loess (default 10%)\n"
+    "  --deseason PERIOD    remove the mean cycle of this period (time units) first\n"
+    "output:\n"
+    "  -o FILE              output file (default: standard output); written atomically\n"
+    "  --progress, --no-progress   progress on stderr (default: on when stderr is a terminal)\n"
+    "\n"
+    "LEN is N% of the analysed span or a number of time units.\n";
+
+static const char rolling_options[] =
+    "indicators:\n"
+    "  --window LEN         trailing window (default 50%); W = round(LEN/dt)+1 samples\n"
+    "  --indicators LIST    variance, sd, cv, skewness, kurtosis, lag1, ar1, recovery\n"
+    "                       (default variance,lag1)\n"
+    "  --min-coverage F     windows with fewer than F*W samples present give NA (default 0.8)\n"
+    "  --recovery log|increments  recovery rate as ln(ar1)/dt (default) or the slope of\n"
+    "                       x[t+1]-x[t] on x[t] divided by dt\n";
+
+static const char cautions[] =
+    "cautions:\n"
+    "  Slowing-down indicators are evidence, not forecasts. They can miss transitions driven\n"
+    "  by noise or by the rate of forcing, they can rise for reasons other than an approaching\n"
+    "  threshold, and they give no date. A p-value depends on the null model chosen.\n"
+    "  Decisions with consequences for people belong to the responsible experts and\n"
+    "  authorities; treat this output as one input to their judgement.\n";
+
+static void help_detrend(FILE *out)
+{
+    fputs("usage: slowscan detrend [options] FILE...\n\n"
+          "Writes the trend and residual of every series as CSV\n"
+          "series,time,value,trend,residual (value is the series as detrended: after\n"
+          "--log, --resample and --deseason).\n\n", out);
+    fputs(input_options, out);
+}
+
+static void help_indicators(FILE *out)
+{
+    fputs("usage: slowscan indicators [options] FILE...\n\n"
+          "Detrends every series and writes its rolling-window indicators as CSV\n"
+          "series,time,indicator,value; each value uses the trailing window ending at time.\n\n",
+          out);
+    fputs(input_options, out);
+    fputs(rolling_options, out);
+}
+
+static void help_screen(FILE *out)
+{
+    fputs("usage: slowscan screen [options] FILE...\n\n"
+          "For every series: detrend, compute rolling indicators, and measure their trend by\n"
+          "Kendall tau-b against time. Writes one row per series x indicator:\n"
+          "series,indicator,n,window,bandwidth,tau,p_value,q_value,null,surrogates,flag\n"
+          "(window and bandwidth in time units). flag is 'untested' when no surrogate test\n"
+          "was run, 'insufficient' when too few finite values remain (reason on stderr).\n\n",
+          out);
+    fputs(input_options, out);
+    fputs(rolling_options, out);
+    fputs("screening:\n"
+          "  --surrogates M       surrogate replicates; this version runs tau only: 0 (default)\n"
+          "  --rolling FILE       also write the rolling indicators (as 'indicators' does)\n"
+          "  --format csv|table   summary as CSV (default) or as an aligned table\n\n", out);
+    fputs(cautions, out);
+}
+
+static void help_demo(FILE *out)
+{
+    fputs("usage: slowscan demo [--out DIR] [--seed S]\n\n"
+          "Writes DIR/stations.csv (default DIR: data): weekly turbidity at eight invented lake\n"
+          "stations, four of which drift toward a fold; see data/README.md.\n", out);
+}
+
+int cli_help(const char *topic, FILE *out)
+{
+    static const struct {
+        const char *name;
+        void (*print)(FILE *);
+    } topics[] = {{"detrend", help_detrend},
+                  {"indicators", help_indicators},
+                  {"screen", help_screen},
+                  {"demo", help_demo}};
+    if (!topic) {
+        fputs(overview, out);
+        fputc('\n', out);
+        fputs(cautions, out);
+        return EXIT_OK;
+    }
+    for (size_t i = 0; i < sizeof topics / sizeof topics[0]; i++)
+        if (strcmp(topic, topics[i].name) == 0) {
+            topics[i].print(out);
+            return EXIT_OK;
+        }
+    fprintf(stderr, "slowscan: no help for '%s' (commands: screen, indicators, detrend, demo)\n", topic);
+    return EXIT_BAD_INPUT;
+}

@@ -1,0 +1,53 @@
+/* slowscan: command dispatch. */
+#include "cli.h"
+
+#include <fftw3.h>
+#include <gsl/gsl_errno.h>
+#include <stdlib.h>
+#include <string.h>
+
+#ifndef SLOWSCAN_VERSION
+#define SLOWSCAN_VERSION "unknown"
+#endif
+
+static const struct {
+    const char *name;
+    int (*run)(const cli_options *opts);
+} commands[] = {
+    {"detrend", cmd_detrend},
+    {"indicators", cmd_indicators},
+    {"screen", cmd_screen},
+    {"demo", cmd_demo},
+};
+
+int main(int argc, char **argv)
+{
+    if (argc < 2) {
+        cli_help(NULL, stderr);
+        return EXIT_BAD_INPUT;
+    }
+    const char *name = argv[1];
+    if (!strcmp(name, "--version") || !strcmp(name, "version")) {
+        printf("slowscan %s\n", SLOWSCAN_VERSION);
+        return EXIT_OK;
+    }
+    if (!strcmp(name, "help") || !strcmp(name, "--help") || !strcmp(name, "-h"))
+        return cli_help(argc > 2 ? argv[2] : NULL, stdout);
+    /* Plans may later be made from several threads; FFTW's planner must be told once. */
+    fftw_make_planner_thread_safe();
+    /* GSL must report errors as status codes, not abort the process. */
+    gsl_set_error_handler_off();
+    for (size_t c = 0; c < sizeof commands / sizeof commands[0]; c++) {
+        if (strcmp(name, commands[c].name) != 0)
+            continue;
+        cli_options opts;
+        int rc = cli_parse(name, argc, argv, 2, &opts);
+        if (rc == EXIT_OK)
+            rc = commands[c].run(&opts);
+        cli_options_free(&opts);
+        fftw_cleanup();
+        return rc < 0 ? EXIT_OK : rc;
+    }
+    fprintf(stderr, "slowscan: unknown command '%s' (see 'slowscan help')\n", name);
+    return EXIT_BAD_INPUT;
+}

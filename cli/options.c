@@ -1,0 +1,346 @@
+/* Option parsing: one table names every option, the commands that take it and the function
+ * that stores its value, so each command accepts exactly its own options. */
+#include "cli.h"
+#include "slowscan/status.h"
+
+#include <math.h>
+#include <stdarg.h>
+#include <stdlib.h>
+#include <string.h>
+#include <unistd.h>
+
+enum { C_DETREND = 1, C_INDICATORS = 2, C_SCREEN = 4, C_DEMO = 8 };
+#define C_SERIES (C_DETREND | C_INDICATORS | C_SCREEN)
+#define C_ROLLING (C_INDICATORS | C_SCREEN)
+
+typedef int (*option_setter)(cli_options *opts, const char *name, const char *value);
+
+typedef struct {
+    const char *name;
+    int takes_value;
+    int commands;
+    option_setter set;
+} option_spec;
+
+static int parse_number(const char *name, const char *value, double *out)
+{
+    char *end;
+    double v = strtod(value, &end);
+    if (end == value || *end != '\0' || !isfinite(v)) {
+        cli_error("option %s: '%s' is not a finite number", name, value);
+        return EXIT_BAD_INPUT;
+    }
+    *out = v;
+    return EXIT_OK;
+}
+
+static int parse_positive(const char *name, const char *value, double *out)
+{
+    int rc = parse_number(name, value, out);
+    if (rc == EXIT_OK && !(*out > 0)) {
+        cli_error("option %s: %s must be positive", name, value);
+        return EXIT_BAD_INPUT;
+    }
+    return rc;
+}
+
+/* "N%" or a bare number of time units; must be positive (the span check comes later). */
+static int parse_length(const char *name, const char *value, cli_length *len)
+{
+    size_t n = strlen(value);
+    char buf[64];
+    len->text = value;
+    len->percent = n > 0 && value[n - 1] == '%';
+    if (n == 0 || n >= sizeof buf) {
+        cli_error("option %s: '%s' is not a length (write N%% of the span or a number of time units)",
+                  name, value);
+        return EXIT_BAD_INPUT;
+    }
+    memcpy(buf, value, n + 1);
+    if (len->percent)
+        buf[n - 1] = '\0';
+    int rc = parse_positive(name, buf, &len->amount);
+    if (rc == EXIT_OK && len->percent && len->amount > 100) {
+        cli_error("option %s: %s is more than 100%% of the span", name, value);
+        return EXIT_BAD_INPUT;
+    }
+    return rc;
+}
+
+static int set_time(cli_options *o, const char *n, const char *v) { (void)n; o->time_column = v; return EXIT_OK; }
+static int set_vars(cli_options *o, const char *n, const char *v) { (void)n; o->vars = v; return EXIT_OK; }
+static int set_from(cli_options *o, const char *n, const char *v) { return parse_number(n, v, &o->from); }
+static int set_until(cli_options *o, const char *n, const char *v) { return parse_number(n, v, &o->until); }
+static int set_resample(cli_options *o, const char *n, const char *v) { return parse_positive(n, v, &o->resample); }
+static int set_deseason(cli_options *o, const char *n, const char *v) { return parse_positive(n, v, &o->deseason); }
+static int set_bandwidth(cli_options *o, const char *n, const char *v) { return parse_length(n, v, &o->bandwidth); }
+static int set_window(cli_options *o, const char *n, const char *v) { return parse_length(n, v, &o->window); }
+static int set_output(cli_options *o, const char *n, const char *v) { (void)n; o->output = v; return EXIT_OK; }
+static int set_rolling(cli_options *o, const char *n, const char *v) { (void)n; o->rolling_output = v; return EXIT_OK; }
+static int set_out_dir(cli_options *o, const char *n, const char *v) { (void)n; o->out_dir = v; return EXIT_OK; }
+static int set_progress(cli_options *o, const char *n, const char *v) { (void)v; o->progress = strcmp(n, "--progress") == 0; return EXIT_OK; }
+static int set_log(cli_options *o, const char *n, const char *v) { (void)n; (void)v; o->log_values = 1; return EXIT_OK; }
+
+static int set_detrend(cli_options *o, const char *n, const char *v)
+{
+    o->detrend_text = v;
+    if (detrend_parse_method(v, &o->detrend) != SLOWSCAN_OK) {
+        cli_error("option %s: unknown method '%s' (gaussian, moving, loess, linear, poly:K with "
+                  "K from 1 to 12, difference, none)", n, v);
+        return EXIT_BAD_INPUT;
+    }
+    return EXIT_OK;
+}
+
+static int set_indicators(cli_options *o, const char *n, const char *v)
+{
+    char buf[512];
+    if (strlen(v) >= sizeof buf) {
+        cli_error("option %s: list too long", n);
+        return EXIT_BAD_INPUT;
+    }
+    strcpy(buf, v);
+    o->nindicators = 0;
+    o->indicators_text = v;
+    for (char *save = NULL, *tok = strtok_r(buf, ",", &save); tok; tok = strtok_r(NULL, ",", &save)) {
+        indicator_kind kind;
+        if (indicator_lookup(tok, &kind) != SLOWSCAN_OK) {
+            cli_error("option %s: unknown indicator '%s' (variance, sd, cv, skewness, kurtosis, "
+                      "lag1, ar1, recovery)", n, tok);
+            return EXIT_BAD_INPUT;
+        }
+        for (size_t j = 0; j < o->nindicators; j++)
+            if (o->indicators[j] == kind) {
+                cli_error("option %s: indicator '%s' is listed twice", n, tok);
+                return EXIT_BAD_INPUT;
+            }
+        o->indicators[o->nindicators++] = kind;
+    }
+    if (o->nindicators == 0) {
+        cli_error("option %s: no indicator given", n);
+        return EXIT_BAD_INPUT;
+    }
+    return EXIT_OK;
+}
+
+static int set_min_coverage(cli_options *o, const char *n, const char *v)
+{
+    int rc = parse_number(n, v, &o->min_coverage);
+    if (rc == EXIT_OK && !(o->min_coverage > 0 && o->min_coverage <= 1)) {
+        cli_error("option %s: %s is outside (0, 1]", n, v);
+        return EXIT_BAD_INPUT;
+    }
+    return rc;
+}
+
+static int set_recovery(cli_options *o, const char *n, const char *v)
+{
+    if (strcmp(v, "log") == 0)
+        o->recovery = RECOVERY_LOG_AR1;
+    else if (strcmp(v, "increments") == 0)
+        o->recovery = RECOVERY_INCREMENTS;
+    else {
+        cli_error("option %s: '%s' is neither 'log' nor 'increments'", n, v);
+        return EXIT_BAD_INPUT;
+    }
+    return EXIT_OK;
+}
+
+static int set_whole(const char *n, const char *v, long min, long *out)
+{
+    char *end;
+    long x = strtol(v, &end, 10);
+    if (end == v || *end != '\0' || x < min) {
+        cli_error("option %s: '%s' is not a whole number >= %ld", n, v, min);
+        return EXIT_BAD_INPUT;
+    }
+    *out = x;
+    return EXIT_OK;
+}
+
+static int set_surrogates(cli_options *o, const char *n, const char *v)
+{
+    int rc = set_whole(n, v, 0, &o->surrogates);
+    if (rc == EXIT_OK && o->surrogates > 0) {
+        /* Said plainly rather than ignored: a p-value we cannot compute must not look real. */
+        cli_error("option %s: surrogate significance tests are not available in this version; "
+                  "use --surrogates 0 (tau only)", n);
+        return EXIT_BAD_INPUT;
+    }
+    return rc;
+}
+
+static int set_seed(cli_options *o, const char *n, const char *v)
+{
+    long s = 0;
+    int rc = set_whole(n, v, 0, &s);
+    o->seed = (unsigned long)s;
+    return rc;
+}
+
+static int set_format(cli_options *o, const char *n, const char *v)
+{
+    if (strcmp(v, "csv") != 0 && strcmp(v, "table") != 0) {
+        cli_error("option %s: '%s' is neither 'csv' nor 'table'", n, v);
+        return EXIT_BAD_INPUT;
+    }
+    o->format = v;
+    return EXIT_OK;
+}
+
+static const option_spec options[] = {
+    {"--time", 1, C_SERIES, set_time},
+    {"--vars", 1, C_SERIES, set_vars},
+    {"--from", 1, C_SERIES, set_from},
+    {"--until", 1, C_SERIES, set_until},
+    {"--log", 0, C_SERIES, set_log},
+    {"--resample", 1, C_SERIES, set_resample},
+    {"--detrend", 1, C_SERIES, set_detrend},
+    {"--bandwidth", 1, C_SERIES, set_bandwidth},
+    {"--deseason", 1, C_SERIES, set_deseason},
+    {"--window", 1, C_ROLLING, set_window},
+    {"--indicators", 1, C_ROLLING, set_indicators},
+    {"--min-coverage", 1, C_ROLLING, set_min_coverage},
+    {"--recovery", 1, C_ROLLING, set_recovery},
+    {"--surrogates", 1, C_SCREEN, set_surrogates},
+    {"--rolling", 1, C_SCREEN, set_rolling},
+    {"--format", 1, C_SCREEN, set_format},
+    {"-o", 1, C_SERIES, set_output},
+    {"--output", 1, C_SERIES, set_output},
+    {"--progress", 0, C_SERIES, set_progress},
+    {"--no-progress", 0, C_SERIES, set_progress},
+    {"--out", 1, C_DEMO, set_out_dir},
+    {"--seed", 1, C_DEMO, set_seed},
+};
+
+static int command_bit(const char *command)
+{
+    static const char *names[] = {"detrend", "indicators", "screen", "demo"};
+    for (int i = 0; i < 4; i++)
+        if (strcmp(command, names[i]) == 0)
+            return 1 << i;
+    return 0;
+}
+
+static void set_defaults(const char *command, cli_options *o)
+{
+    memset(o, 0, sizeof *o);
+    o->command = command;
+    o->from = o->until = o->resample = o->deseason = NAN;
+    detrend_parse_method("gaussian", &o->detrend);
+    o->detrend_text = "gaussian";
+    o->bandwidth = (cli_length){10, 1, "10%"};
+    o->window = (cli_length){50, 1, "50%"};
+    o->indicators[0] = INDICATOR_VARIANCE;
+    o->indicators[1] = INDICATOR_LAG1;
+    o->nindicators = 2;
+    o->indicators_text = "variance,lag1";
+    o->min_coverage = 0.8;
+    o->recovery = RECOVERY_LOG_AR1;
+    o->surrogates = 0;
+    o->format = "csv";
+    o->progress = -1;
+    o->seed = 1;
+}
+
+static const option_spec *find_option(const char *arg, size_t *name_len)
+{
+    const char *eq = strchr(arg, '=');
+    size_t len = eq && arg[1] == '-' ? (size_t)(eq - arg) : strlen(arg);
+    for (size_t i = 0; i < sizeof options / sizeof options[0]; i++)
+        if (strlen(options[i].name) == len && strncmp(arg, options[i].name, len) == 0) {
+            *name_len = len;
+            return &options[i];
+        }
+    return NULL;
+}
+
+/* One option at argv[*i]; advances *i past its value. */
+static int parse_one(cli_options *o, int bit, int argc, char **argv, int *i)
+{
+    const char *arg = argv[*i];
+    size_t len = 0;
+    const option_spec *spec = find_option(arg, &len);
+    if (!spec || !(spec->commands & bit)) {
+        cli_error("%s: unknown option '%s' (see 'slowscan help %s')", o->command, arg, o->command);
+        return EXIT_BAD_INPUT;
+    }
+    const char *value = NULL;
+    if (arg[len] == '=')
+        value = arg + len + 1;
+    else if (spec->takes_value) {
+        if (*i + 1 >= argc) {
+            cli_error("option %s needs a value", spec->name);
+            return EXIT_BAD_INPUT;
+        }
+        value = argv[++*i];
+    }
+    if (value && !spec->takes_value) {
+        cli_error("option %s takes no value", spec->name);
+        return EXIT_BAD_INPUT;
+    }
+    return spec->set(o, spec->name, value);
+}
+
+int cli_parse(const char *command, int argc, char **argv, int first, cli_options *o)
+{
+    set_defaults(command, o);
+    int bit = command_bit(command);
+    o->files = calloc((size_t)argc, sizeof *o->files);
+    if (!o->files)
+        return EXIT_INTERNAL;
+    for (int i = first; i < argc; i++) {
+        const char *arg = argv[i];
+        if (strcmp(arg, "--help") == 0 || strcmp(arg, "-h") == 0) {
+            cli_help(command, stdout);
+            return -1;
+        }
+        if (arg[0] == '-' && arg[1] != '\0') {
+            int rc = parse_one(o, bit, argc, argv, &i);
+            if (rc != EXIT_OK)
+                return rc;
+        } else {
+            o->files[o->nfiles++] = arg;
+        }
+    }
+    if (o->progress < 0)
+        o->progress = isatty(STDERR_FILENO);
+    if (bit != C_DEMO && o->nfiles == 0) {
+        cli_error("%s: no input file given (a CSV file, or - for standard input)", command);
+        return EXIT_BAD_INPUT;
+    }
+    if (bit == C_DEMO && o->nfiles > 0) {
+        cli_error("demo: takes no input file (write the data set with --out DIR)");
+        return EXIT_BAD_INPUT;
+    }
+    return EXIT_OK;
+}
+
+void cli_options_free(cli_options *o)
+{
+    free(o->files);
+    o->files = NULL;
+}
+
+static void vreport(const char *kind, const char *fmt, va_list ap)
+{
+    fprintf(stderr, "slowscan: %s", kind);
+    vfprintf(stderr, fmt, ap);
+    fputc('\n', stderr);
+}
+
+void cli_error(const char *fmt, ...)
+{
+    va_list ap;
+    va_start(ap, fmt);
+    vreport("", fmt, ap);
+    va_end(ap);
+}
+
+void cli_warning(const char *fmt, ...)
+{
+    va_list ap;
+    va_start(ap, fmt);
+    vreport("warning: ", fmt, ap);
+    va_end(ap);
+}

@@ -1,0 +1,149 @@
+/* Output plumbing shared by the commands: atomic output files, number formatting, progress,
+ * and the per-series driver every series command runs through. */
+#include "cli.h"
+#include "slowscan/status.h"
+
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+
+int cli_outputs_open(cli_outputs *outs, const cli_options *opts, const char *path,
+                     const char *option, FILE **fp)
+{
+    int to_stdout = !path || strcmp(path, "-") == 0;
+    for (size_t f = 0; !to_stdout && f < opts->nfiles; f++)
+        if (strcmp(path, opts->files[f]) == 0 || io_same_file(path, opts->files[f])) {
+            cli_error("option %s: output %s is the input file; refusing to overwrite it", option,
+                      path);
+            return EXIT_BAD_INPUT;
+        }
+    for (size_t j = 0; !to_stdout && j < outs->count; j++)
+        if (outs->files[j].path && strcmp(outs->files[j].path, path) == 0) {
+            cli_error("option %s: output %s is already written by another option", option, path);
+            return EXIT_BAD_INPUT;
+        }
+    if (outs->count == sizeof outs->files / sizeof outs->files[0])
+        return EXIT_INTERNAL;
+    io_error err = {{0}};
+    atomic_file *file = &outs->files[outs->count];
+    if (atomic_open(file, path, &err) != SLOWSCAN_OK) {
+        cli_error("option %s: %s", option, err.message);
+        return EXIT_BAD_INPUT;
+    }
+    outs->count++;
+    *fp = file->fp;
+    return EXIT_OK;
+}
+
+int cli_outputs_commit(cli_outputs *outs)
+{
+    int rc = EXIT_OK;
+    for (size_t j = 0; j < outs->count; j++) {
+        io_error err = {{0}};
+        if (rc != EXIT_OK) {
+            atomic_abort(&outs->files[j]);
+        } else if (atomic_commit(&outs->files[j], &err) != SLOWSCAN_OK) {
+            cli_error("%s", err.message);
+            rc = EXIT_BAD_INPUT;
+        }
+    }
+    outs->count = 0;
+    return rc;
+}
+
+void cli_outputs_abort(cli_outputs *outs)
+{
+    for (size_t j = 0; j < outs->count; j++)
+        atomic_abort(&outs->files[j]);
+    outs->count = 0;
+}
+
+void cli_put_number(FILE *fp, double v)
+{
+    if (isfinite(v))
+        fprintf(fp, "%.12g", v == 0 ? 0.0 : v); /* no "-0" */
+    else
+        fputs("NA", fp);
+}
+
+void cli_put_field(FILE *fp, const char *s)
+{
+    if (!strpbrk(s, ",;\t\"\r\n")) {
+        fputs(s, fp);
+        return;
+    }
+    fputc('"', fp);
+    for (; *s; s++) {
+        if (*s == '"')
+            fputc('"', fp);
+        fputc(*s, fp);
+    }
+    fputc('"', fp);
+}
+
+void cli_progress(const cli_options *opts, const char *what, size_t done, size_t total)
+{
+    if (!opts->progress)
+        return;
+    fprintf(stderr, "\r%s: %zu/%zu series", what, done, total);
+    if (done == total)
+        fputc('\n', stderr);
+    fflush(stderr);
+}
+
+int cli_for_each_series(const cli_options *opts, const cli_inputs *in, series_visitor visit,
+                        void *context)
+{
+    size_t total = cli_inputs_series_count(in), done = 0;
+    for (size_t f = 0; f < in->ntables; f++) {
+        const series_table *t = &in->tables[f];
+        for (size_t k = 0; k < t->nseries; k++) {
+            prepared_series ps;
+            int rc = cli_prepare_series(opts, t, k, &ps);
+            if (rc == EXIT_OK)
+                rc = visit(opts, &ps, context);
+            cli_prepared_free(&ps);
+            if (rc != EXIT_OK)
+                return rc;
+            cli_progress(opts, opts->command, ++done, total);
+        }
+    }
+    return EXIT_OK;
+}
+
+int cli_run_series_command(const cli_options *opts, const series_command *cmd)
+{
+    cli_inputs in;
+    cli_outputs outs = {0};
+    int rc = cli_inputs_load(opts, &in);
+    if (rc == EXIT_OK && cmd->open)
+        rc = cmd->open(opts, &outs, cmd->context);
+    if (rc == EXIT_OK)
+        rc = cli_for_each_series(opts, &in, cmd->visit, cmd->context);
+    if (rc == EXIT_OK && cmd->finish)
+        rc = cmd->finish(opts, cmd->context);
+    if (rc == EXIT_OK)
+        rc = cli_outputs_commit(&outs);
+    else
+        cli_outputs_abort(&outs);
+    cli_inputs_free(&in);
+    return rc;
+}
+
+const char cli_rolling_header[] = "series,time,indicator,value\n";
+
+void cli_write_rolling(FILE *fp, const cli_options *opts, const prepared_series *ps,
+                       double *const *values)
+{
+    for (size_t j = 0; j < opts->nindicators; j++) {
+        const char *name = indicator_name(opts->indicators[j]);
+        for (size_t i = ps->window - 1; i < ps->n; i++) {
+            cli_put_field(fp, ps->name);
+            fputc(',', fp);
+            cli_put_number(fp, ps->time[i]);
+            fprintf(fp, ",%s,", name);
+            cli_put_number(fp, values[j][i]);
+            fputc('\n', fp);
+        }
+    }
+}

@@ -1,0 +1,264 @@
+/* From input files to prepared series: read, cut to --from/--until, check or make a regular
+ * grid, take logs, then per series deseason and detrend. Every failure prints one message
+ * naming the file, row, column or option, and returns an exit code. */
+#include "cli.h"
+#include "slowscan/status.h"
+
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+
+static int io_fail(int status, const io_error *err)
+{
+    cli_error("%s", err->message);
+    return status == SLOWSCAN_ENOMEM ? EXIT_INTERNAL : EXIT_BAD_INPUT;
+}
+
+/* Rows of a table below which nothing can be said (fewer than 8 samples). */
+enum { MIN_ROWS = 8 };
+
+static int ready_table(const cli_options *opts, series_table *t)
+{
+    io_error err = {{0}};
+    int st;
+    if (!isnan(opts->from) || !isnan(opts->until))
+        if ((st = table_select_span(t, opts->from, opts->until, &err)) != SLOWSCAN_OK)
+            return io_fail(st, &err);
+    double dt;
+    if (!isnan(opts->resample))
+        st = table_resample(t, opts->resample, &err);
+    else
+        st = table_check_grid(t, &dt, &err);
+    if (st != SLOWSCAN_OK)
+        return io_fail(st, &err);
+    if (opts->log_values && (st = table_log(t, &err)) != SLOWSCAN_OK)
+        return io_fail(st, &err);
+    if (t->n < MIN_ROWS) {
+        cli_error("%s: %zu samples in the analysed span; at least %d are needed", t->source, t->n,
+                  MIN_ROWS);
+        return EXIT_BAD_INPUT;
+    }
+    return EXIT_OK;
+}
+
+int cli_inputs_load(const cli_options *opts, cli_inputs *in)
+{
+    memset(in, 0, sizeof *in);
+    in->tables = calloc(opts->nfiles, sizeof *in->tables);
+    if (!in->tables)
+        return EXIT_INTERNAL;
+    csv_read_options ro = {opts->time_column, opts->vars};
+    for (size_t f = 0; f < opts->nfiles; f++) {
+        for (size_t g = 0; g < f; g++)
+            if (strcmp(opts->files[f], opts->files[g]) == 0 || io_same_file(opts->files[f], opts->files[g])) {
+                cli_error("%s: the same input is given twice", opts->files[f]);
+                return EXIT_BAD_INPUT;
+            }
+        io_error err = {{0}};
+        int st = csv_read_table(opts->files[f], &ro, &in->tables[f], &err);
+        in->ntables = f + 1;
+        if (st != SLOWSCAN_OK)
+            return io_fail(st, &err);
+        int rc = ready_table(opts, &in->tables[f]);
+        if (rc != EXIT_OK)
+            return rc;
+    }
+    return EXIT_OK;
+}
+
+void cli_inputs_free(cli_inputs *in)
+{
+    for (size_t f = 0; f < in->ntables; f++)
+        series_table_free(&in->tables[f]);
+    free(in->tables);
+    memset(in, 0, sizeof *in);
+}
+
+size_t cli_inputs_series_count(const cli_inputs *in)
+{
+    size_t total = 0;
+    for (size_t f = 0; f < in->ntables; f++)
+        total += in->tables[f].nseries;
+    return total;
+}
+
+/* A length option in time units: percent of the span, or as given; must fit in the span. */
+static int resolve_length(const cli_length *len, const char *option, const series_table *t,
+                          double span, double *out)
+{
+    double v = len->percent ? len->amount / 100.0 * span : len->amount;
+    if (!(v <= span * (1 + 1e-9))) {
+        cli_error("%s: option %s %s is longer than the span %.12g of the analysed series",
+                  t->source, option, len->text, span);
+        return EXIT_BAD_INPUT;
+    }
+    *out = v;
+    return EXIT_OK;
+}
+
+/* Samples in a window, DESIGN §3: round(window/dt)+1 or round(p/100 (n-1))+1. */
+static int resolve_window(const cli_options *o, const series_table *t, double dt, double span,
+                          size_t *window)
+{
+    double length;
+    int rc = resolve_length(&o->window, "--window", t, span, &length);
+    if (rc != EXIT_OK)
+        return rc;
+    double w = o->window.percent ? floor(o->window.amount / 100.0 * (double)(t->n - 1) + 0.5)
+                                 : floor(length / dt + 0.5);
+    *window = (size_t)w + 1;
+    if (*window < 3) {
+        cli_error("%s: option --window %s gives %zu samples per window; at least 3 are needed",
+                  t->source, o->window.text, *window);
+        return EXIT_BAD_INPUT;
+    }
+    return EXIT_OK;
+}
+
+static int detrend_fail(int st, const cli_options *o, const prepared_series *ps)
+{
+    if (st == SLOWSCAN_ENOMEM) {
+        cli_error("out of memory");
+        return EXIT_INTERNAL;
+    }
+    if (st == SLOWSCAN_EINVAL && o->detrend.method == DETREND_POLY)
+        cli_error("%s: column '%s': option --detrend %s: the degree is too high for %zu finite "
+                  "samples", ps->source, ps->name, o->detrend_text, ps->finite);
+    else
+        cli_error("%s: column '%s': detrending (--detrend %s) failed: %s", ps->source, ps->name,
+                  o->detrend_text, slowscan_strerror(st));
+    return EXIT_BAD_INPUT;
+}
+
+static int deseason_fail(int st, const cli_options *o, const prepared_series *ps)
+{
+    if (st == SLOWSCAN_ESHORT)
+        cli_error("%s: column '%s': option --deseason %.12g: a phase of the cycle has no finite "
+                  "sample", ps->source, ps->name, o->deseason);
+    else
+        cli_error("%s: option --deseason %.12g must be a whole number (>= 2) of time steps %.12g "
+                  "and at most half the record", ps->source, o->deseason, ps->dt);
+    return EXIT_BAD_INPUT;
+}
+
+static void count_finite(prepared_series *ps)
+{
+    double lo = INFINITY, hi = -INFINITY;
+    ps->finite = 0;
+    for (size_t i = 0; i < ps->n; i++)
+        if (isfinite(ps->value[i])) {
+            ps->finite++;
+            lo = fmin(lo, ps->value[i]);
+            hi = fmax(hi, ps->value[i]);
+        }
+    ps->constant = ps->finite > 0 && lo == hi;
+}
+
+/* A residual at round-off level (a straight line under --detrend linear, say) carries no
+ * information: its lag-1 autocorrelation would be computed from rounding noise. Treat it as
+ * constant rather than report numbers made of round-off. */
+static void flag_flat_residual(prepared_series *ps)
+{
+    double res = 0, scale = 0;
+    for (size_t i = 0; i < ps->n; i++)
+        if (isfinite(ps->residual[i])) {
+            res = fmax(res, fabs(ps->residual[i]));
+            scale = fmax(scale, fabs(ps->value[i]));
+        }
+    if (res <= 1e-11 * scale)
+        ps->constant = 2;
+}
+
+int cli_prepare_series(const cli_options *o, const series_table *t, size_t k, prepared_series *ps)
+{
+    memset(ps, 0, sizeof *ps);
+    ps->name = t->names[k];
+    ps->source = t->source;
+    ps->n = t->n;
+    ps->time = t->time;
+    ps->span = t->time[t->n - 1] - t->time[0];
+    ps->dt = ps->span / (double)(t->n - 1);
+    int rc = resolve_window(o, t, ps->dt, ps->span, &ps->window);
+    detrend_spec spec = o->detrend;
+    ps->bandwidth = NAN;
+    if (rc == EXIT_OK && detrend_uses_bandwidth(spec.method)) {
+        rc = resolve_length(&o->bandwidth, "--bandwidth", t, ps->span, &spec.bandwidth);
+        ps->bandwidth = spec.bandwidth;
+    }
+    if (rc != EXIT_OK)
+        return rc;
+    ps->value = malloc(3 * t->n * sizeof(double));
+    if (!ps->value)
+        return EXIT_INTERNAL;
+    ps->trend = ps->value + t->n;
+    ps->residual = ps->trend + t->n;
+    memcpy(ps->value, t->values[k], t->n * sizeof(double));
+    count_finite(ps);
+    int st;
+    if (!isnan(o->deseason) && (st = detrend_deseason(ps->dt, o->deseason, ps->value, t->n)) != SLOWSCAN_OK)
+        return deseason_fail(st, o, ps);
+    if (ps->finite < 2 || ps->constant) {
+        /* Nothing to detrend: the caller reports the series as insufficient. */
+        for (size_t i = 0; i < t->n; i++)
+            ps->trend[i] = ps->residual[i] = NAN;
+        return EXIT_OK;
+    }
+    if ((st = detrend_apply(&spec, ps->dt, ps->value, t->n, ps->trend, ps->residual)) != SLOWSCAN_OK)
+        return detrend_fail(st, o, ps);
+    flag_flat_residual(ps);
+    return EXIT_OK;
+}
+
+void cli_prepared_free(prepared_series *ps)
+{
+    free(ps->value);
+    memset(ps, 0, sizeof *ps);
+}
+
+void cli_indicator_values_free(const cli_options *o, double **values)
+{
+    for (size_t j = 0; j < o->nindicators; j++) {
+        free(values[j]);
+        values[j] = NULL;
+    }
+}
+
+static void fill_nan(double *v, size_t n)
+{
+    for (size_t i = 0; i < n; i++)
+        v[i] = NAN;
+}
+
+int cli_indicator_values(const cli_options *o, const prepared_series *ps, double **values)
+{
+    for (size_t j = 0; j < o->nindicators; j++)
+        values[j] = malloc(ps->n * sizeof(double));
+    for (size_t j = 0; j < o->nindicators; j++)
+        if (!values[j]) {
+            cli_error("out of memory");
+            return EXIT_INTERNAL;
+        }
+    if (ps->window > ps->n) {
+        cli_error("%s: option --window %s: the window (%zu samples) is longer than the series "
+                  "(%zu samples)", ps->source, o->window.text, ps->window, ps->n);
+        return EXIT_BAD_INPUT;
+    }
+    if (ps->constant || ps->finite < 2) {
+        cli_warning("%s: column '%s' %s; its indicators are NA", ps->source, ps->name,
+                    ps->constant == 1   ? "is constant"
+                    : ps->constant == 2 ? "has no variation left after detrending"
+                                        : "has fewer than 2 finite samples");
+        for (size_t j = 0; j < o->nindicators; j++)
+            fill_nan(values[j], ps->n);
+        return EXIT_OK;
+    }
+    rolling_spec spec = {ps->window, o->min_coverage, ps->dt, o->recovery};
+    int st = rolling_compute(&spec, ps->residual, ps->value, ps->n, o->indicators, o->nindicators,
+                             values);
+    if (st != SLOWSCAN_OK) {
+        cli_error("%s: column '%s': rolling indicators failed: %s", ps->source, ps->name,
+                  slowscan_strerror(st));
+        return st == SLOWSCAN_ENOMEM ? EXIT_INTERNAL : EXIT_BAD_INPUT;
+    }
+    return EXIT_OK;
+}

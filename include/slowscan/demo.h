@@ -1,0 +1,33 @@
+/* slowscan — the invented demo scenario (module prefix: demo_).
+ *
+ * A network of shallow-lake monitoring stations reports a weekly turbidity reading. At some
+ * stations nutrient loading slowly erodes the clear-water state: its dynamics follow the
+ * saddle-node normal form dx/dt = a(t) - x^2 + noise, whose stable state x* = sqrt(a) loses
+ * resilience (recovery rate 2 sqrt(a) -> 0) as a(t) ramps down toward the fold at a = 0. The
+ * other stations are stationary controls. Everything here is invented for the demo. */
+#ifndef SLOWSCAN_DEMO_H
+#define SLOWSCAN_DEMO_H
+
+#include <stddef.h>
+
+typedef struct {
+    const char *name;
+    double forcing_start; /* a at the first sample */
+    double forcing_end;   /* a at the last sample (equal to start: a control) */
+    double base_level;    /* turbidity of the clear state, NTU */
+    double drift;         /* slow linear change of the level over the record, NTU */
+} demo_station;
+
+size_t demo_station_count(void);
+const demo_station *demo_station_get(size_t k);
+
+/* Sampling of the demo: weekly, in days since the start of the record. */
+#define DEMO_SAMPLES 1040
+#define DEMO_STEP_DAYS 7.0
+
+/* Fills time[n] (days) and, for every station k, values[k][n] (NTU). Deterministic for a
+ * given seed. SLOWSCAN_EINVAL for n < 8; SLOWSCAN_ENUMERIC if a path escaped the basin
+ * (cannot happen with the shipped parameters, checked anyway). */
+int demo_generate(unsigned long seed, size_t n, double *time, double **values);
+
+#endif

@@ -1,0 +1,45 @@
+/* slowscan — surrogate null models (module prefix: surrogate_).
+ *
+ * Plan once, draw many (the FFTW habit). A surrogate_plan holds what depends only on the
+ * series length: FFTW plans, made once and shared read-only by every thread (execution uses
+ * the new-array interface). A surrogate_source holds what depends on one series — its
+ * Fourier amplitudes, sorted values, fitted AR(1) — plus the scratch of one thread; make one
+ * source per thread and series. surrogate_draw then allocates nothing.
+ *
+ * Missing samples: the source series is filled at its NaN positions by the mean of its finite
+ * samples before transforming, and every surrogate gets NaN back at exactly those positions,
+ * so the surrogate's windows have the same coverage as the observed ones. */
+#ifndef SLOWSCAN_SURROGATES_H
+#define SLOWSCAN_SURROGATES_H
+
+#include <gsl/gsl_rng.h>
+#include <stddef.h>
+
+typedef enum {
+    SURROGATE_PHASE, /* Fourier phase randomisation: periodogram kept exactly (Theiler et al. 1992) */
+    SURROGATE_COUNT
+} surrogate_kind;
+
+const char *surrogate_name(surrogate_kind kind);
+int surrogate_lookup(const char *name, surrogate_kind *kind);
+
+typedef struct surrogate_plan surrogate_plan;
+typedef struct surrogate_source surrogate_source;
+
+/* fftw_flags: FFTW_ESTIMATE for a few draws; FFTW_MEASURE pays off only when thousands of
+ * draws reuse the plan. Planning is not thread-safe unless fftw_make_planner_thread_safe()
+ * was called: make plans before starting threads. NULL on failure. */
+surrogate_plan *surrogate_plan_alloc(size_t n, unsigned fftw_flags);
+void surrogate_plan_free(surrogate_plan *plan);
+size_t surrogate_plan_length(const surrogate_plan *plan);
+
+/* The source of surrogates of x[n] (n = plan length). *status: SLOWSCAN_ESHORT when fewer
+ * than 8 finite samples, SLOWSCAN_ECONST when they do not vary, SLOWSCAN_ENOMEM. */
+surrogate_source *surrogate_source_alloc(const surrogate_plan *plan, surrogate_kind kind,
+                                         const double *x, int *status);
+void surrogate_source_free(surrogate_source *source);
+
+/* One replicate into out[n], drawing from rng. */
+int surrogate_draw(surrogate_source *source, gsl_rng *rng, double *out);
+
+#endif

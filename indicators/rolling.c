@@ -1,0 +1,181 @@
+/* Rolling indicators: one pass of the shared window accumulator (window_sums.c); each
+ * indicator is a small closed-form function of the window's sums, so the cost per step is
+ * O(1) whatever W and the same for every indicator. */
+#include "slowscan/indicators.h"
+#include "slowscan/status.h"
+
+#include "window_sums.h"
+
+#include <math.h>
+
+/* A level mean smaller than this fraction of the level's magnitude is round-off. */
+#define LEVEL_RESOLUTION 1e-14
+
+typedef double (*indicator_fn)(const window_sums *s, const rolling_spec *spec);
+
+/* sum (x - m)^3 and sum (x - m)^4 from the sums about c, with d = m - c (binomial
+ * expansion of ((x - c) - d)^k). */
+static double central3(const window_sums *s, double d)
+{
+    double n = (double)s->n;
+    return s->s3 - 3.0 * d * s->s2 + 3.0 * d * d * s->s1 - n * d * d * d;
+}
+
+static double central4(const window_sums *s, double d)
+{
+    double n = (double)s->n, d2 = d * d;
+    return s->s4 - 4.0 * d * s->s3 + 6.0 * d2 * s->s2 - 4.0 * d2 * d * s->s1 + n * d2 * d2;
+}
+
+/* Sample variance (n-1). A window whose spread is below round-off is constant: exactly 0. */
+static double ind_variance(const window_sums *s, const rolling_spec *spec)
+{
+    (void)spec;
+    if (s->n < 2)
+        return NAN;
+    return wsums_has_spread(s) ? wsums_central2(s) / (double)(s->n - 1) : 0.0;
+}
+
+static double ind_sd(const window_sums *s, const rolling_spec *spec)
+{
+    return sqrt(ind_variance(s, spec));
+}
+
+/* sd of the residual over |mean of the level|, both over the window's present samples. */
+static double ind_cv(const window_sums *s, const rolling_spec *spec)
+{
+    if (s->nl == 0)
+        return NAN;
+    double mean = s->cl + s->sl / (double)s->nl;
+    if (fabs(mean) <= LEVEL_RESOLUTION * fabs(s->cl))
+        return NAN;
+    return ind_sd(s, spec) / fabs(mean);
+}
+
+/* GSL's gsl_stats_skew: (1/N) sum ((x-m)/sd)^3 with sd from the (n-1) variance. */
+static double ind_skewness(const window_sums *s, const rolling_spec *spec)
+{
+    (void)spec;
+    if (!wsums_has_spread(s))
+        return NAN;
+    double n = (double)s->n, sd = sqrt(wsums_central2(s) / (n - 1.0));
+    return central3(s, wsums_offset(s)) / n / (sd * sd * sd);
+}
+
+/* GSL's gsl_stats_kurtosis: (1/N) sum ((x-m)/sd)^4 - 3, sd as for the skewness. */
+static double ind_kurtosis(const window_sums *s, const rolling_spec *spec)
+{
+    (void)spec;
+    if (!wsums_has_spread(s))
+        return NAN;
+    double n = (double)s->n, var = wsums_central2(s) / (n - 1.0);
+    return central4(s, wsums_offset(s)) / n / (var * var) - 3.0;
+}
+
+/* Box-Jenkins: sum over pairs (h - d)(tl - d) / sum over all present samples (x - m)^2,
+ * with d = m - c, so both use the one window mean m. */
+static double ind_lag1(const window_sums *s, const rolling_spec *spec)
+{
+    (void)spec;
+    if (s->np == 0 || !wsums_has_spread(s))
+        return NAN;
+    double d = wsums_offset(s);
+    double num = s->pht - d * (s->ph + s->pt) + (double)s->np * d * d;
+    return num / wsums_central2(s);
+}
+
+/* OLS slope of x_{t+1} on x_t with intercept: S_{h,tl} / S_{h,h} over the pairs. */
+static double ind_ar1(const window_sums *s, const rolling_spec *spec)
+{
+    (void)spec;
+    if (!wsums_has_pair_spread(s))
+        return NAN;
+    return wsums_pair_sht(s) / wsums_pair_shh(s);
+}
+
+/* RECOVERY_LOG_AR1: lambda = ln(ar1)/dt, defined only for ar1 > 0.
+ * RECOVERY_INCREMENTS: OLS slope of y = tl - h on h. Centring y over the pairs gives
+ * S_{h,y} = S_{h,tl} - S_{h,h}, so the slope is ar1 - 1 exactly in exact arithmetic; it is
+ * the linearised (small dt) recovery rate and stays defined when ar1 <= 0. */
+static double ind_recovery(const window_sums *s, const rolling_spec *spec)
+{
+    if (!wsums_has_pair_spread(s))
+        return NAN;
+    double shh = wsums_pair_shh(s), sht = wsums_pair_sht(s);
+    if (spec->recovery == RECOVERY_INCREMENTS)
+        return (sht - shh) / shh / spec->dt;
+    double ar1 = sht / shh;
+    return ar1 > 0.0 ? log(ar1) / spec->dt : NAN;
+}
+
+static const indicator_fn evaluate[INDICATOR_COUNT] = {
+    [INDICATOR_VARIANCE] = ind_variance, [INDICATOR_SD] = ind_sd,
+    [INDICATOR_CV] = ind_cv,             [INDICATOR_SKEWNESS] = ind_skewness,
+    [INDICATOR_KURTOSIS] = ind_kurtosis, [INDICATOR_LAG1] = ind_lag1,
+    [INDICATOR_AR1] = ind_ar1,           [INDICATOR_RECOVERY] = ind_recovery,
+};
+
+static int validate(const rolling_spec *spec, const double *residual, const double *level,
+                    size_t n, const indicator_kind *kinds, size_t nkinds, double *const *out)
+{
+    if (!spec || !residual || (nkinds && (!kinds || !out)))
+        return SLOWSCAN_EINVAL;
+    if (spec->window < 3 || spec->window > n)
+        return SLOWSCAN_EINVAL;
+    if (!(spec->min_coverage > 0.0 && spec->min_coverage <= 1.0))
+        return SLOWSCAN_EINVAL;
+    if (!(spec->dt > 0.0) || !isfinite(spec->dt))
+        return SLOWSCAN_EINVAL;
+    if (spec->recovery != RECOVERY_LOG_AR1 && spec->recovery != RECOVERY_INCREMENTS)
+        return SLOWSCAN_EINVAL;
+    for (size_t k = 0; k < nkinds; k++) {
+        if ((unsigned)kinds[k] >= (unsigned)INDICATOR_COUNT || !out[k])
+            return SLOWSCAN_EINVAL;
+        if (indicator_needs_level(kinds[k]) && !level)
+            return SLOWSCAN_EINVAL;
+    }
+    return SLOWSCAN_OK;
+}
+
+/* ceil(min_coverage * W), computed so that a product that is an integer in exact arithmetic
+ * (0.8 * 10) is not pushed to the next integer by its rounding. */
+static size_t coverage_needed(const rolling_spec *spec)
+{
+    double need = ceil(spec->min_coverage * (double)spec->window * (1.0 - 1e-12));
+    return need < 1.0 ? 1 : (size_t)need;
+}
+
+int rolling_compute(const rolling_spec *spec, const double *residual, const double *level,
+                    size_t n, const indicator_kind *kinds, size_t nkinds, double *const *out)
+{
+    int status = validate(spec, residual, level, n, kinds, nkinds, out);
+    if (status != SLOWSCAN_OK)
+        return status;
+    int high = 0, pairs = 0, uses_level = 0;
+    for (size_t k = 0; k < nkinds; k++) {
+        high |= kinds[k] == INDICATOR_SKEWNESS || kinds[k] == INDICATOR_KURTOSIS;
+        pairs |= kinds[k] == INDICATOR_LAG1 || kinds[k] == INDICATOR_AR1 ||
+                 kinds[k] == INDICATOR_RECOVERY;
+        uses_level |= indicator_needs_level(kinds[k]);
+    }
+    size_t W = spec->window, need = coverage_needed(spec);
+    window_sums s;
+    wsums_init(&s, residual, uses_level ? level : NULL, W, high, pairs);
+    for (size_t i = 0; i < n; i++) {
+        wsums_push(&s, i);
+        if (i + 1 < W) {
+            for (size_t k = 0; k < nkinds; k++)
+                out[k][i] = NAN;
+            continue;
+        }
+        /* The first full window starts from exact sums; later ones follow the policy. */
+        if (i + 1 == W)
+            wsums_refresh(&s);
+        else
+            wsums_maintain(&s);
+        int covered = s.n >= need;
+        for (size_t k = 0; k < nkinds; k++)
+            out[k][i] = covered ? evaluate[kinds[k]](&s, spec) : NAN;
+    }
+    return SLOWSCAN_OK;
+}

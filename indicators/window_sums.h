@@ -1,0 +1,102 @@
+/* Private to indicators/: the one streaming mechanism behind every rolling indicator.
+ *
+ * A trailing window of W samples is summarised by power sums of (x - c) over its present
+ * (finite) samples and by sums over its adjacent pairs (x_t, x_{t+1}) with both present,
+ * h = x_t - c, tl = x_{t+1} - c. Adding the newest sample and dropping the oldest costs O(1).
+ * The shift c keeps the sums small so that the central moments derived from them do not
+ * cancel catastrophically; it is re-centred on the window mean (and every sum recomputed
+ * exactly from the window) every W steps and earlier when the sums have lost their accuracy
+ * (see window_sums.c), which costs O(1) amortised per step. */
+#ifndef SLOWSCAN_INDICATORS_WINDOW_SUMS_H
+#define SLOWSCAN_INDICATORS_WINDOW_SUMS_H
+
+#include <stddef.h>
+
+typedef struct {
+    const double *x;     /* series (residual) */
+    const double *level; /* un-detrended level, or NULL when no indicator needs it */
+    size_t W;
+    int keep_high;       /* keep orders 3 and 4 (skewness, kurtosis) */
+    int keep_pairs;      /* keep the pair sums (lag1, ar1, recovery) */
+    size_t end;          /* index of the newest sample in the window */
+    size_t refreshed_at; /* value of `end` at the last exact recomputation */
+
+    double c;                  /* shift of the power and pair sums */
+    size_t n;                  /* present samples */
+    double s1, s2, s3, s4;     /* sum (x - c)^k over present samples */
+    double peak;               /* largest s2 since the last recomputation */
+    size_t np;                 /* present pairs */
+    double ph, pt, phh, ptt, pht; /* sums of h, tl, h^2, tl^2, h*tl over present pairs */
+    double cl;                 /* shift of the level sum */
+    size_t nl;                 /* present level samples */
+    double sl;                 /* sum (level - cl) over them */
+} window_sums;
+
+/* An empty accumulator over x (and level, may be NULL) for windows of W samples. */
+void wsums_init(window_sums *s, const double *x, const double *level, size_t W, int keep_high,
+                int keep_pairs);
+/* Slides the window so that it ends at sample i (called for i = 0, 1, 2, ... in order):
+ * adds sample i and the pair (i-1, i), drops sample i-W and the pair (i-W, i-W+1). */
+void wsums_push(window_sums *s, size_t i);
+/* Re-centres c on the window mean and recomputes every sum exactly from the window. */
+void wsums_refresh(window_sums *s);
+/* Applies the re-centring policy after a push; call once the window is full. */
+void wsums_maintain(window_sums *s);
+
+/* Derived quantities, all O(1); inline because every indicator calls them every step. */
+
+/* Relative resolution of the sums: an sd below WSUMS_RESOLUTION times the magnitude of the
+ * values is indistinguishable from round-off (a constant window), so it counts as no spread. */
+#define WSUMS_RESOLUTION 1e-14
+
+/* A central sum of squares below this is round-off: RESOLUTION^2 times the sum of the
+ * squared values (count * c^2 + raw sum of squares about c). */
+static inline double wsums_spread_floor(double count, double c, double raw2)
+{
+    return WSUMS_RESOLUTION * WSUMS_RESOLUTION * (count * c * c + raw2);
+}
+
+/* Window mean minus c. */
+static inline double wsums_offset(const window_sums *s)
+{
+    return s->n ? s->s1 / (double)s->n : 0.0;
+}
+
+/* sum (x - mean)^2 over the present samples; a tiny negative value is round-off: 0. */
+static inline double wsums_central2(const window_sums *s)
+{
+    if (s->n == 0)
+        return 0.0;
+    double v = s->s2 - s->s1 * (s->s1 / (double)s->n);
+    return v > 0.0 ? v : 0.0;
+}
+
+/* Non-zero when the spread is resolvable: n >= 2 and the central sum above the floor. */
+static inline int wsums_has_spread(const window_sums *s)
+{
+    return s->n >= 2 &&
+           wsums_central2(s) > wsums_spread_floor((double)s->n, s->c, s->s2);
+}
+
+/* Pairs: sum (h - hbar)^2 (never negative) and sum (h - hbar)(tl - tlbar). */
+static inline double wsums_pair_shh(const window_sums *s)
+{
+    if (s->np == 0)
+        return 0.0;
+    double v = s->phh - s->ph * (s->ph / (double)s->np);
+    return v > 0.0 ? v : 0.0;
+}
+
+static inline double wsums_pair_sht(const window_sums *s)
+{
+    return s->np ? s->pht - s->ph * (s->pt / (double)s->np) : 0.0;
+}
+
+/* Non-zero when at least 2 pairs and the spread of their h is resolvable. */
+static inline int wsums_has_pair_spread(const window_sums *s)
+{
+    return s->np >= 2 &&
+           wsums_pair_shh(s) > wsums_spread_floor((double)s->np, s->c, s->phh);
+}
+
+#endif

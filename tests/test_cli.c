@@ -1,0 +1,320 @@
+/* End-to-end tests of the slowscan command through the binary: every command, the output
+ * formats of DESIGN §4, and the bad-input contract (exit 1, one message naming the file, row,
+ * column or option, no output file left behind). */
+#include "check.h"
+
+#include <dirent.h>
+#include <gsl/gsl_statistics_double.h>
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+static char *run_out, *run_err;
+
+/* Runs "slowscan ARGS" and keeps stdout/stderr in run_out/run_err. */
+static int slowscan(const char *args)
+{
+    free(run_out);
+    free(run_err);
+    char cmd[4096];
+    snprintf(cmd, sizeof cmd, "%s %s", check_binary(), args);
+    return check_run(cmd, &run_out, &run_err);
+}
+
+static size_t count_lines(const char *s)
+{
+    size_t n = 0;
+    for (; s && *s; s++)
+        n += *s == '\n';
+    return n;
+}
+
+/* Files in the scratch directory whose name starts with `prefix` (leftover temp files). */
+static int leftovers(const char *prefix)
+{
+    char dir[512];
+    snprintf(dir, sizeof dir, "%s", check_tmp_path("x"));
+    *strrchr(dir, '/') = '\0';
+    DIR *d = opendir(dir);
+    int found = 0;
+    for (struct dirent *e; d && (e = readdir(d));)
+        found += strncmp(e->d_name, prefix, strlen(prefix)) == 0;
+    if (d)
+        closedir(d);
+    return found;
+}
+
+/* A bad input: exit 1, exactly one line on stderr containing `needle`, no output file. */
+static void expect_rejected(const char *what, const char *csv, const char *args, const char *needle)
+{
+    const char *in = check_tmp_path("bad.csv"), *out = check_tmp_path("bad-out.csv");
+    remove(out);
+    check_write_file(in, csv);
+    char line[2048];
+    snprintf(line, sizeof line, "%s -o %s %s", args, out, in);
+    int rc = slowscan(line);
+    CHECK(rc == 1, "%s: exit %d, want 1 (stderr: %s)", what, rc, run_err ? run_err : "");
+    CHECK(run_err && count_lines(run_err) == 1, "%s: want one message line, got: %s", what,
+          run_err ? run_err : "(none)");
+    CHECK(run_err && strstr(run_err, needle), "%s: message lacks '%s': %s", what, needle,
+          run_err ? run_err : "");
+    CHECK(!check_file_exists(out) && leftovers("bad-out.csv") == 0,
+          "%s: an output file was left behind", what);
+}
+
+/* A small regular series: time 0..n-1, a rising-variance column and a plain one. */
+static char *make_csv(size_t n, unsigned long seed)
+{
+    check_rng *rng = check_rng_alloc(seed);
+    size_t cap = 64 * n + 64, len = 0;
+    char *s = malloc(cap);
+    len += (size_t)snprintf(s + len, cap - len, "time,rising,steady\n");
+    for (size_t i = 0; i < n; i++) {
+        double grow = 0.2 + 2.0 * (double)i / (double)n;
+        len += (size_t)snprintf(s + len, cap - len, "%zu,%.9f,%.9f\n", i,
+                                5 + grow * check_rng_gaussian(rng), 3 + check_rng_gaussian(rng));
+    }
+    check_rng_free(rng);
+    return s;
+}
+
+static void test_help_and_version(void)
+{
+    CHECK(slowscan("--version") == 0 && strstr(run_out, "slowscan "), "--version");
+    CHECK(slowscan("help") == 0 && strstr(run_out, "screen"), "help lists commands");
+    const char *cmds[] = {"screen", "indicators", "detrend", "demo"};
+    for (size_t i = 0; i < 4; i++) {
+        char a[64];
+        snprintf(a, sizeof a, "%s --help", cmds[i]);
+        CHECK(slowscan(a) == 0 && strstr(run_out, "usage: slowscan"), "%s --help", cmds[i]);
+    }
+    /* DESIGN §7: the cautions are part of screen's help. */
+    CHECK(slowscan("help screen") == 0 && strstr(run_out, "not forecasts") &&
+              strstr(run_out, "null model"), "screen help carries the cautions");
+    CHECK(slowscan("nonsense") == 1, "unknown command exits 1");
+}
+
+static void test_demo_matches_committed_data(void)
+{
+    char args[600];
+    const char *dir = check_tmp_path("demo");
+    snprintf(args, sizeof args, "mkdir -p %s", dir);
+    check_run(args, NULL, NULL);
+    snprintf(args, sizeof args, "demo --out %s", dir);
+    CHECK(slowscan(args) == 0, "demo runs: %s", run_err ? run_err : "");
+    char path[700];
+    snprintf(path, sizeof path, "%s/stations.csv", dir);
+    char *made = check_read_file(path), *committed = check_read_file("data/stations.csv");
+    CHECK(made && committed && strcmp(made, committed) == 0,
+          "demo output is deterministic and equals the committed data/stations.csv");
+    free(made);
+    free(committed);
+}
+
+static void test_detrend_output(void)
+{
+    char *csv = make_csv(200, 3);
+    const char *in = check_tmp_path("series.csv");
+    check_write_file(in, csv);
+    free(csv);
+    char args[600];
+    snprintf(args, sizeof args, "detrend --bandwidth 20 %s", in);
+    CHECK(slowscan(args) == 0, "detrend runs: %s", run_err ? run_err : "");
+    CHECK(run_out && strncmp(run_out, "series,time,value,trend,residual\n", 33) == 0,
+          "detrend header (DESIGN §4)");
+    CHECK(count_lines(run_out) == 1 + 2 * 200, "detrend rows: %zu", count_lines(run_out));
+    /* value = trend + residual on every row (up to the printed precision). */
+    int bad = 0;
+    for (char *line = strchr(run_out, '\n') + 1; *line; line = strchr(line, '\n') + 1) {
+        double t, v, tr, r;
+        char name[32];
+        if (sscanf(line, "%31[^,],%lf,%lf,%lf,%lf", name, &t, &v, &tr, &r) != 5 ||
+            fabs(v - tr - r) > 1e-9 * (1 + fabs(v)))
+            bad++;
+    }
+    CHECK(bad == 0, "value = trend + residual on %d rows", bad);
+}
+
+/* Indicator values through the binary equal GSL's on the same windows (reference library:
+ * GSL gsl_stats_variance, gsl_stats_lag1_autocorrelation). */
+static void test_indicators_against_gsl(void)
+{
+    enum { N = 120, W = 31 };
+    char *csv = make_csv(N, 5);
+    const char *in = check_tmp_path("ind.csv");
+    check_write_file(in, csv);
+    double x[N];
+    char *p = strchr(csv, '\n') + 1;
+    for (size_t i = 0; i < N; i++, p = strchr(p, '\n') + 1)
+        sscanf(p, "%*[^,],%lf", &x[i]);
+    free(csv);
+    char args[600];
+    snprintf(args, sizeof args, "indicators --detrend none --window 30 --vars rising %s", in);
+    CHECK(slowscan(args) == 0, "indicators runs: %s", run_err ? run_err : "");
+    CHECK(strncmp(run_out, "series,time,indicator,value\n", 28) == 0, "indicators header");
+    CHECK(count_lines(run_out) == 1 + 2 * (N - W + 1), "indicator rows %zu", count_lines(run_out));
+    int compared = 0, bad = 0;
+    for (char *line = strchr(run_out, '\n') + 1; *line; line = strchr(line, '\n') + 1) {
+        double t, v;
+        char ind[32];
+        if (sscanf(line, "rising,%lf,%31[^,],%lf", &t, ind, &v) != 3)
+            continue;
+        size_t i = (size_t)t;
+        double want = strcmp(ind, "variance") == 0
+                          ? gsl_stats_variance(x + i + 1 - W, 1, W)
+                          : gsl_stats_lag1_autocorrelation(x + i + 1 - W, 1, W);
+        compared++;
+        bad += !check_close(v, want, 1e-10, 0);
+    }
+    CHECK(compared == 2 * (N - W + 1) && bad == 0, "indicators vs GSL: %d compared, %d off",
+          compared, bad);
+}
+
+/* The summary's tau equals scipy.stats.kendalltau (Debian python3-scipy) of the indicator
+ * path written by --rolling. */
+static void test_screen_summary(void)
+{
+    char *csv = make_csv(300, 9);
+    const char *in = check_tmp_path("screen.csv");
+    const char *roll = check_tmp_path("screen-rolling.csv");
+    const char *sum = check_tmp_path("screen-summary.csv");
+    check_write_file(in, csv);
+    free(csv);
+    char args[900];
+    snprintf(args, sizeof args, "screen --rolling %s -o %s %s", roll, sum, in);
+    CHECK(slowscan(args) == 0, "screen runs: %s", run_err ? run_err : "");
+    char *s = check_read_file(sum);
+    const char *header = "series,indicator,n,window,bandwidth,tau,p_value,q_value,null,"
+                         "surrogates,flag\n";
+    CHECK(s && strncmp(s, header, strlen(header)) == 0, "summary header (DESIGN §4)");
+    CHECK(s && count_lines(s) == 5, "summary rows: 2 series x 2 indicators");
+    double tau_rising_var = NAN;
+    if (s)
+        sscanf(strstr(s, "rising,variance,") ? strstr(s, "rising,variance,") : "",
+               "rising,variance,%*d,%*g,%*g,%lf", &tau_rising_var);
+    CHECK(s && strstr(s, "rising,variance,300,150,29.9,") , "n, window, bandwidth columns: %s", s ? s : "");
+    CHECK(s && strstr(s, ",NA,NA,none,0,untested\n"), "untested rows carry NA p and q");
+    char py[700];
+    snprintf(py, sizeof py, "kendall_of_rolling.py %s rising variance", roll);
+    double want[1];
+    CHECK(check_python(py, want, 1) == 1 && check_close(tau_rising_var, want[0], 1e-9, 1e-11),
+          "screen tau %.12g vs scipy.stats.kendalltau %.12g", tau_rising_var, want[0]);
+    CHECK(tau_rising_var > 0.5, "rising variance gives a clearly positive tau (%g)", tau_rising_var);
+    free(s);
+    snprintf(args, sizeof args, "screen --format table %s", in);
+    CHECK(slowscan(args) == 0 && strstr(run_out, "series") && strstr(run_out, "untested"),
+          "table format");
+}
+
+/* On the demo data the stations driven closest to the fold show the slowing-down signature
+ * (common practice, no source: critical slowing down raises lag-1 autocorrelation). Controls
+ * are not checked: a rolling-window tau of a stationary series is often large by chance,
+ * which is what the surrogate test is for. */
+static void test_screen_demo_data(void)
+{
+    CHECK(slowscan("screen --deseason 364 --indicators lag1,variance data/stations.csv") == 0,
+          "demo screen");
+    const char *keys[] = {"\nreed_inlet,lag1,", "\nmill_pond,lag1,", "\nreed_inlet,variance,",
+                          "\nmill_pond,variance,"};
+    for (size_t k = 0; k < 4; k++) {
+        double tau = NAN;
+        char *at = strstr(run_out, keys[k]);
+        if (at)
+            sscanf(at + strlen(keys[k]), "%*d,%*g,%*g,%lf", &tau);
+        CHECK(tau > 0.5, "demo: %s tau %.3f > 0.5", keys[k] + 1, tau);
+    }
+}
+
+static void test_stdin_and_resample(void)
+{
+    char cmd[900];
+    snprintf(cmd, sizeof cmd,
+             "printf 't;a\\n0;1\\n1;3\\n2;2\\n3;5\\n4;4\\n5;6\\n6;5\\n7;8\\n8;7\\n9;9\\n' | %s "
+             "detrend --detrend none -", check_binary());
+    char *out = NULL;
+    CHECK(check_run(cmd, &out, NULL) == 0 && out && strstr(out, "a,3,5,0,5\n"),
+          "stdin with semicolons: %s", out ? out : "");
+    free(out);
+    const char *in = check_tmp_path("irregular.csv");
+    check_write_file(in, "t,a\n0,0\n1,1\n3,3\n4,4\n5,5\n6,6\n7,7\n8,8\n10,10\n");
+    char args[600];
+    snprintf(args, sizeof args, "detrend --detrend none --resample 0.5 %s", in);
+    /* Linear interpolation of a straight line reproduces it (analytic). */
+    CHECK(slowscan(args) == 0 && count_lines(run_out) == 1 + 21 && strstr(run_out, "a,2.5,2.5,0,2.5\n"),
+          "resample onto step 0.5: %s", run_err ? run_err : "");
+}
+
+static void test_constant_series(void)
+{
+    const char *in = check_tmp_path("const.csv");
+    check_write_file(in, "t,flat,ok\n0,2,1\n1,2,3\n2,2,2\n3,2,5\n4,2,4\n5,2,6\n6,2,5\n7,2,8\n8,2,7\n"
+                         "9,2,9\n10,2,8\n11,2,11\n");
+    char args[600];
+    snprintf(args, sizeof args, "screen --window 4 %s", in);
+    CHECK(slowscan(args) == 0, "constant series: exit 0");
+    CHECK(run_err && strstr(run_err, "warning") && strstr(run_err, "'flat'"), "constant: warning");
+    CHECK(run_out && strstr(run_out, "flat,variance,12,4,1.1,NA,NA,NA,none,0,insufficient"),
+          "constant: NA and insufficient: %s", run_out ? run_out : "");
+}
+
+static void test_bad_input(void)
+{
+    const char *good = "t,a,b\n0,1,2\n1,3,1\n2,2,4\n3,5,3\n4,4,6\n5,6,5\n6,5,8\n7,8,7\n8,7,9\n9,9,8\n";
+    expect_rejected("unsorted", "t,a\n0,1\n1,2\n3,3\n2,4\n4,5\n5,6\n6,7\n7,8\n8,9\n", "screen", "row 5");
+    expect_rejected("duplicate time", "t,a\n0,1\n1,2\n1,3\n2,4\n3,5\n4,6\n5,7\n6,8\n7,9\n", "screen", "row 4");
+    expect_rejected("ragged", "t,a\n0,1\n1,2,3\n2,4\n", "screen", "row 3");
+    expect_rejected("non-numeric", "t,a\n0,1\n1,x1\n2,4\n", "screen", "'a'");
+    expect_rejected("infinite", "t,a\n0,1\n1,inf\n2,4\n", "screen", "row 3");
+    expect_rejected("empty file", "", "screen", "empty");
+    expect_rejected("header only", "t,a\n", "screen", "no data");
+    expect_rejected("too short", "t,a\n0,1\n1,2\n2,4\n3,3\n", "screen", "at least 8");
+    expect_rejected("unknown --vars", good, "screen --vars a,zz", "zz");
+    expect_rejected("window > span", good, "screen --window 20", "--window");
+    expect_rejected("window <= 0", good, "screen --window 0", "--window");
+    expect_rejected("window %% > 100", good, "screen --window 150%", "--window");
+    expect_rejected("bandwidth <= 0", good, "screen --bandwidth -1", "--bandwidth");
+    expect_rejected("bandwidth > span", good, "screen --bandwidth 30", "--bandwidth");
+    expect_rejected("poly too high", good, "screen --detrend poly:12", "poly:12");
+    expect_rejected("unknown detrend", good, "screen --detrend wavelet", "--detrend");
+    expect_rejected("irregular", "t,a\n0,1\n1,2\n2,3\n3.5,4\n4,5\n5,6\n6,7\n7,8\n8,9\n", "screen", "--resample");
+    expect_rejected("log of non-positive", "t,a\n0,1\n1,2\n2,0\n3,4\n4,5\n5,6\n6,7\n7,8\n8,9\n",
+                    "screen --log", "row 4");
+    expect_rejected("unknown option", good, "screen --windw 5", "--windw");
+    expect_rejected("unknown indicator", good, "screen --indicators variance,slope", "slope");
+    expect_rejected("surrogates not available", good, "screen --surrogates 99", "--surrogates");
+    expect_rejected("unknown time column", good, "screen --time when", "when");
+    expect_rejected("deseason not a multiple", good, "screen --deseason 2.5", "--deseason");
+    expect_rejected("min-coverage", good, "screen --min-coverage 1.5", "--min-coverage");
+
+    /* Output path equal to the input: refused, input untouched. */
+    const char *in = check_tmp_path("keep.csv");
+    check_write_file(in, good);
+    char args[700];
+    snprintf(args, sizeof args, "screen -o %s %s", in, in);
+    CHECK(slowscan(args) == 1 && strstr(run_err, "input"), "output = input refused");
+    char *kept = check_read_file(in);
+    CHECK(kept && strcmp(kept, good) == 0, "input unchanged");
+    free(kept);
+    snprintf(args, sizeof args, "screen -o /nonexistent-dir/out.csv %s", in);
+    CHECK(slowscan(args) == 1 && count_lines(run_err) == 1 && strstr(run_err, "/nonexistent-dir"),
+          "unwritable output: %s", run_err ? run_err : "");
+    CHECK(slowscan("screen /nonexistent-input.csv") == 1 && strstr(run_err, "/nonexistent-input.csv"),
+          "missing input named");
+}
+
+void suite_cli(void)
+{
+    test_help_and_version();
+    test_demo_matches_committed_data();
+    test_detrend_output();
+    test_indicators_against_gsl();
+    test_screen_summary();
+    test_screen_demo_data();
+    test_stdin_and_resample();
+    test_constant_series();
+    test_bad_input();
+    free(run_out);
+    free(run_err);
+    run_out = run_err = NULL;
+}

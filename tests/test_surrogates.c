@@ -1,0 +1,143 @@
+/* Tests of surrogates/: p-values, Benjamini-Hochberg q-values, stream seeds, phase surrogates. */
+#include "check.h"
+#include "slowscan/significance.h"
+#include "slowscan/status.h"
+#include "slowscan/surrogates.h"
+
+#include <fftw3.h>
+#include <gsl/gsl_rng.h>
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+/* p = (1 + #{tau_s >= tau_obs}) / (M + 1) on a constructed null (DESIGN §3; the "+1" form of
+ * Davison & Hinkley 1997, Bootstrap Methods and their Application, eq. 4.11). */
+static void test_p_value(void)
+{
+    double null[9] = {-0.4, -0.2, 0.0, 0.1, 0.2, 0.3, 0.5, NAN, 0.7};
+    size_t used = 0;
+    CHECK_CLOSE(significance_p_value(0.3, null, 9, ALTERNATIVE_INCREASING, &used), 4.0 / 9.0,
+                1e-15, 0, "one-sided: 3 of 8 at or above, (1+3)/(8+1)");
+    CHECK(used == 8, "NaN null values are not counted (%zu)", used);
+    CHECK_CLOSE(significance_p_value(0.8, null, 9, ALTERNATIVE_INCREASING, NULL), 1.0 / 9.0, 1e-15,
+                0, "beyond the null: the smallest p, 1/(M+1)");
+    CHECK_CLOSE(significance_p_value(-0.2, null, 9, ALTERNATIVE_DECREASING, NULL), 3.0 / 9.0,
+                1e-15, 0, "decreasing: -0.4, -0.2 at or below");
+    CHECK_CLOSE(significance_p_value(-0.45, null, 9, ALTERNATIVE_TWO_SIDED, NULL), 3.0 / 9.0,
+                1e-15, 0, "two-sided on |tau|: 0.5, 0.7 at or above 0.45");
+    CHECK(isnan(significance_p_value(NAN, null, 9, ALTERNATIVE_INCREASING, NULL)), "NaN observed");
+}
+
+/* The worked example of Benjamini & Hochberg (1995, J. R. Stat. Soc. B 57:289, section 3.2):
+ * 15 p-values, at q = 0.05 the four smallest are rejected (values from memory, checked
+ * against statsmodels below). */
+static void test_benjamini_hochberg(void)
+{
+    double p[15] = {0.0001, 0.0004, 0.0019, 0.0095, 0.0201, 0.0278, 0.0298, 0.0344,
+                    0.0459, 0.3240, 0.4262, 0.5719, 0.6528, 0.7590, 1.0000};
+    double q[15];
+    size_t order[15];
+    CHECK(significance_bh(p, 15, q, order) == SLOWSCAN_OK, "bh runs");
+    int rejected = 0;
+    for (int i = 0; i < 15; i++)
+        rejected += q[i] <= 0.05;
+    CHECK(rejected == 4 && q[3] <= 0.05 && q[4] > 0.05, "BH 1995 example: 4 rejected (%d)", rejected);
+    /* statsmodels.stats.multitest.multipletests(method='fdr_bh') (Debian python3-statsmodels). */
+    const char *path = check_tmp_path("bh.txt");
+    FILE *f = fopen(path, "w");
+    for (int i = 0; i < 15; i++)
+        fprintf(f, "%.17g\n", p[i]);
+    fclose(f);
+    char args[600];
+    snprintf(args, sizeof args, "bh_statsmodels.py %s", path);
+    double want[15];
+    CHECK(check_python(args, want, 15) == 15, "statsmodels reference ran");
+    for (int i = 0; i < 15; i++)
+        CHECK_CLOSE(q[i], want[i], 1e-12, 1e-15, "q vs statsmodels fdr_bh");
+    /* NaN p-values stay out of the family: the others get the q of a family of 15. */
+    double pn[16], qn[16];
+    memcpy(pn, p, sizeof p);
+    pn[15] = NAN;
+    significance_bh(pn, 16, qn, NULL);
+    CHECK(isnan(qn[15]) && check_close(qn[7], q[7], 1e-15, 0), "NaN left out of the family");
+}
+
+static void test_stream_seeds(void)
+{
+    unsigned long a = stream_seed(1, "north_bay", "phase", 0);
+    CHECK(a == stream_seed(1, "north_bay", "phase", 0), "seed is a function of its parts");
+    CHECK(a != stream_seed(2, "north_bay", "phase", 0) && a != stream_seed(1, "north_ba", "yphase", 0) &&
+              a != stream_seed(1, "north_bay", "phase", 1) && a != stream_seed(1, "north_bay", "ar1", 0),
+          "different parts give different seeds");
+}
+
+/* Phase surrogates keep |FFT| exactly and the mean (Theiler et al. 1992, Physica D 58:77). */
+static void check_spectrum_kept(size_t n)
+{
+    check_rng *r = check_rng_alloc(11 + n);
+    double *x = fftw_alloc_real(n), *y = fftw_alloc_real(n);
+    for (size_t i = 0; i < n; i++)
+        x[i] = 0.7 * (i ? x[i - 1] : 0) + check_rng_gaussian(r) + 100.0;
+    surrogate_plan *plan = surrogate_plan_alloc(n, FFTW_ESTIMATE);
+    int status;
+    surrogate_source *src = surrogate_source_alloc(plan, SURROGATE_PHASE, x, &status);
+    CHECK(src && status == SLOWSCAN_OK, "phase source n=%zu", n);
+    fftw_complex *fx = fftw_alloc_complex(n / 2 + 1), *fy = fftw_alloc_complex(n / 2 + 1);
+    fftw_plan pf = fftw_plan_dft_r2c_1d((int)n, x, fx, FFTW_ESTIMATE | FFTW_PRESERVE_INPUT);
+    fftw_execute(pf);
+    gsl_rng *rng = gsl_rng_alloc(gsl_rng_mt19937);
+    gsl_rng_set(rng, 5);
+    double worst = 0, differs = 0, scale = hypot(fx[0][0], fx[0][1]);
+    for (int rep = 0; rep < 20 && src; rep++) {
+        surrogate_draw(src, rng, y);
+        fftw_execute_dft_r2c(pf, y, fy);
+        for (size_t k = 0; k <= n / 2; k++)
+            worst = fmax(worst, fabs(hypot(fy[k][0], fy[k][1]) - hypot(fx[k][0], fx[k][1])));
+        for (size_t i = 0; i < n; i++)
+            differs = fmax(differs, fabs(y[i] - x[i]));
+    }
+    CHECK(worst <= 1e-10 * scale, "n=%zu: |FFT| kept to %.3g of the DC term", n, worst / scale);
+    CHECK(differs > 1.0, "n=%zu: surrogates differ from the series", n);
+    gsl_rng_free(rng);
+    fftw_destroy_plan(pf);
+    fftw_free(fx);
+    fftw_free(fy);
+    fftw_free(x);
+    fftw_free(y);
+    surrogate_source_free(src);
+    surrogate_plan_free(plan);
+    check_rng_free(r);
+}
+
+static void test_phase_surrogates(void)
+{
+    check_spectrum_kept(2000);
+    check_spectrum_kept(1001);
+    /* Gaps come back as NaN at the same places; a constant series is refused. */
+    double x[64], y[64];
+    for (int i = 0; i < 64; i++)
+        x[i] = sin(0.3 * i) + 0.1 * i;
+    x[5] = x[40] = NAN;
+    surrogate_plan *plan = surrogate_plan_alloc(64, FFTW_ESTIMATE);
+    int status;
+    surrogate_source *src = surrogate_source_alloc(plan, SURROGATE_PHASE, x, &status);
+    gsl_rng *rng = gsl_rng_alloc(gsl_rng_mt19937);
+    surrogate_draw(src, rng, y); /* y is not fftw-aligned on purpose: the copy path */
+    CHECK(isnan(y[5]) && isnan(y[40]) && isfinite(y[6]), "gaps restored");
+    for (int i = 0; i < 64; i++)
+        x[i] = 3.0;
+    CHECK(!surrogate_source_alloc(plan, SURROGATE_PHASE, x, &status) && status == SLOWSCAN_ECONST,
+          "constant series refused");
+    gsl_rng_free(rng);
+    surrogate_source_free(src);
+    surrogate_plan_free(plan);
+}
+
+void suite_surrogates(void)
+{
+    test_p_value();
+    test_benjamini_hochberg();
+    test_stream_seeds();
+    test_phase_surrogates();
+}
