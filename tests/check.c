@@ -3,6 +3,7 @@
 
 #include <gsl/gsl_randist.h>
 #include <gsl/gsl_rng.h>
+#include <dirent.h>
 #include <math.h>
 #include <stdarg.h>
 #include <stdio.h>
@@ -155,6 +156,36 @@ int check_python(const char *script_and_args, double *values, size_t max)
     free(out);
     free(err);
     return count;
+}
+
+int check_python_on(const char *script, const double *x, size_t n, const char *extra,
+                    double *values, size_t max)
+{
+    static int serial;
+    char name[64], args[1400];
+    snprintf(name, sizeof name, "python-input-%d.txt", serial++);
+    const char *path = check_tmp_path(name);
+    FILE *f = fopen(path, "w");
+    if (!f)
+        return -1;
+    for (size_t i = 0; i < n; i++)
+        fprintf(f, "%.17g\n", x[i]);
+    if (fclose(f) != 0)
+        return -1;
+    snprintf(args, sizeof args, "%s %s %s", script, path, extra ? extra : "");
+    return check_python(args, values, max);
+}
+
+int check_scratch_files(const char *prefix)
+{
+    check_tmp_path("probe");
+    DIR *d = opendir(tmp_dir);
+    int found = 0;
+    for (struct dirent *e; d && (e = readdir(d));)
+        found += strncmp(e->d_name, prefix, strlen(prefix)) == 0;
+    if (d)
+        closedir(d);
+    return found;
 }
 
 struct check_rng {

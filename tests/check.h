@@ -46,6 +46,14 @@ int check_run(const char *command, char **out, char **err);
  * returns how many were read, or -1 if the script failed. */
 int check_python(const char *script_and_args, double *values, size_t max);
 
+/* Writes x[n] one number per line to a scratch file, then runs
+ * `/usr/bin/python3 tests/reference/SCRIPT FILE EXTRA` as check_python does. */
+int check_python_on(const char *script, const double *x, size_t n, const char *extra,
+                    double *values, size_t max);
+
+/* Files in the scratch directory whose names start with `prefix` (leftover temp files). */
+int check_scratch_files(const char *prefix);
+
 /* Deterministic standard normal draws for tests (GSL's mt19937, seeded). */
 typedef struct check_rng check_rng;
 check_rng *check_rng_alloc(unsigned long seed);

@@ -3,7 +3,6 @@
  * column or option, no output file left behind). */
 #include "check.h"
 
-#include <dirent.h>
 #include <gsl/gsl_statistics_double.h>
 #include <math.h>
 #include <stdio.h>
@@ -30,21 +29,6 @@ static size_t count_lines(const char *s)
     return n;
 }
 
-/* Files in the scratch directory whose name starts with `prefix` (leftover temp files). */
-static int leftovers(const char *prefix)
-{
-    char dir[512];
-    snprintf(dir, sizeof dir, "%s", check_tmp_path("x"));
-    *strrchr(dir, '/') = '\0';
-    DIR *d = opendir(dir);
-    int found = 0;
-    for (struct dirent *e; d && (e = readdir(d));)
-        found += strncmp(e->d_name, prefix, strlen(prefix)) == 0;
-    if (d)
-        closedir(d);
-    return found;
-}
-
 /* A bad input: exit 1, exactly one line on stderr containing `needle`, no output file. */
 static void expect_rejected(const char *what, const char *csv, const char *args, const char *needle)
 {
@@ -59,7 +43,7 @@ static void expect_rejected(const char *what, const char *csv, const char *args,
           run_err ? run_err : "(none)");
     CHECK(run_err && strstr(run_err, needle), "%s: message lacks '%s': %s", what, needle,
           run_err ? run_err : "");
-    CHECK(!check_file_exists(out) && leftovers("bad-out.csv") == 0,
+    CHECK(!check_file_exists(out) && check_scratch_files("bad-out.csv") == 0,
           "%s: an output file was left behind", what);
 }
 

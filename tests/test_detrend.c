@@ -510,15 +510,8 @@ static void test_deseason(check_rng *rng)
     /* statsmodels.tsa.seasonal.seasonal_decompose (additive, Debian python3-statsmodels): our
      * cycle must equal its seasonal component, i.e. x_before - x_after == seasonal. */
     int rc = detrend_deseason(1.0, 4.0 * (1.0 + 1e-7), x, 100); /* within the 1e-6 tolerance */
-    const char *path = check_tmp_path("deseason.txt");
-    FILE *f = fopen(path, "w");
-    for (size_t i = 0; i < 100; i++)
-        fprintf(f, "%.17g\n", before[i]);
-    fclose(f);
-    char args[600];
-    snprintf(args, sizeof args, "seasonal_statsmodels.py %s 4", path);
     double seasonal[100];
-    int got = check_python(args, seasonal, 100);
+    int got = check_python_on("seasonal_statsmodels.py", before, 100, "4", seasonal, 100);
     double phase_err = 0.0;
     for (size_t i = 0; got == 100 && i < 100; i++)
         phase_err = worse(phase_err, fabs((before[i] - x[i]) - seasonal[i]));

@@ -4,7 +4,6 @@
 #include "slowscan/io.h"
 #include "slowscan/status.h"
 
-#include <dirent.h>
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -115,22 +114,8 @@ static void test_grid_and_transforms(void)
     series_table_free(&t);
 }
 
-static int temp_files_in(const char *dir, const char *prefix)
-{
-    DIR *d = opendir(dir);
-    int n = 0;
-    for (struct dirent *e; d && (e = readdir(d));)
-        n += strncmp(e->d_name, prefix, strlen(prefix)) == 0;
-    if (d)
-        closedir(d);
-    return n;
-}
-
 static void test_atomic(void)
 {
-    char dir[512];
-    snprintf(dir, sizeof dir, "%s", check_tmp_path("atomic"));
-    *strrchr(dir, '/') = '\0';
     const char *path = check_tmp_path("atomic-out.csv");
     atomic_file f;
     io_error err;
@@ -139,14 +124,14 @@ static void test_atomic(void)
     CHECK(!check_file_exists(path), "nothing at the target before commit");
     CHECK(atomic_commit(&f, &err) == SLOWSCAN_OK, "commit");
     char *s = check_read_file(path);
-    CHECK(s && !strcmp(s, "x\n") && temp_files_in(dir, "atomic-out.csv.tmp") == 0, "committed whole");
+    CHECK(s && !strcmp(s, "x\n") && check_scratch_files("atomic-out.csv.tmp") == 0, "committed whole");
     free(s);
     const char *other = check_tmp_path("atomic-aborted.csv");
     atomic_open(&f, other, &err);
     fputs("partial", f.fp);
     atomic_abort(&f);
     atomic_abort(&f); /* idempotent */
-    CHECK(!check_file_exists(other) && temp_files_in(dir, "atomic-aborted") == 0, "abort leaves nothing");
+    CHECK(!check_file_exists(other) && check_scratch_files("atomic-aborted") == 0, "abort leaves nothing");
     CHECK(atomic_open(&f, "/nonexistent-dir/out.csv", &err) != SLOWSCAN_OK &&
               strstr(err.message, "/nonexistent-dir/out.csv"), "unwritable: %s", err.message);
     CHECK(io_same_file(path, path) && !io_same_file(path, other), "same file");
