@@ -39,6 +39,9 @@ typedef struct {
     recovery_method recovery;
     /* significance (screen) */
     long surrogates;
+    int null_model;  /* surrogate_kind */
+    double fdr;
+    int alternative; /* significance_alternative, -1: the indicator's own direction */
     /* outputs */
     const char *output, *rolling_output;
     const char *format; /* "csv" or "table" */

@@ -2,7 +2,12 @@
  * each indicator against time; then the summary, one row per series x indicator. */
 #include "cli.h"
 #include "slowscan/kendall.h"
+#include "slowscan/null_trend.h"
+#include "slowscan/significance.h"
 #include "slowscan/status.h"
+#include "slowscan/surrogates.h"
+
+#include <fftw3.h>
 
 #include <math.h>
 #include <stdlib.h>
@@ -25,6 +30,11 @@ typedef struct {
     size_t nrows, cap;
     kendall_workspace *kendall;
     size_t kendall_n;
+    /* significance: made once per series length and reused (plan once, draw many) */
+    surrogate_plan *plan;
+    null_trend_workspace *null_ws;
+    size_t null_n;
+    double *null; /* nindicators x surrogates */
 } screen_run;
 
 static int open_outputs(const cli_options *opts, cli_outputs *outs, void *context)
@@ -81,6 +91,63 @@ static double trend_of(screen_run *run, const prepared_series *ps, const double 
     return used < MIN_TREND_VALUES ? NAN : tau;
 }
 
+/* Everything sized by the series length is remade only when the length changes. */
+static int ready_null(screen_run *run, const cli_options *opts, size_t n)
+{
+    if (run->null_n == n)
+        return SLOWSCAN_OK;
+    surrogate_plan_free(run->plan);
+    null_trend_free(run->null_ws);
+    run->null_n = 0;
+    run->plan = surrogate_plan_alloc(n, FFTW_ESTIMATE);
+    run->null_ws = null_trend_alloc(n, opts->nindicators);
+    if (!run->null)
+        run->null = malloc(opts->nindicators * (size_t)opts->surrogates * sizeof *run->null);
+    if (!run->plan || !run->null_ws || !run->null)
+        return SLOWSCAN_ENOMEM;
+    run->null_n = n;
+    return SLOWSCAN_OK;
+}
+
+static significance_alternative alternative_of(const cli_options *opts, indicator_kind kind)
+{
+    if (opts->alternative >= 0)
+        return (significance_alternative)opts->alternative;
+    return indicator_direction(kind) > 0 ? ALTERNATIVE_INCREASING : ALTERNATIVE_TWO_SIDED;
+}
+
+/* The null distribution of every indicator's tau over the surrogates of the residual, and
+ * the p-values of the rows just recorded for this series. */
+static int test_series(const cli_options *opts, const prepared_series *ps, screen_run *run,
+                       screen_row *rows)
+{
+    int st = ready_null(run, opts, ps->n);
+    surrogate_source *src = NULL;
+    if (st == SLOWSCAN_OK)
+        src = surrogate_source_alloc(run->plan, (surrogate_kind)opts->null_model, ps->residual, &st);
+    rolling_spec spec = {ps->window, opts->min_coverage, ps->dt, opts->recovery};
+    int need_level = 0;
+    for (size_t j = 0; j < opts->nindicators; j++)
+        need_level |= indicator_needs_level(opts->indicators[j]);
+    null_trend_job job = {&spec, opts->indicators, opts->nindicators, ps->time,
+                          need_level ? ps->trend : NULL, opts->seed, ps->name,
+                          surrogate_name((surrogate_kind)opts->null_model)};
+    size_t m = (size_t)opts->surrogates;
+    if (st == SLOWSCAN_OK)
+        st = null_trend_draw(run->null_ws, src, &job, 0, m, run->null, m);
+    surrogate_source_free(src);
+    if (st != SLOWSCAN_OK) {
+        cli_error("%s: column '%s': surrogate null failed: %s", ps->source, ps->name,
+                  slowscan_strerror(st));
+        return st == SLOWSCAN_ENOMEM ? EXIT_INTERNAL : EXIT_BAD_INPUT;
+    }
+    for (size_t j = 0; j < opts->nindicators; j++)
+        if (!isnan(rows[j].tau))
+            rows[j].p_value = significance_p_value(rows[j].tau, run->null + j * m, m,
+                                                   alternative_of(opts, rows[j].indicator), NULL);
+    return EXIT_OK;
+}
+
 static int record_series(const cli_options *opts, const prepared_series *ps, screen_run *run,
                          double *const *values)
 {
@@ -104,8 +171,10 @@ static int record_series(const cli_options *opts, const prepared_series *ps, scr
             cli_warning("%s: column '%s', indicator %s: %s; flagged insufficient", ps->source,
                         ps->name, indicator_name(row->indicator), reason ? reason : "no trend");
         } else
-            row->flag = "untested"; /* no surrogate test was run (--surrogates 0) */
+            row->flag = "untested"; /* until the test below (none with --surrogates 0) */
     }
+    if (opts->surrogates > 0 && !ps->constant)
+        return test_series(opts, ps, run, run->rows + run->nrows - opts->nindicators);
     return EXIT_OK;
 }
 
@@ -134,8 +203,9 @@ static void write_csv(const cli_options *opts, const screen_run *run)
             cli_put_number(run->out, cells[c]);
             fputc(',', run->out);
         }
-        fprintf(run->out, "%s,%ld,%s\n", opts->surrogates > 0 ? "phase" : "none", opts->surrogates,
-                row->flag);
+        fprintf(run->out, "%s,%ld,%s\n",
+                opts->surrogates > 0 ? surrogate_name((surrogate_kind)opts->null_model) : "none",
+                opts->surrogates, row->flag);
     }
 }
 
@@ -165,9 +235,42 @@ static void write_table(const screen_run *run)
     }
 }
 
+/* q-values over every test of the run (Benjamini-Hochberg), then the flags: with one test
+ * the p-value itself decides. */
+static int decide(const cli_options *opts, screen_run *run)
+{
+    double *p = malloc((run->nrows + 1) * sizeof *p), *q = malloc((run->nrows + 1) * sizeof *q);
+    size_t tests = 0;
+    for (size_t r = 0; p && r < run->nrows; r++) {
+        p[r] = run->rows[r].p_value;
+        tests += !isnan(p[r]);
+    }
+    if (!p || !q || significance_bh(p, run->nrows, q, NULL) != SLOWSCAN_OK) {
+        free(p);
+        free(q);
+        cli_error("out of memory");
+        return EXIT_INTERNAL;
+    }
+    for (size_t r = 0; r < run->nrows; r++) {
+        screen_row *row = &run->rows[r];
+        if (isnan(row->p_value))
+            continue;
+        row->q_value = q[r];
+        double decisive = tests == 1 ? row->p_value : row->q_value;
+        /* "falling" only arises when a decreasing or two-sided alternative is tested. */
+        row->flag = decisive > opts->fdr ? "none" : row->tau > 0 ? "rising" : "falling";
+    }
+    free(p);
+    free(q);
+    return EXIT_OK;
+}
+
 static int finish(const cli_options *opts, void *context)
 {
     screen_run *run = context;
+    int rc = decide(opts, run);
+    if (rc != EXIT_OK)
+        return rc;
     if (strcmp(opts->format, "table") == 0)
         write_table(run);
     else
@@ -179,10 +282,16 @@ int cmd_screen(const cli_options *opts)
 {
     screen_run run = {0};
     series_command cmd = {open_outputs, screen_series, finish, &run};
+    if (opts->surrogates > 0 && opts->surrogates < 19)
+        cli_warning("option --surrogates %ld: with fewer than 19 surrogates no p-value can reach "
+                    "0.05 (the smallest is 1/(M+1))", opts->surrogates);
     int rc = cli_run_series_command(opts, &cmd);
     for (size_t r = 0; r < run.nrows; r++)
         free(run.rows[r].series);
     free(run.rows);
     kendall_free(run.kendall);
+    surrogate_plan_free(run.plan);
+    null_trend_free(run.null_ws);
+    free(run.null);
     return rc;
 }

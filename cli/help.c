@@ -76,15 +76,26 @@ static void help_screen(FILE *out)
 {
     fputs("usage: slowscan screen [options] FILE...\n\n"
           "For every series: detrend, compute rolling indicators, and measure their trend by\n"
-          "Kendall tau-b against time. Writes one row per series x indicator:\n"
+          "Kendall tau-b against time, then test that trend against surrogates of the\n"
+          "residual pushed through the same indicator pipeline. Writes one row per\n"
+          "series x indicator:\n"
           "series,indicator,n,window,bandwidth,tau,p_value,q_value,null,surrogates,flag\n"
-          "(window and bandwidth in time units). flag is 'untested' when no surrogate test\n"
-          "was run, 'insufficient' when too few finite values remain (reason on stderr).\n\n",
+          "(window and bandwidth in time units). p = (1 + #{tau_s >= tau}) / (M + 1), one-sided\n"
+          "toward a rise (two-sided on |tau| for skewness); q is the Benjamini-Hochberg\n"
+          "adjusted p over every test of the run. flag: 'rising' when q <= --fdr and tau > 0\n"
+          "(p decides when there is a single test), 'falling' likewise for tau < 0 under a\n"
+          "decreasing or two-sided alternative, 'none' otherwise, 'untested' with\n"
+          "--surrogates 0, 'insufficient' when too few finite values remain (reason on stderr).\n\n",
           out);
     fputs(input_options, out);
     fputs(rolling_options, out);
     fputs("screening:\n"
-          "  --surrogates M       surrogate replicates; this version runs tau only: 0 (default)\n"
+          "  --surrogates M       surrogate replicates (default 1000; 0: tau only)\n"
+          "  --null phase         null model: Fourier phase randomisation of the residual,\n"
+          "                       which keeps its periodogram (default and, for now, only)\n"
+          "  --alternative increasing|decreasing|two-sided  override each indicator's default\n"
+          "  --fdr Q              false-discovery rate for the flag (default 0.05)\n"
+          "  --seed S             random seed (default 1); same seed, same numbers\n"
           "  --rolling FILE       also write the rolling indicators (as 'indicators' does)\n"
           "  --format csv|table   summary as CSV (default) or as an aligned table\n\n", out);
     fputs(cautions, out);

@@ -2,6 +2,7 @@
  * that stores its value, so each command accepts exactly its own options. */
 #include "cli.h"
 #include "slowscan/status.h"
+#include "slowscan/surrogates.h"
 
 #include <math.h>
 #include <stdarg.h>
@@ -160,14 +161,47 @@ static int set_whole(const char *n, const char *v, long min, long *out)
 
 static int set_surrogates(cli_options *o, const char *n, const char *v)
 {
-    int rc = set_whole(n, v, 0, &o->surrogates);
-    if (rc == EXIT_OK && o->surrogates > 0) {
-        /* Said plainly rather than ignored: a p-value we cannot compute must not look real. */
-        cli_error("option %s: surrogate significance tests are not available in this version; "
-                  "use --surrogates 0 (tau only)", n);
+    return set_whole(n, v, 0, &o->surrogates);
+}
+
+static int set_null(cli_options *o, const char *n, const char *v)
+{
+    surrogate_kind kind;
+    if (surrogate_lookup(v, &kind) == SLOWSCAN_OK) {
+        o->null_model = (int)kind;
+        return EXIT_OK;
+    }
+    static const char *planned[] = {"aaft", "iaaft", "ar1", "block", "control"};
+    for (size_t i = 0; i < sizeof planned / sizeof planned[0]; i++)
+        if (strcmp(v, planned[i]) == 0) {
+            /* Said plainly rather than substituted: a p-value must come from the null asked for. */
+            cli_error("option %s: the '%s' null model is not available in this version (use phase)", n, v);
+            return EXIT_BAD_INPUT;
+        }
+    cli_error("option %s: unknown null model '%s' (phase)", n, v);
+    return EXIT_BAD_INPUT;
+}
+
+static int set_fdr(cli_options *o, const char *n, const char *v)
+{
+    int rc = parse_number(n, v, &o->fdr);
+    if (rc == EXIT_OK && !(o->fdr > 0 && o->fdr < 1)) {
+        cli_error("option %s: %s is outside (0, 1)", n, v);
         return EXIT_BAD_INPUT;
     }
     return rc;
+}
+
+static int set_alternative(cli_options *o, const char *n, const char *v)
+{
+    static const char *names[] = {"increasing", "decreasing", "two-sided"};
+    for (int i = 0; i < 3; i++)
+        if (strcmp(v, names[i]) == 0) {
+            o->alternative = i;
+            return EXIT_OK;
+        }
+    cli_error("option %s: '%s' is not increasing, decreasing or two-sided", n, v);
+    return EXIT_BAD_INPUT;
 }
 
 static int set_seed(cli_options *o, const char *n, const char *v)
@@ -203,6 +237,9 @@ static const option_spec options[] = {
     {"--min-coverage", 1, C_ROLLING, set_min_coverage},
     {"--recovery", 1, C_ROLLING, set_recovery},
     {"--surrogates", 1, C_SCREEN, set_surrogates},
+    {"--null", 1, C_SCREEN, set_null},
+    {"--fdr", 1, C_SCREEN, set_fdr},
+    {"--alternative", 1, C_SCREEN, set_alternative},
     {"--rolling", 1, C_SCREEN, set_rolling},
     {"--format", 1, C_SCREEN, set_format},
     {"-o", 1, C_SERIES, set_output},
@@ -210,7 +247,7 @@ static const option_spec options[] = {
     {"--progress", 0, C_SERIES, set_progress},
     {"--no-progress", 0, C_SERIES, set_progress},
     {"--out", 1, C_DEMO, set_out_dir},
-    {"--seed", 1, C_DEMO, set_seed},
+    {"--seed", 1, C_DEMO | C_SCREEN, set_seed},
 };
 
 static int command_bit(const char *command)
@@ -237,7 +274,10 @@ static void set_defaults(const char *command, cli_options *o)
     o->indicators_text = "variance,lag1";
     o->min_coverage = 0.8;
     o->recovery = RECOVERY_LOG_AR1;
-    o->surrogates = 0;
+    o->surrogates = 1000;
+    o->null_model = SURROGATE_PHASE;
+    o->fdr = 0.05;
+    o->alternative = -1; /* per indicator: rising, or two-sided for skewness */
     o->format = "csv";
     o->progress = -1;
     o->seed = 1;

@@ -9,8 +9,9 @@
  * 4. Count the pairs tied in y (n2) from the runs of the sorted y.
  * With n0 = m(m-1)/2, concordant - discordant = n0 - n1 - n2 + n3 - 2 swaps, and
  * tau_b = that / sqrt((n0 - n1)(n0 - n2)).
- * Counts are 64-bit: n0 reaches 5e13 at m = 10^7. Merge sorts are bottom-up (no recursion)
- * and ping-pong between the workspace arrays, so a call never allocates. */
+ * Counts are 64-bit: n0 reaches 5e13 at m = 10^7. Merge sorts are bottom-up (no recursion),
+ * start from insertion-sorted runs of 8 and ping-pong between the workspace arrays, so a call
+ * never allocates. */
 #include "slowscan/kendall.h"
 #include "slowscan/status.h"
 
@@ -56,6 +57,14 @@ void kendall_free(kendall_workspace *ws)
     free(ws);
 }
 
+/* Short runs are sorted by insertion first: fewer merge passes over the whole array. */
+#define RUN 8
+
+static int pair_before(double ax, double ay, double bx, double by)
+{
+    return ax < bx || (ax == bx && ay < by);
+}
+
 /* Merges the sorted runs [lo,mid) and [mid,hi) of (sx,sy) into (dx,dy), ordered by x then y;
  * equal pairs keep their order. */
 static void merge_pairs(const double *sx, const double *sy, double *dx, double *dy, size_t lo,
@@ -63,7 +72,7 @@ static void merge_pairs(const double *sx, const double *sy, double *dx, double *
 {
     size_t i = lo, j = mid, k = lo;
     while (i < mid && j < hi) {
-        int right_first = sx[j] < sx[i] || (sx[j] == sx[i] && sy[j] < sy[i]);
+        int right_first = pair_before(sx[j], sy[j], sx[i], sy[i]);
         size_t from = right_first ? j++ : i++;
         dx[k] = sx[from];
         dy[k++] = sy[from];
@@ -75,10 +84,38 @@ static void merge_pairs(const double *sx, const double *sy, double *dx, double *
     memcpy(dy + k + left, sy + j, right * sizeof(double));
 }
 
+static void insertion_pairs(double *x, double *y, size_t lo, size_t hi)
+{
+    for (size_t i = lo + 1; i < hi; i++) {
+        double vx = x[i], vy = y[i];
+        size_t j = i;
+        for (; j > lo && pair_before(vx, vy, x[j - 1], y[j - 1]); j--) {
+            x[j] = x[j - 1];
+            y[j] = y[j - 1];
+        }
+        x[j] = vx;
+        y[j] = vy;
+    }
+}
+
+/* Whether the pairs are already in (x, y) order: the usual case for a trend statistic,
+ * where x is time; the sort is then skipped. */
+static int pairs_sorted(const double *x, const double *y, size_t m)
+{
+    for (size_t i = 1; i < m; i++)
+        if (pair_before(x[i], y[i], x[i - 1], y[i - 1]))
+            return 0;
+    return 1;
+}
+
 static void sort_pairs(kendall_workspace *ws, size_t m)
 {
+    if (pairs_sorted(ws->x, ws->y, m))
+        return;
+    for (size_t lo = 0; lo < m; lo += RUN)
+        insertion_pairs(ws->x, ws->y, lo, RUN < m - lo ? lo + RUN : m);
     double *sx = ws->x, *sy = ws->y, *dx = ws->tx, *dy = ws->ty, *t;
-    for (size_t w = 1; w < m; w *= 2) {
+    for (size_t w = RUN; w < m; w *= 2) {
         for (size_t lo = 0; lo < m; lo += 2 * w) {
             size_t mid = w < m - lo ? lo + w : m;
             size_t hi = 2 * w < m - lo ? lo + 2 * w : m;
@@ -112,12 +149,30 @@ static int64_t merge_count(const double *s, double *d, size_t lo, size_t mid, si
     return swaps;
 }
 
+/* Insertion sort of y[lo..hi); each shift moves one element past one strictly greater
+ * element, i.e. resolves exactly one discordant pair. */
+static int64_t insertion_count(double *y, size_t lo, size_t hi)
+{
+    int64_t swaps = 0;
+    for (size_t i = lo + 1; i < hi; i++) {
+        double v = y[i];
+        size_t j = i;
+        for (; j > lo && v < y[j - 1]; j--)
+            y[j] = y[j - 1];
+        swaps += (int64_t)(i - j);
+        y[j] = v;
+    }
+    return swaps;
+}
+
 /* Sorts ws->y[0..m) in place (via ws->ty) and returns the number of swaps. */
 static int64_t sort_count_swaps(kendall_workspace *ws, size_t m)
 {
-    double *s = ws->y, *d = ws->ty, *t;
     int64_t swaps = 0;
-    for (size_t w = 1; w < m; w *= 2) {
+    for (size_t lo = 0; lo < m; lo += RUN)
+        swaps += insertion_count(ws->y, lo, RUN < m - lo ? lo + RUN : m);
+    double *s = ws->y, *d = ws->ty, *t;
+    for (size_t w = RUN; w < m; w *= 2) {
         for (size_t lo = 0; lo < m; lo += 2 * w) {
             size_t mid = w < m - lo ? lo + w : m;
             size_t hi = 2 * w < m - lo ? lo + 2 * w : m;

@@ -12,6 +12,7 @@ void suite_io(void);
 void suite_indicators(void);
 void suite_kendall(void);
 void suite_surrogates(void);
+void suite_significance(void);
 void suite_cli(void);
 
 static const struct {
@@ -20,6 +21,7 @@ static const struct {
 } suites[] = {
     {"detrend", suite_detrend},       {"io", suite_io},   {"indicators", suite_indicators},
     {"kendall", suite_kendall},       {"surrogates", suite_surrogates}, {"cli", suite_cli},
+    {"significance", suite_significance},
 };
 
 int main(int argc, char **argv)

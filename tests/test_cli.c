@@ -166,7 +166,7 @@ static void test_screen_summary(void)
     check_write_file(in, csv);
     free(csv);
     char args[900];
-    snprintf(args, sizeof args, "screen --rolling %s -o %s %s", roll, sum, in);
+    snprintf(args, sizeof args, "screen --surrogates 0 --rolling %s -o %s %s", roll, sum, in);
     CHECK(slowscan(args) == 0, "screen runs: %s", run_err ? run_err : "");
     char *s = check_read_file(sum);
     const char *header = "series,indicator,n,window,bandwidth,tau,p_value,q_value,null,"
@@ -186,7 +186,7 @@ static void test_screen_summary(void)
           "screen tau %.12g vs scipy.stats.kendalltau %.12g", tau_rising_var, want[0]);
     CHECK(tau_rising_var > 0.5, "rising variance gives a clearly positive tau (%g)", tau_rising_var);
     free(s);
-    snprintf(args, sizeof args, "screen --format table %s", in);
+    snprintf(args, sizeof args, "screen --surrogates 0 --format table %s", in);
     CHECK(slowscan(args) == 0 && strstr(run_out, "series") && strstr(run_out, "untested"),
           "table format");
 }
@@ -197,7 +197,7 @@ static void test_screen_summary(void)
  * which is what the surrogate test is for. */
 static void test_screen_demo_data(void)
 {
-    CHECK(slowscan("screen --deseason 364 --indicators lag1,variance data/stations.csv") == 0,
+    CHECK(slowscan("screen --surrogates 0 --deseason 364 --indicators lag1,variance data/stations.csv") == 0,
           "demo screen");
     const char *keys[] = {"\nreed_inlet,lag1,", "\nmill_pond,lag1,", "\nreed_inlet,variance,",
                           "\nmill_pond,variance,"};
@@ -235,7 +235,7 @@ static void test_constant_series(void)
     check_write_file(in, "t,flat,ok\n0,2,1\n1,2,3\n2,2,2\n3,2,5\n4,2,4\n5,2,6\n6,2,5\n7,2,8\n8,2,7\n"
                          "9,2,9\n10,2,8\n11,2,11\n");
     char args[600];
-    snprintf(args, sizeof args, "screen --window 4 %s", in);
+    snprintf(args, sizeof args, "screen --surrogates 0 --window 4 %s", in);
     CHECK(slowscan(args) == 0, "constant series: exit 0");
     CHECK(run_err && strstr(run_err, "warning") && strstr(run_err, "'flat'"), "constant: warning");
     CHECK(run_out && strstr(run_out, "flat,variance,12,4,1.1,NA,NA,NA,none,0,insufficient"),
@@ -266,7 +266,11 @@ static void test_bad_input(void)
                     "screen --log", "row 4");
     expect_rejected("unknown option", good, "screen --windw 5", "--windw");
     expect_rejected("unknown indicator", good, "screen --indicators variance,slope", "slope");
-    expect_rejected("surrogates not available", good, "screen --surrogates 99", "--surrogates");
+    expect_rejected("null not available", good, "screen --null iaaft", "iaaft");
+    expect_rejected("unknown null", good, "screen --null wobble", "wobble");
+    expect_rejected("negative surrogates", good, "screen --surrogates -3", "--surrogates");
+    expect_rejected("fdr out of range", good, "screen --fdr 1.5", "--fdr");
+    expect_rejected("unknown alternative", good, "screen --alternative up", "--alternative");
     expect_rejected("unknown time column", good, "screen --time when", "when");
     expect_rejected("deseason not a multiple", good, "screen --deseason 2.5", "--deseason");
     expect_rejected("min-coverage", good, "screen --min-coverage 1.5", "--min-coverage");
