@@ -161,18 +161,19 @@ int rolling_compute(const rolling_spec *spec, const double *residual, const doub
     size_t W = spec->window, need = coverage_needed(spec);
     window_sums s;
     wsums_init(&s, residual, uses_level ? level : NULL, W, high, pairs);
-    for (size_t i = 0; i < n; i++) {
-        wsums_push(&s, i);
-        if (i + 1 < W) {
-            for (size_t k = 0; k < nkinds; k++)
-                out[k][i] = NAN;
-            continue;
-        }
-        /* The first full window starts from exact sums; later ones follow the policy. */
-        if (i + 1 == W)
+    for (size_t i = 0; i + 1 < W; i++)
+        for (size_t k = 0; k < nkinds; k++)
+            out[k][i] = NAN;
+    for (size_t i = W - 1; i < n; i++) {
+        /* The first full window starts from exact sums (no need to stream the samples
+         * before it); later ones slide and follow the re-centring policy. */
+        if (i + 1 == W) {
+            s.end = i;
             wsums_refresh(&s);
-        else
+        } else {
+            wsums_push(&s, i);
             wsums_maintain(&s);
+        }
         int covered = s.n >= need;
         for (size_t k = 0; k < nkinds; k++)
             out[k][i] = covered ? evaluate[kinds[k]](&s, spec) : NAN;

@@ -50,6 +50,8 @@ void wsums_init(window_sums *s, const double *x, const double *level, size_t W, 
     s->cl = 0.0;
     s->nl = 0;
     s->sl = 0.0;
+    s->inv_n = s->inv_np = 0.0;
+    s->inv_n_of = s->inv_np_of = 0;
 }
 
 /* sign = +1 adds the sample, -1 removes it. */
@@ -126,6 +128,7 @@ void wsums_push(window_sums *s, size_t i)
         drop(s, i - s->W);
     add(s, i);
     s->end = i;
+    wsums_reciprocals(s);
 }
 
 /* Mean of the finite values of v[lo..hi]; `count` receives their number (mean 0 if none). */
@@ -171,6 +174,7 @@ void wsums_refresh(window_sums *s)
                 s->sl += s->level[j] - s->cl;
     }
     s->refreshed_at = hi;
+    wsums_reciprocals(s);
 }
 
 void wsums_maintain(window_sums *s)

@@ -27,6 +27,10 @@ typedef struct {
     double peak;               /* largest s2 since the last recomputation */
     size_t np;                 /* present pairs */
     double ph, pt, phh, ptt, pht; /* sums of h, tl, h^2, tl^2, h*tl over present pairs */
+    double inv_n, inv_np;      /* 1/n and 1/np, kept by wsums_push: the derived quantities
+                                  below run every step, and a division there would cost more
+                                  than the whole update */
+    size_t inv_n_of, inv_np_of; /* the counts those reciprocals belong to */
     double cl;                 /* shift of the level sum */
     size_t nl;                 /* present level samples */
     double sl;                 /* sum (level - cl) over them */
@@ -38,6 +42,18 @@ void wsums_init(window_sums *s, const double *x, const double *level, size_t W, 
 /* Slides the window so that it ends at sample i (called for i = 0, 1, 2, ... in order):
  * adds sample i and the pair (i-1, i), drops sample i-W and the pair (i-W, i-W+1). */
 void wsums_push(window_sums *s, size_t i);
+/* Brings inv_n and inv_np up to date with n and np (done by push and refresh). */
+static inline void wsums_reciprocals(window_sums *s)
+{
+    if (s->n != s->inv_n_of) {
+        s->inv_n = s->n ? 1.0 / (double)s->n : 0.0;
+        s->inv_n_of = s->n;
+    }
+    if (s->np != s->inv_np_of) {
+        s->inv_np = s->np ? 1.0 / (double)s->np : 0.0;
+        s->inv_np_of = s->np;
+    }
+}
 /* Re-centres c on the window mean and recomputes every sum exactly from the window. */
 void wsums_refresh(window_sums *s);
 /* Applies the re-centring policy after a push; call once the window is full. */
@@ -59,7 +75,7 @@ static inline double wsums_spread_floor(double count, double c, double raw2)
 /* Window mean minus c. */
 static inline double wsums_offset(const window_sums *s)
 {
-    return s->n ? s->s1 / (double)s->n : 0.0;
+    return s->n ? s->s1 * s->inv_n : 0.0;
 }
 
 /* sum (x - mean)^2 over the present samples; a tiny negative value is round-off: 0. */
@@ -67,7 +83,7 @@ static inline double wsums_central2(const window_sums *s)
 {
     if (s->n == 0)
         return 0.0;
-    double v = s->s2 - s->s1 * (s->s1 / (double)s->n);
+    double v = s->s2 - s->s1 * (s->s1 * s->inv_n);
     return v > 0.0 ? v : 0.0;
 }
 
@@ -83,13 +99,13 @@ static inline double wsums_pair_shh(const window_sums *s)
 {
     if (s->np == 0)
         return 0.0;
-    double v = s->phh - s->ph * (s->ph / (double)s->np);
+    double v = s->phh - s->ph * (s->ph * s->inv_np);
     return v > 0.0 ? v : 0.0;
 }
 
 static inline double wsums_pair_sht(const window_sums *s)
 {
-    return s->np ? s->pht - s->ph * (s->pt / (double)s->np) : 0.0;
+    return s->np ? s->pht - s->ph * (s->pt * s->inv_np) : 0.0;
 }
 
 /* Non-zero when at least 2 pairs and the spread of their h is resolvable. */

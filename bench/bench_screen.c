@@ -1,0 +1,183 @@
+/* Benchmark of the standard screening job — one series, n = 2000, Gaussian detrend with
+ * bandwidth 10%, window 50%, variance and lag1, 1000 phase surrogates — against the
+ * numpy/scipy/pandas script ../shared/bench/reference_pipeline.py on the same input, both
+ * single-threaded and measured in this run. Also: the cost of one surrogate over the cost of
+ * its irreducible parts timed alone (one FFTW c2r of length n, and per indicator one rolling
+ * pass and one Kendall count). */
+#include "slowscan/detrend.h"
+#include "slowscan/indicators.h"
+#include "slowscan/kendall.h"
+#include "slowscan/null_trend.h"
+#include "slowscan/significance.h"
+#include "slowscan/status.h"
+#include "slowscan/surrogates.h"
+
+#include <fftw3.h>
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <time.h>
+
+enum { N = 2000, M = 1000 };
+static const char *REFERENCE = "../shared/bench/reference_pipeline.py";
+
+static double now(void)
+{
+    struct timespec t;
+    clock_gettime(CLOCK_MONOTONIC, &t);
+    return (double)t.tv_sec + 1e-9 * (double)t.tv_nsec;
+}
+
+/* Runs the reference on its own standard series, which it also writes for us to read. */
+static double run_reference(const char *csv, double *x)
+{
+    char cmd[1024];
+    snprintf(cmd, sizeof cmd, "OPENBLAS_NUM_THREADS=1 OMP_NUM_THREADS=1 /usr/bin/python3 %s "
+             "--n %d --surrogates %d --write-input %s", REFERENCE, N, M, csv);
+    FILE *p = popen(cmd, "r");
+    char line[4096] = "";
+    if (!p || !fgets(line, sizeof line, p)) {
+        if (p)
+            pclose(p);
+        return NAN;
+    }
+    pclose(p);
+    const char *sec = strstr(line, "\"seconds\":");
+    FILE *f = fopen(csv, "r");
+    char row[256];
+    for (size_t i = 0; f && fgets(row, sizeof row, f);)
+        if (i < N && sscanf(row, "%*[^,],%lf", &x[i]) == 1)
+            i++;
+    if (f)
+        fclose(f);
+    printf("reference (numpy/scipy/pandas): %s", line);
+    return sec ? strtod(sec + 10, NULL) : NAN;
+}
+
+typedef struct {
+    double tau[2], p[2], seconds;
+} job_result;
+
+/* The whole job through the library, as screen runs it for one series. */
+static job_result run_slowscan(const double *x)
+{
+    job_result r = {{0}, {0}, 0};
+    static double trend[N], resid[N], time_axis[N], null[2 * M];
+    double *paths[2] = {malloc(N * sizeof(double)), malloc(N * sizeof(double))};
+    indicator_kind kinds[2] = {INDICATOR_VARIANCE, INDICATOR_LAG1};
+    double t0 = now();
+    for (size_t i = 0; i < N; i++)
+        time_axis[i] = (double)i;
+    detrend_spec spec = {DETREND_GAUSSIAN, 0.10 * (N - 1), 0};
+    detrend_apply(&spec, 1.0, x, N, trend, resid);
+    size_t W = (size_t)floor(0.5 * (N - 1) + 0.5) + 1;
+    rolling_spec rs = {W, 0.8, 1.0, RECOVERY_LOG_AR1};
+    rolling_compute(&rs, resid, NULL, N, kinds, 2, paths);
+    kendall_workspace *kw = kendall_alloc(N);
+    for (int k = 0; k < 2; k++)
+        kendall_tau_b(kw, time_axis, paths[k], N, &r.tau[k], NULL);
+    surrogate_plan *plan = surrogate_plan_alloc(N, FFTW_ESTIMATE);
+    int st;
+    surrogate_source *src = surrogate_source_alloc(plan, SURROGATE_PHASE, resid, &st);
+    null_trend_workspace *ws = null_trend_alloc(N, 2);
+    null_trend_job job = {&rs, kinds, 2, time_axis, NULL, 1, "y", "phase"};
+    null_trend_draw(ws, src, &job, 0, M, null, M);
+    for (int k = 0; k < 2; k++)
+        r.p[k] = significance_p_value(r.tau[k], null + k * M, M, ALTERNATIVE_INCREASING, NULL);
+    r.seconds = now() - t0;
+    null_trend_free(ws);
+    surrogate_source_free(src);
+    surrogate_plan_free(plan);
+    kendall_free(kw);
+    free(paths[0]);
+    free(paths[1]);
+    return r;
+}
+
+/* Best-of-5 seconds per call of `what` repeated `reps` times. */
+#define BEST_PER_CALL(result, reps, body)                                                    \
+    do {                                                                                     \
+        double best_ = INFINITY;                                                             \
+        for (int round_ = 0; round_ < 5; round_++) {                                         \
+            double t_ = now();                                                               \
+            for (int r_ = 0; r_ < (reps); r_++) {                                            \
+                body;                                                                        \
+            }                                                                                \
+            best_ = fmin(best_, (now() - t_) / (reps));                                      \
+        }                                                                                    \
+        (result) = best_;                                                                    \
+    } while (0)
+
+static void floor_ratio(const double *x)
+{
+    enum { REPS = 400 };
+    static double resid[N], time_axis[N], path[N], out[N], null[2 * REPS];
+    indicator_kind kinds[2] = {INDICATOR_VARIANCE, INDICATOR_LAG1};
+    for (size_t i = 0; i < N; i++)
+        time_axis[i] = (double)i;
+    detrend_spec spec = {DETREND_GAUSSIAN, 0.10 * (N - 1), 0};
+    detrend_apply(&spec, 1.0, x, N, NULL, resid);
+    size_t W = (size_t)floor(0.5 * (N - 1) + 0.5) + 1;
+    rolling_spec rs = {W, 0.8, 1.0, RECOVERY_LOG_AR1};
+    surrogate_plan *plan = surrogate_plan_alloc(N, FFTW_ESTIMATE);
+    int st;
+    surrogate_source *src = surrogate_source_alloc(plan, SURROGATE_PHASE, resid, &st);
+    null_trend_workspace *ws = null_trend_alloc(N, 2);
+    null_trend_job job = {&rs, kinds, 2, time_axis, NULL, 1, "y", "phase"};
+    kendall_workspace *kw = kendall_alloc(N);
+    double *real = fftw_alloc_real(N);
+    fftw_complex *spectrum = fftw_alloc_complex(N / 2 + 1);
+    fftw_plan c2r = fftw_plan_dft_c2r_1d(N, spectrum, real, FFTW_ESTIMATE);
+    fftw_plan r2c = fftw_plan_dft_r2c_1d(N, real, spectrum, FFTW_ESTIMATE);
+    memcpy(real, resid, sizeof resid);
+    fftw_execute(r2c);
+    double per_surrogate, fft, roll_var, roll_lag1, kendall, tau;
+    double *one[1] = {path};
+    BEST_PER_CALL(per_surrogate, 1, null_trend_draw(ws, src, &job, 0, REPS, null, REPS));
+    per_surrogate /= REPS;
+    BEST_PER_CALL(fft, REPS, fftw_execute_dft_c2r(c2r, spectrum, out));
+    BEST_PER_CALL(roll_var, REPS, rolling_compute(&rs, resid, NULL, N, &kinds[0], 1, one));
+    BEST_PER_CALL(roll_lag1, REPS, rolling_compute(&rs, resid, NULL, N, &kinds[1], 1, one));
+    BEST_PER_CALL(kendall, REPS, kendall_tau_b(kw, time_axis, path, N, &tau, NULL));
+    double floor_cost = fft + roll_var + roll_lag1 + 2 * kendall;
+    printf("one surrogate: %.1f us; its parts alone: c2r %.1f + rolling variance %.1f + rolling "
+           "lag1 %.1f + 2 x Kendall %.1f = %.1f us; ratio %.2f\n", 1e6 * per_surrogate, 1e6 * fft,
+           1e6 * roll_var, 1e6 * roll_lag1, 2e6 * kendall, 1e6 * floor_cost,
+           per_surrogate / floor_cost);
+    fftw_destroy_plan(c2r);
+    fftw_destroy_plan(r2c);
+    fftw_free(real);
+    fftw_free(spectrum);
+    kendall_free(kw);
+    null_trend_free(ws);
+    surrogate_source_free(src);
+    surrogate_plan_free(plan);
+}
+
+int main(void)
+{
+    static double x[N];
+    const char *csv = "build/bench/standard_series.csv";
+    double ref = run_reference(csv, x);
+    if (isnan(ref)) {
+        printf("reference pipeline not found or failed (%s, Debian python3-numpy/scipy/pandas); "
+               "timing slowscan alone\n", REFERENCE);
+        for (size_t i = 0; i < N; i++) /* the reference's standard series shape, our draw */
+            x[i] = sin(0.01 * (double)i) + 0.003 * (double)i;
+    }
+    job_result r = run_slowscan(x);
+    job_result best = r;
+    for (int k = 0; k < 4; k++) {
+        r = run_slowscan(x);
+        best.seconds = fmin(best.seconds, r.seconds);
+    }
+    printf("slowscan: tau_variance %.6f tau_lag1 %.6f p_variance %.4f p_lag1 %.4f, %.4f s\n",
+           best.tau[0], best.tau[1], best.p[0], best.p[1], best.seconds);
+    if (!isnan(ref))
+        printf("standard job (n=%d, %d phase surrogates, variance+lag1), single thread: reference "
+               "%.3f s, slowscan %.4f s, speed-up %.0fx (target >= 30x)\n", N, M, ref,
+               best.seconds, ref / best.seconds);
+    floor_ratio(x);
+    return 0;
+}
