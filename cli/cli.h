@@ -5,6 +5,8 @@
 #include "slowscan/detrend.h"
 #include "slowscan/indicators.h"
 #include "slowscan/io.h"
+#include "slowscan/null_trend.h"
+#include "slowscan/surrogates.h"
 
 #include <stddef.h>
 #include <stdio.h>
@@ -48,6 +50,7 @@ typedef struct {
     int progress;       /* -1: auto (stderr is a TTY) */
     const char *out_dir; /* demo */
     unsigned long seed;
+    long threads;
     /* positional */
     const char **files;
     size_t nfiles;
@@ -142,6 +145,19 @@ int cli_run_series_command(const cli_options *opts, const series_command *comman
 extern const char cli_rolling_header[];
 void cli_write_rolling(FILE *fp, const cli_options *opts, const prepared_series *ps,
                        double *const *values);
+
+/* One series' null distribution, drawn in parallel (cli/parallel_null.c). */
+enum { CLI_MAX_THREADS = 256 };
+typedef struct {
+    const surrogate_plan *plan;
+    surrogate_kind kind;
+    const double *residual;
+    const null_trend_job *job;
+    size_t m;     /* replicates */
+    double *null; /* nkinds x m, replicate j of indicator k at k*m + j */
+} cli_null_task;
+/* ws[0..threads) are workspaces of the series length, one per thread. */
+int cli_null_parallel(const cli_null_task *task, null_trend_workspace *const *ws, size_t threads);
 
 /* Commands. */
 int cmd_detrend(const cli_options *opts);

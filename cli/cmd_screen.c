@@ -32,8 +32,8 @@ typedef struct {
     size_t kendall_n;
     /* significance: made once per series length and reused (plan once, draw many) */
     surrogate_plan *plan;
-    null_trend_workspace *null_ws;
-    size_t null_n;
+    null_trend_workspace *null_ws[CLI_MAX_THREADS]; /* one per thread */
+    size_t null_n, nthreads;
     double *null; /* nindicators x surrogates */
 } screen_run;
 
@@ -97,13 +97,17 @@ static int ready_null(screen_run *run, const cli_options *opts, size_t n)
     if (run->null_n == n)
         return SLOWSCAN_OK;
     surrogate_plan_free(run->plan);
-    null_trend_free(run->null_ws);
+    for (size_t k = 0; k < run->nthreads; k++)
+        null_trend_free(run->null_ws[k]);
     run->null_n = 0;
+    run->nthreads = (size_t)opts->threads;
     run->plan = surrogate_plan_alloc(n, FFTW_ESTIMATE);
-    run->null_ws = null_trend_alloc(n, opts->nindicators);
+    int missing = !run->plan;
+    for (size_t k = 0; k < run->nthreads; k++)
+        missing |= !(run->null_ws[k] = null_trend_alloc(n, opts->nindicators));
     if (!run->null)
         run->null = malloc(opts->nindicators * (size_t)opts->surrogates * sizeof *run->null);
-    if (!run->plan || !run->null_ws || !run->null)
+    if (missing || !run->null)
         return SLOWSCAN_ENOMEM;
     run->null_n = n;
     return SLOWSCAN_OK;
@@ -122,9 +126,6 @@ static int test_series(const cli_options *opts, const prepared_series *ps, scree
                        screen_row *rows)
 {
     int st = ready_null(run, opts, ps->n);
-    surrogate_source *src = NULL;
-    if (st == SLOWSCAN_OK)
-        src = surrogate_source_alloc(run->plan, (surrogate_kind)opts->null_model, ps->residual, &st);
     rolling_spec spec = {ps->window, opts->min_coverage, ps->dt, opts->recovery};
     int need_level = 0;
     for (size_t j = 0; j < opts->nindicators; j++)
@@ -133,9 +134,10 @@ static int test_series(const cli_options *opts, const prepared_series *ps, scree
                           need_level ? ps->trend : NULL, opts->seed, ps->name,
                           surrogate_name((surrogate_kind)opts->null_model)};
     size_t m = (size_t)opts->surrogates;
+    cli_null_task task = {run->plan, (surrogate_kind)opts->null_model, ps->residual, &job, m,
+                          run->null};
     if (st == SLOWSCAN_OK)
-        st = null_trend_draw(run->null_ws, src, &job, 0, m, run->null, m);
-    surrogate_source_free(src);
+        st = cli_null_parallel(&task, run->null_ws, run->nthreads);
     if (st != SLOWSCAN_OK) {
         cli_error("%s: column '%s': surrogate null failed: %s", ps->source, ps->name,
                   slowscan_strerror(st));
@@ -291,7 +293,8 @@ int cmd_screen(const cli_options *opts)
     free(run.rows);
     kendall_free(run.kendall);
     surrogate_plan_free(run.plan);
-    null_trend_free(run.null_ws);
+    for (size_t k = 0; k < run.nthreads; k++)
+        null_trend_free(run.null_ws[k]);
     free(run.null);
     return rc;
 }

@@ -96,6 +96,8 @@ static void help_screen(FILE *out)
           "  --alternative increasing|decreasing|two-sided  override each indicator's default\n"
           "  --fdr Q              false-discovery rate for the flag (default 0.05)\n"
           "  --seed S             random seed (default 1); same seed, same numbers\n"
+          "  --threads N          threads for the surrogates (default: all cores); the output\n"
+          "                       is identical for any N\n"
           "  --rolling FILE       also write the rolling indicators (as 'indicators' does)\n"
           "  --format csv|table   summary as CSV (default) or as an aligned table\n\n", out);
     fputs(cautions, out);

@@ -204,6 +204,16 @@ static int set_alternative(cli_options *o, const char *n, const char *v)
     return EXIT_BAD_INPUT;
 }
 
+static int set_threads(cli_options *o, const char *n, const char *v)
+{
+    int rc = set_whole(n, v, 1, &o->threads);
+    if (rc == EXIT_OK && o->threads > CLI_MAX_THREADS) {
+        cli_error("option %s: at most %d threads", n, CLI_MAX_THREADS);
+        return EXIT_BAD_INPUT;
+    }
+    return rc;
+}
+
 static int set_seed(cli_options *o, const char *n, const char *v)
 {
     long s = 0;
@@ -248,6 +258,7 @@ static const option_spec options[] = {
     {"--no-progress", 0, C_SERIES, set_progress},
     {"--out", 1, C_DEMO, set_out_dir},
     {"--seed", 1, C_DEMO | C_SCREEN, set_seed},
+    {"--threads", 1, C_SCREEN, set_threads},
 };
 
 static int command_bit(const char *command)
@@ -281,6 +292,8 @@ static void set_defaults(const char *command, cli_options *o)
     o->format = "csv";
     o->progress = -1;
     o->seed = 1;
+    long cores = sysconf(_SC_NPROCESSORS_ONLN);
+    o->threads = cores < 1 ? 1 : cores > CLI_MAX_THREADS ? CLI_MAX_THREADS : cores;
 }
 
 static const option_spec *find_option(const char *arg, size_t *name_len)

@@ -147,6 +147,14 @@ static void test_determinism(void)
     char *c = screen("--surrogates 99 --seed 8", in);
     CHECK(a && b && strcmp(a, b) == 0, "same seed, identical output");
     CHECK(a && c && strcmp(a, c) != 0, "another seed, another output");
+    /* 130 replicates: three blocks of 64, the last one partial, dealt to 1, 2 or 3 threads. */
+    char *t1 = screen("--surrogates 130 --threads 1", in), *t2 = screen("--surrogates 130 --threads 2", in);
+    char *t3 = screen("--surrogates 130 --threads 3", in);
+    CHECK(t1 && t2 && t3 && strcmp(t1, t2) == 0 && strcmp(t1, t3) == 0,
+          "--threads 1, 2 and 3 give identical bytes");
+    free(t1);
+    free(t2);
+    free(t3);
     free(a);
     free(b);
     free(c);
