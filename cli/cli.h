@@ -164,5 +164,6 @@ int cmd_detrend(const cli_options *opts);
 int cmd_indicators(const cli_options *opts);
 int cmd_screen(const cli_options *opts);
 int cmd_demo(const cli_options *opts);
+int cmd_surrogates(const cli_options *opts);
 
 #endif

@@ -12,6 +12,7 @@ static const char overview[] =
     "  screen      the main job: detrend, rolling indicators, Kendall trend per series\n"
     "  indicators  rolling-window indicators per series (series,time,indicator,value)\n"
     "  detrend     trend and residual per series (series,time,value,trend,residual)\n"
+    "  surrogates  null-model replicates of each residual (series,replicate,time,value)\n"
     "  demo        write the invented demo data set (lake stations) to data/ or --out DIR\n"
     "  help        this text, or 'slowscan help COMMAND'\n"
     "\n"
@@ -103,6 +104,19 @@ static void help_screen(FILE *out)
     fputs(cautions, out);
 }
 
+static void help_surrogates(FILE *out)
+{
+    fputs("usage: slowscan surrogates [options] FILE...\n\n"
+          "Detrends every series and writes surrogates of its residual as CSV\n"
+          "series,replicate,time,value (replicates numbered from 1). With the same --seed these\n"
+          "are exactly the surrogates 'screen' tests against.\n\n", out);
+    fputs(input_options, out);
+    fputs("surrogates:\n"
+          "  --surrogates M       replicates per series (default 10)\n"
+          "  --null phase         Fourier phase randomisation: keeps the periodogram exactly\n"
+          "  --seed S             random seed (default 1)\n", out);
+}
+
 static void help_demo(FILE *out)
 {
     fputs("usage: slowscan demo [--out DIR] [--seed S]\n\n"
@@ -118,6 +132,7 @@ int cli_help(const char *topic, FILE *out)
     } topics[] = {{"detrend", help_detrend},
                   {"indicators", help_indicators},
                   {"screen", help_screen},
+                  {"surrogates", help_surrogates},
                   {"demo", help_demo}};
     if (!topic) {
         fputs(overview, out);
@@ -130,6 +145,6 @@ int cli_help(const char *topic, FILE *out)
             topics[i].print(out);
             return EXIT_OK;
         }
-    fprintf(stderr, "slowscan: no help for '%s' (commands: screen, indicators, detrend, demo)\n", topic);
+    fprintf(stderr, "slowscan: no help for '%s' (commands: screen, indicators, detrend, surrogates, demo)\n", topic);
     return EXIT_BAD_INPUT;
 }

@@ -10,8 +10,8 @@
 #include <string.h>
 #include <unistd.h>
 
-enum { C_DETREND = 1, C_INDICATORS = 2, C_SCREEN = 4, C_DEMO = 8 };
-#define C_SERIES (C_DETREND | C_INDICATORS | C_SCREEN)
+enum { C_DETREND = 1, C_INDICATORS = 2, C_SCREEN = 4, C_DEMO = 8, C_SURROGATES = 16 };
+#define C_SERIES (C_DETREND | C_INDICATORS | C_SCREEN | C_SURROGATES)
 #define C_ROLLING (C_INDICATORS | C_SCREEN)
 
 typedef int (*option_setter)(cli_options *opts, const char *name, const char *value);
@@ -246,8 +246,8 @@ static const option_spec options[] = {
     {"--indicators", 1, C_ROLLING, set_indicators},
     {"--min-coverage", 1, C_ROLLING, set_min_coverage},
     {"--recovery", 1, C_ROLLING, set_recovery},
-    {"--surrogates", 1, C_SCREEN, set_surrogates},
-    {"--null", 1, C_SCREEN, set_null},
+    {"--surrogates", 1, C_SCREEN | C_SURROGATES, set_surrogates},
+    {"--null", 1, C_SCREEN | C_SURROGATES, set_null},
     {"--fdr", 1, C_SCREEN, set_fdr},
     {"--alternative", 1, C_SCREEN, set_alternative},
     {"--rolling", 1, C_SCREEN, set_rolling},
@@ -257,14 +257,14 @@ static const option_spec options[] = {
     {"--progress", 0, C_SERIES, set_progress},
     {"--no-progress", 0, C_SERIES, set_progress},
     {"--out", 1, C_DEMO, set_out_dir},
-    {"--seed", 1, C_DEMO | C_SCREEN, set_seed},
+    {"--seed", 1, C_DEMO | C_SCREEN | C_SURROGATES, set_seed},
     {"--threads", 1, C_SCREEN, set_threads},
 };
 
 static int command_bit(const char *command)
 {
-    static const char *names[] = {"detrend", "indicators", "screen", "demo"};
-    for (int i = 0; i < 4; i++)
+    static const char *names[] = {"detrend", "indicators", "screen", "demo", "surrogates"};
+    for (int i = 0; i < 5; i++)
         if (strcmp(command, names[i]) == 0)
             return 1 << i;
     return 0;
@@ -285,7 +285,7 @@ static void set_defaults(const char *command, cli_options *o)
     o->indicators_text = "variance,lag1";
     o->min_coverage = 0.8;
     o->recovery = RECOVERY_LOG_AR1;
-    o->surrogates = 1000;
+    o->surrogates = strcmp(command, "surrogates") == 0 ? 10 : 1000;
     o->null_model = SURROGATE_PHASE;
     o->fdr = 0.05;
     o->alternative = -1; /* per indicator: rising, or two-sided for skewness */

@@ -82,6 +82,13 @@ static int one_replicate(null_trend_workspace *ws, surrogate_source *source,
     return SLOWSCAN_OK;
 }
 
+void null_trend_stream(gsl_rng *rng, unsigned long seed, const char *series, const char *purpose,
+                       size_t j)
+{
+    if (j % NULL_TREND_BLOCK == 0)
+        gsl_rng_set(rng, stream_seed(seed, series, purpose, j / NULL_TREND_BLOCK));
+}
+
 int null_trend_draw(null_trend_workspace *ws, surrogate_source *source, const null_trend_job *job,
                     size_t first, size_t count, double *null, size_t stride)
 {
@@ -89,9 +96,7 @@ int null_trend_draw(null_trend_workspace *ws, surrogate_source *source, const nu
         return SLOWSCAN_EINVAL;
     double tau[INDICATOR_COUNT];
     for (size_t j = first; j < first + count; j++) {
-        if (j % NULL_TREND_BLOCK == 0)
-            gsl_rng_set(ws->rng, stream_seed(job->seed, job->series, job->purpose,
-                                             j / NULL_TREND_BLOCK));
+        null_trend_stream(ws->rng, job->seed, job->series, job->purpose, j);
         int st = one_replicate(ws, source, job, tau);
         if (st != SLOWSCAN_OK)
             return st;

@@ -160,8 +160,32 @@ static void test_determinism(void)
     free(c);
 }
 
+/* The surrogates command writes replicates whose periodogram is the residual's (Theiler et
+ * al. 1992, Physica D 58:77), checked with numpy.fft.rfft (Debian python3-numpy). */
+static void test_surrogates_command(void)
+{
+    const char *in = check_tmp_path("sur-in.csv"), *out = check_tmp_path("sur-out.csv");
+    write_series_csv(in, 2, 300, ar1_sample, 8);
+    char cmd[1400];
+    snprintf(cmd, sizeof cmd, "%s surrogates --detrend none --surrogates 5 -o %s %s",
+             check_binary(), out, in);
+    CHECK(check_run(cmd, NULL, NULL) == 0, "surrogates command runs");
+    char *text = check_read_file(out);
+    size_t lines = 0;
+    for (const char *c = text; c && *c; c++)
+        lines += *c == '\n';
+    CHECK(text && !strncmp(text, "series,replicate,time,value\n", 28) && lines == 1 + 2 * 5 * 300,
+          "surrogates: header and %zu lines", lines);
+    free(text);
+    snprintf(cmd, sizeof cmd, "periodogram_kept.py %s %s s1", out, in);
+    double v[2] = {0, 1};
+    CHECK(check_python(cmd, v, 2) == 2 && v[0] == 5 && v[1] < 1e-9,
+          "surrogate periodograms equal the series' (%g replicates, max rel. diff %.3g)", v[0], v[1]);
+}
+
 void suite_significance(void)
 {
+    test_surrogates_command();
     test_determinism();
     test_size();
     test_power();

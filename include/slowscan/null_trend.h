@@ -13,6 +13,8 @@
 #include "slowscan/indicators.h"
 #include "slowscan/surrogates.h"
 
+#include <gsl/gsl_rng.h>
+
 #include <stddef.h>
 
 enum { NULL_TREND_BLOCK = 64 };
@@ -34,6 +36,13 @@ typedef struct {
     const char *series;  /* name, part of the stream seed */
     const char *purpose; /* the null's name, part of the stream seed */
 } null_trend_job;
+
+/* Positions rng for replicate j of (seed, series, purpose): at the start of each block it is
+ * reseeded, within a block it runs on. Calling it for j = first, first+1, ... (first a
+ * multiple of NULL_TREND_BLOCK) before each draw reproduces the replicates of
+ * null_trend_draw — the `surrogates` command writes exactly the series screen tests with. */
+void null_trend_stream(gsl_rng *rng, unsigned long seed, const char *series, const char *purpose,
+                       size_t j);
 
 /* Draws replicates [first, first + count) from `source` and writes, for indicator k and
  * replicate j, tau into null[k * stride + j] (NaN when a replicate's tau is undefined).
