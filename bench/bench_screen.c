@@ -79,7 +79,7 @@ static job_result run_slowscan(const double *x)
         kendall_tau_b(kw, time_axis, paths[k], N, &r.tau[k], NULL);
     surrogate_plan *plan = surrogate_plan_alloc(N, FFTW_ESTIMATE);
     int st;
-    surrogate_source *src = surrogate_source_alloc(plan, SURROGATE_PHASE, resid, &st);
+    surrogate_source *src = surrogate_source_alloc(plan, SURROGATE_PHASE, resid, NULL, &st);
     null_trend_workspace *ws = null_trend_alloc(N, 2);
     null_trend_job job = {&rs, kinds, 2, time_axis, NULL, 1, "y", "phase"};
     null_trend_draw(ws, src, &job, 0, M, null, M);
@@ -122,7 +122,7 @@ static void floor_ratio(const double *x)
     rolling_spec rs = {W, 0.8, 1.0, RECOVERY_LOG_AR1};
     surrogate_plan *plan = surrogate_plan_alloc(N, FFTW_ESTIMATE);
     int st;
-    surrogate_source *src = surrogate_source_alloc(plan, SURROGATE_PHASE, resid, &st);
+    surrogate_source *src = surrogate_source_alloc(plan, SURROGATE_PHASE, resid, NULL, &st);
     null_trend_workspace *ws = null_trend_alloc(N, 2);
     null_trend_job job = {&rs, kinds, 2, time_axis, NULL, 1, "y", "phase"};
     kendall_workspace *kw = kendall_alloc(N);

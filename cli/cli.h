@@ -42,6 +42,7 @@ typedef struct {
     /* significance (screen) */
     long surrogates;
     int null_model;  /* surrogate_kind */
+    surrogate_options null_options;
     double fdr;
     int alternative; /* significance_alternative, -1: the indicator's own direction */
     /* outputs */
@@ -151,13 +152,15 @@ enum { CLI_MAX_THREADS = 256 };
 typedef struct {
     const surrogate_plan *plan;
     surrogate_kind kind;
+    const surrogate_options *options;
     const double *residual;
     const null_trend_job *job;
     size_t m;     /* replicates */
     double *null; /* nkinds x m, replicate j of indicator k at k*m + j */
+    size_t unconverged; /* out: iaaft draws that hit the iteration limit */
 } cli_null_task;
 /* ws[0..threads) are workspaces of the series length, one per thread. */
-int cli_null_parallel(const cli_null_task *task, null_trend_workspace *const *ws, size_t threads);
+int cli_null_parallel(cli_null_task *task, null_trend_workspace *const *ws, size_t threads);
 
 /* Commands. */
 int cmd_detrend(const cli_options *opts);

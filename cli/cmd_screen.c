@@ -134,10 +134,14 @@ static int test_series(const cli_options *opts, const prepared_series *ps, scree
                           need_level ? ps->trend : NULL, opts->seed, ps->name,
                           surrogate_name((surrogate_kind)opts->null_model)};
     size_t m = (size_t)opts->surrogates;
-    cli_null_task task = {run->plan, (surrogate_kind)opts->null_model, ps->residual, &job, m,
-                          run->null};
+    cli_null_task task = {run->plan, (surrogate_kind)opts->null_model, &opts->null_options,
+                          ps->residual, &job, m, run->null, 0};
     if (st == SLOWSCAN_OK)
         st = cli_null_parallel(&task, run->null_ws, run->nthreads);
+    if (task.unconverged)
+        cli_warning("%s: column '%s': %zu of %zu iaaft surrogates did not converge within %d "
+                    "iterations (--iaaft-iterations, --iaaft-tol)", ps->source, ps->name,
+                    task.unconverged, m, opts->null_options.iaaft_max_iterations);
     if (st != SLOWSCAN_OK) {
         cli_error("%s: column '%s': surrogate null failed: %s", ps->source, ps->name,
                   slowscan_strerror(st));

@@ -55,7 +55,7 @@ static int draw_series(const cli_options *opts, const prepared_series *ps, void 
     int st = SLOWSCAN_ENOMEM;
     surrogate_plan *plan = surrogate_plan_alloc(ps->n, FFTW_ESTIMATE);
     surrogate_source *src = plan ? surrogate_source_alloc(plan, (surrogate_kind)opts->null_model,
-                                                          ps->residual, &st) : NULL;
+                                                          ps->residual, &opts->null_options, &st) : NULL;
     fftw_free(run->buffer);
     run->buffer = fftw_alloc_real(ps->n);
     if (src && run->buffer)

@@ -92,8 +92,15 @@ static void help_screen(FILE *out)
     fputs(rolling_options, out);
     fputs("screening:\n"
           "  --surrogates M       surrogate replicates (default 1000; 0: tau only)\n"
-          "  --null phase         null model: Fourier phase randomisation of the residual,\n"
-          "                       which keeps its periodogram (default and, for now, only)\n"
+          "  --null MODEL         null model for the surrogates of the residual:\n"
+          "                       phase (default): Fourier phases randomised, periodogram kept;\n"
+          "                       aaft: amplitude-adjusted, the set of values kept;\n"
+          "                       iaaft: iterated aaft, values kept, periodogram iterated;\n"
+          "                       ar1: the fitted AR(1), simulated; block: moving-block bootstrap\n"
+          "  --iaaft-tol T        iaaft stops when its spectral error improves by less than\n"
+          "                       this fraction (default 1e-4); --iaaft-iterations K caps it (200)\n"
+          "  --block-length L     block length in samples (default round(n^(1/3)), the order\n"
+          "                       Hall, Horowitz & Jing 1995 give for variance-type statistics)\n"
           "  --alternative increasing|decreasing|two-sided  override each indicator's default\n"
           "  --fdr Q              false-discovery rate for the flag (default 0.05)\n"
           "  --seed S             random seed (default 1); same seed, same numbers\n"
@@ -113,7 +120,15 @@ static void help_surrogates(FILE *out)
     fputs(input_options, out);
     fputs("surrogates:\n"
           "  --surrogates M       replicates per series (default 10)\n"
-          "  --null phase         Fourier phase randomisation: keeps the periodogram exactly\n"
+          "  --null MODEL         null model for the surrogates of the residual:\n"
+          "                       phase (default): Fourier phases randomised, periodogram kept;\n"
+          "                       aaft: amplitude-adjusted, the set of values kept;\n"
+          "                       iaaft: iterated aaft, values kept, periodogram iterated;\n"
+          "                       ar1: the fitted AR(1), simulated; block: moving-block bootstrap\n"
+          "  --iaaft-tol T        iaaft stops when its spectral error improves by less than\n"
+          "                       this fraction (default 1e-4); --iaaft-iterations K caps it (200)\n"
+          "  --block-length L     block length in samples (default round(n^(1/3)), the order\n"
+          "                       Hall, Horowitz & Jing 1995 give for variance-type statistics)\n"
           "  --seed S             random seed (default 1)\n", out);
 }
 

@@ -171,15 +171,34 @@ static int set_null(cli_options *o, const char *n, const char *v)
         o->null_model = (int)kind;
         return EXIT_OK;
     }
-    static const char *planned[] = {"aaft", "iaaft", "ar1", "block", "control"};
-    for (size_t i = 0; i < sizeof planned / sizeof planned[0]; i++)
-        if (strcmp(v, planned[i]) == 0) {
-            /* Said plainly rather than substituted: a p-value must come from the null asked for. */
-            cli_error("option %s: the '%s' null model is not available in this version (use phase)", n, v);
-            return EXIT_BAD_INPUT;
-        }
-    cli_error("option %s: unknown null model '%s' (phase)", n, v);
+    if (strcmp(v, "control") == 0) {
+        /* Said plainly rather than substituted: a p-value must come from the null asked for. */
+        cli_error("option %s: the 'control' null model is not available in this version", n);
+        return EXIT_BAD_INPUT;
+    }
+    cli_error("option %s: unknown null model '%s' (phase, aaft, iaaft, ar1, block)", n, v);
     return EXIT_BAD_INPUT;
+}
+
+static int set_iaaft_tol(cli_options *o, const char *n, const char *v)
+{
+    return parse_positive(n, v, &o->null_options.iaaft_tolerance);
+}
+
+static int set_iaaft_iterations(cli_options *o, const char *n, const char *v)
+{
+    long it = 0;
+    int rc = set_whole(n, v, 1, &it);
+    o->null_options.iaaft_max_iterations = it > 100000 ? 100000 : (int)it;
+    return rc;
+}
+
+static int set_block_length(cli_options *o, const char *n, const char *v)
+{
+    long len = 0;
+    int rc = set_whole(n, v, 1, &len);
+    o->null_options.block_length = (size_t)len;
+    return rc;
 }
 
 static int set_fdr(cli_options *o, const char *n, const char *v)
@@ -248,6 +267,9 @@ static const option_spec options[] = {
     {"--recovery", 1, C_ROLLING, set_recovery},
     {"--surrogates", 1, C_SCREEN | C_SURROGATES, set_surrogates},
     {"--null", 1, C_SCREEN | C_SURROGATES, set_null},
+    {"--iaaft-tol", 1, C_SCREEN | C_SURROGATES, set_iaaft_tol},
+    {"--iaaft-iterations", 1, C_SCREEN | C_SURROGATES, set_iaaft_iterations},
+    {"--block-length", 1, C_SCREEN | C_SURROGATES, set_block_length},
     {"--fdr", 1, C_SCREEN, set_fdr},
     {"--alternative", 1, C_SCREEN, set_alternative},
     {"--rolling", 1, C_SCREEN, set_rolling},
@@ -287,6 +309,7 @@ static void set_defaults(const char *command, cli_options *o)
     o->recovery = RECOVERY_LOG_AR1;
     o->surrogates = strcmp(command, "surrogates") == 0 ? 10 : 1000;
     o->null_model = SURROGATE_PHASE;
+    o->null_options = surrogate_default_options();
     o->fdr = 0.05;
     o->alternative = -1; /* per indicator: rising, or two-sided for skewness */
     o->format = "csv";

@@ -8,7 +8,7 @@
 #include <stdlib.h>
 
 typedef struct {
-    const cli_null_task *task;
+    cli_null_task *task;
     pthread_mutex_t lock;
     size_t next_block, nblocks;
     int status;
@@ -33,10 +33,10 @@ static void *worker(void *p)
 {
     worker_arg *arg = p;
     shared_state *s = arg->shared;
-    const cli_null_task *t = s->task;
+    cli_null_task *t = s->task;
     int st;
     /* Each thread has its own source: the draw writes into the source's spectrum scratch. */
-    surrogate_source *src = surrogate_source_alloc(t->plan, t->kind, t->residual, &st);
+    surrogate_source *src = surrogate_source_alloc(t->plan, t->kind, t->residual, t->options, &st);
     size_t block;
     while (st == SLOWSCAN_OK && take_block(s, &block)) {
         size_t first = block * NULL_TREND_BLOCK, count = t->m - first;
@@ -44,18 +44,21 @@ static void *worker(void *p)
             count = NULL_TREND_BLOCK;
         st = null_trend_draw(arg->ws, src, t->job, first, count, t->null, t->m);
     }
+    size_t unconverged = 0;
+    if (src)
+        surrogate_iaaft_report(src, NULL, NULL, &unconverged);
     surrogate_source_free(src);
-    if (st != SLOWSCAN_OK) {
-        pthread_mutex_lock(&s->lock);
-        if (s->status == SLOWSCAN_OK)
-            s->status = st;
-        pthread_mutex_unlock(&s->lock);
-    }
+    pthread_mutex_lock(&s->lock);
+    if (st != SLOWSCAN_OK && s->status == SLOWSCAN_OK)
+        s->status = st;
+    t->unconverged += unconverged;
+    pthread_mutex_unlock(&s->lock);
     return NULL;
 }
 
-int cli_null_parallel(const cli_null_task *task, null_trend_workspace *const *ws, size_t threads)
+int cli_null_parallel(cli_null_task *task, null_trend_workspace *const *ws, size_t threads)
 {
+    task->unconverged = 0;
     shared_state s = {task, PTHREAD_MUTEX_INITIALIZER, 0,
                       (task->m + NULL_TREND_BLOCK - 1) / NULL_TREND_BLOCK, SLOWSCAN_OK};
     if (threads > s.nblocks)

@@ -97,7 +97,11 @@ static void test_size(void)
     enum { SERIES = 200 };
     const char *in = check_tmp_path("stationary.csv");
     write_series_csv(in, SERIES, 300, ar1_sample, 21);
-    char *out = screen("--surrogates 199 --detrend linear --window 40%", in);
+    const char *nulls[] = {"phase", "ar1"};
+    for (size_t nm = 0; nm < 2; nm++) {
+    char args[200];
+    snprintf(args, sizeof args, "--surrogates 199 --detrend linear --window 40%% --null %s", nulls[nm]);
+    char *out = screen(args, in);
     size_t lo = 0, hi = SERIES;
     while (gsl_cdf_binomial_P((unsigned)lo, 0.05, SERIES) < 0.005)
         lo++;
@@ -108,12 +112,13 @@ static void test_size(void)
         size_t rows = 0;
         double share = share_significant(out, inds[j], &rows);
         size_t hits = (size_t)lround(share * (double)rows);
-        fprintf(stderr, "size, phase null, %s: %zu of %zu with p <= 0.05 (99%% interval %zu..%zu)\n",
-                inds[j], hits, rows, lo, hi);
-        CHECK(rows == SERIES && hits >= lo && hits <= hi, "size of the %s test: %zu/%zu outside %zu..%zu",
-              inds[j], hits, rows, lo, hi);
+        fprintf(stderr, "size, %s null, %s: %zu of %zu with p <= 0.05 (99%% interval %zu..%zu)\n",
+                nulls[nm], inds[j], hits, rows, lo, hi);
+        CHECK(rows == SERIES && hits >= lo && hits <= hi, "size of the %s test (%s null): %zu/%zu outside %zu..%zu",
+              inds[j], nulls[nm], hits, rows, lo, hi);
     }
     free(out);
+    }
 }
 
 /* Power: series driven toward a fold are flagged (common practice, no source: critical

@@ -5,7 +5,9 @@
 #include "slowscan/surrogates.h"
 
 #include <fftw3.h>
+#include <gsl/gsl_fit.h>
 #include <gsl/gsl_rng.h>
+#include <gsl/gsl_statistics_double.h>
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -75,7 +77,7 @@ static void check_spectrum_kept(size_t n)
         x[i] = 0.7 * (i ? x[i - 1] : 0) + check_rng_gaussian(r) + 100.0;
     surrogate_plan *plan = surrogate_plan_alloc(n, FFTW_ESTIMATE);
     int status;
-    surrogate_source *src = surrogate_source_alloc(plan, SURROGATE_PHASE, x, &status);
+    surrogate_source *src = surrogate_source_alloc(plan, SURROGATE_PHASE, x, NULL, &status);
     CHECK(src && status == SLOWSCAN_OK, "phase source n=%zu", n);
     fftw_complex *fx = fftw_alloc_complex(n / 2 + 1), *fy = fftw_alloc_complex(n / 2 + 1);
     fftw_plan pf = fftw_plan_dft_r2c_1d((int)n, x, fx, FFTW_ESTIMATE | FFTW_PRESERVE_INPUT);
@@ -115,14 +117,163 @@ static void test_phase_surrogates(void)
     x[5] = x[40] = NAN;
     surrogate_plan *plan = surrogate_plan_alloc(64, FFTW_ESTIMATE);
     int status;
-    surrogate_source *src = surrogate_source_alloc(plan, SURROGATE_PHASE, x, &status);
+    surrogate_source *src = surrogate_source_alloc(plan, SURROGATE_PHASE, x, NULL, &status);
     gsl_rng *rng = gsl_rng_alloc(gsl_rng_mt19937);
     surrogate_draw(src, rng, y); /* y is not fftw-aligned on purpose: the copy path */
     CHECK(isnan(y[5]) && isnan(y[40]) && isfinite(y[6]), "gaps restored");
     for (int i = 0; i < 64; i++)
         x[i] = 3.0;
-    CHECK(!surrogate_source_alloc(plan, SURROGATE_PHASE, x, &status) && status == SLOWSCAN_ECONST,
+    CHECK(!surrogate_source_alloc(plan, SURROGATE_PHASE, x, NULL, &status) && status == SLOWSCAN_ECONST,
           "constant series refused");
+    gsl_rng_free(rng);
+    surrogate_source_free(src);
+    surrogate_plan_free(plan);
+}
+
+static int by_double(const void *a, const void *b)
+{
+    double x = *(const double *)a, y = *(const double *)b;
+    return (x > y) - (x < y);
+}
+
+/* A test series: AR(1) with phi = 0.6 and skewed (exponentiated) values, n = 1000. */
+static void skewed_ar1(double *x, size_t n, unsigned long seed)
+{
+    check_rng *r = check_rng_alloc(seed);
+    double v = 0;
+    for (size_t i = 0; i < n; i++) {
+        v = 0.6 * v + check_rng_gaussian(r);
+        x[i] = exp(0.5 * v);
+    }
+    check_rng_free(r);
+}
+
+/* Relative spectral distance of y from x: sqrt(sum (|Y_k| - |X_k|)^2 / sum |X_k|^2). */
+static double spectral_distance(const double *x, const double *y, size_t n)
+{
+    double *buf = fftw_alloc_real(n);
+    fftw_complex *fx = fftw_alloc_complex(n / 2 + 1), *fy = fftw_alloc_complex(n / 2 + 1);
+    fftw_plan p = fftw_plan_dft_r2c_1d((int)n, buf, fx, FFTW_ESTIMATE);
+    memcpy(buf, x, n * sizeof *buf);
+    fftw_execute_dft_r2c(p, buf, fx);
+    memcpy(buf, y, n * sizeof *buf);
+    fftw_execute_dft_r2c(p, buf, fy);
+    double num = 0, den = 0;
+    for (size_t k = 0; k <= n / 2; k++) {
+        double d = hypot(fy[k][0], fy[k][1]) - hypot(fx[k][0], fx[k][1]);
+        num += d * d;
+        den += fx[k][0] * fx[k][0] + fx[k][1] * fx[k][1];
+    }
+    fftw_destroy_plan(p);
+    fftw_free(buf);
+    fftw_free(fx);
+    fftw_free(fy);
+    return sqrt(num / den);
+}
+
+/* aaft and iaaft keep the set of values exactly (Theiler et al. 1992; Schreiber & Schmitz
+ * 1996, Phys. Rev. Lett. 77:635); iterating brings the periodogram closer to the data's than
+ * one AAFT step does, and stops below the tolerance's improvement. */
+static void test_amplitude_adjusted(void)
+{
+    enum { N = 1000 };
+    double x[N], sx[N], *y = fftw_alloc_real(N), sy[N];
+    skewed_ar1(x, N, 17);
+    memcpy(sx, x, sizeof x);
+    qsort(sx, N, sizeof *sx, by_double);
+    surrogate_plan *plan = surrogate_plan_alloc(N, FFTW_ESTIMATE);
+    gsl_rng *rng = gsl_rng_alloc(gsl_rng_mt19937);
+    double distance[2] = {0, 0};
+    surrogate_kind kinds[2] = {SURROGATE_AAFT, SURROGATE_IAAFT};
+    for (int k = 0; k < 2; k++) {
+        int status;
+        surrogate_source *src = surrogate_source_alloc(plan, kinds[k], x, NULL, &status);
+        int exact = 1, changed = 0;
+        for (int rep = 0; src && rep < 10; rep++) {
+            surrogate_draw(src, rng, y);
+            memcpy(sy, y, sizeof sy);
+            qsort(sy, N, sizeof *sy, by_double);
+            exact &= memcmp(sx, sy, sizeof sx) == 0;
+            changed |= memcmp(x, y, sizeof x) != 0;
+            distance[k] += spectral_distance(x, y, N) / 10;
+        }
+        CHECK(src && exact && changed, "%s: sorted values identical, series reordered",
+              surrogate_name(kinds[k]));
+        if (kinds[k] == SURROGATE_IAAFT && src) {
+            int it;
+            double err;
+            size_t unconverged;
+            surrogate_iaaft_report(src, &it, &err, &unconverged);
+            CHECK(unconverged == 0 && it > 1 && check_close(err, spectral_distance(x, y, N), 1e-9, 1e-12),
+                  "iaaft converged in %d iterations, reported error %.4g", it, err);
+        }
+        surrogate_source_free(src);
+    }
+    CHECK(distance[1] < 0.5 * distance[0], "iaaft spectrum closer than aaft's: %.4f vs %.4f",
+          distance[1], distance[0]);
+    gsl_rng_free(rng);
+    surrogate_plan_free(plan);
+    fftw_free(y);
+}
+
+/* ar1: replicates reproduce the fitted coefficient — the mean lag-1 autocorrelation of many
+ * replicates equals it within sampling error (Box & Jenkins, Time Series Analysis: the lag-1
+ * autocorrelation of an AR(1) is phi). */
+static void test_ar1_null(void)
+{
+    enum { N = 2000, REPS = 200 };
+    double x[N], y[N], fit_phi;
+    check_rng *r = check_rng_alloc(23);
+    double v = 0;
+    for (size_t i = 0; i < N; i++)
+        x[i] = 3.0 + (v = 0.6 * v + check_rng_gaussian(r));
+    check_rng_free(r);
+    double h[N - 1], t[N - 1], c0, cov00, cov01, cov11, ss;
+    memcpy(h, x, sizeof h);
+    memcpy(t, x + 1, sizeof t);
+    gsl_fit_linear(h, 1, t, 1, N - 1, &c0, &fit_phi, &cov00, &cov01, &cov11, &ss);
+    surrogate_plan *plan = surrogate_plan_alloc(N, FFTW_ESTIMATE);
+    int status;
+    surrogate_source *src = surrogate_source_alloc(plan, SURROGATE_AR1, x, NULL, &status);
+    gsl_rng *rng = gsl_rng_alloc(gsl_rng_mt19937);
+    double mean_lag1 = 0, mean_level = 0;
+    for (int rep = 0; src && rep < REPS; rep++) {
+        surrogate_draw(src, rng, y);
+        mean_lag1 += gsl_stats_lag1_autocorrelation(y, 1, N) / REPS;
+        mean_level += gsl_stats_mean(y, 1, N) / REPS;
+    }
+    /* se of one lag-1 estimate ~ sqrt((1-phi^2)/n) = 0.018; of the mean of 200, 0.0013; the
+     * estimator's bias -(1+3 phi)/n = -0.0014 is allowed for. */
+    CHECK(src && fabs(mean_lag1 - fit_phi) < 0.0014 + 4 * 0.0013,
+          "ar1 null: mean lag1 %.4f vs fitted %.4f", mean_lag1, fit_phi);
+    CHECK(fabs(mean_level - gsl_stats_mean(x, 1, N)) < 0.1, "ar1 null keeps the level (%.3f)", mean_level);
+    gsl_rng_free(rng);
+    surrogate_source_free(src);
+    surrogate_plan_free(plan);
+}
+
+/* block: every replicate is made of runs of L consecutive samples of the series (Kunsch
+ * 1989, Ann. Statist. 17:1217: the moving-block bootstrap). */
+static void test_block_null(void)
+{
+    enum { N = 125 };
+    double x[N], y[N];
+    for (size_t i = 0; i < N; i++)
+        x[i] = sin(0.1 * (double)i) + 0.001 * (double)i * (double)i; /* all values distinct */
+    surrogate_plan *plan = surrogate_plan_alloc(N, FFTW_ESTIMATE);
+    int status;
+    surrogate_source *src = surrogate_source_alloc(plan, SURROGATE_BLOCK, x, NULL, &status);
+    gsl_rng *rng = gsl_rng_alloc(gsl_rng_mt19937);
+    surrogate_draw(src, rng, y);
+    size_t L = 5, bad = 0; /* round(125^(1/3)) = 5 */
+    for (size_t i = 0; i < N; i += L) {
+        size_t from = 0;
+        while (from < N && x[from] != y[i])
+            from++;
+        for (size_t k = 1; k < L && i + k < N; k++)
+            bad += from + k >= N || x[from + k] != y[i + k];
+    }
+    CHECK(src && bad == 0, "block: runs of %zu consecutive samples (%zu mismatches)", L, bad);
     gsl_rng_free(rng);
     surrogate_source_free(src);
     surrogate_plan_free(plan);
@@ -130,6 +281,9 @@ static void test_phase_surrogates(void)
 
 void suite_surrogates(void)
 {
+    test_amplitude_adjusted();
+    test_ar1_null();
+    test_block_null();
     test_p_value();
     test_benjamini_hochberg();
     test_stream_seeds();

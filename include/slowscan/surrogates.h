@@ -8,7 +8,8 @@
  *
  * Missing samples: the source series is filled at its NaN positions by the mean of its finite
  * samples before transforming, and every surrogate gets NaN back at exactly those positions,
- * so the surrogate's windows have the same coverage as the observed ones. */
+ * so the surrogate's windows have the same coverage as the observed ones. (For aaft and iaaft
+ * the set of values is then kept exactly only when the series has no gaps.) */
 #ifndef SLOWSCAN_SURROGATES_H
 #define SLOWSCAN_SURROGATES_H
 
@@ -17,8 +18,24 @@
 
 typedef enum {
     SURROGATE_PHASE, /* Fourier phase randomisation: periodogram kept exactly (Theiler et al. 1992) */
+    SURROGATE_AAFT,  /* amplitude-adjusted FT: the set of values kept exactly (Theiler et al. 1992) */
+    SURROGATE_IAAFT, /* iterated AAFT: values exact, periodogram iterated toward the original's
+                        (Schreiber & Schmitz 1996, Phys. Rev. Lett. 77:635) */
+    SURROGATE_AR1,   /* AR(1) fitted to the series (coefficient, innovation variance, mean),
+                        simulated from its stationary distribution */
+    SURROGATE_BLOCK, /* moving-block bootstrap (Kunsch 1989, Ann. Statist. 17:1217) */
     SURROGATE_COUNT
 } surrogate_kind;
+
+typedef struct {
+    double iaaft_tolerance; /* stop when the relative spectral error improves by less (1e-4) */
+    int iaaft_max_iterations; /* (200) */
+    size_t block_length;    /* 0: round(n^(1/3)), the order Hall, Horowitz & Jing (1995,
+                               Biometrika 82:561) give for variance-type statistics */
+} surrogate_options;
+
+/* The defaults above. */
+surrogate_options surrogate_default_options(void);
 
 const char *surrogate_name(surrogate_kind kind);
 int surrogate_lookup(const char *name, surrogate_kind *kind);
@@ -36,10 +53,17 @@ size_t surrogate_plan_length(const surrogate_plan *plan);
 /* The source of surrogates of x[n] (n = plan length). *status: SLOWSCAN_ESHORT when fewer
  * than 8 finite samples, SLOWSCAN_ECONST when they do not vary, SLOWSCAN_ENOMEM. */
 surrogate_source *surrogate_source_alloc(const surrogate_plan *plan, surrogate_kind kind,
-                                         const double *x, int *status);
+                                         const double *x, const surrogate_options *options,
+                                         int *status);
 void surrogate_source_free(surrogate_source *source);
 
 /* One replicate into out[n], drawing from rng. */
 int surrogate_draw(surrogate_source *source, gsl_rng *rng, double *out);
+
+/* IAAFT only: iterations of the last draw, its final relative spectral error
+ * sqrt(sum (|S_k| - A_k)^2 / sum A_k^2), and whether it met the tolerance before the
+ * iteration limit. Counts of draws that did not converge accumulate in *unconverged. */
+void surrogate_iaaft_report(const surrogate_source *source, int *iterations, double *error,
+                            size_t *unconverged);
 
 #endif
