@@ -46,7 +46,7 @@ typedef struct {
     double fdr;
     int alternative; /* significance_alternative, -1: the indicator's own direction */
     /* outputs */
-    const char *output, *rolling_output;
+    const char *output, *rolling_output, *json_output;
     const char *format; /* "csv" or "table" */
     int progress;       /* -1: auto (stderr is a TTY) */
     const char *out_dir; /* demo */

@@ -1,6 +1,7 @@
 /* slowscan screen: the main job. For every series: detrend, rolling indicators, Kendall tau of
  * each indicator against time; then the summary, one row per series x indicator. */
 #include "cli.h"
+#include "screen.h"
 #include "slowscan/kendall.h"
 #include "slowscan/null_trend.h"
 #include "slowscan/significance.h"
@@ -8,6 +9,7 @@
 #include "slowscan/surrogates.h"
 
 #include <fftw3.h>
+#include <gsl/gsl_statistics_double.h>
 
 #include <math.h>
 #include <stdlib.h>
@@ -15,27 +17,6 @@
 
 /* Kendall tau on fewer values says little and its null distribution is coarse. */
 enum { MIN_TREND_VALUES = 8 };
-
-typedef struct {
-    char *series;
-    indicator_kind indicator;
-    size_t n;
-    double window, bandwidth, tau, p_value, q_value;
-    const char *flag;
-} screen_row;
-
-typedef struct {
-    FILE *out, *rolling;
-    screen_row *rows;
-    size_t nrows, cap;
-    kendall_workspace *kendall;
-    size_t kendall_n;
-    /* significance: made once per series length and reused (plan once, draw many) */
-    surrogate_plan *plan;
-    null_trend_workspace *null_ws[CLI_MAX_THREADS]; /* one per thread */
-    size_t null_n, nthreads;
-    double *null; /* nindicators x surrogates */
-} screen_run;
 
 static int open_outputs(const cli_options *opts, cli_outputs *outs, void *context)
 {
@@ -50,6 +31,8 @@ static int open_outputs(const cli_options *opts, cli_outputs *outs, void *contex
         if (rc == EXIT_OK)
             fputs(cli_rolling_header, run->rolling);
     }
+    if (rc == EXIT_OK && opts->json_output)
+        rc = cli_outputs_open(outs, opts, opts->json_output, "--json", &run->json);
     return rc;
 }
 
@@ -107,7 +90,9 @@ static int ready_null(screen_run *run, const cli_options *opts, size_t n)
         missing |= !(run->null_ws[k] = null_trend_alloc(n, opts->nindicators));
     if (!run->null)
         run->null = malloc(opts->nindicators * (size_t)opts->surrogates * sizeof *run->null);
-    if (missing || !run->null)
+    if (!run->sorted)
+        run->sorted = malloc((size_t)opts->surrogates * sizeof *run->sorted);
+    if (missing || !run->null || !run->sorted)
         return SLOWSCAN_ENOMEM;
     run->null_n = n;
     return SLOWSCAN_OK;
@@ -118,6 +103,26 @@ static significance_alternative alternative_of(const cli_options *opts, indicato
     if (opts->alternative >= 0)
         return (significance_alternative)opts->alternative;
     return indicator_direction(kind) > 0 ? ALTERNATIVE_INCREASING : ALTERNATIVE_TWO_SIDED;
+}
+
+static int by_double(const void *a, const void *b)
+{
+    double x = *(const double *)a, y = *(const double *)b;
+    return (x > y) - (x < y);
+}
+
+/* Quantiles of the finite null values (for --json). */
+static void null_quantiles(screen_run *run, const double *null, size_t m, screen_row *row)
+{
+    size_t k = 0;
+    for (size_t j = 0; j < m; j++)
+        if (isfinite(null[j]))
+            run->sorted[k++] = null[j];
+    row->null_used = k;
+    qsort(run->sorted, k, sizeof *run->sorted, by_double);
+    for (int q = 0; q < SCREEN_QUANTILES && k > 0; q++)
+        row->quantile[q] = gsl_stats_quantile_from_sorted_data(run->sorted, 1, k,
+                                                                screen_quantile_levels[q]);
 }
 
 /* The null distribution of every indicator's tau over the surrogates of the residual, and
@@ -147,10 +152,13 @@ static int test_series(const cli_options *opts, const prepared_series *ps, scree
                   slowscan_strerror(st));
         return st == SLOWSCAN_ENOMEM ? EXIT_INTERNAL : EXIT_BAD_INPUT;
     }
-    for (size_t j = 0; j < opts->nindicators; j++)
+    for (size_t j = 0; j < opts->nindicators; j++) {
         if (!isnan(rows[j].tau))
             rows[j].p_value = significance_p_value(rows[j].tau, run->null + j * m, m,
-                                                   alternative_of(opts, rows[j].indicator), NULL);
+                                                   alternative_of(opts, rows[j].indicator),
+                                                   &rows[j].null_used);
+        null_quantiles(run, run->null + j * m, m, &rows[j]);
+    }
     return EXIT_OK;
 }
 
@@ -277,6 +285,8 @@ static int finish(const cli_options *opts, void *context)
     int rc = decide(opts, run);
     if (rc != EXIT_OK)
         return rc;
+    if (run->json)
+        screen_write_json(run->json, opts, run);
     if (strcmp(opts->format, "table") == 0)
         write_table(run);
     else
@@ -300,5 +310,6 @@ int cmd_screen(const cli_options *opts)
     for (size_t k = 0; k < run.nthreads; k++)
         null_trend_free(run.null_ws[k]);
     free(run.null);
+    free(run.sorted);
     return rc;
 }

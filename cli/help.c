@@ -107,6 +107,8 @@ static void help_screen(FILE *out)
           "  --threads N          threads for the surrogates (default: all cores); the output\n"
           "                       is identical for any N\n"
           "  --rolling FILE       also write the rolling indicators (as 'indicators' does)\n"
+          "  --json FILE          also write the summary as JSON, with the quantiles of each\n"
+          "                       null distribution and every parameter of the run\n"
           "  --format csv|table   summary as CSV (default) or as an aligned table\n\n", out);
     fputs(cautions, out);
 }

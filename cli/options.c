@@ -77,6 +77,7 @@ static int set_deseason(cli_options *o, const char *n, const char *v) { return p
 static int set_bandwidth(cli_options *o, const char *n, const char *v) { return parse_length(n, v, &o->bandwidth); }
 static int set_window(cli_options *o, const char *n, const char *v) { return parse_length(n, v, &o->window); }
 static int set_output(cli_options *o, const char *n, const char *v) { (void)n; o->output = v; return EXIT_OK; }
+static int set_json(cli_options *o, const char *n, const char *v) { (void)n; o->json_output = v; return EXIT_OK; }
 static int set_rolling(cli_options *o, const char *n, const char *v) { (void)n; o->rolling_output = v; return EXIT_OK; }
 static int set_out_dir(cli_options *o, const char *n, const char *v) { (void)n; o->out_dir = v; return EXIT_OK; }
 static int set_progress(cli_options *o, const char *n, const char *v) { (void)v; o->progress = strcmp(n, "--progress") == 0; return EXIT_OK; }
@@ -273,6 +274,7 @@ static const option_spec options[] = {
     {"--fdr", 1, C_SCREEN, set_fdr},
     {"--alternative", 1, C_SCREEN, set_alternative},
     {"--rolling", 1, C_SCREEN, set_rolling},
+    {"--json", 1, C_SCREEN, set_json},
     {"--format", 1, C_SCREEN, set_format},
     {"-o", 1, C_SERIES, set_output},
     {"--output", 1, C_SERIES, set_output},

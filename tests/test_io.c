@@ -133,8 +133,8 @@ static void test_cells_and_rows(void)
     int rc = read_text("t,a,b,c\n0,NA,,NaN\n1,nan,  ,NAN\n2,na,\"\",1e3\n", &t, &err);
     CHECK(rc == SLOWSCAN_OK && t.n == 3 && isnan(t.values[0][0]) && isnan(t.values[1][0]) &&
               isnan(t.values[2][0]) && isnan(t.values[0][1]) && isnan(t.values[1][1]) &&
-              isnan(t.values[2][1]) && isnan(t.values[0][2]) && isnan(t.values[1][1]) &&
-              t.values[2][2] == 1000, "missing cells: %s", err.message);
+              isnan(t.values[0][2]) && isnan(t.values[1][2]) && isnan(t.values[2][0]) &&
+              isnan(t.values[2][1]) && t.values[2][2] == 1000, "missing cells: %s", err.message);
     series_table_free(&t);
     /* Spaces around names and cells are trimmed; C number syntax via strtod (C11 7.22.1.3). */
     rc = read_text(" t , a \n 0 , -2.5E-1 \n 1 ,\" +4 \"\n2, 1e-400\n", &t, &err);
@@ -294,7 +294,6 @@ static void test_stdin(void)
     char path[512];
     snprintf(path, sizeof path, "%s", check_tmp_path("stdin.csv"));
     check_write_file(path, "t;a\n0;1\n1;2\n2;x\n");
-    fflush(stdin);
     int saved = dup(0), fd = open(path, O_RDONLY);
     CHECK(saved >= 0 && fd >= 0 && dup2(fd, 0) == 0, "redirect standard input");
     close(fd);
@@ -395,13 +394,15 @@ static void test_resample(void)
               isnan(t.values[0][2]) && isnan(t.values[0][3]) && t.values[0][4] == 3 &&
               t.values[0][5] == 1.5 && t.values[0][6] == 0, "missing neighbours: %s", err.message);
     series_table_free(&t);
-    /* 3 * 0.2 is 0.6000000000000001 in binary: still a hit on the sample at 0.6, so the
-     * missing sample at 0.7 does not spoil it. 0.9 / 0.3 rounds just past 3: 4 points. */
+    /* 0.9 / 0.3 is 3.0000000000000004 in binary and 3 * 0.3 is 0.8999999999999999: still
+     * 4 grid points, the last one a hit on the sample at 0.9 (IEEE 754 double rounding). */
     read_text("t,a\n0,0\n0.3,3\n0.6,6\n0.7,NA\n0.9,9\n", &t, &err);
     rc = table_resample(&t, 0.3, &err);
     CHECK(rc == SLOWSCAN_OK && t.n == 4 && t.values[0][2] == 6 && t.values[0][3] == 9,
           "grid points hit samples despite rounding: n %zu: %s", t.n, err.message);
     series_table_free(&t);
+    /* 3 * 0.2 is 0.6000000000000001: still a hit on the sample at 0.6, so the missing
+     * sample at 0.7 does not spoil it. */
     read_text("t,a\n0,0\n0.2,2\n0.4,4\n0.6,6\n0.7,NA\n1,10\n", &t, &err);
     rc = table_resample(&t, 0.2, &err);
     CHECK(rc == SLOWSCAN_OK && t.n == 6 && t.values[0][3] == 6 && isnan(t.values[0][4]) &&

@@ -188,8 +188,26 @@ static void test_surrogates_command(void)
           "surrogate periodograms equal the series' (%g replicates, max rel. diff %.3g)", v[0], v[1]);
 }
 
+/* --json holds the same numbers as the CSV and the run's parameters; checked with Python's
+ * json module (RFC 8259). */
+static void test_json(void)
+{
+    const char *in = check_tmp_path("json-in.csv"), *js = check_tmp_path("out.json");
+    const char *csv = check_tmp_path("json-out.csv");
+    write_series_csv(in, 3, 200, ar1_sample, 12);
+    char cmd[1400];
+    snprintf(cmd, sizeof cmd, "%s screen --surrogates 49 --seed 4 --json %s -o %s %s",
+             check_binary(), js, csv, in);
+    CHECK(check_run(cmd, NULL, NULL) == 0, "screen --json runs");
+    snprintf(cmd, sizeof cmd, "json_matches_csv.py %s %s", js, csv);
+    double v[4] = {0};
+    CHECK(check_python(cmd, v, 4) == 4 && v[0] == 6 && v[1] == 1 && v[2] == 4 && v[3] == 49,
+          "json: %g rows, agree %g, seed %g, surrogates %g", v[0], v[1], v[2], v[3]);
+}
+
 void suite_significance(void)
 {
+    test_json();
     test_surrogates_command();
     test_determinism();
     test_size();

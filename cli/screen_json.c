@@ -1,0 +1,114 @@
+/* screen --json: the summary plus the null distribution's quantiles and every parameter
+ * needed to reproduce the run (RFC 8259 JSON; non-finite numbers are written as null). */
+#include "screen.h"
+
+#include <math.h>
+#include <string.h>
+
+#ifndef SLOWSCAN_VERSION
+#define SLOWSCAN_VERSION "unknown"
+#endif
+
+const double screen_quantile_levels[SCREEN_QUANTILES] = {0.05, 0.25, 0.5, 0.75, 0.95};
+
+static void json_string(FILE *fp, const char *s)
+{
+    fputc('"', fp);
+    for (const unsigned char *c = (const unsigned char *)s; *c; c++) {
+        if (*c == '"' || *c == '\\')
+            fprintf(fp, "\\%c", *c);
+        else if (*c < 0x20)
+            fprintf(fp, "\\u%04x", *c);
+        else
+            fputc(*c, fp);
+    }
+    fputc('"', fp);
+}
+
+static void json_number(FILE *fp, double v)
+{
+    if (isfinite(v))
+        fprintf(fp, "%.17g", v);
+    else
+        fputs("null", fp);
+}
+
+static void json_length(FILE *fp, const char *key, const cli_length *len)
+{
+    fprintf(fp, "    \"%s\": ", key);
+    json_string(fp, len->text);
+    fputs(",\n", fp);
+}
+
+static void write_parameters(FILE *fp, const cli_options *o)
+{
+    fprintf(fp, "  \"program\": \"slowscan\",\n  \"version\": \"%s\",\n  \"parameters\": {\n",
+            SLOWSCAN_VERSION);
+    fputs("    \"inputs\": [", fp);
+    for (size_t f = 0; f < o->nfiles; f++) {
+        fputs(f ? ", " : "", fp);
+        json_string(fp, o->files[f]);
+    }
+    fputs("],\n    \"time\": ", fp);
+    o->time_column ? json_string(fp, o->time_column) : (void)fputs("null", fp);
+    fputs(",\n    \"vars\": ", fp);
+    o->vars ? json_string(fp, o->vars) : (void)fputs("null", fp);
+    const struct { const char *key; double v; } numbers[] = {
+        {"from", o->from}, {"until", o->until}, {"resample", o->resample},
+        {"deseason", o->deseason}, {"min_coverage", o->min_coverage}, {"fdr", o->fdr},
+        {"iaaft_tol", o->null_options.iaaft_tolerance}};
+    for (size_t k = 0; k < sizeof numbers / sizeof numbers[0]; k++) {
+        fprintf(fp, ",\n    \"%s\": ", numbers[k].key);
+        json_number(fp, numbers[k].v);
+    }
+    fprintf(fp, ",\n    \"log\": %s,\n    \"detrend\": ", o->log_values ? "true" : "false");
+    json_string(fp, o->detrend_text);
+    fputs(",\n", fp);
+    json_length(fp, "bandwidth", &o->bandwidth);
+    json_length(fp, "window", &o->window);
+    fputs("    \"indicators\": ", fp);
+    json_string(fp, o->indicators_text);
+    fprintf(fp, ",\n    \"recovery\": \"%s\",\n    \"null\": \"%s\",\n    \"surrogates\": %ld,\n"
+            "    \"iaaft_iterations\": %d,\n    \"block_length\": %zu,\n    \"alternative\": \"%s\",\n"
+            "    \"seed\": %lu\n  },\n",
+            o->recovery == RECOVERY_INCREMENTS ? "increments" : "log",
+            surrogate_name((surrogate_kind)o->null_model), o->surrogates,
+            o->null_options.iaaft_max_iterations, o->null_options.block_length,
+            o->alternative < 0 ? "per-indicator"
+            : o->alternative == 0 ? "increasing"
+            : o->alternative == 1 ? "decreasing" : "two-sided",
+            o->seed);
+}
+
+static void write_row(FILE *fp, const screen_row *row)
+{
+    fputs("    {\"series\": ", fp);
+    json_string(fp, row->series);
+    fprintf(fp, ", \"indicator\": \"%s\", \"n\": %zu", indicator_name(row->indicator), row->n);
+    const struct { const char *key; double v; } cells[] = {
+        {"window", row->window}, {"bandwidth", row->bandwidth}, {"tau", row->tau},
+        {"p_value", row->p_value}, {"q_value", row->q_value}};
+    for (size_t k = 0; k < sizeof cells / sizeof cells[0]; k++) {
+        fprintf(fp, ", \"%s\": ", cells[k].key);
+        json_number(fp, cells[k].v);
+    }
+    fprintf(fp, ", \"flag\": \"%s\", \"null_count\": %zu, \"null_quantiles\": {", row->flag,
+            row->null_used);
+    for (int q = 0; q < SCREEN_QUANTILES; q++) {
+        fprintf(fp, "%s\"%g\": ", q ? ", " : "", screen_quantile_levels[q]);
+        json_number(fp, row->null_used ? row->quantile[q] : NAN);
+    }
+    fputs("}}", fp);
+}
+
+void screen_write_json(FILE *fp, const cli_options *opts, const screen_run *run)
+{
+    fputs("{\n", fp);
+    write_parameters(fp, opts);
+    fputs("  \"results\": [\n", fp);
+    for (size_t r = 0; r < run->nrows; r++) {
+        write_row(fp, &run->rows[r]);
+        fputs(r + 1 < run->nrows ? ",\n" : "\n", fp);
+    }
+    fputs("  ]\n}\n", fp);
+}
