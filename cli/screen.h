@@ -3,34 +3,22 @@
 #define SLOWSCAN_CLI_SCREEN_H
 
 #include "cli.h"
-#include "slowscan/kendall.h"
-
-/* Quantiles of the null distribution reported in --json. */
-enum { SCREEN_QUANTILES = 5 };
-extern const double screen_quantile_levels[SCREEN_QUANTILES];
+#include "trend_test.h"
 
 typedef struct {
     char *series;
     indicator_kind indicator;
     size_t n;
-    double window, bandwidth, tau, p_value, q_value;
+    double window, bandwidth, q_value;
+    trend_result result; /* tau, p, the null's quantiles */
     const char *flag;
-    size_t null_used;                       /* finite null values behind p */
-    double quantile[SCREEN_QUANTILES];      /* of the null tau distribution */
 } screen_row;
 
 typedef struct {
     FILE *out, *rolling;
     screen_row *rows;
     size_t nrows, cap;
-    kendall_workspace *kendall;
-    size_t kendall_n;
-    /* significance: made once per series length and reused (plan once, draw many) */
-    surrogate_plan *plan;
-    null_trend_workspace *null_ws[CLI_MAX_THREADS]; /* one per thread */
-    size_t null_n, nthreads;
-    double *null; /* nindicators x surrogates */
-    double *sorted; /* surrogates: scratch for the quantiles */
+    trend_tester tester;
     FILE *json;
 } screen_run;
 

@@ -9,8 +9,6 @@
 #define SLOWSCAN_VERSION "unknown"
 #endif
 
-const double screen_quantile_levels[SCREEN_QUANTILES] = {0.05, 0.25, 0.5, 0.75, 0.95};
-
 static void json_string(FILE *fp, const char *s)
 {
     fputc('"', fp);
@@ -86,17 +84,17 @@ static void write_row(FILE *fp, const screen_row *row)
     json_string(fp, row->series);
     fprintf(fp, ", \"indicator\": \"%s\", \"n\": %zu", indicator_name(row->indicator), row->n);
     const struct { const char *key; double v; } cells[] = {
-        {"window", row->window}, {"bandwidth", row->bandwidth}, {"tau", row->tau},
-        {"p_value", row->p_value}, {"q_value", row->q_value}};
+        {"window", row->window}, {"bandwidth", row->bandwidth}, {"tau", row->result.tau},
+        {"p_value", row->result.p_value}, {"q_value", row->q_value}};
     for (size_t k = 0; k < sizeof cells / sizeof cells[0]; k++) {
         fprintf(fp, ", \"%s\": ", cells[k].key);
         json_number(fp, cells[k].v);
     }
     fprintf(fp, ", \"flag\": \"%s\", \"null_count\": %zu, \"null_quantiles\": {", row->flag,
-            row->null_used);
-    for (int q = 0; q < SCREEN_QUANTILES; q++) {
-        fprintf(fp, "%s\"%g\": ", q ? ", " : "", screen_quantile_levels[q]);
-        json_number(fp, row->null_used ? row->quantile[q] : NAN);
+            row->result.null_used);
+    for (int q = 0; q < TREND_QUANTILES; q++) {
+        fprintf(fp, "%s\"%g\": ", q ? ", " : "", trend_quantile_levels[q]);
+        json_number(fp, row->result.null_used ? row->result.quantile[q] : NAN);
     }
     fputs("}}", fp);
 }

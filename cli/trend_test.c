@@ -1,0 +1,150 @@
+/* The shared trend test: Kendall tau, surrogate null, p-value, null quantiles. */
+#include "trend_test.h"
+#include "slowscan/significance.h"
+#include "slowscan/status.h"
+
+#include <fftw3.h>
+#include <gsl/gsl_statistics_double.h>
+#include <math.h>
+#include <stdlib.h>
+
+/* Kendall tau on fewer values says little and its null distribution is coarse. */
+enum { MIN_TREND_VALUES = 8 };
+
+const double trend_quantile_levels[TREND_QUANTILES] = {0.05, 0.25, 0.5, 0.75, 0.95};
+
+/* Kendall tau of one indicator path against time; NaN with a reason when it cannot be had. */
+static double trend_of(trend_tester *run, const prepared_series *ps, const double *values,
+                       const char **reason)
+{
+    double tau = NAN;
+    size_t used = 0;
+    if (run->kendall_n < ps->n) {
+        kendall_free(run->kendall);
+        run->kendall = kendall_alloc(ps->n);
+        run->kendall_n = run->kendall ? ps->n : 0;
+    }
+    if (!run->kendall) {
+        *reason = "out of memory";
+        return NAN;
+    }
+    int st = kendall_tau_b(run->kendall, ps->time, values, ps->n, &tau, &used);
+    if (st == SLOWSCAN_ECONST)
+        *reason = "the indicator does not vary";
+    else if (st != SLOWSCAN_OK || used < MIN_TREND_VALUES)
+        *reason = "fewer than 8 finite indicator values";
+    return used < MIN_TREND_VALUES ? NAN : tau;
+}
+
+/* Everything sized by the series length is remade only when the length changes. */
+static int ready_null(trend_tester *run, const cli_options *opts, size_t n)
+{
+    if (run->null_n == n)
+        return SLOWSCAN_OK;
+    surrogate_plan_free(run->plan);
+    for (size_t k = 0; k < run->nthreads; k++)
+        null_trend_free(run->null_ws[k]);
+    run->null_n = 0;
+    run->nthreads = (size_t)opts->threads;
+    run->plan = surrogate_plan_alloc(n, FFTW_ESTIMATE);
+    int missing = !run->plan;
+    for (size_t k = 0; k < run->nthreads; k++)
+        missing |= !(run->null_ws[k] = null_trend_alloc(n, opts->nindicators));
+    if (!run->null)
+        run->null = malloc(opts->nindicators * (size_t)opts->surrogates * sizeof *run->null);
+    if (!run->sorted)
+        run->sorted = malloc((size_t)opts->surrogates * sizeof *run->sorted);
+    if (missing || !run->null || !run->sorted)
+        return SLOWSCAN_ENOMEM;
+    run->null_n = n;
+    return SLOWSCAN_OK;
+}
+
+static significance_alternative alternative_of(const cli_options *opts, indicator_kind kind)
+{
+    if (opts->alternative >= 0)
+        return (significance_alternative)opts->alternative;
+    return indicator_direction(kind) > 0 ? ALTERNATIVE_INCREASING : ALTERNATIVE_TWO_SIDED;
+}
+
+static int by_double(const void *a, const void *b)
+{
+    double x = *(const double *)a, y = *(const double *)b;
+    return (x > y) - (x < y);
+}
+
+/* Quantiles of the finite null values (for --json). */
+static void null_quantiles(trend_tester *run, const double *null, size_t m, trend_result *row)
+{
+    size_t k = 0;
+    for (size_t j = 0; j < m; j++)
+        if (isfinite(null[j]))
+            run->sorted[k++] = null[j];
+    row->null_used = k;
+    qsort(run->sorted, k, sizeof *run->sorted, by_double);
+    for (int q = 0; q < TREND_QUANTILES && k > 0; q++)
+        row->quantile[q] = gsl_stats_quantile_from_sorted_data(run->sorted, 1, k,
+                                                                trend_quantile_levels[q]);
+}
+
+/* The null distribution of every indicator's tau over the surrogates of the residual, and
+ * the p-values of the rows just recorded for this series. */
+static int test_series(const cli_options *opts, const prepared_series *ps, trend_tester *run,
+                       trend_result *rows)
+{
+    int st = ready_null(run, opts, ps->n);
+    rolling_spec spec = {ps->window, opts->min_coverage, ps->dt, opts->recovery};
+    int need_level = 0;
+    for (size_t j = 0; j < opts->nindicators; j++)
+        need_level |= indicator_needs_level(opts->indicators[j]);
+    null_trend_job job = {&spec, opts->indicators, opts->nindicators, ps->time,
+                          need_level ? ps->trend : NULL, opts->seed, ps->name,
+                          surrogate_name((surrogate_kind)opts->null_model)};
+    size_t m = (size_t)opts->surrogates;
+    cli_null_task task = {run->plan, (surrogate_kind)opts->null_model, &opts->null_options,
+                          ps->residual, &job, m, run->null, 0};
+    if (st == SLOWSCAN_OK)
+        st = cli_null_parallel(&task, run->null_ws, run->nthreads);
+    if (task.unconverged)
+        cli_warning("%s: column '%s': %zu of %zu iaaft surrogates did not converge within %d "
+                    "iterations (--iaaft-iterations, --iaaft-tol)", ps->source, ps->name,
+                    task.unconverged, m, opts->null_options.iaaft_max_iterations);
+    if (st != SLOWSCAN_OK) {
+        cli_error("%s: column '%s': surrogate null failed: %s", ps->source, ps->name,
+                  slowscan_strerror(st));
+        return st == SLOWSCAN_ENOMEM ? EXIT_INTERNAL : EXIT_BAD_INPUT;
+    }
+    for (size_t j = 0; j < opts->nindicators; j++) {
+        if (!isnan(rows[j].tau))
+            rows[j].p_value = significance_p_value(rows[j].tau, run->null + j * m, m,
+                                                   alternative_of(opts, opts->indicators[j]),
+                                                   &rows[j].null_used);
+        null_quantiles(run, run->null + j * m, m, &rows[j]);
+    }
+    return EXIT_OK;
+}
+
+
+int trend_test(trend_tester *run, const cli_options *opts, const prepared_series *ps,
+               double *const *values, trend_result *results)
+{
+    for (size_t j = 0; j < opts->nindicators; j++) {
+        trend_result *r = &results[j];
+        *r = (trend_result){NAN, NAN, 0, {NAN, NAN, NAN, NAN, NAN}, "the series has no variation"};
+        if (!ps->constant)
+            r->tau = trend_of(run, ps, values[j], &r->reason);
+    }
+    if (opts->surrogates > 0 && !ps->constant)
+        return test_series(opts, ps, run, results);
+    return EXIT_OK;
+}
+
+void trend_tester_free(trend_tester *run)
+{
+    kendall_free(run->kendall);
+    surrogate_plan_free(run->plan);
+    for (size_t k = 0; k < run->nthreads; k++)
+        null_trend_free(run->null_ws[k]);
+    free(run->null);
+    free(run->sorted);
+}
