@@ -21,6 +21,9 @@ typedef struct {
     const char *text; /* as the user wrote it, for messages */
 } cli_length;
 
+/* A list of lengths for robustness grids: "A:B:STEP" or "A,B,C" (all in % or all in time units). */
+enum { CLI_MAX_GRID = 64 };
+
 typedef struct {
     const char *command;
     /* input */
@@ -46,7 +49,11 @@ typedef struct {
     double fdr;
     int alternative; /* significance_alternative, -1: the indicator's own direction */
     /* outputs */
-    const char *output, *rolling_output, *json_output;
+    const char *output, *rolling_output, *json_output, *fractions_output;
+    /* robustness grid */
+    cli_length windows[CLI_MAX_GRID], bandwidths[CLI_MAX_GRID];
+    size_t nwindows, nbandwidths;
+    char grid_text[2][CLI_MAX_GRID][32];
     const char *format; /* "csv" or "table" */
     int progress;       /* -1: auto (stderr is a TTY) */
     const char *out_dir; /* demo */
@@ -131,6 +138,11 @@ typedef int (*series_visitor)(const cli_options *opts, const prepared_series *ps
 /* Prepares every series of the inputs in turn and hands it to `visit`. */
 int cli_for_each_series(const cli_options *opts, const cli_inputs *in, series_visitor visit,
                         void *context);
+/* Called once per series of the inputs, before any preparation (commands that prepare a
+ * series several ways, like robustness). */
+typedef int (*table_visitor)(const cli_options *opts, const series_table *table, size_t k,
+                             void *context);
+
 /* How a series command runs: open its outputs (after the inputs are read, before any work),
  * visit every series, then finish (write what needs all series). NULL hooks are skipped. */
 typedef struct {
@@ -138,6 +150,7 @@ typedef struct {
     series_visitor visit;
     int (*finish)(const cli_options *opts, void *context);
     void *context;
+    table_visitor visit_table; /* used instead of visit when set */
 } series_command;
 /* Load, open, visit, finish, then commit every output — or remove them all on failure. */
 int cli_run_series_command(const cli_options *opts, const series_command *command);
@@ -168,5 +181,6 @@ int cmd_indicators(const cli_options *opts);
 int cmd_screen(const cli_options *opts);
 int cmd_demo(const cli_options *opts);
 int cmd_surrogates(const cli_options *opts);
+int cmd_robustness(const cli_options *opts);
 
 #endif

@@ -182,7 +182,7 @@ static int finish(const cli_options *opts, void *context)
 int cmd_screen(const cli_options *opts)
 {
     screen_run run = {0};
-    series_command cmd = {open_outputs, screen_series, finish, &run};
+    series_command cmd = {open_outputs, screen_series, finish, &run, NULL};
     if (opts->surrogates > 0 && opts->surrogates < 19)
         cli_warning("option --surrogates %ld: with fewer than 19 surrogates no p-value can reach "
                     "0.05 (the smallest is 1/(M+1))", opts->surrogates);

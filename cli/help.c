@@ -12,6 +12,7 @@ static const char overview[] =
     "  screen      the main job: detrend, rolling indicators, Kendall trend per series\n"
     "  indicators  rolling-window indicators per series (series,time,indicator,value)\n"
     "  detrend     trend and residual per series (series,time,value,trend,residual)\n"
+    "  robustness  the trend test over a grid of windows x bandwidths\n"
     "  surrogates  null-model replicates of each residual (series,replicate,time,value)\n"
     "  demo        write the invented demo data set (lake stations) to data/ or --out DIR\n"
     "  help        this text, or 'slowscan help COMMAND'\n"
@@ -54,6 +55,23 @@ static const char cautions[] =
     "  Decisions with consequences for people belong to the responsible experts and\n"
     "  authorities; treat this output as one input to their judgement.\n";
 
+static const char testing_options[] =
+    "significance:\n"
+    "  --surrogates M       surrogate replicates (screen: 1000, robustness: 0 = tau only)\n"
+    "  --null MODEL         null model for the surrogates of the residual:\n"
+    "                       phase (default): Fourier phases randomised, periodogram kept;\n"
+    "                       aaft: amplitude-adjusted, the set of values kept;\n"
+    "                       iaaft: iterated aaft, values kept, periodogram iterated;\n"
+    "                       ar1: the fitted AR(1), simulated; block: moving-block bootstrap\n"
+    "  --iaaft-tol T        iaaft stops when its spectral error improves by less than\n"
+    "                       this fraction (default 1e-4); --iaaft-iterations K caps it (200)\n"
+    "  --block-length L     block length in samples (default round(n^(1/3)), the order\n"
+    "                       Hall, Horowitz & Jing 1995 give for variance-type statistics)\n"
+    "  --alternative increasing|decreasing|two-sided  override each indicator's default\n"
+    "  --seed S             random seed (default 1); same seed, same numbers\n"
+    "  --threads N          threads for the surrogates (default: all cores); the output\n"
+    "                       is identical for any N\n";
+
 static void help_detrend(FILE *out)
 {
     fputs("usage: slowscan detrend [options] FILE...\n\n"
@@ -90,26 +108,33 @@ static void help_screen(FILE *out)
           out);
     fputs(input_options, out);
     fputs(rolling_options, out);
+    fputs(testing_options, out);
     fputs("screening:\n"
-          "  --surrogates M       surrogate replicates (default 1000; 0: tau only)\n"
-          "  --null MODEL         null model for the surrogates of the residual:\n"
-          "                       phase (default): Fourier phases randomised, periodogram kept;\n"
-          "                       aaft: amplitude-adjusted, the set of values kept;\n"
-          "                       iaaft: iterated aaft, values kept, periodogram iterated;\n"
-          "                       ar1: the fitted AR(1), simulated; block: moving-block bootstrap\n"
-          "  --iaaft-tol T        iaaft stops when its spectral error improves by less than\n"
-          "                       this fraction (default 1e-4); --iaaft-iterations K caps it (200)\n"
-          "  --block-length L     block length in samples (default round(n^(1/3)), the order\n"
-          "                       Hall, Horowitz & Jing 1995 give for variance-type statistics)\n"
-          "  --alternative increasing|decreasing|two-sided  override each indicator's default\n"
           "  --fdr Q              false-discovery rate for the flag (default 0.05)\n"
-          "  --seed S             random seed (default 1); same seed, same numbers\n"
-          "  --threads N          threads for the surrogates (default: all cores); the output\n"
-          "                       is identical for any N\n"
           "  --rolling FILE       also write the rolling indicators (as 'indicators' does)\n"
           "  --json FILE          also write the summary as JSON, with the quantiles of each\n"
           "                       null distribution and every parameter of the run\n"
           "  --format csv|table   summary as CSV (default) or as an aligned table\n\n", out);
+    fputs(cautions, out);
+}
+
+static void help_robustness(FILE *out)
+{
+    fputs("usage: slowscan robustness [options] FILE...\n\n"
+          "Repeats the trend test of 'screen' over a grid of windows x bandwidths and writes\n"
+          "series,indicator,window,bandwidth,tau,p_value (window and bandwidth in time units;\n"
+          "p_value NA unless --surrogates M is given).\n\n", out);
+    fputs(input_options, out);
+    fputs(rolling_options, out);
+    fputs("grid:\n"
+          "  --windows LIST       windows as A:B:STEP or A,B,C (default 25%:75%:5%)\n"
+          "  --bandwidths LIST    bandwidths likewise (default 5%:25%:5%); ignored by detrending\n"
+          "                       methods without a bandwidth\n"
+          "  --fractions FILE     per series x indicator: cells, share with tau > 0, share with\n"
+          "                       p <= 0.05 (series,indicator,cells,share_tau_positive,\n"
+          "                       share_p_at_most_0.05)\n", out);
+    fputs(testing_options, out);
+    fputs("\n", out);
     fputs(cautions, out);
 }
 
@@ -150,6 +175,7 @@ int cli_help(const char *topic, FILE *out)
                   {"indicators", help_indicators},
                   {"screen", help_screen},
                   {"surrogates", help_surrogates},
+                  {"robustness", help_robustness},
                   {"demo", help_demo}};
     if (!topic) {
         fputs(overview, out);
@@ -162,6 +188,6 @@ int cli_help(const char *topic, FILE *out)
             topics[i].print(out);
             return EXIT_OK;
         }
-    fprintf(stderr, "slowscan: no help for '%s' (commands: screen, indicators, detrend, surrogates, demo)\n", topic);
+    fprintf(stderr, "slowscan: no help for '%s' (commands: screen, robustness, indicators, detrend, surrogates, demo)\n", topic);
     return EXIT_BAD_INPUT;
 }

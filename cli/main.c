@@ -17,6 +17,7 @@ static const struct {
     {"detrend", cmd_detrend},
     {"indicators", cmd_indicators},
     {"screen", cmd_screen},
+    {"robustness", cmd_robustness},
     {"surrogates", cmd_surrogates},
     {"demo", cmd_demo},
 };

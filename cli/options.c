@@ -10,9 +10,10 @@
 #include <string.h>
 #include <unistd.h>
 
-enum { C_DETREND = 1, C_INDICATORS = 2, C_SCREEN = 4, C_DEMO = 8, C_SURROGATES = 16 };
-#define C_SERIES (C_DETREND | C_INDICATORS | C_SCREEN | C_SURROGATES)
-#define C_ROLLING (C_INDICATORS | C_SCREEN)
+enum { C_DETREND = 1, C_INDICATORS = 2, C_SCREEN = 4, C_DEMO = 8, C_SURROGATES = 16, C_ROBUST = 32 };
+#define C_SERIES (C_DETREND | C_INDICATORS | C_SCREEN | C_SURROGATES | C_ROBUST)
+#define C_ROLLING (C_INDICATORS | C_SCREEN | C_ROBUST)
+#define C_TESTING (C_SCREEN | C_ROBUST)
 
 typedef int (*option_setter)(cli_options *opts, const char *name, const char *value);
 
@@ -77,6 +78,71 @@ static int set_deseason(cli_options *o, const char *n, const char *v) { return p
 static int set_bandwidth(cli_options *o, const char *n, const char *v) { return parse_length(n, v, &o->bandwidth); }
 static int set_window(cli_options *o, const char *n, const char *v) { return parse_length(n, v, &o->window); }
 static int set_output(cli_options *o, const char *n, const char *v) { (void)n; o->output = v; return EXIT_OK; }
+/* "A:B:STEP" (inclusive of B within rounding) or "A,B,C"; every entry a positive length,
+ * all in % or all in time units. */
+static int parse_grid(const char *name, const char *v, cli_length *items, char (*texts)[32],
+                      size_t *count)
+{
+    char buf[512];
+    if (strlen(v) >= sizeof buf) {
+        cli_error("option %s: list too long", name);
+        return EXIT_BAD_INPUT;
+    }
+    strcpy(buf, v);
+    *count = 0;
+    char *colon = strchr(buf, ':');
+    if (colon) {
+        cli_length lo, hi, step;
+        char *second = colon + 1, *third = strchr(second, ':');
+        if (!third) {
+            cli_error("option %s: '%s' is not A:B:STEP", name, v);
+            return EXIT_BAD_INPUT;
+        }
+        *colon = *third = '\0';
+        if (parse_length(name, buf, &lo) || parse_length(name, second, &hi) ||
+            parse_length(name, third + 1, &step))
+            return EXIT_BAD_INPUT;
+        if (lo.percent != hi.percent || lo.percent != step.percent || hi.amount < lo.amount) {
+            cli_error("option %s: '%s' mixes units or runs backwards", name, v);
+            return EXIT_BAD_INPUT;
+        }
+        for (double a = lo.amount; a <= hi.amount * (1 + 1e-9); a = lo.amount + (double)*count * step.amount) {
+            if (*count == CLI_MAX_GRID) {
+                cli_error("option %s: more than %d values", name, CLI_MAX_GRID);
+                return EXIT_BAD_INPUT;
+            }
+            snprintf(texts[*count], 32, lo.percent ? "%g%%" : "%g", a);
+            items[*count] = (cli_length){a, lo.percent, texts[*count]};
+            (*count)++;
+        }
+        return EXIT_OK;
+    }
+    for (char *save = NULL, *tok = strtok_r(buf, ",", &save); tok; tok = strtok_r(NULL, ",", &save)) {
+        if (*count == CLI_MAX_GRID) {
+            cli_error("option %s: more than %d values", name, CLI_MAX_GRID);
+            return EXIT_BAD_INPUT;
+        }
+        snprintf(texts[*count], 32, "%s", tok);
+        if (parse_length(name, texts[*count], &items[*count]))
+            return EXIT_BAD_INPUT;
+        (*count)++;
+    }
+    if (*count == 0) {
+        cli_error("option %s: no value given", name);
+        return EXIT_BAD_INPUT;
+    }
+    return EXIT_OK;
+}
+
+static int set_windows(cli_options *o, const char *n, const char *v)
+{
+    return parse_grid(n, v, o->windows, o->grid_text[0], &o->nwindows);
+}
+static int set_bandwidths(cli_options *o, const char *n, const char *v)
+{
+    return parse_grid(n, v, o->bandwidths, o->grid_text[1], &o->nbandwidths);
+}
+static int set_fractions(cli_options *o, const char *n, const char *v) { (void)n; o->fractions_output = v; return EXIT_OK; }
 static int set_json(cli_options *o, const char *n, const char *v) { (void)n; o->json_output = v; return EXIT_OK; }
 static int set_rolling(cli_options *o, const char *n, const char *v) { (void)n; o->rolling_output = v; return EXIT_OK; }
 static int set_out_dir(cli_options *o, const char *n, const char *v) { (void)n; o->out_dir = v; return EXIT_OK; }
@@ -266,29 +332,32 @@ static const option_spec options[] = {
     {"--indicators", 1, C_ROLLING, set_indicators},
     {"--min-coverage", 1, C_ROLLING, set_min_coverage},
     {"--recovery", 1, C_ROLLING, set_recovery},
-    {"--surrogates", 1, C_SCREEN | C_SURROGATES, set_surrogates},
-    {"--null", 1, C_SCREEN | C_SURROGATES, set_null},
-    {"--iaaft-tol", 1, C_SCREEN | C_SURROGATES, set_iaaft_tol},
-    {"--iaaft-iterations", 1, C_SCREEN | C_SURROGATES, set_iaaft_iterations},
-    {"--block-length", 1, C_SCREEN | C_SURROGATES, set_block_length},
-    {"--fdr", 1, C_SCREEN, set_fdr},
-    {"--alternative", 1, C_SCREEN, set_alternative},
+    {"--surrogates", 1, C_TESTING | C_SURROGATES, set_surrogates},
+    {"--null", 1, C_TESTING | C_SURROGATES, set_null},
+    {"--iaaft-tol", 1, C_TESTING | C_SURROGATES, set_iaaft_tol},
+    {"--iaaft-iterations", 1, C_TESTING | C_SURROGATES, set_iaaft_iterations},
+    {"--block-length", 1, C_TESTING | C_SURROGATES, set_block_length},
+    {"--fdr", 1, C_TESTING, set_fdr},
+    {"--alternative", 1, C_TESTING, set_alternative},
     {"--rolling", 1, C_SCREEN, set_rolling},
     {"--json", 1, C_SCREEN, set_json},
+    {"--windows", 1, C_ROBUST, set_windows},
+    {"--bandwidths", 1, C_ROBUST, set_bandwidths},
+    {"--fractions", 1, C_ROBUST, set_fractions},
     {"--format", 1, C_SCREEN, set_format},
     {"-o", 1, C_SERIES, set_output},
     {"--output", 1, C_SERIES, set_output},
     {"--progress", 0, C_SERIES, set_progress},
     {"--no-progress", 0, C_SERIES, set_progress},
     {"--out", 1, C_DEMO, set_out_dir},
-    {"--seed", 1, C_DEMO | C_SCREEN | C_SURROGATES, set_seed},
-    {"--threads", 1, C_SCREEN, set_threads},
+    {"--seed", 1, C_DEMO | C_TESTING | C_SURROGATES, set_seed},
+    {"--threads", 1, C_TESTING, set_threads},
 };
 
 static int command_bit(const char *command)
 {
-    static const char *names[] = {"detrend", "indicators", "screen", "demo", "surrogates"};
-    for (int i = 0; i < 5; i++)
+    static const char *names[] = {"detrend", "indicators", "screen", "demo", "surrogates", "robustness"};
+    for (int i = 0; i < 6; i++)
         if (strcmp(command, names[i]) == 0)
             return 1 << i;
     return 0;
@@ -309,13 +378,15 @@ static void set_defaults(const char *command, cli_options *o)
     o->indicators_text = "variance,lag1";
     o->min_coverage = 0.8;
     o->recovery = RECOVERY_LOG_AR1;
-    o->surrogates = strcmp(command, "surrogates") == 0 ? 10 : 1000;
+    o->surrogates = strcmp(command, "surrogates") == 0 ? 10 : strcmp(command, "robustness") == 0 ? 0 : 1000;
     o->null_model = SURROGATE_PHASE;
     o->null_options = surrogate_default_options();
     o->fdr = 0.05;
     o->alternative = -1; /* per indicator: rising, or two-sided for skewness */
     o->format = "csv";
     o->progress = -1;
+    parse_grid("--windows", "25%:75%:5%", o->windows, o->grid_text[0], &o->nwindows);
+    parse_grid("--bandwidths", "5%:25%:5%", o->bandwidths, o->grid_text[1], &o->nbandwidths);
     o->seed = 1;
     long cores = sysconf(_SC_NPROCESSORS_ONLN);
     o->threads = cores < 1 ? 1 : cores > CLI_MAX_THREADS ? CLI_MAX_THREADS : cores;

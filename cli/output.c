@@ -91,24 +91,42 @@ void cli_progress(const cli_options *opts, const char *what, size_t done, size_t
     fflush(stderr);
 }
 
-int cli_for_each_series(const cli_options *opts, const cli_inputs *in, series_visitor visit,
-                        void *context)
+/* The one loop over the series of a run, in input order, with progress. */
+static int for_each_table_series(const cli_options *opts, const cli_inputs *in,
+                                 table_visitor visit, void *context)
 {
     size_t total = cli_inputs_series_count(in), done = 0;
-    for (size_t f = 0; f < in->ntables; f++) {
-        const series_table *t = &in->tables[f];
-        for (size_t k = 0; k < t->nseries; k++) {
-            prepared_series ps;
-            int rc = cli_prepare_series(opts, t, k, &ps);
-            if (rc == EXIT_OK)
-                rc = visit(opts, &ps, context);
-            cli_prepared_free(&ps);
+    for (size_t f = 0; f < in->ntables; f++)
+        for (size_t k = 0; k < in->tables[f].nseries; k++) {
+            int rc = visit(opts, &in->tables[f], k, context);
             if (rc != EXIT_OK)
                 return rc;
             cli_progress(opts, opts->command, ++done, total);
         }
-    }
     return EXIT_OK;
+}
+
+typedef struct {
+    series_visitor visit;
+    void *context;
+} prepared_visit;
+
+static int prepare_and_visit(const cli_options *opts, const series_table *t, size_t k, void *c)
+{
+    const prepared_visit *pv = c;
+    prepared_series ps;
+    int rc = cli_prepare_series(opts, t, k, &ps);
+    if (rc == EXIT_OK)
+        rc = pv->visit(opts, &ps, pv->context);
+    cli_prepared_free(&ps);
+    return rc;
+}
+
+int cli_for_each_series(const cli_options *opts, const cli_inputs *in, series_visitor visit,
+                        void *context)
+{
+    prepared_visit pv = {visit, context};
+    return for_each_table_series(opts, in, prepare_and_visit, &pv);
 }
 
 int cli_run_series_command(const cli_options *opts, const series_command *cmd)
@@ -119,7 +137,8 @@ int cli_run_series_command(const cli_options *opts, const series_command *cmd)
     if (rc == EXIT_OK && cmd->open)
         rc = cmd->open(opts, &outs, cmd->context);
     if (rc == EXIT_OK)
-        rc = cli_for_each_series(opts, &in, cmd->visit, cmd->context);
+        rc = cmd->visit_table ? for_each_table_series(opts, &in, cmd->visit_table, cmd->context)
+                              : cli_for_each_series(opts, &in, cmd->visit, cmd->context);
     if (rc == EXIT_OK && cmd->finish)
         rc = cmd->finish(opts, cmd->context);
     if (rc == EXIT_OK)

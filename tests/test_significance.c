@@ -205,8 +205,44 @@ static void test_json(void)
           "json: %g rows, agree %g, seed %g, surrogates %g", v[0], v[1], v[2], v[3]);
 }
 
+/* robustness: the grid's rows, a cell equal to screen at the same settings, the fractions. */
+static void test_robustness(void)
+{
+    const char *in = check_tmp_path("rob-in.csv"), *fr = check_tmp_path("rob-fr.csv");
+    write_series_csv(in, 2, 300, fold_sample, 3);
+    char args[1400];
+    snprintf(args, sizeof args, "--windows 40%%:60%%:10%% --bandwidths 5%%,10%% --surrogates 49 "
+             "--fractions %s", fr);
+    char cmd[1600];
+    snprintf(cmd, sizeof cmd, "%s robustness %s %s", check_binary(), args, in);
+    char *grid = NULL;
+    CHECK(check_run(cmd, &grid, NULL) == 0 && grid, "robustness runs");
+    size_t lines = 0;
+    for (const char *c = grid; c && *c; c++)
+        lines += *c == '\n';
+    CHECK(lines == 1 + 2 * 2 * 3 * 2, "robustness rows: %zu", lines);
+    char *one = screen("--surrogates 49 --window 50% --bandwidth 10%", in);
+    double tau_screen = NAN, p_screen = NAN, tau_grid = NAN, p_grid = NAN;
+    const char *at = one ? strstr(one, "\ns1,lag1,") : NULL;
+    if (at)
+        sscanf(at + 9, "%*d,%*g,%*g,%lf,%lf", &tau_screen, &p_screen);
+    at = grid ? strstr(grid, "\ns1,lag1,150,29.9,") : NULL;
+    if (at)
+        sscanf(at + 18, "%lf,%lf", &tau_grid, &p_grid);
+    CHECK(!isnan(tau_grid) && tau_grid == tau_screen && p_grid == p_screen,
+          "robustness cell = screen at window 50%%, bandwidth 10%%: %g/%g vs %g/%g", tau_grid,
+          p_grid, tau_screen, p_screen);
+    char *f = check_read_file(fr);
+    CHECK(f && strstr(f, "series,indicator,cells,share_tau_positive,share_p_at_most_0.05\n") &&
+              strstr(f, "s0,variance,6,"), "fractions file: %s", f ? f : "");
+    free(f);
+    free(one);
+    free(grid);
+}
+
 void suite_significance(void)
 {
+    test_robustness();
     test_json();
     test_surrogates_command();
     test_determinism();

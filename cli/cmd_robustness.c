@@ -1,0 +1,101 @@
+/* slowscan robustness: the trend test over a grid of windows x bandwidths, so a claim can be
+ * shown not to hinge on one choice. CSV series,indicator,window,bandwidth,tau,p_value, and
+ * with --fractions FILE the share of cells with tau > 0 and with p <= 0.05. */
+#include "cli.h"
+#include "trend_test.h"
+
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+
+typedef struct {
+    FILE *out, *fractions;
+    trend_tester tester;
+} robustness_run;
+
+static int open_outputs(const cli_options *opts, cli_outputs *outs, void *context)
+{
+    robustness_run *run = context;
+    int rc = cli_outputs_open(outs, opts, opts->output, "-o", &run->out);
+    if (rc == EXIT_OK)
+        fputs("series,indicator,window,bandwidth,tau,p_value\n", run->out);
+    if (rc == EXIT_OK && opts->fractions_output) {
+        rc = cli_outputs_open(outs, opts, opts->fractions_output, "--fractions", &run->fractions);
+        if (rc == EXIT_OK)
+            fputs("series,indicator,cells,share_tau_positive,share_p_at_most_0.05\n", run->fractions);
+    }
+    return rc;
+}
+
+typedef struct {
+    size_t cells, positive, significant;
+} cell_counts;
+
+/* One grid cell: prepare the series with this window and bandwidth, test, write rows. */
+static int one_cell(robustness_run *run, const cli_options *cell, const series_table *t,
+                    size_t k, cell_counts *counts)
+{
+    prepared_series ps;
+    double *values[INDICATOR_COUNT] = {NULL};
+    trend_result results[INDICATOR_COUNT];
+    int rc = cli_prepare_series(cell, t, k, &ps);
+    if (rc == EXIT_OK)
+        rc = cli_indicator_values(cell, &ps, values);
+    if (rc == EXIT_OK)
+        rc = trend_test(&run->tester, cell, &ps, values, results);
+    for (size_t j = 0; rc == EXIT_OK && j < cell->nindicators; j++) {
+        cli_put_field(run->out, ps.name);
+        fprintf(run->out, ",%s,", indicator_name(cell->indicators[j]));
+        const double cells[] = {(double)(ps.window - 1) * ps.dt, ps.bandwidth, results[j].tau,
+                                results[j].p_value};
+        for (size_t c = 0; c < 4; c++) {
+            cli_put_number(run->out, cells[c]);
+            fputc(c < 3 ? ',' : '\n', run->out);
+        }
+        counts[j].cells++;
+        counts[j].positive += results[j].tau > 0;
+        counts[j].significant += results[j].p_value <= 0.05;
+    }
+    cli_indicator_values_free(cell, values);
+    cli_prepared_free(&ps);
+    return rc;
+}
+
+static int robustness_series(const cli_options *opts, const series_table *t, size_t k, void *c)
+{
+    robustness_run *run = c;
+    cell_counts counts[INDICATOR_COUNT] = {{0, 0, 0}};
+    int uses_bandwidth = detrend_uses_bandwidth(opts->detrend.method);
+    size_t nb = uses_bandwidth ? opts->nbandwidths : 1;
+    int rc = EXIT_OK;
+    for (size_t w = 0; rc == EXIT_OK && w < opts->nwindows; w++)
+        for (size_t b = 0; rc == EXIT_OK && b < nb; b++) {
+            cli_options cell = *opts;
+            cell.window = opts->windows[w];
+            if (uses_bandwidth)
+                cell.bandwidth = opts->bandwidths[b];
+            rc = one_cell(run, &cell, t, k, counts);
+        }
+    for (size_t j = 0; rc == EXIT_OK && run->fractions && j < opts->nindicators; j++) {
+        cli_put_field(run->fractions, t->names[k]);
+        double cells = (double)counts[j].cells;
+        fprintf(run->fractions, ",%s,%zu,", indicator_name(opts->indicators[j]), counts[j].cells);
+        cli_put_number(run->fractions, (double)counts[j].positive / cells);
+        fputc(',', run->fractions);
+        if (opts->surrogates > 0)
+            cli_put_number(run->fractions, (double)counts[j].significant / cells);
+        else
+            fputs("NA", run->fractions);
+        fputc('\n', run->fractions);
+    }
+    return rc;
+}
+
+int cmd_robustness(const cli_options *opts)
+{
+    robustness_run run = {0};
+    series_command cmd = {open_outputs, NULL, NULL, &run, robustness_series};
+    int rc = cli_run_series_command(opts, &cmd);
+    trend_tester_free(&run.tester);
+    return rc;
+}
