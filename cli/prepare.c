@@ -8,6 +8,12 @@
 #include <stdlib.h>
 #include <string.h>
 
+/* How a source is named in messages: io/ records standard input as "-". */
+static const char *shown(const char *source)
+{
+    return strcmp(source, "-") == 0 ? "standard input" : source;
+}
+
 static int io_fail(int status, const io_error *err)
 {
     cli_error("%s", err->message);
@@ -34,7 +40,7 @@ static int ready_table(const cli_options *opts, series_table *t)
     if (opts->log_values && (st = table_log(t, &err)) != SLOWSCAN_OK)
         return io_fail(st, &err);
     if (t->n < MIN_ROWS) {
-        cli_error("%s: %zu samples in the analysed span; at least %d are needed", t->source, t->n,
+        cli_error("%s: %zu samples in the analysed span; at least %d are needed", shown(t->source), t->n,
                   MIN_ROWS);
         return EXIT_BAD_INPUT;
     }
@@ -89,7 +95,7 @@ static int resolve_length(const cli_length *len, const char *option, const serie
     double v = len->percent ? len->amount / 100.0 * span : len->amount;
     if (!(v <= span * (1 + 1e-9))) {
         cli_error("%s: option %s %s is longer than the span %.12g of the analysed series",
-                  t->source, option, len->text, span);
+                  shown(t->source), option, len->text, span);
         return EXIT_BAD_INPUT;
     }
     *out = v;
@@ -109,7 +115,7 @@ static int resolve_window(const cli_options *o, const series_table *t, double dt
     *window = (size_t)w + 1;
     if (*window < 3) {
         cli_error("%s: option --window %s gives %zu samples per window; at least 3 are needed",
-                  t->source, o->window.text, *window);
+                  shown(t->source), o->window.text, *window);
         return EXIT_BAD_INPUT;
     }
     return EXIT_OK;
@@ -173,7 +179,7 @@ int cli_prepare_series(const cli_options *o, const series_table *t, size_t k, pr
 {
     memset(ps, 0, sizeof *ps);
     ps->name = t->names[k];
-    ps->source = t->source;
+    ps->source = shown(t->source);
     ps->n = t->n;
     ps->time = t->time;
     ps->span = t->time[t->n - 1] - t->time[0];

@@ -8,8 +8,35 @@
 #include <sys/stat.h>
 #include <unistd.h>
 
+/* The process umask, read without umask(2): setting it to read it back would briefly change
+ * it for every thread. Linux reports it in /proc/self/status; elsewhere assume the usual. */
+static mode_t current_umask(void)
+{
+    unsigned mask = 022;
+    FILE *f = fopen("/proc/self/status", "r");
+    char line[256];
+    while (f && fgets(line, sizeof line, f))
+        if (sscanf(line, "Umask: %o", &mask) == 1)
+            break;
+    if (f)
+        fclose(f);
+    return (mode_t)mask;
+}
+
+/* mkstemp makes the file 0600. Give it what a plain fopen would: the replaced file's
+ * permissions, or 0666 under the umask for a new file. */
+static void set_mode(int fd, const char *path)
+{
+    struct stat st;
+    mode_t mode = stat(path, &st) == 0 ? (st.st_mode & 0777) : (0666 & ~current_umask());
+    if (fchmod(fd, mode) != 0) {
+        /* Not fatal: the output is still complete, only its permissions are tighter. */
+    }
+}
+
 int atomic_open(atomic_file *f, const char *path, io_error *err)
 {
+    char why[128];
     memset(f, 0, sizeof *f);
     if (!path || strcmp(path, "-") == 0) {
         f->fp = stdout;
@@ -20,53 +47,63 @@ int atomic_open(atomic_file *f, const char *path, io_error *err)
         return io_fail(err, SLOWSCAN_EIO, "cannot write %s: it is a directory", path);
     size_t len = strlen(path);
     f->path = io_strdup(path);
-    f->temp_path = malloc(len + 16);
+    f->temp_path = malloc(len + sizeof ".tmp.XXXXXX");
     if (!f->path || !f->temp_path) {
         atomic_abort(f);
-        return io_fail(err, SLOWSCAN_ENOMEM, "out of memory");
+        return io_fail(err, SLOWSCAN_ENOMEM, "cannot write %s: out of memory", path);
     }
-    snprintf(f->temp_path, len + 16, "%s.tmp.XXXXXX", path);
+    snprintf(f->temp_path, len + sizeof ".tmp.XXXXXX", "%s.tmp.XXXXXX", path);
     int fd = mkstemp(f->temp_path);
     if (fd < 0) {
         int e = errno;
-        free(f->temp_path);
+        free(f->temp_path); /* nothing was created: there is nothing to remove */
         f->temp_path = NULL;
         atomic_abort(f);
-        return io_fail(err, SLOWSCAN_EIO, "cannot write %s: %s", path, strerror(e));
+        return io_fail(err, SLOWSCAN_EIO, "cannot write %s: %s", path, io_strerror(e, why, sizeof why));
     }
-    /* mkstemp makes the file 0600; give it the usual permissions under the umask. */
-    mode_t mask = umask(0);
-    umask(mask);
-    fchmod(fd, 0666 & ~mask);
+    set_mode(fd, path);
     if (!(f->fp = fdopen(fd, "w"))) {
+        int e = errno;
         close(fd);
         atomic_abort(f);
-        return io_fail(err, SLOWSCAN_EIO, "cannot write %s: %s", path, strerror(errno));
+        return io_fail(err, SLOWSCAN_EIO, "cannot write %s: %s", path, io_strerror(e, why, sizeof why));
     }
     return SLOWSCAN_OK;
+}
+
+static int commit_stdout(atomic_file *f, io_error *err)
+{
+    errno = 0;
+    int bad = fflush(f->fp) != 0 || ferror(f->fp);
+    int e = errno;
+    f->fp = NULL; /* standard output stays open: it is not ours to close */
+    char why[128];
+    return bad ? io_fail(err, SLOWSCAN_EIO, "cannot write standard output: %s",
+                         e ? io_strerror(e, why, sizeof why) : "a write failed")
+               : SLOWSCAN_OK;
 }
 
 int atomic_commit(atomic_file *f, io_error *err)
 {
     if (!f->fp)
-        return SLOWSCAN_OK;
-    if (!f->path) { /* standard output */
-        int bad = fflush(f->fp) != 0 || ferror(f->fp);
-        f->fp = NULL;
-        return bad ? io_fail(err, SLOWSCAN_EIO, "error writing standard output: %s", strerror(errno))
-                   : SLOWSCAN_OK;
-    }
-    int bad = fflush(f->fp) != 0 || ferror(f->fp);
-    int e = errno;
-    bad = (fclose(f->fp) != 0) || bad;
+        return io_fail(err, SLOWSCAN_EINVAL, "atomic_commit: the output file is not open");
+    if (!f->path)
+        return commit_stdout(f, err);
+    /* errno is only meaningful from the call that failed; keep the first one. */
+    int e = 0;
+    if (fflush(f->fp) != 0)
+        e = errno ? errno : EIO;
+    else if (ferror(f->fp))
+        e = EIO; /* an earlier write failed; its errno is long gone */
+    if (fclose(f->fp) != 0 && !e)
+        e = errno ? errno : EIO;
     f->fp = NULL;
-    if (!bad && rename(f->temp_path, f->path) != 0) {
+    if (!e && rename(f->temp_path, f->path) != 0)
         e = errno;
-        bad = 1;
-    }
-    if (bad) {
-        io_fail(err, SLOWSCAN_EIO, "error writing %s: %s", f->path, strerror(e));
-        atomic_abort(f);
+    if (e) {
+        char why[128];
+        io_fail(err, SLOWSCAN_EIO, "cannot write %s: %s", f->path, io_strerror(e, why, sizeof why));
+        atomic_abort(f); /* removes the temporary file */
         return SLOWSCAN_EIO;
     }
     free(f->temp_path);
@@ -77,7 +114,7 @@ int atomic_commit(atomic_file *f, io_error *err)
 
 void atomic_abort(atomic_file *f)
 {
-    if (f->fp && f->path)
+    if (f->fp && f->path) /* never close standard output */
         fclose(f->fp);
     f->fp = NULL;
     if (f->temp_path)

@@ -1,5 +1,6 @@
-/* CSV input with libcsv: header row, detected delimiter, selected columns, strict numbers.
- * The file is parsed in chunks, so memory grows with the selected columns only. */
+/* CSV input with libcsv: the byte stream (64 KiB chunks, so standard input works and memory
+ * grows with the selected columns only), the UTF-8 byte-order mark, delimiter detection,
+ * file-row bookkeeping and the data rows. The header record is handled in csv_header.c. */
 #include "io_internal.h"
 
 #include <csv.h>
@@ -10,25 +11,9 @@
 #include <string.h>
 #include <strings.h>
 
-enum { CHUNK = 1 << 16, MAX_COLUMNS = 1 << 20 };
+enum { CHUNK = 1 << 16, SHOWN_CELL = 60 };
 
-typedef struct {
-    const char *path;
-    io_error *err;
-    int status;   /* the first error wins; later callbacks do nothing */
-    size_t row;   /* 1-based record number being parsed (header = 1) */
-    size_t field; /* field index within the current row */
-    char **header;
-    size_t ncols, header_cap;
-    long *role; /* per file column: -1 unused, 0 the time, k+1 series k */
-    const csv_read_options *options;
-    series_table *t;
-    size_t cap;         /* capacity of every data array */
-    double *row_values; /* selected cells of the row being parsed: [0] time, [k+1] series k */
-} csv_reader;
-
-static int failf(csv_reader *r, int status, const char *fmt, ...) __attribute__((format(printf, 3, 4)));
-static int failf(csv_reader *r, int status, const char *fmt, ...)
+int csv_failf(csv_reader *r, int status, const char *fmt, ...)
 {
     if (r->status != SLOWSCAN_OK)
         return r->status;
@@ -37,11 +22,11 @@ static int failf(csv_reader *r, int status, const char *fmt, ...)
     va_start(ap, fmt);
     vsnprintf(what, sizeof what, fmt, ap);
     va_end(ap);
-    r->status = io_fail(r->err, status, "%s: %s", r->path, what);
+    r->status = io_fail(r->err, status, "%s: %s", r->name, what);
     return r->status;
 }
 
-static char *trimmed(char *s, size_t *len)
+char *csv_trim(char *s, size_t *len)
 {
     while (*len && (*s == ' ' || *s == '\t'))
         s++, (*len)--;
@@ -51,7 +36,8 @@ static char *trimmed(char *s, size_t *len)
     return s;
 }
 
-/* A cell: NaN for empty / NA / NaN; else 0 and a finite number, 1 not a number, 2 infinite. */
+/* A cell: NaN for empty / NA / NaN (any case); else 0 and a finite number, 1 not a number,
+ * 2 not finite (inf, Infinity, or too large for a double). */
 static int parse_cell(const char *s, double *v)
 {
     if (!*s || !strcasecmp(s, "NA") || !strcasecmp(s, "NaN")) {
@@ -63,157 +49,48 @@ static int parse_cell(const char *s, double *v)
     *v = strtod(s, &end);
     if (end == s || *end != '\0')
         return 1;
+    /* ERANGE also flags underflow (a tiny value rounded toward 0), which is harmless. */
     if (!isfinite(*v) || (errno == ERANGE && fabs(*v) > 1))
         return 2;
     return 0;
 }
 
-static void add_header_field(csv_reader *r, char *s, size_t len)
+/* A selected cell of a data record. A bad cell is remembered, not reported at once, so that
+ * a ragged record is reported as ragged (its cells are probably shifted). */
+static void data_field(csv_reader *r, char *s, size_t len)
 {
-    if (r->ncols == MAX_COLUMNS) {
-        failf(r, SLOWSCAN_EINVAL, "row 1: more than %d columns", MAX_COLUMNS);
+    if (r->field >= r->ncols || r->role[r->field] == IO_ROLE_SKIP)
         return;
+    char *cell = csv_trim(s, &len);
+    double v;
+    int bad = parse_cell(cell, &v);
+    if (bad && !r->cell_status) {
+        r->cell_status = SLOWSCAN_EINVAL;
+        snprintf(r->cell_msg, sizeof r->cell_msg, "row %zu, column '%s': \"%.*s%s\" is not a %s",
+                 r->line, r->header[r->field], SHOWN_CELL, cell, len > SHOWN_CELL ? "..." : "",
+                 bad == 1 ? "number" : "finite number");
     }
-    if (r->ncols == r->header_cap) {
-        size_t cap = r->header_cap ? 2 * r->header_cap : 16;
-        char **h = realloc(r->header, cap * sizeof *h);
-        if (!h) {
-            failf(r, SLOWSCAN_ENOMEM, "out of memory reading the header");
-            return;
-        }
-        r->header = h;
-        r->header_cap = cap;
-    }
-    if (!(r->header[r->ncols] = io_strdup(trimmed(s, &len))))
-        failf(r, SLOWSCAN_ENOMEM, "out of memory reading the header");
-    else
-        r->ncols++;
+    long role = r->role[r->field];
+    r->row_values[role == IO_ROLE_TIME ? 0 : role + 1] = v;
 }
 
 static void on_field(void *data, size_t len, void *context)
 {
     csv_reader *r = context;
-    if (r->status != SLOWSCAN_OK)
-        return;
     char empty[1] = {0};
     char *s = data ? data : empty;
     if (!data)
         len = 0;
-    if (r->row == 1) {
-        add_header_field(r, s, len);
-    } else if (r->field < r->ncols && r->role[r->field] >= 0) {
-        char *cell = trimmed(s, &len);
-        double v;
-        int bad = parse_cell(cell, &v);
-        if (bad == 1)
-            failf(r, SLOWSCAN_EINVAL, "row %zu, column '%s': \"%s\" is not a number", r->row,
-                  r->header[r->field], cell);
-        else if (bad == 2)
-            failf(r, SLOWSCAN_EINVAL, "row %zu, column '%s': %s is not a finite value", r->row,
-                  r->header[r->field], cell);
-        r->row_values[r->role[r->field]] = v;
+    /* Line feeds inside quoted fields move the file row on without ending the record. */
+    for (const char *p = s; (p = memchr(p, '\n', len - (size_t)(p - s))) != NULL; p++)
+        r->record_nl++;
+    if (r->status == SLOWSCAN_OK) {
+        if (r->in_header)
+            csv_header_field(r, s, len);
+        else
+            data_field(r, s, len);
     }
     r->field++;
-}
-
-static long column_index(const csv_reader *r, const char *name)
-{
-    for (size_t c = 0; c < r->ncols; c++)
-        if (strcmp(r->header[c], name) == 0)
-            return (long)c;
-    return -1;
-}
-
-/* "a, b, c" (at most ~200 characters, for messages). */
-static void list_columns(const csv_reader *r, char *buf, size_t size)
-{
-    size_t used = 0;
-    buf[0] = '\0';
-    for (size_t c = 0; c < r->ncols && used + 8 < size; c++) {
-        int w = snprintf(buf + used, size - used, "%s%s", c ? ", " : "", r->header[c]);
-        used += w > 0 ? (size_t)w : 0;
-    }
-    if (used >= size - 8)
-        strcpy(buf + size - 8, ", ...");
-}
-
-static int add_series(csv_reader *r, long col)
-{
-    series_table *t = r->t;
-    if (r->role[col] >= 0)
-        return failf(r, SLOWSCAN_EINVAL, "option --vars: column '%s' is %s", r->header[col],
-                     r->role[col] == 0 ? "the time column" : "listed twice");
-    char **names = realloc(t->names, (t->nseries + 1) * sizeof *names);
-    double **values = names ? realloc(t->values, (t->nseries + 1) * sizeof *values) : NULL;
-    if (names)
-        t->names = names;
-    if (values)
-        t->values = values;
-    if (!names || !values || !(t->names[t->nseries] = io_strdup(r->header[col])))
-        return failf(r, SLOWSCAN_ENOMEM, "out of memory");
-    t->values[t->nseries] = NULL;
-    r->role[col] = (long)++t->nseries;
-    return SLOWSCAN_OK;
-}
-
-static int select_vars(csv_reader *r, const char *vars)
-{
-    char *list = io_strdup(vars), *save = NULL;
-    if (!list)
-        return failf(r, SLOWSCAN_ENOMEM, "out of memory");
-    for (char *tok = strtok_r(list, ",", &save); tok && r->status == SLOWSCAN_OK;
-         tok = strtok_r(NULL, ",", &save)) {
-        size_t len = strlen(tok);
-        char *name = trimmed(tok, &len);
-        long col = column_index(r, name);
-        char cols[256];
-        list_columns(r, cols, sizeof cols);
-        if (col < 0)
-            failf(r, SLOWSCAN_EINVAL, "option --vars: no column '%s' (columns: %s)", name, cols);
-        else
-            add_series(r, col);
-    }
-    free(list);
-    return r->status;
-}
-
-/* After the header: check names, find the time column, choose the series. */
-static int resolve_header(csv_reader *r)
-{
-    for (size_t c = 0; c < r->ncols; c++) {
-        if (!r->header[c][0])
-            return failf(r, SLOWSCAN_EINVAL, "row 1, column %zu: empty column name", c + 1);
-        for (size_t d = 0; d < c; d++)
-            if (!strcmp(r->header[c], r->header[d]))
-                return failf(r, SLOWSCAN_EINVAL, "row 1: column name '%s' appears twice (columns %zu and %zu)",
-                             r->header[c], d + 1, c + 1);
-    }
-    if (!(r->role = malloc(r->ncols * sizeof *r->role)))
-        return failf(r, SLOWSCAN_ENOMEM, "out of memory");
-    for (size_t c = 0; c < r->ncols; c++)
-        r->role[c] = -1;
-    long time_col = r->options->time_column ? column_index(r, r->options->time_column) : 0;
-    if (time_col < 0) {
-        char cols[256];
-        list_columns(r, cols, sizeof cols);
-        return failf(r, SLOWSCAN_EINVAL, "option --time: no column '%s' (columns: %s)",
-                     r->options->time_column, cols);
-    }
-    r->role[time_col] = 0;
-    if (!(r->t->time_name = io_strdup(r->header[time_col])))
-        return failf(r, SLOWSCAN_ENOMEM, "out of memory");
-    if (r->options->vars)
-        select_vars(r, r->options->vars);
-    else
-        for (size_t c = 0; c < r->ncols && r->status == SLOWSCAN_OK; c++)
-            if (r->role[c] < 0)
-                add_series(r, (long)c);
-    if (r->status == SLOWSCAN_OK && r->t->nseries == 0)
-        failf(r, SLOWSCAN_EINVAL, "row 1: no series column besides the time column '%s'",
-              r->t->time_name);
-    if (r->status == SLOWSCAN_OK && !(r->row_values = malloc((r->t->nseries + 1) * sizeof(double))))
-        failf(r, SLOWSCAN_ENOMEM, "out of memory");
-    return r->status;
 }
 
 static int grow_data(csv_reader *r)
@@ -221,141 +98,202 @@ static int grow_data(csv_reader *r)
     series_table *t = r->t;
     if (t->n < r->cap)
         return SLOWSCAN_OK;
-    size_t cap = r->cap ? 2 * r->cap : 1024, tc = r->cap;
-    int bad = io_reserve(&t->time, &tc, cap);
-    size_t *rows = bad ? NULL : realloc(t->rows, cap * sizeof *rows);
-    bad = bad || !rows;
+    size_t cap = r->cap ? 2 * r->cap : 1024;
+    double *time = realloc(t->time, cap * sizeof *time);
+    if (time)
+        t->time = time;
+    size_t *rows = time ? realloc(t->rows, cap * sizeof *rows) : NULL;
     if (rows)
         t->rows = rows;
+    int bad = !time || !rows;
     for (size_t k = 0; k < t->nseries && !bad; k++) {
-        size_t c = r->cap;
-        bad = io_reserve(&t->values[k], &c, cap);
+        double *v = realloc(t->values[k], cap * sizeof *v);
+        if (v)
+            t->values[k] = v;
+        bad = !v;
     }
     if (bad)
-        return failf(r, SLOWSCAN_ENOMEM, "out of memory at row %zu", r->row);
+        return csv_failf(r, SLOWSCAN_ENOMEM, "out of memory at row %zu", r->line);
     r->cap = cap;
     return SLOWSCAN_OK;
 }
 
-/* A data row is complete: check its shape and time, then store it. */
+/* A data record is complete: check its shape, its cells and its time, then store it. */
 static void store_row(csv_reader *r)
 {
     series_table *t = r->t;
     if (r->field != r->ncols) {
-        failf(r, SLOWSCAN_EINVAL, "row %zu has %zu fields, the header has %zu", r->row, r->field,
-              r->ncols);
+        csv_failf(r, SLOWSCAN_EINVAL, "row %zu has %zu fields but the header has %zu columns",
+                  r->line, r->field, r->ncols);
+        return;
+    }
+    if (r->cell_status) {
+        csv_failf(r, r->cell_status, "%s", r->cell_msg);
         return;
     }
     double time = r->row_values[0];
     if (isnan(time)) {
-        failf(r, SLOWSCAN_EINVAL, "row %zu, column '%s': the time is missing", r->row, t->time_name);
+        csv_failf(r, SLOWSCAN_EINVAL, "row %zu, column '%s': the time is missing", r->line,
+                  t->time_name);
         return;
     }
     if (t->n > 0 && !(time > t->time[t->n - 1])) {
-        failf(r, SLOWSCAN_EINVAL, "row %zu: time %.12g is not greater than the previous time %.12g "
-              "(rows must be in strictly increasing time order)", r->row, time, t->time[t->n - 1]);
+        csv_failf(r, SLOWSCAN_EINVAL, "row %zu: time %.15g is not greater than the previous time "
+                  "%.15g (rows must be in increasing time order)", r->line, time, t->time[t->n - 1]);
         return;
     }
     if (grow_data(r) != SLOWSCAN_OK)
         return;
     t->time[t->n] = time;
-    t->rows[t->n] = r->row;
+    t->rows[t->n] = r->line;
     for (size_t k = 0; k < t->nseries; k++)
         t->values[k][t->n] = r->row_values[k + 1];
     t->n++;
 }
 
+/* End of a record. With CSV_REPALL_NL libcsv reports every unquoted CR and LF, blank lines
+ * included (as records without fields), so the file row can be counted exactly: the LF of
+ * a CRLF arrives as an empty record right after a CR and must not count twice. */
 static void on_row(int c, void *context)
 {
-    (void)c;
     csv_reader *r = context;
-    if (r->status == SLOWSCAN_OK) {
-        if (r->row == 1)
-            resolve_header(r);
+    int blank = r->field == 0;
+    if (!blank && r->status == SLOWSCAN_OK) {
+        if (r->in_header)
+            csv_header_end(r);
         else
             store_row(r);
     }
-    r->row++;
+    r->line += r->record_nl;
+    if (c == '\r' || (c == '\n' && !(blank && r->prev_cr)))
+        r->line++;
+    r->prev_cr = c == '\r';
+    r->record_nl = 0;
     r->field = 0;
+    r->cell_status = 0;
 }
 
-/* The delimiter is whichever of , ; TAB occurs most often in the header, outside quotes. */
-static unsigned char detect_delimiter(const char *buf, size_t len)
+/* Delimiter detection state, kept across chunks so a long header is scanned once. */
+typedef struct {
+    size_t pos, comma, semicolon, tab;
+    int quoted, blank;
+} detector;
+
+/* Scans the first non-blank line (up to a line end outside double quotes); returns 1 with
+ * *delim set once it is complete or the input has ended: the most frequent of , ; TAB
+ * outside quotes, ties going to comma, then semicolon. */
+static int detect_delimiter(detector *d, const char *buf, size_t len, int at_end,
+                            unsigned char *delim)
 {
-    size_t comma = 0, semicolon = 0, tab = 0;
-    int quoted = 0;
-    for (size_t i = 0; i < len; i++) {
-        char c = buf[i];
-        if (c == '"')
-            quoted = !quoted;
-        else if (!quoted && (c == '\n' || c == '\r'))
-            break;
-        else if (!quoted)
-            comma += c == ',', semicolon += c == ';', tab += c == '\t';
+    int complete = 0;
+    for (; d->pos < len && !complete; d->pos++) {
+        char c = buf[d->pos];
+        if (c == '"') {
+            d->quoted = !d->quoted;
+            d->blank = 0;
+        } else if (d->quoted) {
+            continue;
+        } else if (c == '\n' || c == '\r') {
+            complete = !d->blank; /* blank lines before the header are skipped, as libcsv does */
+            if (!complete)
+                d->comma = d->semicolon = d->tab = 0;
+        } else {
+            d->comma += c == ',', d->semicolon += c == ';', d->tab += c == '\t';
+            d->blank = d->blank && (c == ' ' || c == '\t');
+        }
     }
-    if (semicolon > comma && semicolon >= tab)
-        return ';';
-    if (tab > comma && tab > semicolon)
-        return '\t';
-    return ',';
+    if (!complete && !at_end)
+        return 0;
+    *delim = ',';
+    if (d->semicolon > d->comma && d->semicolon >= d->tab)
+        *delim = ';';
+    else if (d->tab > d->comma && d->tab > d->semicolon)
+        *delim = '\t';
+    return 1;
 }
 
-/* Reads until the first line end outside quotes is in the buffer (or the input ends). */
-static size_t read_header_chunk(FILE *fp, char **buf, size_t *cap)
+/* Reads chunks until the header line is in *buf, so the delimiter is known before libcsv
+ * sees a byte. *skip is 3 when the input starts with a UTF-8 byte-order mark. */
+static int read_head(csv_reader *r, FILE *fp, char **buf, size_t *len, size_t *skip,
+                     unsigned char *delim)
 {
-    size_t len = 0;
-    for (;;) {
-        if (*cap - len < CHUNK) {
-            char *b = realloc(*buf, *cap + 2 * CHUNK);
+    size_t cap = 0;
+    detector d = {0, 0, 0, 0, 0, 1};
+    for (*len = 0;;) {
+        if (cap - *len < CHUNK) {
+            char *b = realloc(*buf, cap + 2 * CHUNK);
             if (!b)
-                return (size_t)-1;
+                return csv_failf(r, SLOWSCAN_ENOMEM, "out of memory reading the header");
             *buf = b;
-            *cap += 2 * CHUNK;
+            cap += 2 * CHUNK;
         }
-        size_t got = fread(*buf + len, 1, CHUNK, fp);
-        len += got;
-        int quoted = 0, done = got == 0;
-        for (size_t i = 0; i < len && !done; i++) {
-            if ((*buf)[i] == '"')
-                quoted = !quoted;
-            else if (!quoted && ((*buf)[i] == '\n' || (*buf)[i] == '\r'))
-                done = 1;
+        size_t got = fread(*buf + *len, 1, CHUNK, fp);
+        if (got == 0 && ferror(fp)) {
+            char why[128];
+            return csv_failf(r, SLOWSCAN_EIO, "cannot read the file: %s",
+                             io_strerror(errno, why, sizeof why));
         }
-        if (done)
-            return len;
+        if (*len == 0 && got >= 3 && !memcmp(*buf, "\xEF\xBB\xBF", 3))
+            d.pos = *skip = 3;
+        *len += got;
+        if (detect_delimiter(&d, *buf, *len, got == 0, delim))
+            return SLOWSCAN_OK;
     }
+}
+
+static void feed(csv_reader *r, struct csv_parser *p, const char *s, size_t len)
+{
+    if (len == 0 || csv_parse(p, s, len, on_field, on_row, r) == len)
+        return;
+    int e = csv_error(p);
+    if (e == CSV_EPARSE)
+        csv_failf(r, SLOWSCAN_EINVAL, "row %zu: malformed CSV (%s): a double quote inside a field "
+                  "must be doubled and the field quoted", r->line, csv_strerror(e));
+    else
+        csv_failf(r, SLOWSCAN_ENOMEM, "out of memory at row %zu (%s)", r->line, csv_strerror(e));
 }
 
 static int parse_stream(csv_reader *r, FILE *fp)
 {
-    char *buf = NULL;
-    size_t cap = 0, len = read_header_chunk(fp, &buf, &cap);
-    if (len == (size_t)-1) {
-        free(buf);
-        return failf(r, SLOWSCAN_ENOMEM, "out of memory");
-    }
-    size_t skip = len >= 3 && !memcmp(buf, "\xEF\xBB\xBF", 3) ? 3 : 0;
+    char *buf = NULL, why[128];
+    size_t len = 0, skip = 0;
+    unsigned char delim = ',';
     struct csv_parser p;
-    if (csv_init(&p, CSV_STRICT | CSV_STRICT_FINI | CSV_APPEND_NULL) != 0) {
+    if (read_head(r, fp, &buf, &len, &skip, &delim) != SLOWSCAN_OK ||
+        csv_init(&p, CSV_STRICT | CSV_STRICT_FINI | CSV_APPEND_NULL | CSV_REPALL_NL) != 0) {
         free(buf);
-        return failf(r, SLOWSCAN_ENOMEM, "out of memory");
+        return csv_failf(r, SLOWSCAN_ENOMEM, "out of memory");
     }
-    csv_set_delim(&p, detect_delimiter(buf + skip, len - skip));
-    char *data = buf + skip;
-    len -= skip;
-    while (len > 0 && r->status == SLOWSCAN_OK) {
-        if (csv_parse(&p, data, len, on_field, on_row, r) != len)
-            failf(r, SLOWSCAN_EINVAL, "row %zu: malformed CSV (%s)", r->row, csv_strerror(csv_error(&p)));
-        data = buf;
-        len = fread(buf, 1, cap, fp);
-    }
+    csv_set_delim(&p, delim);
+    feed(r, &p, buf + skip, len - skip);
+    while (r->status == SLOWSCAN_OK && (len = fread(buf, 1, CHUNK, fp)) > 0)
+        feed(r, &p, buf, len);
     if (r->status == SLOWSCAN_OK && ferror(fp))
-        failf(r, SLOWSCAN_EIO, "read error: %s", strerror(errno));
+        csv_failf(r, SLOWSCAN_EIO, "cannot read the file: %s", io_strerror(errno, why, sizeof why));
+    /* csv_fini submits a last record without a line end; with CSV_STRICT_FINI it fails
+     * when the input ends inside a quoted field. */
     if (r->status == SLOWSCAN_OK && csv_fini(&p, on_field, on_row, r) != 0)
-        failf(r, SLOWSCAN_EINVAL, "row %zu: malformed CSV (%s)", r->row, csv_strerror(csv_error(&p)));
+        csv_failf(r, SLOWSCAN_EINVAL, "row %zu: malformed CSV: a quoted field is not closed "
+                  "before the end of the file", r->line);
     csv_free(&p);
     free(buf);
     return r->status;
+}
+
+/* Gives back the unused part of the doubling arrays (a failed shrink keeps the larger one). */
+static void shrink_data(series_table *t)
+{
+    double *time = realloc(t->time, t->n * sizeof *time);
+    if (time)
+        t->time = time;
+    size_t *rows = realloc(t->rows, t->n * sizeof *rows);
+    if (rows)
+        t->rows = rows;
+    for (size_t k = 0; k < t->nseries; k++) {
+        double *v = realloc(t->values[k], t->n * sizeof *v);
+        if (v)
+            t->values[k] = v;
+    }
 }
 
 static void reader_free(csv_reader *r)
@@ -371,25 +309,34 @@ int csv_read_table(const char *path, const csv_read_options *options, series_tab
                    io_error *err)
 {
     static const csv_read_options defaults = {NULL, NULL};
+    if (err)
+        err->message[0] = '\0';
+    if (!t || !path)
+        return io_fail(err, SLOWSCAN_EINVAL, "csv_read_table: no %s given", t ? "file" : "table");
     memset(t, 0, sizeof *t);
     int is_stdin = strcmp(path, "-") == 0;
-    const char *shown = is_stdin ? "(standard input)" : path;
-    csv_reader r = {.path = shown, .err = err, .row = 1, .options = options ? options : &defaults, .t = t};
+    csv_reader r = {.name = io_display_name(path), .err = err, .options = options ? options : &defaults,
+                    .t = t, .in_header = 1, .line = 1};
     FILE *fp = is_stdin ? stdin : fopen(path, "rb");
-    if (!fp)
-        return io_fail(err, SLOWSCAN_EINVAL, "%s: cannot open: %s", path, strerror(errno));
-    if (!(t->source = io_strdup(shown)))
-        failf(&r, SLOWSCAN_ENOMEM, "out of memory");
+    if (!fp) {
+        char why[128];
+        return io_fail(err, SLOWSCAN_EIO, "%s: cannot open the file: %s", path,
+                       io_strerror(errno, why, sizeof why));
+    }
+    if (!(t->source = io_strdup(path)))
+        csv_failf(&r, SLOWSCAN_ENOMEM, "out of memory");
     else
         parse_stream(&r, fp);
     if (!is_stdin)
         fclose(fp);
-    if (r.status == SLOWSCAN_OK && r.ncols == 0)
-        failf(&r, SLOWSCAN_EINVAL, "the file is empty (a header row and data rows are needed)");
+    if (r.status == SLOWSCAN_OK && r.in_header)
+        csv_failf(&r, SLOWSCAN_EINVAL, "the file is empty (a header row and data rows are needed)");
     else if (r.status == SLOWSCAN_OK && t->n == 0)
-        failf(&r, SLOWSCAN_EINVAL, "the file has a header but no data rows");
+        csv_failf(&r, SLOWSCAN_EINVAL, "the file has a header but no data rows");
     reader_free(&r);
     if (r.status != SLOWSCAN_OK)
         series_table_free(t);
+    else
+        shrink_data(t);
     return r.status;
 }

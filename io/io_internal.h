@@ -1,13 +1,60 @@
-/* Private helpers of io/. */
+/* Private helpers of io/ (not installed).
+ *
+ * The CSV reader is split by concern: csv_input.c owns the byte stream (chunks, BOM,
+ * delimiter detection, libcsv, file rows) and the data rows; csv_header.c turns the header
+ * record into a column selection. They share the csv_reader state below. */
 #ifndef SLOWSCAN_IO_INTERNAL_H
 #define SLOWSCAN_IO_INTERNAL_H
 
 #include "slowscan/io.h"
 #include "slowscan/status.h"
 
-/* Formats the message into err and returns status. */
+/* Formats the message into err (which may be NULL) and returns status. */
 int io_fail(io_error *err, int status, const char *fmt, ...) __attribute__((format(printf, 3, 4)));
 char *io_strdup(const char *s);
-int io_reserve(double **array, size_t *capacity, size_t need);
+
+/* The name used in messages: "standard input" for "-" (or NULL), else the path as given. */
+const char *io_display_name(const char *source);
+/* strerror without the shared static buffer (io may run on several threads). */
+const char *io_strerror(int errnum, char *buf, size_t size);
+/* Where sample i came from, for messages: "row 12" while the file rows are known, else
+ * "time 3.5" (after resampling). */
+void io_sample_where(const series_table *t, size_t i, char *buf, size_t size);
+
+/* Column roles: a file column is ignored, the time, or series k >= 0. */
+enum { IO_ROLE_SKIP = -1, IO_ROLE_TIME = -2 };
+
+typedef struct {
+    const char *name;       /* the file as shown in messages */
+    io_error *err;
+    int status;             /* the first error wins; later callbacks do nothing */
+    const csv_read_options *options;
+    series_table *t;
+
+    int in_header;          /* still waiting for the header record */
+    char **header;          /* trimmed column names */
+    size_t ncols, header_cap;
+    long *role;             /* ncols roles */
+
+    size_t line;            /* file row on which the current record starts (1-based) */
+    size_t record_nl;       /* line feeds inside quoted fields of the current record */
+    int prev_cr;            /* the last record ended with CR, so a following LF is CRLF */
+    size_t field;           /* fields seen so far in the current record */
+
+    double *row_values;     /* selected cells of the current record: [0] time, [k+1] series k */
+    int cell_status;        /* first bad cell of the current record ... */
+    char cell_msg[900];     /* ... reported when the record is not ragged (raggedness first) */
+    size_t cap;             /* rows allocated in every data array */
+} csv_reader;
+
+/* Sets the reader's error once ("NAME: " is prepended); returns the reader's status. */
+int csv_failf(csv_reader *r, int status, const char *fmt, ...) __attribute__((format(printf, 3, 4)));
+/* Narrows s[0..*len) to drop surrounding spaces and tabs; NUL-terminates in place. */
+char *csv_trim(char *s, size_t *len);
+
+/* Header record: one name at a time, then the end of the record, which checks the names,
+ * resolves --time and --vars and sets up the table's columns. */
+void csv_header_field(csv_reader *r, char *s, size_t len);
+void csv_header_end(csv_reader *r);
 
 #endif

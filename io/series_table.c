@@ -1,4 +1,5 @@
-/* The series table: allocation helpers shared by the readers, and its release. */
+/* The series table: its release, and the small helpers every io file shares (messages,
+ * strings). */
 #include "io_internal.h"
 
 #include <stdarg.h>
@@ -44,18 +45,23 @@ char *io_strdup(const char *s)
     return d;
 }
 
-/* Grows a double array to hold at least `need` entries (doubling). */
-int io_reserve(double **a, size_t *cap, size_t need)
+const char *io_display_name(const char *source)
 {
-    if (need <= *cap)
-        return 0;
-    size_t c = *cap ? *cap : 256;
-    while (c < need)
-        c *= 2;
-    double *b = realloc(*a, c * sizeof **a);
-    if (!b)
-        return -1;
-    *a = b;
-    *cap = c;
-    return 0;
+    return !source || strcmp(source, "-") == 0 ? "standard input" : source;
+}
+
+const char *io_strerror(int errnum, char *buf, size_t size)
+{
+    /* The XSI strerror_r (the one _POSIX_C_SOURCE selects) returns 0 on success. */
+    if (strerror_r(errnum, buf, size) != 0)
+        snprintf(buf, size, "error %d", errnum);
+    return buf;
+}
+
+void io_sample_where(const series_table *t, size_t i, char *buf, size_t size)
+{
+    if (t->rows)
+        snprintf(buf, size, "row %zu", t->rows[i]);
+    else
+        snprintf(buf, size, "time %.15g", t->time[i]);
 }
