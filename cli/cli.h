@@ -45,6 +45,8 @@ typedef struct {
     /* significance (screen) */
     long surrogates;
     int null_model;  /* surrogate_kind */
+    int use_control; /* --null control: phase surrogates of the control run */
+    const char *control_file;
     surrogate_options null_options;
     double fdr;
     int alternative; /* significance_alternative, -1: the indicator's own direction */
@@ -63,6 +65,9 @@ typedef struct {
     const char **files;
     size_t nfiles;
 } cli_options;
+
+/* The null model's name in outputs and random streams ("control" with --null control). */
+const char *cli_null_name(const cli_options *opts);
 
 /* Prints "slowscan: MESSAGE" on stderr. */
 void cli_error(const char *fmt, ...) __attribute__((format(printf, 1, 2)));
@@ -88,12 +93,17 @@ typedef struct {
     size_t window;                    /* W, samples */
     double bandwidth;                 /* time units (NaN when the method has none) */
     int constant; /* 1: constant input, 2: residual at round-off level; indicators NA */
+    const double *null_source;        /* what surrogates are made from: the residual, or with
+                                         --null control the control run's residual */
+    double *owned;                    /* storage behind null_source when it is not residual */
 } prepared_series;
 
 /* The inputs of a run: every table read and made ready (span, grid, log). */
 typedef struct {
     series_table *tables;
     size_t ntables;
+    series_table control; /* --control FILE: read like the inputs, but never cut in time */
+    int has_control;
 } cli_inputs;
 
 int cli_inputs_load(const cli_options *opts, cli_inputs *inputs);
@@ -140,8 +150,12 @@ int cli_for_each_series(const cli_options *opts, const cli_inputs *in, series_vi
                         void *context);
 /* Called once per series of the inputs, before any preparation (commands that prepare a
  * series several ways, like robustness). */
-typedef int (*table_visitor)(const cli_options *opts, const series_table *table, size_t k,
-                             void *context);
+typedef int (*table_visitor)(const cli_options *opts, const cli_inputs *in,
+                             const series_table *table, size_t k, void *context);
+
+/* With --null control: makes ps->null_source the residual of the control run's series of the
+ * same name, cut to ps->n samples and detrended with ps's bandwidth in time units. */
+int cli_attach_control(const cli_options *opts, const cli_inputs *in, prepared_series *ps);
 
 /* How a series command runs: open its outputs (after the inputs are read, before any work),
  * visit every series, then finish (write what needs all series). NULL hooks are skipped. */

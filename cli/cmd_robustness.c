@@ -32,13 +32,15 @@ typedef struct {
 } cell_counts;
 
 /* One grid cell: prepare the series with this window and bandwidth, test, write rows. */
-static int one_cell(robustness_run *run, const cli_options *cell, const series_table *t,
-                    size_t k, cell_counts *counts)
+static int one_cell(robustness_run *run, const cli_options *cell, const cli_inputs *in,
+                    const series_table *t, size_t k, cell_counts *counts)
 {
     prepared_series ps;
     double *values[INDICATOR_COUNT] = {NULL};
     trend_result results[INDICATOR_COUNT];
     int rc = cli_prepare_series(cell, t, k, &ps);
+    if (rc == EXIT_OK && !ps.constant)
+        rc = cli_attach_control(cell, in, &ps);
     if (rc == EXIT_OK)
         rc = cli_indicator_values(cell, &ps, values);
     if (rc == EXIT_OK)
@@ -61,7 +63,8 @@ static int one_cell(robustness_run *run, const cli_options *cell, const series_t
     return rc;
 }
 
-static int robustness_series(const cli_options *opts, const series_table *t, size_t k, void *c)
+static int robustness_series(const cli_options *opts, const cli_inputs *in,
+                             const series_table *t, size_t k, void *c)
 {
     robustness_run *run = c;
     cell_counts counts[INDICATOR_COUNT] = {{0, 0, 0}};
@@ -74,7 +77,7 @@ static int robustness_series(const cli_options *opts, const series_table *t, siz
             cell.window = opts->windows[w];
             if (uses_bandwidth)
                 cell.bandwidth = opts->bandwidths[b];
-            rc = one_cell(run, &cell, t, k, counts);
+            rc = one_cell(run, &cell, in, t, k, counts);
         }
     for (size_t j = 0; rc == EXIT_OK && run->fractions && j < opts->nindicators; j++) {
         cli_put_field(run->fractions, t->names[k]);

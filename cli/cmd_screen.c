@@ -103,7 +103,7 @@ static void write_csv(const cli_options *opts, const screen_run *run)
             fputc(',', run->out);
         }
         fprintf(run->out, "%s,%ld,%s\n",
-                opts->surrogates > 0 ? surrogate_name((surrogate_kind)opts->null_model) : "none",
+                opts->surrogates > 0 ? cli_null_name(opts) : "none",
                 opts->surrogates, row->flag);
     }
 }

@@ -26,7 +26,7 @@ static int open_outputs(const cli_options *opts, cli_outputs *outs, void *contex
 static int write_replicates(const cli_options *opts, const prepared_series *ps,
                             surrogates_run *run, surrogate_source *src)
 {
-    const char *purpose = surrogate_name((surrogate_kind)opts->null_model);
+    const char *purpose = cli_null_name(opts);
     for (long j = 0; j < opts->surrogates; j++) {
         null_trend_stream(run->rng, opts->seed, ps->name, purpose, (size_t)j);
         int st = surrogate_draw(src, run->rng, run->buffer);
@@ -55,7 +55,7 @@ static int draw_series(const cli_options *opts, const prepared_series *ps, void 
     int st = SLOWSCAN_ENOMEM;
     surrogate_plan *plan = surrogate_plan_alloc(ps->n, FFTW_ESTIMATE);
     surrogate_source *src = plan ? surrogate_source_alloc(plan, (surrogate_kind)opts->null_model,
-                                                          ps->residual, &opts->null_options, &st) : NULL;
+                                                          ps->null_source, &opts->null_options, &st) : NULL;
     fftw_free(run->buffer);
     run->buffer = fftw_alloc_real(ps->n);
     if (src && run->buffer)

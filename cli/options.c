@@ -143,6 +143,7 @@ static int set_bandwidths(cli_options *o, const char *n, const char *v)
     return parse_grid(n, v, o->bandwidths, o->grid_text[1], &o->nbandwidths);
 }
 static int set_fractions(cli_options *o, const char *n, const char *v) { (void)n; o->fractions_output = v; return EXIT_OK; }
+static int set_control(cli_options *o, const char *n, const char *v) { (void)n; o->control_file = v; return EXIT_OK; }
 static int set_json(cli_options *o, const char *n, const char *v) { (void)n; o->json_output = v; return EXIT_OK; }
 static int set_rolling(cli_options *o, const char *n, const char *v) { (void)n; o->rolling_output = v; return EXIT_OK; }
 static int set_out_dir(cli_options *o, const char *n, const char *v) { (void)n; o->out_dir = v; return EXIT_OK; }
@@ -236,12 +237,13 @@ static int set_null(cli_options *o, const char *n, const char *v)
     surrogate_kind kind;
     if (surrogate_lookup(v, &kind) == SLOWSCAN_OK) {
         o->null_model = (int)kind;
+        o->use_control = 0;
         return EXIT_OK;
     }
     if (strcmp(v, "control") == 0) {
-        /* Said plainly rather than substituted: a p-value must come from the null asked for. */
-        cli_error("option %s: the 'control' null model is not available in this version", n);
-        return EXIT_BAD_INPUT;
+        o->null_model = SURROGATE_PHASE; /* phase surrogates, of the control run */
+        o->use_control = 1;
+        return EXIT_OK;
     }
     cli_error("option %s: unknown null model '%s' (phase, aaft, iaaft, ar1, block)", n, v);
     return EXIT_BAD_INPUT;
@@ -341,6 +343,7 @@ static const option_spec options[] = {
     {"--alternative", 1, C_TESTING, set_alternative},
     {"--rolling", 1, C_SCREEN, set_rolling},
     {"--json", 1, C_SCREEN, set_json},
+    {"--control", 1, C_TESTING | C_SURROGATES, set_control},
     {"--windows", 1, C_ROBUST, set_windows},
     {"--bandwidths", 1, C_ROBUST, set_bandwidths},
     {"--fractions", 1, C_ROBUST, set_fractions},
@@ -452,6 +455,11 @@ int cli_parse(const char *command, int argc, char **argv, int first, cli_options
             o->files[o->nfiles++] = arg;
         }
     }
+    if (o->use_control != (o->control_file != NULL)) {
+        cli_error(o->use_control ? "option --null control needs --control FILE (the control run)"
+                                 : "option --control needs --null control");
+        return EXIT_BAD_INPUT;
+    }
     if (o->progress < 0)
         o->progress = isatty(STDERR_FILENO);
     if (bit != C_DEMO && o->nfiles == 0) {
@@ -492,4 +500,9 @@ void cli_warning(const char *fmt, ...)
     va_start(ap, fmt);
     vreport("warning: ", fmt, ap);
     va_end(ap);
+}
+
+const char *cli_null_name(const cli_options *o)
+{
+    return o->use_control ? "control" : surrogate_name((surrogate_kind)o->null_model);
 }

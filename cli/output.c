@@ -98,7 +98,7 @@ static int for_each_table_series(const cli_options *opts, const cli_inputs *in,
     size_t total = cli_inputs_series_count(in), done = 0;
     for (size_t f = 0; f < in->ntables; f++)
         for (size_t k = 0; k < in->tables[f].nseries; k++) {
-            int rc = visit(opts, &in->tables[f], k, context);
+            int rc = visit(opts, in, &in->tables[f], k, context);
             if (rc != EXIT_OK)
                 return rc;
             cli_progress(opts, opts->command, ++done, total);
@@ -111,11 +111,14 @@ typedef struct {
     void *context;
 } prepared_visit;
 
-static int prepare_and_visit(const cli_options *opts, const series_table *t, size_t k, void *c)
+static int prepare_and_visit(const cli_options *opts, const cli_inputs *in,
+                             const series_table *t, size_t k, void *c)
 {
     const prepared_visit *pv = c;
     prepared_series ps;
     int rc = cli_prepare_series(opts, t, k, &ps);
+    if (rc == EXIT_OK && !ps.constant)
+        rc = cli_attach_control(opts, in, &ps);
     if (rc == EXIT_OK)
         rc = pv->visit(opts, &ps, pv->context);
     cli_prepared_free(&ps);

@@ -47,6 +47,29 @@ static int ready_table(const cli_options *opts, series_table *t)
     return EXIT_OK;
 }
 
+/* The control run is read with the same columns, grid and logarithm as the inputs, but never
+ * cut by --from/--until: those select the forced run's span, not the control's. */
+static int load_control(const cli_options *opts, cli_inputs *in)
+{
+    for (size_t f = 0; f < opts->nfiles; f++)
+        if (io_same_file(opts->control_file, opts->files[f])) {
+            cli_error("option --control: %s is also an input; a control run must be another file",
+                      opts->control_file);
+            return EXIT_BAD_INPUT;
+        }
+    csv_read_options ro = {opts->time_column, opts->vars};
+    io_error err = {{0}};
+    int st = csv_read_table(opts->control_file, &ro, &in->control, &err);
+    if (st != SLOWSCAN_OK) {
+        cli_error("option --control: %s", err.message);
+        return st == SLOWSCAN_ENOMEM ? EXIT_INTERNAL : EXIT_BAD_INPUT;
+    }
+    in->has_control = 1;
+    cli_options whole = *opts;
+    whole.from = whole.until = NAN;
+    return ready_table(&whole, &in->control);
+}
+
 int cli_inputs_load(const cli_options *opts, cli_inputs *in)
 {
     memset(in, 0, sizeof *in);
@@ -69,11 +92,13 @@ int cli_inputs_load(const cli_options *opts, cli_inputs *in)
         if (rc != EXIT_OK)
             return rc;
     }
-    return EXIT_OK;
+    return opts->control_file ? load_control(opts, in) : EXIT_OK;
 }
 
 void cli_inputs_free(cli_inputs *in)
 {
+    if (in->has_control)
+        series_table_free(&in->control);
     for (size_t f = 0; f < in->ntables; f++)
         series_table_free(&in->tables[f]);
     free(in->tables);
@@ -198,6 +223,7 @@ int cli_prepare_series(const cli_options *o, const series_table *t, size_t k, pr
         return EXIT_INTERNAL;
     ps->trend = ps->value + t->n;
     ps->residual = ps->trend + t->n;
+    ps->null_source = ps->residual;
     memcpy(ps->value, t->values[k], t->n * sizeof(double));
     count_finite(ps);
     int st;
@@ -218,6 +244,7 @@ int cli_prepare_series(const cli_options *o, const series_table *t, size_t k, pr
 void cli_prepared_free(prepared_series *ps)
 {
     free(ps->value);
+    free(ps->owned);
     memset(ps, 0, sizeof *ps);
 }
 
@@ -267,4 +294,49 @@ int cli_indicator_values(const cli_options *o, const prepared_series *ps, double
         return st == SLOWSCAN_ENOMEM ? EXIT_INTERNAL : EXIT_BAD_INPUT;
     }
     return EXIT_OK;
+}
+
+int cli_attach_control(const cli_options *o, const cli_inputs *in, prepared_series *ps)
+{
+    if (!in->has_control)
+        return EXIT_OK;
+    const series_table *c = &in->control;
+    const char *cname = shown(c->source);
+    size_t k = 0;
+    while (k < c->nseries && strcmp(c->names[k], ps->name) != 0)
+        k++;
+    if (k == c->nseries) {
+        cli_error("option --control: %s has no series '%s'", cname, ps->name);
+        return EXIT_BAD_INPUT;
+    }
+    if (c->n < ps->n) {
+        cli_error("option --control: series '%s' of %s has %zu samples, fewer than the %zu "
+                  "analysed", ps->name, cname, c->n, ps->n);
+        return EXIT_BAD_INPUT;
+    }
+    double cdt = (c->time[c->n - 1] - c->time[0]) / (double)(c->n - 1);
+    if (fabs(cdt - ps->dt) > 1e-6 * ps->dt) {
+        cli_error("option --control: %s has time step %.12g, the analysed series %.12g "
+                  "(use --resample)", cname, cdt, ps->dt);
+        return EXIT_BAD_INPUT;
+    }
+    /* The first n samples of the control, detrended exactly as the series was. */
+    series_table cut = *c;
+    cut.n = ps->n;
+    cli_options same = *o;
+    same.bandwidth = (cli_length){isnan(ps->bandwidth) ? 1.0 : ps->bandwidth, 0, o->bandwidth.text};
+    same.window = (cli_length){(double)(ps->window - 1) * ps->dt, 0, o->window.text};
+    prepared_series cps;
+    int rc = cli_prepare_series(&same, &cut, k, &cps);
+    if (rc == EXIT_OK && (cps.constant || cps.finite < 8)) {
+        cli_error("option --control: series '%s' of %s has no usable variation", ps->name, cname);
+        rc = EXIT_BAD_INPUT;
+    }
+    if (rc == EXIT_OK) {
+        ps->owned = cps.value; /* residual lives in the same block */
+        ps->null_source = cps.residual;
+        cps.value = NULL;
+    }
+    cli_prepared_free(&cps);
+    return rc;
 }

@@ -70,7 +70,7 @@ static void write_parameters(FILE *fp, const cli_options *o)
             "    \"iaaft_iterations\": %d,\n    \"block_length\": %zu,\n    \"alternative\": \"%s\",\n"
             "    \"seed\": %lu\n  },\n",
             o->recovery == RECOVERY_INCREMENTS ? "increments" : "log",
-            surrogate_name((surrogate_kind)o->null_model), o->surrogates,
+            cli_null_name(o), o->surrogates,
             o->null_options.iaaft_max_iterations, o->null_options.block_length,
             o->alternative < 0 ? "per-indicator"
             : o->alternative == 0 ? "increasing"

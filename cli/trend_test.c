@@ -99,10 +99,10 @@ static int test_series(const cli_options *opts, const prepared_series *ps, trend
         need_level |= indicator_needs_level(opts->indicators[j]);
     null_trend_job job = {&spec, opts->indicators, opts->nindicators, ps->time,
                           need_level ? ps->trend : NULL, opts->seed, ps->name,
-                          surrogate_name((surrogate_kind)opts->null_model)};
+                          cli_null_name(opts)};
     size_t m = (size_t)opts->surrogates;
     cli_null_task task = {run->plan, (surrogate_kind)opts->null_model, &opts->null_options,
-                          ps->residual, &job, m, run->null, 0};
+                          ps->null_source, &job, m, run->null, 0};
     if (st == SLOWSCAN_OK)
         st = cli_null_parallel(&task, run->null_ws, run->nthreads);
     if (task.unconverged)

@@ -266,7 +266,7 @@ static void test_bad_input(void)
                     "screen --log", "row 4");
     expect_rejected("unknown option", good, "screen --windw 5", "--windw");
     expect_rejected("unknown indicator", good, "screen --indicators variance,slope", "slope");
-    expect_rejected("null not available", good, "screen --null control", "control");
+    expect_rejected("control null without a control", good, "screen --null control", "--control");
     expect_rejected("unknown null", good, "screen --null wobble", "wobble");
     expect_rejected("negative surrogates", good, "screen --surrogates -3", "--surrogates");
     expect_rejected("fdr out of range", good, "screen --fdr 1.5", "--fdr");

@@ -240,8 +240,45 @@ static void test_robustness(void)
     free(grid);
 }
 
+/* --null control: surrogates are phase surrogates of the control run's same-named series,
+ * cut to the analysed length (periodogram checked with numpy.fft.rfft, Debian python3-numpy;
+ * Theiler et al. 1992). A control lacking the series, or shorter, is refused. */
+static void test_control_null(void)
+{
+    const char *forced = check_tmp_path("forced.csv"), *full = check_tmp_path("control.csv");
+    const char *cut = check_tmp_path("control-cut.csv"), *out = check_tmp_path("control-sur.csv");
+    write_series_csv(forced, 2, 300, fold_sample, 41);
+    write_series_csv(full, 2, 400, ar1_sample, 42);
+    write_series_csv(cut, 1, 300, ar1_sample, 42); /* s0's first 300 draws (series-major) */
+    char cmd[1600];
+    snprintf(cmd, sizeof cmd, "%s surrogates --detrend none --null control --control %s "
+             "--surrogates 4 -o %s %s", check_binary(), full, out, forced);
+    CHECK(check_run(cmd, NULL, NULL) == 0, "surrogates --null control runs");
+    snprintf(cmd, sizeof cmd, "periodogram_kept.py %s %s s0", out, cut);
+    double v[2] = {0, 1};
+    CHECK(check_python(cmd, v, 2) == 2 && v[0] == 4 && v[1] < 1e-9,
+          "control surrogates keep the control's periodogram (max rel. diff %.3g)", v[1]);
+    snprintf(cmd, sizeof cmd, "--surrogates 99 --null control --control %s", full);
+    char *s = screen(cmd, forced);
+    CHECK(s && strstr(s, ",control,99,"), "screen names the control null");
+    free(s);
+    char *err = NULL;
+    snprintf(cmd, sizeof cmd, "%s screen --null control --control %s %s", check_binary(), cut, full);
+    CHECK(check_run(cmd, NULL, &err) == 1 && err && strstr(err, "fewer than the 400"),
+          "a shorter control is refused: %s", err ? err : "");
+    free(err);
+    const char *other = check_tmp_path("control-other.csv");
+    check_write_file(other, "t,zz\n0,1\n1,2\n2,1\n3,3\n4,2\n5,4\n6,3\n7,5\n8,3\n");
+    snprintf(cmd, sizeof cmd, "%s screen --null control --control %s --vars s0 %s", check_binary(), other, forced);
+    err = NULL;
+    CHECK(check_run(cmd, NULL, &err) == 1 && err && strstr(err, "s0"),
+          "a control lacking the series is refused: %s", err ? err : "");
+    free(err);
+}
+
 void suite_significance(void)
 {
+    test_control_null();
     test_robustness();
     test_json();
     test_surrogates_command();
