@@ -11,6 +11,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <time.h>
+#include "../tests/kendall_direct.h"
 
 static double now(void)
 {
@@ -19,19 +20,6 @@ static double now(void)
     return (double)t.tv_sec + 1e-9 * (double)t.tv_nsec;
 }
 
-/* tau-b by its definition, every pair visited. */
-static double tau_direct(const double *x, const double *y, size_t n)
-{
-    int64_t s = 0, tx = 0, ty = 0, n0 = (int64_t)n * (int64_t)(n - 1) / 2;
-    for (size_t i = 0; i < n; i++)
-        for (size_t j = i + 1; j < n; j++) {
-            int dx = (x[j] > x[i]) - (x[j] < x[i]), dy = (y[j] > y[i]) - (y[j] < y[i]);
-            s += dx * dy;
-            tx += dx == 0;
-            ty += dy == 0;
-        }
-    return (double)s / sqrt((double)(n0 - tx) * (double)(n0 - ty));
-}
 
 /* An indicator-like series against time: x the index (already in order, as for the trend
  * statistic), y a noisy trend rounded so that there are ties in y. */
