@@ -152,6 +152,12 @@ static void test_determinism(void)
     char *c = screen("--surrogates 99 --seed 8", in);
     CHECK(a && b && strcmp(a, b) == 0, "same seed, identical output");
     CHECK(a && c && strcmp(a, c) != 0, "another seed, another output");
+    /* Fewer than 19 surrogates cannot give p <= 0.05: a warning, the run still completes. */
+    char cmd[900], *err = NULL;
+    snprintf(cmd, sizeof cmd, "%s screen --surrogates 10 %s", check_binary(), in);
+    CHECK(check_run(cmd, NULL, &err) == 0 && err && strstr(err, "warning") && strstr(err, "19"),
+          "--surrogates 10 warns: %s", err ? err : "");
+    free(err);
     /* 130 replicates: three blocks of 64, the last one partial, dealt to 1, 2 or 3 threads. */
     char *t1 = screen("--surrogates 130 --threads 1", in), *t2 = screen("--surrogates 130 --threads 2", in);
     char *t3 = screen("--surrogates 130 --threads 3", in);
