@@ -92,6 +92,8 @@ install: all
 	install -m 755 $(B)/slowscan $(DESTDIR)$(PREFIX)/bin/slowscan
 	install -m 644 $(B)/libslowscan.a $(DESTDIR)$(PREFIX)/lib/libslowscan.a
 	install -m 644 include/slowscan/*.h $(DESTDIR)$(PREFIX)/include/slowscan/
+	install -d $(DESTDIR)$(PREFIX)/share/man/man1
+	install -m 644 doc/slowscan.1 $(DESTDIR)$(PREFIX)/share/man/man1/slowscan.1
 
 clean:
 	rm -rf $(B)

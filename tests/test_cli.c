@@ -77,6 +77,26 @@ static void test_help_and_version(void)
     CHECK(slowscan("help screen") == 0 && strstr(run_out, "not forecasts") &&
               strstr(run_out, "null model"), "screen help carries the cautions");
     CHECK(slowscan("nonsense") == 1, "unknown command exits 1");
+    /* Every option is documented in the man page and in some command's --help. */
+    static const char *options[] = {"--time", "--vars", "--from", "--until", "--log", "--resample",
+        "--detrend", "--bandwidth", "--deseason", "--window", "--indicators", "--min-coverage",
+        "--recovery", "--surrogates", "--null", "--iaaft-tol", "--iaaft-iterations",
+        "--block-length", "--alternative", "--fdr", "--seed", "--threads", "--rolling", "--json",
+        "--format", "--windows", "--bandwidths", "--fractions", "--control", "--progress", "-o"};
+    char *man = check_read_file("doc/slowscan.1");
+    char *helps = NULL;
+    char loop[600];
+    snprintf(loop, sizeof loop, "for c in screen robustness surrogates; do %s help $c; done",
+             check_binary());
+    check_run(loop, &helps, NULL);
+    for (size_t i = 0; i < sizeof options / sizeof options[0]; i++) {
+        char roff[64];
+        snprintf(roff, sizeof roff, "\\%s", options[i]); /* man page escapes the dash */
+        int in_man = man && (strstr(man, roff) || strstr(man, options[i]));
+        CHECK(in_man && helps && strstr(helps, options[i]), "option %s documented", options[i]);
+    }
+    free(man);
+    free(helps);
 }
 
 static void test_demo_matches_committed_data(void)
