@@ -7,8 +7,6 @@
 #include <math.h>
 #include <string.h>
 
-static const double TWO_PI = 6.283185307179586476925;
-
 int surrogate_phase_prepare(surrogate_source *s)
 {
     /* The r2c may overwrite its input only with FFTW_DESTROY_INPUT plans; copy to be safe. */
@@ -29,9 +27,17 @@ void surrogate_random_phases(surrogate_source *s, const double *amp, double dc, 
     s->spectrum[0][0] = dc;
     s->spectrum[0][1] = 0;
     for (size_t k = 1; k < top; k++) {
-        double phase = TWO_PI * gsl_rng_uniform(rng);
-        s->spectrum[k][0] = amp[k] * cos(phase);
-        s->spectrum[k][1] = amp[k] * sin(phase);
+        /* A uniform point of the unit disc, by rejection from the square, gives a uniform
+         * direction: exactly uniform phases without a sine and cosine per frequency. */
+        double u, v, r2;
+        do {
+            u = 2.0 * gsl_rng_uniform(rng) - 1.0;
+            v = 2.0 * gsl_rng_uniform(rng) - 1.0;
+            r2 = u * u + v * v;
+        } while (r2 > 1.0 || r2 < 1e-12);
+        double scale = amp[k] / sqrt(r2);
+        s->spectrum[k][0] = scale * u;
+        s->spectrum[k][1] = scale * v;
     }
     if (n % 2 == 0) {
         s->spectrum[n / 2][0] = nyquist;
