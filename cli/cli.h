@@ -127,6 +127,7 @@ void cli_indicator_values_free(const cli_options *opts, double **values);
 typedef struct {
     atomic_file files[4];
     size_t count;
+    const char *stdout_user; /* the option writing to standard output, if any */
 } cli_outputs;
 
 /* Opens `path` (NULL or "-" = stdout) after checking it is not one of the inputs. */

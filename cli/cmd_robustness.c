@@ -28,7 +28,7 @@ static int open_outputs(const cli_options *opts, cli_outputs *outs, void *contex
 }
 
 typedef struct {
-    size_t cells, positive, significant;
+    size_t cells, with_tau, positive, with_p, significant;
 } cell_counts;
 
 /* One grid cell: prepare the series with this window and bandwidth, test, write rows. */
@@ -55,7 +55,9 @@ static int one_cell(robustness_run *run, const cli_options *cell, const cli_inpu
             fputc(c < 3 ? ',' : '\n', run->out);
         }
         counts[j].cells++;
+        counts[j].with_tau += !isnan(results[j].tau);
         counts[j].positive += results[j].tau > 0;
+        counts[j].with_p += !isnan(results[j].p_value);
         counts[j].significant += results[j].p_value <= 0.05;
     }
     cli_indicator_values_free(cell, values);
@@ -67,7 +69,7 @@ static int robustness_series(const cli_options *opts, const cli_inputs *in,
                              const series_table *t, size_t k, void *c)
 {
     robustness_run *run = c;
-    cell_counts counts[INDICATOR_COUNT] = {{0, 0, 0}};
+    cell_counts counts[INDICATOR_COUNT] = {{0, 0, 0, 0, 0}};
     int uses_bandwidth = detrend_uses_bandwidth(opts->detrend.method);
     size_t nb = uses_bandwidth ? opts->nbandwidths : 1;
     int rc = EXIT_OK;
@@ -81,14 +83,12 @@ static int robustness_series(const cli_options *opts, const cli_inputs *in,
         }
     for (size_t j = 0; rc == EXIT_OK && run->fractions && j < opts->nindicators; j++) {
         cli_put_field(run->fractions, t->names[k]);
-        double cells = (double)counts[j].cells;
-        fprintf(run->fractions, ",%s,%zu,", indicator_name(opts->indicators[j]), counts[j].cells);
-        cli_put_number(run->fractions, (double)counts[j].positive / cells);
+        /* Shares among the cells where the quantity exists; NA when it exists nowhere. */
+        const cell_counts *c = &counts[j];
+        fprintf(run->fractions, ",%s,%zu,", indicator_name(opts->indicators[j]), c->cells);
+        cli_put_number(run->fractions, c->with_tau ? (double)c->positive / (double)c->with_tau : NAN);
         fputc(',', run->fractions);
-        if (opts->surrogates > 0)
-            cli_put_number(run->fractions, (double)counts[j].significant / cells);
-        else
-            fputs("NA", run->fractions);
+        cli_put_number(run->fractions, c->with_p ? (double)c->significant / (double)c->with_p : NAN);
         fputc('\n', run->fractions);
     }
     return rc;

@@ -21,10 +21,6 @@ static int open_outputs(const cli_options *opts, cli_outputs *outs, void *contex
     screen_run *run = context;
     int rc = cli_outputs_open(outs, opts, opts->output, "-o", &run->out);
     if (rc == EXIT_OK && opts->rolling_output) {
-        if (!strcmp(opts->rolling_output, "-") && (!opts->output || !strcmp(opts->output, "-"))) {
-            cli_error("option --rolling: the summary already goes to standard output; give a file");
-            return EXIT_BAD_INPUT;
-        }
         rc = cli_outputs_open(outs, opts, opts->rolling_output, "--rolling", &run->rolling);
         if (rc == EXIT_OK)
             fputs(cli_rolling_header, run->rolling);
@@ -71,6 +67,8 @@ static int record_series(const cli_options *opts, const prepared_series *ps, scr
             if (!ps->constant) /* a constant series was warned about when its values were made */
                 cli_warning("%s: column '%s', indicator %s: %s; flagged insufficient", ps->source,
                             ps->name, indicator_name(row->indicator), row->result.reason);
+        } else if (opts->surrogates > 0 && isnan(row->result.p_value)) {
+            row->flag = "insufficient"; /* no null could be made; warned in trend_test */
         } else
             row->flag = "untested"; /* until decide() (for good with --surrogates 0) */
     }

@@ -4,6 +4,7 @@
 #include "slowscan/status.h"
 #include "slowscan/surrogates.h"
 
+#include <errno.h>
 #include <math.h>
 #include <stdarg.h>
 #include <stdlib.h>
@@ -122,6 +123,10 @@ static int parse_grid(const char *name, const char *v, cli_length *items, char (
             cli_error("option %s: more than %d values", name, CLI_MAX_GRID);
             return EXIT_BAD_INPUT;
         }
+        if (strlen(tok) >= 32) {
+            cli_error("option %s: '%s' is too long for a length", name, tok);
+            return EXIT_BAD_INPUT;
+        }
         snprintf(texts[*count], 32, "%s", tok);
         if (parse_length(name, texts[*count], &items[*count]))
             return EXIT_BAD_INPUT;
@@ -218,8 +223,9 @@ static int set_recovery(cli_options *o, const char *n, const char *v)
 static int set_whole(const char *n, const char *v, long min, long *out)
 {
     char *end;
+    errno = 0;
     long x = strtol(v, &end, 10);
-    if (end == v || *end != '\0' || x < min) {
+    if (end == v || *end != '\0' || x < min || errno == ERANGE) {
         cli_error("option %s: '%s' is not a whole number >= %ld", n, v, min);
         return EXIT_BAD_INPUT;
     }
@@ -227,9 +233,17 @@ static int set_whole(const char *n, const char *v, long min, long *out)
     return EXIT_OK;
 }
 
+/* Enough for p-values of 1e-6; more would only fill memory (8 bytes x indicators each). */
+enum { MAX_SURROGATES = 1000000 };
+
 static int set_surrogates(cli_options *o, const char *n, const char *v)
 {
-    return set_whole(n, v, 0, &o->surrogates);
+    int rc = set_whole(n, v, 0, &o->surrogates);
+    if (rc == EXIT_OK && o->surrogates > MAX_SURROGATES) {
+        cli_error("option %s: at most %d surrogates", n, MAX_SURROGATES);
+        return EXIT_BAD_INPUT;
+    }
+    return rc;
 }
 
 static int set_null(cli_options *o, const char *n, const char *v)

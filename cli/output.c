@@ -3,25 +3,47 @@
 #include "cli.h"
 #include "slowscan/status.h"
 
+#include <errno.h>
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
 
+/* An output must not be an input (or the control run), another output of the same run, or
+ * a second user of standard output. */
+static int output_clashes(const cli_outputs *outs, const cli_options *opts, const char *path,
+                          const char *option)
+{
+    int to_stdout = !path || strcmp(path, "-") == 0;
+    if (to_stdout) {
+        if (outs->stdout_user) {
+            cli_error("option %s: standard output is already taken by %s; give a file",
+                      option, outs->stdout_user);
+            return 1;
+        }
+        return 0;
+    }
+    for (size_t f = 0; f <= opts->nfiles; f++) {
+        const char *in = f < opts->nfiles ? opts->files[f] : opts->control_file;
+        if (in && (strcmp(path, in) == 0 || io_same_file(path, in))) {
+            cli_error("option %s: output %s is an input file; refusing to overwrite it", option, path);
+            return 1;
+        }
+    }
+    for (size_t j = 0; j < outs->count; j++) {
+        const char *other = outs->files[j].path;
+        if (other && (strcmp(other, path) == 0 || io_same_file(other, path))) {
+            cli_error("option %s: output %s is already written by another option", option, path);
+            return 1;
+        }
+    }
+    return 0;
+}
+
 int cli_outputs_open(cli_outputs *outs, const cli_options *opts, const char *path,
                      const char *option, FILE **fp)
 {
-    int to_stdout = !path || strcmp(path, "-") == 0;
-    for (size_t f = 0; !to_stdout && f < opts->nfiles; f++)
-        if (strcmp(path, opts->files[f]) == 0 || io_same_file(path, opts->files[f])) {
-            cli_error("option %s: output %s is the input file; refusing to overwrite it", option,
-                      path);
-            return EXIT_BAD_INPUT;
-        }
-    for (size_t j = 0; !to_stdout && j < outs->count; j++)
-        if (outs->files[j].path && strcmp(outs->files[j].path, path) == 0) {
-            cli_error("option %s: output %s is already written by another option", option, path);
-            return EXIT_BAD_INPUT;
-        }
+    if (output_clashes(outs, opts, path, option))
+        return EXIT_BAD_INPUT;
     if (outs->count == sizeof outs->files / sizeof outs->files[0])
         return EXIT_INTERNAL;
     io_error err = {{0}};
@@ -30,6 +52,8 @@ int cli_outputs_open(cli_outputs *outs, const cli_options *opts, const char *pat
         cli_error("option %s: %s", option, err.message);
         return EXIT_BAD_INPUT;
     }
+    if (!file->path)
+        outs->stdout_user = option;
     outs->count++;
     *fp = file->fp;
     return EXIT_OK;
@@ -38,6 +62,15 @@ int cli_outputs_open(cli_outputs *outs, const cli_options *opts, const char *pat
 int cli_outputs_commit(cli_outputs *outs)
 {
     int rc = EXIT_OK;
+    /* Flush everything before renaming anything: a write error (a full disk) in one output
+     * must not leave the others already in place. */
+    for (size_t j = 0; j < outs->count; j++)
+        if (fflush(outs->files[j].fp) != 0 || ferror(outs->files[j].fp)) {
+            cli_error("cannot write %s: %s", outs->files[j].path ? outs->files[j].path
+                                                                 : "standard output",
+                      strerror(errno ? errno : EIO));
+            rc = EXIT_BAD_INPUT;
+        }
     for (size_t j = 0; j < outs->count; j++) {
         io_error err = {{0}};
         if (rc != EXIT_OK) {

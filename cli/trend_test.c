@@ -92,6 +92,14 @@ static void null_quantiles(trend_tester *run, const double *null, size_t m, tren
 static int test_series(const cli_options *opts, const prepared_series *ps, trend_tester *run,
                        trend_result *rows)
 {
+    size_t block = opts->null_options.block_length;
+    if (opts->null_model == SURROGATE_BLOCK && block > ps->n / 2) {
+        /* With blocks longer than half the record there are too few distinct starts for a
+         * null distribution (at L = n every replicate is the series itself). */
+        cli_error("%s: column '%s': option --block-length %zu is more than half the %zu samples",
+                  ps->source, ps->name, block, ps->n);
+        return EXIT_BAD_INPUT;
+    }
     int st = ready_null(run, opts, ps->n);
     rolling_spec spec = {ps->window, opts->min_coverage, ps->dt, opts->recovery};
     int need_level = 0;
@@ -109,6 +117,21 @@ static int test_series(const cli_options *opts, const prepared_series *ps, trend
         cli_warning("%s: column '%s': %zu of %zu iaaft surrogates did not converge within %d "
                     "iterations (--iaaft-iterations, --iaaft-tol)", ps->source, ps->name,
                     task.unconverged, m, opts->null_options.iaaft_max_iterations);
+    if (st == SLOWSCAN_ESHORT || st == SLOWSCAN_ECONST) {
+        /* This series cannot carry a null (too few samples, or none varying): its rows are
+         * insufficient, the run goes on. */
+        cli_warning("%s: column '%s': no surrogates can be made (%s); its p-values are NA",
+                    ps->source, ps->name, slowscan_strerror(st));
+        for (size_t j = 0; j < opts->nindicators; j++)
+            rows[j].reason = "no surrogates can be made";
+        return EXIT_OK;
+    }
+    if (st == SLOWSCAN_ENUMERIC && opts->null_model == SURROGATE_AR1) {
+        cli_error("%s: column '%s': option --null ar1: the fitted AR(1) coefficient is not below 1 "
+                  "(the residual is not stationary); detrend differently or choose another null",
+                  ps->source, ps->name);
+        return EXIT_BAD_INPUT;
+    }
     if (st != SLOWSCAN_OK) {
         cli_error("%s: column '%s': surrogate null failed: %s", ps->source, ps->name,
                   slowscan_strerror(st));
@@ -134,7 +157,10 @@ int trend_test(trend_tester *run, const cli_options *opts, const prepared_series
         if (!ps->constant)
             r->tau = trend_of(run, ps, values[j], &r->reason);
     }
-    if (opts->surrogates > 0 && !ps->constant)
+    int any = 0;
+    for (size_t j = 0; j < opts->nindicators; j++)
+        any |= !isnan(results[j].tau);
+    if (opts->surrogates > 0 && any)
         return test_series(opts, ps, run, results);
     return EXIT_OK;
 }

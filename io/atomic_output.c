@@ -43,8 +43,20 @@ int atomic_open(atomic_file *f, const char *path, io_error *err)
         return SLOWSCAN_OK;
     }
     struct stat st;
-    if (stat(path, &st) == 0 && S_ISDIR(st.st_mode))
+    int exists = stat(path, &st) == 0;
+    if (exists && S_ISDIR(st.st_mode))
         return io_fail(err, SLOWSCAN_EIO, "cannot write %s: it is a directory", path);
+    if (exists && !S_ISREG(st.st_mode)) {
+        /* A FIFO or a device (/dev/null, a pipe to another program): renaming a temporary
+         * file over it would replace it, so write to it directly; there is no partial file
+         * to avoid. */
+        if (!(f->fp = fopen(path, "w")) || !(f->path = io_strdup(path))) {
+            int e = errno;
+            atomic_abort(f);
+            return io_fail(err, SLOWSCAN_EIO, "cannot write %s: %s", path, io_strerror(e, why, sizeof why));
+        }
+        return SLOWSCAN_OK;
+    }
     size_t len = strlen(path);
     f->path = io_strdup(path);
     f->temp_path = malloc(len + sizeof ".tmp.XXXXXX");
@@ -98,7 +110,7 @@ int atomic_commit(atomic_file *f, io_error *err)
     if (fclose(f->fp) != 0 && !e)
         e = errno ? errno : EIO;
     f->fp = NULL;
-    if (!e && rename(f->temp_path, f->path) != 0)
+    if (!e && f->temp_path && rename(f->temp_path, f->path) != 0)
         e = errno;
     if (e) {
         char why[128];

@@ -311,8 +311,77 @@ static void test_bad_input(void)
           "missing input named");
 }
 
+/* Regression tests for defects found in review (one per defect). */
+static void test_review_regressions(void)
+{
+    const char *in = check_tmp_path("rev.csv");
+    char *csv = make_csv(120, 4);
+    /* an all-missing column and a random walk next to the usual two */
+    size_t len = strlen(csv);
+    char *text = malloc(len * 2 + 4096), *o = text;
+    check_rng *r = check_rng_alloc(9);
+    double walk = 0;
+    for (char *line = csv; *line;) {
+        char *eol = strchr(line, '\n');
+        o += sprintf(o, "%.*s", (int)(eol - line), line);
+        if (line == csv)
+            o += sprintf(o, ",empty,walk\n");
+        else
+            o += sprintf(o, ",NA,%.6f\n", walk += check_rng_gaussian(r));
+        line = eol + 1;
+    }
+    check_rng_free(r);
+    check_write_file(in, text);
+    free(text);
+    free(csv);
+    char args[1200];
+    /* 1. a column with no data is insufficient, not a failed run */
+    snprintf(args, sizeof args, "screen --surrogates 20 --vars rising,empty %s", in);
+    CHECK(slowscan(args) == 0 && strstr(run_out, "empty,variance,0,") &&
+              strstr(run_out, ",insufficient\n"), "all-NA column with surrogates: %s", run_err);
+    /* 2. absurd surrogate counts name the option */
+    snprintf(args, sizeof args, "screen --surrogates 99999999999999999999 %s", in);
+    CHECK(slowscan(args) == 1 && strstr(run_err, "--surrogates"), "huge --surrogates refused");
+    /* 3. outputs that clash */
+    const char *o1 = check_tmp_path("rev-o1.csv");
+    snprintf(args, sizeof args, "screen --surrogates 0 -o %s --rolling %s %s", o1, o1, in);
+    CHECK(slowscan(args) == 1 && strstr(run_err, "--rolling") && !check_file_exists(o1),
+          "-o and --rolling on one file refused");
+    snprintf(args, sizeof args, "screen --surrogates 0 --json - %s", in);
+    CHECK(slowscan(args) == 1 && strstr(run_err, "standard output"), "two outputs on stdout refused");
+    snprintf(args, sizeof args, "screen --null control --control %s -o %s %s", o1, o1, in);
+    char *copy = check_read_file(in);
+    check_write_file(o1, copy); /* a valid control run, in another file */
+    free(copy);
+    CHECK(slowscan(args) == 1 && strstr(run_err, "input"), "output = control refused");
+    /* 4. a FIFO target stays a FIFO */
+    const char *fifo = check_tmp_path("rev-fifo"), *got = check_tmp_path("rev-fifo.out");
+    snprintf(args, sizeof args, "mkfifo %s && (cat %s > %s &) && %s screen --surrogates 0 -o %s %s "
+             "&& sleep 0.2 && test -p %s", fifo, fifo, got, check_binary(), fifo, in, fifo);
+    CHECK(check_run(args, NULL, NULL) == 0, "a FIFO output is written through, not replaced");
+    /* 5. null models that cannot work say why */
+    snprintf(args, sizeof args, "screen --null block --block-length 100 %s", in);
+    CHECK(slowscan(args) == 1 && strstr(run_err, "--block-length"), "block longer than n/2");
+    snprintf(args, sizeof args, "screen --null ar1 --detrend none --vars walk %s", in);
+    int rc = slowscan(args);
+    CHECK(rc == 0 || (rc == 1 && strstr(run_err, "--null ar1")), "ar1 on a random walk: %s", run_err);
+    /* 6. grid entries too long are refused, not cut */
+    snprintf(args, sizeof args, "robustness --windows 50.00000000000000000000000000000%% %s", in);
+    CHECK(slowscan(args) == 1 && strstr(run_err, "--windows"), "long grid entry refused");
+    /* 7. fractions are NA where nothing could be computed */
+    const char *fr = check_tmp_path("rev-fr.csv");
+    snprintf(args, sizeof args, "robustness --vars empty,rising --windows 40%%,60%% --bandwidths 10%% "
+             "--surrogates 20 --fractions %s %s", fr, in);
+    int ran = slowscan(args);
+    char *f = check_read_file(fr);
+    CHECK(ran == 0 && f && strstr(f, "empty,variance,2,NA,NA"), "fractions NA for an empty column: %s",
+          f ? f : "");
+    free(f);
+}
+
 void suite_cli(void)
 {
+    test_review_regressions();
     test_help_and_version();
     test_demo_matches_committed_data();
     test_detrend_output();
