@@ -9,7 +9,9 @@
  * Missing samples: the source series is filled at its NaN positions by the mean of its finite
  * samples before transforming, and every surrogate gets NaN back at exactly those positions,
  * so the surrogate's windows have the same coverage as the observed ones. (For aaft and iaaft
- * the set of values is then kept exactly only when the series has no gaps.) */
+ * the set of values is then kept exactly only when the series has no gaps, and block
+ * bootstrap blocks may carry filled values into present positions: with long gaps prefer
+ * phase, or fill the gaps first with --resample.) */
 #ifndef SLOWSCAN_SURROGATES_H
 #define SLOWSCAN_SURROGATES_H
 
