@@ -13,6 +13,7 @@ void suite_indicators(void);
 void suite_kendall(void);
 void suite_surrogates(void);
 void suite_significance(void);
+void suite_ar1_drift(void);
 void suite_cli(void);
 
 static const struct {
@@ -20,7 +21,7 @@ static const struct {
     void (*run)(void);
 } suites[] = {
     {"detrend", suite_detrend},       {"io", suite_io},   {"indicators", suite_indicators},
-    {"kendall", suite_kendall},       {"surrogates", suite_surrogates}, {"cli", suite_cli},
+    {"kendall", suite_kendall},       {"surrogates", suite_surrogates}, {"ar1_drift", suite_ar1_drift}, {"cli", suite_cli},
     {"significance", suite_significance},
 };
 

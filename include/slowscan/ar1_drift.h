@@ -1,0 +1,40 @@
+/* slowscan — AR(1) with a linearly drifting coefficient (module prefix: ar1_drift_).
+ *
+ * Ordinary least squares of x_{t+1} = (a0 + a1 s_t) x_t + c + e_t over the adjacent pairs
+ * present, s_t the time of x_t rescaled to [-1/2, 1/2] over the series (index t / (n-1) -
+ * 1/2 on the regular grid). a1 > 0 means the lag-one memory grows — the recovery rate
+ * lambda(t) = ln(a0 + a1 s_t) / dt drifts toward zero. The t-value of a1 is the statistic of
+ * the model-based slowing-down test; its null distribution comes from surrogates, not from
+ * Student's t, because the residual is not white under the alternatives that matter.
+ * The workspace holds the design, so refits (one per surrogate) do not allocate. */
+#ifndef SLOWSCAN_AR1_DRIFT_H
+#define SLOWSCAN_AR1_DRIFT_H
+
+#include <stddef.h>
+
+typedef struct {
+    double a0, a1, c;             /* coefficients */
+    double se_a0, se_a1, se_c;    /* OLS standard errors */
+    double cov_a0_a1;             /* covariance of a0 and a1 */
+    double t_a1;                  /* a1 / se_a1 */
+    double sigma2;                /* residual variance (pairs - 3 degrees of freedom) */
+    size_t pairs;                 /* pairs used */
+} ar1_drift_fit;
+
+typedef struct ar1_drift_workspace ar1_drift_workspace;
+
+ar1_drift_workspace *ar1_drift_alloc(size_t nmax);
+void ar1_drift_free(ar1_drift_workspace *ws);
+
+/* Fits x[0..n) (NaN: missing; a pair is used when both samples are present). SLOWSCAN_ESHORT
+ * with fewer than 8 pairs, SLOWSCAN_ECONST when the design is singular (a constant series),
+ * SLOWSCAN_EINVAL for n > nmax. */
+int ar1_drift_estimate(ar1_drift_workspace *ws, const double *x, size_t n, ar1_drift_fit *fit);
+
+/* The recovery-rate path lambda(t_i) = ln(a0 + a1 s_i) / dt at every sample i, with a
+ * pointwise 95% band by the delta method (se(phi) / (phi dt), phi = a0 + a1 s_i, +-1.96 se).
+ * NaN where phi <= 0. lo and hi may be NULL. */
+void ar1_drift_path(const ar1_drift_fit *fit, size_t n, double dt, double *lambda, double *lo,
+                    double *hi);
+
+#endif

@@ -1,0 +1,115 @@
+/* AR(1) with a linearly drifting coefficient, fitted by ordinary least squares (GSL). */
+#include "slowscan/ar1_drift.h"
+#include "slowscan/status.h"
+
+#include <gsl/gsl_errno.h>
+#include <gsl/gsl_multifit.h>
+#include <math.h>
+#include <stdlib.h>
+
+struct ar1_drift_workspace {
+    size_t nmax;
+    gsl_matrix *design; /* rows: x_t, s_t x_t, 1 */
+    gsl_vector *response, *coef;
+    gsl_matrix *cov;
+    gsl_multifit_linear_workspace *lw; /* sized for nmax - 1 rows; GSL 2 fits fewer in it */
+};
+
+void ar1_drift_free(ar1_drift_workspace *ws)
+{
+    if (!ws)
+        return;
+    if (ws->design)
+        gsl_matrix_free(ws->design);
+    if (ws->response)
+        gsl_vector_free(ws->response);
+    if (ws->coef)
+        gsl_vector_free(ws->coef);
+    if (ws->cov)
+        gsl_matrix_free(ws->cov);
+    if (ws->lw)
+        gsl_multifit_linear_free(ws->lw);
+    free(ws);
+}
+
+ar1_drift_workspace *ar1_drift_alloc(size_t nmax)
+{
+    if (nmax < 2)
+        return NULL;
+    ar1_drift_workspace *ws = calloc(1, sizeof *ws);
+    if (!ws)
+        return NULL;
+    ws->nmax = nmax;
+    ws->design = gsl_matrix_alloc(nmax - 1, 3);
+    ws->response = gsl_vector_alloc(nmax - 1);
+    ws->coef = gsl_vector_alloc(3);
+    ws->cov = gsl_matrix_alloc(3, 3);
+    ws->lw = gsl_multifit_linear_alloc(nmax - 1 < 3 ? 3 : nmax - 1, 3);
+    if (!ws->design || !ws->response || !ws->coef || !ws->cov || !ws->lw) {
+        ar1_drift_free(ws);
+        return NULL;
+    }
+    return ws;
+}
+
+/* Fills the design with the present pairs; returns their number. */
+static size_t fill_design(ar1_drift_workspace *ws, const double *x, size_t n)
+{
+    size_t m = 0;
+    for (size_t t = 0; t + 1 < n; t++) {
+        if (!isfinite(x[t]) || !isfinite(x[t + 1]))
+            continue;
+        double s = (double)t / (double)(n - 1) - 0.5;
+        gsl_matrix_set(ws->design, m, 0, x[t]);
+        gsl_matrix_set(ws->design, m, 1, s * x[t]);
+        gsl_matrix_set(ws->design, m, 2, 1.0);
+        gsl_vector_set(ws->response, m, x[t + 1]);
+        m++;
+    }
+    return m;
+}
+
+int ar1_drift_estimate(ar1_drift_workspace *ws, const double *x, size_t n, ar1_drift_fit *fit)
+{
+    if (n > ws->nmax || n < 2)
+        return SLOWSCAN_EINVAL;
+    size_t m = fill_design(ws, x, n);
+    if (m < 8)
+        return SLOWSCAN_ESHORT;
+    gsl_matrix_view X = gsl_matrix_submatrix(ws->design, 0, 0, m, 3);
+    gsl_vector_view y = gsl_vector_subvector(ws->response, 0, m);
+    double chisq;
+    size_t rank;
+    /* The SVD with a relative tolerance tells a singular design (a constant series) apart. */
+    int st = gsl_multifit_linear_tsvd(&X.matrix, &y.vector, 1e-12, ws->coef, ws->cov, &chisq,
+                                      &rank, ws->lw);
+    if (st != GSL_SUCCESS)
+        return SLOWSCAN_ENUMERIC;
+    if (rank < 3)
+        return SLOWSCAN_ECONST;
+    /* GSL's covariance is already s^2 (X'X)^-1 with s^2 = chisq / (m - 3). */
+    double s2 = chisq / (double)(m - 3);
+    *fit = (ar1_drift_fit){gsl_vector_get(ws->coef, 0), gsl_vector_get(ws->coef, 1),
+                           gsl_vector_get(ws->coef, 2), sqrt(gsl_matrix_get(ws->cov, 0, 0)),
+                           sqrt(gsl_matrix_get(ws->cov, 1, 1)), sqrt(gsl_matrix_get(ws->cov, 2, 2)),
+                           gsl_matrix_get(ws->cov, 0, 1), 0.0, s2, m};
+    fit->t_a1 = fit->se_a1 > 0 ? fit->a1 / fit->se_a1 : NAN;
+    return SLOWSCAN_OK;
+}
+
+void ar1_drift_path(const ar1_drift_fit *fit, size_t n, double dt, double *lambda, double *lo,
+                    double *hi)
+{
+    double v0 = fit->se_a0 * fit->se_a0, v1 = fit->se_a1 * fit->se_a1;
+    for (size_t i = 0; i < n; i++) {
+        double s = n > 1 ? (double)i / (double)(n - 1) - 0.5 : 0.0;
+        double phi = fit->a0 + fit->a1 * s;
+        double se_phi = sqrt(fmax(0.0, v0 + s * s * v1 + 2.0 * s * fit->cov_a0_a1));
+        double l = phi > 0 ? log(phi) / dt : NAN, se = phi > 0 ? se_phi / (phi * dt) : NAN;
+        lambda[i] = l;
+        if (lo)
+            lo[i] = l - 1.96 * se;
+        if (hi)
+            hi[i] = l + 1.96 * se;
+    }
+}
