@@ -59,6 +59,18 @@ typedef struct {
     double tau[2], p[2], seconds;
 } job_result;
 
+/* The standard job's settings: time axis, Gaussian detrend with bandwidth 10% of the span,
+ * windows of 50% (W = round(0.5 (n-1)) + 1). */
+static rolling_spec standard_setup(const double *x, double *time_axis, double *trend, double *resid)
+{
+    for (size_t i = 0; i < N; i++)
+        time_axis[i] = (double)i;
+    detrend_spec spec = {DETREND_GAUSSIAN, 0.10 * (N - 1), 0};
+    detrend_apply(&spec, 1.0, x, N, trend, resid);
+    size_t W = (size_t)floor(0.5 * (N - 1) + 0.5) + 1;
+    return (rolling_spec){W, 0.8, 1.0, RECOVERY_LOG_AR1};
+}
+
 /* The whole job through the library, as screen runs it for one series. */
 static job_result run_slowscan(const double *x)
 {
@@ -67,12 +79,7 @@ static job_result run_slowscan(const double *x)
     double *paths[2] = {malloc(N * sizeof(double)), malloc(N * sizeof(double))};
     indicator_kind kinds[2] = {INDICATOR_VARIANCE, INDICATOR_LAG1};
     double t0 = now();
-    for (size_t i = 0; i < N; i++)
-        time_axis[i] = (double)i;
-    detrend_spec spec = {DETREND_GAUSSIAN, 0.10 * (N - 1), 0};
-    detrend_apply(&spec, 1.0, x, N, trend, resid);
-    size_t W = (size_t)floor(0.5 * (N - 1) + 0.5) + 1;
-    rolling_spec rs = {W, 0.8, 1.0, RECOVERY_LOG_AR1};
+    rolling_spec rs = standard_setup(x, time_axis, trend, resid);
     rolling_compute(&rs, resid, NULL, N, kinds, 2, paths);
     kendall_workspace *kw = kendall_alloc(N);
     for (int k = 0; k < 2; k++)
@@ -114,12 +121,7 @@ static void floor_ratio(const double *x)
     enum { REPS = 400 };
     static double resid[N], time_axis[N], path[N], out[N], null[2 * REPS];
     indicator_kind kinds[2] = {INDICATOR_VARIANCE, INDICATOR_LAG1};
-    for (size_t i = 0; i < N; i++)
-        time_axis[i] = (double)i;
-    detrend_spec spec = {DETREND_GAUSSIAN, 0.10 * (N - 1), 0};
-    detrend_apply(&spec, 1.0, x, N, NULL, resid);
-    size_t W = (size_t)floor(0.5 * (N - 1) + 0.5) + 1;
-    rolling_spec rs = {W, 0.8, 1.0, RECOVERY_LOG_AR1};
+    rolling_spec rs = standard_setup(x, time_axis, NULL, resid);
     surrogate_plan *plan = surrogate_plan_alloc(N, FFTW_ESTIMATE);
     int st;
     surrogate_source *src = surrogate_source_alloc(plan, SURROGATE_PHASE, resid, NULL, &st);
