@@ -197,5 +197,6 @@ int cmd_screen(const cli_options *opts);
 int cmd_demo(const cli_options *opts);
 int cmd_surrogates(const cli_options *opts);
 int cmd_robustness(const cli_options *opts);
+int cmd_recovery(const cli_options *opts);
 
 #endif

@@ -13,6 +13,7 @@ static const char overview[] =
     "  indicators  rolling-window indicators per series (series,time,indicator,value)\n"
     "  detrend     trend and residual per series (series,time,value,trend,residual)\n"
     "  robustness  the trend test over a grid of windows x bandwidths\n"
+    "  recovery    recovery-rate path of an AR(1) with a drifting coefficient\n"
     "  surrogates  null-model replicates of each residual (series,replicate,time,value)\n"
     "  demo        write the invented demo data set (lake stations) to data/ or --out DIR\n"
     "  help        this text, or 'slowscan help COMMAND'\n"
@@ -142,6 +143,21 @@ static void help_robustness(FILE *out)
     fputs(cautions, out);
 }
 
+static void help_recovery(FILE *out)
+{
+    fputs("usage: slowscan recovery [options] FILE...\n\n"
+          "Fits x[t+1] = (a0 + a1 s_t) x[t] + c + e_t to each residual by least squares (s_t the\n"
+          "time rescaled to [-1/2, 1/2]) and writes the recovery-rate path\n"
+          "series,time,lambda,lambda_lo,lambda_hi, lambda = ln(a0 + a1 s_t)/dt with a pointwise\n"
+          "95% band (delta method). a1 > 0: the memory grows, lambda rises toward 0.\n\n", out);
+    fputs(input_options, out);
+    fputs("  --json FILE          per series a0, a1, c, their standard errors, the t-value of a1\n"
+          "                       and, with --surrogates M, its surrogate p-value (a1 > 0)\n", out);
+    fputs(testing_options, out);
+    fputs("\n", out);
+    fputs(cautions, out);
+}
+
 static void help_surrogates(FILE *out)
 {
     fputs("usage: slowscan surrogates [options] FILE...\n\n"
@@ -180,6 +196,7 @@ int cli_help(const char *topic, FILE *out)
                   {"screen", help_screen},
                   {"surrogates", help_surrogates},
                   {"robustness", help_robustness},
+                  {"recovery", help_recovery},
                   {"demo", help_demo}};
     if (!topic) {
         fputs(overview, out);
@@ -192,6 +209,6 @@ int cli_help(const char *topic, FILE *out)
             topics[i].print(out);
             return EXIT_OK;
         }
-    fprintf(stderr, "slowscan: no help for '%s' (commands: screen, robustness, indicators, detrend, surrogates, demo)\n", topic);
+    fprintf(stderr, "slowscan: no help for '%s' (commands: screen, robustness, recovery, indicators, detrend, surrogates, demo)\n", topic);
     return EXIT_BAD_INPUT;
 }

@@ -18,6 +18,7 @@ static const struct {
     {"indicators", cmd_indicators},
     {"screen", cmd_screen},
     {"robustness", cmd_robustness},
+    {"recovery", cmd_recovery},
     {"surrogates", cmd_surrogates},
     {"demo", cmd_demo},
 };

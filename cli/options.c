@@ -11,10 +11,11 @@
 #include <string.h>
 #include <unistd.h>
 
-enum { C_DETREND = 1, C_INDICATORS = 2, C_SCREEN = 4, C_DEMO = 8, C_SURROGATES = 16, C_ROBUST = 32 };
-#define C_SERIES (C_DETREND | C_INDICATORS | C_SCREEN | C_SURROGATES | C_ROBUST)
+enum { C_DETREND = 1, C_INDICATORS = 2, C_SCREEN = 4, C_DEMO = 8, C_SURROGATES = 16, C_ROBUST = 32,
+       C_RECOVERY = 64 };
+#define C_SERIES (C_DETREND | C_INDICATORS | C_SCREEN | C_SURROGATES | C_ROBUST | C_RECOVERY)
 #define C_ROLLING (C_INDICATORS | C_SCREEN | C_ROBUST)
-#define C_TESTING (C_SCREEN | C_ROBUST)
+#define C_TESTING (C_SCREEN | C_ROBUST | C_RECOVERY)
 
 typedef int (*option_setter)(cli_options *opts, const char *name, const char *value);
 
@@ -356,7 +357,7 @@ static const option_spec options[] = {
     {"--fdr", 1, C_TESTING, set_fdr},
     {"--alternative", 1, C_TESTING, set_alternative},
     {"--rolling", 1, C_SCREEN, set_rolling},
-    {"--json", 1, C_SCREEN, set_json},
+    {"--json", 1, C_SCREEN | C_RECOVERY, set_json},
     {"--control", 1, C_TESTING | C_SURROGATES, set_control},
     {"--windows", 1, C_ROBUST, set_windows},
     {"--bandwidths", 1, C_ROBUST, set_bandwidths},
@@ -373,8 +374,9 @@ static const option_spec options[] = {
 
 static int command_bit(const char *command)
 {
-    static const char *names[] = {"detrend", "indicators", "screen", "demo", "surrogates", "robustness"};
-    for (int i = 0; i < 6; i++)
+    static const char *names[] = {"detrend", "indicators", "screen", "demo", "surrogates",
+                                  "robustness", "recovery"};
+    for (int i = 0; i < 7; i++)
         if (strcmp(command, names[i]) == 0)
             return 1 << i;
     return 0;
@@ -395,7 +397,7 @@ static void set_defaults(const char *command, cli_options *o)
     o->indicators_text = "variance,lag1";
     o->min_coverage = 0.8;
     o->recovery = RECOVERY_LOG_AR1;
-    o->surrogates = strcmp(command, "surrogates") == 0 ? 10 : strcmp(command, "robustness") == 0 ? 0 : 1000;
+    o->surrogates = strcmp(command, "surrogates") == 0 ? 10 : (strcmp(command, "robustness") == 0 || strcmp(command, "recovery") == 0) ? 0 : 1000;
     o->null_model = SURROGATE_PHASE;
     o->null_options = surrogate_default_options();
     o->fdr = 0.05;

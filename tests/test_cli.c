@@ -67,8 +67,9 @@ static void test_help_and_version(void)
 {
     CHECK(slowscan("--version") == 0 && strstr(run_out, "slowscan "), "--version");
     CHECK(slowscan("help") == 0 && strstr(run_out, "screen"), "help lists commands");
-    const char *cmds[] = {"screen", "indicators", "detrend", "demo"};
-    for (size_t i = 0; i < 4; i++) {
+    const char *cmds[] = {"screen", "indicators", "detrend", "demo", "robustness", "recovery",
+                          "surrogates"};
+    for (size_t i = 0; i < 7; i++) {
         char a[64];
         snprintf(a, sizeof a, "%s --help", cmds[i]);
         CHECK(slowscan(a) == 0 && strstr(run_out, "usage: slowscan"), "%s --help", cmds[i]);
