@@ -314,8 +314,54 @@ static void test_recovery(void)
     free(out);
 }
 
+/* Share of series with p <= 0.05 in a recovery --json file (Python's json module). */
+static double recovery_share(const char *json, size_t *count)
+{
+    char cmd[900];
+    snprintf(cmd, sizeof cmd, "/usr/bin/python3 -c \"import json; d=json.load(open('%s'))['series'];"
+             "print(len(d), sum(1 for s in d if s['p_value'] is not None and s['p_value'] <= 0.05))\"",
+             json);
+    char *out = NULL;
+    double n = 0, hits = 0;
+    if (check_run(cmd, &out, NULL) == 0 && out)
+        sscanf(out, "%lf %lf", &n, &hits);
+    free(out);
+    *count = (size_t)n;
+    return n > 0 ? hits / n : NAN;
+}
+
+/* The drift test keeps its size on stationary AR(1) series (binomial 99% interval, as for
+ * screen) and flags fold approaches more often than the rolling lag1 test does on the same
+ * series (issue's power comparison; common practice, no source, for the direction). */
+static void test_recovery_size_power(void)
+{
+    const char *in = check_tmp_path("rec-ar1.csv"), *js = check_tmp_path("rec-ar1.json");
+    write_series_csv(in, 200, 300, ar1_sample, 77);
+    char cmd[1400];
+    snprintf(cmd, sizeof cmd, "%s recovery --detrend linear --surrogates 199 --json %s -o /dev/null %s",
+             check_binary(), js, in);
+    CHECK(check_run(cmd, NULL, NULL) == 0, "recovery on 200 AR(1) series");
+    size_t count = 0;
+    double share = recovery_share(js, &count);
+    size_t hits = (size_t)lround(share * (double)count);
+    fprintf(stderr, "size, phase null, recovery drift: %zu of %zu with p <= 0.05 (99%% interval 3..19)\n",
+            hits, count);
+    CHECK(count == 200 && hits >= 3 && hits <= 19, "size of the drift test: %zu/%zu", hits, count);
+    const char *fold = check_tmp_path("rec-fold.csv"), *fj = check_tmp_path("rec-fold.json");
+    write_series_csv(fold, 20, 1200, fold_sample, 33); /* the series of test_power */
+    snprintf(cmd, sizeof cmd, "%s recovery --surrogates 199 --json %s -o /dev/null %s",
+             check_binary(), fj, fold);
+    CHECK(check_run(cmd, NULL, NULL) == 0, "recovery on fold series");
+    double power = recovery_share(fj, &count);
+    fprintf(stderr, "power, phase null, recovery drift: %.2f of %zu fold series with p <= 0.05\n",
+            power, count);
+    CHECK(count == 20 && power >= 0.5, "power of the drift test %.2f (rolling lag1 at 25%%: 0.50-0.65)",
+          power);
+}
+
 void suite_significance(void)
 {
+    test_recovery_size_power();
     test_recovery();
     test_control_null();
     test_robustness();
