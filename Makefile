@@ -76,7 +76,7 @@ check: deps
 	  SLOWSCAN_BIN=$(B)/asan/slowscan SLOWSCAN_LABEL=sanitized $(B)/asan/run_tests
 
 DEMO_OUT ?= demo-output
-DEMO_ARGS := --deseason 364 --indicators variance,lag1,ar1
+DEMO_ARGS := --deseason 364 --indicators variance,lag1,recovery_trend
 demo: deps
 	@$(MAKE) --no-print-directory all
 	@mkdir -p $(DEMO_OUT)

@@ -88,7 +88,7 @@ static job_result run_slowscan(const double *x)
     int st;
     surrogate_source *src = surrogate_source_alloc(plan, SURROGATE_PHASE, resid, NULL, &st);
     null_trend_workspace *ws = null_trend_alloc(N, 2);
-    null_trend_job job = {&rs, kinds, 2, time_axis, NULL, 1, "y", "phase"};
+    null_trend_job job = {&rs, kinds, 2, time_axis, NULL, 1, "y", "phase", 0};
     null_trend_draw(ws, src, &job, 0, M, null, M);
     for (int k = 0; k < 2; k++)
         r.p[k] = significance_p_value(r.tau[k], null + k * M, M, ALTERNATIVE_INCREASING, NULL);
@@ -126,7 +126,7 @@ static void floor_ratio(const double *x)
     int st;
     surrogate_source *src = surrogate_source_alloc(plan, SURROGATE_PHASE, resid, NULL, &st);
     null_trend_workspace *ws = null_trend_alloc(N, 2);
-    null_trend_job job = {&rs, kinds, 2, time_axis, NULL, 1, "y", "phase"};
+    null_trend_job job = {&rs, kinds, 2, time_axis, NULL, 1, "y", "phase", 0};
     kendall_workspace *kw = kendall_alloc(N);
     double *real = fftw_alloc_real(N);
     fftw_complex *spectrum = fftw_alloc_complex(N / 2 + 1);

@@ -42,6 +42,7 @@ typedef struct {
     const char *indicators_text;
     double min_coverage;
     recovery_method recovery;
+    int drift_test; /* screen: the model-based "recovery_trend" test (ar1_drift.h) */
     /* significance (screen) */
     long surrogates;
     int null_model;  /* surrogate_kind */

@@ -37,7 +37,7 @@ static int one_cell(robustness_run *run, const cli_options *cell, const cli_inpu
 {
     prepared_series ps;
     double *values[INDICATOR_COUNT] = {NULL};
-    trend_result results[INDICATOR_COUNT];
+    trend_result results[TREND_MAX_TESTS];
     int rc = cli_prepare_series(cell, t, k, &ps);
     if (rc == EXIT_OK && !ps.constant)
         rc = cli_attach_control(cell, in, &ps);

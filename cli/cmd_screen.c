@@ -48,25 +48,26 @@ static screen_row *add_row(screen_run *run)
 static int record_series(const cli_options *opts, const prepared_series *ps, screen_run *run,
                          double *const *values)
 {
-    trend_result results[INDICATOR_COUNT];
+    trend_result results[TREND_MAX_TESTS];
     int rc = trend_test(&run->tester, opts, ps, values, results);
-    for (size_t j = 0; rc == EXIT_OK && j < opts->nindicators; j++) {
+    for (size_t j = 0; rc == EXIT_OK && j < trend_test_count(opts); j++) {
         screen_row *row = add_row(run);
         if (!row || !(row->series = strdup(ps->name))) {
             cli_error("out of memory");
             return EXIT_INTERNAL;
         }
-        row->indicator = opts->indicators[j];
+        int drift = j >= opts->nindicators; /* the model-based test: no window */
+        row->label = drift ? "recovery_trend" : indicator_name(opts->indicators[j]);
         row->n = ps->finite;
-        row->window = (double)(ps->window - 1) * ps->dt;
+        row->window = drift ? NAN : (double)(ps->window - 1) * ps->dt;
         row->bandwidth = ps->bandwidth;
         row->result = results[j];
         row->q_value = NAN;
-        if (isnan(row->result.tau)) {
+        if (isnan(row->result.statistic)) {
             row->flag = "insufficient";
             if (!ps->constant) /* a constant series was warned about when its values were made */
                 cli_warning("%s: column '%s', indicator %s: %s; flagged insufficient", ps->source,
-                            ps->name, indicator_name(row->indicator), row->result.reason);
+                            ps->name, row->label, row->result.reason);
         } else if (opts->surrogates > 0 && isnan(row->result.p_value)) {
             row->flag = "insufficient"; /* no null could be made; warned in trend_test */
         } else
@@ -90,12 +91,14 @@ static int screen_series(const cli_options *opts, const prepared_series *ps, voi
 
 static void write_csv(const cli_options *opts, const screen_run *run)
 {
-    fputs("series,indicator,n,window,bandwidth,tau,p_value,q_value,null,surrogates,flag\n", run->out);
+    fputs("series,indicator,n,window,bandwidth,tau,statistic,p_value,q_value,null,surrogates,flag\n",
+          run->out);
     for (size_t r = 0; r < run->nrows; r++) {
         const screen_row *row = &run->rows[r];
         cli_put_field(run->out, row->series);
-        fprintf(run->out, ",%s,%zu,", indicator_name(row->indicator), row->n);
-        const double cells[] = {row->window, row->bandwidth, row->result.tau, row->result.p_value, row->q_value};
+        fprintf(run->out, ",%s,%zu,", row->label, row->n);
+        const double cells[] = {row->window, row->bandwidth, row->result.tau, row->result.statistic,
+                                row->result.p_value, row->q_value};
         for (size_t c = 0; c < sizeof cells / sizeof cells[0]; c++) {
             cli_put_number(run->out, cells[c]);
             fputc(',', run->out);
@@ -121,13 +124,13 @@ static void write_table(const screen_run *run)
     for (size_t r = 0; r < run->nrows; r++)
         if ((int)strlen(run->rows[r].series) > width)
             width = (int)strlen(run->rows[r].series);
-    fprintf(run->out, "%-*s  %-10s %8s %10s %10s  %s\n", width, "series", "indicator", "tau",
+    fprintf(run->out, "%-*s  %-14s %9s %10s %10s  %s\n", width, "series", "indicator", "statistic",
             "p", "q", "flag");
     for (size_t r = 0; r < run->nrows; r++) {
         const screen_row *row = &run->rows[r];
         char tau[32], p[32], q[32];
-        fprintf(run->out, "%-*s  %-10s %8s %10s %10s  %s\n", width, row->series,
-                indicator_name(row->indicator), fixed(tau, row->result.tau, 3, 1), fixed(p, row->result.p_value, 4, 0),
+        fprintf(run->out, "%-*s  %-14s %9s %10s %10s  %s\n", width, row->series, row->label,
+                fixed(tau, row->result.statistic, 3, 1), fixed(p, row->result.p_value, 4, 0),
                 fixed(q, row->q_value, 4, 0), row->flag);
     }
 }
@@ -155,7 +158,7 @@ static int decide(const cli_options *opts, screen_run *run)
         row->q_value = q[r];
         double decisive = tests == 1 ? row->result.p_value : row->q_value;
         /* "falling" only arises when a decreasing or two-sided alternative is tested. */
-        row->flag = decisive > opts->fdr ? "none" : row->result.tau > 0 ? "rising" : "falling";
+        row->flag = decisive > opts->fdr ? "none" : row->result.statistic > 0 ? "rising" : "falling";
     }
     free(p);
     free(q);

@@ -176,12 +176,23 @@ static int set_indicators(cli_options *o, const char *n, const char *v)
     }
     strcpy(buf, v);
     o->nindicators = 0;
+    o->drift_test = 0;
     o->indicators_text = v;
     for (char *save = NULL, *tok = strtok_r(buf, ",", &save); tok; tok = strtok_r(NULL, ",", &save)) {
         indicator_kind kind;
+        if (strcmp(tok, "recovery_trend") == 0) {
+            /* Not a rolling indicator but a test of the whole residual: screen only. */
+            if (strcmp(o->command, "screen") != 0) {
+                cli_error("option %s: recovery_trend is a test of screen, not a rolling indicator "
+                          "(the 'recovery' command gives its path)", n);
+                return EXIT_BAD_INPUT;
+            }
+            o->drift_test = 1;
+            continue;
+        }
         if (indicator_lookup(tok, &kind) != SLOWSCAN_OK) {
             cli_error("option %s: unknown indicator '%s' (variance, sd, cv, skewness, kurtosis, "
-                      "lag1, ar1, recovery)", n, tok);
+                      "lag1, ar1, recovery; recovery_trend in screen)", n, tok);
             return EXIT_BAD_INPUT;
         }
         for (size_t j = 0; j < o->nindicators; j++)
@@ -191,7 +202,7 @@ static int set_indicators(cli_options *o, const char *n, const char *v)
             }
         o->indicators[o->nindicators++] = kind;
     }
-    if (o->nindicators == 0) {
+    if (o->nindicators == 0 && !o->drift_test) {
         cli_error("option %s: no indicator given", n);
         return EXIT_BAD_INPUT;
     }
@@ -395,6 +406,10 @@ static void set_defaults(const char *command, cli_options *o)
     o->indicators[1] = INDICATOR_LAG1;
     o->nindicators = 2;
     o->indicators_text = "variance,lag1";
+    if (strcmp(command, "screen") == 0) { /* the model-based test joins the default set */
+        o->drift_test = 1;
+        o->indicators_text = "variance,lag1,recovery_trend";
+    }
     o->min_coverage = 0.8;
     o->recovery = RECOVERY_LOG_AR1;
     o->surrogates = strcmp(command, "surrogates") == 0 ? 10 : (strcmp(command, "robustness") == 0 || strcmp(command, "recovery") == 0) ? 0 : 1000;

@@ -7,7 +7,7 @@
 
 typedef struct {
     char *series;
-    indicator_kind indicator;
+    const char *label; /* the indicator's name, or "recovery_trend" */
     size_t n;
     double window, bandwidth, q_value;
     trend_result result; /* tau, p, the null's quantiles */

@@ -82,9 +82,10 @@ static void write_row(FILE *fp, const screen_row *row)
 {
     fputs("    {\"series\": ", fp);
     json_string(fp, row->series);
-    fprintf(fp, ", \"indicator\": \"%s\", \"n\": %zu", indicator_name(row->indicator), row->n);
+    fprintf(fp, ", \"indicator\": \"%s\", \"n\": %zu", row->label, row->n);
     const struct { const char *key; double v; } cells[] = {
         {"window", row->window}, {"bandwidth", row->bandwidth}, {"tau", row->result.tau},
+        {"statistic", row->result.statistic},
         {"p_value", row->result.p_value}, {"q_value", row->q_value}};
     for (size_t k = 0; k < sizeof cells / sizeof cells[0]; k++) {
         fprintf(fp, ", \"%s\": ", cells[k].key);

@@ -51,7 +51,7 @@ static int ready_null(trend_tester *run, const cli_options *opts, size_t n)
     for (size_t k = 0; k < run->nthreads; k++)
         missing |= !(run->null_ws[k] = null_trend_alloc(n, opts->nindicators));
     if (!run->null)
-        run->null = malloc(opts->nindicators * (size_t)opts->surrogates * sizeof *run->null);
+        run->null = malloc(trend_test_count(opts) * (size_t)opts->surrogates * sizeof *run->null);
     if (!run->sorted)
         run->sorted = malloc((size_t)opts->surrogates * sizeof *run->sorted);
     if (missing || !run->null || !run->sorted)
@@ -60,11 +60,20 @@ static int ready_null(trend_tester *run, const cli_options *opts, size_t n)
     return SLOWSCAN_OK;
 }
 
-static significance_alternative alternative_of(const cli_options *opts, indicator_kind kind)
+/* Test j's alternative: the option, else the indicator's direction; the drift test looks for
+ * a growing memory (a1 > 0). */
+static significance_alternative alternative_of(const cli_options *opts, size_t j)
 {
     if (opts->alternative >= 0)
         return (significance_alternative)opts->alternative;
-    return indicator_direction(kind) > 0 ? ALTERNATIVE_INCREASING : ALTERNATIVE_TWO_SIDED;
+    if (j >= opts->nindicators || indicator_direction(opts->indicators[j]) > 0)
+        return ALTERNATIVE_INCREASING;
+    return ALTERNATIVE_TWO_SIDED;
+}
+
+size_t trend_test_count(const cli_options *opts)
+{
+    return opts->nindicators + (opts->drift_test != 0);
 }
 
 static int by_double(const void *a, const void *b)
@@ -107,7 +116,7 @@ static int test_series(const cli_options *opts, const prepared_series *ps, trend
         need_level |= indicator_needs_level(opts->indicators[j]);
     null_trend_job job = {&spec, opts->indicators, opts->nindicators, ps->time,
                           need_level ? ps->trend : NULL, opts->seed, ps->name,
-                          cli_null_name(opts)};
+                          cli_null_name(opts), opts->drift_test};
     size_t m = (size_t)opts->surrogates;
     cli_null_task task = {run->plan, (surrogate_kind)opts->null_model, &opts->null_options,
                           ps->null_source, &job, m, run->null, 0};
@@ -122,7 +131,7 @@ static int test_series(const cli_options *opts, const prepared_series *ps, trend
          * insufficient, the run goes on. */
         cli_warning("%s: column '%s': no surrogates can be made (%s); its p-values are NA",
                     ps->source, ps->name, slowscan_strerror(st));
-        for (size_t j = 0; j < opts->nindicators; j++)
+        for (size_t j = 0; j < trend_test_count(opts); j++)
             rows[j].reason = "no surrogates can be made";
         return EXIT_OK;
     }
@@ -137,29 +146,49 @@ static int test_series(const cli_options *opts, const prepared_series *ps, trend
                   slowscan_strerror(st));
         return st == SLOWSCAN_ENOMEM ? EXIT_INTERNAL : EXIT_BAD_INPUT;
     }
-    for (size_t j = 0; j < opts->nindicators; j++) {
-        if (!isnan(rows[j].tau))
-            rows[j].p_value = significance_p_value(rows[j].tau, run->null + j * m, m,
-                                                   alternative_of(opts, opts->indicators[j]),
-                                                   &rows[j].null_used);
+    for (size_t j = 0; j < trend_test_count(opts); j++) {
+        if (!isnan(rows[j].statistic))
+            rows[j].p_value = significance_p_value(rows[j].statistic, run->null + j * m, m,
+                                                   alternative_of(opts, j), &rows[j].null_used);
         null_quantiles(run, run->null + j * m, m, &rows[j]);
     }
     return EXIT_OK;
 }
 
 
+/* The drift statistic of the observed residual: the t-value of a1. */
+static double drift_of(trend_tester *run, const prepared_series *ps, const char **reason)
+{
+    if (run->drift_n != ps->n) {
+        ar1_drift_free(run->drift);
+        run->drift = ar1_drift_alloc(ps->n);
+        run->drift_n = run->drift ? ps->n : 0;
+    }
+    ar1_drift_fit fit;
+    int st = run->drift ? ar1_drift_estimate(run->drift, ps->residual, ps->n, &fit) : SLOWSCAN_ENOMEM;
+    if (st == SLOWSCAN_OK && isfinite(fit.t_a1))
+        return fit.t_a1;
+    *reason = st == SLOWSCAN_ESHORT ? "fewer than 8 adjacent pairs" : "no AR(1) drift fit";
+    return NAN;
+}
+
 int trend_test(trend_tester *run, const cli_options *opts, const prepared_series *ps,
                double *const *values, trend_result *results)
 {
-    for (size_t j = 0; j < opts->nindicators; j++) {
+    size_t tests = trend_test_count(opts);
+    for (size_t j = 0; j < tests; j++) {
         trend_result *r = &results[j];
-        *r = (trend_result){NAN, NAN, 0, {NAN, NAN, NAN, NAN, NAN}, "the series has no variation"};
-        if (!ps->constant)
-            r->tau = trend_of(run, ps, values[j], &r->reason);
+        *r = (trend_result){NAN, NAN, NAN, 0, {NAN, NAN, NAN, NAN, NAN}, "the series has no variation"};
+        if (ps->constant)
+            continue;
+        if (j < opts->nindicators)
+            r->tau = r->statistic = trend_of(run, ps, values[j], &r->reason);
+        else
+            r->statistic = drift_of(run, ps, &r->reason);
     }
     int any = 0;
-    for (size_t j = 0; j < opts->nindicators; j++)
-        any |= !isnan(results[j].tau);
+    for (size_t j = 0; j < tests; j++)
+        any |= !isnan(results[j].statistic);
     if (opts->surrogates > 0 && any)
         return test_series(opts, ps, run, results);
     return EXIT_OK;
@@ -173,4 +202,5 @@ void trend_tester_free(trend_tester *run)
         null_trend_free(run->null_ws[k]);
     free(run->null);
     free(run->sorted);
+    ar1_drift_free(run->drift);
 }

@@ -1,5 +1,6 @@
 /* The null distribution of indicator trends: surrogate -> rolling indicators -> Kendall tau. */
 #include "slowscan/null_trend.h"
+#include "slowscan/ar1_drift.h"
 #include "slowscan/kendall.h"
 #include "slowscan/significance.h"
 #include "slowscan/status.h"
@@ -16,6 +17,7 @@ struct null_trend_workspace {
     double *store;     /* nkinds * n */
     double **paths;    /* nkinds pointers into store */
     kendall_workspace *kendall;
+    ar1_drift_workspace *drift;
     gsl_rng *rng;
 };
 
@@ -28,6 +30,7 @@ void null_trend_free(null_trend_workspace *ws)
     free(ws->store);
     free(ws->paths);
     kendall_free(ws->kendall);
+    ar1_drift_free(ws->drift);
     if (ws->rng)
         gsl_rng_free(ws->rng);
     free(ws);
@@ -35,8 +38,10 @@ void null_trend_free(null_trend_workspace *ws)
 
 null_trend_workspace *null_trend_alloc(size_t n, size_t nkinds)
 {
-    if (nkinds == 0 || n < 2)
+    if (n < 2)
         return NULL;
+    if (nkinds == 0) /* the drift test alone: keep one path so the buffers are never empty */
+        nkinds = 1;
     null_trend_workspace *ws = calloc(1, sizeof *ws);
     if (!ws)
         return NULL;
@@ -47,8 +52,10 @@ null_trend_workspace *null_trend_alloc(size_t n, size_t nkinds)
     ws->store = malloc(nkinds * n * sizeof *ws->store);
     ws->paths = malloc(nkinds * sizeof *ws->paths);
     ws->kendall = kendall_alloc(n);
+    ws->drift = ar1_drift_alloc(n);
     ws->rng = gsl_rng_alloc(gsl_rng_mt19937);
-    if (!ws->surrogate || !ws->level || !ws->store || !ws->paths || !ws->kendall || !ws->rng) {
+    if (!ws->surrogate || !ws->level || !ws->store || !ws->paths || !ws->kendall || !ws->drift ||
+        !ws->rng) {
         null_trend_free(ws);
         return NULL;
     }
@@ -70,10 +77,15 @@ static int one_replicate(null_trend_workspace *ws, surrogate_source *source,
             ws->level[i] = job->trend[i] + ws->surrogate[i];
         level = ws->level;
     }
-    st = rolling_compute(job->rolling, ws->surrogate, level, ws->n, job->kinds, job->nkinds,
-                         ws->paths);
-    if (st != SLOWSCAN_OK)
+    if (job->nkinds > 0 &&
+        (st = rolling_compute(job->rolling, ws->surrogate, level, ws->n, job->kinds, job->nkinds,
+                              ws->paths)) != SLOWSCAN_OK)
         return st;
+    if (job->drift) { /* the model-based statistic, on the same surrogate */
+        ar1_drift_fit fit;
+        tau[job->nkinds] = ar1_drift_estimate(ws->drift, ws->surrogate, ws->n, &fit) == SLOWSCAN_OK
+                               ? fit.t_a1 : NAN;
+    }
     for (size_t k = 0; k < job->nkinds; k++) {
         size_t used = 0;
         if (kendall_tau_b(ws->kendall, job->time, ws->paths[k], ws->n, &tau[k], &used) != SLOWSCAN_OK)
@@ -94,13 +106,13 @@ int null_trend_draw(null_trend_workspace *ws, surrogate_source *source, const nu
 {
     if (first % NULL_TREND_BLOCK != 0 || job->nkinds > ws->nkinds || job->nkinds > INDICATOR_COUNT)
         return SLOWSCAN_EINVAL;
-    double tau[INDICATOR_COUNT];
+    double tau[INDICATOR_COUNT + 1];
     for (size_t j = first; j < first + count; j++) {
         null_trend_stream(ws->rng, job->seed, job->series, job->purpose, j);
         int st = one_replicate(ws, source, job, tau);
         if (st != SLOWSCAN_OK)
             return st;
-        for (size_t k = 0; k < job->nkinds; k++)
+        for (size_t k = 0; k < job->nkinds + (job->drift != 0); k++)
             null[k * stride + j] = tau[k];
     }
     return SLOWSCAN_OK;

@@ -190,10 +190,10 @@ static void test_screen_summary(void)
     snprintf(args, sizeof args, "screen --surrogates 0 --rolling %s -o %s %s", roll, sum, in);
     CHECK(slowscan(args) == 0, "screen runs: %s", run_err ? run_err : "");
     char *s = check_read_file(sum);
-    const char *header = "series,indicator,n,window,bandwidth,tau,p_value,q_value,null,"
+    const char *header = "series,indicator,n,window,bandwidth,tau,statistic,p_value,q_value,null,"
                          "surrogates,flag\n";
     CHECK(s && strncmp(s, header, strlen(header)) == 0, "summary header (DESIGN §4)");
-    CHECK(s && count_lines(s) == 5, "summary rows: 2 series x 2 indicators");
+    CHECK(s && count_lines(s) == 7, "summary rows: 2 series x (2 indicators + recovery_trend)");
     double tau_rising_var = NAN;
     if (s)
         sscanf(strstr(s, "rising,variance,") ? strstr(s, "rising,variance,") : "",
@@ -259,7 +259,7 @@ static void test_constant_series(void)
     snprintf(args, sizeof args, "screen --surrogates 0 --window 4 %s", in);
     CHECK(slowscan(args) == 0, "constant series: exit 0");
     CHECK(run_err && strstr(run_err, "warning") && strstr(run_err, "'flat'"), "constant: warning");
-    CHECK(run_out && strstr(run_out, "flat,variance,12,4,1.1,NA,NA,NA,none,0,insufficient"),
+    CHECK(run_out && strstr(run_out, "flat,variance,12,4,1.1,NA,NA,NA,NA,none,0,insufficient"),
           "constant: NA and insufficient: %s", run_out ? run_out : "");
 }
 

@@ -60,21 +60,21 @@ static double fold_sample(check_rng *rng, size_t k, size_t i, size_t n, double *
 }
 
 /* Share of rows of `indicator` with p <= 0.05 in a screen summary (columns of DESIGN §4:
- * the indicator is field 2, p_value field 7). */
+ * the indicator is field 2, p_value field 8). */
 static double share_significant(const char *summary, const char *indicator, size_t *rows)
 {
     size_t hits = 0, total = 0;
     for (const char *line = strchr(summary, '\n'); line && line[1]; line = strchr(line + 1, '\n')) {
-        const char *field[8] = {line + 1};
-        for (int f = 1; f < 8 && field[f - 1]; f++) {
+        const char *field[9] = {line + 1};
+        for (int f = 1; f < 9 && field[f - 1]; f++) {
             const char *comma = strchr(field[f - 1], ',');
             field[f] = comma ? comma + 1 : NULL;
         }
         size_t len = strlen(indicator);
-        if (!field[7] || strncmp(field[1], indicator, len) != 0 || field[1][len] != ',')
+        if (!field[8] || strncmp(field[1], indicator, len) != 0 || field[1][len] != ',')
             continue;
         total++;
-        hits += strtod(field[6], NULL) <= 0.05;
+        hits += strtod(field[7], NULL) <= 0.05;
     }
     *rows = total;
     return total ? (double)hits / (double)total : NAN;
@@ -207,7 +207,7 @@ static void test_json(void)
     CHECK(check_run(cmd, NULL, NULL) == 0, "screen --json runs");
     snprintf(cmd, sizeof cmd, "json_matches_csv.py %s %s", js, csv);
     double v[4] = {0};
-    CHECK(check_python(cmd, v, 4) == 4 && v[0] == 6 && v[1] == 1 && v[2] == 4 && v[3] == 49,
+    CHECK(check_python(cmd, v, 4) == 4 && v[0] == 9 && v[1] == 1 && v[2] == 4 && v[3] == 49,
           "json: %g rows, agree %g, seed %g, surrogates %g", v[0], v[1], v[2], v[3]);
 }
 
@@ -231,7 +231,7 @@ static void test_robustness(void)
     double tau_screen = NAN, p_screen = NAN, tau_grid = NAN, p_grid = NAN;
     const char *at = one ? strstr(one, "\ns1,lag1,") : NULL;
     if (at)
-        sscanf(at + 9, "%*d,%*g,%*g,%lf,%lf", &tau_screen, &p_screen);
+        sscanf(at + 9, "%*d,%*g,%*g,%lf,%*g,%lf", &tau_screen, &p_screen);
     at = grid ? strstr(grid, "\ns1,lag1,150,29.9,") : NULL;
     if (at)
         sscanf(at + 18, "%lf,%lf", &tau_grid, &p_grid);
@@ -312,6 +312,15 @@ static void test_recovery(void)
     CHECK(v[0] > 3 && v[1] <= 0.05 && v[3] > 0.05, "mill_pond t %.2f p %.3f; deep_basin t %.2f p %.3f",
           v[0], v[1], v[2], v[3]);
     free(out);
+    /* screen's recovery_trend row is the same test: same statistic, same surrogates, same p. */
+    char *s = screen("--deseason 364 --vars mill_pond --surrogates 99 --threads 2", "data/stations.csv");
+    double stat = NAN, p = NAN;
+    const char *at = s ? strstr(s, "\nmill_pond,recovery_trend,") : NULL;
+    if (at)
+        sscanf(at + 27, "%*d,NA,%*g,NA,%lf,%lf", &stat, &p);
+    CHECK(check_close(stat, v[0], 1e-9, 0) && p == v[1],
+          "screen recovery_trend (t %.6f, p %.4f) = recovery (t %.6f, p %.4f)", stat, p, v[0], v[1]);
+    free(s);
 }
 
 /* Share of series with p <= 0.05 in a recovery --json file (Python's json module). */
