@@ -46,6 +46,15 @@ static double ar1_sample(check_rng *rng, size_t k, size_t i, size_t n, double *s
     return *state;
 }
 
+/* AR(1), phi = 0.5, whose innovation sd rises from 1 to 4: the memory does not change. */
+static double rising_noise_sample(check_rng *rng, size_t k, size_t i, size_t n, double *state)
+{
+    (void)k;
+    double sd = 1.0 + 3.0 * (double)i / (double)(n - 1);
+    *state = i == 0 ? check_rng_gaussian(rng) / sqrt(0.75) : 0.5 * *state + sd * check_rng_gaussian(rng);
+    return *state;
+}
+
 /* Saddle-node normal form dx = (a - x^2) dt + 0.03 dW, dt = 0.5 per sample, forcing a
  * ramped from 1 to 0.02 over the record (10 Euler-Maruyama substeps per sample). */
 static double fold_sample(check_rng *rng, size_t k, size_t i, size_t n, double *state)
@@ -356,6 +365,23 @@ static void test_recovery_size_power(void)
     fprintf(stderr, "size, phase null, recovery drift: %zu of %zu with p <= 0.05 (99%% interval 3..19)\n",
             hits, count);
     CHECK(count == 200 && hits >= 3 && hits <= 19, "size of the drift test: %zu/%zu", hits, count);
+    /* A rising noise amplitude alone is not a growing memory: the size holds there too
+     * (binomial 99% interval for 100 series, from GSL's binomial cdf). */
+    const char *noisy = check_tmp_path("rec-noise.csv"), *nj = check_tmp_path("rec-noise.json");
+    write_series_csv(noisy, 100, 300, rising_noise_sample, 78);
+    snprintf(cmd, sizeof cmd, "%s recovery --detrend linear --surrogates 199 --json %s -o /dev/null %s",
+             check_binary(), nj, noisy);
+    CHECK(check_run(cmd, NULL, NULL) == 0, "recovery on 100 rising-noise series");
+    share = recovery_share(nj, &count);
+    hits = (size_t)lround(share * (double)count);
+    size_t lo = 0, hi = 100;
+    while (gsl_cdf_binomial_P((unsigned)lo, 0.05, 100) < 0.005)
+        lo++;
+    while (hi > 0 && gsl_cdf_binomial_Q((unsigned)(hi - 1), 0.05, 100) < 0.005)
+        hi--;
+    fprintf(stderr, "size, phase null, recovery drift, rising noise: %zu of %zu (99%% interval %zu..%zu)\n",
+            hits, count, lo, hi);
+    CHECK(count == 100 && hits >= lo && hits <= hi, "size under rising noise: %zu/%zu", hits, count);
     const char *fold = check_tmp_path("rec-fold.csv"), *fj = check_tmp_path("rec-fold.json");
     write_series_csv(fold, 20, 1200, fold_sample, 33); /* the series of test_power */
     snprintf(cmd, sizeof cmd, "%s recovery --surrogates 199 --json %s -o /dev/null %s",
