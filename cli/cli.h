@@ -43,6 +43,7 @@ typedef struct {
     double min_coverage;
     recovery_method recovery;
     int drift_test; /* screen: the model-based "recovery_trend" test (ar1_drift.h) */
+    int noise_trend; /* --noise-trend: its innovation variance may drift linearly too */
     /* significance (screen) */
     long surrogates;
     int null_model;  /* surrogate_kind */

@@ -80,6 +80,8 @@ static int recovery_series(const cli_options *opts, const prepared_series *ps, v
 {
     recovery_run *run = context;
     ar1_drift_workspace *ws = ar1_drift_alloc(ps->n);
+    if (ws)
+        ar1_drift_set_noise_trend(ws, opts->noise_trend);
     double *path = malloc(3 * ps->n * sizeof *path);
     ar1_drift_fit fit;
     int st = ws && path ? (ps->constant ? SLOWSCAN_ECONST : ar1_drift_estimate(ws, ps->residual, ps->n, &fit))

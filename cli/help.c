@@ -119,6 +119,8 @@ static void help_screen(FILE *out)
     fputs(testing_options, out);
     fputs("screening:\n"
           "  --fdr Q              false-discovery rate for the flag (default 0.05)\n"
+          "  --noise-trend        recovery_trend: let the innovation variance drift linearly\n"
+          "                       too (weighted least squares)\n"
           "  --rolling FILE       also write the rolling indicators (as 'indicators' does)\n"
           "  --json FILE          also write the summary as JSON, with the quantiles of each\n"
           "                       null distribution and every parameter of the run\n"
@@ -155,7 +157,9 @@ static void help_recovery(FILE *out)
           "95% band (delta method). a1 > 0: the memory grows, lambda rises toward 0.\n\n", out);
     fputs(input_options, out);
     fputs("  --json FILE          per series a0, a1, c, their standard errors, the t-value of a1\n"
-          "                       and, with --surrogates M, its surrogate p-value (a1 > 0)\n", out);
+          "                       and, with --surrogates M, its surrogate p-value (a1 > 0)\n"
+          "  --noise-trend        let the innovation variance drift linearly too (weighted\n"
+          "                       least squares), so a growing noise is not read as memory\n", out);
     fputs(testing_options, out);
     fputs("\n", out);
     fputs(cautions, out);

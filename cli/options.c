@@ -149,6 +149,7 @@ static int set_bandwidths(cli_options *o, const char *n, const char *v)
     return parse_grid(n, v, o->bandwidths, o->grid_text[1], &o->nbandwidths);
 }
 static int set_fractions(cli_options *o, const char *n, const char *v) { (void)n; o->fractions_output = v; return EXIT_OK; }
+static int set_noise_trend(cli_options *o, const char *n, const char *v) { (void)n; (void)v; o->noise_trend = 1; return EXIT_OK; }
 static int set_control(cli_options *o, const char *n, const char *v) { (void)n; o->control_file = v; return EXIT_OK; }
 static int set_json(cli_options *o, const char *n, const char *v) { (void)n; o->json_output = v; return EXIT_OK; }
 static int set_rolling(cli_options *o, const char *n, const char *v) { (void)n; o->rolling_output = v; return EXIT_OK; }
@@ -370,6 +371,7 @@ static const option_spec options[] = {
     {"--rolling", 1, C_SCREEN, set_rolling},
     {"--json", 1, C_SCREEN | C_RECOVERY, set_json},
     {"--control", 1, C_TESTING | C_SURROGATES, set_control},
+    {"--noise-trend", 0, C_SCREEN | C_RECOVERY, set_noise_trend},
     {"--windows", 1, C_ROBUST, set_windows},
     {"--bandwidths", 1, C_ROBUST, set_bandwidths},
     {"--fractions", 1, C_ROBUST, set_fractions},

@@ -59,7 +59,8 @@ static void write_parameters(FILE *fp, const cli_options *o)
         fprintf(fp, ",\n    \"%s\": ", numbers[k].key);
         json_number(fp, numbers[k].v);
     }
-    fprintf(fp, ",\n    \"log\": %s,\n    \"detrend\": ", o->log_values ? "true" : "false");
+    fprintf(fp, ",\n    \"log\": %s,\n    \"noise_trend\": %s,\n    \"detrend\": ",
+            o->log_values ? "true" : "false", o->noise_trend ? "true" : "false");
     json_string(fp, o->detrend_text);
     fputs(",\n", fp);
     json_length(fp, "bandwidth", &o->bandwidth);

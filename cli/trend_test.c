@@ -116,7 +116,7 @@ static int test_series(const cli_options *opts, const prepared_series *ps, trend
         need_level |= indicator_needs_level(opts->indicators[j]);
     null_trend_job job = {&spec, opts->indicators, opts->nindicators, ps->time,
                           need_level ? ps->trend : NULL, opts->seed, ps->name,
-                          cli_null_name(opts), opts->drift_test};
+                          cli_null_name(opts), opts->drift_test ? 1 + opts->noise_trend : 0};
     size_t m = (size_t)opts->surrogates;
     cli_null_task task = {run->plan, (surrogate_kind)opts->null_model, &opts->null_options,
                           ps->null_source, &job, m, run->null, 0};
@@ -157,7 +157,8 @@ static int test_series(const cli_options *opts, const prepared_series *ps, trend
 
 
 /* The drift statistic of the observed residual: the t-value of a1. */
-static double drift_of(trend_tester *run, const prepared_series *ps, const char **reason)
+static double drift_of(trend_tester *run, const cli_options *opts, const prepared_series *ps,
+                       const char **reason)
 {
     if (run->drift_n != ps->n) {
         ar1_drift_free(run->drift);
@@ -165,6 +166,8 @@ static double drift_of(trend_tester *run, const prepared_series *ps, const char 
         run->drift_n = run->drift ? ps->n : 0;
     }
     ar1_drift_fit fit;
+    if (run->drift)
+        ar1_drift_set_noise_trend(run->drift, opts->noise_trend);
     int st = run->drift ? ar1_drift_estimate(run->drift, ps->residual, ps->n, &fit) : SLOWSCAN_ENOMEM;
     if (st == SLOWSCAN_OK && isfinite(fit.t_a1))
         return fit.t_a1;
@@ -184,7 +187,7 @@ int trend_test(trend_tester *run, const cli_options *opts, const prepared_series
         if (j < opts->nindicators)
             r->tau = r->statistic = trend_of(run, ps, values[j], &r->reason);
         else
-            r->statistic = drift_of(run, ps, &r->reason);
+            r->statistic = drift_of(run, opts, ps, &r->reason);
     }
     int any = 0;
     for (size_t j = 0; j < tests; j++)

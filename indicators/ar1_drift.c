@@ -13,6 +13,8 @@ struct ar1_drift_workspace {
     gsl_vector *response, *coef;
     gsl_matrix *cov;
     gsl_multifit_linear_workspace *lw; /* sized for nmax - 1 rows; GSL 2 fits fewer in it */
+    gsl_vector *s, *weight;            /* per row: rescaled time, WLS weight */
+    int noise_trend;
 };
 
 void ar1_drift_free(ar1_drift_workspace *ws)
@@ -29,6 +31,10 @@ void ar1_drift_free(ar1_drift_workspace *ws)
         gsl_matrix_free(ws->cov);
     if (ws->lw)
         gsl_multifit_linear_free(ws->lw);
+    if (ws->s)
+        gsl_vector_free(ws->s);
+    if (ws->weight)
+        gsl_vector_free(ws->weight);
     free(ws);
 }
 
@@ -45,7 +51,9 @@ ar1_drift_workspace *ar1_drift_alloc(size_t nmax)
     ws->coef = gsl_vector_alloc(3);
     ws->cov = gsl_matrix_alloc(3, 3);
     ws->lw = gsl_multifit_linear_alloc(nmax - 1 < 3 ? 3 : nmax - 1, 3);
-    if (!ws->design || !ws->response || !ws->coef || !ws->cov || !ws->lw) {
+    ws->s = gsl_vector_alloc(nmax - 1);
+    ws->weight = gsl_vector_alloc(nmax - 1);
+    if (!ws->design || !ws->response || !ws->coef || !ws->cov || !ws->lw || !ws->s || !ws->weight) {
         ar1_drift_free(ws);
         return NULL;
     }
@@ -64,9 +72,37 @@ static size_t fill_design(ar1_drift_workspace *ws, const double *x, size_t n)
         gsl_matrix_set(ws->design, m, 1, s * x[t]);
         gsl_matrix_set(ws->design, m, 2, 1.0);
         gsl_vector_set(ws->response, m, x[t + 1]);
+        gsl_vector_set(ws->s, m, s);
         m++;
     }
     return m;
+}
+
+void ar1_drift_set_noise_trend(ar1_drift_workspace *ws, int noise_trend)
+{
+    ws->noise_trend = noise_trend != 0;
+}
+
+/* Weights 1/v(t) from a straight line fitted to the squared OLS residuals over s_t. */
+static void noise_weights(ar1_drift_workspace *ws, const gsl_matrix *X, const gsl_vector *y, size_t m)
+{
+    double mean = 0, sx = 0, sy = 0, sxx = 0, sxy = 0;
+    for (size_t k = 0; k < m; k++) {
+        double fitted = 0;
+        for (size_t j = 0; j < 3; j++)
+            fitted += gsl_matrix_get(X, k, j) * gsl_vector_get(ws->coef, j);
+        double r2 = gsl_vector_get(y, k) - fitted, s = gsl_vector_get(ws->s, k);
+        r2 *= r2;
+        gsl_vector_set(ws->weight, k, r2);
+        mean += r2, sx += s, sy += r2, sxx += s * s, sxy += s * r2;
+    }
+    mean /= (double)m;
+    double slope = (sxy - sx * sy / (double)m) / (sxx - sx * sx / (double)m);
+    double intercept = sy / (double)m - slope * sx / (double)m;
+    for (size_t k = 0; k < m; k++) {
+        double v = intercept + slope * gsl_vector_get(ws->s, k);
+        gsl_vector_set(ws->weight, k, 1.0 / fmax(v, 0.01 * mean));
+    }
 }
 
 int ar1_drift_estimate(ar1_drift_workspace *ws, const double *x, size_t n, ar1_drift_fit *fit)
@@ -89,6 +125,17 @@ int ar1_drift_estimate(ar1_drift_workspace *ws, const double *x, size_t n, ar1_d
         return SLOWSCAN_ECONST;
     /* GSL's covariance is already s^2 (X'X)^-1 with s^2 = chisq / (m - 3). */
     double s2 = chisq / (double)(m - 3);
+    if (ws->noise_trend) {
+        gsl_vector_view w = gsl_vector_subvector(ws->weight, 0, m);
+        noise_weights(ws, &X.matrix, &y.vector, m);
+        st = gsl_multifit_wlinear_tsvd(&X.matrix, &w.vector, &y.vector, 1e-12, ws->coef, ws->cov,
+                                       &chisq, &rank, ws->lw);
+        if (st != GSL_SUCCESS || rank < 3)
+            return st != GSL_SUCCESS ? SLOWSCAN_ENUMERIC : SLOWSCAN_ECONST;
+        /* (X'WX)^-1 from GSL, scaled by the weighted residual variance. */
+        s2 = chisq / (double)(m - 3);
+        gsl_matrix_scale(ws->cov, s2);
+    }
     *fit = (ar1_drift_fit){gsl_vector_get(ws->coef, 0), gsl_vector_get(ws->coef, 1),
                            gsl_vector_get(ws->coef, 2), sqrt(gsl_matrix_get(ws->cov, 0, 0)),
                            sqrt(gsl_matrix_get(ws->cov, 1, 1)), sqrt(gsl_matrix_get(ws->cov, 2, 2)),

@@ -83,6 +83,7 @@ static int one_replicate(null_trend_workspace *ws, surrogate_source *source,
         return st;
     if (job->drift) { /* the model-based statistic, on the same surrogate */
         ar1_drift_fit fit;
+        ar1_drift_set_noise_trend(ws->drift, job->drift == 2);
         tau[job->nkinds] = ar1_drift_estimate(ws->drift, ws->surrogate, ws->n, &fit) == SLOWSCAN_OK
                                ? fit.t_a1 : NAN;
     }

@@ -43,6 +43,23 @@ void suite_ar1_drift(void)
     CHECK_CLOSE(fit.se_a0, ref[3], 1e-8, 1e-12, "se(a0) vs statsmodels");
     CHECK_CLOSE(fit.se_a1, ref[4], 1e-8, 1e-12, "se(a1) vs statsmodels");
     CHECK_CLOSE(fit.se_c, ref[5], 1e-8, 1e-12, "se(c) vs statsmodels");
+    /* --noise-trend: weighted least squares against statsmodels.api.WLS with the same
+     * variance model (Debian python3-statsmodels), on a series whose noise grows 1 -> 4. */
+    check_rng *r = check_rng_alloc(5);
+    x[0] = 0;
+    for (size_t t = 0; t + 1 < N; t++)
+        x[t + 1] = 0.5 * x[t] + (1.0 + 3.0 * (double)t / (N - 1)) * check_rng_gaussian(r);
+    check_rng_free(r);
+    ar1_drift_set_noise_trend(ws, 1);
+    CHECK(ar1_drift_estimate(ws, x, N, &fit) == SLOWSCAN_OK, "noise-trend fit runs");
+    CHECK(check_python_on("wls_statsmodels.py", x, N, NULL, ref, 6) == 6, "statsmodels WLS ran");
+    CHECK_CLOSE(fit.a0, ref[0], 1e-9, 1e-12, "WLS a0 vs statsmodels");
+    CHECK_CLOSE(fit.a1, ref[1], 1e-9, 1e-12, "WLS a1 vs statsmodels");
+    CHECK_CLOSE(fit.se_a0, ref[3], 1e-8, 1e-12, "WLS se(a0) vs statsmodels");
+    CHECK_CLOSE(fit.se_a1, ref[4], 1e-8, 1e-12, "WLS se(a1) vs statsmodels");
+    CHECK(fabs(fit.a1) < 4 * fit.se_a1, "a constant memory under growing noise: a1 %.4f (se %.4f)",
+          fit.a1, fit.se_a1);
+    ar1_drift_set_noise_trend(ws, 0);
     /* Noise-free data are reproduced exactly (analytic). */
     simulate(x, 200, 0.5, 0.4, 0.1, 0.0, 1);
     for (size_t t = 0; t < 200; t++)

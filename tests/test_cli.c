@@ -83,11 +83,12 @@ static void test_help_and_version(void)
         "--detrend", "--bandwidth", "--deseason", "--window", "--indicators", "--min-coverage",
         "--recovery", "--surrogates", "--null", "--iaaft-tol", "--iaaft-iterations",
         "--block-length", "--alternative", "--fdr", "--seed", "--threads", "--rolling", "--json",
-        "--format", "--windows", "--bandwidths", "--fractions", "--control", "--progress", "-o"};
+        "--format", "--windows", "--bandwidths", "--fractions", "--control", "--progress", "-o",
+        "--noise-trend"};
     char *man = check_read_file("doc/slowscan.1");
     char *helps = NULL;
     char loop[600];
-    snprintf(loop, sizeof loop, "for c in screen robustness surrogates; do %s help $c; done",
+    snprintf(loop, sizeof loop, "for c in screen robustness surrogates recovery; do %s help $c; done",
              check_binary());
     check_run(loop, &helps, NULL);
     for (size_t i = 0; i < sizeof options / sizeof options[0]; i++) {

@@ -26,6 +26,13 @@ typedef struct ar1_drift_workspace ar1_drift_workspace;
 ar1_drift_workspace *ar1_drift_alloc(size_t nmax);
 void ar1_drift_free(ar1_drift_workspace *ws);
 
+/* With noise_trend non-zero, later fits let the innovation variance drift linearly too:
+ * after the OLS fit, the squared residuals are regressed on s_t, and the fit is redone by
+ * weighted least squares with weights 1/variance(t) (floored at 1% of the mean squared
+ * residual), the covariance scaled by the weighted residual variance. A noise that grows
+ * then no longer passes for a memory that grows. */
+void ar1_drift_set_noise_trend(ar1_drift_workspace *ws, int noise_trend);
+
 /* Fits x[0..n) (NaN: missing; a pair is used when both samples are present). SLOWSCAN_ESHORT
  * with fewer than 8 pairs, SLOWSCAN_ECONST when the design is singular (a constant series),
  * SLOWSCAN_EINVAL for n > nmax. */

@@ -36,7 +36,8 @@ typedef struct {
     const char *series;  /* name, part of the stream seed */
     const char *purpose; /* the null's name, part of the stream seed */
     int drift;           /* also the t-value of the drifting-AR(1) coefficient (ar1_drift.h),
-                            written after the indicators, at row nkinds of null */
+                            written after the indicators, at row nkinds of null; 2: with the
+                            innovation variance drifting too (ar1_drift_set_noise_trend) */
 } null_trend_job;
 
 /* Positions rng for replicate j of (seed, series, purpose): at the start of each block it is
