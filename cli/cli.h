@@ -140,6 +140,9 @@ void cli_outputs_abort(cli_outputs *outs);
 
 /* Writes a number the way every slowscan CSV does: %.12g, NA for non-finite. */
 void cli_put_number(FILE *fp, double v);
+/* JSON (RFC 8259): a string with its escapes; a number, or null when not finite. */
+void cli_json_string(FILE *fp, const char *s);
+void cli_json_number(FILE *fp, double v);
 /* Writes a CSV field, quoted when it holds a delimiter, quote or line break (RFC 4180). */
 void cli_put_field(FILE *fp, const char *s);
 

@@ -63,15 +63,13 @@ static double surrogate_p(const cli_options *opts, const prepared_series *ps, re
 
 static void write_json(recovery_run *run, const prepared_series *ps, const ar1_drift_fit *f, double p)
 {
-    fprintf(run->json, "%s\n    {\"series\": \"", run->written++ ? "," : "");
-    for (const char *c = ps->name; *c; c++)
-        fprintf(run->json, (*c == '"' || *c == '\\') ? "\\%c" : "%c", *c);
+    fprintf(run->json, "%s\n    {\"series\": ", run->written++ ? "," : "");
+    cli_json_string(run->json, ps->name);
     const double v[] = {f->a0, f->a1, f->c, f->se_a0, f->se_a1, f->t_a1, p};
     const char *k[] = {"a0", "a1", "c", "se_a0", "se_a1", "t_a1", "p_value"};
-    fputc('"', run->json);
     for (size_t i = 0; i < 7; i++) {
         fprintf(run->json, ", \"%s\": ", k[i]);
-        isfinite(v[i]) ? fprintf(run->json, "%.17g", v[i]) : fputs("null", run->json);
+        cli_json_number(run->json, v[i]);
     }
     fprintf(run->json, ", \"pairs\": %zu}", f->pairs);
 }

@@ -202,3 +202,25 @@ void cli_write_rolling(FILE *fp, const cli_options *opts, const prepared_series 
         }
     }
 }
+
+void cli_json_string(FILE *fp, const char *s)
+{
+    fputc('"', fp);
+    for (const unsigned char *c = (const unsigned char *)s; *c; c++) {
+        if (*c == '"' || *c == '\\')
+            fprintf(fp, "\\%c", *c);
+        else if (*c < 0x20)
+            fprintf(fp, "\\u%04x", *c);
+        else
+            fputc(*c, fp);
+    }
+    fputc('"', fp);
+}
+
+void cli_json_number(FILE *fp, double v)
+{
+    if (isfinite(v))
+        fprintf(fp, "%.17g", v);
+    else
+        fputs("null", fp); /* RFC 8259 has no NaN */
+}

@@ -9,32 +9,10 @@
 #define SLOWSCAN_VERSION "unknown"
 #endif
 
-static void json_string(FILE *fp, const char *s)
-{
-    fputc('"', fp);
-    for (const unsigned char *c = (const unsigned char *)s; *c; c++) {
-        if (*c == '"' || *c == '\\')
-            fprintf(fp, "\\%c", *c);
-        else if (*c < 0x20)
-            fprintf(fp, "\\u%04x", *c);
-        else
-            fputc(*c, fp);
-    }
-    fputc('"', fp);
-}
-
-static void json_number(FILE *fp, double v)
-{
-    if (isfinite(v))
-        fprintf(fp, "%.17g", v);
-    else
-        fputs("null", fp);
-}
-
 static void json_length(FILE *fp, const char *key, const cli_length *len)
 {
     fprintf(fp, "    \"%s\": ", key);
-    json_string(fp, len->text);
+    cli_json_string(fp, len->text);
     fputs(",\n", fp);
 }
 
@@ -45,28 +23,28 @@ static void write_parameters(FILE *fp, const cli_options *o)
     fputs("    \"inputs\": [", fp);
     for (size_t f = 0; f < o->nfiles; f++) {
         fputs(f ? ", " : "", fp);
-        json_string(fp, o->files[f]);
+        cli_json_string(fp, o->files[f]);
     }
     fputs("],\n    \"time\": ", fp);
-    o->time_column ? json_string(fp, o->time_column) : (void)fputs("null", fp);
+    o->time_column ? cli_json_string(fp, o->time_column) : (void)fputs("null", fp);
     fputs(",\n    \"vars\": ", fp);
-    o->vars ? json_string(fp, o->vars) : (void)fputs("null", fp);
+    o->vars ? cli_json_string(fp, o->vars) : (void)fputs("null", fp);
     const struct { const char *key; double v; } numbers[] = {
         {"from", o->from}, {"until", o->until}, {"resample", o->resample},
         {"deseason", o->deseason}, {"min_coverage", o->min_coverage}, {"fdr", o->fdr},
         {"iaaft_tol", o->null_options.iaaft_tolerance}};
     for (size_t k = 0; k < sizeof numbers / sizeof numbers[0]; k++) {
         fprintf(fp, ",\n    \"%s\": ", numbers[k].key);
-        json_number(fp, numbers[k].v);
+        cli_json_number(fp, numbers[k].v);
     }
     fprintf(fp, ",\n    \"log\": %s,\n    \"noise_trend\": %s,\n    \"detrend\": ",
             o->log_values ? "true" : "false", o->noise_trend ? "true" : "false");
-    json_string(fp, o->detrend_text);
+    cli_json_string(fp, o->detrend_text);
     fputs(",\n", fp);
     json_length(fp, "bandwidth", &o->bandwidth);
     json_length(fp, "window", &o->window);
     fputs("    \"indicators\": ", fp);
-    json_string(fp, o->indicators_text);
+    cli_json_string(fp, o->indicators_text);
     fprintf(fp, ",\n    \"recovery\": \"%s\",\n    \"null\": \"%s\",\n    \"surrogates\": %ld,\n"
             "    \"iaaft_iterations\": %d,\n    \"block_length\": %zu,\n    \"alternative\": \"%s\",\n"
             "    \"seed\": %lu\n  },\n",
@@ -82,7 +60,7 @@ static void write_parameters(FILE *fp, const cli_options *o)
 static void write_row(FILE *fp, const screen_row *row)
 {
     fputs("    {\"series\": ", fp);
-    json_string(fp, row->series);
+    cli_json_string(fp, row->series);
     fprintf(fp, ", \"indicator\": \"%s\", \"n\": %zu", row->label, row->n);
     const struct { const char *key; double v; } cells[] = {
         {"window", row->window}, {"bandwidth", row->bandwidth}, {"tau", row->result.tau},
@@ -90,13 +68,13 @@ static void write_row(FILE *fp, const screen_row *row)
         {"p_value", row->result.p_value}, {"q_value", row->q_value}};
     for (size_t k = 0; k < sizeof cells / sizeof cells[0]; k++) {
         fprintf(fp, ", \"%s\": ", cells[k].key);
-        json_number(fp, cells[k].v);
+        cli_json_number(fp, cells[k].v);
     }
     fprintf(fp, ", \"flag\": \"%s\", \"null_count\": %zu, \"null_quantiles\": {", row->flag,
             row->result.null_used);
     for (int q = 0; q < TREND_QUANTILES; q++) {
         fprintf(fp, "%s\"%g\": ", q ? ", " : "", trend_quantile_levels[q]);
-        json_number(fp, row->result.null_used ? row->result.quantile[q] : NAN);
+        cli_json_number(fp, row->result.null_used ? row->result.quantile[q] : NAN);
     }
     fputs("}}", fp);
 }
