@@ -5,6 +5,7 @@
 #include "slowscan/surrogates.h"
 
 #include <errno.h>
+#include <limits.h>
 #include <math.h>
 #include <stdarg.h>
 #include <stdlib.h>
@@ -233,13 +234,17 @@ static int set_recovery(cli_options *o, const char *n, const char *v)
     return EXIT_OK;
 }
 
-static int set_whole(const char *n, const char *v, long min, long *out)
+/* A whole number in [min, max]; the message names the option and the range. */
+static int set_whole(const char *n, const char *v, long min, long max, long *out)
 {
     char *end;
     errno = 0;
     long x = strtol(v, &end, 10);
-    if (end == v || *end != '\0' || x < min || errno == ERANGE) {
-        cli_error("option %s: '%s' is not a whole number >= %ld", n, v, min);
+    if (end == v || *end != '\0' || x < min || x > max || errno == ERANGE) {
+        if (max == LONG_MAX)
+            cli_error("option %s: '%s' is not a whole number >= %ld", n, v, min);
+        else
+            cli_error("option %s: '%s' is not a whole number from %ld to %ld", n, v, min, max);
         return EXIT_BAD_INPUT;
     }
     *out = x;
@@ -251,12 +256,7 @@ enum { MAX_SURROGATES = 1000000 };
 
 static int set_surrogates(cli_options *o, const char *n, const char *v)
 {
-    int rc = set_whole(n, v, 0, &o->surrogates);
-    if (rc == EXIT_OK && o->surrogates > MAX_SURROGATES) {
-        cli_error("option %s: at most %d surrogates", n, MAX_SURROGATES);
-        return EXIT_BAD_INPUT;
-    }
-    return rc;
+    return set_whole(n, v, 0, MAX_SURROGATES, &o->surrogates);
 }
 
 static int set_null(cli_options *o, const char *n, const char *v)
@@ -284,15 +284,15 @@ static int set_iaaft_tol(cli_options *o, const char *n, const char *v)
 static int set_iaaft_iterations(cli_options *o, const char *n, const char *v)
 {
     long it = 0;
-    int rc = set_whole(n, v, 1, &it);
-    o->null_options.iaaft_max_iterations = it > 100000 ? 100000 : (int)it;
+    int rc = set_whole(n, v, 1, 100000, &it);
+    o->null_options.iaaft_max_iterations = (int)it;
     return rc;
 }
 
 static int set_block_length(cli_options *o, const char *n, const char *v)
 {
     long len = 0;
-    int rc = set_whole(n, v, 1, &len);
+    int rc = set_whole(n, v, 1, LONG_MAX, &len);
     o->null_options.block_length = (size_t)len;
     return rc;
 }
@@ -321,18 +321,13 @@ static int set_alternative(cli_options *o, const char *n, const char *v)
 
 static int set_threads(cli_options *o, const char *n, const char *v)
 {
-    int rc = set_whole(n, v, 1, &o->threads);
-    if (rc == EXIT_OK && o->threads > CLI_MAX_THREADS) {
-        cli_error("option %s: at most %d threads", n, CLI_MAX_THREADS);
-        return EXIT_BAD_INPUT;
-    }
-    return rc;
+    return set_whole(n, v, 1, CLI_MAX_THREADS, &o->threads);
 }
 
 static int set_seed(cli_options *o, const char *n, const char *v)
 {
     long s = 0;
-    int rc = set_whole(n, v, 0, &s);
+    int rc = set_whole(n, v, 0, LONG_MAX, &s);
     o->seed = (unsigned long)s;
     return rc;
 }
