@@ -4,19 +4,17 @@
  * series a0, a1, their standard errors, the t-value of a1 and, with --surrogates M, its
  * surrogate p-value (one-sided: a1 > 0, memory growing). */
 #include "cli.h"
+#include "trend_test.h"
 #include "slowscan/ar1_drift.h"
-#include "slowscan/significance.h"
 #include "slowscan/status.h"
 
-#include <fftw3.h>
-#include <gsl/gsl_rng.h>
 #include <math.h>
 #include <stdlib.h>
 
 typedef struct {
     FILE *out, *json;
     size_t written;
-    gsl_rng *rng;
+    trend_tester tester;
 } recovery_run;
 
 static int open_outputs(const cli_options *opts, cli_outputs *outs, void *context)
@@ -33,32 +31,17 @@ static int open_outputs(const cli_options *opts, cli_outputs *outs, void *contex
     return rc;
 }
 
-/* The t-value of a1 over M surrogates of the series' null source; p one-sided (a1 > 0). */
+/* The surrogate p-value of t(a1): the drift test of screen (trend_test.c), run alone, so the
+ * same surrogates, streams and threads give the same p as screen's recovery_trend row. */
 static double surrogate_p(const cli_options *opts, const prepared_series *ps, recovery_run *run,
-                          ar1_drift_workspace *ws, double observed, int *status)
+                          int *rc)
 {
-    size_t m = (size_t)opts->surrogates;
-    surrogate_plan *plan = surrogate_plan_alloc(ps->n, FFTW_ESTIMATE);
-    surrogate_source *src = plan ? surrogate_source_alloc(plan, (surrogate_kind)opts->null_model,
-                                                          ps->null_source, &opts->null_options, status)
-                                 : NULL;
-    double *y = fftw_alloc_real(ps->n), *null = malloc(m * sizeof *null), p = NAN;
-    if (src && y && null) {
-        for (size_t j = 0; j < m; j++) {
-            null_trend_stream(run->rng, opts->seed, ps->name, cli_null_name(opts), j);
-            ar1_drift_fit f;
-            surrogate_draw(src, run->rng, y);
-            null[j] = ar1_drift_estimate(ws, y, ps->n, &f) == SLOWSCAN_OK ? f.t_a1 : NAN;
-        }
-        p = significance_p_value(observed, null, m, ALTERNATIVE_INCREASING, NULL);
-    } else if (*status == SLOWSCAN_OK) {
-        *status = SLOWSCAN_ENOMEM;
-    }
-    free(null);
-    fftw_free(y);
-    surrogate_source_free(src);
-    surrogate_plan_free(plan);
-    return p;
+    cli_options drift_only = *opts;
+    drift_only.nindicators = 0;
+    drift_only.drift_test = 1;
+    trend_result result;
+    *rc = trend_test(&run->tester, &drift_only, ps, NULL, &result);
+    return result.p_value;
 }
 
 static void write_json(recovery_run *run, const prepared_series *ps, const ar1_drift_fit *f, double p)
@@ -85,10 +68,10 @@ static int recovery_series(const cli_options *opts, const prepared_series *ps, v
     int st = ws && path ? (ps->constant ? SLOWSCAN_ECONST : ar1_drift_estimate(ws, ps->residual, ps->n, &fit))
                         : SLOWSCAN_ENOMEM;
     int rc = st == SLOWSCAN_ENOMEM ? EXIT_INTERNAL : EXIT_OK;
-    if (st == SLOWSCAN_OK) {
-        double p = NAN;
-        if (opts->surrogates > 0)
-            p = surrogate_p(opts, ps, run, ws, fit.t_a1, &st);
+    double p = NAN;
+    if (st == SLOWSCAN_OK && opts->surrogates > 0)
+        p = surrogate_p(opts, ps, run, &rc);
+    if (st == SLOWSCAN_OK && rc == EXIT_OK) {
         ar1_drift_path(&fit, ps->n, ps->dt, path, path + ps->n, path + 2 * ps->n);
         for (size_t i = 0; i < ps->n; i++) {
             cli_put_field(run->out, ps->name);
@@ -120,11 +103,9 @@ static int finish(const cli_options *opts, void *context)
 
 int cmd_recovery(const cli_options *opts)
 {
-    recovery_run run = {NULL, NULL, 0, gsl_rng_alloc(gsl_rng_mt19937)};
-    if (!run.rng)
-        return EXIT_INTERNAL;
+    recovery_run run = {0};
     series_command cmd = {open_outputs, recovery_series, finish, &run, NULL};
     int rc = cli_run_series_command(opts, &cmd);
-    gsl_rng_free(run.rng);
+    trend_tester_free(&run.tester);
     return rc;
 }
