@@ -1,15 +1,9 @@
-/* slowscan screen: the main job. For every series: detrend, rolling indicators, Kendall tau of
- * each indicator against time; then the summary, one row per series x indicator. */
+/* slowscan screen: the main job. For every series: detrend, rolling indicators and the shared
+ * trend test (trend_test.c); then q-values, flags and the summary, one row per series x test. */
 #include "cli.h"
 #include "screen.h"
-#include "slowscan/kendall.h"
-#include "slowscan/null_trend.h"
 #include "slowscan/significance.h"
 #include "slowscan/status.h"
-#include "slowscan/surrogates.h"
-
-#include <fftw3.h>
-#include <gsl/gsl_statistics_double.h>
 
 #include <math.h>
 #include <stdlib.h>
