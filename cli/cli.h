@@ -117,6 +117,8 @@ size_t cli_inputs_series_count(const cli_inputs *inputs);
 int cli_prepare_series(const cli_options *opts, const series_table *table, size_t k,
                        prepared_series *ps);
 void cli_prepared_free(prepared_series *ps);
+/* W of opts->window for the table's grid (the rule of DESIGN §3), or an exit code. */
+int cli_series_window(const cli_options *opts, const series_table *table, size_t *window);
 
 /* Rolling indicators of a prepared series: values[j] (j < opts->nindicators) gets ps->n
  * entries, allocated here and released by cli_indicator_values_free even on failure. A

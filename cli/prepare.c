@@ -146,6 +146,12 @@ static int resolve_window(const cli_options *o, const series_table *t, double dt
     return EXIT_OK;
 }
 
+int cli_series_window(const cli_options *o, const series_table *t, size_t *window)
+{
+    double span = t->time[t->n - 1] - t->time[0];
+    return resolve_window(o, t, span / (double)(t->n - 1), span, window);
+}
+
 static int detrend_fail(int st, const cli_options *o, const prepared_series *ps)
 {
     if (st == SLOWSCAN_ENOMEM) {
