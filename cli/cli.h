@@ -44,6 +44,8 @@ typedef struct {
     recovery_method recovery;
     int drift_test; /* screen: the model-based "recovery_trend" test (ar1_drift.h) */
     int noise_trend; /* --noise-trend: its innovation variance may drift linearly too */
+    const char *projection_output; /* recovery --project FILE: crossing of lambda = 0 */
+    long projection_draws;         /* --project-draws: residual-bootstrap draws (>= 500) */
     /* significance (screen) */
     long surrogates;
     int null_model;  /* surrogate_kind */

@@ -6,16 +6,23 @@
 #include "cli.h"
 #include "trend_test.h"
 #include "slowscan/ar1_drift.h"
+#include "slowscan/significance.h"
 #include "slowscan/status.h"
 
 #include <math.h>
+#include <gsl/gsl_rng.h>
 #include <stdlib.h>
 
 typedef struct {
-    FILE *out, *json;
+    FILE *out, *json, *projection;
     size_t written;
     trend_tester tester;
+    gsl_rng *rng; /* for the projection's bootstrap; reseeded per series */
 } recovery_run;
+
+/* Every projection output carries this, so no reader takes a crossing for a forecast. */
+static const char projection_basis[] = "extrapolated_linear_trend_in_recovery_rate";
+static const char *const projection_status[] = {"ahead", "within_record", "none_within_2x_record"};
 
 static int open_outputs(const cli_options *opts, cli_outputs *outs, void *context)
 {
@@ -25,6 +32,15 @@ static int open_outputs(const cli_options *opts, cli_outputs *outs, void *contex
         fputs("series,time,lambda,lambda_lo,lambda_hi\n", run->out);
     if (rc == EXIT_OK && opts->json_output)
         rc = cli_outputs_open(outs, opts, opts->json_output, "--json", &run->json);
+    if (rc == EXIT_OK && opts->projection_output)
+        rc = cli_outputs_open(outs, opts, opts->projection_output, "--project", &run->projection);
+    if (rc == EXIT_OK && run->projection) {
+        fputs("series,status,crossing_time,crossing_lo,crossing_hi,interval,share_crossing,draws,"
+              "basis\n", run->projection);
+        run->rng = gsl_rng_alloc(gsl_rng_mt19937);
+        if (!run->rng)
+            rc = EXIT_INTERNAL;
+    }
     if (rc == EXIT_OK && run->json)
         fprintf(run->json, "{\n  \"program\": \"slowscan\",\n  \"null\": \"%s\",\n  \"surrogates\": %ld,\n"
                 "  \"seed\": %lu,\n  \"series\": [", cli_null_name(opts), opts->surrogates, opts->seed);
@@ -44,7 +60,53 @@ static double surrogate_p(const cli_options *opts, const prepared_series *ps, re
     return result.p_value;
 }
 
-static void write_json(recovery_run *run, const prepared_series *ps, const ar1_drift_fit *f, double p)
+/* The crossing of lambda = 0 within twice the record, with its residual-bootstrap interval
+ * (ar1_drift_project), one CSV row per series; *projected is filled for the JSON. */
+static int write_projection(const cli_options *opts, recovery_run *run, const prepared_series *ps,
+                            ar1_drift_workspace *ws, const ar1_drift_fit *fit, ar1_projection *pr)
+{
+    gsl_rng_set(run->rng, stream_seed(opts->seed, ps->name, "projection", 0));
+    int st = ar1_drift_project(ws, fit, ps->n, 2.0 * (double)(ps->n - 1),
+                               (size_t)opts->projection_draws, run->rng, pr);
+    if (st == SLOWSCAN_ENOMEM)
+        return EXIT_INTERNAL;
+    if (st != SLOWSCAN_OK) {
+        cli_warning("%s: column '%s': no projected crossing (%s)", ps->source, ps->name,
+                    slowscan_strerror(st));
+        pr->kind = PROJECTION_NONE, pr->index = pr->index_lo = pr->index_hi = NAN;
+        pr->share_crossing = NAN, pr->draws = 0;
+        return EXIT_OK;
+    }
+    cli_put_field(run->projection, ps->name);
+    fprintf(run->projection, ",%s,", projection_status[pr->kind]);
+    const double index[] = {pr->index, pr->index_lo, pr->index_hi};
+    for (int k = 0; k < 3; k++) {
+        cli_put_number(run->projection, ps->time[0] + index[k] * ps->dt);
+        fputc(',', run->projection);
+    }
+    fprintf(run->projection, "%s,", isinf(pr->index_hi) ? "open_above" : "closed");
+    cli_put_number(run->projection, pr->share_crossing);
+    fprintf(run->projection, ",%zu,%s\n", pr->draws, projection_basis);
+    return EXIT_OK;
+}
+
+static void write_json_projection(FILE *fp, const prepared_series *ps, const ar1_projection *pr)
+{
+    fprintf(fp, ", \"projection\": {\"basis\": \"%s\", \"status\": \"%s\"", projection_basis,
+            projection_status[pr->kind]);
+    const char *k[] = {"crossing_time", "crossing_lo", "crossing_hi"};
+    const double index[] = {pr->index, pr->index_lo, pr->index_hi};
+    for (int i = 0; i < 3; i++) {
+        fprintf(fp, ", \"%s\": ", k[i]);
+        cli_json_number(fp, ps->time[0] + index[i] * ps->dt);
+    }
+    fprintf(fp, ", \"open_above\": %s, \"share_crossing\": ", isinf(pr->index_hi) ? "true" : "false");
+    cli_json_number(fp, pr->share_crossing);
+    fprintf(fp, ", \"draws\": %zu}", pr->draws);
+}
+
+static void write_json(recovery_run *run, const prepared_series *ps, const ar1_drift_fit *f, double p,
+                       const ar1_projection *pr)
 {
     fprintf(run->json, "%s\n    {\"series\": ", run->written++ ? "," : "");
     cli_json_string(run->json, ps->name);
@@ -54,7 +116,10 @@ static void write_json(recovery_run *run, const prepared_series *ps, const ar1_d
         fprintf(run->json, ", \"%s\": ", k[i]);
         cli_json_number(run->json, v[i]);
     }
-    fprintf(run->json, ", \"pairs\": %zu}", f->pairs);
+    fprintf(run->json, ", \"pairs\": %zu", f->pairs);
+    if (pr)
+        write_json_projection(run->json, ps, pr);
+    fputc('}', run->json);
 }
 
 static int recovery_series(const cli_options *opts, const prepared_series *ps, void *context)
@@ -81,8 +146,11 @@ static int recovery_series(const cli_options *opts, const prepared_series *ps, v
             }
             fputc('\n', run->out);
         }
-        if (run->json)
-            write_json(run, ps, &fit, p);
+        ar1_projection projected;
+        if (run->projection)
+            rc = write_projection(opts, run, ps, ws, &fit, &projected);
+        if (run->json && rc == EXIT_OK)
+            write_json(run, ps, &fit, p, run->projection ? &projected : NULL);
     } else if (rc == EXIT_OK) {
         cli_warning("%s: column '%s': no drifting AR(1) fit (%s); no rows written for it",
                     ps->source, ps->name, slowscan_strerror(st));
@@ -98,6 +166,10 @@ static int finish(const cli_options *opts, void *context)
     recovery_run *run = context;
     if (run->json)
         fputs("\n  ]\n}\n", run->json);
+    if (run->projection)
+        cli_warning("the crossing times in %s extrapolate a linear trend in the recovery "
+                    "rate beyond what was observed; they are not forecasts (see 'slowscan help "
+                    "recovery')", opts->projection_output);
     return EXIT_OK;
 }
 
@@ -107,5 +179,7 @@ int cmd_recovery(const cli_options *opts)
     series_command cmd = {open_outputs, recovery_series, finish, &run, NULL};
     int rc = cli_run_series_command(opts, &cmd);
     trend_tester_free(&run.tester);
+    if (run.rng)
+        gsl_rng_free(run.rng);
     return rc;
 }

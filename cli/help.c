@@ -148,6 +148,13 @@ static void help_robustness(FILE *out)
     fputs(cautions, out);
 }
 
+static const char projection_caution[] =
+    "A projected crossing extrapolates a straight-line trend of the AR(1) coefficient beyond\n"
+    "the record. It is not a forecast: a slow mode the record is too short to resolve, a\n"
+    "trend that bends (near a fold the recovery rate nears zero like a square root, not a line),\n"
+    "a transition set off early by noise or by the rate of forcing, or one that comes late,\n"
+    "all make it wrong, and its interval only covers the noise of the fit, not these.\n\n";
+
 static void help_recovery(FILE *out)
 {
     fputs("usage: slowscan recovery [options] FILE...\n\n"
@@ -159,9 +166,17 @@ static void help_recovery(FILE *out)
     fputs("  --json FILE          per series a0, a1, c, their standard errors, the t-value of a1\n"
           "                       and, with --surrogates M, its surrogate p-value (a1 > 0)\n"
           "  --noise-trend        let the innovation variance drift linearly too (weighted\n"
-          "                       least squares), so a growing noise is not read as memory\n", out);
+          "                       least squares), so a growing noise is not read as memory\n"
+          "  --project FILE       where the fitted path reaches lambda = 0 within twice the\n"
+          "                       record, the crossing time with a 95% residual-bootstrap\n"
+          "                       interval: series,status,crossing_time,crossing_lo,\n"
+          "                       crossing_hi,interval,share_crossing,draws,basis (status\n"
+          "                       ahead, within_record or none_within_2x_record; interval\n"
+          "                       open_above when over 2.5% of draws do not cross)\n"
+          "  --project-draws N    bootstrap draws (default 1000, at least 500)\n", out);
     fputs(testing_options, out);
     fputs("\n", out);
+    fputs(projection_caution, out);
     fputs(cautions, out);
 }
 

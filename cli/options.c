@@ -151,6 +151,7 @@ static int set_bandwidths(cli_options *o, const char *n, const char *v)
 }
 static int set_fractions(cli_options *o, const char *n, const char *v) { (void)n; o->fractions_output = v; return EXIT_OK; }
 static int set_noise_trend(cli_options *o, const char *n, const char *v) { (void)n; (void)v; o->noise_trend = 1; return EXIT_OK; }
+static int set_projection(cli_options *o, const char *n, const char *v) { (void)n; o->projection_output = v; return EXIT_OK; }
 static int set_control(cli_options *o, const char *n, const char *v) { (void)n; o->control_file = v; return EXIT_OK; }
 static int set_json(cli_options *o, const char *n, const char *v) { (void)n; o->json_output = v; return EXIT_OK; }
 static int set_rolling(cli_options *o, const char *n, const char *v) { (void)n; o->rolling_output = v; return EXIT_OK; }
@@ -257,6 +258,12 @@ enum { MAX_SURROGATES = 1000000 };
 static int set_surrogates(cli_options *o, const char *n, const char *v)
 {
     return set_whole(n, v, 0, MAX_SURROGATES, &o->surrogates);
+}
+
+/* The bootstrap interval needs its 2.5% tails resolved by a dozen draws or more. */
+static int set_projection_draws(cli_options *o, const char *n, const char *v)
+{
+    return set_whole(n, v, 500, MAX_SURROGATES, &o->projection_draws);
 }
 
 static int set_null(cli_options *o, const char *n, const char *v)
@@ -367,6 +374,8 @@ static const option_spec options[] = {
     {"--json", 1, C_SCREEN | C_RECOVERY, set_json},
     {"--control", 1, C_TESTING | C_SURROGATES, set_control},
     {"--noise-trend", 0, C_SCREEN | C_RECOVERY, set_noise_trend},
+    {"--project", 1, C_RECOVERY, set_projection},
+    {"--project-draws", 1, C_RECOVERY, set_projection_draws},
     {"--windows", 1, C_ROBUST, set_windows},
     {"--bandwidths", 1, C_ROBUST, set_bandwidths},
     {"--fractions", 1, C_ROBUST, set_fractions},
@@ -488,6 +497,12 @@ int cli_parse(const char *command, int argc, char **argv, int first, cli_options
                                  : "option --control needs --null control");
         return EXIT_BAD_INPUT;
     }
+    if (o->projection_draws > 0 && !o->projection_output) {
+        cli_error("option --project-draws needs --project FILE");
+        return EXIT_BAD_INPUT;
+    }
+    if (o->projection_draws == 0)
+        o->projection_draws = 1000;
     if (o->progress < 0)
         o->progress = isatty(STDERR_FILENO);
     if (bit != C_DEMO && o->nfiles == 0) {

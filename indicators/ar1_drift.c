@@ -1,21 +1,12 @@
 /* AR(1) with a linearly drifting coefficient, fitted by ordinary least squares (GSL). */
 #include "slowscan/ar1_drift.h"
 #include "slowscan/status.h"
+#include "ar1_drift_internal.h"
 
 #include <gsl/gsl_errno.h>
-#include <gsl/gsl_multifit.h>
 #include <math.h>
 #include <stdlib.h>
 
-struct ar1_drift_workspace {
-    size_t nmax;
-    gsl_matrix *design; /* rows: x_t, s_t x_t, 1 */
-    gsl_vector *response, *coef;
-    gsl_matrix *cov;
-    gsl_multifit_linear_workspace *lw; /* sized for nmax - 1 rows; GSL 2 fits fewer in it */
-    gsl_vector *s, *weight;            /* per row: rescaled time, WLS weight */
-    int noise_trend;
-};
 
 void ar1_drift_free(ar1_drift_workspace *ws)
 {

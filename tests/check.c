@@ -214,3 +214,30 @@ int check_totals(const char *label)
     printf("%s: %d passed, %d failed\n", label, passed, failed);
     return failed ? 1 : 0;
 }
+
+/* Columns t (0, 1, ...), s0, s1, ...: series k sample i from gen. */
+void check_write_series_csv(const char *path, size_t count, size_t n, check_sample_fn gen,
+                            unsigned long seed)
+{
+    check_rng *rng = check_rng_alloc(seed);
+    double *state = calloc(count, sizeof *state);
+    double *x = malloc(count * n * sizeof *x);
+    for (size_t k = 0; k < count; k++)
+        for (size_t i = 0; i < n; i++)
+            x[k * n + i] = gen(rng, k, i, n, &state[k]);
+    FILE *f = fopen(path, "w");
+    fputs("t", f);
+    for (size_t k = 0; k < count; k++)
+        fprintf(f, ",s%zu", k);
+    fputc('\n', f);
+    for (size_t i = 0; i < n; i++) {
+        fprintf(f, "%zu", i);
+        for (size_t k = 0; k < count; k++)
+            fprintf(f, ",%.10g", x[k * n + i]);
+        fputc('\n', f);
+    }
+    fclose(f);
+    free(x);
+    free(state);
+    check_rng_free(rng);
+}

@@ -61,4 +61,10 @@ double check_rng_gaussian(check_rng *rng);
 double check_rng_uniform(check_rng *rng);
 void check_rng_free(check_rng *rng);
 
+/* A CSV of `count` series of n samples, sample i of series k from gen (state: one double per
+ * series, zeroed first), the time column t = 0, 1, ... */
+typedef double (*check_sample_fn)(check_rng *rng, size_t k, size_t i, size_t n, double *state);
+void check_write_series_csv(const char *path, size_t count, size_t n, check_sample_fn gen,
+                            unsigned long seed);
+
 #endif

@@ -8,35 +8,6 @@
 #include <stdlib.h>
 #include <string.h>
 
-/* A CSV of `count` series of n samples from gen(k, i, state). */
-typedef double (*sample_fn)(check_rng *rng, size_t k, size_t i, size_t n, double *state);
-
-static void write_series_csv(const char *path, size_t count, size_t n, sample_fn gen,
-                             unsigned long seed)
-{
-    check_rng *rng = check_rng_alloc(seed);
-    double *state = calloc(count, sizeof *state);
-    double *x = malloc(count * n * sizeof *x);
-    for (size_t k = 0; k < count; k++)
-        for (size_t i = 0; i < n; i++)
-            x[k * n + i] = gen(rng, k, i, n, &state[k]);
-    FILE *f = fopen(path, "w");
-    fputs("t", f);
-    for (size_t k = 0; k < count; k++)
-        fprintf(f, ",s%zu", k);
-    fputc('\n', f);
-    for (size_t i = 0; i < n; i++) {
-        fprintf(f, "%zu", i);
-        for (size_t k = 0; k < count; k++)
-            fprintf(f, ",%.10g", x[k * n + i]);
-        fputc('\n', f);
-    }
-    fclose(f);
-    free(x);
-    free(state);
-    check_rng_free(rng);
-}
-
 /* Stationary AR(1), phi = 0.5, started from its stationary distribution. */
 static double ar1_sample(check_rng *rng, size_t k, size_t i, size_t n, double *state)
 {
@@ -105,7 +76,7 @@ static void test_size(void)
 {
     enum { SERIES = 200 };
     const char *in = check_tmp_path("stationary.csv");
-    write_series_csv(in, SERIES, 300, ar1_sample, 21);
+    check_write_series_csv(in, SERIES, 300, ar1_sample, 21);
     const char *nulls[] = {"phase", "ar1"};
     for (size_t nm = 0; nm < 2; nm++) {
     char args[200];
@@ -136,7 +107,7 @@ static void test_power(void)
 {
     enum { SERIES = 20 };
     const char *in = check_tmp_path("fold.csv");
-    write_series_csv(in, SERIES, 1200, fold_sample, 33);
+    check_write_series_csv(in, SERIES, 1200, fold_sample, 33);
     /* A 25% window: with half-length windows the overlapping paths leave the rolling test
      * little power at this length (the reason a model-based test is planned). */
     char *out = screen("--surrogates 199 --window 25%", in);
@@ -156,7 +127,7 @@ static void test_power(void)
 static void test_determinism(void)
 {
     const char *in = check_tmp_path("det.csv");
-    write_series_csv(in, 3, 200, ar1_sample, 5);
+    check_write_series_csv(in, 3, 200, ar1_sample, 5);
     char *a = screen("--surrogates 99 --seed 7", in), *b = screen("--surrogates 99 --seed 7", in);
     char *c = screen("--surrogates 99 --seed 8", in);
     CHECK(a && b && strcmp(a, b) == 0, "same seed, identical output");
@@ -185,7 +156,7 @@ static void test_determinism(void)
 static void test_surrogates_command(void)
 {
     const char *in = check_tmp_path("sur-in.csv"), *out = check_tmp_path("sur-out.csv");
-    write_series_csv(in, 2, 300, ar1_sample, 8);
+    check_write_series_csv(in, 2, 300, ar1_sample, 8);
     char cmd[1400];
     snprintf(cmd, sizeof cmd, "%s surrogates --detrend none --surrogates 5 -o %s %s",
              check_binary(), out, in);
@@ -209,7 +180,7 @@ static void test_json(void)
 {
     const char *in = check_tmp_path("json-in.csv"), *js = check_tmp_path("out.json");
     const char *csv = check_tmp_path("json-out.csv");
-    write_series_csv(in, 3, 200, ar1_sample, 12);
+    check_write_series_csv(in, 3, 200, ar1_sample, 12);
     char cmd[1400];
     snprintf(cmd, sizeof cmd, "%s screen --surrogates 49 --seed 4 --json %s -o %s %s",
              check_binary(), js, csv, in);
@@ -224,7 +195,7 @@ static void test_json(void)
 static void test_robustness(void)
 {
     const char *in = check_tmp_path("rob-in.csv"), *fr = check_tmp_path("rob-fr.csv");
-    write_series_csv(in, 2, 300, fold_sample, 3);
+    check_write_series_csv(in, 2, 300, fold_sample, 3);
     char args[1400];
     snprintf(args, sizeof args, "--windows 40%%:60%%:10%% --bandwidths 5%%,10%% --surrogates 49 "
              "--fractions %s", fr);
@@ -262,9 +233,9 @@ static void test_control_null(void)
 {
     const char *forced = check_tmp_path("forced.csv"), *full = check_tmp_path("control.csv");
     const char *cut = check_tmp_path("control-cut.csv"), *out = check_tmp_path("control-sur.csv");
-    write_series_csv(forced, 2, 300, fold_sample, 41);
-    write_series_csv(full, 2, 400, ar1_sample, 42);
-    write_series_csv(cut, 1, 300, ar1_sample, 42); /* s0's first 300 draws (series-major) */
+    check_write_series_csv(forced, 2, 300, fold_sample, 41);
+    check_write_series_csv(full, 2, 400, ar1_sample, 42);
+    check_write_series_csv(cut, 1, 300, ar1_sample, 42); /* s0's first 300 draws (series-major) */
     char cmd[1600];
     snprintf(cmd, sizeof cmd, "%s surrogates --detrend none --null control --control %s "
              "--surrogates 4 -o %s %s", check_binary(), full, out, forced);
@@ -354,7 +325,7 @@ static double recovery_share(const char *json, size_t *count)
 static void test_recovery_size_power(void)
 {
     const char *in = check_tmp_path("rec-ar1.csv"), *js = check_tmp_path("rec-ar1.json");
-    write_series_csv(in, 200, 300, ar1_sample, 77);
+    check_write_series_csv(in, 200, 300, ar1_sample, 77);
     char cmd[1400];
     snprintf(cmd, sizeof cmd, "%s recovery --detrend linear --surrogates 199 --json %s -o /dev/null %s",
              check_binary(), js, in);
@@ -368,7 +339,7 @@ static void test_recovery_size_power(void)
     /* A rising noise amplitude alone is not a growing memory: the size holds there too
      * (binomial 99% interval for 100 series, from GSL's binomial cdf). */
     const char *noisy = check_tmp_path("rec-noise.csv"), *nj = check_tmp_path("rec-noise.json");
-    write_series_csv(noisy, 100, 300, rising_noise_sample, 78);
+    check_write_series_csv(noisy, 100, 300, rising_noise_sample, 78);
     snprintf(cmd, sizeof cmd, "%s recovery --detrend linear --surrogates 199 --json %s -o /dev/null %s",
              check_binary(), nj, noisy);
     CHECK(check_run(cmd, NULL, NULL) == 0, "recovery on 100 rising-noise series");
@@ -383,7 +354,7 @@ static void test_recovery_size_power(void)
             hits, count, lo, hi);
     CHECK(count == 100 && hits >= lo && hits <= hi, "size under rising noise: %zu/%zu", hits, count);
     const char *fold = check_tmp_path("rec-fold.csv"), *fj = check_tmp_path("rec-fold.json");
-    write_series_csv(fold, 20, 1200, fold_sample, 33); /* the series of test_power */
+    check_write_series_csv(fold, 20, 1200, fold_sample, 33); /* the series of test_power */
     snprintf(cmd, sizeof cmd, "%s recovery --surrogates 199 --json %s -o /dev/null %s",
              check_binary(), fj, fold);
     CHECK(check_run(cmd, NULL, NULL) == 0, "recovery on fold series");

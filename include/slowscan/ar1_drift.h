@@ -11,6 +11,7 @@
 #define SLOWSCAN_AR1_DRIFT_H
 
 #include <stddef.h>
+#include <gsl/gsl_rng.h>
 
 typedef struct {
     double a0, a1, c;             /* coefficients */
@@ -43,5 +44,36 @@ int ar1_drift_estimate(ar1_drift_workspace *ws, const double *x, size_t n, ar1_d
  * NaN where phi <= 0. lo and hi may be NULL. */
 void ar1_drift_path(const ar1_drift_fit *fit, size_t n, double dt, double *lambda, double *lo,
                     double *hi);
+
+/* Projected crossing of lambda = 0 — an extrapolation of the fitted linear trend in the AR(1)
+ * coefficient, not a forecast: a slow mode the record does not resolve, a change of regime or
+ * a transition set off by noise or by the rate of forcing all break it.
+ * Positions are fractional sample indices from the first sample (0 .. n-1 is the record);
+ * the caller turns them into times (t_first + index * dt). */
+typedef enum {
+    PROJECTION_AHEAD,         /* crosses after the record, within the horizon */
+    PROJECTION_WITHIN_RECORD, /* the fitted path already reaches lambda = 0 inside the record */
+    PROJECTION_NONE           /* a1 <= 0, or the crossing lies beyond the horizon */
+} ar1_projection_kind;
+
+typedef struct {
+    ar1_projection_kind kind;
+    double index;          /* crossing of the fitted path (NaN for PROJECTION_NONE) */
+    double index_lo;       /* 2.5% bootstrap percentile of the crossing (NaN if it does not exist) */
+    double index_hi;       /* 97.5% percentile; +INFINITY when more than 2.5% of draws do not
+                            * cross within the horizon (the interval is open above) */
+    double share_crossing; /* share of bootstrap draws that cross within the horizon */
+    size_t draws;
+} ar1_projection;
+
+/* Residual bootstrap of the last fit made with ws (fit must be what ar1_drift_estimate just
+ * returned for the same series): the design is kept, the centred residuals (standardised by
+ * the weights under the noise trend, inflated by sqrt(m/(m-3))) are drawn with replacement, the
+ * coefficients refitted, and each draw's upward crossing phi = 1 located. The horizon is
+ * `horizon` samples from the first (2(n-1) for twice the record). Each draw costs O(pairs): the
+ * refit is b + (X'WX)^-1 X'W e*, with the projection matrix formed once.
+ * SLOWSCAN_EINVAL for draws < 1; SLOWSCAN_ENOMEM. */
+int ar1_drift_project(ar1_drift_workspace *ws, const ar1_drift_fit *fit, size_t n, double horizon,
+                      size_t draws, gsl_rng *rng, ar1_projection *out);
 
 #endif
