@@ -18,6 +18,8 @@ typedef struct {
     size_t W;
     int keep_high;       /* keep orders 3 and 4 (skewness, kurtosis) */
     int keep_pairs;      /* keep the pair sums (lag1, ar1, recovery) */
+    int complete;        /* set by the caller: no sample is missing and there is no level,
+                            so every window is full and push/refresh take their fast paths */
     size_t end;          /* index of the newest sample in the window */
     size_t refreshed_at; /* value of `end` at the last exact recomputation */
 

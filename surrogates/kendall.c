@@ -16,6 +16,7 @@
 #include "slowscan/status.h"
 
 #include <math.h>
+#include <stddef.h>
 #include <stdint.h>
 #include <stdlib.h>
 #include <string.h>
@@ -131,23 +132,43 @@ static void sort_pairs(kendall_workspace *ws, size_t m)
 }
 
 /* Merges two sorted runs of y; returns the swaps, i.e. the pairs (left, right) with
- * left > right strictly (on equality the left element goes first and nothing is counted). */
+ * left > right strictly (on equality the left element goes first and nothing is counted).
+ *
+ * The merge runs from both ends at once: the front takes the smaller head (left on a tie),
+ * the back the larger tail (right on a tie), half of the output each. Each chain of
+ * compare-select-advance is limited by its load latency, so two independent chains nearly
+ * halve the time. Every right element r is counted once, against the left elements greater
+ * than r: at the front these are all lefts not yet taken (mid - i); at the back exactly the
+ * lefts the back has already taken (they are > r, and the front only takes values <= r). */
 static int64_t merge_count(const double *s, double *d, size_t lo, size_t mid, size_t hi)
 {
-    size_t i = lo, j = mid, k = lo;
+    size_t i = lo, j = mid, k = lo;                        /* front cursors */
+    ptrdiff_t bi = (ptrdiff_t)mid - 1, bj = (ptrdiff_t)hi - 1, bk = bj; /* back cursors */
+    size_t half = (hi - lo) / 2;
     int64_t swaps = 0;
     /* Branch-free: which side goes next is data-dependent and mispredicted half the time on
-     * an indicator path, so select with arithmetic (compiled to conditional moves). */
-    while (i < mid && j < hi) {
-        double a = s[i], b = s[j];
-        size_t right = b < a;
+     * an indicator path, so select with arithmetic (compiled to conditional moves). Guards
+     * keep a cursor inside its run once the run is used up (the other side then always
+     * wins). */
+    for (size_t step = 0; step < half; step++) {
+        double a = i < mid ? s[i] : INFINITY, b = j < hi ? s[j] : INFINITY;
+        size_t right = j < hi && (i >= mid || b < a);
         d[k++] = right ? b : a;
         swaps += (int64_t)(right * (mid - i));
         j += right;
         i += 1 - right;
+        double ta = bi >= (ptrdiff_t)lo ? s[bi] : -INFINITY, tb = bj >= (ptrdiff_t)mid ? s[bj] : -INFINITY;
+        ptrdiff_t left = bi >= (ptrdiff_t)lo && (bj < (ptrdiff_t)mid || ta > tb);
+        d[bk--] = left ? ta : tb;
+        swaps += (int64_t)((1 - left) * (size_t)((ptrdiff_t)mid - 1 - bi));
+        bi -= left;
+        bj -= 1 - left;
     }
-    memcpy(d + k, s + i, (mid - i) * sizeof(double));
-    memcpy(d + k + (mid - i), s + j, (hi - j) * sizeof(double));
+    if ((hi - lo) % 2) { /* one element is left, between the two cursors of its run */
+        size_t right = (ptrdiff_t)j == bj;
+        d[k] = right ? s[j] : s[i];
+        swaps += (int64_t)(right * (mid - i));
+    }
     return swaps;
 }
 
