@@ -68,7 +68,7 @@ static rolling_spec standard_setup(const double *x, double *time_axis, double *t
     detrend_spec spec = {DETREND_GAUSSIAN, 0.10 * (N - 1), 0};
     detrend_apply(&spec, 1.0, x, N, trend, resid);
     size_t W = (size_t)floor(0.5 * (N - 1) + 0.5) + 1;
-    return (rolling_spec){W, 0.8, 1.0, RECOVERY_LOG_AR1};
+    return (rolling_spec){W, 0.8, 1.0, RECOVERY_LOG_AR1, 0, 0, 0, NULL};
 }
 
 /* The whole job through the library, as screen runs it for one series. */
