@@ -289,8 +289,9 @@ static int check_per_window(const cli_options *o, const prepared_series *ps)
             continue;
         double nyquist = 0.5 / ps->dt;
         if (o->band_hi > nyquist * (1 + 1e-9)) {
-            cli_error("%s: option --band %s is outside (0, %.12g], the frequencies of time step "
-                      "%.12g (cycles per time unit)", ps->source, o->band_text, nyquist, ps->dt);
+            cli_error("%s: option --band %s is outside (0, %.12g]: the Nyquist frequency of time "
+                      "step %.12g is %.12g cycles per time unit", ps->source, o->band_text, nyquist,
+                      ps->dt, nyquist);
             return EXIT_BAD_INPUT;
         }
         size_t inside = rolling_band_count(ps->window, ps->dt, o->band_lo, o->band_hi);
