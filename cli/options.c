@@ -518,6 +518,12 @@ int cli_parse(const char *command, int argc, char **argv, int first, cli_options
                                  : "option --control needs --null control");
         return EXIT_BAD_INPUT;
     }
+    int exponent = 0;
+    for (size_t j = 0; j < o->nindicators; j++)
+        exponent |= o->indicators[j] == INDICATOR_SPECTRAL_EXPONENT;
+    if (o->band_text && !exponent)
+        cli_warning("option --band %s has no effect without spectral_exponent in --indicators",
+                    o->band_text);
     if (o->progress < 0)
         o->progress = isatty(STDERR_FILENO);
     if (bit != C_DEMO && o->nfiles == 0) {

@@ -395,7 +395,7 @@ static size_t rows_of(const char *text, const char *indicator)
 /* --step, --band and the per-window indicators through the binary: only evaluated windows
  * are written, each equal to its step-1 row (common practice, no source: a step only skips
  * windows); the default step keeps dfa to at most 500 windows; --rolling of screen matches
- * 'indicators'; the surrogate p-values do not depend on --threads; bad values are refused. */
+ * 'indicators'; the surrogate p-values do not depend on --threads. */
 static void test_spectral_commands(void)
 {
     const char *in = check_tmp_path("spec.csv"), *roll = check_tmp_path("spec-rolling.csv");
@@ -435,16 +435,21 @@ static void test_spectral_commands(void)
           "screen --rolling equals indicators");
     free(rolled);
     char *threads1 = NULL;
-    snprintf(args, sizeof args, "screen --indicators redness,dfa --window 20%% --surrogates 130 "
-             "--threads 1 %s", in);
+    snprintf(args, sizeof args, "screen --vars rising --indicators redness,dfa --window 20%% "
+             "--surrogates 70 --threads 1 %s", in);
     if (slowscan(args) == 0)
         threads1 = strdup(run_out);
-    snprintf(args, sizeof args, "screen --indicators redness,dfa --window 20%% --surrogates 130 "
-             "--threads 3 %s", in);
+    snprintf(args, sizeof args, "screen --vars rising --indicators redness,dfa --window 20%% "
+             "--surrogates 70 --threads 3 %s", in);
     CHECK(slowscan(args) == 0 && threads1 && strcmp(threads1, run_out) == 0,
           "screen with redness, dfa: same output for 1 and 3 threads");
     free(threads1);
+}
 
+/* Bad --step and --band values and windows too short for dfa: exit 1, one message naming the
+ * option, no output. */
+static void test_spectral_refusals(void)
+{
     char *small = make_csv(200, 22); /* dt = 1: Nyquist 0.5; 50% window: W = 101 */
     expect_rejected("step 0", small, "indicators --step 0", "--step");
     expect_rejected("step -1", small, "screen --step -1", "--step");
@@ -452,7 +457,8 @@ static void test_spectral_commands(void)
     expect_rejected("band above Nyquist", small,
                     "indicators --indicators spectral_exponent --band 0.1:0.7", "--band");
     expect_rejected("band at 0", small, "screen --indicators spectral_exponent --band 0:0.2", "--band");
-    expect_rejected("band backwards", small, "indicators --band 0.3:0.2", "--band");
+    expect_rejected("band backwards", small, "indicators --indicators spectral_exponent --band 0.3:0.2",
+                    "--band");
     expect_rejected("band of one frequency", small,
                     "robustness --windows 50% --indicators spectral_exponent --band 0.2:0.21", "--band");
     expect_rejected("window too short for dfa", small, "indicators --indicators dfa --window 20",
@@ -465,6 +471,7 @@ static void test_spectral_commands(void)
 void suite_cli(void)
 {
     test_spectral_commands();
+    test_spectral_refusals();
     test_review_regressions();
     test_help_and_version();
     test_demo_matches_committed_data();
