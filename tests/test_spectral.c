@@ -322,6 +322,16 @@ static void test_errors(void)
     CHECK(rolling_compute(&s, x, NULL, N, &dfa, 1, outs) == SLOWSCAN_EINVAL,
           "a plan of another window refused");
     rolling_plan_free(plan);
+    /* The smallest DFA window: box sizes 4, 5, 6, 7, 8 (four per octave, rounded). */
+    s.plan = NULL;
+    CHECK(rolling_plan_alloc(&s, &plan) == SLOWSCAN_OK, "W=32: plan made");
+    rolling_scratch *scratch = rolling_scratch_alloc(DFA_MIN_WINDOW);
+    size_t sizes[16], count = 0;
+    double F[16];
+    CHECK(rolling_dfa_fluctuation(plan, scratch, x, sizes, F, 16, &count) == SLOWSCAN_OK &&
+          count == 5 && sizes[0] == 4 && sizes[1] == 5 && sizes[4] == 8, "W=32: %zu box sizes", count);
+    rolling_scratch_free(scratch);
+    rolling_plan_free(plan);
     free(x);
 }
 
