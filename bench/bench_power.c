@@ -50,7 +50,7 @@ static void test_series(const double *x, surrogate_kind kind, const char *name, 
         paths[0] = malloc(N * sizeof(double)), paths[1] = malloc(N * sizeof(double));
     detrend_spec spec = {DETREND_GAUSSIAN, 0.10 * (N - 1) * 0.5, 0}; /* 10% of the span */
     detrend_apply(&spec, 0.5, x, N, NULL, resid);
-    rolling_spec rs = {(size_t)floor(0.5 * (N - 1) + 0.5) + 1, 0.8, 0.5, RECOVERY_LOG_AR1};
+    rolling_spec rs = {(size_t)floor(0.5 * (N - 1) + 0.5) + 1, 0.8, 0.5, RECOVERY_LOG_AR1, 0, 0, 0, NULL};
     rolling_compute(&rs, resid, NULL, N, kinds, 2, paths);
     kendall_workspace *kw = kendall_alloc(N);
     ar1_drift_workspace *aw = ar1_drift_alloc(N);

@@ -3,7 +3,8 @@
  * numpy/scipy/pandas script ../shared/bench/reference_pipeline.py on the same input, both
  * single-threaded and measured in this run. Also: the cost of one surrogate over the cost of
  * its irreducible parts timed alone (one FFTW c2r of length n, and per indicator one rolling
- * pass and one Kendall count). */
+ * pass and one Kendall count); and the cost of one surrogate tested on a per-window indicator
+ * (redness, spectral_exponent, dfa at their default step) over one tested on lag1. */
 #include "slowscan/detrend.h"
 #include "slowscan/indicators.h"
 #include "slowscan/kendall.h"
@@ -68,7 +69,7 @@ static rolling_spec standard_setup(const double *x, double *time_axis, double *t
     detrend_spec spec = {DETREND_GAUSSIAN, 0.10 * (N - 1), 0};
     detrend_apply(&spec, 1.0, x, N, trend, resid);
     size_t W = (size_t)floor(0.5 * (N - 1) + 0.5) + 1;
-    return (rolling_spec){W, 0.8, 1.0, RECOVERY_LOG_AR1};
+    return (rolling_spec){W, 0.8, 1.0, RECOVERY_LOG_AR1, 0, 0, 0, NULL};
 }
 
 /* The whole job through the library, as screen runs it for one series. */
@@ -157,6 +158,46 @@ static void floor_ratio(const double *x)
     surrogate_plan_free(plan);
 }
 
+/* Seconds per surrogate of the standard job on one indicator, best of 5 runs of `reps`. */
+static double per_surrogate(const rolling_spec *rs, const double *resid, const double *time_axis,
+                            indicator_kind kind, int reps)
+{
+    static double null[400];
+    surrogate_plan *plan = surrogate_plan_alloc(N, FFTW_ESTIMATE);
+    int st;
+    surrogate_source *src = surrogate_source_alloc(plan, SURROGATE_PHASE, resid, NULL, &st);
+    null_trend_workspace *ws = null_trend_alloc(N, 1);
+    null_trend_job job = {rs, &kind, 1, time_axis, NULL, 1, "y", "phase", 0};
+    double seconds;
+    BEST_PER_CALL(seconds, 1, null_trend_draw(ws, src, &job, 0, (size_t)reps, null, (size_t)reps));
+    null_trend_free(ws);
+    surrogate_source_free(src);
+    surrogate_plan_free(plan);
+    return seconds / reps;
+}
+
+static void per_window_ratio(const double *x)
+{
+    static double resid[N], time_axis[N];
+    rolling_spec rs = standard_setup(x, time_axis, NULL, resid);
+    rolling_plan *plan = NULL;
+    if (rolling_plan_alloc(&rs, &plan) != SLOWSCAN_OK)
+        return;
+    rs.plan = plan;
+    double lag1 = per_surrogate(&rs, resid, time_axis, INDICATOR_LAG1, 400);
+    const indicator_kind kinds[3] = {INDICATOR_REDNESS, INDICATOR_SPECTRAL_EXPONENT, INDICATOR_DFA};
+    printf("per-window indicators (n=%d, W=%zu, default step %zu: %zu windows), one surrogate "
+           "relative to one lag1 surrogate (%.1f us):", N, rs.window,
+           rolling_step(&rs, INDICATOR_REDNESS, N), (N - rs.window) / rolling_step(&rs, INDICATOR_REDNESS, N) + 1,
+           1e6 * lag1);
+    for (int k = 0; k < 3; k++) {
+        double cost = per_surrogate(&rs, resid, time_axis, kinds[k], 20);
+        printf(" %s %.0fx (%.2f ms)%s", indicator_name(kinds[k]), cost / lag1, 1e3 * cost,
+               k < 2 ? "," : "\n");
+    }
+    rolling_plan_free(plan);
+}
+
 int main(void)
 {
     static double x[N];
@@ -181,5 +222,6 @@ int main(void)
                "%.3f s, slowscan %.4f s, speed-up %.0fx (target >= 30x)\n", N, M, ref,
                best.seconds, ref / best.seconds);
     floor_ratio(x);
+    per_window_ratio(x);
     return 0;
 }

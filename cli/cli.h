@@ -42,6 +42,9 @@ typedef struct {
     const char *indicators_text;
     double min_coverage;
     recovery_method recovery;
+    long step;              /* --step K; 0: the default per indicator (rolling_step) */
+    double band_lo, band_hi; /* --band LO:HI for spectral_exponent; both 0: all frequencies */
+    const char *band_text;
     int drift_test; /* screen: the model-based "recovery_trend" test (ar1_drift.h) */
     int noise_trend; /* --noise-trend: its innovation variance may drift linearly too */
     const char *projection_output; /* recovery --project FILE: crossing of lambda = 0 */
@@ -121,6 +124,15 @@ int cli_prepare_series(const cli_options *opts, const series_table *table, size_
 void cli_prepared_free(prepared_series *ps);
 /* W of opts->window for the table's grid (the rule of DESIGN §3), or an exit code. */
 int cli_series_window(const cli_options *opts, const series_table *table, size_t *window);
+
+/* The rolling spec of a prepared series (window, coverage, step, band), without a plan. */
+rolling_spec cli_rolling_spec(const cli_options *opts, const prepared_series *ps);
+/* With per-window indicators (redness, spectral_exponent, dfa) among opts->indicators: checks
+ * the window and --band against them (one message naming the option) and makes their plan
+ * into *plan and spec->plan (free with rolling_plan_free); otherwise *plan = NULL. Plans are
+ * made by the calling thread, before any surrogate thread starts. */
+int cli_rolling_plan(const cli_options *opts, const prepared_series *ps, rolling_spec *spec,
+                     rolling_plan **plan);
 
 /* Rolling indicators of a prepared series: values[j] (j < opts->nindicators) gets ps->n
  * entries, allocated here and released by cli_indicator_values_free even on failure. A

@@ -42,12 +42,22 @@ static const char input_options[] =
 static const char rolling_options[] =
     "indicators:\n"
     "  --window LEN         trailing window (default 50%); W = round(LEN/dt)+1 samples\n"
-    "  --indicators LIST    variance, sd, cv, skewness, kurtosis, lag1, ar1, recovery\n"
-    "                       (default variance,lag1; screen also recovery_trend, the\n"
-    "                       drifting-AR(1) test)\n"
+    "  --indicators LIST    variance, sd, cv, skewness, kurtosis, lag1, ar1, recovery,\n"
+    "                       redness, spectral_exponent, dfa (default variance,lag1; screen\n"
+    "                       also recovery_trend, the drifting-AR(1) test)\n"
     "  --min-coverage F     windows with fewer than F*W samples present give NA (default 0.8)\n"
     "  --recovery log|increments  recovery rate as ln(ar1)/dt (default) or the slope of\n"
-    "                       x[t+1]-x[t] on x[t] divided by dt\n";
+    "                       x[t+1]-x[t] on x[t] divided by dt\n"
+    "  --step K             evaluate every K-th window, counted back from the last (K >= 1);\n"
+    "                       default: every window for the moment indicators, and for redness,\n"
+    "                       spectral_exponent and dfa the smallest step leaving at most 500\n"
+    "                       windows; only evaluated windows are written and tested\n"
+    "  --band LO:HI         spectral_exponent: fit only frequencies in [LO, HI] cycles per\n"
+    "                       time unit, inside (0, 1/(2 dt)] (default: all positive ones)\n"
+    "redness: power in the lowest fifth of the window's frequencies over the highest fifth;\n"
+    "spectral_exponent: minus the slope of log power on log frequency; both from the Hann-\n"
+    "tapered periodogram of the demeaned window. dfa: detrended-fluctuation exponent, box\n"
+    "sizes 4 .. W/4 (W >= 32). These three are NA in a window with any missing sample.\n";
 
 static const char cautions[] =
     "cautions:\n"

@@ -195,7 +195,8 @@ static int set_indicators(cli_options *o, const char *n, const char *v)
         }
         if (indicator_lookup(tok, &kind) != SLOWSCAN_OK) {
             cli_error("option %s: unknown indicator '%s' (variance, sd, cv, skewness, kurtosis, "
-                      "lag1, ar1, recovery; recovery_trend in screen)", n, tok);
+                      "lag1, ar1, recovery, redness, spectral_exponent, dfa; recovery_trend in "
+                      "screen)", n, tok);
             return EXIT_BAD_INPUT;
         }
         for (size_t j = 0; j < o->nindicators; j++)
@@ -249,6 +250,33 @@ static int set_whole(const char *n, const char *v, long min, long max, long *out
         return EXIT_BAD_INPUT;
     }
     *out = x;
+    return EXIT_OK;
+}
+
+static int set_step(cli_options *o, const char *n, const char *v)
+{
+    return set_whole(n, v, 1, LONG_MAX, &o->step);
+}
+
+/* LO:HI in cycles per time unit, 0 < LO < HI; the Nyquist limit and the number of
+ * frequencies inside are checked per series, once the time step and window are known. */
+static int set_band(cli_options *o, const char *n, const char *v)
+{
+    char buf[128];
+    const char *colon = strchr(v, ':');
+    if (!colon || strlen(v) >= sizeof buf) {
+        cli_error("option %s: '%s' is not LO:HI (frequencies in cycles per time unit)", n, v);
+        return EXIT_BAD_INPUT;
+    }
+    memcpy(buf, v, (size_t)(colon - v));
+    buf[colon - v] = '\0';
+    if (parse_number(n, buf, &o->band_lo) || parse_number(n, colon + 1, &o->band_hi))
+        return EXIT_BAD_INPUT;
+    if (!(o->band_lo > 0 && o->band_lo < o->band_hi)) {
+        cli_error("option %s: %s must satisfy 0 < LO < HI", n, v);
+        return EXIT_BAD_INPUT;
+    }
+    o->band_text = v;
     return EXIT_OK;
 }
 
@@ -363,6 +391,8 @@ static const option_spec options[] = {
     {"--indicators", 1, C_ROLLING, set_indicators},
     {"--min-coverage", 1, C_ROLLING, set_min_coverage},
     {"--recovery", 1, C_ROLLING, set_recovery},
+    {"--step", 1, C_ROLLING, set_step},
+    {"--band", 1, C_ROLLING, set_band},
     {"--surrogates", 1, C_TESTING | C_SURROGATES, set_surrogates},
     {"--null", 1, C_TESTING | C_SURROGATES, set_null},
     {"--iaaft-tol", 1, C_TESTING | C_SURROGATES, set_iaaft_tol},
@@ -503,6 +533,12 @@ int cli_parse(const char *command, int argc, char **argv, int first, cli_options
     }
     if (o->projection_draws == 0)
         o->projection_draws = 1000;
+    int exponent = 0;
+    for (size_t j = 0; j < o->nindicators; j++)
+        exponent |= o->indicators[j] == INDICATOR_SPECTRAL_EXPONENT;
+    if (o->band_text && !exponent)
+        cli_warning("option --band %s has no effect without spectral_exponent in --indicators",
+                    o->band_text);
     if (o->progress < 0)
         o->progress = isatty(STDERR_FILENO);
     if (bit != C_DEMO && o->nfiles == 0) {

@@ -190,9 +190,15 @@ const char cli_rolling_header[] = "series,time,indicator,value\n";
 void cli_write_rolling(FILE *fp, const cli_options *opts, const prepared_series *ps,
                        double *const *values)
 {
+    rolling_spec spec = cli_rolling_spec(opts, ps);
     for (size_t j = 0; j < opts->nindicators; j++) {
         const char *name = indicator_name(opts->indicators[j]);
+        /* Only the windows evaluated on the indicator's step have a row; an evaluated window
+         * whose value is undefined is NA, as at step 1. */
+        size_t step = rolling_step(&spec, opts->indicators[j], ps->n);
         for (size_t i = ps->window - 1; i < ps->n; i++) {
+            if (!rolling_evaluated(step, ps->n, i))
+                continue;
             cli_put_field(fp, ps->name);
             fputc(',', fp);
             cli_put_number(fp, ps->time[i]);

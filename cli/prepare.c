@@ -268,6 +268,65 @@ static void fill_nan(double *v, size_t n)
         v[i] = NAN;
 }
 
+rolling_spec cli_rolling_spec(const cli_options *o, const prepared_series *ps)
+{
+    return (rolling_spec){ps->window, o->min_coverage, ps->dt, o->recovery, (size_t)o->step,
+                          o->band_lo, o->band_hi, NULL};
+}
+
+/* The window and the band against the per-window indicators requested; one message each. */
+static int check_per_window(const cli_options *o, const prepared_series *ps)
+{
+    for (size_t j = 0; j < o->nindicators; j++) {
+        indicator_kind kind = o->indicators[j];
+        size_t need = indicator_min_window(kind);
+        if (indicator_per_window(kind) && ps->window < need) {
+            cli_error("%s: option --window %s gives %zu samples per window; %s needs at least %zu",
+                      ps->source, o->window.text, ps->window, indicator_name(kind), need);
+            return EXIT_BAD_INPUT;
+        }
+        if (kind != INDICATOR_SPECTRAL_EXPONENT || !o->band_text)
+            continue;
+        double nyquist = 0.5 / ps->dt;
+        if (o->band_hi > nyquist * (1 + 1e-9)) {
+            cli_error("%s: option --band %s is outside (0, %.12g]: the Nyquist frequency of time "
+                      "step %.12g is %.12g cycles per time unit", ps->source, o->band_text, nyquist,
+                      ps->dt, nyquist);
+            return EXIT_BAD_INPUT;
+        }
+        size_t inside = rolling_band_count(ps->window, ps->dt, o->band_lo, o->band_hi);
+        if (inside < SPECTRAL_MIN_FREQUENCIES) {
+            cli_error("%s: option --band %s holds %zu of the window's frequencies k/(W dt) "
+                      "(W = %zu); spectral_exponent needs at least %d", ps->source, o->band_text,
+                      inside, ps->window, SPECTRAL_MIN_FREQUENCIES);
+            return EXIT_BAD_INPUT;
+        }
+    }
+    return EXIT_OK;
+}
+
+int cli_rolling_plan(const cli_options *o, const prepared_series *ps, rolling_spec *spec,
+                     rolling_plan **plan)
+{
+    *plan = NULL;
+    int per_window = 0;
+    for (size_t j = 0; j < o->nindicators; j++)
+        per_window |= indicator_per_window(o->indicators[j]);
+    if (!per_window)
+        return EXIT_OK;
+    int rc = check_per_window(o, ps);
+    if (rc != EXIT_OK)
+        return rc;
+    int st = rolling_plan_alloc(spec, plan);
+    if (st != SLOWSCAN_OK) {
+        cli_error("%s: column '%s': spectral plan failed: %s", ps->source, ps->name,
+                  slowscan_strerror(st));
+        return st == SLOWSCAN_ENOMEM ? EXIT_INTERNAL : EXIT_BAD_INPUT;
+    }
+    spec->plan = *plan;
+    return EXIT_OK;
+}
+
 int cli_indicator_values(const cli_options *o, const prepared_series *ps, double **values)
 {
     for (size_t j = 0; j < o->nindicators; j++)
@@ -282,6 +341,11 @@ int cli_indicator_values(const cli_options *o, const prepared_series *ps, double
                   "(%zu samples)", ps->source, o->window.text, ps->window, ps->n);
         return EXIT_BAD_INPUT;
     }
+    rolling_spec spec = cli_rolling_spec(o, ps);
+    rolling_plan *plan = NULL;
+    int rc = cli_rolling_plan(o, ps, &spec, &plan);
+    if (rc != EXIT_OK)
+        return rc;
     if (ps->constant || ps->finite < 2) {
         cli_warning("%s: column '%s' %s; its indicators are NA", ps->source, ps->name,
                     ps->constant == 1   ? "is constant"
@@ -289,11 +353,12 @@ int cli_indicator_values(const cli_options *o, const prepared_series *ps, double
                                         : "has fewer than 2 finite samples");
         for (size_t j = 0; j < o->nindicators; j++)
             fill_nan(values[j], ps->n);
+        rolling_plan_free(plan);
         return EXIT_OK;
     }
-    rolling_spec spec = {ps->window, o->min_coverage, ps->dt, o->recovery};
     int st = rolling_compute(&spec, ps->residual, ps->value, ps->n, o->indicators, o->nindicators,
                              values);
+    rolling_plan_free(plan);
     if (st != SLOWSCAN_OK) {
         cli_error("%s: column '%s': rolling indicators failed: %s", ps->source, ps->name,
                   slowscan_strerror(st));

@@ -45,6 +45,10 @@ static void write_parameters(FILE *fp, const cli_options *o)
     json_length(fp, "window", &o->window);
     fputs("    \"indicators\": ", fp);
     cli_json_string(fp, o->indicators_text);
+    fputs(",\n    \"step\": ", fp); /* null: the default step of each indicator */
+    o->step ? (void)fprintf(fp, "%ld", o->step) : (void)fputs("null", fp);
+    fputs(",\n    \"band\": ", fp);
+    o->band_text ? cli_json_string(fp, o->band_text) : (void)fputs("null", fp);
     fprintf(fp, ",\n    \"recovery\": \"%s\",\n    \"null\": \"%s\",\n    \"surrogates\": %ld,\n"
             "    \"iaaft_iterations\": %d,\n    \"block_length\": %zu,\n    \"alternative\": \"%s\",\n"
             "    \"seed\": %lu\n  },\n",

@@ -60,6 +60,21 @@ static int ready_null(trend_tester *run, const cli_options *opts, size_t n)
     return SLOWSCAN_OK;
 }
 
+/* The observed series and every surrogate share one plan per window length and time step;
+ * it is made here, in the calling thread, before the surrogate threads start. */
+static int ready_rolling(trend_tester *run, const cli_options *opts, const prepared_series *ps,
+                         rolling_spec *spec)
+{
+    *spec = cli_rolling_spec(opts, ps);
+    const rolling_plan *kept = run->rolling_plan;
+    if (kept && rolling_plan_matches(kept, spec)) {
+        spec->plan = kept;
+        return EXIT_OK;
+    }
+    rolling_plan_free(run->rolling_plan);
+    return cli_rolling_plan(opts, ps, spec, &run->rolling_plan);
+}
+
 /* Test j's alternative: the option, else the indicator's direction; the drift test looks for
  * a growing memory (a1 > 0). */
 static significance_alternative alternative_of(const cli_options *opts, size_t j)
@@ -109,8 +124,11 @@ static int test_series(const cli_options *opts, const prepared_series *ps, trend
                   ps->source, ps->name, block, ps->n);
         return EXIT_BAD_INPUT;
     }
+    rolling_spec spec;
+    int rc = ready_rolling(run, opts, ps, &spec);
+    if (rc != EXIT_OK)
+        return rc;
     int st = ready_null(run, opts, ps->n);
-    rolling_spec spec = {ps->window, opts->min_coverage, ps->dt, opts->recovery};
     int need_level = 0;
     for (size_t j = 0; j < opts->nindicators; j++)
         need_level |= indicator_needs_level(opts->indicators[j]);
@@ -206,4 +224,5 @@ void trend_tester_free(trend_tester *run)
     free(run->null);
     free(run->sorted);
     ar1_drift_free(run->drift);
+    rolling_plan_free(run->rolling_plan);
 }

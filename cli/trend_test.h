@@ -34,6 +34,7 @@ typedef struct {
     double *sorted; /* surrogates: scratch for the quantiles */
     ar1_drift_workspace *drift;
     size_t drift_n;
+    rolling_plan *rolling_plan; /* the per-window indicators' plan, kept while W and dt stay */
 } trend_tester;
 
 /* How many tests a run has (rolling indicators, plus the drift test when asked for). */

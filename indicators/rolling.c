@@ -1,9 +1,10 @@
-/* Rolling indicators: one pass of the shared window accumulator (window_sums.c); each
- * indicator is a small closed-form function of the window's sums, so the cost per step is
- * O(1) whatever W and the same for every indicator. */
+/* Rolling indicators: the moment indicators in one pass of the shared window accumulator
+ * (window_sums.c), each a small closed-form function of the window's sums, so the cost per
+ * step is O(1) whatever W; then the per-window ones (window_plan.c) on their step. */
 #include "slowscan/indicators.h"
 #include "slowscan/status.h"
 
+#include "per_window.h"
 #include "window_sums.h"
 
 #include <math.h>
@@ -115,6 +116,20 @@ static const indicator_fn evaluate[INDICATOR_COUNT] = {
     [INDICATOR_AR1] = ind_ar1,           [INDICATOR_RECOVERY] = ind_recovery,
 };
 
+/* A per-window indicator needs a plan of this W and dt, a W it is defined for and, for
+ * spectral_exponent, enough frequencies in the band. */
+static int per_window_ready(const rolling_spec *spec, indicator_kind kind)
+{
+    const rolling_plan *plan = spec->plan;
+    if (!plan || plan->window != spec->window || plan->dt != spec->dt)
+        return 0;
+    if (spec->window < indicator_min_window(kind))
+        return 0;
+    if (kind == INDICATOR_DFA)
+        return plan->dfa.count > 0;
+    return kind != INDICATOR_SPECTRAL_EXPONENT || plan->band_count >= SPECTRAL_MIN_FREQUENCIES;
+}
+
 static int validate(const rolling_spec *spec, const double *residual, const double *level,
                     size_t n, const indicator_kind *kinds, size_t nkinds, double *const *out)
 {
@@ -132,6 +147,8 @@ static int validate(const rolling_spec *spec, const double *residual, const doub
         if ((unsigned)kinds[k] >= (unsigned)INDICATOR_COUNT || !out[k])
             return SLOWSCAN_EINVAL;
         if (indicator_needs_level(kinds[k]) && !level)
+            return SLOWSCAN_EINVAL;
+        if (indicator_per_window(kinds[k]) && !per_window_ready(spec, kinds[k]))
             return SLOWSCAN_EINVAL;
     }
     return SLOWSCAN_OK;
@@ -155,26 +172,29 @@ static int all_finite(const double *x, size_t n)
     return finite;
 }
 
-int rolling_compute(const rolling_spec *spec, const double *residual, const double *level,
-                    size_t n, const indicator_kind *kinds, size_t nkinds, double *const *out)
+/* The moment indicators among kinds at every window; the per-window ones are left alone. */
+static void moment_pass(const rolling_spec *spec, const double *residual, const double *level,
+                        size_t n, const indicator_kind *kinds, size_t nkinds, double *const *out)
 {
-    int status = validate(spec, residual, level, n, kinds, nkinds, out);
-    if (status != SLOWSCAN_OK)
-        return status;
     int high = 0, pairs = 0, uses_level = 0;
+    size_t moments[INDICATOR_COUNT], count = 0; /* which of kinds stream: tested once, not per step */
     for (size_t k = 0; k < nkinds; k++) {
+        if (!indicator_per_window(kinds[k]))
+            moments[count++] = k;
         high |= kinds[k] == INDICATOR_SKEWNESS || kinds[k] == INDICATOR_KURTOSIS;
         pairs |= kinds[k] == INDICATOR_LAG1 || kinds[k] == INDICATOR_AR1 ||
                  kinds[k] == INDICATOR_RECOVERY;
         uses_level |= indicator_needs_level(kinds[k]);
     }
+    if (count == 0)
+        return;
     size_t W = spec->window, need = coverage_needed(spec);
     window_sums s;
     wsums_init(&s, residual, uses_level ? level : NULL, W, high, pairs);
     s.complete = !uses_level && all_finite(residual, n);
     for (size_t i = 0; i + 1 < W; i++)
-        for (size_t k = 0; k < nkinds; k++)
-            out[k][i] = NAN;
+        for (size_t m = 0; m < count; m++)
+            out[moments[m]][i] = NAN;
     for (size_t i = W - 1; i < n; i++) {
         /* The first full window starts from exact sums (no need to stream the samples
          * before it); later ones slide and follow the re-centring policy. */
@@ -186,8 +206,51 @@ int rolling_compute(const rolling_spec *spec, const double *residual, const doub
             wsums_maintain(&s);
         }
         int covered = s.n >= need;
-        for (size_t k = 0; k < nkinds; k++)
-            out[k][i] = covered ? evaluate[kinds[k]](&s, spec) : NAN;
+        for (size_t m = 0; m < count; m++)
+            out[moments[m]][i] = covered ? evaluate[kinds[moments[m]]](&s, spec) : NAN;
     }
-    return SLOWSCAN_OK;
+}
+
+/* A moment indicator on a step above 1 (--step): the windows off the step become NaN. The
+ * streaming pass costs O(1) per window, so computing them all and dropping some is cheaper
+ * than restarting the sums at each evaluated window. */
+static void thin_moments(const rolling_spec *spec, size_t n, const indicator_kind *kinds,
+                         size_t nkinds, double *const *out)
+{
+    for (size_t k = 0; k < nkinds; k++) {
+        size_t step = rolling_step(spec, kinds[k], n);
+        if (indicator_per_window(kinds[k]) || step == 1)
+            continue;
+        for (size_t i = spec->window - 1; i < n; i++)
+            if (!rolling_evaluated(step, n, i))
+                out[k][i] = NAN;
+    }
+}
+
+int rolling_compute_with(const rolling_spec *spec, rolling_scratch *scratch,
+                         const double *residual, const double *level, size_t n,
+                         const indicator_kind *kinds, size_t nkinds, double *const *out)
+{
+    int status = validate(spec, residual, level, n, kinds, nkinds, out);
+    if (status != SLOWSCAN_OK)
+        return status;
+    moment_pass(spec, residual, level, n, kinds, nkinds, out);
+    thin_moments(spec, n, kinds, nkinds, out);
+    return rolling_per_window_pass(spec, scratch, residual, n, kinds, nkinds, out);
+}
+
+int rolling_compute(const rolling_spec *spec, const double *residual, const double *level,
+                    size_t n, const indicator_kind *kinds, size_t nkinds, double *const *out)
+{
+    int per_window = 0;
+    for (size_t k = 0; k < nkinds && kinds; k++)
+        per_window |= indicator_per_window(kinds[k]);
+    if (!per_window || !spec)
+        return rolling_compute_with(spec, NULL, residual, level, n, kinds, nkinds, out);
+    rolling_scratch *scratch = rolling_scratch_alloc(spec->window);
+    if (!scratch)
+        return SLOWSCAN_ENOMEM;
+    int status = rolling_compute_with(spec, scratch, residual, level, n, kinds, nkinds, out);
+    rolling_scratch_free(scratch);
+    return status;
 }

@@ -18,6 +18,7 @@ struct null_trend_workspace {
     double **paths;    /* nkinds pointers into store */
     kendall_workspace *kendall;
     ar1_drift_workspace *drift;
+    rolling_scratch *scratch; /* per-window indicators, windows up to n */
     gsl_rng *rng;
 };
 
@@ -31,6 +32,7 @@ void null_trend_free(null_trend_workspace *ws)
     free(ws->paths);
     kendall_free(ws->kendall);
     ar1_drift_free(ws->drift);
+    rolling_scratch_free(ws->scratch);
     if (ws->rng)
         gsl_rng_free(ws->rng);
     free(ws);
@@ -53,9 +55,10 @@ null_trend_workspace *null_trend_alloc(size_t n, size_t nkinds)
     ws->paths = malloc(nkinds * sizeof *ws->paths);
     ws->kendall = kendall_alloc(n);
     ws->drift = ar1_drift_alloc(n);
+    ws->scratch = rolling_scratch_alloc(n);
     ws->rng = gsl_rng_alloc(gsl_rng_mt19937);
     if (!ws->surrogate || !ws->level || !ws->store || !ws->paths || !ws->kendall || !ws->drift ||
-        !ws->rng) {
+        !ws->scratch || !ws->rng) {
         null_trend_free(ws);
         return NULL;
     }
@@ -78,8 +81,8 @@ static int one_replicate(null_trend_workspace *ws, surrogate_source *source,
         level = ws->level;
     }
     if (job->nkinds > 0 &&
-        (st = rolling_compute(job->rolling, ws->surrogate, level, ws->n, job->kinds, job->nkinds,
-                              ws->paths)) != SLOWSCAN_OK)
+        (st = rolling_compute_with(job->rolling, ws->scratch, ws->surrogate, level, ws->n,
+                                   job->kinds, job->nkinds, ws->paths)) != SLOWSCAN_OK)
         return st;
     if (job->drift) { /* the model-based statistic, on the same surrogate */
         ar1_drift_fit fit;

@@ -10,6 +10,7 @@ int check_totals(const char *label);
 void suite_detrend(void);
 void suite_io(void);
 void suite_indicators(void);
+void suite_spectral(void);
 void suite_kendall(void);
 void suite_surrogates(void);
 void suite_significance(void);
@@ -22,6 +23,7 @@ static const struct {
     void (*run)(void);
 } suites[] = {
     {"detrend", suite_detrend},       {"io", suite_io},   {"indicators", suite_indicators},
+    {"spectral", suite_spectral},
     {"kendall", suite_kendall},       {"surrogates", suite_surrogates}, {"ar1_drift", suite_ar1_drift}, {"cli", suite_cli},
     {"significance", suite_significance}, {"projection", suite_projection},
 };

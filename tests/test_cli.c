@@ -381,8 +381,97 @@ static void test_review_regressions(void)
     free(f);
 }
 
+/* Rows of one indicator in a rolling CSV held in `text`. */
+static size_t rows_of(const char *text, const char *indicator)
+{
+    char key[64];
+    snprintf(key, sizeof key, ",%s,", indicator);
+    size_t n = 0;
+    for (const char *p = text ? strstr(text, key) : NULL; p; p = strstr(p + 1, key))
+        n++;
+    return n;
+}
+
+/* --step, --band and the per-window indicators through the binary: only evaluated windows
+ * are written, each equal to its step-1 row (common practice, no source: a step only skips
+ * windows); the default step keeps dfa to at most 500 windows; --rolling of screen matches
+ * 'indicators'; the surrogate p-values do not depend on --threads. */
+static void test_spectral_commands(void)
+{
+    const char *in = check_tmp_path("spec.csv"), *roll = check_tmp_path("spec-rolling.csv");
+    char *csv = make_csv(1200, 21), args[900];
+    check_write_file(in, csv);
+    free(csv);
+    snprintf(args, sizeof args, "indicators --vars rising --indicators variance,dfa %s", in);
+    CHECK(slowscan(args) == 0, "indicators dfa: %s", run_err ? run_err : "");
+    /* n = 1200, W = 601: 600 windows; the default step 2 leaves 300 for dfa. */
+    CHECK(rows_of(run_out, "variance") == 600 && rows_of(run_out, "dfa") == 300,
+          "default steps: %zu variance rows, %zu dfa rows", rows_of(run_out, "variance"),
+          rows_of(run_out, "dfa"));
+    char *one = NULL;
+    snprintf(args, sizeof args, "indicators --vars rising --indicators lag1,redness --step 1 %s", in);
+    if (slowscan(args) == 0)
+        one = strdup(run_out);
+    snprintf(args, sizeof args, "indicators --vars rising --indicators lag1,redness --step 7 %s", in);
+    CHECK(slowscan(args) == 0 && one, "--step 7 runs");
+    size_t rows = 0, missing = 0;
+    for (char *line = strchr(run_out, '\n') + 1; one && *line; line = strchr(line, '\n') + 1) {
+        char row[128];
+        size_t len = (size_t)(strchr(line, '\n') - line);
+        snprintf(row, sizeof row, "\n%.*s\n", (int)len, line);
+        rows++;
+        missing += strstr(one, row) == NULL;
+    }
+    CHECK(rows == 2 * ((1200 - 601) / 7 + 1) && missing == 0,
+          "--step 7: %zu rows, %zu not found at step 1", rows, missing);
+    free(one);
+    snprintf(args, sizeof args, "screen --vars rising --indicators dfa,spectral_exponent --band 0.01:0.2 "
+             "--surrogates 0 --rolling %s %s", roll, in);
+    CHECK(slowscan(args) == 0, "screen with --band: %s", run_err ? run_err : "");
+    char *rolled = check_read_file(roll);
+    snprintf(args, sizeof args, "indicators --vars rising --indicators dfa,spectral_exponent --band "
+             "0.01:0.2 %s", in);
+    CHECK(slowscan(args) == 0 && rolled && strcmp(rolled, run_out) == 0,
+          "screen --rolling equals indicators");
+    free(rolled);
+    char *threads1 = NULL;
+    snprintf(args, sizeof args, "screen --vars rising --indicators redness,dfa --window 20%% "
+             "--surrogates 70 --threads 1 %s", in);
+    if (slowscan(args) == 0)
+        threads1 = strdup(run_out);
+    snprintf(args, sizeof args, "screen --vars rising --indicators redness,dfa --window 20%% "
+             "--surrogates 70 --threads 3 %s", in);
+    CHECK(slowscan(args) == 0 && threads1 && strcmp(threads1, run_out) == 0,
+          "screen with redness, dfa: same output for 1 and 3 threads");
+    free(threads1);
+}
+
+/* Bad --step and --band values and windows too short for dfa: exit 1, one message naming the
+ * option, no output. */
+static void test_spectral_refusals(void)
+{
+    char *small = make_csv(200, 22); /* dt = 1: Nyquist 0.5; 50% window: W = 101 */
+    expect_rejected("step 0", small, "indicators --step 0", "--step");
+    expect_rejected("step -1", small, "screen --step -1", "--step");
+    expect_rejected("step 2.5", small, "indicators --step 2.5", "--step");
+    expect_rejected("band above Nyquist", small,
+                    "indicators --indicators spectral_exponent --band 0.1:0.7", "--band");
+    expect_rejected("band at 0", small, "screen --indicators spectral_exponent --band 0:0.2", "--band");
+    expect_rejected("band backwards", small, "indicators --indicators spectral_exponent --band 0.3:0.2",
+                    "--band");
+    expect_rejected("band of one frequency", small,
+                    "robustness --windows 50% --indicators spectral_exponent --band 0.2:0.21", "--band");
+    expect_rejected("window too short for dfa", small, "indicators --indicators dfa --window 20",
+                    "--window");
+    expect_rejected("window too short for dfa (screen)", small, "screen --indicators lag1,dfa --window 10%",
+                    "dfa");
+    free(small);
+}
+
 void suite_cli(void)
 {
+    test_spectral_commands();
+    test_spectral_refusals();
     test_review_regressions();
     test_help_and_version();
     test_demo_matches_committed_data();

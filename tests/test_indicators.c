@@ -13,7 +13,7 @@
 #include <stdlib.h>
 #include <string.h>
 
-#define NK INDICATOR_COUNT
+#define NK INDICATOR_REDNESS /* the moment indicators, which come first */
 #define REL 1e-9   /* relative tolerance against the per-window two-pass references */
 #define SHAPE 1e-12 /* absolute floor for dimensionless indicators that may sit near 0 */
 
@@ -43,7 +43,7 @@ static void outputs_free(outputs *o)
 static int run_all(const double *x, const double *level, size_t n, size_t W, double cov,
                    double dt, recovery_method rm, outputs *o)
 {
-    rolling_spec spec = {W, cov, dt, rm};
+    rolling_spec spec = {W, cov, dt, rm, 0, 0, 0, NULL};
     /* cv needs a level; where a test has none, cv is computed on x and not checked. */
     return rolling_compute(&spec, x, level ? level : x, n, all_kinds, NK, o->v);
 }
@@ -291,7 +291,7 @@ static void test_coverage_threshold(void)
     double x[10] = {1, 4, NAN, 2, 8, 5, NAN, 7, 3, 6}, out[10];
     double *outs[1] = {out};
     indicator_kind kind = INDICATOR_VARIANCE;
-    rolling_spec spec = {10, 0.8, 1.0, RECOVERY_LOG_AR1};
+    rolling_spec spec = {10, 0.8, 1.0, RECOVERY_LOG_AR1, 0, 0, 0, NULL};
     CHECK(rolling_compute(&spec, x, NULL, 10, &kind, 1, outs) == SLOWSCAN_OK, "coverage run");
     double present[8] = {1, 4, 2, 8, 5, 7, 3, 6};
     /* Reference library: GSL gsl_stats_variance on the 8 present samples. */
@@ -318,7 +318,7 @@ static void test_sunspots(void)
     const double *x = vals + 1;
     double lag1[309], var[309], *outs[2] = {lag1, var};
     indicator_kind kinds[2] = {INDICATOR_LAG1, INDICATOR_VARIANCE};
-    rolling_spec spec = {n, 1.0, 1.0, RECOVERY_LOG_AR1};
+    rolling_spec spec = {n, 1.0, 1.0, RECOVERY_LOG_AR1, 0, 0, 0, NULL};
     CHECK(rolling_compute(&spec, x, NULL, n, kinds, 2, outs) == SLOWSCAN_OK, "sunspots run");
     CHECK_CLOSE(lag1[n - 1], vals[n + 1], 1e-12, 0, "sunspots lag1 vs statsmodels acf");
     CHECK_CLOSE(var[n - 1], vals[n + 2], 1e-12, 0, "sunspots variance vs numpy var(ddof=1)");
@@ -432,7 +432,7 @@ static void test_errors(void)
     for (int i = 0; i < 20; i++)
         x[i] = (double)(i % 7);
     indicator_kind var = INDICATOR_VARIANCE, cv = INDICATOR_CV, bad = INDICATOR_COUNT;
-    rolling_spec ok = {10, 0.8, 1.0, RECOVERY_LOG_AR1}, s;
+    rolling_spec ok = {10, 0.8, 1.0, RECOVERY_LOG_AR1, 0, 0, 0, NULL}, s;
     CHECK(rolling_compute(&ok, x, NULL, 20, &var, 1, outs) == SLOWSCAN_OK, "valid spec");
     s = ok, s.window = 2;
     CHECK(rolling_compute(&s, x, NULL, 20, &var, 1, outs) == SLOWSCAN_EINVAL, "W < 3");

@@ -26,7 +26,8 @@ null_trend_workspace *null_trend_alloc(size_t n, size_t nkinds);
 void null_trend_free(null_trend_workspace *ws);
 
 typedef struct {
-    const rolling_spec *rolling;
+    const rolling_spec *rolling; /* with per-window indicators, its plan is shared read-only by
+                                    every thread; each workspace has its own scratch */
     const indicator_kind *kinds;
     size_t nkinds;
     const double *time;  /* n */
