@@ -15,6 +15,7 @@ typedef struct {
     FILE *out, *json;
     size_t written;
     trend_tester tester;
+    report_batch *figures;
 } recovery_run;
 
 static int open_outputs(const cli_options *opts, cli_outputs *outs, void *context)
@@ -28,6 +29,8 @@ static int open_outputs(const cli_options *opts, cli_outputs *outs, void *contex
     if (rc == EXIT_OK && run->json)
         fprintf(run->json, "{\n  \"program\": \"slowscan\",\n  \"null\": \"%s\",\n  \"surrogates\": %ld,\n"
                 "  \"seed\": %lu,\n  \"series\": [", cli_null_name(opts), opts->surrogates, opts->seed);
+    if (rc == EXIT_OK)
+        rc = cli_figures_open(outs, opts, &run->figures);
     return rc;
 }
 
@@ -83,6 +86,11 @@ static int recovery_series(const cli_options *opts, const prepared_series *ps, v
         }
         if (run->json)
             write_json(run, ps, &fit, p);
+        /* No projected crossing yet: the figure takes one when the command computes it. */
+        report_recovery_data data = {ps->name, ps->time_name, ps->n, ps->time, path,
+                                     path + ps->n, path + 2 * ps->n, fit.t_a1, p, NULL};
+        if (run->figures)
+            rc = cli_figure_draw(run->figures, &report_recovery_figure, &data, "recovery", ps->name);
     } else if (rc == EXIT_OK) {
         cli_warning("%s: column '%s': no drifting AR(1) fit (%s); no rows written for it",
                     ps->source, ps->name, slowscan_strerror(st));
@@ -104,7 +112,7 @@ static int finish(const cli_options *opts, void *context)
 int cmd_recovery(const cli_options *opts)
 {
     recovery_run run = {0};
-    series_command cmd = {open_outputs, recovery_series, finish, &run, NULL};
+    series_command cmd = {open_outputs, recovery_series, finish, &run, NULL, NULL};
     int rc = cli_run_series_command(opts, &cmd);
     trend_tester_free(&run.tester);
     return rc;

@@ -34,6 +34,23 @@ static void set_mode(int fd, const char *path)
     }
 }
 
+char *atomic_temp_beside(const char *path)
+{
+    size_t len = strlen(path) + sizeof ".tmp.XXXXXX";
+    char *temp = malloc(len);
+    if (!temp)
+        return NULL;
+    snprintf(temp, len, "%s.tmp.XXXXXX", path);
+    int fd = mkstemp(temp);
+    if (fd < 0) {
+        free(temp);
+        return NULL;
+    }
+    set_mode(fd, path);
+    close(fd);
+    return temp;
+}
+
 int atomic_open(atomic_file *f, const char *path, io_error *err)
 {
     char why[128];
