@@ -15,6 +15,7 @@ void suite_surrogates(void);
 void suite_significance(void);
 void suite_ar1_drift(void);
 void suite_cli(void);
+void suite_report(void);
 
 static const struct {
     const char *name;
@@ -22,7 +23,7 @@ static const struct {
 } suites[] = {
     {"detrend", suite_detrend},       {"io", suite_io},   {"indicators", suite_indicators},
     {"kendall", suite_kendall},       {"surrogates", suite_surrogates}, {"ar1_drift", suite_ar1_drift}, {"cli", suite_cli},
-    {"significance", suite_significance},
+    {"significance", suite_significance}, {"report", suite_report},
 };
 
 int main(int argc, char **argv)
