@@ -113,7 +113,7 @@ static void histogram_cell(report_figure *fig, size_t row, size_t col, const rep
         report_vline(t->statistic, INK_MARK, 0);
         plwidth(1.0);
     }
-    snprintf(title, sizeof title, "%s null, p = %s", t->label, report_number(b, t->p_value));
+    snprintf(title, sizeof title, "%s: p = %s", t->label, report_number(b, t->p_value));
     char xlabel[64];
     snprintf(xlabel, sizeof xlabel, "%s; line: observed %s", t->statistic_name,
              report_number(a, t->statistic));
