@@ -28,14 +28,11 @@ static int open_outputs(const cli_options *opts, cli_outputs *outs, void *contex
 
 static screen_row *add_row(screen_run *run)
 {
-    if (run->nrows == run->cap) {
-        size_t cap = run->cap ? 2 * run->cap : 64;
-        screen_row *bigger = realloc(run->rows, cap * sizeof *bigger);
-        if (!bigger)
-            return NULL;
-        run->rows = bigger;
-        run->cap = cap;
-    }
+    void *rows = run->rows;
+    int st = io_reserve(&rows, &run->cap, run->nrows, sizeof *run->rows, 64);
+    run->rows = rows;
+    if (st != SLOWSCAN_OK)
+        return NULL;
     screen_row *row = &run->rows[run->nrows++];
     memset(row, 0, sizeof *row);
     return row;

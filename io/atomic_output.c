@@ -153,6 +153,19 @@ void atomic_abort(atomic_file *f)
     f->temp_path = f->path = NULL;
 }
 
+int io_reserve(void **array, size_t *cap, size_t count, size_t size, size_t first)
+{
+    if (count < *cap)
+        return SLOWSCAN_OK;
+    size_t bigger = *cap ? 2 * *cap : first;
+    void *grown = realloc(*array, bigger * size);
+    if (!grown)
+        return SLOWSCAN_ENOMEM;
+    *array = grown;
+    *cap = bigger;
+    return SLOWSCAN_OK;
+}
+
 int io_same_file(const char *a, const char *b)
 {
     struct stat sa, sb;

@@ -12,11 +12,7 @@
 static void overview_layout(const void *data, report_layout *layout)
 {
     const report_overview_data *d = data;
-    size_t n = d->ntests ? d->ntests : 1, cols = n < 2 ? n : 2;
-    layout->rows = (n + cols - 1) / cols;
-    for (size_t r = 0; r < layout->rows; r++)
-        layout->cols[r] = cols;
-    layout->row_height = REPORT_TALL_ROW_HEIGHT;
+    report_layout_grid(layout, d->ntests, 2, REPORT_TALL_ROW_HEIGHT);
 }
 
 static double minus_log_q(double q)

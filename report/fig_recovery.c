@@ -11,9 +11,7 @@
 static void recovery_layout(const void *data, report_layout *layout)
 {
     (void)data;
-    layout->rows = 1;
-    layout->cols[0] = 1;
-    layout->row_height = REPORT_TALL_ROW_HEIGHT;
+    report_layout_grid(layout, 1, 1, REPORT_TALL_ROW_HEIGHT);
 }
 
 /* The time axis reaches the end of the crossing's interval when there is one. */

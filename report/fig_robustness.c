@@ -14,11 +14,7 @@ enum { COLOUR_BAR_ROOM = 96 };
 static void robustness_layout(const void *data, report_layout *layout)
 {
     const report_robustness_data *d = data;
-    size_t n = d->nindicators ? d->nindicators : 1, cols = n < 2 ? n : 2;
-    layout->rows = (n + cols - 1) / cols;
-    for (size_t r = 0; r < layout->rows; r++)
-        layout->cols[r] = cols;
-    layout->row_height = REPORT_TALL_ROW_HEIGHT;
+    report_layout_grid(layout, d->nindicators, 2, REPORT_TALL_ROW_HEIGHT);
     layout->right_margin = COLOUR_BAR_ROOM;
 }
 
@@ -72,15 +68,21 @@ static void cells(const report_robustness_data *d, size_t j, double scale)
         }
 }
 
+/* The bar is drawn as shades, not as a cairo gradient: PLplot's cairo driver does not free
+ * the gradient pattern it makes (12 kB a figure, which adds up over many series). */
+enum { BAR_LEVELS = 41 };
+
 static void colour_bar(double scale)
 {
-    PLFLT width, height, lo_hi[2] = {-scale, scale};
-    const PLFLT *values[1] = {lo_hi};
-    PLINT n_values[1] = {2}, label_opts[1] = {PL_COLORBAR_LABEL_RIGHT}, sub_ticks[1] = {0};
+    PLFLT width, height, levels[BAR_LEVELS];
+    for (int k = 0; k < BAR_LEVELS; k++)
+        levels[k] = -scale + 2.0 * scale * k / (BAR_LEVELS - 1);
+    const PLFLT *values[1] = {levels};
+    PLINT n_values[1] = {BAR_LEVELS}, label_opts[1] = {PL_COLORBAR_LABEL_RIGHT}, sub_ticks[1] = {0};
     PLFLT ticks[1] = {0.0};
     const char *labels[1] = {"Kendall tau"}, *axis_opts[1] = {"bcvtm"};
     plcol0(INK_TEXT);
-    plcolorbar(&width, &height, PL_COLORBAR_GRADIENT, PL_POSITION_RIGHT | PL_POSITION_OUTSIDE,
+    plcolorbar(&width, &height, PL_COLORBAR_SHADE, PL_POSITION_RIGHT | PL_POSITION_OUTSIDE,
                0.03, 0.0, 0.05, 0.9, INK_BACKGROUND, INK_TEXT, 1, 0.0, 0.0, 0, 0.0, 1,
                label_opts, labels, 1, axis_opts, ticks, sub_ticks, n_values, values);
 }

@@ -54,6 +54,15 @@ report_box report_cell(const report_layout *layout, size_t row, size_t col)
     return box;
 }
 
+void report_layout_grid(report_layout *layout, size_t panels, size_t max_cols, int row_height)
+{
+    size_t n = panels ? panels : 1, cols = n < max_cols ? n : max_cols;
+    layout->rows = (n + cols - 1) / cols;
+    for (size_t r = 0; r < layout->rows; r++)
+        layout->cols[r] = cols;
+    layout->row_height = row_height;
+}
+
 /* ---- the stream --------------------------------------------------------------------------- */
 
 struct report_figure {
@@ -227,14 +236,11 @@ static char *unique_path(const report_batch *b, const char *prefix, const char *
 
 static int add_entry(report_batch *b, char *final, char *temp)
 {
-    if (b->count == b->cap) {
-        size_t cap = b->cap ? 2 * b->cap : 16;
-        batch_entry *bigger = realloc(b->entries, cap * sizeof *bigger);
-        if (!bigger)
-            return SLOWSCAN_ENOMEM;
-        b->entries = bigger;
-        b->cap = cap;
-    }
+    void *entries = b->entries;
+    int st = io_reserve(&entries, &b->cap, b->count, sizeof *b->entries, 16);
+    b->entries = entries;
+    if (st != SLOWSCAN_OK)
+        return st;
     b->entries[b->count++] = (batch_entry){final, temp};
     return SLOWSCAN_OK;
 }

@@ -49,6 +49,8 @@ typedef struct {
 } report_box;
 
 int report_page_height(const report_layout *layout);
+/* `panels` equal cells, row by row, at most max_cols to a row. */
+void report_layout_grid(report_layout *layout, size_t panels, size_t max_cols, int row_height);
 /* The plotting area of cell `col` of row `row` (room for its title and axis labels left
  * around it). The tests use it to find the panels in a PNG. */
 report_box report_cell(const report_layout *layout, size_t row, size_t col);
