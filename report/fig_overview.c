@@ -61,7 +61,10 @@ static void label_flagged(const report_overview_data *d, const size_t *idx, size
         plpoin(1, &x, &y, 17);
         plcol0(INK_TEXT);
         /* Ties in q are common (p has steps of 1/(M+1)): stagger the labels downwards. */
-        report_text(x + 0.01 * (x1 - x0), y - (double)(i % 5) * 0.05 * (y1 - y0), 0.0,
+        /* Labels run away from the nearer side, so none is cut off by the frame. */
+        int right_half = x > 0.5 * (x0 + x1);
+        report_text(x + (right_half ? -0.015 : 0.015) * (x1 - x0),
+                    y - (double)(i % 5) * 0.05 * (y1 - y0), right_half ? 1.0 : 0.0,
                     scratch[i].series);
     }
 }
@@ -84,7 +87,6 @@ static int test_panel(report_figure *fig, const report_overview_data *d, size_t 
     report_range(xs, 1, k, &x_lo, &x_hi);
     report_range(ys, 1, k, &y_lo, &y_hi);
     y_hi = fmax(1.08 * y_hi, 1.15 * threshold);
-    x_hi += 0.2 * (x_hi - x_lo); /* room for the labels, which run to the right */
     report_panel(fig, j / cols, j % cols, x_lo, x_hi, 0, y_hi, REPORT_X_NUMBERS);
     report_hline(threshold, INK_MARK, 1);
     plcol0(INK_NULL);
