@@ -1,7 +1,7 @@
 # slowscan — build, test, demo, bench, install.
 #   make            build/slowscan and build/libslowscan.a
 #   make check      the test suite, plain and under AddressSanitizer + UBSan
-#   make demo       screen the bundled demo data and print the table
+#   make demo       screen the bundled demo data, draw its figures (demo-output/), print the table
 #   make bench      speed ratios, measured in one run
 #   make install    PREFIX=/usr/local DESTDIR=
 # `check` and `demo` first install missing Debian packages (scripts/install-deps.sh).
@@ -73,6 +73,7 @@ check: deps
 	@$(MAKE) --no-print-directory all $(B)/run_tests $(B)/asan/slowscan $(B)/asan/run_tests
 	SLOWSCAN_BIN=$(B)/slowscan SLOWSCAN_LABEL=plain $(B)/run_tests
 	ASAN_OPTIONS=detect_leaks=1:abort_on_error=0 UBSAN_OPTIONS=print_stacktrace=1 \
+	  LSAN_OPTIONS=suppressions=$(CURDIR)/tests/lsan.supp:print_suppressions=0 \
 	  SLOWSCAN_BIN=$(B)/asan/slowscan SLOWSCAN_LABEL=sanitized $(B)/asan/run_tests
 
 DEMO_OUT ?= demo-output
@@ -81,7 +82,13 @@ demo: deps
 	@$(MAKE) --no-print-directory all
 	@mkdir -p $(DEMO_OUT)
 	$(B)/slowscan screen $(DEMO_ARGS) --rolling $(DEMO_OUT)/rolling.csv \
-	  -o $(DEMO_OUT)/summary.csv data/stations.csv
+	  --figures $(DEMO_OUT) -o $(DEMO_OUT)/summary.csv data/stations.csv
+	$(B)/slowscan robustness --deseason 364 --vars mill_pond --surrogates 99 \
+	  --windows 30%:70%:10% --bandwidths 5%:20%:5% --figures $(DEMO_OUT) \
+	  -o $(DEMO_OUT)/robustness.csv data/stations.csv
+	$(B)/slowscan recovery --deseason 364 --surrogates 99 --vars mill_pond \
+	  --figures $(DEMO_OUT) -o $(DEMO_OUT)/recovery.csv data/stations.csv
+	@cp $(DEMO_OUT)/screen-mill_pond.png doc/demo-figure.png
 	@$(B)/slowscan screen $(DEMO_ARGS) --format table data/stations.csv
 
 bench: all $(BENCH_BIN)

@@ -6,6 +6,7 @@
 #include "slowscan/indicators.h"
 #include "slowscan/io.h"
 #include "slowscan/null_trend.h"
+#include "slowscan/report.h"
 #include "slowscan/surrogates.h"
 
 #include <stddef.h>
@@ -63,6 +64,9 @@ typedef struct {
     cli_length windows[CLI_MAX_GRID], bandwidths[CLI_MAX_GRID];
     size_t nwindows, nbandwidths;
     char grid_text[2][CLI_MAX_GRID][32];
+    const char *figures_dir;          /* --figures DIR, NULL: no figures */
+    const char *figure_format_text;   /* --figure-format as given, NULL: not given */
+    report_format figure_format;      /* png unless --figure-format says otherwise */
     const char *format; /* "csv" or "table" */
     int progress;       /* -1: auto (stderr is a TTY) */
     const char *out_dir; /* demo */
@@ -92,6 +96,7 @@ int cli_help(const char *topic, FILE *out);
 typedef struct {
     const char *name;
     const char *source;
+    const char *time_name;            /* the time column's name (axis labels) */
     size_t n;
     const double *time;
     double dt, span;
@@ -146,12 +151,19 @@ typedef struct {
     atomic_file files[4];
     size_t count;
     const char *stdout_user; /* the option writing to standard output, if any */
+    report_batch *figures;   /* --figures DIR, committed after the files */
 } cli_outputs;
 
 /* Opens `path` (NULL or "-" = stdout) after checking it is not one of the inputs. */
 int cli_outputs_open(cli_outputs *outs, const cli_options *opts, const char *path,
                      const char *option, FILE **fp);
 int cli_outputs_commit(cli_outputs *outs);
+/* With --figures DIR: checks (or makes) the directory now, before any work, and hands back
+ * the run's figure batch (NULL without --figures). */
+int cli_figures_open(cli_outputs *outs, const cli_options *opts, report_batch **figures);
+/* Draws one figure of the run (PLplot: from the main thread only). */
+int cli_figure_draw(report_batch *figures, const report_figure_type *type, const void *data,
+                    const char *prefix, const char *name);
 void cli_outputs_abort(cli_outputs *outs);
 
 /* Writes a number the way every slowscan CSV does: %.12g, NA for non-finite. */
@@ -187,6 +199,9 @@ typedef struct {
     int (*finish)(const cli_options *opts, void *context);
     void *context;
     table_visitor visit_table; /* used instead of visit when set */
+    /* After finish, before the commit: figures that need the whole run (screen's q-values);
+     * the inputs are still loaded, so series can be prepared again instead of kept. */
+    int (*figures)(const cli_options *opts, const cli_inputs *in, void *context);
 } series_command;
 /* Load, open, visit, finish, then commit every output — or remove them all on failure. */
 int cli_run_series_command(const cli_options *opts, const series_command *command);

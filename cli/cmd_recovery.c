@@ -18,6 +18,7 @@ typedef struct {
     size_t written;
     trend_tester tester;
     gsl_rng *rng; /* for the projection's bootstrap; reseeded per series */
+    report_batch *figures;
 } recovery_run;
 
 /* Every projection output carries this, so no reader takes a crossing for a forecast. */
@@ -44,6 +45,8 @@ static int open_outputs(const cli_options *opts, cli_outputs *outs, void *contex
     if (rc == EXIT_OK && run->json)
         fprintf(run->json, "{\n  \"program\": \"slowscan\",\n  \"null\": \"%s\",\n  \"surrogates\": %ld,\n"
                 "  \"seed\": %lu,\n  \"series\": [", cli_null_name(opts), opts->surrogates, opts->seed);
+    if (rc == EXIT_OK)
+        rc = cli_figures_open(outs, opts, &run->figures);
     return rc;
 }
 
@@ -88,6 +91,17 @@ static int write_projection(const cli_options *opts, recovery_run *run, const pr
     cli_put_number(run->projection, pr->share_crossing);
     fprintf(run->projection, ",%zu,%s\n", pr->draws, projection_basis);
     return EXIT_OK;
+}
+
+/* The projection in the figure's terms; an interval open above is drawn to the horizon. */
+static report_crossing figure_crossing(const prepared_series *ps, const ar1_projection *pr)
+{
+    double horizon = ps->time[0] + 2.0 * (double)(ps->n - 1) * ps->dt;
+    report_crossing c = {pr->kind != PROJECTION_NONE, ps->time[0] + pr->index * ps->dt,
+                         ps->time[0] + pr->index_lo * ps->dt,
+                         isinf(pr->index_hi) ? horizon : ps->time[0] + pr->index_hi * ps->dt,
+                         pr->kind == PROJECTION_NONE};
+    return c;
 }
 
 static void write_json_projection(FILE *fp, const prepared_series *ps, const ar1_projection *pr)
@@ -151,6 +165,14 @@ static int recovery_series(const cli_options *opts, const prepared_series *ps, v
             rc = write_projection(opts, run, ps, ws, &fit, &projected);
         if (run->json && rc == EXIT_OK)
             write_json(run, ps, &fit, p, run->projection ? &projected : NULL);
+        report_crossing crossing = {0};
+        if (run->projection)
+            crossing = figure_crossing(ps, &projected);
+        report_recovery_data data = {ps->name, ps->time_name, ps->n, ps->time, path,
+                                     path + ps->n, path + 2 * ps->n, fit.t_a1, p,
+                                     run->projection ? &crossing : NULL};
+        if (run->figures && rc == EXIT_OK)
+            rc = cli_figure_draw(run->figures, &report_recovery_figure, &data, "recovery", ps->name);
     } else if (rc == EXIT_OK) {
         cli_warning("%s: column '%s': no drifting AR(1) fit (%s); no rows written for it",
                     ps->source, ps->name, slowscan_strerror(st));
@@ -176,7 +198,7 @@ static int finish(const cli_options *opts, void *context)
 int cmd_recovery(const cli_options *opts)
 {
     recovery_run run = {0};
-    series_command cmd = {open_outputs, recovery_series, finish, &run, NULL};
+    series_command cmd = {open_outputs, recovery_series, finish, &run, NULL, NULL};
     int rc = cli_run_series_command(opts, &cmd);
     trend_tester_free(&run.tester);
     if (run.rng)

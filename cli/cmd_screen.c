@@ -21,19 +21,18 @@ static int open_outputs(const cli_options *opts, cli_outputs *outs, void *contex
     }
     if (rc == EXIT_OK && opts->json_output)
         rc = cli_outputs_open(outs, opts, opts->json_output, "--json", &run->json);
+    if (rc == EXIT_OK)
+        rc = cli_figures_open(outs, opts, &run->figures);
     return rc;
 }
 
 static screen_row *add_row(screen_run *run)
 {
-    if (run->nrows == run->cap) {
-        size_t cap = run->cap ? 2 * run->cap : 64;
-        screen_row *bigger = realloc(run->rows, cap * sizeof *bigger);
-        if (!bigger)
-            return NULL;
-        run->rows = bigger;
-        run->cap = cap;
-    }
+    void *rows = run->rows;
+    int st = io_reserve(&rows, &run->cap, run->nrows, sizeof *run->rows, 64);
+    run->rows = rows;
+    if (st != SLOWSCAN_OK)
+        return NULL;
     screen_row *row = &run->rows[run->nrows++];
     memset(row, 0, sizeof *row);
     return row;
@@ -66,6 +65,11 @@ static int record_series(const cli_options *opts, const prepared_series *ps, scr
             row->flag = "insufficient"; /* no null could be made; warned in trend_test */
         } else
             row->flag = "untested"; /* until decide() (for good with --surrogates 0) */
+        /* The tester's null holds this series' draws only when some were made (null_used). */
+        if (run->figures && row->result.null_used > 0 &&
+            screen_keep_null(row, run->tester.null + j * (size_t)opts->surrogates,
+                             (size_t)opts->surrogates) != EXIT_OK)
+            return EXIT_INTERNAL;
     }
     return rc;
 }
@@ -177,13 +181,16 @@ static int finish(const cli_options *opts, void *context)
 int cmd_screen(const cli_options *opts)
 {
     screen_run run = {0};
-    series_command cmd = {open_outputs, screen_series, finish, &run, NULL};
+    series_command cmd = {open_outputs, screen_series, finish, &run, NULL, screen_figures};
     if (opts->surrogates > 0 && opts->surrogates < 19)
         cli_warning("option --surrogates %ld: with fewer than 19 surrogates no p-value can reach "
                     "0.05 (the smallest is 1/(M+1))", opts->surrogates);
     int rc = cli_run_series_command(opts, &cmd);
-    for (size_t r = 0; r < run.nrows; r++)
+    for (size_t r = 0; r < run.nrows; r++) {
         free(run.rows[r].series);
+        if (run.rows[r].null_hist)
+            gsl_histogram_free(run.rows[r].null_hist);
+    }
     free(run.rows);
     trend_tester_free(&run.tester);
     return rc;

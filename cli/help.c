@@ -88,6 +88,13 @@ static const char testing_options[] =
     "  --threads N          threads for the surrogates (default: all cores); the output\n"
     "                       is identical for any N\n";
 
+static const char figure_options[] =
+    "figures:\n"
+    "  --figures DIR        also draw figures into DIR (made if missing; its parent must\n"
+    "                       exist), one file per series, written whole or not at all\n"
+    "  --figure-format png|svg|pdf  file format of the figures (default png; only with\n"
+    "                       --figures)\n";
+
 static void help_detrend(FILE *out)
 {
     fputs("usage: slowscan detrend [options] FILE...\n\n"
@@ -134,7 +141,13 @@ static void help_screen(FILE *out)
           "  --rolling FILE       also write the rolling indicators (as 'indicators' does)\n"
           "  --json FILE          also write the summary as JSON, with the quantiles of each\n"
           "                       null distribution and every parameter of the run\n"
-          "  --format csv|table   summary as CSV (default) or as an aligned table\n\n", out);
+          "  --format csv|table   summary as CSV (default) or as an aligned table\n", out);
+    fputs(figure_options, out);
+    fputs("                       screen-SERIES: series and trend, residual, each indicator\n"
+          "                       with tau, p, q and the first window, the null histograms\n"
+          "                       (recovery_trend: of t(a1)) with the observed value marked;\n"
+          "                       screen-overview (two or more series): statistic against\n"
+          "                       -log10(q) per test, the strongest 20 flagged series named\n\n", out);
     fputs(cautions, out);
 }
 
@@ -153,6 +166,9 @@ static void help_robustness(FILE *out)
           "  --fractions FILE     per series x indicator: cells, share with tau > 0, share with\n"
           "                       p <= 0.05 (series,indicator,cells,share_tau_positive,\n"
           "                       share_p_at_most_0.05)\n", out);
+    fputs(figure_options, out);
+    fputs("                       robustness-SERIES: tau over the grid per indicator, cells\n"
+          "                       with p <= 0.05 dotted, the --window/--bandwidth cell outlined\n", out);
     fputs(testing_options, out);
     fputs("\n", out);
     fputs(cautions, out);
@@ -184,6 +200,8 @@ static void help_recovery(FILE *out)
           "                       ahead, within_record or none_within_2x_record; interval\n"
           "                       open_above when over 2.5% of draws do not cross)\n"
           "  --project-draws N    bootstrap draws (default 1000, at least 500)\n", out);
+    fputs(figure_options, out);
+    fputs("                       recovery-SERIES: lambda(t), its 95% band and the zero line\n", out);
     fputs(testing_options, out);
     fputs("\n", out);
     fputs(projection_caution, out);

@@ -367,6 +367,18 @@ static int set_seed(cli_options *o, const char *n, const char *v)
     return rc;
 }
 
+static int set_figures(cli_options *o, const char *n, const char *v) { (void)n; o->figures_dir = v; return EXIT_OK; }
+
+static int set_figure_format(cli_options *o, const char *n, const char *v)
+{
+    o->figure_format_text = v;
+    if (report_format_parse(v, &o->figure_format) != SLOWSCAN_OK) {
+        cli_error("option %s: '%s' is not png, svg or pdf", n, v);
+        return EXIT_BAD_INPUT;
+    }
+    return EXIT_OK;
+}
+
 static int set_format(cli_options *o, const char *n, const char *v)
 {
     if (strcmp(v, "csv") != 0 && strcmp(v, "table") != 0) {
@@ -410,6 +422,8 @@ static const option_spec options[] = {
     {"--bandwidths", 1, C_ROBUST, set_bandwidths},
     {"--fractions", 1, C_ROBUST, set_fractions},
     {"--format", 1, C_SCREEN, set_format},
+    {"--figures", 1, C_TESTING, set_figures},
+    {"--figure-format", 1, C_TESTING, set_figure_format},
     {"-o", 1, C_SERIES, set_output},
     {"--output", 1, C_SERIES, set_output},
     {"--progress", 0, C_SERIES, set_progress},
@@ -454,6 +468,7 @@ static void set_defaults(const char *command, cli_options *o)
     o->fdr = 0.05;
     o->alternative = -1; /* per indicator: rising, or two-sided for skewness */
     o->format = "csv";
+    o->figure_format = REPORT_PNG;
     o->progress = -1;
     parse_grid("--windows", "25%:75%:5%", o->windows, o->grid_text[0], &o->nwindows);
     parse_grid("--bandwidths", "5%:25%:5%", o->bandwidths, o->grid_text[1], &o->nbandwidths);
@@ -539,6 +554,10 @@ int cli_parse(const char *command, int argc, char **argv, int first, cli_options
     if (o->band_text && !exponent)
         cli_warning("option --band %s has no effect without spectral_exponent in --indicators",
                     o->band_text);
+    if (o->figure_format_text && !o->figures_dir) {
+        cli_error("option --figure-format needs --figures DIR");
+        return EXIT_BAD_INPUT;
+    }
     if (o->progress < 0)
         o->progress = isatty(STDERR_FILENO);
     if (bit != C_DEMO && o->nfiles == 0) {

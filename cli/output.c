@@ -81,6 +81,13 @@ int cli_outputs_commit(cli_outputs *outs)
         }
     }
     outs->count = 0;
+    io_error err = {{0}};
+    if (rc == EXIT_OK && outs->figures && report_batch_commit(outs->figures, &err) != SLOWSCAN_OK) {
+        cli_error("option --figures: %s", err.message);
+        rc = EXIT_BAD_INPUT;
+    }
+    report_batch_free(outs->figures);
+    outs->figures = NULL;
     return rc;
 }
 
@@ -89,6 +96,34 @@ void cli_outputs_abort(cli_outputs *outs)
     for (size_t j = 0; j < outs->count; j++)
         atomic_abort(&outs->files[j]);
     outs->count = 0;
+    report_batch_free(outs->figures); /* removes every figure drawn so far */
+    outs->figures = NULL;
+}
+
+int cli_figures_open(cli_outputs *outs, const cli_options *opts, report_batch **figures)
+{
+    *figures = NULL;
+    if (!opts->figures_dir)
+        return EXIT_OK;
+    io_error err = {{0}};
+    int st = report_batch_open(&outs->figures, opts->figures_dir, opts->figure_format, &err);
+    if (st != SLOWSCAN_OK) {
+        cli_error("option --figures: %s", err.message);
+        return st == SLOWSCAN_ENOMEM ? EXIT_INTERNAL : EXIT_BAD_INPUT;
+    }
+    *figures = outs->figures;
+    return EXIT_OK;
+}
+
+int cli_figure_draw(report_batch *figures, const report_figure_type *type, const void *data,
+                    const char *prefix, const char *name)
+{
+    io_error err = {{0}};
+    int st = report_batch_draw(figures, type, data, prefix, name, &err);
+    if (st == SLOWSCAN_OK)
+        return EXIT_OK;
+    cli_error("option --figures: %s", err.message);
+    return st == SLOWSCAN_EIO ? EXIT_BAD_INPUT : EXIT_INTERNAL;
 }
 
 void cli_put_number(FILE *fp, double v)
@@ -177,6 +212,8 @@ int cli_run_series_command(const cli_options *opts, const series_command *cmd)
                               : cli_for_each_series(opts, &in, cmd->visit, cmd->context);
     if (rc == EXIT_OK && cmd->finish)
         rc = cmd->finish(opts, cmd->context);
+    if (rc == EXIT_OK && cmd->figures && outs.figures)
+        rc = cmd->figures(opts, &in, cmd->context);
     if (rc == EXIT_OK)
         rc = cli_outputs_commit(&outs);
     else

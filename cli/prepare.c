@@ -211,6 +211,7 @@ int cli_prepare_series(const cli_options *o, const series_table *t, size_t k, pr
     memset(ps, 0, sizeof *ps);
     ps->name = t->names[k];
     ps->source = shown(t->source);
+    ps->time_name = t->time_name;
     ps->n = t->n;
     ps->time = t->time;
     ps->span = t->time[t->n - 1] - t->time[0];

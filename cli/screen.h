@@ -5,6 +5,8 @@
 #include "cli.h"
 #include "trend_test.h"
 
+#include <gsl/gsl_histogram.h>
+
 typedef struct {
     char *series;
     const char *label; /* the indicator's name, or "recovery_trend" */
@@ -12,6 +14,7 @@ typedef struct {
     double window, bandwidth, q_value;
     trend_result result; /* tau, p, the null's quantiles */
     const char *flag;
+    gsl_histogram *null_hist; /* with --figures: the null distribution, binned; else NULL */
 } screen_row;
 
 typedef struct {
@@ -20,9 +23,17 @@ typedef struct {
     size_t nrows, cap;
     trend_tester tester;
     FILE *json;
+    report_batch *figures; /* --figures DIR */
+    size_t figure_series;  /* series drawn so far (rows of series s start at s x tests) */
 } screen_run;
 
 /* Writes the run as JSON: every parameter needed to reproduce it, then the rows. */
 void screen_write_json(FILE *fp, const cli_options *opts, const screen_run *run);
+
+/* screen --figures (screen_figures.c): the null of one row, kept binned (a few hundred bytes
+ * a row, so memory stays bounded for many series); then, after the q-values, one figure per
+ * series and the overview. */
+int screen_keep_null(screen_row *row, const double *null, size_t m);
+int screen_figures(const cli_options *opts, const cli_inputs *in, void *context);
 
 #endif

@@ -34,6 +34,23 @@ static void set_mode(int fd, const char *path)
     }
 }
 
+char *atomic_temp_beside(const char *path)
+{
+    size_t len = strlen(path) + sizeof ".tmp.XXXXXX";
+    char *temp = malloc(len);
+    if (!temp)
+        return NULL;
+    snprintf(temp, len, "%s.tmp.XXXXXX", path);
+    int fd = mkstemp(temp);
+    if (fd < 0) {
+        free(temp);
+        return NULL;
+    }
+    set_mode(fd, path);
+    close(fd);
+    return temp;
+}
+
 int atomic_open(atomic_file *f, const char *path, io_error *err)
 {
     char why[128];
@@ -134,6 +151,19 @@ void atomic_abort(atomic_file *f)
     free(f->temp_path);
     free(f->path);
     f->temp_path = f->path = NULL;
+}
+
+int io_reserve(void **array, size_t *cap, size_t count, size_t size, size_t first)
+{
+    if (count < *cap)
+        return SLOWSCAN_OK;
+    size_t bigger = *cap ? 2 * *cap : first;
+    void *grown = realloc(*array, bigger * size);
+    if (!grown)
+        return SLOWSCAN_ENOMEM;
+    *array = grown;
+    *cap = bigger;
+    return SLOWSCAN_OK;
 }
 
 int io_same_file(const char *a, const char *b)

@@ -77,6 +77,15 @@ int atomic_commit(atomic_file *file, io_error *err);
 /* Closes and removes the temporary file; safe to call on a committed or unopened file. */
 void atomic_abort(atomic_file *file);
 
+/* Creates an empty temporary file beside `path` (same directory, so a rename into place is
+ * atomic), with the permissions a plain fopen of `path` would give; returns its malloc'd
+ * name, or NULL with errno set. For writers that open files by name (the figure drivers). */
+char *atomic_temp_beside(const char *path);
+
+/* Makes room for one more element in a growing array: when count == *cap, doubles *cap
+ * (first: `first` elements) and reallocates *array. SLOWSCAN_ENOMEM leaves it unchanged. */
+int io_reserve(void **array, size_t *cap, size_t count, size_t size, size_t first);
+
 /* 1 if the two paths name the same existing file (same device and inode), else 0. */
 int io_same_file(const char *a, const char *b);
 

@@ -1,0 +1,116 @@
+/* screen --figures DIR: a figure per series (series, trend, residual, indicator paths, the
+ * null histograms) and, for more than one series, the screening overview.
+ *
+ * The figures need the q-values, which exist only once every series is tested. Rather than
+ * keep every series' paths until then (memory would grow with the number of series), the
+ * series are prepared again after the run — detrending and rolling indicators are cheap and
+ * deterministic — and only each test's null distribution is kept from the run, binned. */
+#include "screen.h"
+#include "slowscan/status.h"
+
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+
+/* Bins of a kept null distribution: enough to show its shape at M = 1000. */
+enum { NULL_BINS = 30 };
+
+int screen_keep_null(screen_row *row, const double *null, size_t m)
+{
+    double lo = INFINITY, hi = -INFINITY;
+    for (size_t j = 0; j < m; j++)
+        if (isfinite(null[j])) {
+            lo = fmin(lo, null[j]);
+            hi = fmax(hi, null[j]);
+        }
+    if (!(lo <= hi))
+        return EXIT_OK;
+    /* gsl_histogram bins are [a, b): widen a little so the largest draw is counted. */
+    double pad = hi > lo ? 1e-9 * (hi - lo) : 0.5 * fmax(fabs(lo), 1e-3);
+    row->null_hist = gsl_histogram_alloc(NULL_BINS);
+    if (!row->null_hist || gsl_histogram_set_ranges_uniform(row->null_hist, lo - (hi > lo ? 0 : pad),
+                                                            hi + pad) != 0) {
+        cli_error("out of memory");
+        return EXIT_INTERNAL;
+    }
+    for (size_t j = 0; j < m; j++)
+        if (isfinite(null[j]))
+            gsl_histogram_increment(row->null_hist, null[j]);
+    return EXIT_OK;
+}
+
+static report_series_test test_of(const screen_row *row, const double *path)
+{
+    int drift = strcmp(row->label, "recovery_trend") == 0;
+    report_series_test t = {row->label, drift ? "t(a1)" : "tau", path, row->result.statistic,
+                            row->result.p_value, row->q_value, 0, NAN, NAN, NULL};
+    if (row->null_hist) {
+        t.nbins = gsl_histogram_bins(row->null_hist);
+        t.bin_lo = gsl_histogram_min(row->null_hist);
+        t.bin_hi = gsl_histogram_max(row->null_hist);
+        t.counts = row->null_hist->bin;
+    }
+    return t;
+}
+
+static int draw_series(const cli_options *opts, const prepared_series *ps, void *context)
+{
+    screen_run *run = context;
+    size_t tests = trend_test_count(opts), first = run->figure_series++ * tests;
+    if (first + tests > run->nrows || strcmp(run->rows[first].series, ps->name) != 0) {
+        cli_error("internal error: screen figures out of step with the summary at '%s'", ps->name);
+        return EXIT_INTERNAL;
+    }
+    double *values[INDICATOR_COUNT] = {NULL};
+    int rc = EXIT_OK;
+    /* A constant series has no paths (and was warned about in the run). */
+    if (!ps->constant)
+        rc = cli_indicator_values(opts, ps, values);
+    report_series_test list[TREND_MAX_TESTS];
+    for (size_t j = 0; j < tests; j++)
+        list[j] = test_of(&run->rows[first + j], j < opts->nindicators ? values[j] : NULL);
+    report_series_data data = {ps->name, ps->time_name, ps->source, ps->n, ps->time, ps->value,
+                               ps->trend, ps->residual, ps->window, list, tests};
+    if (rc == EXIT_OK)
+        rc = cli_figure_draw(run->figures, &report_series_figure, &data, "screen", ps->name);
+    if (!ps->constant)
+        cli_indicator_values_free(opts, values);
+    return rc;
+}
+
+static int draw_overview(const cli_options *opts, const screen_run *run)
+{
+    size_t tests = trend_test_count(opts);
+    const char *labels[TREND_MAX_TESTS], *stats[TREND_MAX_TESTS];
+    for (size_t j = 0; j < tests; j++) {
+        labels[j] = run->rows[j].label;
+        stats[j] = j < opts->nindicators ? "Kendall tau" : "t(a1)";
+    }
+    report_overview_point *points = malloc((run->nrows + 1) * sizeof *points);
+    if (!points) {
+        cli_error("out of memory");
+        return EXIT_INTERNAL;
+    }
+    for (size_t r = 0; r < run->nrows; r++) {
+        const screen_row *row = &run->rows[r];
+        points[r] = (report_overview_point){row->series, r % tests, row->result.statistic,
+                                            row->q_value, strcmp(row->flag, "rising") == 0 ||
+                                                          strcmp(row->flag, "falling") == 0};
+    }
+    report_overview_data data = {labels, stats, tests, points, run->nrows, opts->fdr};
+    int rc = cli_figure_draw(run->figures, &report_overview_figure, &data, "", "screen-overview");
+    free(points);
+    return rc;
+}
+
+int screen_figures(const cli_options *opts, const cli_inputs *in, void *context)
+{
+    screen_run *run = context;
+    cli_options quiet = *opts;
+    quiet.progress = 0; /* the run's progress line has already reached its end */
+    run->figure_series = 0;
+    int rc = cli_for_each_series(&quiet, in, draw_series, run);
+    if (rc == EXIT_OK && cli_inputs_series_count(in) > 1)
+        rc = draw_overview(opts, run);
+    return rc;
+}

@@ -1,0 +1,170 @@
+/* slowscan — figures (module prefix: report_).
+ *
+ * A figure is one page of panels laid out in rows (each row split into one or more cells),
+ * written by PLplot's cairo drivers as PNG, SVG or PDF. The module owns the device: one
+ * PLplot stream per figure (made, drawn and ended in report_batch_draw), the page size, the
+ * fonts and our palette. A figure type is a draw function plus a layout function; the four
+ * types below are built on it and later ones plug in the same way.
+ *
+ * Figures of a run are collected in a batch: each is drawn into a temporary file in the
+ * figure directory and only renamed into place by report_batch_commit, so a failed run leaves
+ * no figure, whole or partial. PLplot is not thread-safe: draw from one thread only.
+ * Like io/, report/ never prints or exits; errors come back as a status and an io_error. */
+#ifndef SLOWSCAN_REPORT_H
+#define SLOWSCAN_REPORT_H
+
+#include "slowscan/io.h"
+
+#include <stddef.h>
+
+typedef enum { REPORT_PNG, REPORT_SVG, REPORT_PDF } report_format;
+
+/* "png", "svg" or "pdf"; SLOWSCAN_EINVAL otherwise. */
+int report_format_parse(const char *name, report_format *format);
+const char *report_format_extension(report_format format);
+
+/* Page geometry, in pixels for PNG and points for SVG/PDF: every figure is REPORT_PAGE_WIDTH
+ * wide; its height is REPORT_PAGE_TOP + rows x (the row height) + REPORT_PAGE_BOTTOM. */
+enum {
+    REPORT_PAGE_WIDTH = 880,
+    REPORT_PAGE_TOP = 56,
+    REPORT_PAGE_BOTTOM = 44,
+    REPORT_ROW_HEIGHT = 165,       /* stacked time-series panels */
+    REPORT_TALL_ROW_HEIGHT = 300,  /* scatter and heat-map panels */
+    REPORT_MAX_ROWS = 24,
+    REPORT_MAX_COLS = 12
+};
+
+/* The panel layout of a figure: rows from the top, each with its own number of cells. */
+typedef struct {
+    size_t rows;
+    size_t cols[REPORT_MAX_ROWS];
+    int row_height;   /* REPORT_ROW_HEIGHT or REPORT_TALL_ROW_HEIGHT */
+    int right_margin; /* extra room on the right (colour bars), page units */
+} report_layout;
+
+/* A rectangle in normalised page coordinates (0..1, y upwards), as PLplot's plvpor takes. */
+typedef struct {
+    double x0, x1, y0, y1;
+} report_box;
+
+int report_page_height(const report_layout *layout);
+/* `panels` equal cells, row by row, at most max_cols to a row. */
+void report_layout_grid(report_layout *layout, size_t panels, size_t max_cols, int row_height);
+/* The plotting area of cell `col` of row `row` (room for its title and axis labels left
+ * around it). The tests use it to find the panels in a PNG. */
+report_box report_cell(const report_layout *layout, size_t row, size_t col);
+
+typedef struct report_figure report_figure;
+
+/* A figure type: what layout the data needs, and how to draw it onto an open page. */
+typedef struct {
+    const char *name;
+    void (*layout)(const void *data, report_layout *layout);
+    int (*draw)(report_figure *figure, const void *data);
+} report_figure_type;
+
+/* The layout of the page being drawn, for draw functions. */
+const report_layout *report_figure_layout(const report_figure *figure);
+
+typedef struct report_batch report_batch;
+
+/* Opens the figure directory: made if missing (its parent must exist), refused when it is
+ * not a directory or a probe file cannot be created in it. */
+int report_batch_open(report_batch **batch, const char *dir, report_format format, io_error *err);
+/* Draws one figure into a temporary file in the directory; `name` (any text: a series name)
+ * is made safe for a file name, prefixed with `prefix-` and made unique within the batch. */
+int report_batch_draw(report_batch *batch, const report_figure_type *type, const void *data,
+                      const char *prefix, const char *name, io_error *err);
+/* Renames every figure into place; on failure the ones not yet renamed are removed. */
+int report_batch_commit(report_batch *batch, io_error *err);
+/* Removes every temporary file (and the directory when this batch made it and it is empty),
+ * then frees the batch. Safe on NULL and after commit. */
+void report_batch_free(report_batch *batch);
+size_t report_batch_count(const report_batch *batch);
+/* The final path of figure i of the batch (in drawing order). */
+const char *report_batch_path(const report_batch *batch, size_t i);
+
+/* `name` made safe for a file name into out[size]: letters, digits, '-', '_' and '.' kept,
+ * everything else '_', no leading '.', at most size-1 bytes; "series" when nothing is left. */
+void report_safe_name(const char *name, char *out, size_t size);
+
+/* ---- figure types ---------------------------------------------------------------------- */
+
+/* One test of a series: the indicator path (NULL for a test without one) and the statistic's
+ * null distribution as a histogram (counts NULL when there was none). */
+typedef struct {
+    const char *label;      /* "variance", "recovery_trend", ... */
+    const char *statistic_name; /* "tau" or "t(a1)" */
+    const double *path;     /* n values or NULL */
+    double statistic, p_value, q_value;
+    size_t nbins;
+    double bin_lo, bin_hi;  /* the histogram's range */
+    const double *counts;   /* nbins */
+} report_series_test;
+
+/* Per-series figure: the series with its trend, the residual, one panel per indicator path
+ * (tau, p, q in the title; the first window as a bracket), and a row of null histograms
+ * with the observed statistic marked. */
+typedef struct {
+    const char *name, *time_name, *source;
+    size_t n;
+    const double *time, *value, *trend, *residual;
+    size_t window; /* W, samples */
+    const report_series_test *tests;
+    size_t ntests;
+} report_series_data;
+extern const report_figure_type report_series_figure;
+
+/* Screening overview: per test, every series' statistic against -log10(q); the series with
+ * flag set are labelled, at most REPORT_OVERVIEW_LABELS of them (smallest q first). */
+enum { REPORT_OVERVIEW_LABELS = 20 };
+typedef struct {
+    const char *series;
+    size_t test; /* index into the overview's labels */
+    double statistic, q_value;
+    int flagged;
+} report_overview_point;
+typedef struct {
+    const char *const *labels;          /* per test: indicator name */
+    const char *const *statistic_names; /* per test: "tau" or "t(a1)" */
+    size_t ntests;
+    const report_overview_point *points;
+    size_t npoints;
+    double fdr;
+} report_overview_data;
+extern const report_figure_type report_overview_figure;
+
+/* Robustness heat-map: one panel per indicator, windows across and bandwidths up, each cell
+ * coloured by tau; cells with p <= 0.05 marked; the default cell outlined (index -1: none). */
+typedef struct {
+    const char *name, *time_name;
+    size_t nwindows, nbandwidths;
+    const char *const *window_labels, *const *bandwidth_labels;
+    size_t nindicators;
+    const char *const *indicator_labels;
+    const double *tau, *p_value; /* [indicator][window][bandwidth], p NaN without surrogates */
+    long default_window, default_bandwidth;
+    int have_p;
+} report_robustness_data;
+extern const report_figure_type report_robustness_figure;
+
+/* The projected time at which lambda reaches zero, with its bootstrap interval, drawn as a
+ * marked extrapolation; or the note that no crossing falls within twice the record. */
+typedef struct {
+    int has_crossing;
+    double time, lo, hi;
+    int beyond_horizon; /* no crossing within 2x the record */
+} report_crossing;
+
+/* Recovery-rate figure: lambda(t) with its 95% band and the zero line. crossing may be NULL. */
+typedef struct {
+    const char *name, *time_name;
+    size_t n;
+    const double *time, *lambda, *lo, *hi;
+    double t_a1, p_value; /* p NaN without surrogates */
+    const report_crossing *crossing;
+} report_recovery_data;
+extern const report_figure_type report_recovery_figure;
+
+#endif
