@@ -138,15 +138,6 @@ static int sort_pairs(kendall_workspace *ws, size_t m)
     return 0;
 }
 
-/* Merges two sorted runs of y; returns the swaps, i.e. the pairs (left, right) with
- * left > right strictly (on equality the left element goes first and nothing is counted).
- *
- * The merge runs from both ends at once: the front takes the smaller head (left on a tie),
- * the back the larger tail (right on a tie), half of the output each. Each chain of
- * compare-select-advance is limited by its load latency, so two independent chains nearly
- * halve the time. Every right element r is counted once, against the left elements greater
- * than r: at the front these are all lefts not yet taken (mid - i); at the back exactly the
- * lefts the back has already taken (they are > r, and the front only takes values <= r). */
 /* A comparison whose outcome is a coin toss: tells GCC to select with conditional moves
  * rather than branch (a mispredicted branch per merged element costs more than the merge). */
 #if defined(__GNUC__) && !defined(__clang__) && __GNUC__ >= 9
@@ -155,43 +146,105 @@ static int sort_pairs(kendall_workspace *ws, size_t m)
 #define UNPREDICTABLE(c) (c)
 #endif
 
-static int64_t merge_count(const double *s, double *d, size_t lo, size_t mid, size_t hi)
+/* Merging two sorted runs [lo,mid) and [mid,hi) of y, counting the swaps: the pairs (left,
+ * right) with left > right strictly (on equality the left element goes first, uncounted).
+ *
+ * A merge runs from both ends at once: the front takes the smaller head (left on a tie), the
+ * back the larger tail (right on a tie), half of the output each. Every right element r is
+ * counted once, against the left elements greater than r: at the front these are all lefts
+ * not yet taken (mid - i); at the back exactly the lefts the back has already taken (they
+ * are > r, and the front only takes values <= r). Each end is a chain of load, compare,
+ * select, advance whose speed is the load latency, so the passes below run two merges side
+ * by side: four independent chains. */
+typedef struct {
+    ptrdiff_t i, j;   /* front: next left, next right; its next output is i + j - mid */
+    ptrdiff_t bi, bj; /* back: the same, moving down; its next output is bi + bj - mid + 1 */
+    ptrdiff_t lo, mid, hi, split; /* the front fills [lo, split), the back [split, hi) */
+    int64_t swaps;
+} merge_state;
+
+static merge_state merge_start(size_t lo, size_t mid, size_t hi)
 {
-    ptrdiff_t i = (ptrdiff_t)lo, j = (ptrdiff_t)mid, k = (ptrdiff_t)lo;     /* front cursors */
-    ptrdiff_t bi = (ptrdiff_t)mid - 1, bj = (ptrdiff_t)hi - 1, bk = bj;     /* back cursors */
-    const ptrdiff_t L = (ptrdiff_t)lo, M = (ptrdiff_t)mid, H = (ptrdiff_t)hi;
-    const ptrdiff_t split = L + (H - L + 1) / 2; /* the front fills d[lo, split) */
+    ptrdiff_t L = (ptrdiff_t)lo, M = (ptrdiff_t)mid, H = (ptrdiff_t)hi;
+    return (merge_state){L, M, M - 1, H - 1, L, M, H, L + (H - L + 1) / 2, 0};
+}
+
+/* How many steps of both ends are safe without looking at run boundaries: each step moves
+ * every cursor by at most one, so the smallest distance to a boundary bounds them. */
+static inline ptrdiff_t merge_safe_steps(const merge_state *m)
+{
+    ptrdiff_t k = m->i + m->j - m->mid, bk = m->bi + m->bj - m->mid + 1;
+    ptrdiff_t steps = m->split - k;
+    steps = bk - m->split + 1 < steps ? bk - m->split + 1 : steps;
+    steps = m->mid - m->i < steps ? m->mid - m->i : steps;
+    steps = m->hi - m->j < steps ? m->hi - m->j : steps;
+    steps = m->bi - m->lo + 1 < steps ? m->bi - m->lo + 1 : steps;
+    steps = m->bj - m->mid + 1 < steps ? m->bj - m->mid + 1 : steps;
+    return steps;
+}
+
+/* One output at each end. Few live values (cursors, the count), so that two merges side by
+ * side stay in registers: a cursor spilled to memory would put a store-to-load delay into
+ * the very chain this is meant to shorten. */
+static inline void merge_step_both(merge_state *m, const double *s, double *d)
+{
+    ptrdiff_t i = m->i, j = m->j, bi = m->bi, bj = m->bj, mid = m->mid;
+    double a = s[i], b = s[j];
+    ptrdiff_t right = UNPREDICTABLE(b < a);
+    d[i + j - mid] = b < a ? b : a;
+    int64_t swaps = (mid - i) & -right;
+    m->j = j + right;
+    m->i = i + 1 - right;
+    double ta = s[bi], tb = s[bj];
+    ptrdiff_t left = UNPREDICTABLE(ta > tb);
+    d[bi + bj - mid + 1] = ta > tb ? ta : tb;
+    swaps += (mid - 1 - bi) & (left - 1);
+    m->bi = bi - left;
+    m->bj = bj - (1 - left);
+    m->swaps += swaps;
+}
+
+/* Each end finishes on its own once a run is used up at one of them. */
+static int64_t merge_finish(merge_state *m, const double *s, double *d)
+{
+    for (ptrdiff_t steps; (steps = merge_safe_steps(m)) > 0;)
+        while (steps-- > 0)
+            merge_step_both(m, s, d);
+    while (m->i + m->j - m->mid < m->split) {
+        ptrdiff_t right = m->i >= m->mid || (m->j < m->hi && s[m->j] < s[m->i]);
+        d[m->i + m->j - m->mid] = right ? s[m->j] : s[m->i];
+        m->swaps += right * (m->mid - m->i);
+        m->j += right;
+        m->i += 1 - right;
+    }
+    while (m->bi + m->bj - m->mid + 1 >= m->split) {
+        ptrdiff_t left = m->bi >= m->lo && (m->bj < m->mid || s[m->bi] > s[m->bj]);
+        d[m->bi + m->bj - m->mid + 1] = left ? s[m->bi] : s[m->bj];
+        m->swaps += (1 - left) * (m->mid - 1 - m->bi);
+        m->bi -= left;
+        m->bj -= 1 - left;
+    }
+    return m->swaps;
+}
+
+/* One merge pass of runs of width w over y[0..m) from s into d: merges in pairs. */
+static int64_t merge_pass(const double *s, double *d, size_t m, size_t w)
+{
     int64_t swaps = 0;
-    /* Both ends while every cursor is inside its run (the loop test is predictable; the
-     * selections inside are not, and are made without branches). */
-    while (k < split && bk >= split && i < M && j < H && bi >= L && bj >= M) {
-        double a = s[i], b = s[j];
-        ptrdiff_t right = UNPREDICTABLE(b < a);
-        d[k++] = b < a ? b : a;
-        swaps += right * (M - i);
-        j += right;
-        i += 1 - right;
-        double ta = s[bi], tb = s[bj];
-        ptrdiff_t left = UNPREDICTABLE(ta > tb);
-        d[bk--] = ta > tb ? ta : tb;
-        swaps += (1 - left) * (M - 1 - bi);
-        bi -= left;
-        bj -= 1 - left;
-    }
-    /* Each end finishes on its own once a run is used up at one of them. */
-    while (k < split) {
-        ptrdiff_t right = i >= M || (j < H && s[j] < s[i]);
-        d[k++] = right ? s[j] : s[i];
-        swaps += right * (M - i);
-        j += right;
-        i += 1 - right;
-    }
-    while (bk >= split) {
-        ptrdiff_t left = bi >= L && (bj < M || s[bi] > s[bj]);
-        d[bk--] = left ? s[bi] : s[bj];
-        swaps += (1 - left) * (M - 1 - bi);
-        bi -= left;
-        bj -= 1 - left;
+    for (size_t lo = 0; lo < m; lo += 4 * w) {
+        size_t lo2 = 2 * w < m - lo ? lo + 2 * w : m;
+        merge_state a = merge_start(lo, w < m - lo ? lo + w : m, lo2);
+        merge_state b = merge_start(lo2, w < m - lo2 ? lo2 + w : m, 2 * w < m - lo2 ? lo2 + 2 * w : m);
+        for (ptrdiff_t steps; (steps = merge_safe_steps(&a)) > 0;) {
+            ptrdiff_t other = merge_safe_steps(&b);
+            if (other <= 0)
+                break;
+            for (steps = steps < other ? steps : other; steps-- > 0;) {
+                merge_step_both(&a, s, d);
+                merge_step_both(&b, s, d);
+            }
+        }
+        swaps += merge_finish(&a, s, d) + merge_finish(&b, s, d);
     }
     return swaps;
 }
@@ -245,11 +298,7 @@ static int64_t sort_count_swaps(kendall_workspace *ws, size_t m)
         swaps += RUN <= m - lo ? run8_count_sort(ws->y + lo) : insertion_count(ws->y, lo, m);
     double *s = ws->y, *d = ws->ty, *t;
     for (size_t w = RUN; w < m; w *= 2) {
-        for (size_t lo = 0; lo < m; lo += 2 * w) {
-            size_t mid = w < m - lo ? lo + w : m;
-            size_t hi = 2 * w < m - lo ? lo + 2 * w : m;
-            swaps += merge_count(s, d, lo, mid, hi);
-        }
+        swaps += merge_pass(s, d, m, w);
         t = s, s = d, d = t;
     }
     if (s != ws->y)
@@ -272,6 +321,18 @@ static int64_t tied_pairs(const double *a, const double *b, size_t m)
     return total + run * (run - 1) / 2;
 }
 
+/* x finite and strictly increasing (NaN fails every comparison, so the chain of > tests and
+ * finite ends cover it): the pairs are then in order and untied in x whatever y holds. */
+static int x_strictly_increasing(const double *x, size_t n)
+{
+    if (n == 0 || !isfinite(x[0]) || !isfinite(x[n - 1]))
+        return 0;
+    int increasing = 1;
+    for (size_t i = 1; i < n; i++)
+        increasing &= x[i] > x[i - 1];
+    return increasing;
+}
+
 int kendall_tau_b(kendall_workspace *ws, const double *x, const double *y, size_t n,
                   double *tau, size_t *used)
 {
@@ -281,17 +342,26 @@ int kendall_tau_b(kendall_workspace *ws, const double *x, const double *y, size_
         *used = 0;
     if (!ws || !tau || (n && (!x || !y)) || n > ws->nmax)
         return SLOWSCAN_EINVAL;
+    /* The trend statistic's case, x = time, needs neither the x column nor its sort. */
+    int time_like = x_strictly_increasing(x, n);
     size_t m = 0;
-    for (size_t i = 0; i < n; i++) { /* written always, kept when finite: no branch */
-        ws->x[m] = x[i];
-        ws->y[m] = y[i];
-        m += isfinite(x[i]) & isfinite(y[i]);
+    if (time_like) {
+        for (size_t i = 0; i < n; i++) { /* written always, kept when finite: no branch */
+            ws->y[m] = y[i];
+            m += isfinite(y[i]);
+        }
+    } else {
+        for (size_t i = 0; i < n; i++) {
+            ws->x[m] = x[i];
+            ws->y[m] = y[i];
+            m += isfinite(x[i]) & isfinite(y[i]);
+        }
     }
     if (used)
         *used = m;
     if (m < 2)
         return SLOWSCAN_ESHORT;
-    int distinct_x = sort_pairs(ws, m);
+    int distinct_x = time_like || sort_pairs(ws, m);
     int64_t n0 = (int64_t)m * (int64_t)(m - 1) / 2;
     int64_t n1 = distinct_x ? 0 : tied_pairs(ws->x, NULL, m);
     int64_t n3 = distinct_x ? 0 : tied_pairs(ws->x, ws->y, m);
