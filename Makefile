@@ -87,7 +87,8 @@ demo: deps
 	  --windows 30%:70%:10% --bandwidths 5%:20%:5% --figures $(DEMO_OUT) \
 	  -o $(DEMO_OUT)/robustness.csv data/stations.csv
 	$(B)/slowscan recovery --deseason 364 --surrogates 99 --vars mill_pond \
-	  --figures $(DEMO_OUT) -o $(DEMO_OUT)/recovery.csv data/stations.csv
+	  --project $(DEMO_OUT)/crossing.csv --figures $(DEMO_OUT) -o $(DEMO_OUT)/recovery.csv \
+	  data/stations.csv
 	@cp $(DEMO_OUT)/screen-mill_pond.png doc/demo-figure.png
 	@$(B)/slowscan screen $(DEMO_ARGS) --format table data/stations.csv
 

@@ -93,14 +93,29 @@ static int write_projection(const cli_options *opts, recovery_run *run, const pr
     return EXIT_OK;
 }
 
-/* The projection in the figure's terms; an interval open above is drawn to the horizon. */
-static report_crossing figure_crossing(const prepared_series *ps, const ar1_projection *pr)
+enum { EXTENSION_POINTS = 64 };
+
+/* The projection in the figure's terms (an interval open above has hi = +INFINITY). The
+ * fitted path is continued from the end of the record to the crossing (or the horizon) in
+ * ext[2 * EXTENSION_POINTS]: times, then lambda. */
+static report_crossing figure_crossing(const prepared_series *ps, const ar1_drift_fit *fit,
+                                       const ar1_projection *pr, double *ext)
 {
-    double horizon = ps->time[0] + 2.0 * (double)(ps->n - 1) * ps->dt;
-    report_crossing c = {pr->kind != PROJECTION_NONE, ps->time[0] + pr->index * ps->dt,
-                         ps->time[0] + pr->index_lo * ps->dt,
-                         isinf(pr->index_hi) ? horizon : ps->time[0] + pr->index_hi * ps->dt,
-                         pr->kind == PROJECTION_NONE};
+    double t0 = ps->time[0], last = (double)(ps->n - 1);
+    double end = pr->kind == PROJECTION_AHEAD && isfinite(pr->index_hi) ? pr->index : 2.0 * last;
+    size_t m = 0;
+    for (size_t k = 0; pr->kind != PROJECTION_WITHIN_RECORD && k < EXTENSION_POINTS; k++) {
+        double index = last + (end - last) * (double)k / (EXTENSION_POINTS - 1);
+        double phi = fit->a0 + fit->a1 * (index / last - 0.5);
+        if (!(phi > 0))
+            break;
+        ext[m] = t0 + index * ps->dt;
+        ext[EXTENSION_POINTS + m++] = fmin(log(phi) / ps->dt, 0.0);
+    }
+    report_crossing c = {pr->kind != PROJECTION_NONE, t0 + pr->index * ps->dt,
+                         t0 + pr->index_lo * ps->dt,
+                         isinf(pr->index_hi) ? INFINITY : t0 + pr->index_hi * ps->dt,
+                         pr->kind == PROJECTION_NONE, m, ext, ext + EXTENSION_POINTS};
     return c;
 }
 
@@ -166,8 +181,9 @@ static int recovery_series(const cli_options *opts, const prepared_series *ps, v
         if (run->json && rc == EXIT_OK)
             write_json(run, ps, &fit, p, run->projection ? &projected : NULL);
         report_crossing crossing = {0};
+        double extension[2 * EXTENSION_POINTS];
         if (run->projection)
-            crossing = figure_crossing(ps, &projected);
+            crossing = figure_crossing(ps, &fit, &projected, extension);
         report_recovery_data data = {ps->name, ps->time_name, ps->n, ps->time, path,
                                      path + ps->n, path + 2 * ps->n, fit.t_a1, p,
                                      run->projection ? &crossing : NULL};

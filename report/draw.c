@@ -202,6 +202,7 @@ const char *report_number(char buf[32], double v)
 {
     if (!isfinite(v))
         return "NA";
-    snprintf(buf, 32, fabs(v) >= 1e-3 || v == 0 ? "%.3g" : "%.2e", v);
+    /* Large values are times (days, years): whole numbers read better than 8.77e+03. */
+    snprintf(buf, 32, fabs(v) >= 1e3 && fabs(v) < 1e9 ? "%.0f" : fabs(v) >= 1e-3 || v == 0 ? "%.3g" : "%.2e", v);
     return buf;
 }

@@ -19,6 +19,8 @@ static double time_end(const report_recovery_data *d)
 {
     double end = d->time[d->n - 1];
     const report_crossing *c = d->crossing;
+    for (size_t i = 0; c && i < c->path_n; i++)
+        end = fmax(end, c->path_time[i]);
     if (c && c->has_crossing)
         for (int k = 0; k < 3; k++) {
             double t = k == 0 ? c->time : k == 1 ? c->lo : c->hi;
@@ -28,6 +30,17 @@ static double time_end(const report_recovery_data *d)
     return end;
 }
 
+/* The straight-line trend of the coefficient carried on past the record, dashed. */
+static void draw_extension(const report_crossing *c)
+{
+    if (c->path_n < 2)
+        return;
+    plcol0(INK_SERIES);
+    pllsty(3);
+    plline((PLINT)c->path_n, c->path_time, c->path_lambda);
+    pllsty(1);
+}
+
 static void draw_crossing(const report_recovery_data *d, double y_lo, double y_hi)
 {
     const report_crossing *c = d->crossing;
@@ -35,15 +48,17 @@ static void draw_crossing(const report_recovery_data *d, double y_lo, double y_h
     PLFLT x0, x1, y0, y1;
     plgvpw(&x0, &x1, &y0, &y1);
     if (c->beyond_horizon) {
+        draw_extension(c);
         plcol0(INK_MARK);
-        report_text(x0 + 0.98 * (x1 - x0), y_lo + 0.92 * (y_hi - y_lo), 1.0,
-                    "projection: no crossing of lambda = 0 within twice the record");
+        report_text(x0 + 0.98 * (x1 - x0), y_lo + 0.06 * (y_hi - y_lo), 1.0,
+                    "extrapolation: no crossing of lambda = 0 within twice the record");
         return;
     }
     if (!c->has_crossing)
         return;
     report_rect(last, x1, y0, y1, INK_SPAN);
-    if (isfinite(c->lo) && isfinite(c->hi)) {
+    draw_extension(c);
+    if (isfinite(c->lo) && !isnan(c->hi)) { /* an interval open above runs off the panel */
         PLFLT bx[2] = {fmax(c->lo, x0), fmin(c->hi, x1)}, by[2] = {0.0, 0.0};
         plcol0(INK_MARK);
         plwidth(4.0);
@@ -57,10 +72,11 @@ static void draw_crossing(const report_recovery_data *d, double y_lo, double y_h
         plwidth(1.0);
     }
     plcol0(INK_MARK);
-    char text[200], a[32];
-    snprintf(text, sizeof text, "extrapolation: crossing at %s (bar: interval)",
-             report_number(a, c->time));
-    report_text(last + 0.01 * (x1 - x0), y_lo + 0.92 * (y_hi - y_lo), 0.0, text);
+    char text[200], a[32], b[32], e[32];
+    snprintf(text, sizeof text, "extrapolation, not a forecast: lambda = 0 at %s (95%%: %s to %s)",
+             report_number(a, c->time), report_number(b, c->lo),
+             isfinite(c->hi) ? report_number(e, c->hi) : "beyond");
+    report_text(x0 + 0.98 * (x1 - x0), y_lo + 0.06 * (y_hi - y_lo), 1.0, text);
 }
 
 static int recovery_draw(report_figure *fig, const void *data)

@@ -86,9 +86,21 @@ static void draw_series_rows(report_figure *fig, const report_series_data *d, si
     }
 }
 
+static void histogram_cell_scaled(report_figure *fig, size_t row, size_t col,
+                                  const report_series_test *t);
+
+/* A third of the page wide: smaller text (ticks and labels alike) keeps it inside its cell. */
 static void histogram_cell(report_figure *fig, size_t row, size_t col, const report_series_test *t)
 {
-    char title[200], a[32], b[32];
+    plschr(0, 0.85 * REPORT_TEXT_SCALE);
+    histogram_cell_scaled(fig, row, col, t);
+    plschr(0, REPORT_TEXT_SCALE);
+}
+
+static void histogram_cell_scaled(report_figure *fig, size_t row, size_t col,
+                                  const report_series_test *t)
+{
+    char title[200], a[32];
     if (!t->counts || t->nbins == 0) {
         report_panel(fig, row, col, 0, 1, 0, 1, 0);
         report_text(0.5, 0.5, 0.5, "no null distribution");
@@ -113,7 +125,10 @@ static void histogram_cell(report_figure *fig, size_t row, size_t col, const rep
         report_vline(t->statistic, INK_MARK, 0);
         plwidth(1.0);
     }
-    snprintf(title, sizeof title, "%s: p = %s", t->label, report_number(b, t->p_value));
+    if (isfinite(t->p_value)) /* two digits: the cell is narrow, and p is a count ratio */
+        snprintf(title, sizeof title, "%s: p = %.2g", t->label, t->p_value);
+    else
+        snprintf(title, sizeof title, "%s: p = NA", t->label);
     char xlabel[64];
     snprintf(xlabel, sizeof xlabel, "%s; line: observed %s", t->statistic_name,
              report_number(a, t->statistic));

@@ -125,6 +125,7 @@ static void open_stream(const report_layout *layout, report_format format, const
     plsmaj(0, 0.7);
     plsmin(0, 0.5);
     plsyax(6, 0); /* plain numbers on y, no separate "x10^k" that would hit the title */
+    plsxax(7, 0); /* and on the time axis (days since 1850 still fit) */
     pladv(0);
 }
 

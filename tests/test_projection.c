@@ -179,6 +179,16 @@ static void test_cli_projection(void)
     char *table2 = check_read_file(out2);
     CHECK(table && table2 && strcmp(table, table2) == 0, "identical projection with 1 and 2 threads");
     free(table), free(table2);
+    /* With --figures the recovery figure draws the projection (report/fig_recovery.c). */
+    const char *dir = check_tmp_path("proj-figures");
+    snprintf(cmd, sizeof cmd, "%s recovery --detrend none --vars s0 --project %s --figures %s "
+             "-o /dev/null %s 2>/dev/null", check_binary(), out2, dir, in);
+    CHECK(check_run(cmd, NULL, NULL) == 0, "recovery --project --figures runs");
+    char png[1200];
+    snprintf(png, sizeof png, "%s/recovery-s0.png", dir);
+    char *image = check_read_file(png);
+    CHECK(image && memcmp(image, "\x89PNG\r\n\x1a\n", 8) == 0, "recovery figure with the projection");
+    free(image);
     /* Bad options: one message naming the option, exit 1, no output. */
     const char *bad[][2] = {{"--project-draws 100 --project %s", "--project-draws"},
                             {"--project-draws 600", "--project"},

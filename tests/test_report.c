@@ -366,10 +366,10 @@ static void test_module(void)
         lo[i] = lambda[i] - 0.02;
         hi[i] = lambda[i] + 0.02;
     }
-    report_crossing cross = {1, 133.0, 120.0, 150.0, 0};
+    report_crossing cross = {1, 133.0, 120.0, 150.0, 0, 0, NULL, NULL};
     report_recovery_data data = {"a b", "t", N, t, lambda, lo, hi, 4.0, 0.01, &cross};
     int ok = batch && report_batch_draw(batch, &report_recovery_figure, &data, "recovery", "a b", &err) == SLOWSCAN_OK;
-    report_crossing none = {0, NAN, NAN, NAN, 1};
+    report_crossing none = {0, NAN, NAN, NAN, 1, 0, NULL, NULL};
     data.crossing = &none;
     ok = ok && report_batch_draw(batch, &report_recovery_figure, &data, "recovery", "a_b", &err) == SLOWSCAN_OK;
     CHECK(ok && report_batch_count(batch) == 2, "two recovery figures drawn: %s", err.message);

@@ -153,8 +153,10 @@ extern const report_figure_type report_robustness_figure;
  * marked extrapolation; or the note that no crossing falls within twice the record. */
 typedef struct {
     int has_crossing;
-    double time, lo, hi;
+    double time, lo, hi;  /* hi = +INFINITY: the interval is open above (runs off the panel) */
     int beyond_horizon; /* no crossing within 2x the record */
+    size_t path_n;      /* the fitted path continued past the record (drawn dashed), or 0 */
+    const double *path_time, *path_lambda;
 } report_crossing;
 
 /* Recovery-rate figure: lambda(t) with its 95% band and the zero line. crossing may be NULL. */
