@@ -56,7 +56,14 @@ int atomic_open(atomic_file *f, const char *path, io_error *err)
     char why[128];
     memset(f, 0, sizeof *f);
     if (!path || strcmp(path, "-") == 0) {
-        f->fp = stdout;
+        /* Spooled to an anonymous temporary file and copied out on commit: a run that fails
+         * half-way (a bad second input, a band beyond a file's Nyquist frequency) must not
+         * leave a header and some rows in a pipe or a redirected file either. */
+        if (!(f->fp = tmpfile())) {
+            int e = errno;
+            return io_fail(err, SLOWSCAN_EIO, "cannot buffer standard output: %s",
+                           io_strerror(e, why, sizeof why));
+        }
         return SLOWSCAN_OK;
     }
     struct stat st;
@@ -104,8 +111,15 @@ static int commit_stdout(atomic_file *f, io_error *err)
 {
     errno = 0;
     int bad = fflush(f->fp) != 0 || ferror(f->fp);
+    if (!bad)
+        rewind(f->fp);
+    char chunk[1 << 16];
+    for (size_t got; !bad && (got = fread(chunk, 1, sizeof chunk, f->fp)) > 0;)
+        bad = fwrite(chunk, 1, got, stdout) != got;
+    bad = bad || ferror(f->fp) || fflush(stdout) != 0 || ferror(stdout);
     int e = errno;
-    f->fp = NULL; /* standard output stays open: it is not ours to close */
+    fclose(f->fp); /* the spool; standard output stays open: it is not ours to close */
+    f->fp = NULL;
     char why[128];
     return bad ? io_fail(err, SLOWSCAN_EIO, "cannot write standard output: %s",
                          e ? io_strerror(e, why, sizeof why) : "a write failed")
@@ -143,7 +157,7 @@ int atomic_commit(atomic_file *f, io_error *err)
 
 void atomic_abort(atomic_file *f)
 {
-    if (f->fp && f->path) /* never close standard output */
+    if (f->fp) /* a file of ours, or the spool of standard output (deleted on close) */
         fclose(f->fp);
     f->fp = NULL;
     if (f->temp_path)

@@ -311,6 +311,16 @@ static void test_bad_input(void)
           "unwritable output: %s", run_err ? run_err : "");
     CHECK(slowscan("screen /nonexistent-input.csv") == 1 && strstr(run_err, "/nonexistent-input.csv"),
           "missing input named");
+    /* A run that fails on its second input — here a band beyond that file's Nyquist frequency,
+     * found only once its time step is known — leaves nothing on standard output either (it is
+     * spooled until the run succeeds), not the header and the first file's rows. */
+    const char *fine = check_tmp_path("step-one.csv"), *coarse = check_tmp_path("step-seven.csv");
+    check_write_file(fine, "t,a\n0,1\n1,3\n2,2\n3,5\n4,4\n5,6\n6,5\n7,8\n8,7\n9,9\n10,4\n11,2\n");
+    check_write_file(coarse, "t,b\n0,1\n7,3\n14,2\n21,5\n28,4\n35,6\n42,5\n49,8\n56,7\n63,9\n70,3\n77,1\n");
+    snprintf(args, sizeof args, "indicators --indicators spectral_exponent --band 0.1:0.5 %s %s",
+             fine, coarse);
+    CHECK(slowscan(args) == 1 && run_out && run_out[0] == '\0', "nothing on stdout from a failed run: '%s'",
+          run_out ? run_out : "(null)");
 }
 
 /* Regression tests for defects found in review (one per defect). */

@@ -62,12 +62,13 @@ int table_resample(series_table *table, double step, io_error *err);
 int table_log(series_table *table, io_error *err);
 
 /* Output written to a temporary file next to the target and renamed into place on commit, so
- * a failed run leaves no partial file. path NULL or "-" writes to standard output directly;
- * an existing target that is not a regular file (a FIFO, a device) is written directly too
+ * a failed run leaves no partial file. path NULL or "-" is standard output, spooled to an
+ * anonymous temporary file (tmpfile) and copied out on commit, so a failed run writes nothing
+ * there either; an existing target that is not a regular file (a FIFO, a device) is written directly too
  * (temp_path NULL), since renaming over it would replace it. */
 typedef struct {
     FILE *fp;
-    char *path;      /* final path, NULL for stdout */
+    char *path;      /* final path, NULL for stdout (fp is then the spool) */
     char *temp_path; /* NULL for stdout */
 } atomic_file;
 
