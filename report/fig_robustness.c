@@ -6,6 +6,7 @@
 #include "slowscan/status.h"
 
 #include <math.h>
+#include <string.h>
 #include <plplot.h>
 #include <stdio.h>
 
@@ -105,7 +106,10 @@ static void indicator_panel(report_figure *fig, const report_robustness_data *d,
              d->have_p ? "; dot: p <= 0.05" : " (no surrogates: no p)");
     report_labels(title, NULL, NULL);
     char xlabel[200];
-    snprintf(xlabel, sizeof xlabel, "window (%s); outlined: the default choice", d->time_name);
+    /* The ticks are the grid as given: a percent of the span, or a length in time units. */
+    int percent = d->nwindows > 0 && strchr(d->window_labels[0], '%') != NULL;
+    snprintf(xlabel, sizeof xlabel, "window (%s); outlined: the default choice",
+             percent ? "% of the span" : d->time_name);
     report_mtex("b", 2.8, 0.5, 0.5, xlabel);
     plmtex("l", 4.6, 0.5, 0.5, "bandwidth");
     if (j + 1 == cols || (d->nindicators < cols && j + 1 == d->nindicators))
