@@ -24,6 +24,14 @@ typedef struct {
 /* Every projection output carries this, so no reader takes a crossing for a forecast. */
 static const char projection_basis[] = "extrapolated_linear_trend_in_recovery_rate";
 static const char *const projection_status[] = {"ahead", "within_record", "none_within_2x_record"};
+/* A projection that could not be computed (draws = 0): a perfect fit has no residuals to
+ * draw, and must not read as "no crossing". */
+static const char not_computed[] = "not_computed";
+
+static const char *status_name(const ar1_projection *pr)
+{
+    return pr->draws == 0 ? not_computed : projection_status[pr->kind];
+}
 
 static int open_outputs(const cli_options *opts, cli_outputs *outs, void *context)
 {
@@ -78,16 +86,15 @@ static int write_projection(const cli_options *opts, recovery_run *run, const pr
                     slowscan_strerror(st));
         pr->kind = PROJECTION_NONE, pr->index = pr->index_lo = pr->index_hi = NAN;
         pr->share_crossing = NAN, pr->draws = 0;
-        return EXIT_OK;
     }
     cli_put_field(run->projection, ps->name);
-    fprintf(run->projection, ",%s,", projection_status[pr->kind]);
+    fprintf(run->projection, ",%s,", status_name(pr));
     const double index[] = {pr->index, pr->index_lo, pr->index_hi};
     for (int k = 0; k < 3; k++) {
         cli_put_number(run->projection, ps->time[0] + index[k] * ps->dt);
         fputc(',', run->projection);
     }
-    fprintf(run->projection, "%s,", isinf(pr->index_hi) ? "open_above" : "closed");
+    fprintf(run->projection, "%s,", pr->draws == 0 ? "NA" : isinf(pr->index_hi) ? "open_above" : "closed");
     cli_put_number(run->projection, pr->share_crossing);
     fprintf(run->projection, ",%zu,%s\n", pr->draws, projection_basis);
     return EXIT_OK;
@@ -102,7 +109,7 @@ static report_crossing figure_crossing(const prepared_series *ps, const ar1_drif
                                        const ar1_projection *pr, double *ext)
 {
     double t0 = ps->time[0], last = (double)(ps->n - 1);
-    double end = pr->kind == PROJECTION_AHEAD && isfinite(pr->index_hi) ? pr->index : 2.0 * last;
+    double end = pr->kind == PROJECTION_AHEAD ? pr->index : 2.0 * last;
     size_t m = 0;
     for (size_t k = 0; pr->kind != PROJECTION_WITHIN_RECORD && k < EXTENSION_POINTS; k++) {
         double index = last + (end - last) * (double)k / (EXTENSION_POINTS - 1);
@@ -115,14 +122,15 @@ static report_crossing figure_crossing(const prepared_series *ps, const ar1_drif
     report_crossing c = {pr->kind != PROJECTION_NONE, t0 + pr->index * ps->dt,
                          t0 + pr->index_lo * ps->dt,
                          isinf(pr->index_hi) ? INFINITY : t0 + pr->index_hi * ps->dt,
-                         pr->kind == PROJECTION_NONE, m, ext, ext + EXTENSION_POINTS};
+                         pr->kind == PROJECTION_NONE, t0 + 2.0 * last * ps->dt, m, ext,
+                         ext + EXTENSION_POINTS};
     return c;
 }
 
 static void write_json_projection(FILE *fp, const prepared_series *ps, const ar1_projection *pr)
 {
     fprintf(fp, ", \"projection\": {\"basis\": \"%s\", \"status\": \"%s\"", projection_basis,
-            projection_status[pr->kind]);
+            status_name(pr));
     const char *k[] = {"crossing_time", "crossing_lo", "crossing_hi"};
     const double index[] = {pr->index, pr->index_lo, pr->index_hi};
     for (int i = 0; i < 3; i++) {
@@ -151,6 +159,30 @@ static void write_json(recovery_run *run, const prepared_series *ps, const ar1_d
     fputc('}', run->json);
 }
 
+/* After the path rows: the projection (--project), the JSON entry, the figure. */
+static int project_and_draw(const cli_options *opts, recovery_run *run, const prepared_series *ps,
+                            ar1_drift_workspace *ws, const ar1_drift_fit *fit, double p,
+                            const double *path)
+{
+    ar1_projection projected;
+    int rc = run->projection ? write_projection(opts, run, ps, ws, fit, &projected) : EXIT_OK;
+    if (rc != EXIT_OK)
+        return rc;
+    if (run->json)
+        write_json(run, ps, fit, p, run->projection ? &projected : NULL);
+    if (!run->figures)
+        return EXIT_OK;
+    report_crossing crossing = {0};
+    double extension[2 * EXTENSION_POINTS];
+    int drawn = run->projection && projected.draws > 0;
+    if (drawn)
+        crossing = figure_crossing(ps, fit, &projected, extension);
+    report_recovery_data data = {ps->name, ps->time_name, ps->n, ps->time, path,
+                                 path + ps->n, path + 2 * ps->n, fit->t_a1, p,
+                                 drawn ? &crossing : NULL};
+    return cli_figure_draw(run->figures, &report_recovery_figure, &data, "recovery", ps->name);
+}
+
 static int recovery_series(const cli_options *opts, const prepared_series *ps, void *context)
 {
     recovery_run *run = context;
@@ -175,20 +207,7 @@ static int recovery_series(const cli_options *opts, const prepared_series *ps, v
             }
             fputc('\n', run->out);
         }
-        ar1_projection projected;
-        if (run->projection)
-            rc = write_projection(opts, run, ps, ws, &fit, &projected);
-        if (run->json && rc == EXIT_OK)
-            write_json(run, ps, &fit, p, run->projection ? &projected : NULL);
-        report_crossing crossing = {0};
-        double extension[2 * EXTENSION_POINTS];
-        if (run->projection)
-            crossing = figure_crossing(ps, &fit, &projected, extension);
-        report_recovery_data data = {ps->name, ps->time_name, ps->n, ps->time, path,
-                                     path + ps->n, path + 2 * ps->n, fit.t_a1, p,
-                                     run->projection ? &crossing : NULL};
-        if (run->figures && rc == EXIT_OK)
-            rc = cli_figure_draw(run->figures, &report_recovery_figure, &data, "recovery", ps->name);
+        rc = project_and_draw(opts, run, ps, ws, &fit, p, path);
     } else if (rc == EXIT_OK) {
         cli_warning("%s: column '%s': no drifting AR(1) fit (%s); no rows written for it",
                     ps->source, ps->name, slowscan_strerror(st));

@@ -179,7 +179,9 @@ static const char projection_caution[] =
     "the record. It is not a forecast: a slow mode the record is too short to resolve, a\n"
     "trend that bends (near a fold the recovery rate nears zero like a square root, not a line),\n"
     "a transition set off early by noise or by the rate of forcing, or one that comes late,\n"
-    "all make it wrong, and its interval only covers the noise of the fit, not these.\n\n";
+    "all make it wrong, and its interval only covers the noise of the fit, not these: it\n"
+    "is a 95% interval only if the coefficient's trend really is a straight line (in our\n"
+    "tests on series driven toward a fold it held the true crossing in 27 of 40).\n\n";
 
 static void help_recovery(FILE *out)
 {

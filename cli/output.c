@@ -71,21 +71,22 @@ int cli_outputs_commit(cli_outputs *outs)
                       strerror(errno ? errno : EIO));
             rc = EXIT_BAD_INPUT;
         }
-    for (size_t j = 0; j < outs->count; j++) {
-        io_error err = {{0}};
-        if (rc != EXIT_OK) {
-            atomic_abort(&outs->files[j]);
-        } else if (atomic_commit(&outs->files[j], &err) != SLOWSCAN_OK) {
-            cli_error("%s", err.message);
-            rc = EXIT_BAD_INPUT;
-        }
-    }
-    outs->count = 0;
+    /* Figures first: a figure that cannot be put in place then still aborts every table. */
     io_error err = {{0}};
     if (rc == EXIT_OK && outs->figures && report_batch_commit(outs->figures, &err) != SLOWSCAN_OK) {
         cli_error("option --figures: %s", err.message);
         rc = EXIT_BAD_INPUT;
     }
+    for (size_t j = 0; j < outs->count; j++) {
+        io_error commit_err = {{0}};
+        if (rc != EXIT_OK) {
+            atomic_abort(&outs->files[j]);
+        } else if (atomic_commit(&outs->files[j], &commit_err) != SLOWSCAN_OK) {
+            cli_error("%s", commit_err.message);
+            rc = EXIT_BAD_INPUT;
+        }
+    }
+    outs->count = 0;
     report_batch_free(outs->figures);
     outs->figures = NULL;
     return rc;

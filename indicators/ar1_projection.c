@@ -13,13 +13,14 @@
 #include <stdlib.h>
 
 /* Sample index (0 = first sample) where phi = a0 + a1 s reaches 1 going up, s = i/(n-1) - 1/2;
- * +INFINITY when phi does not rise (a1 <= 0) or reaches 1 beyond the horizon. */
+ * +INFINITY when phi does not rise (a1 <= 0) or reaches 1 beyond the horizon; 0 when phi is
+ * at or above 1 from the first sample on (nothing to extrapolate: already there). */
 static double crossing_index(double a0, double a1, size_t n, double horizon)
 {
     if (!(a1 > 0))
         return INFINITY;
     double index = ((1.0 - a0) / a1 + 0.5) * (double)(n - 1);
-    return index <= horizon ? index : INFINITY;
+    return index <= horizon ? fmax(index, 0.0) : INFINITY;
 }
 
 /* Rows of P = (X'WX)^-1 X'W, stored row k = pair k (3 entries), and the standardised,

@@ -21,6 +21,8 @@ static double time_end(const report_recovery_data *d)
     const report_crossing *c = d->crossing;
     for (size_t i = 0; c && i < c->path_n; i++)
         end = fmax(end, c->path_time[i]);
+    if (c && c->has_crossing && isinf(c->hi) && isfinite(c->horizon))
+        end = fmax(end, c->horizon);
     if (c && c->has_crossing)
         for (int k = 0; k < 3; k++) {
             double t = k == 0 ? c->time : k == 1 ? c->lo : c->hi;

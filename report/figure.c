@@ -250,6 +250,15 @@ int report_batch_draw(report_batch *b, const report_figure_type *type, const voi
                       const char *prefix, const char *name, io_error *err)
 {
     char *final = unique_path(b, prefix, name);
+    struct stat there;
+    if (final && lstat(final, &there) == 0 && !S_ISREG(there.st_mode)) {
+        /* Renaming over a directory, a link or a device would fail (or replace it) only at
+         * the commit, after other outputs are in place: refuse while nothing is. */
+        int st = fail(err, SLOWSCAN_EIO, "cannot write figure %s: %s", final,
+                      "it exists and is not a regular file");
+        free(final);
+        return st;
+    }
     char *temp = final ? atomic_temp_beside(final) : NULL;
     if (!temp || add_entry(b, final, temp) != SLOWSCAN_OK) {
         int e = errno;

@@ -247,6 +247,23 @@ static void test_hard_series(void)
     }
     compare_series("ramp", ramp, NULL, n, 400, 0.8, 1e6, 1);
     compare_series("collapse", quiet, NULL, n, 300, 0.8, 1e6, 1);
+    /* One sample 1e8 times the noise: the windows it enters and leaves must not lose the
+     * pairs' sums to cancellation (a review found ar1 off by 1% on the gap-free path). */
+    double *spike = ar1_series(rng, n, 0.5, 1.0, 0.0), *ar1 = malloc(n * sizeof(double));
+    spike[1000] = 1e8;
+    indicator_kind kind = INDICATOR_AR1;
+    rolling_spec spec = {50, 0.8, 1.0, RECOVERY_LOG_AR1, 0, 0, 0, NULL};
+    double worst = 0;
+    if (rolling_compute(&spec, spike, NULL, n, &kind, 1, &ar1) == SLOWSCAN_OK)
+        for (size_t i = 990; i < 1060; i++) {
+            double c0, c1, c00, c01, c11, ssq; /* reference library: GSL gsl_fit_linear */
+            const double *w = spike + i + 1 - 50;
+            gsl_fit_linear(w, 1, w + 1, 1, 49, &c0, &c1, &c00, &c01, &c11, &ssq);
+            worst = fmax(worst, fabs(ar1[i] - c1) / fabs(c1));
+        }
+    CHECK(worst < 1e-6, "ar1 around a 1e8 spike: worst relative error %.3g", worst);
+    free(spike);
+    free(ar1);
     free(ramp);
     free(quiet);
     check_rng_free(rng);

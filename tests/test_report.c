@@ -10,6 +10,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/stat.h>
 #include <unistd.h>
 
 static char *run_err;
@@ -337,6 +338,25 @@ static void test_failed_run_leaves_no_figure(void)
         CHECK(rc_ == 1 && strstr(run_err, "--block-length"), "the short input fails: %s", run_err);
     }
     CHECK(!check_file_exists(dir), "no figure directory left after the failed run");
+    /* A figure's name taken by a directory: refused while drawing, before anything is in
+     * place — neither the summary nor the other figures are left (found in review). */
+    char taken[600], out[600];
+    snprintf(dir, sizeof dir, "%s", check_tmp_path("fig-taken"));
+    snprintf(taken, sizeof taken, "%s/screen-x.png", dir);
+    snprintf(out, sizeof out, "%s", check_tmp_path("fig-taken-summary.csv"));
+    mkdir(dir, 0755);
+    mkdir(taken, 0755);
+    char copy[600];
+    snprintf(copy, sizeof copy, "%s", check_tmp_path("fig-good-copy.csv"));
+    char *text = check_read_file(good);
+    check_write_file(copy, text ? text : "");
+    free(text);
+    snprintf(args, sizeof args, "screen --surrogates 19 --figures %s -o %s %s %s", dir, out, good,
+             copy);
+    CHECK(slowscan(args) == 1 && strstr(run_err, "not a regular file"), "figure name taken: %s",
+          run_err ? run_err : "");
+    CHECK(!check_file_exists(out) && files_in(dir, ".png") == 1, "nothing left: summary %d, pngs %d",
+          check_file_exists(out), files_in(dir, ".png"));
 }
 
 /* The module itself: safe names, unique names, and the recovery figure's extrapolation. */
@@ -366,10 +386,10 @@ static void test_module(void)
         lo[i] = lambda[i] - 0.02;
         hi[i] = lambda[i] + 0.02;
     }
-    report_crossing cross = {1, 133.0, 120.0, 150.0, 0, 0, NULL, NULL};
+    report_crossing cross = {1, 133.0, 120.0, 150.0, 0, NAN, 0, NULL, NULL};
     report_recovery_data data = {"a b", "t", N, t, lambda, lo, hi, 4.0, 0.01, &cross};
     int ok = batch && report_batch_draw(batch, &report_recovery_figure, &data, "recovery", "a b", &err) == SLOWSCAN_OK;
-    report_crossing none = {0, NAN, NAN, NAN, 1, 0, NULL, NULL};
+    report_crossing none = {0, NAN, NAN, NAN, 1, NAN, 0, NULL, NULL};
     data.crossing = &none;
     ok = ok && report_batch_draw(batch, &report_recovery_figure, &data, "recovery", "a_b", &err) == SLOWSCAN_OK;
     CHECK(ok && report_batch_count(batch) == 2, "two recovery figures drawn: %s", err.message);

@@ -155,6 +155,8 @@ typedef struct {
     int has_crossing;
     double time, lo, hi;  /* hi = +INFINITY: the interval is open above (runs off the panel) */
     int beyond_horizon; /* no crossing within 2x the record */
+    double horizon;     /* end of the projection's reach (the panel extends to it when the
+                           interval is open above) */
     size_t path_n;      /* the fitted path continued past the record (drawn dashed), or 0 */
     const double *path_time, *path_lambda;
 } report_crossing;
