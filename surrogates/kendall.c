@@ -278,10 +278,12 @@ static int64_t insertion_count(double *y, size_t lo, size_t hi)
 static int64_t run8_count_sort(double *y)
 {
     double v0 = y[0], v1 = y[1], v2 = y[2], v3 = y[3], v4 = y[4], v5 = y[5], v6 = y[6], v7 = y[7];
-    int64_t swaps = 0;
-    for (int p = 0; p < RUN; p++) /* y[p] > y[q] for q > p: 28 independent comparisons */
-        for (int q = p + 1; q < RUN; q++)
-            swaps += y[p] > y[q];
+    /* y[p] > y[q] for q > p: 28 independent comparisons, from registers. */
+    int64_t swaps = (v0 > v1) + (v0 > v2) + (v0 > v3) + (v0 > v4) + (v0 > v5) + (v0 > v6) + (v0 > v7);
+    swaps += (v1 > v2) + (v1 > v3) + (v1 > v4) + (v1 > v5) + (v1 > v6) + (v1 > v7);
+    swaps += (v2 > v3) + (v2 > v4) + (v2 > v5) + (v2 > v6) + (v2 > v7);
+    swaps += (v3 > v4) + (v3 > v5) + (v3 > v6) + (v3 > v7);
+    swaps += (v4 > v5) + (v4 > v6) + (v4 > v7) + (v5 > v6) + (v5 > v7) + (v6 > v7);
     EXCHANGE(v0, v1); EXCHANGE(v2, v3); EXCHANGE(v4, v5); EXCHANGE(v6, v7); EXCHANGE(v0, v2);
     EXCHANGE(v1, v3); EXCHANGE(v4, v6); EXCHANGE(v5, v7); EXCHANGE(v1, v2); EXCHANGE(v5, v6);
     EXCHANGE(v0, v4); EXCHANGE(v3, v7); EXCHANGE(v1, v5); EXCHANGE(v2, v6); EXCHANGE(v1, v4);
@@ -327,10 +329,10 @@ static int x_strictly_increasing(const double *x, size_t n)
 {
     if (n == 0 || !isfinite(x[0]) || !isfinite(x[n - 1]))
         return 0;
-    int increasing = 1;
     for (size_t i = 1; i < n; i++)
-        increasing &= x[i] > x[i - 1];
-    return increasing;
+        if (!(x[i] > x[i - 1])) /* predictable: time never turns back */
+            return 0;
+    return 1;
 }
 
 int kendall_tau_b(kendall_workspace *ws, const double *x, const double *y, size_t n,

@@ -20,9 +20,20 @@ int surrogate_phase_prepare(surrogate_source *s)
     return SLOWSCAN_OK;
 }
 
+/* 2 U - 1 for U = gsl_rng_uniform(rng). For mt19937 (every stream of ours) U is k / 2^32 for
+ * the next 32-bit output k, so 2U - 1 = (k - 2^31) / 2^31 exactly, in both forms; taking k
+ * straight from the generator skips a division and a call per coordinate, the same numbers. */
+static inline double symmetric_uniform(gsl_rng *rng, int mt19937)
+{
+    if (mt19937)
+        return ((double)rng->type->get(rng->state) - 2147483648.0) * (1.0 / 2147483648.0);
+    return 2.0 * gsl_rng_uniform(rng) - 1.0;
+}
+
 void surrogate_random_phases(surrogate_source *s, const double *amp, double dc, double nyquist,
                              gsl_rng *rng)
 {
+    int mt19937 = rng->type == gsl_rng_mt19937;
     size_t n = s->n, top = (n + 1) / 2; /* frequencies 1 .. ceil(n/2)-1 get random phases */
     s->spectrum[0][0] = dc;
     s->spectrum[0][1] = 0;
@@ -31,8 +42,8 @@ void surrogate_random_phases(surrogate_source *s, const double *amp, double dc, 
          * direction: exactly uniform phases without a sine and cosine per frequency. */
         double u, v, r2;
         do {
-            u = 2.0 * gsl_rng_uniform(rng) - 1.0;
-            v = 2.0 * gsl_rng_uniform(rng) - 1.0;
+            u = symmetric_uniform(rng, mt19937);
+            v = symmetric_uniform(rng, mt19937);
             r2 = u * u + v * v;
         } while (r2 > 1.0 || r2 < 1e-12);
         double scale = amp[k] / sqrt(r2);
