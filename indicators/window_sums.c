@@ -53,6 +53,8 @@ void wsums_init(window_sums *s, const double *x, const double *level, size_t W, 
     s->sl = 0.0;
     s->inv_n = s->inv_np = 0.0;
     s->inv_n_of = s->inv_np_of = 0;
+    s->m2 = s->offset = 0.0;
+    s->spread = 0;
 }
 
 /* sign = +1 adds the sample, -1 removes it. */
@@ -155,13 +157,13 @@ void wsums_push(window_sums *s, size_t i)
 {
     if (s->complete && i >= s->W) {
         slide_complete(s, i);
-        return;
+    } else {
+        if (i >= s->W)
+            drop(s, i - s->W);
+        add(s, i);
+        s->end = i;
     }
-    if (i >= s->W)
-        drop(s, i - s->W);
-    add(s, i);
-    s->end = i;
-    wsums_reciprocals(s);
+    wsums_derive(s);
 }
 
 /* Mean of the finite values of v[lo..hi]; `count` receives their number (mean 0 if none). */
@@ -201,7 +203,7 @@ static void refresh_complete(window_sums *s, size_t lo, size_t hi)
     s->ph = ph, s->pt = pt, s->phh = phh, s->ptt = ptt, s->pht = pht, s->np = hi - lo;
     s->peak = s2;
     s->refreshed_at = hi;
-    wsums_reciprocals(s);
+    wsums_derive(s);
 }
 
 void wsums_refresh(window_sums *s)
@@ -237,7 +239,7 @@ void wsums_refresh(window_sums *s)
                 s->sl += s->level[j] - s->cl;
     }
     s->refreshed_at = hi;
-    wsums_reciprocals(s);
+    wsums_derive(s);
 }
 
 void wsums_maintain(window_sums *s)

@@ -33,6 +33,9 @@ typedef struct {
                                   below run every step, and a division there would cost more
                                   than the whole update */
     size_t inv_n_of, inv_np_of; /* the counts those reciprocals belong to */
+    double m2;                 /* derived, kept by push and refresh: sum (x - mean)^2 */
+    double offset;             /* window mean minus c */
+    int spread;                /* m2 resolvable: n >= 2 and above round-off */
     double cl;                 /* shift of the level sum */
     size_t nl;                 /* present level samples */
     double sl;                 /* sum (level - cl) over them */
@@ -77,23 +80,30 @@ static inline double wsums_spread_floor(double count, double c, double raw2)
 /* Window mean minus c. */
 static inline double wsums_offset(const window_sums *s)
 {
-    return s->n ? s->s1 * s->inv_n : 0.0;
+    return s->offset;
 }
 
-/* sum (x - mean)^2 over the present samples; a tiny negative value is round-off: 0. */
+/* sum (x - mean)^2 over the present samples (a tiny negative value is round-off: 0). */
 static inline double wsums_central2(const window_sums *s)
 {
-    if (s->n == 0)
-        return 0.0;
-    double v = s->s2 - s->s1 * (s->s1 * s->inv_n);
-    return v > 0.0 ? v : 0.0;
+    return s->m2;
 }
 
 /* Non-zero when the spread is resolvable: n >= 2 and the central sum above the floor. */
 static inline int wsums_has_spread(const window_sums *s)
 {
-    return s->n >= 2 &&
-           wsums_central2(s) > wsums_spread_floor((double)s->n, s->c, s->s2);
+    return s->spread;
+}
+
+/* Brings the reciprocals and the derived m2, offset and spread up to date with the sums:
+ * once per step, shared by the re-centring policy and every indicator of the step. */
+static inline void wsums_derive(window_sums *s)
+{
+    wsums_reciprocals(s);
+    s->offset = s->n ? s->s1 * s->inv_n : 0.0;
+    double v = s->n ? s->s2 - s->s1 * (s->s1 * s->inv_n) : 0.0;
+    s->m2 = v > 0.0 ? v : 0.0;
+    s->spread = s->n >= 2 && s->m2 > wsums_spread_floor((double)s->n, s->c, s->s2);
 }
 
 /* Pairs: sum (h - hbar)^2 (never negative) and sum (h - hbar)(tl - tlbar). */
