@@ -201,10 +201,25 @@ int cli_for_each_series(const cli_options *opts, const cli_inputs *in, series_vi
     return for_each_table_series(opts, in, prepare_and_visit, &pv);
 }
 
+/* The outputs of the running command, for the exit handler below: PLplot ends the process on
+ * a fatal error (report/figure.c), and the temporary files of the tables must not outlive it. */
+static cli_outputs *live_outputs;
+
+static void abort_live_outputs(void)
+{
+    if (live_outputs)
+        cli_outputs_abort(live_outputs);
+    live_outputs = NULL;
+}
+
 int cli_run_series_command(const cli_options *opts, const series_command *cmd)
 {
     cli_inputs in;
     cli_outputs outs = {0};
+    static int registered;
+    if (!registered)
+        registered = atexit(abort_live_outputs) == 0;
+    live_outputs = &outs;
     int rc = cli_inputs_load(opts, &in);
     if (rc == EXIT_OK && cmd->open)
         rc = cmd->open(opts, &outs, cmd->context);
@@ -219,6 +234,7 @@ int cli_run_series_command(const cli_options *opts, const series_command *cmd)
         rc = cli_outputs_commit(&outs);
     else
         cli_outputs_abort(&outs);
+    live_outputs = NULL;
     cli_inputs_free(&in);
     return rc;
 }

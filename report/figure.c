@@ -95,15 +95,18 @@ static void set_palette(void)
 }
 
 /* PLplot ends the process on a fatal error (it has no other way to report one); the handler
- * at least removes the half-written figure. PLplot's callback takes no context, hence the
- * one static: the temporary file of the figure being drawn. */
-static const char *drawing_now;
+ * removes the temporary files of every figure of the batch not yet in place, the one being
+ * drawn among them (the command's exit handler removes those of its tables). PLplot's
+ * callback takes no context, hence the one static: the batch being drawn into. */
+static report_batch *drawing_batch;
+
+static void remove_uncommitted(report_batch *b);
 
 static int on_plplot_exit(PLCHAR_VECTOR message)
 {
     (void)message;
-    if (drawing_now)
-        unlink(drawing_now);
+    if (drawing_batch)
+        remove_uncommitted(drawing_batch);
     return 2; /* internal failure */
 }
 
@@ -273,11 +276,11 @@ int report_batch_draw(report_batch *b, const report_figure_type *type, const voi
     report_figure fig;
     memset(&fig, 0, sizeof fig);
     type->layout(data, &fig.layout);
-    drawing_now = temp;
+    drawing_batch = b;
     open_stream(&fig.layout, b->format, temp);
     int st = type->draw(&fig, data);
     plend1();
-    drawing_now = NULL;
+    drawing_batch = NULL;
     struct stat s;
     if (st == SLOWSCAN_OK && (stat(temp, &s) != 0 || s.st_size == 0))
         st = SLOWSCAN_EIO; /* the driver could not write (a full disk) */
@@ -299,13 +302,19 @@ int report_batch_commit(report_batch *b, io_error *err)
     return SLOWSCAN_OK;
 }
 
+static void remove_uncommitted(report_batch *b)
+{
+    for (size_t i = 0; i < b->count; i++)
+        if (b->entries[i].temp)
+            unlink(b->entries[i].temp);
+}
+
 void report_batch_free(report_batch *b)
 {
     if (!b)
         return;
+    remove_uncommitted(b);
     for (size_t i = 0; i < b->count; i++) {
-        if (b->entries[i].temp)
-            unlink(b->entries[i].temp);
         free(b->entries[i].temp);
         free(b->entries[i].final);
     }
