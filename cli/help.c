@@ -9,7 +9,7 @@ static const char overview[] =
     "usage: slowscan COMMAND [options] FILE...\n"
     "\n"
     "commands:\n"
-    "  screen      the main job: detrend, rolling indicators, Kendall trend per series\n"
+    "  screen      the main job: indicators and their trends, surrogate p, FDR q, flags\n"
     "  indicators  rolling-window indicators per series (series,time,indicator,value)\n"
     "  detrend     trend and residual per series (series,time,value,trend,residual)\n"
     "  robustness  the trend test over a grid of windows x bandwidths\n"
