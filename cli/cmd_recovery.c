@@ -28,6 +28,12 @@ static const char *const projection_status[] = {"ahead", "within_record", "none_
  * draw, and must not read as "no crossing". */
 static const char not_computed[] = "not_computed";
 
+/* Time of a fractional sample index (the projection's positions; infinite stays infinite). */
+static double index_time(const prepared_series *ps, double index)
+{
+    return ps->time[0] + index * ps->dt;
+}
+
 static const char *status_name(const ar1_projection *pr)
 {
     return pr->draws == 0 ? not_computed : projection_status[pr->kind];
@@ -91,7 +97,7 @@ static int write_projection(const cli_options *opts, recovery_run *run, const pr
     fprintf(run->projection, ",%s,", status_name(pr));
     const double index[] = {pr->index, pr->index_lo, pr->index_hi};
     for (int k = 0; k < 3; k++) {
-        cli_put_number(run->projection, ps->time[0] + index[k] * ps->dt);
+        cli_put_number(run->projection, index_time(ps, index[k]));
         fputc(',', run->projection);
     }
     fprintf(run->projection, "%s,", pr->draws == 0 ? "NA" : isinf(pr->index_hi) ? "open_above" : "closed");
@@ -108,7 +114,7 @@ enum { EXTENSION_POINTS = 64 };
 static report_crossing figure_crossing(const prepared_series *ps, const ar1_drift_fit *fit,
                                        const ar1_projection *pr, double *ext)
 {
-    double t0 = ps->time[0], last = (double)(ps->n - 1);
+    double last = (double)(ps->n - 1);
     double end = pr->kind == PROJECTION_AHEAD ? pr->index : 2.0 * last;
     size_t m = 0;
     for (size_t k = 0; pr->kind != PROJECTION_WITHIN_RECORD && k < EXTENSION_POINTS; k++) {
@@ -116,13 +122,12 @@ static report_crossing figure_crossing(const prepared_series *ps, const ar1_drif
         double phi = fit->a0 + fit->a1 * (index / last - 0.5);
         if (!(phi > 0))
             break;
-        ext[m] = t0 + index * ps->dt;
+        ext[m] = index_time(ps, index);
         ext[EXTENSION_POINTS + m++] = fmin(log(phi) / ps->dt, 0.0);
     }
-    report_crossing c = {pr->kind != PROJECTION_NONE, t0 + pr->index * ps->dt,
-                         t0 + pr->index_lo * ps->dt,
-                         isinf(pr->index_hi) ? INFINITY : t0 + pr->index_hi * ps->dt,
-                         pr->kind == PROJECTION_NONE, t0 + 2.0 * last * ps->dt, m, ext,
+    report_crossing c = {pr->kind != PROJECTION_NONE, index_time(ps, pr->index),
+                         index_time(ps, pr->index_lo), index_time(ps, pr->index_hi),
+                         pr->kind == PROJECTION_NONE, index_time(ps, 2.0 * last), m, ext,
                          ext + EXTENSION_POINTS};
     return c;
 }
@@ -135,7 +140,7 @@ static void write_json_projection(FILE *fp, const prepared_series *ps, const ar1
     const double index[] = {pr->index, pr->index_lo, pr->index_hi};
     for (int i = 0; i < 3; i++) {
         fprintf(fp, ", \"%s\": ", k[i]);
-        cli_json_number(fp, ps->time[0] + index[i] * ps->dt);
+        cli_json_number(fp, index_time(ps, index[i]));
     }
     fprintf(fp, ", \"open_above\": %s, \"share_crossing\": ", isinf(pr->index_hi) ? "true" : "false");
     cli_json_number(fp, pr->share_crossing);

@@ -23,8 +23,10 @@ static double crossing_index(double a0, double a1, size_t n, double horizon)
     return index <= horizon ? fmax(index, 0.0) : INFINITY;
 }
 
-/* Rows of P = (X'WX)^-1 X'W, stored row k = pair k (3 entries), and the standardised,
- * centred, degrees-of-freedom-inflated residuals u_k = r_k sqrt(w_k). */
+/* The a0 and a1 rows of P = (X'WX)^-1 X'W (the crossing needs no intercept), stored by pair
+ * k (2 entries) and scaled by 1/sqrt(w_k) so that a draw multiplies them by the drawn
+ * standardised residual directly; and those residuals, u_k = r_k sqrt(w_k), centred and
+ * inflated for the degrees of freedom. */
 static void bootstrap_design(const ar1_drift_workspace *ws, const ar1_drift_fit *fit, double *P,
                              double *u)
 {
@@ -38,11 +40,11 @@ static void bootstrap_design(const ar1_drift_workspace *ws, const ar1_drift_fit 
         double w = ws->noise_trend ? gsl_vector_get(ws->weight, k) : 1.0, fitted = 0;
         for (size_t j = 0; j < 3; j++)
             fitted += gsl_matrix_get(ws->design, k, j) * b[j];
-        for (size_t i = 0; i < 3; i++) {
+        for (size_t i = 0; i < 2; i++) {
             double p = 0;
             for (size_t j = 0; j < 3; j++)
                 p += inverse[i][j] * gsl_matrix_get(ws->design, k, j);
-            P[3 * k + i] = p * w;
+            P[2 * k + i] = p * sqrt(w); /* w / sqrt(w): the weight, and undoing u's scaling */
         }
         u[k] = (gsl_vector_get(ws->response, k) - fitted) * sqrt(w);
         mean += u[k];
@@ -67,18 +69,16 @@ static double percentile_sorted(const double *sorted, size_t count, double level
     return sorted[lower] + frac * (sorted[lower + 1] - sorted[lower]);
 }
 
-static void draw_crossings(const ar1_drift_workspace *ws, const ar1_drift_fit *fit, size_t n,
-                           double horizon, const double *P, const double *u, size_t draws,
-                           gsl_rng *rng, double *crossing)
+static void draw_crossings(const ar1_drift_fit *fit, size_t n, double horizon, const double *P,
+                           const double *u, size_t draws, gsl_rng *rng, double *crossing)
 {
     size_t m = fit->pairs;
     for (size_t d = 0; d < draws; d++) {
-        double delta[3] = {0, 0, 0};
+        double delta[2] = {0, 0};
         for (size_t k = 0; k < m; k++) {
-            double w = ws->noise_trend ? gsl_vector_get(ws->weight, k) : 1.0;
-            double e = u[gsl_rng_uniform_int(rng, m)] / sqrt(w);
-            for (size_t i = 0; i < 3; i++)
-                delta[i] += P[3 * k + i] * e;
+            double e = u[gsl_rng_uniform_int(rng, m)];
+            delta[0] += P[2 * k] * e;
+            delta[1] += P[2 * k + 1] * e;
         }
         crossing[d] = crossing_index(fit->a0 + delta[0], fit->a1 + delta[1], n, horizon);
     }
@@ -90,14 +90,14 @@ int ar1_drift_project(ar1_drift_workspace *ws, const ar1_drift_fit *fit, size_t 
     if (draws < 1 || fit->pairs < 8 || n < 2 || !(fit->sigma2 > 0))
         return SLOWSCAN_EINVAL;
     size_t m = fit->pairs;
-    double *P = malloc(3 * m * sizeof *P), *u = malloc(m * sizeof *u);
+    double *P = malloc(2 * m * sizeof *P), *u = malloc(m * sizeof *u);
     double *crossing = malloc(draws * sizeof *crossing);
     if (!P || !u || !crossing) {
         free(P), free(u), free(crossing);
         return SLOWSCAN_ENOMEM;
     }
     bootstrap_design(ws, fit, P, u);
-    draw_crossings(ws, fit, n, horizon, P, u, draws, rng, crossing);
+    draw_crossings(fit, n, horizon, P, u, draws, rng, crossing);
     gsl_sort(crossing, 1, draws);
     size_t finite = 0;
     while (finite < draws && isfinite(crossing[finite]))

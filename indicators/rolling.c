@@ -162,16 +162,6 @@ static size_t coverage_needed(const rolling_spec *spec)
     return need < 1.0 ? 1 : (size_t)need;
 }
 
-/* Whether no sample is missing (surrogates of a gap-free residual never are): the
- * accumulator then takes its fast path. */
-static int all_finite(const double *x, size_t n)
-{
-    int finite = 1;
-    for (size_t i = 0; i < n; i++)
-        finite &= isfinite(x[i]);
-    return finite;
-}
-
 /* The moment indicators among kinds at every window; the per-window ones are left alone. */
 static void moment_pass(const rolling_spec *spec, const double *residual, const double *level,
                         size_t n, const indicator_kind *kinds, size_t nkinds, double *const *out)
@@ -190,8 +180,7 @@ static void moment_pass(const rolling_spec *spec, const double *residual, const 
         return;
     size_t W = spec->window, need = coverage_needed(spec);
     window_sums s;
-    wsums_init(&s, residual, uses_level ? level : NULL, W, high, pairs);
-    s.complete = !uses_level && all_finite(residual, n);
+    wsums_init(&s, residual, uses_level ? level : NULL, n, W, high, pairs);
     for (size_t i = 0; i + 1 < W; i++)
         for (size_t m = 0; m < count; m++)
             out[moments[m]][i] = NAN;

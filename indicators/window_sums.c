@@ -34,15 +34,24 @@ static void clear_pairs(window_sums *s)
     s->ph = s->pt = s->phh = s->ptt = s->pht = 0.0;
 }
 
-void wsums_init(window_sums *s, const double *x, const double *level, size_t W, int keep_high,
-                int keep_pairs)
+/* Whether no sample is missing (surrogates of a gap-free residual never are). */
+static int all_finite(const double *x, size_t n)
+{
+    int finite = 1;
+    for (size_t i = 0; i < n; i++)
+        finite &= isfinite(x[i]);
+    return finite;
+}
+
+void wsums_init(window_sums *s, const double *x, const double *level, size_t n, size_t W,
+                int keep_high, int keep_pairs)
 {
     s->x = x;
     s->level = level;
     s->W = W;
     s->keep_high = keep_high;
     s->keep_pairs = keep_pairs;
-    s->complete = 0;
+    s->complete = !level && all_finite(x, n);
     s->end = 0;
     s->refreshed_at = 0;
     s->c = 0.0;
@@ -208,7 +217,7 @@ static void refresh_complete(window_sums *s, size_t lo, size_t hi)
 
 void wsums_refresh(window_sums *s)
 {
-    if (s->complete && s->end + 1 >= s->W && !s->level) {
+    if (s->complete && s->end + 1 >= s->W) {
         refresh_complete(s, s->end + 1 - s->W, s->end);
         return;
     }

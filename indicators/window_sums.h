@@ -18,8 +18,8 @@ typedef struct {
     size_t W;
     int keep_high;       /* keep orders 3 and 4 (skewness, kurtosis) */
     int keep_pairs;      /* keep the pair sums (lag1, ar1, recovery) */
-    int complete;        /* set by the caller: no sample is missing and there is no level,
-                            so every window is full and push/refresh take their fast paths */
+    int complete;        /* no sample of x is missing and there is no level: every window
+                            is full, and push/refresh take their fast paths */
     size_t end;          /* index of the newest sample in the window */
     size_t refreshed_at; /* value of `end` at the last exact recomputation */
 
@@ -41,9 +41,9 @@ typedef struct {
     double sl;                 /* sum (level - cl) over them */
 } window_sums;
 
-/* An empty accumulator over x (and level, may be NULL) for windows of W samples. */
-void wsums_init(window_sums *s, const double *x, const double *level, size_t W, int keep_high,
-                int keep_pairs);
+/* An empty accumulator over x[n] (and level, may be NULL) for windows of W samples. */
+void wsums_init(window_sums *s, const double *x, const double *level, size_t n, size_t W,
+                int keep_high, int keep_pairs);
 /* Slides the window so that it ends at sample i (called for i = 0, 1, 2, ... in order):
  * adds sample i and the pair (i-1, i), drops sample i-W and the pair (i-W, i-W+1). */
 void wsums_push(window_sums *s, size_t i);

@@ -99,26 +99,20 @@ static void insertion_pairs(double *x, double *y, size_t lo, size_t hi)
     }
 }
 
-/* Whether the pairs are already in (x, y) order — the usual case for a trend statistic, where
- * x is time, and the sort is then skipped: 0 not in order, 1 in order, 2 in order with x
- * strictly increasing (no ties in x, so none in both). */
+/* Whether the pairs are already in (x, y) order; the sort is then skipped. */
 static int pairs_sorted(const double *x, const double *y, size_t m)
 {
-    int strict = 1;
-    for (size_t i = 1; i < m; i++) {
+    for (size_t i = 1; i < m; i++)
         if (pair_before(x[i], y[i], x[i - 1], y[i - 1]))
             return 0;
-        strict &= x[i] > x[i - 1];
-    }
-    return 1 + strict;
+    return 1;
 }
 
-/* Sorts the pairs by x, then y; returns non-zero when x turned out strictly increasing. */
-static int sort_pairs(kendall_workspace *ws, size_t m)
+/* Sorts the pairs by x, then y. */
+static void sort_pairs(kendall_workspace *ws, size_t m)
 {
-    int order = pairs_sorted(ws->x, ws->y, m);
-    if (order)
-        return order == 2;
+    if (pairs_sorted(ws->x, ws->y, m))
+        return;
     for (size_t lo = 0; lo < m; lo += RUN)
         insertion_pairs(ws->x, ws->y, lo, RUN < m - lo ? lo + RUN : m);
     double *sx = ws->x, *sy = ws->y, *dx = ws->tx, *dy = ws->ty, *t;
@@ -135,7 +129,6 @@ static int sort_pairs(kendall_workspace *ws, size_t m)
         memcpy(ws->x, sx, m * sizeof(double));
         memcpy(ws->y, sy, m * sizeof(double));
     }
-    return 0;
 }
 
 /* A comparison whose outcome is a coin toss: tells GCC to select with conditional moves
@@ -363,10 +356,11 @@ int kendall_tau_b(kendall_workspace *ws, const double *x, const double *y, size_
         *used = m;
     if (m < 2)
         return SLOWSCAN_ESHORT;
-    int distinct_x = time_like || sort_pairs(ws, m);
+    if (!time_like)
+        sort_pairs(ws, m);
     int64_t n0 = (int64_t)m * (int64_t)(m - 1) / 2;
-    int64_t n1 = distinct_x ? 0 : tied_pairs(ws->x, NULL, m);
-    int64_t n3 = distinct_x ? 0 : tied_pairs(ws->x, ws->y, m);
+    int64_t n1 = time_like ? 0 : tied_pairs(ws->x, NULL, m);
+    int64_t n3 = time_like ? 0 : tied_pairs(ws->x, ws->y, m);
     int64_t swaps = sort_count_swaps(ws, m);
     int64_t n2 = tied_pairs(ws->y, NULL, m);
     if (n1 == n0 || n2 == n0)
