@@ -241,24 +241,19 @@ static void test_robustness_and_recovery_figures(void)
     expect_panels_drawn(png, &layout, one, 1, 500);
 }
 
-/* 200 series of 120 samples (invented noise, for scale only): every figure is made. */
+/* Noise whose amplitude grows in every fourth series (invented, for scale only). */
+static double scale_sample(check_rng *rng, size_t k, size_t i, size_t n, double *state)
+{
+    (void)n, (void)state;
+    return check_rng_gaussian(rng) * (1 + (k % 4 == 0) * (double)i / 40.0);
+}
+
+/* 200 series of 120 samples: every figure is made. */
 static void test_many_series(void)
 {
     char dir[512], args[2048];
     const char *csv = check_tmp_path("fig-200.csv");
-    check_rng *rng = check_rng_alloc(11);
-    FILE *f = fopen(csv, "w");
-    fputs("t", f);
-    for (int s = 0; s < 200; s++)
-        fprintf(f, ",s%03d", s);
-    for (int i = 0; i < 120; i++) {
-        fprintf(f, "\n%d", i);
-        for (int s = 0; s < 200; s++)
-            fprintf(f, ",%.6f", check_rng_gaussian(rng) * (1 + (s % 4 == 0) * i / 40.0));
-    }
-    fputc('\n', f);
-    fclose(f);
-    check_rng_free(rng);
+    check_write_series_csv(csv, 200, 120, scale_sample, 11);
     snprintf(dir, sizeof dir, "%s", check_tmp_path("fig-200"));
     snprintf(args, sizeof args, "screen --surrogates 19 --indicators variance --figures %s "
              "--figure-format svg -o /dev/null %s", dir, csv);
