@@ -24,6 +24,8 @@ typedef struct {
 
 /* A list of lengths for robustness grids: "A:B:STEP" or "A,B,C" (all in % or all in time units). */
 enum { CLI_MAX_GRID = 64 };
+/* Detrending methods of one robustness grid (--detrends). */
+enum { CLI_MAX_DETRENDS = 8 };
 
 typedef struct {
     const char *command;
@@ -64,6 +66,9 @@ typedef struct {
     cli_length windows[CLI_MAX_GRID], bandwidths[CLI_MAX_GRID];
     size_t nwindows, nbandwidths;
     char grid_text[2][CLI_MAX_GRID][32];
+    detrend_spec detrends[CLI_MAX_DETRENDS]; /* --detrends; none given: the single --detrend */
+    char detrend_labels[CLI_MAX_DETRENDS][32]; /* each method as written, for outputs */
+    size_t ndetrends;
     const char *figures_dir;          /* --figures DIR, NULL: no figures */
     const char *figure_format_text;   /* --figure-format as given, NULL: not given */
     report_format figure_format;      /* png unless --figure-format says otherwise */
@@ -225,6 +230,9 @@ typedef struct {
 } cli_null_task;
 /* ws[0..threads) are workspaces of the series length, one per thread. */
 int cli_null_parallel(cli_null_task *task, null_trend_workspace *const *ws, size_t threads);
+
+/* --detrends LIST (cmd_robustness.c): comma-separated methods as --detrend takes them. */
+int cli_set_detrends(cli_options *opts, const char *name, const char *value);
 
 /* Commands. */
 int cmd_detrend(const cli_options *opts);

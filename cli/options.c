@@ -184,10 +184,10 @@ static int set_indicators(cli_options *o, const char *n, const char *v)
     for (char *save = NULL, *tok = strtok_r(buf, ",", &save); tok; tok = strtok_r(NULL, ",", &save)) {
         indicator_kind kind;
         if (strcmp(tok, "recovery_trend") == 0) {
-            /* Not a rolling indicator but a test of the whole residual: screen only. */
-            if (strcmp(o->command, "screen") != 0) {
-                cli_error("option %s: recovery_trend is a test of screen, not a rolling indicator "
-                          "(the 'recovery' command gives its path)", n);
+            /* Not a rolling indicator but a test of the whole residual: screen and robustness. */
+            if (strcmp(o->command, "screen") != 0 && strcmp(o->command, "robustness") != 0) {
+                cli_error("option %s: recovery_trend is a test of screen and robustness, not a "
+                          "rolling indicator (the 'recovery' command gives its path)", n);
                 return EXIT_BAD_INPUT;
             }
             o->drift_test = 1;
@@ -196,7 +196,7 @@ static int set_indicators(cli_options *o, const char *n, const char *v)
         if (indicator_lookup(tok, &kind) != SLOWSCAN_OK) {
             cli_error("option %s: unknown indicator '%s' (variance, sd, cv, skewness, kurtosis, "
                       "lag1, ar1, recovery, redness, spectral_exponent, dfa; recovery_trend in "
-                      "screen)", n, tok);
+                      "screen and robustness)", n, tok);
             return EXIT_BAD_INPUT;
         }
         for (size_t j = 0; j < o->nindicators; j++)
@@ -415,12 +415,13 @@ static const option_spec options[] = {
     {"--rolling", 1, C_SCREEN, set_rolling},
     {"--json", 1, C_SCREEN | C_RECOVERY, set_json},
     {"--control", 1, C_TESTING | C_SURROGATES, set_control},
-    {"--noise-trend", 0, C_SCREEN | C_RECOVERY, set_noise_trend},
+    {"--noise-trend", 0, C_TESTING, set_noise_trend},
     {"--project", 1, C_RECOVERY, set_projection},
     {"--project-draws", 1, C_RECOVERY, set_projection_draws},
     {"--windows", 1, C_ROBUST, set_windows},
     {"--bandwidths", 1, C_ROBUST, set_bandwidths},
     {"--fractions", 1, C_ROBUST, set_fractions},
+    {"--detrends", 1, C_ROBUST, cli_set_detrends},
     {"--format", 1, C_SCREEN, set_format},
     {"--figures", 1, C_TESTING, set_figures},
     {"--figure-format", 1, C_TESTING, set_figure_format},

@@ -135,16 +135,24 @@ typedef struct {
 } report_overview_data;
 extern const report_figure_type report_overview_figure;
 
-/* Robustness heat-map: one panel per indicator, windows across and bandwidths up, each cell
- * coloured by tau; cells with p <= 0.05 marked; the default cell outlined (index -1: none). */
+/* Robustness heat-maps: one panel per detrending method x test. An indicator's panel has
+ * windows across and bandwidths up, each cell coloured by tau, cells with p <= 0.05 marked; a
+ * method without a bandwidth has a single row. With `drift`, each method also has a
+ * recovery_trend panel: one column of cells over bandwidth, coloured by t(a1) on its own
+ * scale with the value written in. The run's own choice is outlined (index -1: none). */
 typedef struct {
     const char *name, *time_name;
     size_t nwindows, nbandwidths;
     const char *const *window_labels, *const *bandwidth_labels;
     size_t nindicators;
     const char *const *indicator_labels;
-    const double *tau, *p_value; /* [indicator][window][bandwidth], p NaN without surrogates */
-    long default_window, default_bandwidth;
+    size_t ndetrends;
+    const char *const *detrend_labels;
+    const int *detrend_has_bandwidth; /* per method; 0: only bandwidth index 0 is used */
+    const double *tau, *p_value; /* [method][indicator][window][bandwidth], p NaN without surrogates */
+    int drift;                   /* recovery_trend panels */
+    const double *drift_t, *drift_p; /* [method][bandwidth] */
+    long default_detrend, default_window, default_bandwidth;
     int have_p;
 } report_robustness_data;
 extern const report_figure_type report_robustness_figure;
