@@ -84,7 +84,7 @@ static void test_help_and_version(void)
         "--recovery", "--surrogates", "--null", "--iaaft-tol", "--iaaft-iterations",
         "--block-length", "--alternative", "--fdr", "--seed", "--threads", "--rolling", "--json",
         "--format", "--windows", "--bandwidths", "--fractions", "--control", "--progress", "-o",
-        "--noise-trend", "--figures", "--figure-format"};
+        "--noise-trend", "--figures", "--figure-format", "--detrends"};
     char *man = check_read_file("doc/slowscan.1");
     char *helps = NULL;
     char loop[600];
@@ -386,7 +386,7 @@ static void test_review_regressions(void)
              "--surrogates 20 --fractions %s %s", fr, in);
     int ran = slowscan(args);
     char *f = check_read_file(fr);
-    CHECK(ran == 0 && f && strstr(f, "empty,variance,2,NA,NA"), "fractions NA for an empty column: %s",
+    CHECK(ran == 0 && f && strstr(f, "empty,variance,gaussian,2,NA,NA"), "fractions NA for an empty column: %s",
           f ? f : "");
     free(f);
 }

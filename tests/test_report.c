@@ -227,6 +227,32 @@ static void test_robustness_and_recovery_figures(void)
     const size_t cells[][2] = {{0, 0}, {0, 1}};
     expect_panels_drawn(png, &layout, cells, 2, 5000); /* 3 x 3 coloured cells each */
 
+    /* Several detrending methods and recovery_trend: a panel per method x test, the method
+     * without a bandwidth one row of cells, recovery_trend one column over bandwidth. */
+    snprintf(dir, sizeof dir, "%s", check_tmp_path("fig-rob-methods"));
+    snprintf(args, sizeof args, "robustness %s --vars mill_pond --windows 30%%,60%% "
+             "--bandwidths 5%%,15%% --detrends gaussian,linear --indicators variance,recovery_trend "
+             "--figures %s -o /dev/null data/stations.csv", demo_args, dir);
+    {
+        int rc_ = slowscan(args);
+        CHECK(rc_ == 0, "robustness --detrends --figures: %s", run_err);
+    }
+    const char *one_name[1] = {"variance"}, *methods[2] = {"gaussian", "linear"};
+    const int has_bandwidth[2] = {1, 0};
+    report_robustness_data md = {0};
+    md.nindicators = 1;
+    md.indicator_labels = one_name;
+    md.ndetrends = 2;
+    md.detrend_labels = methods;
+    md.detrend_has_bandwidth = has_bandwidth;
+    md.drift = 1;
+    report_robustness_figure.layout(&md, &layout);
+    CHECK(layout.rows == 2 && layout.cols[0] == 2, "a row per method: %zu rows", layout.rows);
+    path_in(png, sizeof png, dir, "robustness-mill_pond.png");
+    expect_valid_png(png, &layout);
+    const size_t four[][2] = {{0, 0}, {0, 1}, {1, 0}, {1, 1}};
+    expect_panels_drawn(png, &layout, four, 4, 3000); /* every panel filled with cells */
+
     snprintf(args, sizeof args, "recovery %s --vars mill_pond --figures %s -o /dev/null "
              "data/stations.csv", demo_args, dir);
     {
