@@ -12,7 +12,7 @@ static const char overview[] =
     "  screen      the main job: indicators and their trends, surrogate p, FDR q, flags\n"
     "  indicators  rolling-window indicators per series (series,time,indicator,value)\n"
     "  detrend     trend and residual per series (series,time,value,trend,residual)\n"
-    "  robustness  the trend test over a grid of windows x bandwidths\n"
+    "  robustness  the trend test over a grid of detrending x windows x bandwidths\n"
     "  recovery    recovery-rate path of an AR(1) with a drifting coefficient\n"
     "  surrogates  null-model replicates of each residual (series,replicate,time,value)\n"
     "  demo        write the invented demo data set (lake stations) to data/ or --out DIR\n"
@@ -44,7 +44,7 @@ static const char rolling_options[] =
     "  --window LEN         trailing window (default 50%); W = round(LEN/dt)+1 samples\n"
     "  --indicators LIST    variance, sd, cv, skewness, kurtosis, lag1, ar1, recovery,\n"
     "                       redness, spectral_exponent, dfa (default variance,lag1; screen\n"
-    "                       also recovery_trend, the drifting-AR(1) test)\n"
+    "                       and robustness also recovery_trend, the drifting-AR(1) test)\n"
     "  --min-coverage F     windows with fewer than F*W samples present give NA (default 0.8)\n"
     "  --recovery log|increments  recovery rate as ln(ar1)/dt (default) or the slope of\n"
     "                       x[t+1]-x[t] on x[t] divided by dt\n"
@@ -154,21 +154,34 @@ static void help_screen(FILE *out)
 static void help_robustness(FILE *out)
 {
     fputs("usage: slowscan robustness [options] FILE...\n\n"
-          "Repeats the trend test of 'screen' over a grid of windows x bandwidths and writes\n"
-          "series,indicator,window,bandwidth,tau,p_value (window and bandwidth in time units;\n"
-          "p_value NA unless --surrogates M is given).\n\n", out);
+          "Repeats the trend test of 'screen' over a grid of detrending methods x windows x\n"
+          "bandwidths and writes series,indicator,detrend,window,bandwidth,tau,statistic,p_value\n"
+          "(window and bandwidth in time units; p_value NA unless --surrogates M is given).\n"
+          "Each method and bandwidth detrends once; its residual serves every window. A method\n"
+          "without a bandwidth (linear, poly:K, difference, none) is run once per window, its\n"
+          "bandwidth NA. recovery_trend in --indicators (the drifting-AR(1) test of screen) has\n"
+          "no window: one row per method and bandwidth, window and tau NA, statistic t(a1).\n\n",
+          out);
     fputs(input_options, out);
     fputs(rolling_options, out);
     fputs("grid:\n"
+          "  --detrends LIST      detrending methods, comma-separated, each as --detrend takes\n"
+          "                       it (e.g. gaussian,loess,linear,poly:2; default: the one\n"
+          "                       --detrend); --detrend names the run's own choice in figures\n"
           "  --windows LIST       windows as A:B:STEP or A,B,C (default 25%:75%:5%)\n"
           "  --bandwidths LIST    bandwidths likewise (default 5%:25%:5%); ignored by detrending\n"
           "                       methods without a bandwidth\n"
-          "  --fractions FILE     per series x indicator: cells, share with tau > 0, share with\n"
-          "                       p <= 0.05 (series,indicator,cells,share_tau_positive,\n"
-          "                       share_p_at_most_0.05)\n", out);
+          "  --fractions FILE     per series x indicator x method: cells, share with statistic\n"
+          "                       > 0, share with p <= 0.05; with several methods also a row\n"
+          "                       'all' over every cell (series,indicator,detrend,cells,\n"
+          "                       share_statistic_positive,share_p_at_most_0.05)\n"
+          "  --noise-trend        recovery_trend: let the innovation variance drift linearly\n", out);
     fputs(figure_options, out);
-    fputs("                       robustness-SERIES: tau over the grid per indicator, cells\n"
-          "                       with p <= 0.05 dotted, the --window/--bandwidth cell outlined\n", out);
+    fputs("                       robustness-SERIES: a panel per method x indicator (tau over\n"
+          "                       window x bandwidth) and per method for recovery_trend (t(a1)\n"
+          "                       by bandwidth, its own scale, values written); cells with\n"
+          "                       p <= 0.05 dotted, the --detrend/--window/--bandwidth cell\n"
+          "                       outlined\n", out);
     fputs(testing_options, out);
     fputs("\n", out);
     fputs(cautions, out);
