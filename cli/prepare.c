@@ -158,12 +158,14 @@ static int detrend_fail(int st, const cli_options *o, const prepared_series *ps)
         cli_error("out of memory");
         return EXIT_INTERNAL;
     }
+    /* robustness detrends with each method of its --detrends list in turn */
+    const char *option = o->ndetrends > 0 ? "--detrends" : "--detrend";
     if (st == SLOWSCAN_EINVAL && o->detrend.method == DETREND_POLY)
-        cli_error("%s: column '%s': option --detrend %s: the degree is too high for %zu finite "
-                  "samples", ps->source, ps->name, o->detrend_text, ps->finite);
+        cli_error("%s: column '%s': option %s %s: the degree is too high for %zu finite "
+                  "samples", ps->source, ps->name, option, o->detrend_text, ps->finite);
     else
-        cli_error("%s: column '%s': detrending (--detrend %s) failed: %s", ps->source, ps->name,
-                  o->detrend_text, slowscan_strerror(st));
+        cli_error("%s: column '%s': detrending (%s %s) failed: %s", ps->source, ps->name,
+                  option, o->detrend_text, slowscan_strerror(st));
     return EXIT_BAD_INPUT;
 }
 

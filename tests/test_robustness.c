@@ -239,8 +239,18 @@ static void test_refusals(const char *in)
               err ? err : "");
         free(err);
     }
-    /* recovery_trend is still a test, not a rolling indicator, for the other commands */
+    /* A method the data cannot carry fails on the data, and says which list it came from. */
+    const char *short_in = check_tmp_path("rob-short.csv");
+    check_write_file(short_in, "t,a\n0,1\n1,3\n2,2\n3,5\n4,4\n5,6\n6,5\n7,8\n8,7\n9,9\n");
     char cmd[1024];
+    snprintf(cmd, sizeof cmd, "%s robustness --windows 50%% --detrends gaussian,poly:12 -o %s %s",
+             check_binary(), out, short_in);
+    char *err = NULL;
+    int rc = check_run(cmd, NULL, &err);
+    CHECK(rc == 1 && err && strstr(err, "--detrends poly:12") && count_lines(err, NULL) == 1 &&
+              !check_file_exists(out), "poly:12 on 10 samples: exit %d, %s", rc, err ? err : "");
+    free(err);
+    /* recovery_trend is still a test, not a rolling indicator, for the other commands */
     snprintf(cmd, sizeof cmd, "%s indicators --indicators recovery_trend %s", check_binary(), in);
     CHECK(check_run(cmd, NULL, NULL) == 1, "indicators refuses recovery_trend");
 }
