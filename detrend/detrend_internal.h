@@ -39,7 +39,8 @@ typedef struct {
 } detrend_kernel_sum;
 
 /* Computes `count` sums by FFT convolution with zero padding (O(n log n) each): one pair of
- * plans, each distinct input and each kernel power transformed once. For kernels too long to
+ * plans, each distinct input and each kernel power transformed once. Every input is read
+ * before any output is written, so an `out` may be an input's own array. For kernels too long to
  * sum directly; callers check each output against `noise` and recompute exactly where the
  * round-off matters. */
 int detrend_kernel_sums(const detrend_kernel *k, size_t n, detrend_kernel_sum *sums,

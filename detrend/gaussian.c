@@ -83,7 +83,9 @@ static int direct_all(const gauss_problem *p, int degree, double *trend)
 }
 
 /* The moment sums by FFT: S0 S1 S2 of the mask, T0 T1 of the centred data (the first
- * 2 + 3*degree of them in the order S0, T0, S1, T1, S2); buf holds 2 n doubles per sum. */
+ * 2 + 3*degree of them in the order S0, T0, S1, T1, S2); buf holds n doubles per sum. S0 and
+ * T0 overwrite the mask and the centred data they are made from (detrend_kernel_sums reads
+ * every input before it writes any output), which saves two arrays. */
 static int fft_moments(const gauss_problem *p, int degree, double *buf, detrend_kernel_sum *m)
 {
     double *mask = buf, *centred = buf + p->n;
@@ -96,7 +98,7 @@ static int fft_moments(const gauss_problem *p, int degree, double *buf, detrend_
     for (size_t r = 0; r < count; r++)
         m[r] = (detrend_kernel_sum){.input = r % 2 == 0 ? mask : centred,
                                     .power = (int)(r / 2),
-                                    .out = buf + (2 + r) * p->n};
+                                    .out = buf + r * p->n};
     return detrend_kernel_sums(&p->k, p->n, m, count);
 }
 
@@ -132,7 +134,7 @@ static void linear_from_sums(const gauss_problem *p, const detrend_kernel_sum *m
 static int fft_all(const gauss_problem *p, int degree, double *trend)
 {
     detrend_kernel_sum m[5];
-    double *buf = malloc((degree == 0 ? 4 : 7) * p->n * sizeof *buf);
+    double *buf = malloc((degree == 0 ? 2 : 5) * p->n * sizeof *buf);
     if (!buf)
         return SLOWSCAN_ENOMEM;
     int status = fft_moments(p, degree, buf, m);
