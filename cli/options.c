@@ -163,8 +163,8 @@ static int set_detrend(cli_options *o, const char *n, const char *v)
 {
     o->detrend_text = v;
     if (detrend_parse_method(v, &o->detrend) != SLOWSCAN_OK) {
-        cli_error("option %s: unknown method '%s' (gaussian, moving, loess, linear, poly:K with "
-                  "K from 1 to 12, difference, none)", n, v);
+        cli_error("option %s: unknown method '%s' (gaussian-linear, gaussian, moving, loess, "
+                  "linear, poly:K with K from 1 to 12, difference, none)", n, v);
         return EXIT_BAD_INPUT;
     }
     return EXIT_OK;
@@ -449,8 +449,8 @@ static void set_defaults(const char *command, cli_options *o)
     memset(o, 0, sizeof *o);
     o->command = command;
     o->from = o->until = o->resample = o->deseason = NAN;
-    detrend_parse_method("gaussian", &o->detrend);
-    o->detrend_text = "gaussian";
+    detrend_parse_method("gaussian-linear", &o->detrend); /* DESIGN §3: no lag at the ends */
+    o->detrend_text = "gaussian-linear";
     o->bandwidth = (cli_length){10, 1, "10%"};
     o->window = (cli_length){50, 1, "50%"};
     o->indicators[0] = INDICATOR_VARIANCE;

@@ -15,7 +15,8 @@
 #define DETREND_MAX_DEGREE 12
 
 static const char *const method_names[] = {
-    [DETREND_GAUSSIAN] = "gaussian", [DETREND_MOVING] = "moving",
+    [DETREND_GAUSSIAN] = "gaussian", [DETREND_GAUSSIAN_LINEAR] = "gaussian-linear",
+    [DETREND_MOVING] = "moving",
     [DETREND_LOESS] = "loess",       [DETREND_LINEAR] = "linear",
     [DETREND_POLY] = "poly",         [DETREND_DIFFERENCE] = "difference",
     [DETREND_NONE] = "none",
@@ -76,7 +77,8 @@ const char *detrend_method_name(detrend_method method)
 
 int detrend_uses_bandwidth(detrend_method method)
 {
-    return method == DETREND_GAUSSIAN || method == DETREND_MOVING || method == DETREND_LOESS;
+    return method == DETREND_GAUSSIAN || method == DETREND_GAUSSIAN_LINEAR ||
+           method == DETREND_MOVING || method == DETREND_LOESS;
 }
 
 double detrend_finite_mean(const double *x, size_t n)
@@ -135,6 +137,8 @@ static int compute_trend(const detrend_spec *spec, double dt, const double *x, s
 {
     switch (spec->method) {
     case DETREND_GAUSSIAN: return detrend_gaussian_trend(spec->bandwidth, dt, x, n, trend);
+    case DETREND_GAUSSIAN_LINEAR:
+        return detrend_gaussian_linear_trend(spec->bandwidth, dt, x, n, trend);
     case DETREND_MOVING: return detrend_moving_trend(spec->bandwidth, dt, x, n, trend);
     case DETREND_LOESS: return detrend_loess_trend(spec->bandwidth, dt, x, n, trend);
     case DETREND_LINEAR: return detrend_poly_trend(1, x, n, trend);

@@ -16,8 +16,40 @@ double detrend_finite_mean(const double *x, size_t n);
  * enormous bandwidths cannot overflow the conversion. */
 size_t detrend_clamp_count(double count, size_t cap);
 
+/* The Gaussian kernel of DESIGN §3 on the grid, cut at h = ceil(8 s) samples (at most n - 1,
+ * as longer lags never occur): w[l] = exp(-0.5 (l/s)^2), l = 0..h, s in samples. */
+typedef struct {
+    double s;
+    size_t h;
+    double *w;
+} detrend_kernel;
+
+int detrend_kernel_make(double bandwidth, double dt, size_t n, detrend_kernel *k);
+void detrend_kernel_free(detrend_kernel *k);
+
+/* One kernel-weighted moment sum over the grid, a correlation of `input` with the kernel
+ * times the power-th power of the lag in units of s:
+ *   out[i] = sum_j input[j] w(j - i) ((j - i)/s)^power,   power 0..2,
+ * with `input` 0 at missing samples. */
+typedef struct {
+    const double *input; /* n values */
+    int power;
+    double *out;  /* n values */
+    double noise; /* set by detrend_kernel_sums: bound on the absolute round-off of each out[i] */
+} detrend_kernel_sum;
+
+/* Computes `count` sums by FFT convolution with zero padding (O(n log n) each): one pair of
+ * plans, each distinct input and each kernel power transformed once. Every input is read
+ * before any output is written, so an `out` may be an input's own array. For kernels too long to
+ * sum directly; callers check each output against `noise` and recompute exactly where the
+ * round-off matters. */
+int detrend_kernel_sums(const detrend_kernel *k, size_t n, detrend_kernel_sum *sums,
+                        size_t count);
+
 int detrend_gaussian_trend(double bandwidth, double dt, const double *x, size_t n,
                            double *trend);
+int detrend_gaussian_linear_trend(double bandwidth, double dt, const double *x, size_t n,
+                                  double *trend);
 int detrend_moving_trend(double bandwidth, double dt, const double *x, size_t n,
                          double *trend);
 int detrend_loess_trend(double bandwidth, double dt, const double *x, size_t n,
