@@ -337,6 +337,17 @@ static void test_co2(void)
             raw / running, k2, raw / k2);
     CHECK(raw > 0 && fixed < raw / 500 && running < raw / 500 && k2 < raw / 500,
           "co2: annual power %.4g falls to %.3g / %.3g / %.3g", raw, fixed, running, k2);
+    /* screen --json records the deseasoning: the options, and per row the cycle removed */
+    const char *json = check_tmp_path("co2.json");
+    snprintf(args, sizeof args, "%s screen --surrogates 0 --deseason 365.25 --deseason-window 20%% "
+             "--json %s -o /dev/null %s", check_binary(), json, csv);
+    int rc = check_run(args, NULL, NULL);
+    char *text = check_read_file(json);
+    CHECK(rc == 0 && text && strstr(text, "\"deseason\": 365.25") &&
+              strstr(text, "\"deseason_window\": \"20%\"") && strstr(text, "\"harmonics\": null") &&
+              strstr(text, "\"deseason_harmonics\": 3"),
+          "screen --json records the deseasoning (exit %d)", rc);
+    free(text);
 }
 
 void suite_deseason(void)
