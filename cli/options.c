@@ -254,11 +254,7 @@ static int set_whole(const char *n, const char *v, long min, long max, long *out
     return EXIT_OK;
 }
 
-static int set_harmonics(cli_options *o, const char *n, const char *v)
-{
-    return set_whole(n, v, 1, INT_MAX / 2, &o->harmonics);
-}
-
+static int set_harmonics(cli_options *o, const char *n, const char *v) { return set_whole(n, v, 1, INT_MAX / 2, &o->harmonics); }
 static int set_step(cli_options *o, const char *n, const char *v)
 {
     return set_whole(n, v, 1, LONG_MAX, &o->step);
