@@ -38,6 +38,8 @@ typedef struct {
     const char *detrend_text;
     cli_length bandwidth;
     double deseason; /* NaN: not given */
+    cli_length deseason_window; /* --deseason-window LEN; text NULL: not given (whole record) */
+    long harmonics;  /* --harmonics K; 0: not given (mean cycle, or 3 for a non-whole period) */
     /* indicators */
     cli_length window;
     indicator_kind indicators[INDICATOR_COUNT];
@@ -108,6 +110,7 @@ typedef struct {
     double *value, *trend, *residual; /* n each; value = what was detrended */
     size_t finite;                    /* finite samples of value */
     size_t window;                    /* W, samples */
+    int harmonics;                    /* harmonics of the cycle removed (0: mean cycle) */
     double bandwidth;                 /* time units (NaN when the method has none) */
     int constant; /* 1: constant input, 2: residual at round-off level; indicators NA */
     const double *null_source;        /* what surrogates are made from: the residual, or with

@@ -78,6 +78,7 @@ static int set_from(cli_options *o, const char *n, const char *v) { return parse
 static int set_until(cli_options *o, const char *n, const char *v) { return parse_number(n, v, &o->until); }
 static int set_resample(cli_options *o, const char *n, const char *v) { return parse_positive(n, v, &o->resample); }
 static int set_deseason(cli_options *o, const char *n, const char *v) { return parse_positive(n, v, &o->deseason); }
+static int set_deseason_window(cli_options *o, const char *n, const char *v) { return parse_length(n, v, &o->deseason_window); }
 static int set_bandwidth(cli_options *o, const char *n, const char *v) { return parse_length(n, v, &o->bandwidth); }
 static int set_window(cli_options *o, const char *n, const char *v) { return parse_length(n, v, &o->window); }
 static int set_output(cli_options *o, const char *n, const char *v) { (void)n; o->output = v; return EXIT_OK; }
@@ -253,6 +254,7 @@ static int set_whole(const char *n, const char *v, long min, long max, long *out
     return EXIT_OK;
 }
 
+static int set_harmonics(cli_options *o, const char *n, const char *v) { return set_whole(n, v, 1, INT_MAX / 2, &o->harmonics); }
 static int set_step(cli_options *o, const char *n, const char *v)
 {
     return set_whole(n, v, 1, LONG_MAX, &o->step);
@@ -399,6 +401,8 @@ static const option_spec options[] = {
     {"--detrend", 1, C_SERIES, set_detrend},
     {"--bandwidth", 1, C_SERIES, set_bandwidth},
     {"--deseason", 1, C_SERIES, set_deseason},
+    {"--deseason-window", 1, C_SERIES, set_deseason_window},
+    {"--harmonics", 1, C_SERIES, set_harmonics},
     {"--window", 1, C_ROLLING, set_window},
     {"--indicators", 1, C_ROLLING, set_indicators},
     {"--min-coverage", 1, C_ROLLING, set_min_coverage},
@@ -541,6 +545,11 @@ int cli_parse(const char *command, int argc, char **argv, int first, cli_options
     if (o->use_control != (o->control_file != NULL)) {
         cli_error(o->use_control ? "option --null control needs --control FILE (the control run)"
                                  : "option --control needs --null control");
+        return EXIT_BAD_INPUT;
+    }
+    if (isnan(o->deseason) && (o->deseason_window.text || o->harmonics)) {
+        cli_error("option %s needs --deseason PERIOD (the cycle to remove)",
+                  o->deseason_window.text ? "--deseason-window" : "--harmonics");
         return EXIT_BAD_INPUT;
     }
     if (o->projection_draws > 0 && !o->projection_output) {

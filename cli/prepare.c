@@ -169,15 +169,50 @@ static int detrend_fail(int st, const cli_options *o, const prepared_series *ps)
     return EXIT_BAD_INPUT;
 }
 
-static int deseason_fail(int st, const cli_options *o, const prepared_series *ps)
+/* The option at fault in a deseasoning spec, with what its value must satisfy. */
+static int deseason_refuse(deseason_problem problem, const cli_options *o,
+                           const prepared_series *ps, double steps)
 {
-    if (st == SLOWSCAN_ESHORT)
-        cli_error("%s: column '%s': option --deseason %.12g: a phase of the cycle has no finite "
-                  "sample", ps->source, ps->name, o->deseason);
+    const char *where = ps->source, *col = ps->name;
+    if (problem == DESEASON_BAD_HARMONICS)
+        cli_error("%s: column '%s': option --harmonics %ld%s: twice the number of harmonics must "
+                  "be below the period in time steps (%.12g; the Nyquist limit)", where, col,
+                  o->harmonics ? o->harmonics : (long)DETREND_DESEASON_HARMONICS,
+                  o->harmonics ? "" : " (the default, as the period is not a whole number of "
+                                      "steps)", steps);
+    else if (problem == DESEASON_BAD_WINDOW)
+        cli_error("%s: column '%s': option --deseason-window %s must hold at least two periods "
+                  "(2 x %.12g) and at most the record (%.12g)", where, col,
+                  o->deseason_window.text, o->deseason, ps->span);
     else
-        cli_error("%s: option --deseason %.12g must be a whole number (>= 2) of time steps %.12g "
-                  "and at most half the record", ps->source, o->deseason, ps->dt);
+        cli_error("%s: column '%s': option --deseason %.12g must be at least 2 time steps (%.12g) "
+                  "and at most half the record", where, col, o->deseason, ps->dt);
     return EXIT_BAD_INPUT;
+}
+
+/* Removes the cycle of --deseason (with --deseason-window, --harmonics) from ps->value. */
+static int deseason_series(const cli_options *o, const series_table *t, prepared_series *ps)
+{
+    deseason_spec spec = detrend_deseason_default();
+    spec.period = o->deseason;
+    spec.harmonics = (int)o->harmonics;
+    int rc = EXIT_OK;
+    if (o->deseason_window.text)
+        rc = resolve_length(&o->deseason_window, "--deseason-window", t, ps->span, &spec.window);
+    if (rc != EXIT_OK)
+        return rc;
+    deseason_problem problem;
+    if (detrend_deseason_check(&spec, ps->dt, ps->n, &problem, &ps->harmonics) != SLOWSCAN_OK)
+        return deseason_refuse(problem, o, ps, o->deseason / ps->dt);
+    int st = detrend_deseason_apply(&spec, ps->dt, ps->value, ps->n);
+    if (st == SLOWSCAN_ESHORT)
+        cli_error("%s: column '%s': option --deseason %.12g: %s", ps->source, ps->name,
+                  o->deseason, ps->harmonics ? "a window has too few finite samples to fit the "
+                  "harmonics" : "a phase of the cycle has no finite sample in some window");
+    else if (st != SLOWSCAN_OK)
+        cli_error("%s: column '%s': deseasoning failed: %s", ps->source, ps->name,
+                  slowscan_strerror(st));
+    return st == SLOWSCAN_OK ? EXIT_OK : st == SLOWSCAN_ENOMEM ? EXIT_INTERNAL : EXIT_BAD_INPUT;
 }
 
 static void count_finite(prepared_series *ps)
@@ -236,8 +271,8 @@ int cli_prepare_series(const cli_options *o, const series_table *t, size_t k, pr
     memcpy(ps->value, t->values[k], t->n * sizeof(double));
     count_finite(ps);
     int st;
-    if (!isnan(o->deseason) && (st = detrend_deseason(ps->dt, o->deseason, ps->value, t->n)) != SLOWSCAN_OK)
-        return deseason_fail(st, o, ps);
+    if (!isnan(o->deseason) && (rc = deseason_series(o, t, ps)) != EXIT_OK)
+        return rc;
     if (ps->finite < 2 || ps->constant) {
         /* Nothing to detrend: the caller reports the series as insufficient. */
         for (size_t i = 0; i < t->n; i++)

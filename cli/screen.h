@@ -14,6 +14,7 @@ typedef struct {
     double window, bandwidth, q_value;
     trend_result result; /* tau, p, the null's quantiles */
     const char *flag;
+    int harmonics; /* the cycle removed: -1 none, 0 the mean cycle, K harmonics */
     gsl_histogram *null_hist; /* with --figures: the null distribution, binned; else NULL */
 } screen_row;
 

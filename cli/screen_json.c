@@ -41,6 +41,11 @@ static void write_parameters(FILE *fp, const cli_options *o)
             o->log_values ? "true" : "false", o->noise_trend ? "true" : "false");
     cli_json_string(fp, o->detrend_text);
     fputs(",\n", fp);
+    fputs("    \"deseason_window\": ", fp); /* null: the whole record */
+    o->deseason_window.text ? cli_json_string(fp, o->deseason_window.text) : (void)fputs("null", fp);
+    fputs(",\n    \"harmonics\": ", fp); /* null: not given (rows say what was used) */
+    o->harmonics ? (void)fprintf(fp, "%ld", o->harmonics) : (void)fputs("null", fp);
+    fputs(",\n", fp);
     json_length(fp, "bandwidth", &o->bandwidth);
     json_length(fp, "window", &o->window);
     fputs("    \"indicators\": ", fp);
@@ -74,8 +79,10 @@ static void write_row(FILE *fp, const screen_row *row)
         fprintf(fp, ", \"%s\": ", cells[k].key);
         cli_json_number(fp, cells[k].v);
     }
-    fprintf(fp, ", \"flag\": \"%s\", \"null_count\": %zu, \"null_quantiles\": {", row->flag,
-            row->result.null_used);
+    fprintf(fp, ", \"flag\": \"%s\", \"deseason_harmonics\": ", row->flag);
+    /* the cycle removed from this series: null none, 0 the mean cycle, K harmonics */
+    row->harmonics < 0 ? (void)fputs("null", fp) : (void)fprintf(fp, "%d", row->harmonics);
+    fprintf(fp, ", \"null_count\": %zu, \"null_quantiles\": {", row->result.null_used);
     for (int q = 0; q < TREND_QUANTILES; q++) {
         fprintf(fp, "%s\"%g\": ", q ? ", " : "", trend_quantile_levels[q]);
         cli_json_number(fp, row->result.null_used ? row->result.quantile[q] : NAN);

@@ -31,6 +31,22 @@ void check_record(int ok, const char *file, int line, const char *fmt, ...)
     va_end(ap);
 }
 
+/* Largest |got - want| over the samples; a NaN in one and not the other counts as infinite. */
+double check_max_diff(const double *got, const double *want, size_t n)
+{
+    double m = 0.0;
+    for (size_t i = 0; i < n; i++) {
+        if (isnan(got[i]) || isnan(want[i])) {
+            if (isnan(got[i]) != isnan(want[i]))
+                return INFINITY;
+            continue;
+        }
+        double d = fabs(got[i] - want[i]);
+        m = d > m ? d : m;
+    }
+    return m;
+}
+
 int check_close(double got, double want, double rel_tol, double abs_tol)
 {
     if (isnan(want) || isnan(got))

@@ -25,6 +25,9 @@ int check_close(double got, double want, double rel_tol, double abs_tol);
                      "%s: got %.17g, want %.17g", (what), g_, w_);                           \
     } while (0)
 
+/* Largest |got - want| over the samples; a NaN in one and not the other counts as infinite. */
+double check_max_diff(const double *got, const double *want, size_t n);
+
 /* The slowscan binary under test ($SLOWSCAN_BIN, default build/slowscan). */
 const char *check_binary(void);
 

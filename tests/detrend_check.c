@@ -22,21 +22,6 @@ double dc_worse(double acc, double err)
     return isnan(err) ? INFINITY : err > acc ? err : acc;
 }
 
-double dc_max_diff(const double *got, const double *want, size_t n)
-{
-    double m = 0.0;
-    for (size_t i = 0; i < n; i++) {
-        if (isnan(got[i]) || isnan(want[i])) {
-            if (isnan(got[i]) != isnan(want[i]))
-                return INFINITY;
-            continue;
-        }
-        double d = fabs(got[i] - want[i]);
-        m = d > m ? d : m;
-    }
-    return m;
-}
-
 size_t dc_count_nan(const double *x, size_t n)
 {
     size_t c = 0;
@@ -85,7 +70,7 @@ double dc_python_error(const char *script, const detrend_spec *spec, double dt,
         snprintf(arg, sizeof arg, "%.17g", spec->bandwidth);
     int ok = detrend_apply(spec, dt, x, n, got, NULL) == SLOWSCAN_OK &&
              dc_python_reference(script, arg, dt, x, n, want, n);
-    double err = ok ? dc_max_diff(got, want, n) / dc_max_abs(x, n) : INFINITY;
+    double err = ok ? check_max_diff(got, want, n) / dc_max_abs(x, n) : INFINITY;
     free(got);
     free(want);
     return err;

@@ -10,8 +10,6 @@
 double dc_max_abs(const double *x, size_t n);
 /* Running maximum of errors that treats a NaN error as infinitely bad (fmax would skip it). */
 double dc_worse(double acc, double err);
-/* Largest |got - want| over the samples; a NaN in one and not the other counts as infinite. */
-double dc_max_diff(const double *got, const double *want, size_t n);
 size_t dc_count_nan(const double *x, size_t n);
 
 /* Writes x as "t x" lines (t = i dt), runs the python reference `script FILE arg` on it and

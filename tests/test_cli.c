@@ -80,7 +80,7 @@ static void test_help_and_version(void)
     CHECK(slowscan("nonsense") == 1, "unknown command exits 1");
     /* Every option is documented in the man page and in some command's --help. */
     static const char *options[] = {"--time", "--vars", "--from", "--until", "--log", "--resample",
-        "--detrend", "--bandwidth", "--deseason", "--window", "--indicators", "--min-coverage",
+        "--detrend", "--bandwidth", "--deseason", "--deseason-window", "--harmonics", "--window", "--indicators", "--min-coverage",
         "--recovery", "--surrogates", "--null", "--iaaft-tol", "--iaaft-iterations",
         "--block-length", "--alternative", "--fdr", "--seed", "--threads", "--rolling", "--json",
         "--format", "--windows", "--bandwidths", "--fractions", "--control", "--progress", "-o",
@@ -294,7 +294,19 @@ static void test_bad_input(void)
     expect_rejected("fdr out of range", good, "screen --fdr 1.5", "--fdr");
     expect_rejected("unknown alternative", good, "screen --alternative up", "--alternative");
     expect_rejected("unknown time column", good, "screen --time when", "when");
-    expect_rejected("deseason not a multiple", good, "screen --deseason 2.5", "--deseason");
+    /* a non-whole period is fitted with 3 harmonics by default: 2 x 3 >= 2.5 steps */
+    expect_rejected("default harmonics above Nyquist", good, "screen --deseason 2.5", "--harmonics");
+    expect_rejected("harmonics at Nyquist", good, "detrend --deseason 4 --harmonics 2", "--harmonics");
+    expect_rejected("harmonics 0", good, "detrend --deseason 4 --harmonics 0", "--harmonics");
+    expect_rejected("period of one step", good, "detrend --deseason 1", "--deseason");
+    expect_rejected("deseason window < 2 periods", good, "indicators --deseason 2 --deseason-window 3",
+                    "--deseason-window");
+    expect_rejected("deseason window > record", good, "screen --deseason 2 --deseason-window 10",
+                    "--deseason-window");
+    expect_rejected("deseason window > 100%", good, "robustness --deseason 2 --deseason-window 101%",
+                    "--deseason-window");
+    expect_rejected("deseason window alone", good, "surrogates --deseason-window 5", "--deseason-window");
+    expect_rejected("harmonics alone", good, "recovery --harmonics 1", "--harmonics");
     expect_rejected("min-coverage", good, "screen --min-coverage 1.5", "--min-coverage");
 
     /* Output path equal to the input: refused, input untouched. */
@@ -386,7 +398,7 @@ static void test_review_regressions(void)
              "--surrogates 20 --fractions %s %s", fr, in);
     int ran = slowscan(args);
     char *f = check_read_file(fr);
-    CHECK(ran == 0 && f && strstr(f, "empty,variance,gaussian,2,NA,NA"), "fractions NA for an empty column: %s",
+    CHECK(ran == 0 && f && strstr(f, "empty,variance,gaussian-linear,2,NA,NA"), "fractions NA for an empty column: %s",
           f ? f : "");
     free(f);
 }

@@ -235,68 +235,11 @@ static void test_residual_rules(check_rng *rng)
     CHECK(ok, "residual = x - trend, NaN exactly where x is NaN");
     memcpy(inplace, x, sizeof x);
     rc = dc_run(DETREND_LOESS, 4.0, 0, 0.1, inplace, n, NULL, inplace);
-    CHECK(rc == SLOWSCAN_OK && dc_max_diff(inplace, res, n) == 0.0, "residual in place over x");
+    CHECK(rc == SLOWSCAN_OK && check_max_diff(inplace, res, n) == 0.0, "residual in place over x");
     memcpy(inplace, x, sizeof x);
     rc = dc_run(DETREND_GAUSSIAN, 4.0, 0, 0.1, inplace, n, inplace, NULL);
     dc_run(DETREND_GAUSSIAN, 4.0, 0, 0.1, x, n, trend, NULL);
-    CHECK(rc == SLOWSCAN_OK && dc_max_diff(inplace, trend, n) == 0.0, "trend in place over x");
-}
-
-static void check_deseason_sine(size_t n, int with_nan)
-{
-    double x[130];
-    for (size_t i = 0; i < n; i++) /* period 6 time units, dt 0.5: P = 12 */
-        x[i] = 5.0 + 2.0 * sin(TWO_PI * (double)i / 12.0) + cos(2.0 * TWO_PI * (double)i / 12.0);
-    if (with_nan)
-        x[3] = x[40] = x[77] = NAN;
-    int rc = detrend_deseason(0.5, 6.0, x, n);
-    double err = 0.0;
-    for (size_t i = 0; i < n; i++) /* analytic: a pure P-periodic cycle has its phase means */
-        if (isfinite(x[i]))        /* as values, and their mean is the level 5 */
-            err = dc_worse(err, fabs(x[i] - 5.0));
-    CHECK(rc == SLOWSCAN_OK && err <= 1e-12 && isnan(x[40]) == with_nan,
-          "deseason pure cycle n=%zu nan=%d: max err %.3g", n, with_nan, err);
-}
-
-static void test_deseason(check_rng *rng)
-{
-    check_deseason_sine(120, 0);
-    check_deseason_sine(126, 1); /* 10.5 cycles: unequal phase counts */
-    double x[100], before[100];
-    for (size_t i = 0; i < 100; i++)
-        x[i] = 1e6 + check_rng_gaussian(rng) + ((i % 4) == 1 ? 3.0 : 0.0);
-    memcpy(before, x, sizeof x);
-    /* statsmodels.tsa.seasonal.seasonal_decompose (additive, Debian python3-statsmodels): our
-     * cycle must equal its seasonal component, i.e. x_before - x_after == seasonal. */
-    int rc = detrend_deseason(1.0, 4.0 * (1.0 + 1e-7), x, 100); /* within the 1e-6 tolerance */
-    double seasonal[100];
-    int got = check_python_on("seasonal_statsmodels.py", before, 100, "4", seasonal, 100);
-    double phase_err = 0.0;
-    for (size_t i = 0; got == 100 && i < 100; i++)
-        phase_err = dc_worse(phase_err, fabs((before[i] - x[i]) - seasonal[i]));
-    CHECK(rc == SLOWSCAN_OK && got == 100 && phase_err <= 1e-8,
-          "deseason vs statsmodels seasonal_decompose: max diff %.3g", phase_err);
-    /* Analytic: a cycle riding on a steep linear trend is removed exactly (the one-period
-     * average of line + cycle is the line); phase means of the raw series would not be. */
-    for (size_t i = 0; i < 100; i++)
-        x[i] = 0.5 * (double)i + ((i % 4) == 1 ? 3.0 : 0.0);
-    rc = detrend_deseason(1.0, 4.0, x, 100);
-    double line_err = 0.0;
-    for (size_t i = 0; i < 100; i++)
-        line_err = dc_worse(line_err, fabs(x[i] - 0.5 * (double)i - 0.75));
-    CHECK(rc == SLOWSCAN_OK && line_err <= 1e-12, "deseason on a trend: max err %.3g", line_err);
-    memcpy(x, before, sizeof x);
-    CHECK(detrend_deseason(1.0, 4.3, x, 100) == SLOWSCAN_EINVAL, "deseason period 4.3 dt");
-    CHECK(detrend_deseason(0.5, 0.5, x, 100) == SLOWSCAN_EINVAL, "deseason P = 1");
-    CHECK(detrend_deseason(1.0, 51.0, x, 100) == SLOWSCAN_EINVAL, "deseason P > n/2");
-    CHECK(detrend_deseason(1.0, 50.0, x, 100) == SLOWSCAN_OK, "deseason P = n/2 allowed");
-    CHECK(detrend_deseason(0.0, 4.0, x, 100) == SLOWSCAN_EINVAL, "deseason dt 0");
-    memcpy(x, before, sizeof x);
-    for (size_t i = 2; i < 100; i += 4)
-        x[i] = NAN;
-    memcpy(before, x, sizeof x);
-    CHECK(detrend_deseason(1.0, 4.0, x, 100) == SLOWSCAN_ESHORT && dc_max_diff(x, before, 100) == 0,
-          "deseason: an empty phase is ESHORT and leaves x unchanged");
+    CHECK(rc == SLOWSCAN_OK && check_max_diff(inplace, trend, n) == 0.0, "trend in place over x");
 }
 
 static void test_errors(void)
@@ -346,7 +289,6 @@ void suite_detrend(void)
     check_poly_exact();
     test_difference_none();
     test_residual_rules(rng);
-    test_deseason(rng);
     test_errors();
     check_rng_free(rng);
 }

@@ -70,7 +70,7 @@ static void check_fft_against_direct(check_rng *rng, double offset)
         int rc = dc_run(method_of(degree), bandwidth, 0, dt, x, n, got, NULL);
         /* reference: direct sum, DESIGN §3 */
         reference_fit(x, n, bandwidth / dt, n, degree, want);
-        double err = dc_max_diff(got, want, n) / dc_max_abs(x, n);
+        double err = check_max_diff(got, want, n) / dc_max_abs(x, n);
         CHECK(rc == SLOWSCAN_OK && err <= 1e-12,
               "%s FFT vs direct sum, offset %g: rc %d, max error / max|x| = %.3g",
               name_of(degree), offset, rc, err);
@@ -79,8 +79,8 @@ static void check_fft_against_direct(check_rng *rng, double offset)
          * one; without it the FFT's round-off on the offset itself shows as several ulps. */
         double m = dc_max_abs(x, n), ulp = nextafter(m, INFINITY) - m;
         if (offset != 0.0)
-            CHECK(dc_max_diff(got, want, n) <= 3.0 * ulp, "%s offset %g: error %.3g ulp",
-                  name_of(degree), offset, dc_max_diff(got, want, n) / ulp);
+            CHECK(check_max_diff(got, want, n) <= 3.0 * ulp, "%s offset %g: error %.3g ulp",
+                  name_of(degree), offset, check_max_diff(got, want, n) / ulp);
     }
 }
 
@@ -100,7 +100,7 @@ static void check_long_gap(check_rng *rng)
         int rc = dc_run(method_of(degree), bandwidth, 0, dt, x, n, got, NULL);
         /* reference: direct sum cut at 8 s, DESIGN §3 */
         reference_fit(x, n, bandwidth / dt, h, degree, want);
-        double err = dc_max_diff(got, want, n) / dc_max_abs(x, n);
+        double err = check_max_diff(got, want, n) / dc_max_abs(x, n);
         CHECK(rc == SLOWSCAN_OK && err <= 1e-12, "%s long gap: rc %d, max err %.3g",
               name_of(degree), rc, err);
         CHECK(isnan(got[700 + h]) && isnan(got[999 - h]) && isfinite(got[699 + h]) &&
@@ -197,7 +197,7 @@ static void check_kernelreg(check_rng *rng, int curve, double bandwidth)
     for (int degree = FIT_LINE; ok && degree >= FIT_CONSTANT; degree--) {
         int rc = dc_run(method_of(degree), bandwidth, 0, dt, x, N, got, NULL);
         const double *ref = degree == FIT_LINE ? want : want + N;
-        double err = dc_max_diff(got, ref, N) / dc_max_abs(x, N);
+        double err = check_max_diff(got, ref, N) / dc_max_abs(x, N);
         CHECK(rc == SLOWSCAN_OK && err <= 1e-10,
               "%s vs KernelReg %s (%s, s=%g): rc %d, max err / max|x| = %.3g", name_of(degree),
               degree == FIT_LINE ? "ll" : "lc", curve ? "curve" : "slope", bandwidth, rc, err);

@@ -212,15 +212,15 @@ static void test_robustness(void)
     const char *at = one ? strstr(one, "\ns1,lag1,") : NULL;
     if (at)
         sscanf(at + 9, "%*d,%*g,%*g,%lf,%*g,%lf", &tau_screen, &p_screen);
-    at = grid ? strstr(grid, "\ns1,lag1,gaussian,150,29.9,") : NULL;
+    at = grid ? strstr(grid, "\ns1,lag1,gaussian-linear,150,29.9,") : NULL;
     if (at)
-        sscanf(at + 27, "%lf,%*g,%lf", &tau_grid, &p_grid);
+        sscanf(at + 34, "%lf,%*g,%lf", &tau_grid, &p_grid);
     CHECK(!isnan(tau_grid) && tau_grid == tau_screen && p_grid == p_screen,
           "robustness cell = screen at window 50%%, bandwidth 10%%: %g/%g vs %g/%g", tau_grid,
           p_grid, tau_screen, p_screen);
     char *f = check_read_file(fr);
     CHECK(f && strstr(f, "series,indicator,detrend,cells,share_statistic_positive,share_p_at_most_0.05\n") &&
-              strstr(f, "s0,variance,gaussian,6,"), "fractions file: %s", f ? f : "");
+              strstr(f, "s0,variance,gaussian-linear,6,"), "fractions file: %s", f ? f : "");
     free(f);
     free(one);
     free(grid);

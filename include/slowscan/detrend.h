@@ -57,13 +57,56 @@ int detrend_uses_bandwidth(detrend_method method);
 int detrend_apply(const detrend_spec *spec, double dt, const double *x, size_t n,
                   double *trend, double *residual);
 
-/* Removes the mean cycle of period `period` (time units) in place: the sample at index i
- * belongs to phase i mod P, P = round(period/dt). The cycle is estimated as in the additive
- * classical decomposition: phase means of the series minus its centred one-period moving
- * average (2xP average for even P; windows with a missing sample are skipped), normalised
- * to mean zero, so a trend does not leak into the cycle and the series keeps its level.
- * SLOWSCAN_EINVAL if period/dt is not within 1e-6 (relative) of an integer P >= 2, or if
- * P > n/2 (fewer than two full cycles); SLOWSCAN_ESHORT if a phase has no usable sample. */
-int detrend_deseason(double dt, double period, double *x, size_t n);
+/* Seasonal-cycle removal (deseasoning), done before detrending.
+ *
+ * Let P = period/dt be the period in time steps. The cycle is estimated from
+ * d = x - (centred moving average of x over m = round(P) steps; the 2 x m average when m is
+ * even; NaN where its span holds a missing sample or runs off the record), so a trend is not
+ * taken for cycle. Then, for each sample i:
+ *   mean cycle (harmonics 0, P a whole number within 1e-6 relative): the mean of d over the
+ *     samples of i's phase (i mod P) in i's window, minus the mean of those phase means
+ *     (the additive classical decomposition when the window is the whole record);
+ *   harmonics K >= 1: sum_k a_k cos(2 pi k t/P) + b_k sin(2 pi k t/P), fitted by least squares
+ *     with an intercept to d in i's window; each pair is divided by 1 - H(k/P), H the moving
+ *     average's response, which undoes exactly the part of the cycle the average kept when P
+ *     is not a whole number of steps. Harmonics 0 with a non-whole P means
+ *     DETREND_DESEASON_HARMONICS harmonics.
+ * The window of i is `window` time units long, W = round(window/dt) + 1 samples, centred on i
+ * (i - floor((W-1)/2) .. ), and shifted inward at the record's ends so it never shrinks;
+ * window 0 means the whole record (one fixed cycle). Both estimates have mean zero over a
+ * period, so the series keeps its level. NaN samples are left out of every estimate and stay
+ * NaN. Cost O(n) per series for the mean cycle (running sums per phase), O(n K^3) for
+ * harmonics (running normal equations, one small solve per window position). */
+enum { DETREND_DESEASON_HARMONICS = 3 }; /* harmonics used for a non-whole period by default */
+
+typedef struct {
+    double period; /* time units, > 0 */
+    int harmonics; /* 0: the mean cycle when P is a whole number of steps; K >= 1: K pairs */
+    double window; /* time units; 0: the whole record */
+} deseason_spec;
+
+/* period 0 (to be set), harmonics 0, window 0. */
+deseason_spec detrend_deseason_default(void);
+
+/* Which field of a spec is out of its domain. */
+typedef enum {
+    DESEASON_FINE = 0,
+    DESEASON_BAD_PERIOD,    /* dt or period not positive and finite, P < 2 or P > n/2 */
+    DESEASON_BAD_HARMONICS, /* K < 0, or 2K >= P (at or above the Nyquist frequency) */
+    DESEASON_BAD_WINDOW     /* window < 0, shorter than two periods, or longer than (n-1) dt */
+} deseason_problem;
+
+/* Checks a spec for a series of n samples of step dt without touching data: returns
+ * SLOWSCAN_OK or SLOWSCAN_EINVAL with *problem saying which field is wrong, and the number of
+ * harmonics that will be fitted in *harmonics (0: the mean cycle). Either pointer may be
+ * NULL. */
+int detrend_deseason_check(const deseason_spec *spec, double dt, size_t n,
+                           deseason_problem *problem, int *harmonics);
+
+/* Removes the cycle described above from x[n] in place. SLOWSCAN_EINVAL for a bad spec (see
+ * detrend_deseason_check) or NULL x with n > 0; SLOWSCAN_ESHORT when a phase of some window
+ * has no usable sample (mean cycle) or some window has too few to separate the harmonics.
+ * On any failure x is left unchanged. */
+int detrend_deseason_apply(const deseason_spec *spec, double dt, double *x, size_t n);
 
 #endif
