@@ -9,7 +9,11 @@
  * The matched null of a model keeps its mean path but not its growing memory: the noise-free
  * run of the same model under the same ramp (same Euler steps), plus a linear process
  * du = J0 u dt + sigma dW with J0 the Jacobian of f at the start state and p_start (the
- * linearisation at t = 0), u(0) = 0 like the approach's own deviation. */
+ * linearisation at t = 0), u(0) = 0 like the approach's own deviation. The noise-free run
+ * is the mean path to first order in sigma; near the end of the transcritical ramp, where the
+ * noise is as large as the distance to the unstable branch x = 0, the noisy mean lies below it
+ * (noise-induced shift, and survival of the paths that did not escape) — a slow difference the
+ * detrending removes. */
 #ifndef BENCH_APPROACHES_H
 #define BENCH_APPROACHES_H
 
