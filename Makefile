@@ -24,6 +24,8 @@ LIB_SRC   := $(foreach d,$(CORE_DIRS),$(wildcard $(d)/*.c))
 CLI_SRC   := $(wildcard cli/*.c)
 TEST_SRC  := $(wildcard tests/*.c)
 BENCH_SRC := $(wildcard bench/*.c)
+# Sources shared by benchmark programs (each bench/*.c is its own program).
+BENCH_LIB := $(wildcard bench/common/*.c)
 
 B := build
 LIB_OBJ   := $(LIB_SRC:%.c=$(B)/obj/%.o)
@@ -64,9 +66,9 @@ $(B)/asan/slowscan: $(SCLI_OBJ) $(SLIB_OBJ)
 $(B)/asan/run_tests: $(STEST_OBJ) $(SLIB_OBJ)
 	$(CC) $(SAN) -o $@ $^ $(LIBS)
 
-$(B)/bench/%: bench/%.c $(B)/libslowscan.a
+$(B)/bench/%: bench/%.c $(BENCH_LIB) $(wildcard bench/common/*.h) $(B)/libslowscan.a
 	@mkdir -p $(dir $@)
-	$(CC) -O2 -g $(WARN) $(INCS) -o $@ $< $(B)/libslowscan.a $(LIBS)
+	$(CC) -O2 -g $(WARN) $(INCS) -Ibench/common -o $@ $< $(BENCH_LIB) $(B)/libslowscan.a $(LIBS)
 
 # Each run ends in a line "LABEL: N passed, N failed"; the last one is the sanitized run.
 check: deps
