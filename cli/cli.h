@@ -109,6 +109,8 @@ typedef struct {
     double dt, span;
     double *value, *trend, *residual; /* n each; value = what was detrended */
     size_t finite;                    /* finite samples of value */
+    detrend_leakage leakage;          /* the residual's edge means (detrend_leakage_test) */
+    int leakage_tested;               /* 0 when the residual could not be tested */
     size_t window;                    /* W, samples */
     int harmonics;                    /* harmonics of the cycle removed (0: mean cycle) */
     double bandwidth;                 /* time units (NaN when the method has none) */

@@ -152,9 +152,12 @@ static void write_json(recovery_run *run, const prepared_series *ps, const ar1_d
 {
     fprintf(run->json, "%s\n    {\"series\": ", run->written++ ? "," : "");
     cli_json_string(run->json, ps->name);
-    const double v[] = {f->a0, f->a1, f->c, f->se_a0, f->se_a1, f->t_a1, p};
-    const char *k[] = {"a0", "a1", "c", "se_a0", "se_a1", "t_a1", "p_value"};
-    for (size_t i = 0; i < 7; i++) {
+    /* se_* are HC3; the model-based error of a1 and its t are kept beside them */
+    const double v[] = {f->a0, f->a1, f->c, f->se_a0, f->se_a1, f->t_a1, f->se_a1_model,
+                        f->t_a1_model, p};
+    const char *k[] = {"a0", "a1", "c", "se_a0", "se_a1", "t_a1", "se_a1_model_based",
+                       "t_a1_model_based", "p_value"};
+    for (size_t i = 0; i < sizeof v / sizeof v[0]; i++) {
         fprintf(run->json, ", \"%s\": ", k[i]);
         cli_json_number(run->json, v[i]);
     }

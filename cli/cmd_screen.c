@@ -57,6 +57,8 @@ static int record_series(const cli_options *opts, const prepared_series *ps, scr
         row->result = results[j];
         row->q_value = NAN;
         row->harmonics = isnan(opts->deseason) ? -1 : ps->harmonics;
+        row->leakage = ps->leakage;
+        row->leakage_tested = ps->leakage_tested;
         if (isnan(row->result.statistic)) {
             row->flag = "insufficient";
             if (!ps->constant) /* a constant series was warned about when its values were made */

@@ -175,17 +175,64 @@ static int for_each_table_series(const cli_options *opts, const cli_inputs *in,
     return EXIT_OK;
 }
 
+/* Series whose residual keeps part of the trend at an edge: one line each for a few, one
+ * summary line with the first names for many (a field of grid cells would bury the output). */
+enum { LEAKAGE_NAMED = 3 };
+
+typedef struct {
+    size_t count, tested;
+    const char *source[LEAKAGE_NAMED], *name[LEAKAGE_NAMED];
+    detrend_leakage first[LEAKAGE_NAMED];
+} leakage_tally;
+
+static void tally_leakage(leakage_tally *tally, const prepared_series *ps)
+{
+    tally->tested += ps->leakage_tested != 0;
+    if (!ps->leakage_tested || !ps->leakage.leaking)
+        return;
+    if (tally->count < LEAKAGE_NAMED) {
+        tally->source[tally->count] = ps->source;
+        tally->name[tally->count] = ps->name;
+        tally->first[tally->count] = ps->leakage;
+    }
+    tally->count++;
+}
+
+static void report_leakage(const cli_options *opts, const leakage_tally *tally)
+{
+    static const char advice[] = "a narrower --bandwidth or another --detrend may follow the trend "
+                                 "better; until then a rise near the ends may be the trend's";
+    if (tally->count > LEAKAGE_NAMED) {
+        cli_warning("%zu of %zu series keep part of their trend at the record's start or end (%s "
+                    "residual mean over one bandwidth away from zero at level 0.01), the first "
+                    "'%s', '%s', '%s' (--json lists each); %s", tally->count, tally->tested,
+                    opts->detrend_text, tally->name[0], tally->name[1], tally->name[2], advice);
+        return;
+    }
+    for (size_t k = 0; k < tally->count; k++) {
+        const detrend_leakage *l = &tally->first[k];
+        int last = l->last.p < l->first.p;
+        cli_warning("%s: column '%s': the residual keeps part of the trend at the record's %s (mean "
+                    "%.3g over one bandwidth, p = %.2g); %s", tally->source[k], tally->name[k],
+                    last ? "end" : "start", last ? l->last.mean : l->first.mean,
+                    last ? l->last.p : l->first.p, advice);
+    }
+}
+
 typedef struct {
     series_visitor visit;
     void *context;
+    leakage_tally leakage;
 } prepared_visit;
 
 static int prepare_and_visit(const cli_options *opts, const cli_inputs *in,
                              const series_table *t, size_t k, void *c)
 {
-    const prepared_visit *pv = c;
+    prepared_visit *pv = c;
     prepared_series ps;
     int rc = cli_prepare_series(opts, t, k, &ps);
+    if (rc == EXIT_OK)
+        tally_leakage(&pv->leakage, &ps);
     if (rc == EXIT_OK && !ps.constant)
         rc = cli_attach_control(opts, in, &ps);
     if (rc == EXIT_OK)
@@ -197,8 +244,11 @@ static int prepare_and_visit(const cli_options *opts, const cli_inputs *in,
 int cli_for_each_series(const cli_options *opts, const cli_inputs *in, series_visitor visit,
                         void *context)
 {
-    prepared_visit pv = {visit, context};
-    return for_each_table_series(opts, in, prepare_and_visit, &pv);
+    prepared_visit pv = {.visit = visit, .context = context};
+    int rc = for_each_table_series(opts, in, prepare_and_visit, &pv);
+    if (rc == EXIT_OK)
+        report_leakage(opts, &pv.leakage);
+    return rc;
 }
 
 /* The outputs of the running command, for the exit handler below: PLplot ends the process on

@@ -243,6 +243,22 @@ static void flag_flat_residual(prepared_series *ps)
         ps->constant = 2;
 }
 
+/* The trend-leakage diagnostic over edge spans of one bandwidth (--bandwidth, even for a
+ * method that has none, so every method is judged on the same spans), at level 0.01. */
+enum { LEAKAGE_MIN_EDGE = 8 };
+#define LEAKAGE_LEVEL 0.01
+
+static void test_leakage(const cli_options *o, prepared_series *ps)
+{
+    double length = o->bandwidth.percent ? o->bandwidth.amount / 100.0 * ps->span
+                                         : o->bandwidth.amount;
+    double edge = floor(length / ps->dt + 0.5);
+    if (!(edge >= LEAKAGE_MIN_EDGE) || edge > (double)(ps->n / 2))
+        return; /* too short to say anything, or the edges would overlap */
+    ps->leakage_tested = detrend_leakage_test(ps->residual, ps->n, (size_t)edge, LEAKAGE_LEVEL,
+                                              &ps->leakage) == SLOWSCAN_OK;
+}
+
 int cli_prepare_series(const cli_options *o, const series_table *t, size_t k, prepared_series *ps)
 {
     memset(ps, 0, sizeof *ps);
@@ -282,6 +298,8 @@ int cli_prepare_series(const cli_options *o, const series_table *t, size_t k, pr
     if ((st = detrend_apply(&spec, ps->dt, ps->value, t->n, ps->trend, ps->residual)) != SLOWSCAN_OK)
         return detrend_fail(st, o, ps);
     flag_flat_residual(ps);
+    if (!ps->constant)
+        test_leakage(o, ps);
     return EXIT_OK;
 }
 

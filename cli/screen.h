@@ -15,6 +15,8 @@ typedef struct {
     trend_result result; /* tau, p, the null's quantiles */
     const char *flag;
     int harmonics; /* the cycle removed: -1 none, 0 the mean cycle, K harmonics */
+    detrend_leakage leakage; /* the series' trend-leakage test (valid when leakage_tested) */
+    int leakage_tested;
     gsl_histogram *null_hist; /* with --figures: the null distribution, binned; else NULL */
 } screen_row;
 

@@ -37,7 +37,8 @@ static void write_parameters(FILE *fp, const cli_options *o)
         fprintf(fp, ",\n    \"%s\": ", numbers[k].key);
         cli_json_number(fp, numbers[k].v);
     }
-    fprintf(fp, ",\n    \"log\": %s,\n    \"noise_trend\": %s,\n    \"detrend\": ",
+    fprintf(fp, ",\n    \"log\": %s,\n    \"noise_trend\": %s,\n"
+            "    \"recovery_trend_standard_error\": \"HC3\",\n    \"detrend\": ",
             o->log_values ? "true" : "false", o->noise_trend ? "true" : "false");
     cli_json_string(fp, o->detrend_text);
     fputs(",\n", fp);
@@ -66,6 +67,33 @@ static void write_parameters(FILE *fp, const cli_options *o)
             o->seed);
 }
 
+/* The series' trend-leakage test (null when it could not be made). */
+static void write_leakage(FILE *fp, const screen_row *row)
+{
+    fputs(", \"trend_leakage\": ", fp);
+    if (!row->leakage_tested) {
+        fputs("null", fp);
+        return;
+    }
+    const detrend_leakage *l = &row->leakage;
+    const detrend_edge *edges[2] = {&l->first, &l->last};
+    fprintf(fp, "{\"level\": %g, \"leaking\": %s, \"residual_lag1\": ", l->level,
+            l->leaking ? "true" : "false");
+    cli_json_number(fp, l->r1);
+    for (int e = 0; e < 2; e++) {
+        fprintf(fp, ", \"%s\": {\"mean\": ", e ? "last" : "first");
+        cli_json_number(fp, edges[e]->mean);
+        fputs(", \"z\": ", fp);
+        cli_json_number(fp, edges[e]->z);
+        fputs(", \"p_value\": ", fp);
+        cli_json_number(fp, edges[e]->p);
+        fprintf(fp, ", \"samples\": %zu, \"effective_samples\": ", edges[e]->samples);
+        cli_json_number(fp, edges[e]->effective);
+        fputc('}', fp);
+    }
+    fputc('}', fp);
+}
+
 static void write_row(FILE *fp, const screen_row *row)
 {
     fputs("    {\"series\": ", fp);
@@ -82,6 +110,11 @@ static void write_row(FILE *fp, const screen_row *row)
     fprintf(fp, ", \"flag\": \"%s\", \"deseason_harmonics\": ", row->flag);
     /* the cycle removed from this series: null none, 0 the mean cycle, K harmonics */
     row->harmonics < 0 ? (void)fputs("null", fp) : (void)fprintf(fp, "%d", row->harmonics);
+    /* recovery_trend: the statistic is t(a1) with the HC3 standard error; this one uses the
+     * model-based (OLS, or WLS under --noise-trend) error, kept for comparison */
+    fputs(", \"statistic_model_based\": ", fp);
+    cli_json_number(fp, row->result.statistic_model);
+    write_leakage(fp, row);
     fprintf(fp, ", \"null_count\": %zu, \"null_quantiles\": {", row->result.null_used);
     for (int q = 0; q < TREND_QUANTILES; q++) {
         fprintf(fp, "%s\"%g\": ", q ? ", " : "", trend_quantile_levels[q]);

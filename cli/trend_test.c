@@ -176,7 +176,7 @@ static int test_series(const cli_options *opts, const prepared_series *ps, trend
 
 /* The drift statistic of the observed residual: the t-value of a1. */
 static double drift_of(trend_tester *run, const cli_options *opts, const prepared_series *ps,
-                       const char **reason)
+                       const char **reason, double *model)
 {
     if (run->drift_n != ps->n) {
         ar1_drift_free(run->drift);
@@ -187,8 +187,10 @@ static double drift_of(trend_tester *run, const cli_options *opts, const prepare
     if (run->drift)
         ar1_drift_set_noise_trend(run->drift, opts->noise_trend);
     int st = run->drift ? ar1_drift_estimate(run->drift, ps->residual, ps->n, &fit) : SLOWSCAN_ENOMEM;
-    if (st == SLOWSCAN_OK && isfinite(fit.t_a1))
+    if (st == SLOWSCAN_OK && isfinite(fit.t_a1)) {
+        *model = fit.t_a1_model;
         return fit.t_a1;
+    }
     *reason = st == SLOWSCAN_ESHORT ? "fewer than 8 adjacent pairs" : "no AR(1) drift fit";
     return NAN;
 }
@@ -199,13 +201,15 @@ int trend_test(trend_tester *run, const cli_options *opts, const prepared_series
     size_t tests = trend_test_count(opts);
     for (size_t j = 0; j < tests; j++) {
         trend_result *r = &results[j];
-        *r = (trend_result){NAN, NAN, NAN, 0, {NAN, NAN, NAN, NAN, NAN}, "the series has no variation"};
+        *r = (trend_result){.tau = NAN, .statistic = NAN, .statistic_model = NAN, .p_value = NAN,
+                            .quantile = {NAN, NAN, NAN, NAN, NAN},
+                            .reason = "the series has no variation"};
         if (ps->constant)
             continue;
         if (j < opts->nindicators)
             r->tau = r->statistic = trend_of(run, ps, values[j], &r->reason);
         else
-            r->statistic = drift_of(run, opts, ps, &r->reason);
+            r->statistic = drift_of(run, opts, ps, &r->reason, &r->statistic_model);
     }
     int any = 0;
     for (size_t j = 0; j < tests; j++)

@@ -18,6 +18,7 @@ extern const double trend_quantile_levels[TREND_QUANTILES];
 typedef struct {
     double tau;               /* Kendall tau of the indicator path (NaN for the drift test) */
     double statistic;         /* the tested statistic: tau, or the t-value of the drift */
+    double statistic_model;   /* the drift test: t with the model-based standard error */
     double p_value;           /* NaN when not available */
     size_t null_used;         /* finite null values behind p */
     double quantile[TREND_QUANTILES];

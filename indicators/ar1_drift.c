@@ -96,6 +96,55 @@ static void noise_weights(ar1_drift_workspace *ws, const gsl_matrix *X, const gs
     }
 }
 
+/* HC3 covariance (MacKinnon & White 1985, J. Econometrics 29:305) of the last fit:
+ * (X'WX)^-1 [sum_k w_k^2 e_k^2 / (1 - h_k)^2 x_k x_k'] (X'WX)^-1, h_k = w_k x_k'(X'WX)^-1 x_k,
+ * written into robust. `inverse` is (X'WX)^-1; w_k = 1 without the noise trend. Each squared
+ * residual is inflated by its leverage, so a few influential pairs (a large x_t under a noise
+ * that grows with the level) cannot make a1 look precise. */
+static void hc3_covariance(const ar1_drift_workspace *ws, const gsl_matrix *X, const gsl_vector *y,
+                           size_t m, const double inverse[3][3], double robust[3][3])
+{
+    double meat[3][3] = {{0}};
+    for (size_t k = 0; k < m; k++) {
+        double row[3], fitted = 0, leverage = 0;
+        double w = ws->noise_trend ? gsl_vector_get(ws->weight, k) : 1.0;
+        for (size_t j = 0; j < 3; j++) {
+            row[j] = gsl_matrix_get(X, k, j);
+            fitted += row[j] * gsl_vector_get(ws->coef, j);
+        }
+        for (size_t i = 0; i < 3; i++)
+            for (size_t j = 0; j < 3; j++)
+                leverage += row[i] * inverse[i][j] * row[j];
+        leverage *= w;
+        double e = (gsl_vector_get(y, k) - fitted) * w / (1.0 - fmin(leverage, 1.0 - 1e-12));
+        for (size_t i = 0; i < 3; i++)
+            for (size_t j = 0; j < 3; j++)
+                meat[i][j] += e * e * row[i] * row[j];
+    }
+    for (size_t i = 0; i < 3; i++)
+        for (size_t j = 0; j < 3; j++) {
+            double sum = 0;
+            for (size_t a = 0; a < 3; a++)
+                for (size_t b = 0; b < 3; b++)
+                    sum += inverse[i][a] * meat[a][b] * inverse[b][j];
+            robust[i][j] = sum;
+        }
+}
+
+/* The weighted refit under the noise trend; leaves (X'WX)^-1 in ws->cov. */
+static int noise_trend_refit(ar1_drift_workspace *ws, const gsl_matrix *X, const gsl_vector *y,
+                             size_t m, double *chisq)
+{
+    size_t rank;
+    gsl_vector_view w = gsl_vector_subvector(ws->weight, 0, m);
+    noise_weights(ws, X, y, m);
+    int st = gsl_multifit_wlinear_tsvd(X, &w.vector, y, 1e-12, ws->coef, ws->cov, chisq, &rank,
+                                       ws->lw);
+    if (st != GSL_SUCCESS)
+        return SLOWSCAN_ENUMERIC;
+    return rank < 3 ? SLOWSCAN_ECONST : SLOWSCAN_OK;
+}
+
 int ar1_drift_estimate(ar1_drift_workspace *ws, const double *x, size_t n, ar1_drift_fit *fit)
 {
     if (n > ws->nmax || n < 2)
@@ -114,24 +163,27 @@ int ar1_drift_estimate(ar1_drift_workspace *ws, const double *x, size_t n, ar1_d
         return SLOWSCAN_ENUMERIC;
     if (rank < 3)
         return SLOWSCAN_ECONST;
-    /* GSL's covariance is already s^2 (X'X)^-1 with s^2 = chisq / (m - 3). */
-    double s2 = chisq / (double)(m - 3);
+    /* GSL's covariance is s^2 (X'X)^-1 with s^2 = chisq / (m - 3) after an unweighted fit, and
+     * (X'WX)^-1 unscaled after a weighted one. */
+    double s2 = chisq / (double)(m - 3), inverse[3][3], robust[3][3];
     if (ws->noise_trend) {
-        gsl_vector_view w = gsl_vector_subvector(ws->weight, 0, m);
-        noise_weights(ws, &X.matrix, &y.vector, m);
-        st = gsl_multifit_wlinear_tsvd(&X.matrix, &w.vector, &y.vector, 1e-12, ws->coef, ws->cov,
-                                       &chisq, &rank, ws->lw);
-        if (st != GSL_SUCCESS || rank < 3)
-            return st != GSL_SUCCESS ? SLOWSCAN_ENUMERIC : SLOWSCAN_ECONST;
-        /* (X'WX)^-1 from GSL, scaled by the weighted residual variance. */
+        if ((st = noise_trend_refit(ws, &X.matrix, &y.vector, m, &chisq)) != SLOWSCAN_OK)
+            return st;
         s2 = chisq / (double)(m - 3);
-        gsl_matrix_scale(ws->cov, s2);
     }
-    *fit = (ar1_drift_fit){gsl_vector_get(ws->coef, 0), gsl_vector_get(ws->coef, 1),
-                           gsl_vector_get(ws->coef, 2), sqrt(gsl_matrix_get(ws->cov, 0, 0)),
-                           sqrt(gsl_matrix_get(ws->cov, 1, 1)), sqrt(gsl_matrix_get(ws->cov, 2, 2)),
-                           gsl_matrix_get(ws->cov, 0, 1), 0.0, s2, m};
+    for (size_t i = 0; i < 3; i++)
+        for (size_t j = 0; j < 3; j++)
+            inverse[i][j] = gsl_matrix_get(ws->cov, i, j) / (ws->noise_trend ? 1.0 : s2);
+    if (ws->noise_trend) /* the model-based covariance, as after the unweighted fit */
+        gsl_matrix_scale(ws->cov, s2);
+    hc3_covariance(ws, &X.matrix, &y.vector, m, inverse, robust);
+    *fit = (ar1_drift_fit){
+        .a0 = gsl_vector_get(ws->coef, 0), .a1 = gsl_vector_get(ws->coef, 1),
+        .c = gsl_vector_get(ws->coef, 2), .se_a0 = sqrt(robust[0][0]), .se_a1 = sqrt(robust[1][1]),
+        .se_c = sqrt(robust[2][2]), .cov_a0_a1 = robust[0][1],
+        .se_a1_model = sqrt(gsl_matrix_get(ws->cov, 1, 1)), .sigma2 = s2, .pairs = m};
     fit->t_a1 = fit->se_a1 > 0 ? fit->a1 / fit->se_a1 : NAN;
+    fit->t_a1_model = fit->se_a1_model > 0 ? fit->a1 / fit->se_a1_model : NAN;
     return SLOWSCAN_OK;
 }
 

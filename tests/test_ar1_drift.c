@@ -35,14 +35,16 @@ void suite_ar1_drift(void)
           fit.se_a1);
     /* Coefficients and standard errors against statsmodels.api.OLS on the same design matrix
      * (Debian python3-statsmodels, reference library). */
-    double ref[6];
-    CHECK(check_python_on("ols_statsmodels.py", x, N, NULL, ref, 6) == 6, "statsmodels ran");
+    double ref[9];
+    CHECK(check_python_on("ols_statsmodels.py", x, N, NULL, ref, 9) == 9, "statsmodels ran");
     CHECK_CLOSE(fit.a0, ref[0], 1e-9, 1e-12, "a0 vs statsmodels");
     CHECK_CLOSE(fit.a1, ref[1], 1e-9, 1e-12, "a1 vs statsmodels");
     CHECK_CLOSE(fit.c, ref[2], 1e-9, 1e-12, "c vs statsmodels");
-    CHECK_CLOSE(fit.se_a0, ref[3], 1e-8, 1e-12, "se(a0) vs statsmodels");
-    CHECK_CLOSE(fit.se_a1, ref[4], 1e-8, 1e-12, "se(a1) vs statsmodels");
-    CHECK_CLOSE(fit.se_c, ref[5], 1e-8, 1e-12, "se(c) vs statsmodels");
+    CHECK_CLOSE(fit.se_a1_model, ref[4], 1e-8, 1e-12, "model se(a1) vs statsmodels");
+    /* HC3 against statsmodels OLS(...).fit(cov_type="HC3") (MacKinnon & White 1985). */
+    CHECK_CLOSE(fit.se_a0, ref[6], 1e-8, 1e-12, "HC3 se(a0) vs statsmodels");
+    CHECK_CLOSE(fit.se_a1, ref[7], 1e-8, 1e-12, "HC3 se(a1) vs statsmodels");
+    CHECK_CLOSE(fit.se_c, ref[8], 1e-8, 1e-12, "HC3 se(c) vs statsmodels");
     /* --noise-trend: weighted least squares against statsmodels.api.WLS with the same
      * variance model (Debian python3-statsmodels), on a series whose noise grows 1 -> 4. */
     check_rng *r = check_rng_alloc(5);
@@ -52,11 +54,12 @@ void suite_ar1_drift(void)
     check_rng_free(r);
     ar1_drift_set_noise_trend(ws, 1);
     CHECK(ar1_drift_estimate(ws, x, N, &fit) == SLOWSCAN_OK, "noise-trend fit runs");
-    CHECK(check_python_on("wls_statsmodels.py", x, N, NULL, ref, 6) == 6, "statsmodels WLS ran");
+    CHECK(check_python_on("wls_statsmodels.py", x, N, NULL, ref, 9) == 9, "statsmodels WLS ran");
     CHECK_CLOSE(fit.a0, ref[0], 1e-9, 1e-12, "WLS a0 vs statsmodels");
     CHECK_CLOSE(fit.a1, ref[1], 1e-9, 1e-12, "WLS a1 vs statsmodels");
-    CHECK_CLOSE(fit.se_a0, ref[3], 1e-8, 1e-12, "WLS se(a0) vs statsmodels");
-    CHECK_CLOSE(fit.se_a1, ref[4], 1e-8, 1e-12, "WLS se(a1) vs statsmodels");
+    CHECK_CLOSE(fit.se_a1_model, ref[4], 1e-8, 1e-12, "WLS model se(a1) vs statsmodels");
+    CHECK_CLOSE(fit.se_a0, ref[6], 1e-8, 1e-12, "WLS HC3 se(a0) vs statsmodels");
+    CHECK_CLOSE(fit.se_a1, ref[7], 1e-8, 1e-12, "WLS HC3 se(a1) vs statsmodels");
     CHECK(fabs(fit.a1) < 4 * fit.se_a1, "a constant memory under growing noise: a1 %.4f (se %.4f)",
           fit.a1, fit.se_a1);
     ar1_drift_set_noise_trend(ws, 0);

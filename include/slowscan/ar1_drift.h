@@ -6,6 +6,11 @@
  * lambda(t) = ln(a0 + a1 s_t) / dt drifts toward zero. The t-value of a1 is the statistic of
  * the model-based slowing-down test; its null distribution comes from surrogates, not from
  * Student's t, because the residual is not white under the alternatives that matter.
+ * Its standard error is heteroscedasticity-consistent (HC3, MacKinnon & White 1985): with the
+ * model-based one, a noise whose spread grows with the level or over time gives the observed
+ * series a t that spreads wider than the surrogates' (which are Gaussian and homoscedastic),
+ * and false alarms follow; the sandwich estimate keeps both on one scale. The model-based
+ * standard error is kept beside it (se_a1_model).
  * The workspace holds the design, so refits (one per surrogate) do not allocate. */
 #ifndef SLOWSCAN_AR1_DRIFT_H
 #define SLOWSCAN_AR1_DRIFT_H
@@ -15,9 +20,11 @@
 
 typedef struct {
     double a0, a1, c;             /* coefficients */
-    double se_a0, se_a1, se_c;    /* OLS standard errors */
-    double cov_a0_a1;             /* covariance of a0 and a1 */
-    double t_a1;                  /* a1 / se_a1 */
+    double se_a0, se_a1, se_c;    /* heteroscedasticity-consistent (HC3) standard errors */
+    double cov_a0_a1;             /* HC3 covariance of a0 and a1 */
+    double t_a1;                  /* a1 / se_a1: the statistic of the drift test */
+    double se_a1_model;           /* the model-based (OLS, or WLS under the noise trend) one */
+    double t_a1_model;            /* a1 / se_a1_model */
     double sigma2;                /* residual variance (pairs - 3 degrees of freedom) */
     size_t pairs;                 /* pairs used */
 } ar1_drift_fit;

@@ -109,4 +109,28 @@ int detrend_deseason_check(const deseason_spec *spec, double dt, size_t n,
  * On any failure x is left unchanged. */
 int detrend_deseason_apply(const deseason_spec *spec, double dt, double *x, size_t n);
 
+
+/* The trend-leakage diagnostic (detrend/leakage.c): is the residual's mean over the first and
+ * over the last `edge` samples away from zero, as when the trend was not followed near the
+ * record's ends? Each edge mean is tested with the standard error from the effective sample
+ * size m (1 - r1)/(1 + r1), r1 the residual's lag-1 autocorrelation; each edge at level/2. */
+typedef struct {
+    double mean;      /* residual mean over the edge span (NaN without finite samples) */
+    double z, p;      /* mean / standard error and its two-sided normal p (NaN: too few) */
+    size_t samples;   /* finite samples in the span */
+    double effective; /* effective sample size */
+} detrend_edge;
+
+typedef struct {
+    detrend_edge first, last;
+    double r1;    /* lag-1 autocorrelation of the whole residual */
+    double level; /* the series-level test size */
+    int leaking;  /* 1 when either edge's p < level/2 */
+} detrend_leakage;
+
+/* SLOWSCAN_EINVAL for edge < 2 or > n or level outside (0, 1); SLOWSCAN_ESHORT with fewer than
+ * 3 finite values; SLOWSCAN_ECONST for a constant residual. NaN samples are skipped. */
+int detrend_leakage_test(const double *residual, size_t n, size_t edge, double level,
+                         detrend_leakage *out);
+
 #endif

@@ -2,7 +2,7 @@
 """The noise-trend fit by statsmodels (Debian python3-statsmodels): OLS of x[t+1] on
 (x[t], s_t x[t], 1), a straight line through the squared residuals over s_t (floored at 1% of
 their mean) as the variance, then statsmodels.api.WLS with weights 1/variance.
-Prints a0 a1 c and their standard errors. Usage: wls_statsmodels.py FILE"""
+Prints a0 a1 c, their standard errors, and their HC3 standard errors (cov_type="HC3"). Usage: wls_statsmodels.py FILE"""
 import sys
 import numpy as np
 import statsmodels.api as sm
@@ -15,4 +15,5 @@ r2 = sm.OLS(x[1:], X).fit().resid ** 2
 line = np.polyfit(s, r2, 1)
 v = np.maximum(np.polyval(line, s), 0.01 * r2.mean())
 w = sm.WLS(x[1:], X, weights=1.0 / v).fit()
-print(" ".join("%.17g" % q for q in list(w.params) + list(w.bse)))
+h = sm.WLS(x[1:], X, weights=1.0 / v).fit(cov_type="HC3")
+print(" ".join("%.17g" % q for q in list(w.params) + list(w.bse) + list(h.bse)))
