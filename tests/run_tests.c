@@ -21,6 +21,7 @@ void suite_projection(void);
 void suite_report(void);
 void suite_robustness(void);
 void suite_leakage(void);
+void suite_co2(void);
 
 static const struct {
     const char *name;
@@ -30,7 +31,7 @@ static const struct {
     {"spectral", suite_spectral},
     {"kendall", suite_kendall},       {"surrogates", suite_surrogates}, {"ar1_drift", suite_ar1_drift}, {"cli", suite_cli},
     {"significance", suite_significance}, {"projection", suite_projection},
-    {"report", suite_report},         {"robustness", suite_robustness}, {"leakage", suite_leakage},
+    {"report", suite_report},         {"robustness", suite_robustness}, {"leakage", suite_leakage}, {"co2", suite_co2},
 };
 
 int main(int argc, char **argv)
