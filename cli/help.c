@@ -129,8 +129,10 @@ static void help_screen(FILE *out)
           "For every series: detrend, compute rolling indicators, and measure their trend by\n"
           "Kendall tau-b against time; with recovery_trend (default) also fit\n"
           "x[t+1] = (a0 + a1 s_t) x[t] + c + e (s_t: time rescaled to [-1/2, 1/2]) and take the\n"
-          "t-value of a1. Each statistic is tested against surrogates of the residual pushed\n"
-          "through the same pipeline. Writes one row per series x test:\n"
+          "t-value of a1, with a heteroscedasticity-consistent (HC3) standard error so that a\n"
+          "noise whose spread follows the level or grows is not read as growing memory. Each\n"
+          "statistic is tested against surrogates of the residual pushed through the same\n"
+          "pipeline. Writes one row per series x test:\n"
           "series,indicator,n,window,bandwidth,tau,statistic,p_value,q_value,null,surrogates,flag\n"
           "(window and bandwidth in time units; statistic = tau, or t(a1) for recovery_trend,\n"
           "whose tau and window are NA). p = (1 + #{s_j >= s}) / (M + 1), one-sided toward a\n"
@@ -138,7 +140,15 @@ static void help_screen(FILE *out)
           "every test of the run. flag: 'rising' when q <= --fdr and the statistic is > 0\n"
           "(p decides when there is a single test), 'falling' likewise for tau < 0 under a\n"
           "decreasing or two-sided alternative, 'none' otherwise, 'untested' with\n"
-          "--surrogates 0, 'insufficient' when too few finite values remain (reason on stderr).\n\n",
+          "--surrogates 0, 'insufficient' when too few finite values remain (reason on stderr).\n\n"
+          "Trend leakage: a residual whose mean over the first or the last bandwidth is away\n"
+          "from zero (level 0.01, standard error from the effective sample size) still holds\n"
+          "part of the trend, and a rise near the ends may be the trend's; such series are\n"
+          "named on stderr (one summary line when there are many) and marked in --json.\n"
+          "What each null can hold: every null model keeps the residual's own memory only as\n"
+          "far as it is built to; --null ar1 cannot reproduce memory that is not AR(1)\n"
+          "(ARMA, 1/f noise) and then rejects too often (13-15% at a nominal 5% in our\n"
+          "measurements); phase, aaft and iaaft keep the whole periodogram.\n\n",
           out);
     fputs(input_options, out);
     fputs(rolling_options, out);
@@ -146,7 +156,8 @@ static void help_screen(FILE *out)
     fputs("screening:\n"
           "  --fdr Q              false-discovery rate for the flag (default 0.05)\n"
           "  --noise-trend        recovery_trend: let the innovation variance drift linearly\n"
-          "                       too (weighted least squares)\n"
+          "                       too (weighted least squares; the HC3 error keeps the test\n"
+          "                       valid when the noise sd, not the variance, rises linearly)\n"
           "  --rolling FILE       also write the rolling indicators (as 'indicators' does)\n"
           "  --json FILE          also write the summary as JSON, with the quantiles of each\n"
           "                       null distribution and every parameter of the run\n"
@@ -213,7 +224,8 @@ static void help_recovery(FILE *out)
           "series,time,lambda,lambda_lo,lambda_hi, lambda = ln(a0 + a1 s_t)/dt with a pointwise\n"
           "95% band (delta method). a1 > 0: the memory grows, lambda rises toward 0.\n\n", out);
     fputs(input_options, out);
-    fputs("  --json FILE          per series a0, a1, c, their standard errors, the t-value of a1\n"
+    fputs("  --json FILE          per series a0, a1, c, their HC3 standard errors, the t-value\n"
+          "                       of a1, the model-based (OLS/WLS) error and t beside them,\n"
           "                       and, with --surrogates M, its surrogate p-value (a1 > 0)\n"
           "  --noise-trend        let the innovation variance drift linearly too (weighted\n"
           "                       least squares), so a growing noise is not read as memory\n"
