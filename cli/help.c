@@ -213,8 +213,10 @@ static const char projection_caution[] =
     "trend that bends (near a fold the recovery rate nears zero like a square root, not a line),\n"
     "a transition set off early by noise or by the rate of forcing, or one that comes late,\n"
     "all make it wrong, and its interval only covers the noise of the fit, not these: it\n"
-    "is a 95% interval only if the coefficient's trend really is a straight line (in our\n"
-    "tests on series driven toward a fold it held the true crossing in 27 of 40).\n\n";
+    "is a 95% interval only if the coefficient's trend really is a straight line (on\n"
+    "AR(1) series whose coefficient drifts in a straight line it held the true crossing\n"
+    "in 97 of 100; on 40 series driven toward a fold, in none: every projection fell late,\n"
+    "by a median of 0.38 record lengths).\n\n";
 
 static void help_recovery(FILE *out)
 {
