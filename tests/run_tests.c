@@ -18,6 +18,7 @@ void suite_ar1_drift(void);
 void suite_cli(void);
 void suite_projection(void);
 void suite_report(void);
+void suite_calibration(void);
 
 static const struct {
     const char *name;
@@ -27,7 +28,7 @@ static const struct {
     {"spectral", suite_spectral},
     {"kendall", suite_kendall},       {"surrogates", suite_surrogates}, {"ar1_drift", suite_ar1_drift}, {"cli", suite_cli},
     {"significance", suite_significance}, {"projection", suite_projection},
-    {"report", suite_report},
+    {"report", suite_report},         {"calibration", suite_calibration},
 };
 
 int main(int argc, char **argv)
