@@ -167,7 +167,7 @@ calibration_outcome calibration_run_case(const calibration_case *c, const calibr
 
 /* ---- the suite ---- */
 
-enum { SUITE_SERIES = 200, SUITE_SURROGATES = 99 };
+enum { SUITE_SERIES = 400, SUITE_SURROGATES = 99 };
 
 static int report_only(void)
 {
@@ -180,8 +180,8 @@ static void print_cell(const calibration_case *c, int t, const calibration_count
 {
     double lo, hi;
     calibration_interval(k->hits, k->tested, &lo, &hi);
-    fprintf(stderr, "%-17s %-15s %4zu/%-4zu %6.3f %6zu   %.3f-%.3f   %s\n", c->name,
-            calibration_test_names[t], k->hits, k->tested,
+    fprintf(stderr, "%-17s %5zu %-15s %4zu/%-4zu %6.3f %6zu   %.3f-%.3f   %s\n", c->name,
+            c->n, calibration_test_names[t], k->hits, k->tested,
             k->tested ? (double)k->hits / (double)k->tested : NAN, bound, lo, hi, verdict);
 }
 
@@ -221,7 +221,7 @@ void suite_calibration(void)
     fprintf(stderr, "calibration: S = %d series per case, M = %d surrogates, default null and "
             "detrend; bound = one-sided binomial at %.2g/%zu cells%s\n", SUITE_SERIES,
             SUITE_SURROGATES, BATTERY_ALPHA, cells, lenient ? " (REPORT ONLY)" : "");
-    fprintf(stderr, "%-17s %-15s %9s %6s %6s   %-11s   %s\n", "case", "test", "count/S",
+    fprintf(stderr, "%-17s %5s %-15s %9s %6s %6s   %-11s   %s\n", "case", "n", "test", "count/S",
             "share", "bound", "95% CI", "verdict");
     size_t fails = 0, skipped = 0;
     for (size_t i = 0; i < calibration_case_count; i++) {
