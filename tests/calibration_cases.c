@@ -81,6 +81,12 @@ const calibration_case calibration_cases[] = {
      .n = 600, .noise = CAL_NOISE_ARMA, .phi = 0.5, .sd = 1, .sd_end = 1, .period = 12,
      .amp0 = 1, .amp1 = 4, .options = "--deseason 12 --deseason-window 20%",
      .needs = "--deseason-window"},
+    /* Weekly samples of an annual cycle: 52.1775 steps per period is no whole number, so the
+     * cycle is fitted as two sine/cosine pairs (the shape has two harmonics). */
+    {.name = "seasonal-weekly", .what = "period 52.1775 steps, 2 harmonics, AR(1) phi 0.5",
+     .n = 522, .noise = CAL_NOISE_ARMA, .phi = 0.5, .sd = 1, .sd_end = 1, .period = 52.1775,
+     .amp0 = 2, .amp1 = 2, .second = 0.4, .options = "--deseason 52.1775 --harmonics 2",
+     .needs = "--harmonics"},
     {.name = "missing-10%", .what = "AR(1) phi 0.5, 10% of samples missing at random",
      .n = 500, .noise = CAL_NOISE_ARMA, .phi = 0.5, .sd = 1, .sd_end = 1,
      .gaps = CAL_GAPS_RANDOM, .gap_share = 0.10, .options = ""},
@@ -155,10 +161,12 @@ static double season_at(const calibration_case *c, size_t i)
         return 0.0;
     double u = (double)i / (double)(c->n - 1);
     double amp = c->amp0 + (c->amp1 - c->amp0) * u * u;
-    return amp * sin(2 * M_PI * (double)i / c->period);
+    double phase = 2 * M_PI * (double)i / c->period;
+    return amp * (sin(phase) + c->second * cos(2 * phase));
 }
 
-/* Random gaps keep the first and last samples, so every series spans the same time. */
+/* Random gaps keep the first and last samples, so every series spans the same time.
+ * scratch holds 2n indices: the candidates, then the chosen ones. */
 static void punch_gaps(const calibration_case *c, gsl_rng *r, double *x, size_t *scratch)
 {
     size_t n = c->n, k = (size_t)lround(c->gap_share * (double)n);
@@ -169,9 +177,9 @@ static void punch_gaps(const calibration_case *c, gsl_rng *r, double *x, size_t 
     } else if (c->gaps == CAL_GAPS_RANDOM) {
         for (size_t i = 0; i + 2 < n; i++)
             scratch[i] = i + 1;
-        gsl_ran_choose(r, scratch, k, scratch, n - 2, sizeof *scratch);
+        gsl_ran_choose(r, scratch + n, k, scratch, n - 2, sizeof *scratch);
         for (size_t j = 0; j < k; j++)
-            x[scratch[j]] = NAN;
+            x[scratch[n + j]] = NAN;
     }
 }
 
@@ -193,7 +201,7 @@ int calibration_write_case(const calibration_case *c, size_t series, unsigned lo
 {
     gsl_rng *r = gsl_rng_alloc(gsl_rng_mt19937);
     double *x = malloc(series * c->n * sizeof *x);
-    size_t *scratch = malloc(c->n * sizeof *scratch);
+    size_t *scratch = malloc(2 * c->n * sizeof *scratch);
     int status = -1;
     if (r && x && scratch) {
         gsl_rng_set(r, seed);

@@ -46,6 +46,7 @@ typedef struct {
     calibration_mean mean;
     double change;
     double period, amp0, amp1; /* seasonal cycle, amplitude amp0 -> amp1 quadratically in u */
+    double second;             /* its second harmonic's amplitude, relative to the first */
     calibration_gaps gaps;
     double gap_share;      /* share of samples missing */
     const char *options;   /* extra screen options ("" for none) */
