@@ -109,6 +109,23 @@ static void print_table(FILE *f, const calibration_scale *const *run, size_t nul
                 calibration_cases[i].options, calibration_cases[i].what);
 }
 
+/* Written to OUT.md.tmp and renamed: a run stopped while writing keeps the previous table. */
+static int write_table(const char *path, const calibration_scale *const *run, size_t nulls,
+                       case_result *const *res, const size_t *bound, size_t cells)
+{
+    char tmp[1024];
+    snprintf(tmp, sizeof tmp, "%s.tmp", path);
+    FILE *out = fopen(tmp, "w");
+    if (!out)
+        return -1;
+    print_table(out, run, nulls, res, bound, cells);
+    if (fclose(out) != 0 || rename(tmp, path) != 0) {
+        remove(tmp);
+        return -1;
+    }
+    return 0;
+}
+
 int main(int argc, char **argv)
 {
     if (argc < 2) {
@@ -138,10 +155,7 @@ int main(int argc, char **argv)
         res[j] = calloc(calibration_case_count, sizeof *res[j]);
         bound[j] = calibration_bound(run[j]->series, 0.01 / (double)cells);
         run_null(run[j], res[j]);
-        FILE *out = fopen(argv[1], "w");
-        if (out)
-            print_table(out, run, j + 1, res, bound, cells);
-        written = out && fclose(out) == 0;
+        written = write_table(argv[1], run, j + 1, res, bound, cells) == 0;
     }
     print_table(stdout, run, nulls, res, bound, cells);
     fprintf(stderr, "validate: %.0f s in all; table in %s\n", seconds_since(&t0), argv[1]);
