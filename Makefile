@@ -3,6 +3,7 @@
 #   make check      the test suite, plain and under AddressSanitizer + UBSan
 #   make demo       screen the bundled demo data, draw its figures (demo-output/), print the table
 #   make bench      speed ratios, measured in one run
+#   make validate   the calibration battery at scale, four nulls (~20-30 min): build/validate.md
 #   make install    PREFIX=/usr/local DESTDIR=
 # `check` and `demo` first install missing Debian packages (scripts/install-deps.sh).
 
@@ -36,7 +37,7 @@ SCLI_OBJ  := $(CLI_SRC:%.c=$(B)/asan/%.o)
 STEST_OBJ := $(TEST_SRC:%.c=$(B)/asan/%.o)
 BENCH_BIN := $(BENCH_SRC:bench/%.c=$(B)/bench/%)
 
-.PHONY: all deps check demo bench install clean
+.PHONY: all deps check demo bench validate install clean
 all: $(B)/slowscan $(B)/libslowscan.a
 
 deps:
@@ -77,6 +78,16 @@ check: deps
 	ASAN_OPTIONS=detect_leaks=1:abort_on_error=0 UBSAN_OPTIONS=print_stacktrace=1 \
 	  LSAN_OPTIONS=suppressions=$(CURDIR)/tests/lsan.supp:print_suppressions=0 \
 	  SLOWSCAN_BIN=$(B)/asan/slowscan SLOWSCAN_LABEL=sanitized $(B)/asan/run_tests
+
+# The calibration battery of `make check` with more series and every memory-keeping null.
+VALIDATE_OBJ := $(B)/obj/tests/validate/validate.o $(B)/obj/tests/check.o \
+                $(B)/obj/tests/calibration_cases.o $(B)/obj/tests/test_calibration.o
+$(B)/validate: $(VALIDATE_OBJ)
+	$(CC) $(CFLAGS) -o $@ $^ $(LIBS)
+
+validate: deps
+	@$(MAKE) --no-print-directory all $(B)/validate
+	SLOWSCAN_BIN=$(B)/slowscan $(B)/validate $(B)/validate.md
 
 DEMO_OUT ?= demo-output
 DEMO_ARGS := --deseason 364 --indicators variance,lag1,recovery_trend

@@ -231,7 +231,31 @@ int check_totals(const char *label)
     return failed ? 1 : 0;
 }
 
-/* Columns t (0, 1, ...), s0, s1, ...: series k sample i from gen. */
+/* Columns t (0, 1, ...), s0, s1, ...; NaN is written as NA (a missing cell). */
+int check_write_columns_csv(const char *path, size_t count, size_t n, const double *x)
+{
+    FILE *f = fopen(path, "w");
+    if (!f)
+        return -1;
+    fputs("t", f);
+    for (size_t k = 0; k < count; k++)
+        fprintf(f, ",s%zu", k);
+    fputc('\n', f);
+    for (size_t i = 0; i < n; i++) {
+        fprintf(f, "%zu", i);
+        for (size_t k = 0; k < count; k++) {
+            double v = x[k * n + i];
+            if (isnan(v))
+                fputs(",NA", f);
+            else
+                fprintf(f, ",%.10g", v);
+        }
+        fputc('\n', f);
+    }
+    return fclose(f) == 0 ? 0 : -1;
+}
+
+/* Series k sample i from gen, series-major draws. */
 void check_write_series_csv(const char *path, size_t count, size_t n, check_sample_fn gen,
                             unsigned long seed)
 {
@@ -241,18 +265,8 @@ void check_write_series_csv(const char *path, size_t count, size_t n, check_samp
     for (size_t k = 0; k < count; k++)
         for (size_t i = 0; i < n; i++)
             x[k * n + i] = gen(rng, k, i, n, &state[k]);
-    FILE *f = fopen(path, "w");
-    fputs("t", f);
-    for (size_t k = 0; k < count; k++)
-        fprintf(f, ",s%zu", k);
-    fputc('\n', f);
-    for (size_t i = 0; i < n; i++) {
-        fprintf(f, "%zu", i);
-        for (size_t k = 0; k < count; k++)
-            fprintf(f, ",%.10g", x[k * n + i]);
-        fputc('\n', f);
-    }
-    fclose(f);
+    if (check_write_columns_csv(path, count, n, x) != 0)
+        fprintf(stderr, "could not write %s\n", path);
     free(x);
     free(state);
     check_rng_free(rng);

@@ -69,5 +69,8 @@ void check_rng_free(check_rng *rng);
 typedef double (*check_sample_fn)(check_rng *rng, size_t k, size_t i, size_t n, double *state);
 void check_write_series_csv(const char *path, size_t count, size_t n, check_sample_fn gen,
                             unsigned long seed);
+/* The same CSV from x[k*n + i] (series k, sample i) already drawn; NaN is written as NA.
+ * Returns 0, or -1 when the file cannot be written. */
+int check_write_columns_csv(const char *path, size_t count, size_t n, const double *x);
 
 #endif

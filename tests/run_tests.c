@@ -22,6 +22,7 @@ void suite_report(void);
 void suite_robustness(void);
 void suite_leakage(void);
 void suite_co2(void);
+void suite_calibration(void);
 
 static const struct {
     const char *name;
@@ -31,7 +32,8 @@ static const struct {
     {"spectral", suite_spectral},
     {"kendall", suite_kendall},       {"surrogates", suite_surrogates}, {"ar1_drift", suite_ar1_drift}, {"cli", suite_cli},
     {"significance", suite_significance}, {"projection", suite_projection},
-    {"report", suite_report},         {"robustness", suite_robustness}, {"leakage", suite_leakage}, {"co2", suite_co2},
+    {"report", suite_report},         {"robustness", suite_robustness}, {"leakage", suite_leakage},
+    {"co2", suite_co2},               {"calibration", suite_calibration},
 };
 
 int main(int argc, char **argv)
