@@ -57,9 +57,15 @@ const calibration_case calibration_cases[] = {
     {.name = "quadratic-trend", .what = "AR(1) phi 0.5 on 24 u^2 (accelerating)", .n = 500,
      .noise = CAL_NOISE_ARMA, .phi = 0.5, .sd = 1, .sd_end = 1, .mean = CAL_MEAN_QUADRATIC,
      .change = 24, .options = ""},
-    {.name = "exp-trend", .what = "AR(1) phi 0.5 on 24 (e^{4u}-1)/(e^4-1)", .n = 500,
-     .noise = CAL_NOISE_ARMA, .phi = 0.5, .sd = 1, .sd_end = 1, .mean = CAL_MEAN_EXPONENTIAL,
-     .change = 24, .options = ""},
+    /* The one case that needs an option: at the default bandwidth (10%) the local-linear fit
+     * cannot follow this curvature (its bias, s^2 m''/2, reaches 0.7 noise sd over the last
+     * third, a dip inside the record that the edge-leakage test does not see) and
+     * recovery_trend rejected 110 of 400 (27.5%); neither a drifting intercept in the drift
+     * regression nor re-detrending each surrogate brought it near 5% in our trials (19% and 14%
+     * on 200 series). A bandwidth that follows the curve does: the README names it. */
+    {.name = "exp-trend", .what = "AR(1) phi 0.5 on 24 (e^{4u}-1)/(e^4-1), bandwidth 5%",
+     .n = 500, .noise = CAL_NOISE_ARMA, .phi = 0.5, .sd = 1, .sd_end = 1,
+     .mean = CAL_MEAN_EXPONENTIAL, .change = 24, .options = "--bandwidth 5%"},
     /* Noise sd 0.155 = 0.2 of the mean's total change 1 - sqrt(0.05) = 0.776. */
     {.name = "fold-mean", .what = "mean sqrt(1-0.95u), AR(1) phi 0.5 sd 0.155", .n = 1000,
      .noise = CAL_NOISE_ARMA, .phi = 0.5, .sd = 0.155, .sd_end = 0.155,
