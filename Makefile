@@ -96,13 +96,13 @@ demo: deps
 	@mkdir -p $(DEMO_OUT)
 	$(B)/slowscan screen $(DEMO_ARGS) --rolling $(DEMO_OUT)/rolling.csv \
 	  --figures $(DEMO_OUT) -o $(DEMO_OUT)/summary.csv data/stations.csv
-	$(B)/slowscan robustness --deseason 364 --vars mill_pond --surrogates 99 \
+	$(B)/slowscan robustness --deseason 364 --vars reed_inlet --surrogates 99 \
 	  --windows 30%:70%:10% --bandwidths 5%:20%:5% --figures $(DEMO_OUT) \
 	  -o $(DEMO_OUT)/robustness.csv data/stations.csv
-	$(B)/slowscan recovery --deseason 364 --surrogates 99 --vars mill_pond \
+	$(B)/slowscan recovery --deseason 364 --surrogates 99 --vars reed_inlet \
 	  --project $(DEMO_OUT)/crossing.csv --figures $(DEMO_OUT) -o $(DEMO_OUT)/recovery.csv \
 	  data/stations.csv
-	@cp $(DEMO_OUT)/screen-mill_pond.png doc/demo-figure.png
+	@cp $(DEMO_OUT)/screen-reed_inlet.png doc/demo-figure.png
 	@$(B)/slowscan screen $(DEMO_ARGS) --format table data/stations.csv
 
 bench: all $(BENCH_BIN)
