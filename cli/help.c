@@ -147,8 +147,9 @@ static void help_screen(FILE *out)
           "named on stderr (one summary line when there are many) and marked in --json.\n"
           "What each null can hold: every null model keeps the residual's own memory only as\n"
           "far as it is built to; --null ar1 cannot reproduce memory that is not AR(1)\n"
-          "(ARMA, 1/f noise) and then rejects too often (13-15% at a nominal 5% in our\n"
-          "measurements); phase, aaft and iaaft keep the whole periodogram.\n"
+          "(ARMA, 1/f noise), so its size there is not controlled (measured from 2% to 15%\n"
+          "at a nominal 5%, depending on the memory); phase, aaft and iaaft keep the whole\n"
+          "periodogram.\n"
           "Power, at equal 5% size against a matched null (the same mean path, constant\n"
           "memory; make bench): on fold approaches of 1000 samples recovery_trend 0.60,\n"
           "variance 0.43, lag1 0.41; of 3000 samples 0.99, 0.89, 0.82; of 300, about 0.2 each.\n\n",
