@@ -9,6 +9,7 @@
 #include "slowscan/status.h"
 
 #include <math.h>
+#include <stdint.h>
 #include <stdlib.h>
 #include <string.h>
 
@@ -132,15 +133,75 @@ static void difference_trend(const double *x, size_t n, double *trend)
         trend[i] = isfinite(x[i - 1]) ? x[i - 1] : NAN;
 }
 
-static int compute_trend(const detrend_spec *spec, double dt, const double *x, size_t n,
-                         double *trend)
+/* Holds what each method keeps between calls; NULL members for methods that keep nothing
+ * (moving, linear, poly, difference, none compute from scratch, as they are cheap). */
+struct detrend_workspace {
+    detrend_spec spec;
+    double dt;
+    size_t n;
+    double *work; /* the trend before it is copied out (lets trend or residual alias x) */
+    detrend_gauss_ws *gauss;
+    detrend_loess_ws *loess;
+};
+
+void detrend_workspace_free(detrend_workspace *ws)
 {
+    if (!ws)
+        return;
+    detrend_gauss_free(ws->gauss);
+    detrend_loess_free(ws->loess);
+    free(ws->work);
+    free(ws);
+}
+
+/* detrend_workspace_alloc with the reason for a NULL in *status (for detrend_apply). */
+static detrend_workspace *workspace_make(const detrend_spec *spec, double dt, size_t n,
+                                         int *status)
+{
+    *status = check_spec(spec, dt);
+    if (*status != SLOWSCAN_OK || n == 0) {
+        *status = SLOWSCAN_EINVAL;
+        return NULL;
+    }
+    *status = SLOWSCAN_ENOMEM;
+    if (n > SIZE_MAX / sizeof(double))
+        return NULL;
+    detrend_workspace *ws = malloc(sizeof *ws);
+    double *work = malloc(n * sizeof *work);
+    if (!ws || !work) {
+        free(ws);
+        free(work);
+        return NULL;
+    }
+    *ws = (detrend_workspace){.spec = *spec, .dt = dt, .n = n, .work = work};
+    *status = SLOWSCAN_OK;
+    if (spec->method == DETREND_GAUSSIAN || spec->method == DETREND_GAUSSIAN_LINEAR)
+        ws->gauss = detrend_gauss_alloc(spec->method == DETREND_GAUSSIAN_LINEAR,
+                                        spec->bandwidth, dt, n, status);
+    else if (spec->method == DETREND_LOESS)
+        ws->loess = detrend_loess_alloc(spec->bandwidth, dt, n, status);
+    if (*status != SLOWSCAN_OK) {
+        detrend_workspace_free(ws);
+        return NULL;
+    }
+    return ws;
+}
+
+detrend_workspace *detrend_workspace_alloc(const detrend_spec *spec, double dt, size_t n)
+{
+    int status;
+    return workspace_make(spec, dt, n, &status);
+}
+
+static int compute_trend(detrend_workspace *ws, const double *x, size_t n, double *trend)
+{
+    const detrend_spec *spec = &ws->spec;
     switch (spec->method) {
-    case DETREND_GAUSSIAN: return detrend_gaussian_trend(spec->bandwidth, dt, x, n, trend);
-    case DETREND_GAUSSIAN_LINEAR:
-        return detrend_gaussian_linear_trend(spec->bandwidth, dt, x, n, trend);
-    case DETREND_MOVING: return detrend_moving_trend(spec->bandwidth, dt, x, n, trend);
-    case DETREND_LOESS: return detrend_loess_trend(spec->bandwidth, dt, x, n, trend);
+    case DETREND_GAUSSIAN:
+    case DETREND_GAUSSIAN_LINEAR: return detrend_gauss_trend(ws->gauss, x, n, trend);
+    case DETREND_MOVING: return detrend_moving_trend(spec->bandwidth, ws->dt, x, n, trend);
+    case DETREND_LOESS:
+        return detrend_loess_trend(ws->loess, spec->bandwidth, ws->dt, x, n, trend);
     case DETREND_LINEAR: return detrend_poly_trend(1, x, n, trend);
     case DETREND_POLY: return detrend_poly_trend(spec->degree, x, n, trend);
     case DETREND_DIFFERENCE: difference_trend(x, n, trend); return SLOWSCAN_OK;
@@ -152,15 +213,9 @@ static int compute_trend(const detrend_spec *spec, double dt, const double *x, s
     return SLOWSCAN_EINVAL;
 }
 
-/* The trend goes to a private buffer first so that `trend` or `residual` may alias `x`
- * (in-place detrending): the residual is formed element by element before `trend` is
- * written. */
-int detrend_apply(const detrend_spec *spec, double dt, const double *x, size_t n,
-                  double *trend, double *residual)
+/* Checks that need the data, in the order detrend_apply has always made them. */
+static int check_data(const detrend_spec *spec, const double *x, size_t n)
 {
-    int status = check_spec(spec, dt);
-    if (status != SLOWSCAN_OK)
-        return status;
     if (!x && n > 0)
         return SLOWSCAN_EINVAL;
     size_t finite = n ? count_finite(x, n) : 0;
@@ -168,17 +223,43 @@ int detrend_apply(const detrend_spec *spec, double dt, const double *x, size_t n
         return SLOWSCAN_ESHORT;
     if (spec->method == DETREND_POLY && (size_t)spec->degree >= finite)
         return SLOWSCAN_EINVAL;
-    double *work = malloc(n * sizeof *work);
-    if (!work)
-        return SLOWSCAN_ENOMEM;
-    status = compute_trend(spec, dt, x, n, work);
-    if (status == SLOWSCAN_OK) {
-        if (residual)
-            for (size_t i = 0; i < n; i++)
-                residual[i] = isfinite(x[i]) ? x[i] - work[i] : NAN;
-        if (trend)
-            memcpy(trend, work, n * sizeof *work);
-    }
-    free(work);
+    return SLOWSCAN_OK;
+}
+
+/* The trend goes to the workspace's buffer first so that `trend` or `residual` may alias `x`
+ * (in-place detrending): the residual is formed element by element before `trend` is
+ * written. */
+int detrend_apply_with(detrend_workspace *ws, const double *x, size_t n, double *trend,
+                       double *residual)
+{
+    if (!ws || n > ws->n)
+        return SLOWSCAN_EINVAL;
+    int status = check_data(&ws->spec, x, n);
+    if (status == SLOWSCAN_OK)
+        status = compute_trend(ws, x, n, ws->work);
+    if (status != SLOWSCAN_OK)
+        return status;
+    if (residual)
+        for (size_t i = 0; i < n; i++)
+            residual[i] = isfinite(x[i]) ? x[i] - ws->work[i] : NAN;
+    if (trend)
+        memcpy(trend, ws->work, n * sizeof *ws->work);
+    return SLOWSCAN_OK;
+}
+
+/* The data are checked before the workspace is made so that the status codes stay those of
+ * the checks (ESHORT for a series too short, not a failed allocation). */
+int detrend_apply(const detrend_spec *spec, double dt, const double *x, size_t n,
+                  double *trend, double *residual)
+{
+    int status = check_spec(spec, dt);
+    if (status == SLOWSCAN_OK)
+        status = check_data(spec, x, n);
+    if (status != SLOWSCAN_OK)
+        return status;
+    detrend_workspace *ws = workspace_make(spec, dt, n, &status);
+    if (ws)
+        status = detrend_apply_with(ws, x, n, trend, residual);
+    detrend_workspace_free(ws);
     return status;
 }

@@ -38,22 +38,42 @@ typedef struct {
     double noise; /* set by detrend_kernel_sums: bound on the absolute round-off of each out[i] */
 } detrend_kernel_sum;
 
-/* Computes `count` sums by FFT convolution with zero padding (O(n log n) each): one pair of
- * plans, each distinct input and each kernel power transformed once. Every input is read
- * before any output is written, so an `out` may be an input's own array. For kernels too long to
- * sum directly; callers check each output against `noise` and recompute exactly where the
- * round-off matters. */
-int detrend_kernel_sums(const detrend_kernel *k, size_t n, detrend_kernel_sum *sums,
+/* The plans, the kernel's transforms (powers 0..max_power) and the buffers of the sums for
+ * series of up to n samples with zero padding to N >= n + h. This is where the module plans
+ * FFTs, so it is called only from detrend_workspace_alloc. NULL with *status
+ * SLOWSCAN_ENOMEM (also for N beyond FFTW's int sizes) or SLOWSCAN_ENUMERIC. */
+typedef struct detrend_kernel_fft detrend_kernel_fft;
+detrend_kernel_fft *detrend_kernel_fft_alloc(const detrend_kernel *k, size_t n, int max_power,
+                                             int *status);
+void detrend_kernel_fft_free(detrend_kernel_fft *f);
+
+/* Computes `count` sums of a series of n <= the workspace's samples by FFT convolution
+ * (O(N log N) each), each distinct input (at most 2) transformed once; allocates nothing and
+ * executes the workspace's plans on its own buffers (new-array calls), so workspaces can run
+ * in parallel threads. Every input is read before any output is written, so an `out` may be
+ * an input's own array. For kernels too long to sum directly; callers check each output
+ * against `noise` and recompute exactly where the round-off matters. */
+int detrend_kernel_sums(detrend_kernel_fft *f, size_t n, detrend_kernel_sum *sums,
                         size_t count);
 
-int detrend_gaussian_trend(double bandwidth, double dt, const double *x, size_t n,
-                           double *trend);
-int detrend_gaussian_linear_trend(double bandwidth, double dt, const double *x, size_t n,
-                                  double *trend);
+/* The Gaussian fits' workspace (gaussian.c): the kernel, and for a long one its transforms
+ * and the sums of the mask of a gap-free series of n samples, made once. degree 0: gaussian,
+ * 1: gaussian-linear. */
+typedef struct detrend_gauss_ws detrend_gauss_ws;
+detrend_gauss_ws *detrend_gauss_alloc(int degree, double bandwidth, double dt, size_t n,
+                                      int *status);
+void detrend_gauss_free(detrend_gauss_ws *g);
+int detrend_gauss_trend(detrend_gauss_ws *g, const double *x, size_t n, double *trend);
+
+/* loess's scratch and GSL workspace (local.c), sized for the span at n samples. */
+typedef struct detrend_loess_ws detrend_loess_ws;
+detrend_loess_ws *detrend_loess_alloc(double bandwidth, double dt, size_t n, int *status);
+void detrend_loess_free(detrend_loess_ws *w);
+int detrend_loess_trend(detrend_loess_ws *w, double bandwidth, double dt, const double *x,
+                        size_t n, double *trend);
+
 int detrend_moving_trend(double bandwidth, double dt, const double *x, size_t n,
                          double *trend);
-int detrend_loess_trend(double bandwidth, double dt, const double *x, size_t n,
-                        double *trend);
 int detrend_poly_trend(int degree, const double *x, size_t n, double *trend);
 
 /* A cycle estimated from the usable samples d_j of one window (deseason.c sweeps the window

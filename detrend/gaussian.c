@@ -38,7 +38,7 @@ typedef struct {
     size_t n;
     double mean;     /* of the finite samples; subtracted before summing to limit round-off */
     double spread;   /* max |x - mean| over the finite samples */
-    detrend_kernel k;
+    const detrend_kernel *k;
 } gauss_problem;
 
 /* The exact (up to the 8 s cut) fit at sample i: degree 0 the weighted mean, degree 1 the
@@ -46,15 +46,15 @@ typedef struct {
  * means so that a one-sided neighbourhood does not cancel digits. */
 static double direct_fit(const gauss_problem *p, size_t i, int degree)
 {
-    size_t lo = i > p->k.h ? i - p->k.h : 0;
-    size_t hi = p->n - 1 - i > p->k.h ? i + p->k.h : p->n - 1;
+    size_t lo = i > p->k->h ? i - p->k->h : 0;
+    size_t hi = p->n - 1 - i > p->k->h ? i + p->k->h : p->n - 1;
     double s0 = 0.0, su = 0.0, sx = 0.0, wmax = 0.0;
     for (size_t j = lo; j <= hi; j++) {
         if (!isfinite(p->x[j]))
             continue;
-        double wt = p->k.w[j > i ? j - i : i - j];
+        double wt = p->k->w[j > i ? j - i : i - j];
         s0 += wt;
-        su += wt * ((double)j - (double)i) / p->k.s;
+        su += wt * ((double)j - (double)i) / p->k->s;
         sx += wt * (p->x[j] - p->mean);
         wmax = fmax(wmax, wt);
     }
@@ -65,7 +65,7 @@ static double direct_fit(const gauss_problem *p, size_t i, int degree)
     for (size_t j = lo; j <= hi && degree > 0; j++) {
         if (!isfinite(p->x[j]))
             continue;
-        double wt = p->k.w[j > i ? j - i : i - j], du = ((double)j - (double)i) / p->k.s - ubar;
+        double wt = p->k->w[j > i ? j - i : i - j], du = ((double)j - (double)i) / p->k->s - ubar;
         suu += wt * du * du;
         sux += wt * du * (p->x[j] - p->mean - xbar);
         solid += wt >= SOLID_WEIGHT * wmax;
@@ -82,24 +82,57 @@ static int direct_all(const gauss_problem *p, int degree, double *trend)
     return SLOWSCAN_OK;
 }
 
+struct detrend_gauss_ws {
+    int degree;        /* 0: local constant (gaussian), 1: local line (gaussian-linear) */
+    size_t n;          /* the length it was made for; a series may be shorter */
+    detrend_kernel k;
+    detrend_kernel_fft *fft; /* NULL: the kernel is short enough to sum directly */
+    double *buf;       /* (2 + 3 degree) n: inputs and outputs of one evaluation */
+    double *mask;      /* (1 + 2 degree) n: S0 [S1 S2] of a gap-free series of n samples */
+    double mask_noise[3];
+};
+
+/* The precomputed sum of a gap-free mask with the kernel times lag^power (S0, S1, S2). */
+static detrend_kernel_sum mask_sum(const detrend_gauss_ws *g, size_t power)
+{
+    return (detrend_kernel_sum){.power = (int)power, .out = g->mask + power * g->n,
+                                .noise = g->mask_noise[power]};
+}
+
 /* The moment sums by FFT: S0 S1 S2 of the mask, T0 T1 of the centred data (the first
  * 2 + 3*degree of them in the order S0, T0, S1, T1, S2); buf holds n doubles per sum. S0 and
  * T0 overwrite the mask and the centred data they are made from (detrend_kernel_sums reads
- * every input before it writes any output), which saves two arrays. */
-static int fft_moments(const gauss_problem *p, int degree, double *buf, detrend_kernel_sum *m)
+ * every input before it writes any output), which saves two arrays. A gap-free series of the
+ * workspace's length has the mask sums made at allocation: the same transforms of the same
+ * all-ones mask, so the same doubles as making them here. */
+static int fft_moments(detrend_gauss_ws *g, const gauss_problem *p, detrend_kernel_sum *m)
 {
-    double *mask = buf, *centred = buf + p->n;
+    double *mask = g->buf, *centred = g->buf + p->n;
+    size_t missing = 0;
     for (size_t j = 0; j < p->n; j++) {
         int ok = isfinite(p->x[j]);
         mask[j] = ok ? 1.0 : 0.0;
         centred[j] = ok ? p->x[j] - p->mean : 0.0;
+        missing += !ok;
     }
-    size_t count = degree == 0 ? 2 : 5;
-    for (size_t r = 0; r < count; r++)
+    size_t count = g->degree == 0 ? 2 : 5;
+    int known = missing == 0 && p->n == g->n;
+    detrend_kernel_sum todo[5];
+    size_t ntodo = 0;
+    for (size_t r = 0; r < count; r++) {
         m[r] = (detrend_kernel_sum){.input = r % 2 == 0 ? mask : centred,
                                     .power = (int)(r / 2),
-                                    .out = buf + r * p->n};
-    return detrend_kernel_sums(&p->k, p->n, m, count);
+                                    .out = g->buf + r * p->n};
+        if (known && r % 2 == 0)
+            m[r] = mask_sum(g, r / 2);
+        else
+            todo[ntodo++] = m[r];
+    }
+    int status = detrend_kernel_sums(g->fft, p->n, todo, ntodo);
+    for (size_t r = 0, q = 0; r < count; r++)
+        if (!(known && r % 2 == 0))
+            m[r] = todo[q++];
+    return status;
 }
 
 /* Local constant from the FFT sums; points whose round-off exceeds the bound go direct. */
@@ -131,47 +164,80 @@ static void linear_from_sums(const gauss_problem *p, const detrend_kernel_sum *m
     }
 }
 
-static int fft_all(const gauss_problem *p, int degree, double *trend)
+static int fft_all(detrend_gauss_ws *g, const gauss_problem *p, double *trend)
 {
     detrend_kernel_sum m[5];
-    double *buf = malloc((degree == 0 ? 2 : 5) * p->n * sizeof *buf);
-    if (!buf)
-        return SLOWSCAN_ENOMEM;
-    int status = fft_moments(p, degree, buf, m);
+    int status = fft_moments(g, p, m);
     if (status == SLOWSCAN_OK) {
-        if (degree == 0)
+        if (g->degree == 0)
             nw_from_sums(p, m, trend);
         else
             linear_from_sums(p, m, trend);
     }
-    free(buf);
     return status;
 }
 
-static int gaussian_fit(int degree, double bandwidth, double dt, const double *x, size_t n,
-                        double *trend)
+void detrend_gauss_free(detrend_gauss_ws *g)
 {
-    gauss_problem p = {.x = x, .n = n, .mean = detrend_finite_mean(x, n)};
+    if (!g)
+        return;
+    detrend_kernel_free(&g->k);
+    detrend_kernel_fft_free(g->fft);
+    free(g->buf);
+    free(g->mask);
+    free(g);
+}
+
+/* Plans, kernel transforms, buffers, and the sums of the all-ones mask of n samples. */
+static int fft_prepare(detrend_gauss_ws *g)
+{
+    size_t count = 1 + 2 * (size_t)g->degree, n = g->n;
+    int status;
+    g->fft = detrend_kernel_fft_alloc(&g->k, n, 2 * g->degree, &status);
+    if (!g->fft)
+        return status;
+    g->buf = malloc((2 + 3 * (size_t)g->degree) * n * sizeof *g->buf);
+    g->mask = malloc(count * n * sizeof *g->mask);
+    if (!g->buf || !g->mask)
+        return SLOWSCAN_ENOMEM;
+    detrend_kernel_sum s[3];
+    for (size_t j = 0; j < n; j++)
+        g->buf[j] = 1.0;
+    for (size_t r = 0; r < count; r++)
+        s[r] = (detrend_kernel_sum){.input = g->buf, .power = (int)r, .out = g->mask + r * n};
+    status = detrend_kernel_sums(g->fft, n, s, count);
+    for (size_t r = 0; r < count; r++)
+        g->mask_noise[r] = s[r].noise;
+    return status;
+}
+
+detrend_gauss_ws *detrend_gauss_alloc(int degree, double bandwidth, double dt, size_t n,
+                                      int *status)
+{
+    detrend_gauss_ws *g = calloc(1, sizeof *g);
+    *status = SLOWSCAN_ENOMEM;
+    if (!g)
+        return NULL;
+    g->degree = degree;
+    g->n = n;
+    *status = detrend_kernel_make(bandwidth, dt, n, &g->k);
+    if (*status == SLOWSCAN_OK && g->k.h > DIRECT_MAX_HALF)
+        *status = fft_prepare(g);
+    if (*status != SLOWSCAN_OK) {
+        detrend_gauss_free(g);
+        return NULL;
+    }
+    return g;
+}
+
+/* A series shorter than the workspace's uses its kernel (cut at the longer length, the same
+ * weights) and its longer transform: equal to a fit made for that length up to round-off,
+ * which the fallback bounds as ever. */
+int detrend_gauss_trend(detrend_gauss_ws *g, const double *x, size_t n, double *trend)
+{
+    gauss_problem p = {.x = x, .n = n, .mean = detrend_finite_mean(x, n), .k = &g->k};
     for (size_t j = 0; j < n; j++)
         if (isfinite(x[j]))
             p.spread = fmax(p.spread, fabs(x[j] - p.mean));
-    int status = detrend_kernel_make(bandwidth, dt, n, &p.k);
-    if (status != SLOWSCAN_OK)
-        return status;
-    status = p.k.h <= DIRECT_MAX_HALF ? direct_all(&p, degree, trend)
-                                      : fft_all(&p, degree, trend);
-    detrend_kernel_free(&p.k);
-    return status;
-}
-
-int detrend_gaussian_trend(double bandwidth, double dt, const double *x, size_t n,
-                           double *trend)
-{
-    return gaussian_fit(0, bandwidth, dt, x, n, trend);
-}
-
-int detrend_gaussian_linear_trend(double bandwidth, double dt, const double *x, size_t n,
-                                  double *trend)
-{
-    return gaussian_fit(1, bandwidth, dt, x, n, trend);
+    return g->fft ? fft_all(g, &p, trend) : direct_all(&p, g->degree, trend);
 }

@@ -21,6 +21,7 @@
 
 #define TRUNCATE_SIGMAS 8.0 /* DESIGN §3: truncation allowed beyond 8 s only */
 #define MAX_SUMS 8          /* more than the local-linear fit needs (5) */
+#define MAX_INPUTS 2        /* distinct inputs: the mask and the centred data */
 
 int detrend_kernel_make(double bandwidth, double dt, size_t n, detrend_kernel *k)
 {
@@ -60,48 +61,42 @@ static size_t fft_size(size_t at_least)
     return m;
 }
 
-typedef struct {
-    size_t size, ncomplex;
-    double *real;                /* `size` reals: padded input, kernel, or an output */
-    fftw_complex *fker, *fwork;  /* `ncomplex` each: a kernel's transform, a product */
-    fftw_complex *fin[MAX_SUMS]; /* the transform of each distinct input */
+/* Everything the sums need that depends only on the kernel and the length: one pair of plans
+ * (serving every transform through the new-array execute calls; fftw_malloc gives every buffer
+ * the same alignment, which those calls require), the kernel's transforms for each power, and
+ * the buffers of one evaluation. */
+struct detrend_kernel_fft {
+    size_t size, ncomplex, n;
+    int max_power;
+    double *real;                  /* `size` reals: padded input, kernel, or an output */
+    fftw_complex *fker[3];         /* kernel times lag^power, transformed and scaled by 1/size */
+    double ksum[3];                /* sum_l |kernel(l) lag^power| */
+    fftw_complex *fwork;           /* a product of transforms */
+    fftw_complex *fin[MAX_INPUTS]; /* the transform of each distinct input */
     fftw_plan forward, backward;
-} sums_fft;
+};
 
-static void fft_free(sums_fft *f)
+void detrend_kernel_fft_free(detrend_kernel_fft *f)
 {
+    if (!f)
+        return;
     if (f->forward)
         fftw_destroy_plan(f->forward);
     if (f->backward)
         fftw_destroy_plan(f->backward);
     fftw_free(f->real);
-    fftw_free(f->fker);
     fftw_free(f->fwork);
-    for (size_t r = 0; r < MAX_SUMS; r++)
+    for (size_t p = 0; p < 3; p++)
+        fftw_free(f->fker[p]);
+    for (size_t r = 0; r < MAX_INPUTS; r++)
         fftw_free(f->fin[r]);
+    free(f);
 }
 
-/* One pair of plans serves every transform through the new-array execute calls (fftw_malloc
- * gives every buffer the same alignment, which those calls require). */
-static int fft_alloc(sums_fft *f, size_t size)
-{
-    *f = (sums_fft){.size = size, .ncomplex = size / 2 + 1};
-    if (size > INT_MAX)
-        return SLOWSCAN_ENOMEM; /* beyond FFTW's int-sized basic interface */
-    f->real = fftw_malloc(size * sizeof(double));
-    f->fker = fftw_malloc(f->ncomplex * sizeof(fftw_complex));
-    f->fwork = fftw_malloc(f->ncomplex * sizeof(fftw_complex));
-    if (!f->real || !f->fker || !f->fwork)
-        return SLOWSCAN_ENOMEM;
-    f->forward = fftw_plan_dft_r2c_1d((int)size, f->real, f->fker, FFTW_ESTIMATE);
-    f->backward = fftw_plan_dft_c2r_1d((int)size, f->fwork, f->real, FFTW_ESTIMATE);
-    return f->forward && f->backward ? SLOWSCAN_OK : SLOWSCAN_ENUMERIC;
-}
-
-/* Transforms the kernel times lag^power into f->fker, scaled by 1/size for the inverse, and
- * returns sum_l |kernel(l)|. The circular convolution sums input[j] K[(i - j) mod size], so
+/* Transforms the kernel times lag^power into f->fker[power], scaled by 1/size for the inverse,
+ * and records sum_l |kernel(l)|. The circular convolution sums input[j] K[(i - j) mod size], so
  * K[d] holds the weight of lag j - i = -d: lag -l at index l, lag +l at size - l. */
-static double transform_kernel(const detrend_kernel *k, int power, sums_fft *f)
+static void transform_kernel(const detrend_kernel *k, int power, detrend_kernel_fft *f)
 {
     double sum = 0.0, scale = 1.0 / (double)f->size;
     memset(f->real, 0, f->size * sizeof(double));
@@ -112,44 +107,74 @@ static double transform_kernel(const detrend_kernel *k, int power, sums_fft *f)
             f->real[f->size - l] = v * scale;
         sum += (l > 0 ? 2.0 : 1.0) * fabs(v);
     }
-    fftw_execute_dft_r2c(f->forward, f->real, f->fker);
-    return sum;
+    fftw_execute_dft_r2c(f->forward, f->real, f->fker[power]);
+    f->ksum[power] = sum;
 }
 
-/* Transforms input r unless an earlier sum had the same input; returns max|input|. */
-static int transform_input(const detrend_kernel_sum *sums, size_t r, size_t n, sums_fft *f,
-                           double *peak)
+static int fft_buffers(detrend_kernel_fft *f)
 {
-    *peak = 0.0;
-    for (size_t j = 0; j < n; j++)
-        *peak = fmax(*peak, fabs(sums[r].input[j]));
+    f->real = fftw_malloc(f->size * sizeof(double));
+    f->fwork = fftw_malloc(f->ncomplex * sizeof(fftw_complex));
+    int ok = f->real && f->fwork;
+    for (int p = 0; p <= f->max_power; p++)
+        ok = ok && (f->fker[p] = fftw_malloc(f->ncomplex * sizeof(fftw_complex)));
+    for (size_t r = 0; r < MAX_INPUTS; r++)
+        ok = ok && (f->fin[r] = fftw_malloc(f->ncomplex * sizeof(fftw_complex)));
+    return ok ? SLOWSCAN_OK : SLOWSCAN_ENOMEM;
+}
+
+/* The only place this module plans (see detrend.h on threads). */
+detrend_kernel_fft *detrend_kernel_fft_alloc(const detrend_kernel *k, size_t n, int max_power,
+                                             int *status)
+{
+    detrend_kernel_fft *f = calloc(1, sizeof *f);
+    *status = SLOWSCAN_ENOMEM;
+    if (!f)
+        return NULL;
+    f->size = fft_size(n + k->h);
+    f->ncomplex = f->size / 2 + 1;
+    f->n = n;
+    f->max_power = max_power < 0 ? 0 : max_power > 2 ? 2 : max_power;
+    /* beyond FFTW's int-sized basic interface: ENOMEM, as for any other size we cannot serve */
+    if (f->size <= INT_MAX && (*status = fft_buffers(f)) == SLOWSCAN_OK) {
+        f->forward = fftw_plan_dft_r2c_1d((int)f->size, f->real, f->fker[0], FFTW_ESTIMATE);
+        f->backward = fftw_plan_dft_c2r_1d((int)f->size, f->fwork, f->real, FFTW_ESTIMATE);
+        *status = f->forward && f->backward ? SLOWSCAN_OK : SLOWSCAN_ENUMERIC;
+    }
+    for (int p = 0; p <= f->max_power && *status == SLOWSCAN_OK; p++)
+        transform_kernel(k, p, f);
+    if (*status != SLOWSCAN_OK) {
+        detrend_kernel_fft_free(f);
+        return NULL;
+    }
+    return f;
+}
+
+/* Sets slots[r], the buffer holding the transform of sum r's input: that of an earlier sum
+ * with the same input, or the next free one (*used counts those taken), transformed now. */
+static int transform_input(const detrend_kernel_sum *sums, size_t r, size_t n,
+                           detrend_kernel_fft *f, size_t *slots, size_t *used)
+{
     for (size_t q = 0; q < r; q++)
-        if (sums[q].input == sums[r].input)
-            return SLOWSCAN_OK; /* f->fin[r] stays NULL: use fin[q] */
-    f->fin[r] = fftw_malloc(f->ncomplex * sizeof(fftw_complex));
-    if (!f->fin[r])
-        return SLOWSCAN_ENOMEM;
+        if (sums[q].input == sums[r].input) {
+            slots[r] = slots[q];
+            return SLOWSCAN_OK;
+        }
+    if (*used == MAX_INPUTS)
+        return SLOWSCAN_EINVAL;
+    slots[r] = (*used)++;
     memset(f->real, 0, f->size * sizeof(double));
     memcpy(f->real, sums[r].input, n * sizeof(double));
-    fftw_execute_dft_r2c(f->forward, f->real, f->fin[r]);
+    fftw_execute_dft_r2c(f->forward, f->real, f->fin[slots[r]]);
     return SLOWSCAN_OK;
 }
 
-static const fftw_complex *input_transform(const detrend_kernel_sum *sums, size_t r,
-                                           const sums_fft *f)
-{
-    for (size_t q = 0; q < r; q++)
-        if (sums[q].input == sums[r].input)
-            return f->fin[q];
-    return f->fin[r];
-}
-
-/* sums[r].out = the inverse transform of fin(r) * fker, its first n values. */
-static void convolve_out(detrend_kernel_sum *sum, const fftw_complex *fin, size_t n,
-                         sums_fft *f)
+/* sum->out = the inverse transform of fin * fker, its first n values. */
+static void convolve_out(detrend_kernel_sum *sum, const fftw_complex *fin,
+                         const fftw_complex *fker, size_t n, detrend_kernel_fft *f)
 {
     for (size_t k = 0; k < f->ncomplex; k++) {
-        double ar = fin[k][0], ai = fin[k][1], kr = f->fker[k][0], ki = f->fker[k][1];
+        double ar = fin[k][0], ai = fin[k][1], kr = fker[k][0], ki = fker[k][1];
         f->fwork[k][0] = ar * kr - ai * ki;
         f->fwork[k][1] = ar * ki + ai * kr;
     }
@@ -157,34 +182,33 @@ static void convolve_out(detrend_kernel_sum *sum, const fftw_complex *fin, size_
     memcpy(sum->out, f->real, n * sizeof(double));
 }
 
-int detrend_kernel_sums(const detrend_kernel *k, size_t n, detrend_kernel_sum *sums,
+static double peak_of(const double *x, size_t n)
+{
+    double peak = 0.0;
+    for (size_t j = 0; j < n; j++)
+        peak = fmax(peak, fabs(x[j]));
+    return peak;
+}
+
+int detrend_kernel_sums(detrend_kernel_fft *f, size_t n, detrend_kernel_sum *sums,
                         size_t count)
 {
-    if (count > MAX_SUMS)
+    if (count > MAX_SUMS || n > f->n)
         return SLOWSCAN_EINVAL;
     for (size_t r = 0; r < count; r++)
-        if (sums[r].power < 0 || sums[r].power > 2)
+        if (sums[r].power < 0 || sums[r].power > f->max_power)
             return SLOWSCAN_EINVAL;
-    sums_fft f;
-    int status = fft_alloc(&f, fft_size(n + k->h));
+    size_t slot[MAX_SUMS], used = 0;
     double peak[MAX_SUMS];
-    for (size_t r = 0; r < count && status == SLOWSCAN_OK; r++)
-        status = transform_input(sums, r, n, &f, &peak[r]);
-    double round_off = 10.0 * DBL_EPSILON * sqrt(log2((double)f.size));
-    for (int power = 0; power <= 2 && status == SLOWSCAN_OK; power++) {
-        int used = 0;
-        for (size_t r = 0; r < count; r++)
-            used |= sums[r].power == power;
-        if (!used)
-            continue;
-        double ksum = transform_kernel(k, power, &f);
-        for (size_t r = 0; r < count; r++) {
-            if (sums[r].power != power)
-                continue;
-            convolve_out(&sums[r], input_transform(sums, r, &f), n, &f);
-            sums[r].noise = round_off * ksum * peak[r];
-        }
+    int status = SLOWSCAN_OK;
+    for (size_t r = 0; r < count && status == SLOWSCAN_OK; r++) {
+        peak[r] = peak_of(sums[r].input, n);
+        status = transform_input(sums, r, n, f, slot, &used);
     }
-    fft_free(&f);
+    double round_off = 10.0 * DBL_EPSILON * sqrt(log2((double)f->size));
+    for (size_t r = 0; r < count && status == SLOWSCAN_OK; r++) {
+        convolve_out(&sums[r], f->fin[slot[r]], f->fker[sums[r].power], n, f);
+        sums[r].noise = round_off * f->ksum[sums[r].power] * peak[r];
+    }
     return status;
 }

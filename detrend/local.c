@@ -109,28 +109,60 @@ static double local_fit(const double *x, size_t i, size_t lo, size_t q, loess_sc
     return line_at_zero(s, m, solid); /* distinct grid times: two samples already fix a line */
 }
 
-int detrend_loess_trend(double bandwidth, double dt, const double *x, size_t n,
-                        double *trend)
+/* Samples in the neighbourhood for a span of `bandwidth` time units over n samples. */
+static size_t span_samples(double bandwidth, double dt, size_t n)
 {
-    size_t q = detrend_clamp_count(round(bandwidth / dt), n - 1) + 1;
-    if (q > SIZE_MAX / (2 * sizeof(double)))
-        return SLOWSCAN_ENOMEM;
-    loess_scratch s = {.design = malloc(2 * q * sizeof(double)),
-                       .value = malloc(q * sizeof(double)),
-                       .weight = malloc(q * sizeof(double)),
-                       .centre = detrend_finite_mean(x, n)};
-    int status = SLOWSCAN_ENOMEM;
-    if (s.design && s.value && s.weight && q >= 2)
-        s.work = gsl_multifit_linear_alloc(q, 2); /* sized once for the largest neighbourhood */
-    if (s.design && s.value && s.weight && (q < 2 || s.work)) {
-        for (size_t i = 0; i < n; i++)
-            trend[i] = local_fit(x, i, neighbourhood_start(i, q, n), q, &s);
-        status = SLOWSCAN_OK;
+    return detrend_clamp_count(round(bandwidth / dt), n - 1) + 1;
+}
+
+struct detrend_loess_ws {
+    size_t q; /* the largest neighbourhood served */
+    loess_scratch s;
+};
+
+void detrend_loess_free(detrend_loess_ws *w)
+{
+    if (!w)
+        return;
+    if (w->s.work)
+        gsl_multifit_linear_free(w->s.work);
+    free(w->s.design);
+    free(w->s.value);
+    free(w->s.weight);
+    free(w);
+}
+
+detrend_loess_ws *detrend_loess_alloc(double bandwidth, double dt, size_t n, int *status)
+{
+    size_t q = span_samples(bandwidth, dt, n);
+    *status = SLOWSCAN_ENOMEM;
+    detrend_loess_ws *w = q <= SIZE_MAX / (2 * sizeof(double)) ? calloc(1, sizeof *w) : NULL;
+    if (!w)
+        return NULL;
+    w->q = q;
+    w->s.design = malloc(2 * q * sizeof(double));
+    w->s.value = malloc(q * sizeof(double));
+    w->s.weight = malloc(q * sizeof(double));
+    if (w->s.design && w->s.value && w->s.weight && q >= 2)
+        w->s.work = gsl_multifit_linear_alloc(q, 2); /* sized once for the largest neighbourhood */
+    if (!w->s.design || !w->s.value || !w->s.weight || (q >= 2 && !w->s.work)) {
+        detrend_loess_free(w);
+        return NULL;
     }
-    if (s.work)
-        gsl_multifit_linear_free(s.work);
-    free(s.design);
-    free(s.value);
-    free(s.weight);
-    return status;
+    *status = SLOWSCAN_OK;
+    return w;
+}
+
+/* A shorter series may have a smaller neighbourhood (never a larger one); GSL's workspace
+ * serves any problem up to the size it was made for. */
+int detrend_loess_trend(detrend_loess_ws *w, double bandwidth, double dt, const double *x,
+                        size_t n, double *trend)
+{
+    size_t q = span_samples(bandwidth, dt, n);
+    if (q > w->q)
+        return SLOWSCAN_EINVAL;
+    w->s.centre = detrend_finite_mean(x, n);
+    for (size_t i = 0; i < n; i++)
+        trend[i] = local_fit(x, i, neighbourhood_start(i, q, n), q, &w->s);
+    return SLOWSCAN_OK;
 }

@@ -57,6 +57,37 @@ int detrend_uses_bandwidth(detrend_method method);
 int detrend_apply(const detrend_spec *spec, double dt, const double *x, size_t n,
                   double *trend, double *residual);
 
+/* Detrend workspace: plan once, detrend many series of one length (DESIGN §2).
+ *
+ * detrend_workspace_alloc makes everything a method needs for series of up to n samples of
+ * step dt: for gaussian and gaussian-linear the kernel weights, the FFT plans and the
+ * kernel's transforms, the transforms of a gap-free series' sample mask, and all scratch;
+ * for loess its scratch and GSL workspace. It copies *spec. NULL for a bad spec or dt (the
+ * cases for which detrend_apply returns SLOWSCAN_EINVAL without looking at data), n = 0, or
+ * no memory.
+ *
+ * detrend_apply_with detrends x[n] with it, neither allocating (apart from linear and poly,
+ * which allocate their least-squares system per call) nor planning, and gives exactly the
+ * doubles detrend_apply gives for the same spec, dt and n equal to the workspace's (which is
+ * what detrend_apply does: alloc, apply, free), with the same status codes; n above the
+ * workspace's, or a NULL ws: SLOWSCAN_EINVAL. A shorter series is allowed; the Gaussian fits
+ * then use the longer transform and agree with detrend_apply to round-off (~1e-12 of the
+ * data's spread, the bound the fits keep anyway), not to the bit.
+ *
+ * Threads: a workspace is used by one thread at a time; different workspaces may detrend in
+ * parallel (FFTW's new-array execute calls on each workspace's own buffers). FFT plans are
+ * made only in detrend_workspace_alloc (and so in detrend_apply), and FFTW's planner is not
+ * thread-safe: allocate workspaces (and call detrend_apply) from one thread at a time, or call
+ * fftw_make_planner_thread_safe() once first (the slowscan command does). The library takes
+ * no lock of its own: it would guard only its own planning, not the caller's or another
+ * library's use of the same planner, and would be a global, which the core does not keep. */
+typedef struct detrend_workspace detrend_workspace;
+
+detrend_workspace *detrend_workspace_alloc(const detrend_spec *spec, double dt, size_t n);
+void detrend_workspace_free(detrend_workspace *ws);
+int detrend_apply_with(detrend_workspace *ws, const double *x, size_t n, double *trend,
+                       double *residual);
+
 /* Seasonal-cycle removal (deseasoning), done before detrending.
  *
  * Let P = period/dt be the period in time steps. The cycle is estimated from
