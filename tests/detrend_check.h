@@ -1,4 +1,4 @@
-/* Helpers shared by the detrend test files (test_detrend.c, test_gaussian.c). */
+/* Helpers shared by the detrend test files (test_detrend.c, test_gaussian.c, test_detrend_ws.c). */
 #ifndef SLOWSCAN_TESTS_DETREND_CHECK_H
 #define SLOWSCAN_TESTS_DETREND_CHECK_H
 
@@ -31,5 +31,7 @@ void dc_punch_gaps(double *x, size_t n, size_t every, size_t len);
 
 /* The Gaussian-kernel tests (test_gaussian.c), run by the detrend suite. */
 void detrend_gaussian_checks(check_rng *rng);
+/* The detrend workspace tests (test_detrend_ws.c), run by the detrend suite. */
+void detrend_workspace_checks(check_rng *rng);
 
 #endif

@@ -290,5 +290,6 @@ void suite_detrend(void)
     test_difference_none();
     test_residual_rules(rng);
     test_errors();
+    detrend_workspace_checks(rng);
     check_rng_free(rng);
 }
