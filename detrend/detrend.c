@@ -1,8 +1,9 @@
-/* slowscan detrend — method names, argument checks and the dispatch of detrend_apply.
+/* slowscan detrend — method names, argument checks, the detrend workspace and the dispatch
+ * of detrend_apply_with (detrend_apply is alloc + apply + free).
  *
- * The per-method files compute a trend only; everything every method shares (validation,
- * the finite-sample count, the residual rule "NaN where x is missing") lives here so that it
- * cannot drift between methods. */
+ * The per-method files compute a trend only, from what the workspace keeps for them;
+ * everything every method shares (validation, the finite-sample count, the residual rule
+ * "NaN where x is missing") lives here so that it cannot drift between methods. */
 #include "slowscan/detrend.h"
 
 #include "detrend_internal.h"

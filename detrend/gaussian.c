@@ -20,6 +20,12 @@
  * fit is two-pass (weighted means first, then the line about them), so it keeps its digits
  * in exactly those one-sided configurations. The fallback costs O(h) per such point.
  *
+ * What depends only on the kernel and the length -- the weights, the plans, the kernel's
+ * transforms and, for a gap-free series, the sums S0 S1 S2 of its all-ones mask -- is made
+ * once in a detrend_gauss_ws (by detrend_workspace_alloc); each series then costs the
+ * transform of its centred data and two or five inverse transforms (five when it has gaps,
+ * whose mask must be transformed too).
+ *
  * Local-linear, fewer than 2 samples of non-negligible weight (>= SOLID_WEIGHT of the largest
  * weight present): the line is undetermined and the local-constant value is used. A point
  * with no finite sample within h samples gets NaN under either fit. */
