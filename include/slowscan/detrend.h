@@ -61,7 +61,8 @@ int detrend_apply(const detrend_spec *spec, double dt, const double *x, size_t n
  *
  * detrend_workspace_alloc makes everything a method needs for series of up to n samples of
  * step dt: for gaussian and gaussian-linear the kernel weights, the FFT plans and the
- * kernel's transforms, the transforms of a gap-free series' sample mask, and all scratch;
+ * kernel's transforms, the kernel sums of a gap-free series' sample mask (S0, S1, S2 of the
+ * local-linear fit; a series with NaN has them recomputed), and all scratch;
  * for loess its scratch and GSL workspace. It copies *spec. NULL for a bad spec or dt (the
  * cases for which detrend_apply returns SLOWSCAN_EINVAL without looking at data), n = 0, or
  * no memory.
