@@ -148,13 +148,11 @@ demo: deps
 bench: all $(BENCH_BIN)
 	@for b in $(BENCH_BIN); do echo "== $$b"; $$b || exit 1; done
 
-# slowscan.pc: static users (pkg-config --static) get the private dependencies too.
+# slowscan.pc names PREFIX (not DESTDIR), so it is written at install time; static users
+# (pkg-config --static) get the private dependencies too.
 PC_SUBST = -e 's|@PREFIX@|$(PREFIX)|' -e 's|@VERSION@|$(VERSION)|' -e 's|@REQUIRES@|$(CORE_PKGS)|'
-$(B)/slowscan.pc: slowscan.pc.in include/slowscan/version.h Makefile
-	sed $(PC_SUBST) $< > $@
-
 LIBDIR = $(DESTDIR)$(PREFIX)/lib
-install: all $(B)/slowscan.pc
+install: all
 	install -d $(DESTDIR)$(PREFIX)/bin $(LIBDIR)/pkgconfig $(DESTDIR)$(PREFIX)/include/slowscan
 	install -m 755 $(B)/slowscan $(DESTDIR)$(PREFIX)/bin/slowscan
 	install -m 644 $(STATIC_LIBS) $(LIBDIR)/
@@ -163,7 +161,7 @@ install: all $(B)/slowscan.pc
 	  ln -sf $$lib.so.$(VERSION) $(LIBDIR)/$$lib.so.$(SOMAJOR) && \
 	  ln -sf $$lib.so.$(SOMAJOR) $(LIBDIR)/$$lib.so || exit 1; \
 	done
-	install -m 644 $(B)/slowscan.pc $(LIBDIR)/pkgconfig/slowscan.pc
+	sed $(PC_SUBST) slowscan.pc.in > $(LIBDIR)/pkgconfig/slowscan.pc
 	install -m 644 include/slowscan.h $(DESTDIR)$(PREFIX)/include/slowscan.h
 	install -m 644 include/slowscan/*.h $(DESTDIR)$(PREFIX)/include/slowscan/
 	install -d $(DESTDIR)$(PREFIX)/share/man/man1
