@@ -14,8 +14,8 @@
  * GSL's handler off for its own GSL calls too, and must check their return codes (as GSL's
  * manual recommends anyway). A program may install its own handler after start-up; the core
  * then goes through it, and an aborting handler is that program's choice.
- * In a static link this object is only pulled in when slowscan_version() is used; the CLI
- * turns the handler off itself in main(). */
+ * A static link pulls this object in only when slowscan_version() is referenced: slowscan.pc
+ * passes -Wl,-u,slowscan_version to `pkg-config --static` links for that. */
 #include "slowscan/version.h"
 
 #include <gsl/gsl_errno.h>

@@ -87,13 +87,21 @@ static int pkg_config(const char *args, char *out, size_t size)
 }
 
 /* Builds tests/consumer/NAME.c with the installed library's pkg-config flags (plus extra)
- * into the scratch directory; returns the program's path or NULL. */
-static const char *build_consumer(const char *name, const char *extra, const char *out_name)
+ * into the scratch directory; returns the program's path or NULL. With `archive`, links
+ * libslowscan.a instead, with the flags of `pkg-config --static`. */
+static const char *build_consumer(const char *name, const char *extra, const char *out_name,
+                                  int archive)
 {
     static char program[512];
     char flags[1024], cmd[3000];
-    if (pkg_config("--cflags --libs", flags, sizeof flags) != 0)
+    if (pkg_config(archive ? "--cflags --static --libs" : "--cflags --libs", flags,
+                   sizeof flags) != 0)
         return NULL;
+    char *lib = strstr(flags, "-lslowscan ");
+    if (archive && lib) { /* -l:FILE: GNU ld's search for that exact file */
+        memmove(lib + 16, lib + 10, strlen(lib + 10) + 1);
+        memcpy(lib, "-l:libslowscan.a", 16);
+    }
     snprintf(program, sizeof program, "%s", check_tmp_path(out_name));
     snprintf(cmd, sizeof cmd,
              "${CC:-cc} -std=c11 -Wall -Wextra -Werror -o '%s' tests/consumer/%s.c %s %s "
@@ -136,7 +144,7 @@ static double csv_field(const char *text, int column)
 
 static void check_screen_one(void)
 {
-    const char *program = build_consumer("screen_one", "", "screen_one");
+    const char *program = build_consumer("screen_one", "", "screen_one", 0);
     if (!program)
         return;
     char cmd[1200];
@@ -157,13 +165,15 @@ static void check_screen_one(void)
 
 static void check_gsl_errors(void)
 {
-    const char *program = build_consumer("gsl_errors", "", "gsl_errors");
-    int rc;
-    char *out = program ? run(program, &rc) : NULL;
-    CHECK(out && rc == 0 && strstr(out, "alloc(2^50): NULL") && strstr(out, "no variation"),
-          "GSL errors inside libslowscan come back as statuses, no abort (exit %d): %s",
-          program ? rc : -1, out ? out : "");
-    free(out);
+    for (int archive = 0; archive <= 1; archive++) {
+        const char *program = build_consumer("gsl_errors", "", "gsl_errors", archive);
+        int rc;
+        char *out = program ? run(program, &rc) : NULL;
+        CHECK(out && rc == 0 && strstr(out, "alloc(2^50): NULL") && strstr(out, "no variation"),
+              "GSL errors inside %s come back as statuses, no abort (exit %d): %s",
+              archive ? "libslowscan.a" : "libslowscan.so", program ? rc : -1, out ? out : "");
+        free(out);
+    }
     /* Control: with GSL's default handler put back, the same calls abort — so the program
      * above did reach GSL's error handler. */
     char gsl_libs[300];
@@ -171,12 +181,12 @@ static void check_gsl_errors(void)
     libs[strcspn(libs, "\n")] = 0;
     snprintf(gsl_libs, sizeof gsl_libs, "-DDEFAULT_HANDLER %s", libs);
     free(libs);
-    program = build_consumer("gsl_errors", gsl_libs, "gsl_errors_default");
+    const char *program = build_consumer("gsl_errors", gsl_libs, "gsl_errors_default", 0);
     char cmd[600];
     /* The shell waits and prints the status (128 + SIGABRT) itself, so its "Aborted" notice
      * lands in the captured output, not on the terminal. */
     snprintf(cmd, sizeof cmd, "'%s' 2>&1; echo \"exit $?\"", program ? program : "false");
-    out = run(cmd, NULL);
+    char *out = run(cmd, NULL);
     /* GSL's default handler prints this line before abort() (gsl's err/error.c). */
     CHECK(program && strstr(out, "exit 134") && strstr(out, "Default GSL error handler invoked"),
           "with GSL's default handler the same call aborts: %s", out);
