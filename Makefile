@@ -82,7 +82,7 @@ $(STATIC_LIBS):
 	ar rcs $@ $^
 
 # libNAME.so.VERSION with soname libNAME.so.MAJOR, and the two links beside it. Undefined
-# symbols are refused, so each library's link line is complete: the core's names no PLplot.
+# symbols are refused, so each library's link line is complete (the core's has no PLplot).
 SO_LINK = $(CC) -shared -Wl,-soname,$(patsubst %.$(VERSION),%,$(notdir $@)).$(SOMAJOR) \
           -Wl,--no-undefined -Wl,--as-needed -o $@
 $(B)/libslowscan.so.$(VERSION): $(CORE_PIC)

@@ -12,10 +12,29 @@
 #include <stdio.h>
 #include <stdlib.h>
 
-static int fail(const char *what, int status)
+/* tau of series 0 of a table on a regular grid of step dt. */
+static int lag1_tau(const series_table *table, double dt, double *tau)
 {
-    fprintf(stderr, "screen_one: %s: %s\n", what, slowscan_strerror(status));
-    return 1;
+    size_t n = table->n;
+    double span = table->time[n - 1] - table->time[0];
+    /* DESIGN §3: bandwidth 10% of the span; W = round(p/100 (n-1)) + 1 for p = 50. */
+    detrend_spec detrend = {DETREND_GAUSSIAN_LINEAR, 0.10 * span, 0};
+    rolling_spec rolling = {.window = (size_t)floor(0.5 * (double)(n - 1) + 0.5) + 1,
+                            .min_coverage = 0.8, .dt = dt, .recovery = RECOVERY_LOG_AR1};
+    indicator_kind lag1 = INDICATOR_LAG1;
+    double *residual = malloc(n * sizeof *residual), *path = malloc(n * sizeof *path);
+    kendall_workspace *kendall = kendall_alloc(n);
+    int st = residual && path && kendall ? SLOWSCAN_OK : SLOWSCAN_ENOMEM;
+    if (st == SLOWSCAN_OK)
+        st = detrend_apply(&detrend, dt, table->values[0], n, NULL, residual);
+    if (st == SLOWSCAN_OK)
+        st = rolling_compute(&rolling, residual, NULL, n, &lag1, 1, &path);
+    if (st == SLOWSCAN_OK)
+        st = kendall_tau_b(kendall, table->time, path, n, tau, NULL);
+    kendall_free(kendall);
+    free(path);
+    free(residual);
+    return st;
 }
 
 int main(int argc, char **argv)
@@ -27,37 +46,18 @@ int main(int argc, char **argv)
     series_table table;
     io_error err;
     csv_read_options options = {NULL, NULL};
-    double dt;
-    if (csv_read_table(argv[1], &options, &table, &err) != SLOWSCAN_OK ||
-        table_check_grid(&table, &dt, &err) != SLOWSCAN_OK) {
+    double dt, tau;
+    if (csv_read_table(argv[1], &options, &table, &err) != SLOWSCAN_OK) {
         fprintf(stderr, "screen_one: %s\n", err.message);
         return 1;
     }
-    size_t n = table.n;
-    double span = table.time[n - 1] - table.time[0];
-    /* DESIGN §3: bandwidth 10% of the span; W = round(p/100 (n-1)) + 1 for p = 50. */
-    detrend_spec detrend = {DETREND_GAUSSIAN_LINEAR, 0.10 * span, 0};
-    rolling_spec rolling = {.window = (size_t)floor(0.5 * (double)(n - 1) + 0.5) + 1,
-                            .min_coverage = 0.8, .dt = dt, .recovery = RECOVERY_LOG_AR1};
-    indicator_kind lag1 = INDICATOR_LAG1;
-    double *residual = malloc(n * sizeof *residual), *path = malloc(n * sizeof *path), tau;
-    kendall_workspace *kendall = kendall_alloc(n);
-    int st = residual && path && kendall ? SLOWSCAN_OK : SLOWSCAN_ENOMEM;
-    if (st == SLOWSCAN_OK && (st = detrend_apply(&detrend, dt, table.values[0], n, NULL,
-                                                 residual)) != SLOWSCAN_OK)
-        return fail("detrend_apply", st);
-    if (st == SLOWSCAN_OK &&
-        (st = rolling_compute(&rolling, residual, NULL, n, &lag1, 1, &path)) != SLOWSCAN_OK)
-        return fail("rolling_compute", st);
-    if (st == SLOWSCAN_OK &&
-        (st = kendall_tau_b(kendall, table.time, path, n, &tau, NULL)) != SLOWSCAN_OK)
-        return fail("kendall_tau_b", st);
+    int st = table_check_grid(&table, &dt, &err);
     if (st != SLOWSCAN_OK)
-        return fail("allocation", st);
-    printf("%.12g\n", tau);
-    kendall_free(kendall);
-    free(path);
-    free(residual);
+        fprintf(stderr, "screen_one: %s\n", err.message);
+    else if ((st = lag1_tau(&table, dt, &tau)) != SLOWSCAN_OK)
+        fprintf(stderr, "screen_one: %s: %s\n", argv[1], slowscan_strerror(st));
+    else
+        printf("%.12g\n", tau);
     series_table_free(&table);
-    return 0;
+    return st == SLOWSCAN_OK ? 0 : 1;
 }
