@@ -1,27 +1,38 @@
 # slowscan — build, test, demo, bench, install.
-#   make            build/slowscan and build/libslowscan.a
+#   make            build/slowscan, the core library (build/libslowscan.a, .so) and the
+#                   figure/demo library (build/libslowscan-report.a, .so)
 #   make check      the test suite, plain and under AddressSanitizer + UBSan
 #   make demo       screen the bundled demo data, draw its figures (demo-output/), print the table
 #   make bench      speed ratios, measured in one run
 #   make validate   the calibration battery at scale, four nulls (~20-30 min): build/validate.md
-#   make install    PREFIX=/usr/local DESTDIR=
+#   make install    PREFIX=/usr/local DESTDIR=   (binary, libraries, headers, man page, slowscan.pc)
 # `check` and `demo` first install missing Debian packages (scripts/install-deps.sh).
 
 PREFIX  ?= /usr/local
 DESTDIR ?=
-VERSION := 0.1.0
+# The version is written once, in include/slowscan/version.h; the soname carries its major.
+VERSION := $(shell sed -n 's/^\#define SLOWSCAN_VERSION_STRING "\(.*\)"/\1/p' include/slowscan/version.h)
+SOMAJOR := $(firstword $(subst ., ,$(VERSION)))
 
 CC      ?= cc
-PKGS    := gsl fftw3 netcdf plplot
+CORE_PKGS := gsl fftw3 netcdf
+PKGS      := $(CORE_PKGS) plplot
 CFLAGS  ?= -O2 -g
 WARN    := -std=c11 -Wall -Wextra -Werror -D_POSIX_C_SOURCE=200809L
 INCS     = -Iinclude $(shell pkg-config --cflags $(PKGS) 2>/dev/null)
-LIBS     = $(shell pkg-config --libs $(PKGS) 2>/dev/null || echo -lgsl -lgslcblas -lfftw3 -lnetcdf -lplplot) \
-           -lfftw3_threads -lcsv -lpthread -lm
+# What the core library needs (nothing of PLplot), what the report library adds, and what
+# programs linking both need (the CLI also uses FFTW's thread-safe planner).
+CORE_LIBS   = $(shell pkg-config --libs $(CORE_PKGS) 2>/dev/null || echo -lgsl -lgslcblas -lfftw3 -lnetcdf) \
+              -lcsv -lpthread -lm
+REPORT_LIBS = $(shell pkg-config --libs plplot 2>/dev/null || echo -lplplot)
+LIBS        = $(REPORT_LIBS) $(CORE_LIBS) -lfftw3_threads
 SAN     := -fsanitize=address,undefined -fno-omit-frame-pointer -fno-sanitize-recover=undefined
 
-CORE_DIRS := detrend indicators surrogates response io report data
-LIB_SRC   := $(foreach d,$(CORE_DIRS),$(wildcard $(d)/*.c))
+CORE_DIRS := detrend indicators surrogates response io library
+REPORT_DIRS := report data
+CORE_SRC  := $(foreach d,$(CORE_DIRS),$(wildcard $(d)/*.c))
+REPORT_SRC := $(foreach d,$(REPORT_DIRS),$(wildcard $(d)/*.c))
+LIB_SRC   := $(CORE_SRC) $(REPORT_SRC)
 CLI_SRC   := $(wildcard cli/*.c)
 TEST_SRC  := $(wildcard tests/*.c)
 BENCH_SRC := $(wildcard bench/*.c)
@@ -29,7 +40,12 @@ BENCH_SRC := $(wildcard bench/*.c)
 BENCH_LIB := $(wildcard bench/common/*.c)
 
 B := build
-LIB_OBJ   := $(LIB_SRC:%.c=$(B)/obj/%.o)
+CORE_OBJ  := $(CORE_SRC:%.c=$(B)/obj/%.o)
+REPORT_OBJ := $(REPORT_SRC:%.c=$(B)/obj/%.o)
+# The shared libraries' objects: position-independent, and every symbol hidden unless its
+# declaration says SLOWSCAN_API (include/slowscan/export.h).
+CORE_PIC  := $(CORE_SRC:%.c=$(B)/pic/%.o)
+REPORT_PIC := $(REPORT_SRC:%.c=$(B)/pic/%.o)
 CLI_OBJ   := $(CLI_SRC:%.c=$(B)/obj/%.o)
 TEST_OBJ  := $(TEST_SRC:%.c=$(B)/obj/%.o)
 SLIB_OBJ  := $(LIB_SRC:%.c=$(B)/asan/%.o)
@@ -38,28 +54,50 @@ STEST_OBJ := $(TEST_SRC:%.c=$(B)/asan/%.o)
 BENCH_BIN := $(BENCH_SRC:bench/%.c=$(B)/bench/%)
 
 .PHONY: all deps check demo bench validate install clean
-all: $(B)/slowscan $(B)/libslowscan.a
+# Programs link the static archives: the binary then runs from the build tree and from any
+# prefix without a library path, and the tests may reach module internals.
+STATIC_LIBS := $(B)/libslowscan-report.a $(B)/libslowscan.a
+SHARED_LIBS := $(B)/libslowscan.so $(B)/libslowscan-report.so
+all: $(B)/slowscan $(STATIC_LIBS) $(SHARED_LIBS)
 
 deps:
 	@sh scripts/install-deps.sh
 
 $(B)/obj/%.o: %.c
 	@mkdir -p $(dir $@)
-	@echo "CC $<"; $(CC) $(CFLAGS) $(WARN) -DSLOWSCAN_VERSION='"$(VERSION)"' $(INCS) -MMD -MP -c $< -o $@
+	@echo "CC $<"; $(CC) $(CFLAGS) $(WARN) $(INCS) -MMD -MP -c $< -o $@
+
+$(B)/pic/%.o: %.c
+	@mkdir -p $(dir $@)
+	@echo "CC(pic) $<"; $(CC) $(CFLAGS) $(WARN) -fPIC -fvisibility=hidden $(INCS) -MMD -MP -c $< -o $@
 
 $(B)/asan/%.o: %.c
 	@mkdir -p $(dir $@)
-	@echo "CC(san) $<"; $(CC) -O1 -g $(SAN) $(WARN) -DSLOWSCAN_VERSION='"$(VERSION)"' $(INCS) -MMD -MP -c $< -o $@
+	@echo "CC(san) $<"; $(CC) -O1 -g $(SAN) $(WARN) $(INCS) -MMD -MP -c $< -o $@
 
-$(B)/libslowscan.a: $(LIB_OBJ)
+$(B)/libslowscan.a: $(CORE_OBJ)
+$(B)/libslowscan-report.a: $(REPORT_OBJ)
+$(STATIC_LIBS):
 	@rm -f $@
 	ar rcs $@ $^
 
-$(B)/slowscan: $(CLI_OBJ) $(B)/libslowscan.a
-	$(CC) $(CFLAGS) -o $@ $(CLI_OBJ) $(B)/libslowscan.a $(LIBS)
+# libNAME.so.VERSION with soname libNAME.so.MAJOR, and the two links beside it. Undefined
+# symbols are refused, so each library's link line is complete (the core's has no PLplot).
+SO_LINK = $(CC) -shared -Wl,-soname,$(patsubst %.$(VERSION),%,$(notdir $@)).$(SOMAJOR) \
+          -Wl,--no-undefined -Wl,--as-needed -o $@
+$(B)/libslowscan.so.$(VERSION): $(CORE_PIC)
+	$(SO_LINK) $^ $(CORE_LIBS)
+$(B)/libslowscan-report.so.$(VERSION): $(REPORT_PIC) $(B)/libslowscan.so
+	$(SO_LINK) $(REPORT_PIC) -L$(B) -lslowscan $(REPORT_LIBS) $(CORE_LIBS)
+$(B)/%.so: $(B)/%.so.$(VERSION)
+	ln -sf $(notdir $<) $@.$(SOMAJOR)
+	ln -sf $(notdir $@).$(SOMAJOR) $@
 
-$(B)/run_tests: $(TEST_OBJ) $(B)/libslowscan.a
-	$(CC) $(CFLAGS) -o $@ $(TEST_OBJ) $(B)/libslowscan.a $(LIBS)
+$(B)/slowscan: $(CLI_OBJ) $(STATIC_LIBS)
+	$(CC) $(CFLAGS) -o $@ $(CLI_OBJ) $(STATIC_LIBS) $(LIBS)
+
+$(B)/run_tests: $(TEST_OBJ) $(STATIC_LIBS)
+	$(CC) $(CFLAGS) -o $@ $(TEST_OBJ) $(STATIC_LIBS) $(LIBS)
 
 $(B)/asan/slowscan: $(SCLI_OBJ) $(SLIB_OBJ)
 	$(CC) $(SAN) -o $@ $^ $(LIBS)
@@ -67,9 +105,9 @@ $(B)/asan/slowscan: $(SCLI_OBJ) $(SLIB_OBJ)
 $(B)/asan/run_tests: $(STEST_OBJ) $(SLIB_OBJ)
 	$(CC) $(SAN) -o $@ $^ $(LIBS)
 
-$(B)/bench/%: bench/%.c $(BENCH_LIB) $(wildcard bench/common/*.h) $(B)/libslowscan.a
+$(B)/bench/%: bench/%.c $(BENCH_LIB) $(wildcard bench/common/*.h) $(STATIC_LIBS)
 	@mkdir -p $(dir $@)
-	$(CC) -O2 -g $(WARN) $(INCS) -Ibench/common -o $@ $< $(BENCH_LIB) $(B)/libslowscan.a $(LIBS)
+	$(CC) -O2 -g $(WARN) $(INCS) -Ibench/common -o $@ $< $(BENCH_LIB) $(STATIC_LIBS) $(LIBS)
 
 # Each run ends in a line "LABEL: N passed, N failed"; the last one is the sanitized run.
 # The sanitized run goes ahead when the plain one fails (the calibration battery fails there
@@ -110,10 +148,21 @@ demo: deps
 bench: all $(BENCH_BIN)
 	@for b in $(BENCH_BIN); do echo "== $$b"; $$b || exit 1; done
 
+# slowscan.pc names PREFIX (not DESTDIR), so it is written at install time; static users
+# (pkg-config --static) get the private dependencies too.
+PC_SUBST = -e 's|@PREFIX@|$(PREFIX)|' -e 's|@VERSION@|$(VERSION)|' -e 's|@REQUIRES@|$(CORE_PKGS)|'
+LIBDIR = $(DESTDIR)$(PREFIX)/lib
 install: all
-	install -d $(DESTDIR)$(PREFIX)/bin $(DESTDIR)$(PREFIX)/lib $(DESTDIR)$(PREFIX)/include/slowscan
+	install -d $(DESTDIR)$(PREFIX)/bin $(LIBDIR)/pkgconfig $(DESTDIR)$(PREFIX)/include/slowscan
 	install -m 755 $(B)/slowscan $(DESTDIR)$(PREFIX)/bin/slowscan
-	install -m 644 $(B)/libslowscan.a $(DESTDIR)$(PREFIX)/lib/libslowscan.a
+	install -m 644 $(STATIC_LIBS) $(LIBDIR)/
+	for lib in libslowscan libslowscan-report; do \
+	  install -m 755 $(B)/$$lib.so.$(VERSION) $(LIBDIR)/ && \
+	  ln -sf $$lib.so.$(VERSION) $(LIBDIR)/$$lib.so.$(SOMAJOR) && \
+	  ln -sf $$lib.so.$(SOMAJOR) $(LIBDIR)/$$lib.so || exit 1; \
+	done
+	sed $(PC_SUBST) slowscan.pc.in > $(LIBDIR)/pkgconfig/slowscan.pc
+	install -m 644 include/slowscan.h $(DESTDIR)$(PREFIX)/include/slowscan.h
 	install -m 644 include/slowscan/*.h $(DESTDIR)$(PREFIX)/include/slowscan/
 	install -d $(DESTDIR)$(PREFIX)/share/man/man1
 	install -m 644 doc/slowscan.1 $(DESTDIR)$(PREFIX)/share/man/man1/slowscan.1

@@ -1,14 +1,11 @@
 /* slowscan: command dispatch. */
 #include "cli.h"
+#include "slowscan/version.h"
 
 #include <fftw3.h>
 #include <gsl/gsl_errno.h>
 #include <stdlib.h>
 #include <string.h>
-
-#ifndef SLOWSCAN_VERSION
-#define SLOWSCAN_VERSION "unknown"
-#endif
 
 static const struct {
     const char *name;
@@ -31,7 +28,7 @@ int main(int argc, char **argv)
     }
     const char *name = argv[1];
     if (!strcmp(name, "--version") || !strcmp(name, "version")) {
-        printf("slowscan %s\n", SLOWSCAN_VERSION);
+        printf("slowscan %s\n", slowscan_version());
         return EXIT_OK;
     }
     if (!strcmp(name, "help") || !strcmp(name, "--help") || !strcmp(name, "-h"))

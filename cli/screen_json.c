@@ -1,13 +1,10 @@
 /* screen --json: the summary plus the null distribution's quantiles and every parameter
  * needed to reproduce the run (RFC 8259 JSON; non-finite numbers are written as null). */
 #include "screen.h"
+#include "slowscan/version.h"
 
 #include <math.h>
 #include <string.h>
-
-#ifndef SLOWSCAN_VERSION
-#define SLOWSCAN_VERSION "unknown"
-#endif
 
 static void json_length(FILE *fp, const char *key, const cli_length *len)
 {
@@ -19,7 +16,7 @@ static void json_length(FILE *fp, const char *key, const cli_length *len)
 static void write_parameters(FILE *fp, const cli_options *o)
 {
     fprintf(fp, "  \"program\": \"slowscan\",\n  \"version\": \"%s\",\n  \"parameters\": {\n",
-            SLOWSCAN_VERSION);
+            slowscan_version());
     fputs("    \"inputs\": [", fp);
     for (size_t f = 0; f < o->nfiles; f++) {
         fputs(f ? ", " : "", fp);

@@ -15,6 +15,8 @@
 #ifndef SLOWSCAN_AR1_DRIFT_H
 #define SLOWSCAN_AR1_DRIFT_H
 
+#include "slowscan/export.h"
+
 #include <stddef.h>
 #include <gsl/gsl_rng.h>
 
@@ -31,7 +33,9 @@ typedef struct {
 
 typedef struct ar1_drift_workspace ar1_drift_workspace;
 
+SLOWSCAN_API
 ar1_drift_workspace *ar1_drift_alloc(size_t nmax);
+SLOWSCAN_API
 void ar1_drift_free(ar1_drift_workspace *ws);
 
 /* With noise_trend non-zero, later fits let the innovation variance drift linearly too:
@@ -39,16 +43,19 @@ void ar1_drift_free(ar1_drift_workspace *ws);
  * weighted least squares with weights 1/variance(t) (floored at 1% of the mean squared
  * residual), the covariance scaled by the weighted residual variance. A noise that grows
  * then no longer passes for a memory that grows. */
+SLOWSCAN_API
 void ar1_drift_set_noise_trend(ar1_drift_workspace *ws, int noise_trend);
 
 /* Fits x[0..n) (NaN: missing; a pair is used when both samples are present). SLOWSCAN_ESHORT
  * with fewer than 8 pairs, SLOWSCAN_ECONST when the design is singular (a constant series),
  * SLOWSCAN_EINVAL for n > nmax. */
+SLOWSCAN_API
 int ar1_drift_estimate(ar1_drift_workspace *ws, const double *x, size_t n, ar1_drift_fit *fit);
 
 /* The recovery-rate path lambda(t_i) = ln(a0 + a1 s_i) / dt at every sample i, with a
  * pointwise 95% band by the delta method (se(phi) / (phi dt), phi = a0 + a1 s_i, +-1.96 se).
  * NaN where phi <= 0. lo and hi may be NULL. */
+SLOWSCAN_API
 void ar1_drift_path(const ar1_drift_fit *fit, size_t n, double dt, double *lambda, double *lo,
                     double *hi);
 
@@ -80,6 +87,7 @@ typedef struct {
  * `horizon` samples from the first (2(n-1) for twice the record). Each draw costs O(pairs): the
  * refit is b + (X'WX)^-1 X'W e*, with the projection matrix formed once.
  * SLOWSCAN_EINVAL for draws < 1; SLOWSCAN_ENOMEM. */
+SLOWSCAN_API
 int ar1_drift_project(ar1_drift_workspace *ws, const ar1_drift_fit *fit, size_t n, double horizon,
                       size_t draws, gsl_rng *rng, ar1_projection *out);
 

@@ -8,6 +8,8 @@
 #ifndef SLOWSCAN_DEMO_H
 #define SLOWSCAN_DEMO_H
 
+#include "slowscan/export.h"
+
 #include <stddef.h>
 
 typedef struct {
@@ -18,7 +20,9 @@ typedef struct {
     double drift;         /* slow linear change of the level over the record, NTU */
 } demo_station;
 
+SLOWSCAN_API
 size_t demo_station_count(void);
+SLOWSCAN_API
 const demo_station *demo_station_get(size_t k);
 
 /* Sampling of the demo: weekly, in days since the start of the record. */
@@ -28,6 +32,7 @@ const demo_station *demo_station_get(size_t k);
 /* Fills time[n] (days) and, for every station k, values[k][n] (NTU). Deterministic for a
  * given seed. SLOWSCAN_EINVAL for n < 8; SLOWSCAN_ENUMERIC if a path escaped the basin
  * (cannot happen with the shipped parameters, checked anyway). */
+SLOWSCAN_API
 int demo_generate(unsigned long seed, size_t n, double *time, double **values);
 
 #endif

@@ -14,6 +14,8 @@
 #ifndef SLOWSCAN_DETREND_H
 #define SLOWSCAN_DETREND_H
 
+#include "slowscan/export.h"
+
 #include <stddef.h>
 
 typedef enum {
@@ -35,9 +37,12 @@ typedef struct {
 
 /* "gaussian-linear", "gaussian", "moving", "loess", "linear", "poly:K", "difference", "none".
  * Sets spec->method and spec->degree; leaves spec->bandwidth alone. */
+SLOWSCAN_API
 int detrend_parse_method(const char *text, detrend_spec *spec);
+SLOWSCAN_API
 const char *detrend_method_name(detrend_method method);
 /* Whether the method reads spec->bandwidth. */
+SLOWSCAN_API
 int detrend_uses_bandwidth(detrend_method method);
 
 /* Writes trend[n] and residual[n] (either may be NULL). Returns SLOWSCAN_EINVAL for a
@@ -54,6 +59,7 @@ int detrend_uses_bandwidth(detrend_method method);
  * non-negligible weight (weight >= 1e-6 of the largest weight present) the line is
  * undetermined and the local-constant (gaussian) value is used; NaN where no finite sample
  * lies within 8 s. gaussian: the Nadaraya-Watson weighted mean with the same weights. */
+SLOWSCAN_API
 int detrend_apply(const detrend_spec *spec, double dt, const double *x, size_t n,
                   double *trend, double *residual);
 
@@ -84,8 +90,11 @@ int detrend_apply(const detrend_spec *spec, double dt, const double *x, size_t n
  * library's use of the same planner, and would be a global, which the core does not keep. */
 typedef struct detrend_workspace detrend_workspace;
 
+SLOWSCAN_API
 detrend_workspace *detrend_workspace_alloc(const detrend_spec *spec, double dt, size_t n);
+SLOWSCAN_API
 void detrend_workspace_free(detrend_workspace *ws);
+SLOWSCAN_API
 int detrend_apply_with(detrend_workspace *ws, const double *x, size_t n, double *trend,
                        double *residual);
 
@@ -118,6 +127,7 @@ typedef struct {
 } deseason_spec;
 
 /* period 0 (to be set), harmonics 0, window 0. */
+SLOWSCAN_API
 deseason_spec detrend_deseason_default(void);
 
 /* Which field of a spec is out of its domain. */
@@ -132,6 +142,7 @@ typedef enum {
  * SLOWSCAN_OK or SLOWSCAN_EINVAL with *problem saying which field is wrong, and the number of
  * harmonics that will be fitted in *harmonics (0: the mean cycle). Either pointer may be
  * NULL. */
+SLOWSCAN_API
 int detrend_deseason_check(const deseason_spec *spec, double dt, size_t n,
                            deseason_problem *problem, int *harmonics);
 
@@ -139,6 +150,7 @@ int detrend_deseason_check(const deseason_spec *spec, double dt, size_t n,
  * detrend_deseason_check) or NULL x with n > 0; SLOWSCAN_ESHORT when a phase of some window
  * has no usable sample (mean cycle) or some window has too few to separate the harmonics.
  * On any failure x is left unchanged. */
+SLOWSCAN_API
 int detrend_deseason_apply(const deseason_spec *spec, double dt, double *x, size_t n);
 
 
@@ -162,6 +174,7 @@ typedef struct {
 
 /* SLOWSCAN_EINVAL for edge < 2 or > n or level outside (0, 1); SLOWSCAN_ESHORT with fewer than
  * 3 finite values; SLOWSCAN_ECONST for a constant residual. NaN samples are skipped. */
+SLOWSCAN_API
 int detrend_leakage_test(const double *residual, size_t n, size_t edge, double level,
                          detrend_leakage *out);
 

@@ -42,6 +42,8 @@
 #ifndef SLOWSCAN_INDICATORS_H
 #define SLOWSCAN_INDICATORS_H
 
+#include "slowscan/export.h"
+
 #include <stddef.h>
 
 typedef enum {
@@ -61,19 +63,25 @@ typedef enum {
 
 typedef enum { RECOVERY_LOG_AR1, RECOVERY_INCREMENTS } recovery_method;
 
+SLOWSCAN_API
 const char *indicator_name(indicator_kind kind);
 /* SLOWSCAN_EINVAL for an unknown name. */
+SLOWSCAN_API
 int indicator_lookup(const char *name, indicator_kind *kind);
 /* +1: expected to rise toward a threshold (one-sided test); 0: two-sided (skewness). */
+SLOWSCAN_API
 int indicator_direction(indicator_kind kind);
 /* Whether the indicator needs the un-detrended level series (cv). */
+SLOWSCAN_API
 int indicator_needs_level(indicator_kind kind);
 /* Whether it is computed afresh in each window (redness, spectral_exponent, dfa): it needs a
  * rolling_plan and, by default, is evaluated on a coarser step. */
+SLOWSCAN_API
 int indicator_per_window(indicator_kind kind);
 /* The smallest window (samples) the indicator is defined for: 3 for the moment indicators,
  * 6 for spectral_exponent (3 positive frequencies), 10 for redness (a fifth of the positive
  * frequencies must hold one), DFA_MIN_WINDOW for dfa. */
+SLOWSCAN_API
 size_t indicator_min_window(indicator_kind kind);
 
 /* DFA needs W/4 >= 8 so that its box sizes (4 .. W/4) span an octave: five sizes at W = 32.
@@ -101,6 +109,7 @@ typedef struct {
 /* The step indicator `kind` is evaluated on in a series of n samples: spec->step when given,
  * else 1 for the moment indicators and floor((n - W) / ROLLING_MAX_WINDOWS) + 1 for the
  * per-window ones (the smallest step leaving at most ROLLING_MAX_WINDOWS windows). */
+SLOWSCAN_API
 size_t rolling_step(const rolling_spec *spec, indicator_kind kind, size_t n);
 /* Whether the window ending at i (i >= W-1) is evaluated on this step. */
 static inline int rolling_evaluated(size_t step, size_t n, size_t i)
@@ -110,6 +119,7 @@ static inline int rolling_evaluated(size_t step, size_t n, size_t i)
 
 /* How many positive frequencies k/(W dt), k = 1 .. floor(W/2), lie in [lo, hi] (within a
  * relative 1e-9); lo = hi = 0 counts them all. */
+SLOWSCAN_API
 size_t rolling_band_count(size_t window, double dt, double lo, double hi);
 
 /* What the per-window indicators need for one window length: the FFTW r2c plan, the Hann
@@ -120,22 +130,29 @@ size_t rolling_band_count(size_t window, double dt, double lo, double hi);
  * inside (0, 1/(2 dt)] with lo < hi; SLOWSCAN_ENOMEM. A band holding fewer than
  * SPECTRAL_MIN_FREQUENCIES frequencies, or W < DFA_MIN_WINDOW, is accepted here and refused
  * by rolling_compute for the indicator that needs it. */
+SLOWSCAN_API
 int rolling_plan_alloc(const rolling_spec *spec, rolling_plan **plan);
+SLOWSCAN_API
 void rolling_plan_free(rolling_plan *plan);
 /* Whether `plan` was made for spec's window, dt and band (so it may be reused). */
+SLOWSCAN_API
 int rolling_plan_matches(const rolling_plan *plan, const rolling_spec *spec);
 
 /* Scratch of the per-window indicators (tapered window, spectrum, profile), one per thread,
  * for windows of up to max_window samples. NULL on failure. */
 typedef struct rolling_scratch rolling_scratch;
+SLOWSCAN_API
 rolling_scratch *rolling_scratch_alloc(size_t max_window);
+SLOWSCAN_API
 void rolling_scratch_free(rolling_scratch *scratch);
 
 /* The periodogram (definition above) of one gap-free window x[W]: power[k], k = 0 .. W/2. */
+SLOWSCAN_API
 int rolling_periodogram(const rolling_plan *plan, rolling_scratch *scratch, const double *x,
                         double *power);
 /* DFA's fluctuation function of one gap-free window x[W]: sizes[j] and F[j] for the plan's
  * *count box sizes (at most max). SLOWSCAN_EINVAL when W < DFA_MIN_WINDOW. */
+SLOWSCAN_API
 int rolling_dfa_fluctuation(const rolling_plan *plan, rolling_scratch *scratch, const double *x,
                             size_t *sizes, double *F, size_t max, size_t *count);
 
@@ -149,8 +166,10 @@ int rolling_dfa_fluctuation(const rolling_plan *plan, rolling_scratch *scratch, 
  * rolling_compute allocates scratch for per-window indicators itself; rolling_compute_with
  * uses the caller's (for windows up to its max_window), so that repeated calls (surrogates)
  * allocate nothing. */
+SLOWSCAN_API
 int rolling_compute(const rolling_spec *spec, const double *residual, const double *level,
                     size_t n, const indicator_kind *kinds, size_t nkinds, double *const *out);
+SLOWSCAN_API
 int rolling_compute_with(const rolling_spec *spec, rolling_scratch *scratch,
                          const double *residual, const double *level, size_t n,
                          const indicator_kind *kinds, size_t nkinds, double *const *out);

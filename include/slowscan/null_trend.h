@@ -10,6 +10,8 @@
 #ifndef SLOWSCAN_NULL_TREND_H
 #define SLOWSCAN_NULL_TREND_H
 
+#include "slowscan/export.h"
+
 #include "slowscan/indicators.h"
 #include "slowscan/surrogates.h"
 
@@ -22,7 +24,9 @@ enum { NULL_TREND_BLOCK = 64 };
 typedef struct null_trend_workspace null_trend_workspace;
 
 /* For series of n samples and up to nkinds indicators. NULL on failure. */
+SLOWSCAN_API
 null_trend_workspace *null_trend_alloc(size_t n, size_t nkinds);
+SLOWSCAN_API
 void null_trend_free(null_trend_workspace *ws);
 
 typedef struct {
@@ -45,12 +49,14 @@ typedef struct {
  * reseeded, within a block it runs on. Calling it for j = first, first+1, ... (first a
  * multiple of NULL_TREND_BLOCK) before each draw reproduces the replicates of
  * null_trend_draw — the `surrogates` command writes exactly the series screen tests with. */
+SLOWSCAN_API
 void null_trend_stream(gsl_rng *rng, unsigned long seed, const char *series, const char *purpose,
                        size_t j);
 
 /* Draws replicates [first, first + count) from `source` and writes, for indicator k and
  * replicate j, tau into null[k * stride + j] (NaN when a replicate's tau is undefined).
  * `first` must be a multiple of NULL_TREND_BLOCK. */
+SLOWSCAN_API
 int null_trend_draw(null_trend_workspace *ws, surrogate_source *source, const null_trend_job *job,
                     size_t first, size_t count, double *null, size_t stride);
 

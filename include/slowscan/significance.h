@@ -4,6 +4,8 @@
 #ifndef SLOWSCAN_SIGNIFICANCE_H
 #define SLOWSCAN_SIGNIFICANCE_H
 
+#include "slowscan/export.h"
+
 #include <stddef.h>
 
 typedef enum {
@@ -15,16 +17,19 @@ typedef enum {
 /* Surrogate p-value of `observed` against the m finite values of null[] (non-finite null
  * values are not counted, and m shrinks accordingly; *used receives m, may be NULL). NaN
  * when observed is NaN or no null value is finite. */
+SLOWSCAN_API
 double significance_p_value(double observed, const double *null, size_t count,
                             significance_alternative alternative, size_t *used);
 
 /* Benjamini & Hochberg (1995) adjusted p-values (q-values) of count p-values; NaN entries
  * are left out of the family and get NaN. q[i] = min over j with p_(j) >= p_i of
  * p_(j) * m / rank(j), capped at 1. `order` is scratch of count entries. */
+SLOWSCAN_API
 int significance_bh(const double *p, size_t count, double *q, size_t *order);
 
 /* A 32-bit seed for the stream of (global seed, series name, purpose, block): FNV-1a over the
  * parts. Distinct parts give unrelated streams, so work can be dealt out in any order. */
+SLOWSCAN_API
 unsigned long stream_seed(unsigned long seed, const char *series, const char *purpose,
                           unsigned long block);
 

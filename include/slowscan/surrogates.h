@@ -15,6 +15,8 @@
 #ifndef SLOWSCAN_SURROGATES_H
 #define SLOWSCAN_SURROGATES_H
 
+#include "slowscan/export.h"
+
 #include <gsl/gsl_rng.h>
 #include <stddef.h>
 
@@ -37,9 +39,12 @@ typedef struct {
 } surrogate_options;
 
 /* The defaults above. */
+SLOWSCAN_API
 surrogate_options surrogate_default_options(void);
 
+SLOWSCAN_API
 const char *surrogate_name(surrogate_kind kind);
+SLOWSCAN_API
 int surrogate_lookup(const char *name, surrogate_kind *kind);
 
 typedef struct surrogate_plan surrogate_plan;
@@ -48,23 +53,30 @@ typedef struct surrogate_source surrogate_source;
 /* fftw_flags: FFTW_ESTIMATE for a few draws; FFTW_MEASURE pays off only when thousands of
  * draws reuse the plan. Planning is not thread-safe unless fftw_make_planner_thread_safe()
  * was called: make plans before starting threads. NULL on failure. */
+SLOWSCAN_API
 surrogate_plan *surrogate_plan_alloc(size_t n, unsigned fftw_flags);
+SLOWSCAN_API
 void surrogate_plan_free(surrogate_plan *plan);
+SLOWSCAN_API
 size_t surrogate_plan_length(const surrogate_plan *plan);
 
 /* The source of surrogates of x[n] (n = plan length). *status: SLOWSCAN_ESHORT when fewer
  * than 8 finite samples, SLOWSCAN_ECONST when they do not vary, SLOWSCAN_ENOMEM. */
+SLOWSCAN_API
 surrogate_source *surrogate_source_alloc(const surrogate_plan *plan, surrogate_kind kind,
                                          const double *x, const surrogate_options *options,
                                          int *status);
+SLOWSCAN_API
 void surrogate_source_free(surrogate_source *source);
 
 /* One replicate into out[n], drawing from rng. */
+SLOWSCAN_API
 int surrogate_draw(surrogate_source *source, gsl_rng *rng, double *out);
 
 /* IAAFT only: iterations of the last draw, its final relative spectral error
  * sqrt(sum (|S_k| - A_k)^2 / sum A_k^2), and whether it met the tolerance before the
  * iteration limit. Counts of draws that did not converge accumulate in *unconverged. */
+SLOWSCAN_API
 void surrogate_iaaft_report(const surrogate_source *source, int *iterations, double *error,
                             size_t *unconverged);
 

@@ -1,0 +1,20 @@
+/* slowscan — every public header of the core library (libslowscan).
+ *
+ * Link with `pkg-config --cflags --libs slowscan`. The figure and demo-data modules
+ * (slowscan/report.h, slowscan/demo.h) belong to libslowscan-report, which needs PLplot, and
+ * are not included here. */
+#ifndef SLOWSCAN_H
+#define SLOWSCAN_H
+
+#include "slowscan/version.h"
+#include "slowscan/status.h"
+#include "slowscan/detrend.h"
+#include "slowscan/indicators.h"
+#include "slowscan/kendall.h"
+#include "slowscan/surrogates.h"
+#include "slowscan/null_trend.h"
+#include "slowscan/significance.h"
+#include "slowscan/ar1_drift.h"
+#include "slowscan/io.h"
+
+#endif
