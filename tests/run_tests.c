@@ -23,6 +23,7 @@ void suite_robustness(void);
 void suite_leakage(void);
 void suite_co2(void);
 void suite_calibration(void);
+void suite_golden(void);
 
 static const struct {
     const char *name;
@@ -34,6 +35,7 @@ static const struct {
     {"significance", suite_significance}, {"projection", suite_projection},
     {"report", suite_report},         {"robustness", suite_robustness}, {"leakage", suite_leakage},
     {"co2", suite_co2},               {"calibration", suite_calibration},
+    {"golden", suite_golden},
 };
 
 int main(int argc, char **argv)
