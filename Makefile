@@ -20,7 +20,7 @@ LIBS     = $(shell pkg-config --libs $(PKGS) 2>/dev/null || echo -lgsl -lgslcbla
            -lfftw3_threads -lcsv -lpthread -lm
 SAN     := -fsanitize=address,undefined -fno-omit-frame-pointer -fno-sanitize-recover=undefined
 
-CORE_DIRS := detrend indicators surrogates response io report data
+CORE_DIRS := detrend indicators surrogates screen response io report data
 LIB_SRC   := $(foreach d,$(CORE_DIRS),$(wildcard $(d)/*.c))
 CLI_SRC   := $(wildcard cli/*.c)
 TEST_SRC  := $(wildcard tests/*.c)

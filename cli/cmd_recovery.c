@@ -72,9 +72,9 @@ static double surrogate_p(const cli_options *opts, const prepared_series *ps, re
     cli_options drift_only = *opts;
     drift_only.nindicators = 0;
     drift_only.drift_test = 1;
-    trend_result result;
+    screen_result result;
     *rc = trend_test(&run->tester, &drift_only, ps, NULL, &result);
-    return result.p_value;
+    return result.tests[0].p_value;
 }
 
 /* The crossing of lambda = 0 within twice the record, with its residual-bootstrap interval

@@ -1,5 +1,7 @@
-/* slowscan screen: the main job. For every series: detrend, rolling indicators and the shared
- * trend test (trend_test.c); then q-values, flags and the summary, one row per series x test. */
+/* slowscan screen: the main job, through the screening library (screen.h). For every series:
+ * its paths and tests (screen_indicators, screen_test_series) on the series prepared by the
+ * shared driver; then q-values and flags (screen_decide) and the summary, one row per series
+ * x test. This file only turns the results into rows, messages and outputs. */
 #include "cli.h"
 #include "screen.h"
 #include "slowscan/significance.h"
@@ -26,6 +28,12 @@ static int open_outputs(const cli_options *opts, cli_outputs *outs, void *contex
     return rc;
 }
 
+/* The window of test j in time units; NaN for a test of the whole residual. */
+static double rolling_window(const screen_result *res, size_t j)
+{
+    return screen_test_rolling(res->tests[j].kind) ? res->window : NAN;
+}
+
 static screen_row *add_row(screen_run *run)
 {
     void *rows = run->rows;
@@ -38,55 +46,56 @@ static screen_row *add_row(screen_run *run)
     return row;
 }
 
-static int record_series(const cli_options *opts, const prepared_series *ps, screen_run *run,
-                         double *const *values)
+/* One row per test, with the warning of each insufficient one. */
+static int record_series(const prepared_series *ps, screen_run *run,
+                         const screen_result *res)
 {
-    trend_result results[TREND_MAX_TESTS];
-    int rc = trend_test(&run->tester, opts, ps, values, results);
-    for (size_t j = 0; rc == EXIT_OK && j < trend_test_count(opts); j++) {
+    for (size_t j = 0; j < res->ntests; j++) {
         screen_row *row = add_row(run);
         if (!row || !(row->series = strdup(ps->name))) {
             cli_error("out of memory");
             return EXIT_INTERNAL;
         }
-        int drift = j >= opts->nindicators; /* the model-based test: no window */
-        row->label = drift ? "recovery_trend" : indicator_name(opts->indicators[j]);
-        row->n = ps->finite;
-        row->window = drift ? NAN : (double)(ps->window - 1) * ps->dt;
-        row->bandwidth = ps->bandwidth;
-        row->result = results[j];
-        row->q_value = NAN;
-        row->harmonics = isnan(opts->deseason) ? -1 : ps->harmonics;
-        row->leakage = ps->leakage;
-        row->leakage_tested = ps->leakage_tested;
-        if (isnan(row->result.statistic)) {
-            row->flag = "insufficient";
-            if (!ps->constant) /* a constant series was warned about when its values were made */
-                cli_warning("%s: column '%s', indicator %s: %s; flagged insufficient", ps->source,
-                            ps->name, row->label, row->result.reason);
-        } else if (opts->surrogates > 0 && isnan(row->result.p_value)) {
-            row->flag = "insufficient"; /* no null could be made; warned in trend_test */
-        } else
-            row->flag = "untested"; /* until decide() (for good with --surrogates 0) */
-        /* The tester's null holds this series' draws only when some were made (null_used). */
-        if (run->figures && row->result.null_used > 0 &&
-            screen_keep_null(row, run->tester.null + j * (size_t)opts->surrogates,
-                             (size_t)opts->surrogates) != EXIT_OK)
+        *row = (screen_row){row->series, res->n, rolling_window(res, j), res->bandwidth, NAN,
+                            res->tests[j], SCREEN_FLAG_UNTESTED, res->harmonics, res->leakage,
+                            res->leakage_tested, NULL};
+        /* a constant series was warned about when its paths were made */
+        if (isnan(row->result.statistic) && !ps->constant)
+            cli_warning("%s: column '%s', indicator %s: %s; flagged insufficient", ps->source,
+                        ps->name, screen_test_name(row->result.kind),
+                        cli_screen_reason(row->result.reason));
+        const double *null = screen_workspace_null(run->ws, j);
+        if (run->figures && row->result.null_used > 0 && null &&
+            cli_screen_keep_null(row, null, run->cfg.surrogates) != EXIT_OK)
             return EXIT_INTERNAL;
     }
-    return rc;
+    return EXIT_OK;
 }
 
-static int screen_series(const cli_options *opts, const prepared_series *ps, void *context)
+/* The library's paths, statistics and null for one prepared series; the rolling CSV. */
+static int screen_one(const cli_options *opts, const prepared_series *ps, void *context)
 {
     screen_run *run = context;
-    double *values[INDICATOR_COUNT];
-    int rc = cli_indicator_values(opts, ps, values);
-    if (rc == EXIT_OK && run->rolling)
-        cli_write_rolling(run->rolling, opts, ps, values);
-    if (rc == EXIT_OK)
-        rc = record_series(opts, ps, run, values);
-    cli_indicator_values_free(opts, values);
+    screen_result res = {0};
+    screen_detail d = {0};
+    double *paths[INDICATOR_COUNT] = {NULL};
+    int missing = !run->ws && !(run->ws = screen_workspace_alloc(run->cfg.threads));
+    for (size_t j = 0; j < opts->nindicators; j++)
+        missing |= !(paths[j] = malloc(ps->n * sizeof(double)));
+    int warned = 0, st = SLOWSCAN_ENOMEM;
+    if (!missing)
+        st = screen_indicators(run->ws, &run->cfg, ps, paths, &res.warnings[0], &warned, &d);
+    res.nwarnings = (size_t)warned;
+    if (warned)
+        cli_screen_warn(opts, ps, &res.warnings[0]);
+    if (st == SLOWSCAN_OK && run->rolling)
+        cli_write_rolling(run->rolling, opts, ps, paths);
+    if (st == SLOWSCAN_OK)
+        st = screen_test_series(run->ws, &run->cfg, ps, paths, &res, &d);
+    for (size_t w = (size_t)warned; w < res.nwarnings; w++)
+        cli_screen_warn(opts, ps, &res.warnings[w]);
+    int rc = st == SLOWSCAN_OK ? record_series(ps, run, &res) : cli_screen_refuse(opts, ps, &d);
+    cli_indicator_values_free(opts, paths);
     return rc;
 }
 
@@ -97,7 +106,7 @@ static void write_csv(const cli_options *opts, const screen_run *run)
     for (size_t r = 0; r < run->nrows; r++) {
         const screen_row *row = &run->rows[r];
         cli_put_field(run->out, row->series);
-        fprintf(run->out, ",%s,%zu,", row->label, row->n);
+        fprintf(run->out, ",%s,%zu,", screen_test_name(row->result.kind), row->n);
         const double cells[] = {row->window, row->bandwidth, row->result.tau, row->result.statistic,
                                 row->result.p_value, row->q_value};
         for (size_t c = 0; c < sizeof cells / sizeof cells[0]; c++) {
@@ -106,7 +115,7 @@ static void write_csv(const cli_options *opts, const screen_run *run)
         }
         fprintf(run->out, "%s,%ld,%s\n",
                 opts->surrogates > 0 ? cli_null_name(opts) : "none",
-                opts->surrogates, row->flag);
+                opts->surrogates, screen_flag_name(row->flag));
     }
 }
 
@@ -130,40 +139,35 @@ static void write_table(const screen_run *run)
     for (size_t r = 0; r < run->nrows; r++) {
         const screen_row *row = &run->rows[r];
         char tau[32], p[32], q[32];
-        fprintf(run->out, "%-*s  %-14s %9s %10s %10s  %s\n", width, row->series, row->label,
+        fprintf(run->out, "%-*s  %-14s %9s %10s %10s  %s\n", width, row->series,
+                screen_test_name(row->result.kind),
                 fixed(tau, row->result.statistic, 3, 1), fixed(p, row->result.p_value, 4, 0),
-                fixed(q, row->q_value, 4, 0), row->flag);
+                fixed(q, row->q_value, 4, 0), screen_flag_name(row->flag));
     }
 }
 
-/* q-values over every test of the run (Benjamini-Hochberg), then the flags: with one test
- * the p-value itself decides. */
+/* q-values over every test of the run (Benjamini-Hochberg), then the flags. */
 static int decide(const cli_options *opts, screen_run *run)
 {
-    double *p = malloc((run->nrows + 1) * sizeof *p), *q = malloc((run->nrows + 1) * sizeof *q);
-    size_t tests = 0;
-    for (size_t r = 0; p && r < run->nrows; r++) {
-        p[r] = run->rows[r].result.p_value;
-        tests += !isnan(p[r]);
+    const screen_test **tests = malloc((run->nrows + 1) * sizeof *tests);
+    double *q = malloc((run->nrows + 1) * sizeof *q);
+    screen_flag *flags = malloc((run->nrows + 1) * sizeof *flags);
+    int st = tests && q && flags ? SLOWSCAN_OK : SLOWSCAN_ENOMEM;
+    for (size_t r = 0; st == SLOWSCAN_OK && r < run->nrows; r++)
+        tests[r] = &run->rows[r].result;
+    if (st == SLOWSCAN_OK)
+        st = screen_decide(tests, run->nrows, opts->fdr, q, flags);
+    for (size_t r = 0; st == SLOWSCAN_OK && r < run->nrows; r++) {
+        run->rows[r].q_value = q[r];
+        run->rows[r].flag = flags[r];
     }
-    if (!p || !q || significance_bh(p, run->nrows, q, NULL) != SLOWSCAN_OK) {
-        free(p);
-        free(q);
-        cli_error("out of memory");
-        return EXIT_INTERNAL;
-    }
-    for (size_t r = 0; r < run->nrows; r++) {
-        screen_row *row = &run->rows[r];
-        if (isnan(row->result.p_value))
-            continue;
-        row->q_value = q[r];
-        double decisive = tests == 1 ? row->result.p_value : row->q_value;
-        /* "falling" only arises when a decreasing or two-sided alternative is tested. */
-        row->flag = decisive > opts->fdr ? "none" : row->result.statistic > 0 ? "rising" : "falling";
-    }
-    free(p);
+    free(tests);
     free(q);
-    return EXIT_OK;
+    free(flags);
+    if (st == SLOWSCAN_OK)
+        return EXIT_OK;
+    cli_error("out of memory");
+    return EXIT_INTERNAL;
 }
 
 static int finish(const cli_options *opts, void *context)
@@ -173,7 +177,7 @@ static int finish(const cli_options *opts, void *context)
     if (rc != EXIT_OK)
         return rc;
     if (run->json)
-        screen_write_json(run->json, opts, run);
+        cli_screen_json(run->json, opts, run);
     if (strcmp(opts->format, "table") == 0)
         write_table(run);
     else
@@ -184,7 +188,8 @@ static int finish(const cli_options *opts, void *context)
 int cmd_screen(const cli_options *opts)
 {
     screen_run run = {0};
-    series_command cmd = {open_outputs, screen_series, finish, &run, NULL, screen_figures};
+    cli_screen_config(opts, &run.cfg);
+    series_command cmd = {open_outputs, screen_one, finish, &run, NULL, cli_screen_figures};
     if (opts->surrogates > 0 && opts->surrogates < 19)
         cli_warning("option --surrogates %ld: with fewer than 19 surrogates no p-value can reach "
                     "0.05 (the smallest is 1/(M+1))", opts->surrogates);
@@ -195,6 +200,6 @@ int cmd_screen(const cli_options *opts)
             gsl_histogram_free(run.rows[r].null_hist);
     }
     free(run.rows);
-    trend_tester_free(&run.tester);
+    screen_workspace_free(run.ws);
     return rc;
 }
