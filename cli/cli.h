@@ -104,6 +104,8 @@ int cli_help(const char *topic, FILE *out);
  * (screen_prepare; its source is the file as messages name it). */
 typedef screen_prepared prepared_series;
 
+/* The defaults of `command` that decide numbers, from screen_config_default() (clears o). */
+void cli_science_defaults(const char *command, cli_options *o);
 /* The options as the screening library's configuration (screen.h). */
 void cli_screen_config(const cli_options *opts, screen_config *cfg);
 /* Prints the message of a library refusal (the same words whichever command meets it) and

@@ -4,6 +4,62 @@
 #include "slowscan/status.h"
 
 #include <math.h>
+#include <stdio.h>
+#include <string.h>
+
+/* The display text of a default length ("10%"), kept for messages and --json. */
+static const char *default_length_text(const screen_length *len, char buf[32])
+{
+    snprintf(buf, 32, len->percent ? "%g%%" : "%g", len->amount);
+    return buf;
+}
+
+/* Appends ",NAME" (or NAME first) to the default --indicators text. */
+static void append_name(char *text, size_t size, const char *name)
+{
+    size_t used = strlen(text);
+    snprintf(text + used, size - used, "%s%s", used ? "," : "", name);
+}
+
+void cli_science_defaults(const char *command, cli_options *o)
+{
+    static char bandwidth_text[32], window_text[32], indicators_text[128];
+    screen_config c = screen_config_default();
+    memset(o, 0, sizeof *o);
+    o->command = command;
+    o->from = o->until = o->resample = NAN;
+    o->deseason = c.deseason;
+    o->detrend = c.detrend;
+    o->detrend_text = detrend_method_name(c.detrend.method);
+    o->bandwidth = (cli_length){c.bandwidth.amount, c.bandwidth.percent,
+                                default_length_text(&c.bandwidth, bandwidth_text)};
+    o->window = (cli_length){c.window.amount, c.window.percent,
+                             default_length_text(&c.window, window_text)};
+    indicators_text[0] = 0;
+    for (size_t j = 0; j < c.nindicators; j++) {
+        o->indicators[j] = c.indicators[j];
+        append_name(indicators_text, sizeof indicators_text, indicator_name(c.indicators[j]));
+    }
+    o->nindicators = c.nindicators;
+    o->indicators_text = indicators_text;
+    if (strcmp(command, "screen") == 0 && c.drift_test) { /* joins screen's default set only */
+        o->drift_test = 1;
+        append_name(indicators_text, sizeof indicators_text,
+                    screen_test_name(SCREEN_TEST_RECOVERY_TREND));
+    }
+    o->min_coverage = c.min_coverage;
+    o->recovery = c.recovery;
+    /* surrogates writes a few by default; robustness and recovery test only when asked */
+    o->surrogates = strcmp(command, "surrogates") == 0 ? 10
+                    : strcmp(command, "robustness") == 0 || strcmp(command, "recovery") == 0
+                        ? 0
+                        : (long)c.surrogates;
+    o->null_model = c.null_kind;
+    o->null_options = c.null_options;
+    o->fdr = c.fdr;
+    o->alternative = c.alternative;
+    o->seed = c.seed;
+}
 
 void cli_screen_config(const cli_options *o, screen_config *cfg)
 {
