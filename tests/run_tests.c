@@ -24,6 +24,7 @@ void suite_leakage(void);
 void suite_co2(void);
 void suite_calibration(void);
 void suite_golden(void);
+void suite_screen(void);
 
 static const struct {
     const char *name;
@@ -35,7 +36,7 @@ static const struct {
     {"significance", suite_significance}, {"projection", suite_projection},
     {"report", suite_report},         {"robustness", suite_robustness}, {"leakage", suite_leakage},
     {"co2", suite_co2},               {"calibration", suite_calibration},
-    {"golden", suite_golden},
+    {"golden", suite_golden},         {"screen", suite_screen},
 };
 
 int main(int argc, char **argv)
