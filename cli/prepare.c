@@ -207,22 +207,16 @@ int cli_attach_control(const cli_options *o, const cli_inputs *in, prepared_seri
         return EXIT_BAD_INPUT;
     }
     /* The first n samples of the control, detrended exactly as the series was. */
-    series_table cut = *c;
-    cut.n = ps->n;
-    cli_options same = *o;
-    same.bandwidth = (cli_length){isnan(ps->bandwidth) ? 1.0 : ps->bandwidth, 0, o->bandwidth.text};
-    same.window = (cli_length){(double)(ps->window - 1) * ps->dt, 0, o->window.text};
-    prepared_series cps;
-    int rc = cli_prepare_series(&same, &cut, k, &cps);
-    if (rc == EXIT_OK && (cps.constant || cps.finite < 8)) {
+    screen_config cfg;
+    cli_screen_config(o, &cfg);
+    screen_input control = {c->names[k], cname, c->time_name, c->time, c->values[k], c->n, NULL};
+    screen_detail d;
+    if (screen_attach_control(&cfg, ps, &control, &d) == SLOWSCAN_OK)
+        return EXIT_OK;
+    if (d.rule == SCREEN_RULE_CONTROL_FLAT) {
         cli_error("option --control: series '%s' of %s has no usable variation", ps->name, cname);
-        rc = EXIT_BAD_INPUT;
+        return EXIT_BAD_INPUT;
     }
-    if (rc == EXIT_OK) {
-        ps->owned = cps.value; /* residual lives in the same block */
-        ps->null_source = cps.residual;
-        cps.value = NULL;
-    }
-    cli_prepared_free(&cps);
-    return rc;
+    prepared_series named = {.name = c->names[k], .source = cname};
+    return cli_screen_refuse(o, &named, &d);
 }

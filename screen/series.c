@@ -118,25 +118,24 @@ int screen_indicators(screen_workspace *ws, const screen_config *cfg, const scre
     return st;
 }
 
-/* With a control run: its first n samples, detrended exactly as the series was, are what the
- * surrogates are made from. */
-static int attach_control(const screen_config *cfg, const screen_input *in, screen_prepared *ps,
-                          screen_detail *d)
+int screen_attach_control(const screen_config *cfg, screen_prepared *ps,
+                          const screen_input *control, screen_detail *d)
 {
     screen_config same = *cfg;
     same.bandwidth = (screen_length){isnan(ps->bandwidth) ? 1.0 : ps->bandwidth, 0};
     same.window = (screen_length){(double)(ps->window - 1) * ps->dt, 0};
-    screen_input control = *in;
-    control.values = in->control;
-    control.control = NULL;
+    screen_input cut = *control;
+    cut.n = ps->n;
+    cut.control = NULL;
     screen_prepared cps;
-    int st = screen_prepare(&same, &control, &cps, d);
+    int st = screen_prepare(&same, &cut, &cps, d);
     if (st == SLOWSCAN_OK && (cps.constant || cps.finite < 8)) {
         *d = (screen_detail){SCREEN_RULE_CONTROL_FLAT, SCREEN_OPTION_NULL, SLOWSCAN_ECONST, 0, 0, 0,
                              0, 0};
         st = SLOWSCAN_ECONST;
     }
     if (st == SLOWSCAN_OK) {
+        free(ps->owned);
         ps->owned = cps.value; /* residual lives in the same block */
         ps->null_source = cps.residual;
         cps.value = NULL;
@@ -164,7 +163,7 @@ int screen_series(screen_workspace *ws, const screen_config *cfg, const screen_i
     screen_prepared *ps = &ws->prepared;
     int st = screen_prepare(cfg, in, ps, d);
     if (st == SLOWSCAN_OK && in->control && !ps->constant)
-        st = attach_control(cfg, in, ps, d);
+        st = screen_attach_control(cfg, ps, in->control, d);
     if (st != SLOWSCAN_OK)
         return st;
     size_t need = cfg->nindicators * in->n;

@@ -18,6 +18,7 @@
 
 #define GOLDEN_DIR "tests/golden/"
 #define BATCH_CSV GOLDEN_DIR "batch.csv"
+#define CONTROL_CSV GOLDEN_DIR "control.csv"
 
 /* A side output of a command: the option writing it and the golden file's suffix. */
 typedef struct {
@@ -38,6 +39,9 @@ static const golden_case cases[] = {
      "data/stations.csv", 1, {{"--json", "json"}, {"--rolling", "rolling.csv"}}},
     {"screen_batch", "screen --surrogates 99 --indicators variance,lag1,recovery_trend",
      BATCH_CSV, 1, {{"--json", "json"}}},
+    {"screen_control",
+     "screen --null control --control " CONTROL_CSV " --surrogates 19 --vars s0,s3,s7,s11,s20",
+     BATCH_CSV, 1, {{NULL, NULL}}},
     {"robustness",
      "robustness --deseason 364 --vars reed_inlet,north_bay --surrogates 19 --windows 40%:60%:10% "
      "--bandwidths 5%:15%:5% --indicators variance,lag1,recovery_trend",
@@ -81,6 +85,27 @@ static int write_batch(const char *path)
         }
     }
     int rc = check_write_columns_csv(path, BATCH_SERIES, BATCH_N, x);
+    free(x);
+    check_rng_free(rng);
+    return rc;
+}
+
+/* A control run for the batch: the same column names, AR(1) of constant variance, longer. */
+enum { CONTROL_N = 120 };
+
+static int write_control(const char *path)
+{
+    double *x = malloc(BATCH_SERIES * CONTROL_N * sizeof *x);
+    check_rng *rng = check_rng_alloc(20261203);
+    int rc = -1;
+    if (x && rng) {
+        for (size_t k = 0; k < BATCH_SERIES; k++) {
+            double state = 0;
+            for (size_t i = 0; i < CONTROL_N; i++)
+                x[k * CONTROL_N + i] = state = 0.5 * state + check_rng_gaussian(rng);
+        }
+        rc = check_write_columns_csv(path, BATCH_SERIES, CONTROL_N, x);
+    }
     free(x);
     check_rng_free(rng);
     return rc;
@@ -166,7 +191,8 @@ void suite_golden(void)
     const char *env = getenv("GOLDEN_UPDATE");
     int update = env && strcmp(env, "1") == 0;
     if (update)
-        CHECK(write_batch(BATCH_CSV) == 0, "cannot write %s", BATCH_CSV);
+        CHECK(write_batch(BATCH_CSV) == 0 && write_control(CONTROL_CSV) == 0,
+              "cannot write %s, %s", BATCH_CSV, CONTROL_CSV);
     for (size_t k = 0; k < sizeof cases / sizeof cases[0]; k++)
         for (long threads = 1; threads <= 3; threads++) {
             run_case(&cases[k], threads, update && threads == 1);

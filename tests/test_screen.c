@@ -103,6 +103,44 @@ static void stations(void)
     free(summary);
 }
 
+/* --null control: surrogates of the control run's residual (golden run screen_control). */
+static void control(void)
+{
+    series_table t, c;
+    io_error err;
+    csv_read_options ro = {NULL, NULL};
+    char *summary = check_read_file("tests/golden/screen_control.out");
+    int ok = summary && csv_read_table("tests/golden/batch.csv", &ro, &t, &err) == SLOWSCAN_OK;
+    if (ok && csv_read_table("tests/golden/control.csv", &ro, &c, &err) != SLOWSCAN_OK) {
+        series_table_free(&t);
+        ok = 0;
+    }
+    CHECK(ok, "golden batch, control and summary");
+    if (!ok) {
+        free(summary);
+        return;
+    }
+    screen_config cfg = screen_config_default();
+    cfg.surrogates = 19;
+    cfg.null_name = "control"; /* the streams of --null control */
+    screen_workspace *ws = screen_workspace_alloc(2);
+    cfg.threads = 2;
+    const size_t series[] = {0, 3, 20};
+    for (size_t s = 0; ws && s < 3; s++) {
+        size_t k = series[s];
+        screen_input ci = {c.names[k], "control", c.time_name, c.time, c.values[k], c.n, NULL};
+        screen_input in = {t.names[k], "batch", t.time_name, t.time, t.values[k], t.n, &ci};
+        screen_result r;
+        screen_detail d;
+        CHECK(screen_series(ws, &cfg, &in, &r, &d) == SLOWSCAN_OK, "%s with a control", t.names[k]);
+        compare_with_summary(summary, t.names[k], &r);
+    }
+    screen_workspace_free(ws);
+    series_table_free(&t);
+    series_table_free(&c);
+    free(summary);
+}
+
 static void refusals_and_warnings(void)
 {
     enum { N = 40 };
@@ -173,6 +211,7 @@ void suite_screen(void)
 {
     defaults();
     stations();
+    control();
     refusals_and_warnings();
     decide();
 }

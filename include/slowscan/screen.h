@@ -117,16 +117,18 @@ typedef struct {
 enum { SCREEN_MAX_WARNINGS = 4 };
 
 /* A series to screen (arrays borrowed; NaN = missing). */
-typedef struct {
+typedef struct screen_input screen_input;
+struct screen_input {
     const char *name;       /* part of the random streams */
     const char *source;     /* where it came from (the caller's messages) */
     const char *time_name;  /* the time axis's name (figures) */
     const double *time;     /* n, regular grid */
     const double *values;   /* n */
     size_t n;
-    const double *control;  /* NULL, or n values of a control run: surrogates are made from
-                               its residual (detrended with the series' bandwidth) */
-} screen_input;
+    const screen_input *control; /* NULL, or the same series of a control run (at least n
+                                    samples, same step): surrogates are made from its first n
+                                    samples' residual, detrended as the series was */
+};
 
 /* A series prepared for the indicators: deseasoned and detrended. */
 typedef struct {
@@ -220,6 +222,11 @@ void screen_workspace_free(screen_workspace *ws);
 int screen_prepare(const screen_config *cfg, const screen_input *in, screen_prepared *out,
                    screen_detail *detail);
 void screen_prepared_free(screen_prepared *ps);
+/* Makes ps->null_source the residual of the control run's first ps->n samples, deseasoned
+ * and detrended with ps's bandwidth and window in time units. SCREEN_RULE_CONTROL_FLAT when
+ * it has fewer than 8 finite samples or does not vary; the control's own refusals else. */
+int screen_attach_control(const screen_config *cfg, screen_prepared *ps,
+                          const screen_input *control, screen_detail *detail);
 /* W of cfg->window for a series of n samples spanning `span`, or a refusal in *detail. */
 int screen_window(const screen_config *cfg, size_t n, double span, size_t *window,
                   screen_detail *detail);
