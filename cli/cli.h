@@ -136,9 +136,6 @@ void cli_prepared_free(prepared_series *ps);
 /* W of opts->window for the table's grid (the rule of DESIGN §3), or an exit code. */
 int cli_series_window(const cli_options *opts, const series_table *table, size_t *window);
 
-/* The rolling spec of a prepared series (window, coverage, step, band), without a plan. */
-rolling_spec cli_rolling_spec(const cli_options *opts, const prepared_series *ps);
-
 /* Rolling indicators of a prepared series: values[j] (j < opts->nindicators) gets ps->n
  * entries, allocated here and released by cli_indicator_values_free even on failure. A
  * constant series gets NA everywhere, with a warning. */

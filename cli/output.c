@@ -294,7 +294,9 @@ const char cli_rolling_header[] = "series,time,indicator,value\n";
 void cli_write_rolling(FILE *fp, const cli_options *opts, const prepared_series *ps,
                        double *const *values)
 {
-    rolling_spec spec = cli_rolling_spec(opts, ps);
+    screen_config cfg;
+    cli_screen_config(opts, &cfg);
+    rolling_spec spec = screen_rolling_spec(&cfg, ps);
     for (size_t j = 0; j < opts->nindicators; j++) {
         const char *name = indicator_name(opts->indicators[j]);
         /* Only the windows evaluated on the indicator's step have a row; an evaluated window

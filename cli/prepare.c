@@ -150,12 +150,6 @@ void cli_indicator_values_free(const cli_options *o, double **values)
     }
 }
 
-rolling_spec cli_rolling_spec(const cli_options *o, const prepared_series *ps)
-{
-    return (rolling_spec){ps->window, o->min_coverage, ps->dt, o->recovery, (size_t)o->step,
-                          o->band_lo, o->band_hi, NULL};
-}
-
 int cli_indicator_values(const cli_options *o, const prepared_series *ps, double **values)
 {
     for (size_t j = 0; j < o->nindicators; j++)

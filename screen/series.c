@@ -63,11 +63,16 @@ static int check_per_window(const screen_config *cfg, const screen_prepared *ps,
 
 /* The observed series and every surrogate share one plan per window length and time step;
  * it is made here, in the calling thread, before the surrogate threads start. */
+rolling_spec screen_rolling_spec(const screen_config *cfg, const screen_prepared *ps)
+{
+    return (rolling_spec){ps->window, cfg->min_coverage, ps->dt, cfg->recovery, cfg->step,
+                          cfg->band_lo, cfg->band_hi, NULL};
+}
+
 int screen_rolling_ready(screen_workspace *ws, const screen_config *cfg,
                          const screen_prepared *ps, rolling_spec *spec, screen_detail *d)
 {
-    *spec = (rolling_spec){ps->window, cfg->min_coverage, ps->dt, cfg->recovery, cfg->step,
-                           cfg->band_lo, cfg->band_hi, NULL};
+    *spec = screen_rolling_spec(cfg, ps);
     int per_window = 0;
     for (size_t j = 0; j < cfg->nindicators; j++)
         per_window |= indicator_per_window(cfg->indicators[j]);

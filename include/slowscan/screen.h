@@ -231,6 +231,10 @@ int screen_attach_control(const screen_config *cfg, screen_prepared *ps,
 int screen_window(const screen_config *cfg, size_t n, double span, size_t *window,
                   screen_detail *detail);
 
+/* The rolling spec (window, coverage, dt, step, band; no plan) of a prepared series, as
+ * screen_indicators uses it: with rolling_step it says which windows carry a value. */
+rolling_spec screen_rolling_spec(const screen_config *cfg, const screen_prepared *ps);
+
 /* Rolling indicators of a prepared series into paths[j][ps->n] (caller's storage, j <
  * cfg->nindicators); NaN everywhere when the series does not vary (a SCREEN_WARN_NO_PATHS in
  * *warning->kind, else warning->kind is left alone). */
