@@ -184,6 +184,26 @@ int cli_for_each_series(const cli_options *opts, const cli_inputs *in, series_vi
 typedef int (*table_visitor)(const cli_options *opts, const cli_inputs *in,
                              const series_table *table, size_t k, void *context);
 
+/* How messages name an input ("standard input" for "-"). */
+const char *cli_source_name(const char *source);
+/* The control run's series `name` as the library takes it (values NULL when there is none). */
+screen_input cli_control_input(const cli_inputs *in, const char *name);
+/* The message of a refusal met with the control run; returns the exit code. */
+int cli_control_refuse(const cli_options *opts, const screen_input *control,
+                       const prepared_series *ps, const screen_detail *d);
+
+/* Series whose residual keeps part of the trend at an edge, counted over a run in input
+ * order and reported once at its end (one line each for a few, a summary for many). */
+enum { CLI_LEAKAGE_NAMED = 3 };
+typedef struct {
+    size_t count, tested;
+    const char *source[CLI_LEAKAGE_NAMED], *name[CLI_LEAKAGE_NAMED];
+    detrend_leakage first[CLI_LEAKAGE_NAMED];
+} cli_leakage_tally;
+void cli_tally_leakage(cli_leakage_tally *tally, const char *source, const char *name,
+                       const detrend_leakage *leakage, int tested);
+void cli_report_leakage(const cli_options *opts, const cli_leakage_tally *tally);
+
 /* With --null control: makes ps->null_source the residual of the control run's series of the
  * same name, cut to ps->n samples and detrended with ps's bandwidth in time units. */
 int cli_attach_control(const cli_options *opts, const cli_inputs *in, prepared_series *ps);
@@ -199,6 +219,9 @@ typedef struct {
     /* After finish, before the commit: figures that need the whole run (screen's q-values);
      * the inputs are still loaded, so series can be prepared again instead of kept. */
     int (*figures)(const cli_options *opts, const cli_inputs *in, void *context);
+    /* Used instead of visit and visit_table when set: the command runs its series itself
+     * (screen, through the library's batch driver). */
+    int (*run)(const cli_options *opts, const cli_inputs *in, void *context);
 } series_command;
 /* Load, open, visit, finish, then commit every output — or remove them all on failure. */
 int cli_run_series_command(const cli_options *opts, const series_command *command);

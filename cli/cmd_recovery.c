@@ -241,7 +241,7 @@ static int finish(const cli_options *opts, void *context)
 int cmd_recovery(const cli_options *opts)
 {
     recovery_run run = {0};
-    series_command cmd = {open_outputs, recovery_series, finish, &run, NULL, NULL};
+    series_command cmd = {open_outputs, recovery_series, finish, &run, NULL, NULL, NULL};
     int rc = cli_run_series_command(opts, &cmd);
     trend_tester_free(&run.tester);
     if (run.rng)

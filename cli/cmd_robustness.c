@@ -376,7 +376,7 @@ static int robustness_series(const cli_options *opts, const cli_inputs *in,
 int cmd_robustness(const cli_options *opts)
 {
     robustness_run run = {0};
-    series_command cmd = {open_outputs, NULL, NULL, &run, robustness_series, NULL};
+    series_command cmd = {open_outputs, NULL, NULL, &run, robustness_series, NULL, NULL};
     int rc = cli_run_series_command(opts, &cmd);
     trend_tester_free(&run.tester);
     trend_tester_free(&run.drift_tester);

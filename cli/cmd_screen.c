@@ -189,7 +189,7 @@ int cmd_screen(const cli_options *opts)
 {
     screen_run run = {0};
     cli_screen_config(opts, &run.cfg);
-    series_command cmd = {open_outputs, screen_one, finish, &run, NULL, cli_screen_figures};
+    series_command cmd = {open_outputs, screen_one, finish, &run, NULL, cli_screen_figures, NULL};
     if (opts->surrogates > 0 && opts->surrogates < 19)
         cli_warning("option --surrogates %ld: with fewer than 19 surrogates no p-value can reach "
                     "0.05 (the smallest is 1/(M+1))", opts->surrogates);

@@ -176,41 +176,59 @@ int cli_indicator_values(const cli_options *o, const prepared_series *ps, double
     return rc;
 }
 
+const char *cli_source_name(const char *source)
+{
+    return shown(source);
+}
+
+screen_input cli_control_input(const cli_inputs *in, const char *name)
+{
+    const series_table *c = &in->control;
+    screen_input control = {name, shown(c->source), c->time_name, c->time, NULL, c->n, NULL};
+    for (size_t k = 0; k < c->nseries; k++)
+        if (strcmp(c->names[k], name) == 0) {
+            control.values = c->values[k];
+            break;
+        }
+    return control;
+}
+
+int cli_control_refuse(const cli_options *o, const screen_input *control,
+                       const prepared_series *ps, const screen_detail *d)
+{
+    const char *cname = control->source;
+    switch (d->rule) {
+    case SCREEN_RULE_CONTROL_MISSING:
+        cli_error("option --control: %s has no series '%s'", cname, ps->name);
+        return EXIT_BAD_INPUT;
+    case SCREEN_RULE_CONTROL_SHORT:
+        cli_error("option --control: series '%s' of %s has %zu samples, fewer than the %zu "
+                  "analysed", ps->name, cname, d->count, d->need);
+        return EXIT_BAD_INPUT;
+    case SCREEN_RULE_CONTROL_STEP:
+        cli_error("option --control: %s has time step %.12g, the analysed series %.12g "
+                  "(use --resample)", cname, d->value, d->limit);
+        return EXIT_BAD_INPUT;
+    case SCREEN_RULE_CONTROL_FLAT:
+        cli_error("option --control: series '%s' of %s has no usable variation", ps->name, cname);
+        return EXIT_BAD_INPUT;
+    default: {
+        /* the control's own preparation failed: named as the control series */
+        prepared_series named = {.name = control->name, .source = cname};
+        return cli_screen_refuse(o, &named, d);
+    }
+    }
+}
+
 int cli_attach_control(const cli_options *o, const cli_inputs *in, prepared_series *ps)
 {
     if (!in->has_control)
         return EXIT_OK;
-    const series_table *c = &in->control;
-    const char *cname = shown(c->source);
-    size_t k = 0;
-    while (k < c->nseries && strcmp(c->names[k], ps->name) != 0)
-        k++;
-    if (k == c->nseries) {
-        cli_error("option --control: %s has no series '%s'", cname, ps->name);
-        return EXIT_BAD_INPUT;
-    }
-    if (c->n < ps->n) {
-        cli_error("option --control: series '%s' of %s has %zu samples, fewer than the %zu "
-                  "analysed", ps->name, cname, c->n, ps->n);
-        return EXIT_BAD_INPUT;
-    }
-    double cdt = (c->time[c->n - 1] - c->time[0]) / (double)(c->n - 1);
-    if (fabs(cdt - ps->dt) > 1e-6 * ps->dt) {
-        cli_error("option --control: %s has time step %.12g, the analysed series %.12g "
-                  "(use --resample)", cname, cdt, ps->dt);
-        return EXIT_BAD_INPUT;
-    }
-    /* The first n samples of the control, detrended exactly as the series was. */
+    screen_input control = cli_control_input(in, ps->name);
     screen_config cfg;
     cli_screen_config(o, &cfg);
-    screen_input control = {c->names[k], cname, c->time_name, c->time, c->values[k], c->n, NULL};
     screen_detail d;
     if (screen_attach_control(&cfg, ps, &control, &d) == SLOWSCAN_OK)
         return EXIT_OK;
-    if (d.rule == SCREEN_RULE_CONTROL_FLAT) {
-        cli_error("option --control: series '%s' of %s has no usable variation", ps->name, cname);
-        return EXIT_BAD_INPUT;
-    }
-    prepared_series named = {.name = c->names[k], .source = cname};
-    return cli_screen_refuse(o, &named, &d);
+    return cli_control_refuse(o, &control, ps, &d);
 }

@@ -123,9 +123,34 @@ int screen_indicators(screen_workspace *ws, const screen_config *cfg, const scre
     return st;
 }
 
+/* The control run must hold the series, at least as long, on the same step. */
+static int check_control(const screen_prepared *ps, const screen_input *c, screen_detail *d)
+{
+    if (!c->values) {
+        *d = (screen_detail){.rule = SCREEN_RULE_CONTROL_MISSING, .option = SCREEN_OPTION_NULL,
+                             .status = SLOWSCAN_EINVAL};
+        return SLOWSCAN_EINVAL;
+    }
+    if (c->n < ps->n) {
+        *d = (screen_detail){.rule = SCREEN_RULE_CONTROL_SHORT, .option = SCREEN_OPTION_NULL,
+                             .status = SLOWSCAN_ESHORT, .count = c->n, .need = ps->n};
+        return SLOWSCAN_ESHORT;
+    }
+    double cdt = (c->time[c->n - 1] - c->time[0]) / (double)(c->n - 1);
+    if (fabs(cdt - ps->dt) > 1e-6 * ps->dt) {
+        *d = (screen_detail){.rule = SCREEN_RULE_CONTROL_STEP, .option = SCREEN_OPTION_NULL,
+                             .status = SLOWSCAN_EINVAL, .value = cdt, .limit = ps->dt};
+        return SLOWSCAN_EINVAL;
+    }
+    return SLOWSCAN_OK;
+}
+
 int screen_attach_control(const screen_config *cfg, screen_prepared *ps,
                           const screen_input *control, screen_detail *d)
 {
+    int st = check_control(ps, control, d);
+    if (st != SLOWSCAN_OK)
+        return st;
     screen_config same = *cfg;
     same.bandwidth = (screen_length){isnan(ps->bandwidth) ? 1.0 : ps->bandwidth, 0};
     same.window = (screen_length){(double)(ps->window - 1) * ps->dt, 0};
@@ -133,7 +158,7 @@ int screen_attach_control(const screen_config *cfg, screen_prepared *ps,
     cut.n = ps->n;
     cut.control = NULL;
     screen_prepared cps;
-    int st = screen_prepare(&same, &cut, &cps, d);
+    st = screen_prepare(&same, &cut, &cps, d);
     if (st == SLOWSCAN_OK && (cps.constant || cps.finite < 8)) {
         *d = (screen_detail){SCREEN_RULE_CONTROL_FLAT, SCREEN_OPTION_NULL, SLOWSCAN_ECONST, 0, 0, 0,
                              0, 0};

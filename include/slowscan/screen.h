@@ -125,9 +125,9 @@ struct screen_input {
     const double *time;     /* n, regular grid */
     const double *values;   /* n */
     size_t n;
-    const screen_input *control; /* NULL, or the same series of a control run (at least n
-                                    samples, same step): surrogates are made from its first n
-                                    samples' residual, detrended as the series was */
+    const screen_input *control; /* NULL, or the same series of a control run (values NULL
+                                    when the run has none of that name): surrogates are made
+                                    from its first n samples' residual (screen_attach_control) */
 };
 
 /* A series prepared for the indicators: deseasoned and detrended. */
@@ -184,6 +184,9 @@ typedef enum {
     SCREEN_RULE_BLOCK_LENGTH,       /* block length (count) above half the samples (need) */
     SCREEN_RULE_AR1_NONSTATIONARY,  /* --null ar1 fit not below 1 */
     SCREEN_RULE_NULL_FAILED,        /* status */
+    SCREEN_RULE_CONTROL_MISSING,    /* the control run has no such series (values NULL) */
+    SCREEN_RULE_CONTROL_SHORT,      /* the control has count samples, fewer than need */
+    SCREEN_RULE_CONTROL_STEP,       /* the control's step (value) is not the series' (limit) */
     SCREEN_RULE_CONTROL_FLAT,       /* the control run has no usable variation */
     SCREEN_RULE_NO_MEMORY
 } screen_rule;
@@ -223,8 +226,9 @@ int screen_prepare(const screen_config *cfg, const screen_input *in, screen_prep
                    screen_detail *detail);
 void screen_prepared_free(screen_prepared *ps);
 /* Makes ps->null_source the residual of the control run's first ps->n samples, deseasoned
- * and detrended with ps's bandwidth and window in time units. SCREEN_RULE_CONTROL_FLAT when
- * it has fewer than 8 finite samples or does not vary; the control's own refusals else. */
+ * and detrended with ps's bandwidth and window in time units. Refused (SCREEN_RULE_CONTROL_*)
+ * when the control has no such series (values NULL), fewer samples, another time step
+ * (relative 1e-6), or fewer than 8 finite samples or no variation; else its own refusals. */
 int screen_attach_control(const screen_config *cfg, screen_prepared *ps,
                           const screen_input *control, screen_detail *detail);
 /* W of cfg->window for a series of n samples spanning `span`, or a refusal in *detail. */
