@@ -4,6 +4,7 @@
  * x test. This file only turns the results into rows, messages and outputs. */
 #include "cli.h"
 #include "screen.h"
+#include "slowscan/screen_batch.h"
 #include "slowscan/significance.h"
 #include "slowscan/status.h"
 
@@ -46,9 +47,10 @@ static screen_row *add_row(screen_run *run)
     return row;
 }
 
-/* One row per test, with the warning of each insufficient one. */
-static int record_series(const prepared_series *ps, screen_run *run,
-                         const screen_result *res)
+/* One row per test, with the warning of each insufficient one; nulls[j] (or NULL) is test
+ * j's null distribution, kept binned for --figures. */
+static int record_series(const prepared_series *ps, screen_run *run, const screen_result *res,
+                         const double *const *nulls)
 {
     for (size_t j = 0; j < res->ntests; j++) {
         screen_row *row = add_row(run);
@@ -64,38 +66,98 @@ static int record_series(const prepared_series *ps, screen_run *run,
             cli_warning("%s: column '%s', indicator %s: %s; flagged insufficient", ps->source,
                         ps->name, screen_test_name(row->result.kind),
                         cli_screen_reason(row->result.reason));
-        const double *null = screen_workspace_null(run->ws, j);
-        if (run->figures && row->result.null_used > 0 && null &&
-            cli_screen_keep_null(row, null, run->cfg.surrogates) != EXIT_OK)
+        if (run->figures && row->result.null_used > 0 && nulls && nulls[j] &&
+            cli_screen_keep_null(row, nulls[j], run->cfg.surrogates) != EXIT_OK)
             return EXIT_INTERNAL;
     }
     return EXIT_OK;
 }
 
-/* The library's paths, statistics and null for one prepared series; the rolling CSV. */
-static int screen_one(const cli_options *opts, const prepared_series *ps, void *context)
+/* The series of the inputs in order, as the batch driver takes them. */
+typedef struct {
+    const cli_inputs *in;
+    size_t table, series;
+    screen_input *controls; /* one per series with --null control (borrowed arrays) */
+} input_source;
+
+static int next_series(void *state, size_t index, screen_input *out, screen_detail *detail)
+{
+    (void)detail;
+    input_source *src = state;
+    while (src->table < src->in->ntables && src->series == src->in->tables[src->table].nseries) {
+        src->table++;
+        src->series = 0;
+    }
+    if (src->table == src->in->ntables)
+        return SCREEN_BATCH_END;
+    const series_table *t = &src->in->tables[src->table];
+    size_t k = src->series++;
+    *out = (screen_input){t->names[k], cli_source_name(t->source), t->time_name, t->time,
+                          t->values[k], t->n, NULL};
+    if (src->controls) {
+        src->controls[index] = cli_control_input(src->in, t->names[k]);
+        out->control = &src->controls[index];
+    }
+    return SLOWSCAN_OK;
+}
+
+/* Each series in input order: its warnings, rolling paths, rows, leakage and progress. */
+typedef struct {
+    const cli_options *opts;
+    screen_run *run;
+    cli_leakage_tally leakage;
+    size_t done, total;
+    int rc; /* the exit code of a failed sink */
+} ordered_sink;
+
+static int put_series(void *state, const screen_batch_item *item)
+{
+    ordered_sink *sink = state;
+    const prepared_series *ps = item->prepared;
+    const screen_result *res = item->result;
+    for (size_t w = 0; w < res->nwarnings; w++)
+        cli_screen_warn(sink->opts, ps, &res->warnings[w]);
+    if (sink->run->rolling)
+        cli_write_rolling(sink->run->rolling, sink->opts, ps, (double *const *)item->paths);
+    sink->rc = record_series(ps, sink->run, res, item->nulls);
+    if (sink->rc != EXIT_OK)
+        return SLOWSCAN_ENOMEM;
+    cli_tally_leakage(&sink->leakage, ps->source, ps->name, &res->leakage, res->leakage_tested);
+    cli_progress(sink->opts, sink->opts->command, ++sink->done, sink->total);
+    return SLOWSCAN_OK;
+}
+
+/* The failure that ended a run, in the words of the per-series commands. */
+static int refuse(const cli_options *opts, const screen_batch_failure *f, const ordered_sink *sink)
+{
+    if (sink->rc != EXIT_OK)
+        return sink->rc; /* the sink's own failure, already reported */
+    for (size_t w = 0; w < f->result.nwarnings; w++)
+        cli_screen_warn(opts, &f->prepared, &f->result.warnings[w]);
+    if (f->detail.control)
+        return cli_control_refuse(opts, f->input.control, &f->prepared, &f->detail);
+    return cli_screen_refuse(opts, &f->prepared, &f->detail);
+}
+
+/* Every series through the library's batch driver: threads over whole series, or over one
+ * series' surrogates when series are fewer than threads; results in input order. */
+static int run_series(const cli_options *opts, const cli_inputs *in, void *context)
 {
     screen_run *run = context;
-    screen_result res = {0};
-    screen_detail d = {0};
-    double *paths[INDICATOR_COUNT] = {NULL};
-    int missing = !run->ws && !(run->ws = screen_workspace_alloc(run->cfg.threads));
-    for (size_t j = 0; j < opts->nindicators; j++)
-        missing |= !(paths[j] = malloc(ps->n * sizeof(double)));
-    int warned = 0, st = SLOWSCAN_ENOMEM;
-    if (!missing)
-        st = screen_indicators(run->ws, &run->cfg, ps, paths, &res.warnings[0], &warned, &d);
-    res.nwarnings = (size_t)warned;
-    if (warned)
-        cli_screen_warn(opts, ps, &res.warnings[0]);
-    if (st == SLOWSCAN_OK && run->rolling)
-        cli_write_rolling(run->rolling, opts, ps, paths);
-    if (st == SLOWSCAN_OK)
-        st = screen_test_series(run->ws, &run->cfg, ps, paths, &res, &d);
-    for (size_t w = (size_t)warned; w < res.nwarnings; w++)
-        cli_screen_warn(opts, ps, &res.warnings[w]);
-    int rc = st == SLOWSCAN_OK ? record_series(ps, run, &res) : cli_screen_refuse(opts, ps, &d);
-    cli_indicator_values_free(opts, paths);
+    ordered_sink sink = {.opts = opts, .run = run, .total = cli_inputs_series_count(in)};
+    input_source src = {in, 0, 0, NULL};
+    if (in->has_control && !(src.controls = calloc(sink.total + 1, sizeof *src.controls))) {
+        cli_error("out of memory");
+        return EXIT_INTERNAL;
+    }
+    screen_source source = {next_series, NULL, sink.total, &src};
+    screen_sink ordered = {put_series, &sink, run->rolling || run->figures};
+    screen_batch_failure failure;
+    int st = screen_batch_run(&run->cfg, &source, &ordered, &failure);
+    int rc = st == SLOWSCAN_OK ? EXIT_OK : refuse(opts, &failure, &sink);
+    if (rc == EXIT_OK)
+        cli_report_leakage(opts, &sink.leakage);
+    free(src.controls);
     return rc;
 }
 
@@ -189,7 +251,7 @@ int cmd_screen(const cli_options *opts)
 {
     screen_run run = {0};
     cli_screen_config(opts, &run.cfg);
-    series_command cmd = {open_outputs, screen_one, finish, &run, NULL, cli_screen_figures, NULL};
+    series_command cmd = {open_outputs, NULL, finish, &run, NULL, cli_screen_figures, run_series};
     if (opts->surrogates > 0 && opts->surrogates < 19)
         cli_warning("option --surrogates %ld: with fewer than 19 surrogates no p-value can reach "
                     "0.05 (the smallest is 1/(M+1))", opts->surrogates);
@@ -200,6 +262,5 @@ int cmd_screen(const cli_options *opts)
             gsl_histogram_free(run.rows[r].null_hist);
     }
     free(run.rows);
-    screen_workspace_free(run.ws);
     return rc;
 }

@@ -24,7 +24,6 @@ typedef struct {
     screen_row *rows;
     size_t nrows, cap;
     screen_config cfg;
-    screen_workspace *ws;
     FILE *json;
     report_batch *figures; /* --figures DIR */
     size_t figure_series;  /* series drawn so far (rows of series s start at s x tests) */

@@ -106,7 +106,8 @@ static void deliver(batch *b)
     if (st != SLOWSCAN_OK && !b->stop) {
         b->stop = 1;
         b->status = st;
-        *b->failure = (screen_batch_failure){index, s->input, s->prepared, s->detail};
+        *b->failure = (screen_batch_failure){index, s->input, s->prepared, s->result,
+                                             s->detail};
         screen_prepared *fp = &b->failure->prepared; /* the slot's arrays go with the run */
         fp->value = fp->trend = fp->residual = fp->owned = NULL;
         fp->null_source = NULL;
@@ -124,6 +125,7 @@ static int take(batch *b, size_t *index)
     memset(&s->input, 0, sizeof s->input);
     memset(&s->detail, 0, sizeof s->detail);
     memset(&s->prepared, 0, sizeof s->prepared);
+    memset(&s->result, 0, sizeof s->result);
     int st = b->source->next(b->source->state, b->next, &s->input, &s->detail);
     if (st == SCREEN_BATCH_END) {
         b->source_done = 1;

@@ -40,7 +40,7 @@ static int check_per_window(const screen_config *cfg, const screen_prepared *ps,
         size_t need = indicator_min_window(kind);
         if (indicator_per_window(kind) && ps->window < need) {
             *d = (screen_detail){SCREEN_RULE_WINDOW_INDICATOR, SCREEN_OPTION_WINDOW,
-                                 SLOWSCAN_EINVAL, (int)kind, ps->window, need, 0, 0};
+                                 SLOWSCAN_EINVAL, (int)kind, ps->window, need, 0, 0, 0};
             return SLOWSCAN_EINVAL;
         }
         if (kind != INDICATOR_SPECTRAL_EXPONENT || (cfg->band_lo == 0 && cfg->band_hi == 0))
@@ -48,13 +48,13 @@ static int check_per_window(const screen_config *cfg, const screen_prepared *ps,
         double nyquist = 0.5 / ps->dt;
         if (cfg->band_hi > nyquist * (1 + 1e-9)) {
             *d = (screen_detail){SCREEN_RULE_BAND_NYQUIST, SCREEN_OPTION_BAND, SLOWSCAN_EINVAL,
-                                 (int)kind, 0, 0, ps->dt, nyquist};
+                                 (int)kind, 0, 0, ps->dt, nyquist, 0};
             return SLOWSCAN_EINVAL;
         }
         size_t inside = rolling_band_count(ps->window, ps->dt, cfg->band_lo, cfg->band_hi);
         if (inside < SPECTRAL_MIN_FREQUENCIES) {
             *d = (screen_detail){SCREEN_RULE_BAND_TOO_FEW, SCREEN_OPTION_BAND, SLOWSCAN_EINVAL,
-                                 (int)kind, inside, SPECTRAL_MIN_FREQUENCIES, 0, 0};
+                                 (int)kind, inside, SPECTRAL_MIN_FREQUENCIES, 0, 0, 0};
             return SLOWSCAN_EINVAL;
         }
     }
@@ -85,7 +85,7 @@ int screen_rolling_ready(screen_workspace *ws, const screen_config *cfg,
         rolling_plan_free(ws->rolling_plan);
         ws->rolling_plan = NULL;
         if ((st = rolling_plan_alloc(spec, &ws->rolling_plan)) != SLOWSCAN_OK) {
-            *d = (screen_detail){SCREEN_RULE_PLAN_FAILED, SCREEN_OPTION_NONE, st, 0, 0, 0, 0, 0};
+            *d = (screen_detail){SCREEN_RULE_PLAN_FAILED, SCREEN_OPTION_NONE, st, 0, 0, 0, 0, 0, 0};
             return st;
         }
     }
@@ -101,7 +101,7 @@ int screen_indicators(screen_workspace *ws, const screen_config *cfg, const scre
     *warned = 0;
     if (ps->window > ps->n) {
         *d = (screen_detail){SCREEN_RULE_WINDOW_LONGER, SCREEN_OPTION_WINDOW, SLOWSCAN_EINVAL, 0,
-                             ps->window, ps->n, 0, 0};
+                             ps->window, ps->n, 0, 0, 0};
         return SLOWSCAN_EINVAL;
     }
     rolling_spec spec;
@@ -119,7 +119,7 @@ int screen_indicators(screen_workspace *ws, const screen_config *cfg, const scre
     st = rolling_compute(&spec, ps->residual, ps->value, ps->n, cfg->indicators, cfg->nindicators,
                          paths);
     if (st != SLOWSCAN_OK)
-        *d = (screen_detail){SCREEN_RULE_ROLLING_FAILED, SCREEN_OPTION_NONE, st, 0, 0, 0, 0, 0};
+        *d = (screen_detail){SCREEN_RULE_ROLLING_FAILED, SCREEN_OPTION_NONE, st, 0, 0, 0, 0, 0, 0};
     return st;
 }
 
@@ -149,8 +149,10 @@ int screen_attach_control(const screen_config *cfg, screen_prepared *ps,
                           const screen_input *control, screen_detail *d)
 {
     int st = check_control(ps, control, d);
-    if (st != SLOWSCAN_OK)
+    if (st != SLOWSCAN_OK) {
+        d->control = 1;
         return st;
+    }
     screen_config same = *cfg;
     same.bandwidth = (screen_length){isnan(ps->bandwidth) ? 1.0 : ps->bandwidth, 0};
     same.window = (screen_length){(double)(ps->window - 1) * ps->dt, 0};
@@ -161,7 +163,7 @@ int screen_attach_control(const screen_config *cfg, screen_prepared *ps,
     st = screen_prepare(&same, &cut, &cps, d);
     if (st == SLOWSCAN_OK && (cps.constant || cps.finite < 8)) {
         *d = (screen_detail){SCREEN_RULE_CONTROL_FLAT, SCREEN_OPTION_NULL, SLOWSCAN_ECONST, 0, 0, 0,
-                             0, 0};
+                             0, 0, 0};
         st = SLOWSCAN_ECONST;
     }
     if (st == SLOWSCAN_OK) {
@@ -171,6 +173,8 @@ int screen_attach_control(const screen_config *cfg, screen_prepared *ps,
         cps.value = NULL;
     }
     screen_prepared_free(&cps);
+    if (st != SLOWSCAN_OK)
+        d->control = 1;
     return st;
 }
 
@@ -202,7 +206,7 @@ int screen_series(screen_workspace *ws, const screen_config *cfg, const screen_i
         ws->paths_cap = (ws->paths = malloc(need * sizeof *ws->paths)) ? need : 0;
         if (!ws->paths) {
             *d = (screen_detail){SCREEN_RULE_NO_MEMORY, SCREEN_OPTION_NONE, SLOWSCAN_ENOMEM, 0, 0,
-                                 0, 0, 0};
+                                 0, 0, 0, 0};
             return SLOWSCAN_ENOMEM;
         }
     }

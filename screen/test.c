@@ -162,7 +162,7 @@ static int test_null(screen_workspace *ws, const screen_config *cfg, const scree
         /* With blocks longer than half the record there are too few distinct starts for a
          * null distribution (at L = n every replicate is the series itself). */
         *d = (screen_detail){SCREEN_RULE_BLOCK_LENGTH, SCREEN_OPTION_NULL, SLOWSCAN_EINVAL, 0,
-                             block, ps->n, 0, 0};
+                             block, ps->n, 0, 0, 0};
         return SLOWSCAN_EINVAL;
     }
     int st = draw_null(ws, cfg, ps, out, tests);
@@ -177,7 +177,7 @@ static int test_null(screen_workspace *ws, const screen_config *cfg, const scree
     if (st != SLOWSCAN_OK) {
         int ar1 = st == SLOWSCAN_ENUMERIC && cfg->null_kind == SURROGATE_AR1;
         *d = (screen_detail){ar1 ? SCREEN_RULE_AR1_NONSTATIONARY : SCREEN_RULE_NULL_FAILED,
-                             SCREEN_OPTION_NULL, st, 0, 0, 0, 0, 0};
+                             SCREEN_OPTION_NULL, st, 0, 0, 0, 0, 0, 0};
         return st;
     }
     ws->null_tests = tests;

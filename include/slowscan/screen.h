@@ -211,6 +211,7 @@ typedef struct {
     int indicator;         /* WINDOW_INDICATOR: the indicator_kind */
     size_t count, need;    /* samples, frequencies, degrees as the rule says */
     double value, limit;
+    int control;           /* 1: the rule refused the control run's series (--null control) */
 } screen_detail;
 
 /* Everything sized by series length and thread count: the rolling plan, Kendall workspace,

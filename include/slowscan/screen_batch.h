@@ -63,6 +63,7 @@ typedef struct {
     size_t index;
     screen_input input;        /* the failing series as the source gave it (borrowed) */
     screen_prepared prepared;  /* what was known of it (window, harmonics); arrays NULL */
+    screen_result result;      /* what was known of its results: the warnings so far */
     screen_detail detail;
 } screen_batch_failure;
 
