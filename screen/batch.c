@@ -6,6 +6,7 @@
 #include "slowscan/screen_batch.h"
 #include "slowscan/status.h"
 
+#include <fftw3.h>
 #include <pthread.h>
 #include <stdlib.h>
 #include <string.h>
@@ -212,6 +213,12 @@ int screen_batch_run(const screen_config *cfg, screen_source *source, screen_sin
             st = SLOWSCAN_ENOMEM;
     }
     if (st == SLOWSCAN_OK) {
+        /* Workers detrend and plan (kernel sums, window and surrogate plans) at the same
+         * time, and FFTW's planner is not thread-safe: this makes FFTW serialise every
+         * planner call and plan destruction (FFTW >= 3.3.5, libfftw3_threads). Executing
+         * plans stays parallel. */
+        if (workers > 1)
+            fftw_make_planner_thread_safe();
         pthread_mutex_init(&b.lock, NULL);
         pthread_cond_init(&b.changed, NULL);
         /* If a thread cannot start, the others simply take its series. */
