@@ -7,6 +7,7 @@
 #include "slowscan/io.h"
 #include "slowscan/null_trend.h"
 #include "slowscan/report.h"
+#include "slowscan/screen.h"
 #include "slowscan/surrogates.h"
 
 #include <stddef.h>
@@ -99,26 +100,21 @@ void cli_options_free(cli_options *opts);
 /* Help texts. */
 int cli_help(const char *topic, FILE *out);
 
-/* One series prepared for analysis: cut, resampled, logged, deseasoned and detrended. */
-typedef struct {
-    const char *name;
-    const char *source;
-    const char *time_name;            /* the time column's name (axis labels) */
-    size_t n;
-    const double *time;
-    double dt, span;
-    double *value, *trend, *residual; /* n each; value = what was detrended */
-    size_t finite;                    /* finite samples of value */
-    detrend_leakage leakage;          /* the residual's edge means (detrend_leakage_test) */
-    int leakage_tested;               /* 0 when the residual could not be tested */
-    size_t window;                    /* W, samples */
-    int harmonics;                    /* harmonics of the cycle removed (0: mean cycle) */
-    double bandwidth;                 /* time units (NaN when the method has none) */
-    int constant; /* 1: constant input, 2: residual at round-off level; indicators NA */
-    const double *null_source;        /* what surrogates are made from: the residual, or with
-                                         --null control the control run's residual */
-    double *owned;                    /* storage behind null_source when it is not residual */
-} prepared_series;
+/* One series prepared for analysis: cut, resampled, logged, deseasoned and detrended
+ * (screen_prepare; its source is the file as messages name it). */
+typedef screen_prepared prepared_series;
+
+/* The defaults of `command` that decide numbers, from screen_config_default() (clears o). */
+void cli_science_defaults(const char *command, cli_options *o);
+/* The options as the screening library's configuration (screen.h). */
+void cli_screen_config(const cli_options *opts, screen_config *cfg);
+/* Prints the message of a library refusal (the same words whichever command meets it) and
+ * returns the exit code. */
+int cli_screen_refuse(const cli_options *opts, const prepared_series *ps, const screen_detail *d);
+/* Prints one warning of a screened series. */
+void cli_screen_warn(const cli_options *opts, const prepared_series *ps, const screen_warning *w);
+/* Why a test is insufficient, as the warnings say it. */
+const char *cli_screen_reason(screen_reason reason);
 
 /* The inputs of a run: every table read and made ready (span, grid, log). */
 typedef struct {
@@ -139,15 +135,6 @@ int cli_prepare_series(const cli_options *opts, const series_table *table, size_
 void cli_prepared_free(prepared_series *ps);
 /* W of opts->window for the table's grid (the rule of DESIGN §3), or an exit code. */
 int cli_series_window(const cli_options *opts, const series_table *table, size_t *window);
-
-/* The rolling spec of a prepared series (window, coverage, step, band), without a plan. */
-rolling_spec cli_rolling_spec(const cli_options *opts, const prepared_series *ps);
-/* With per-window indicators (redness, spectral_exponent, dfa) among opts->indicators: checks
- * the window and --band against them (one message naming the option) and makes their plan
- * into *plan and spec->plan (free with rolling_plan_free); otherwise *plan = NULL. Plans are
- * made by the calling thread, before any surrogate thread starts. */
-int cli_rolling_plan(const cli_options *opts, const prepared_series *ps, rolling_spec *spec,
-                     rolling_plan **plan);
 
 /* Rolling indicators of a prepared series: values[j] (j < opts->nindicators) gets ps->n
  * entries, allocated here and released by cli_indicator_values_free even on failure. A
@@ -197,6 +184,26 @@ int cli_for_each_series(const cli_options *opts, const cli_inputs *in, series_vi
 typedef int (*table_visitor)(const cli_options *opts, const cli_inputs *in,
                              const series_table *table, size_t k, void *context);
 
+/* How messages name an input ("standard input" for "-"). */
+const char *cli_source_name(const char *source);
+/* The control run's series `name` as the library takes it (values NULL when there is none). */
+screen_input cli_control_input(const cli_inputs *in, const char *name);
+/* The message of a refusal met with the control run; returns the exit code. */
+int cli_control_refuse(const cli_options *opts, const screen_input *control,
+                       const prepared_series *ps, const screen_detail *d);
+
+/* Series whose residual keeps part of the trend at an edge, counted over a run in input
+ * order and reported once at its end (one line each for a few, a summary for many). */
+enum { CLI_LEAKAGE_NAMED = 3 };
+typedef struct {
+    size_t count, tested;
+    const char *source[CLI_LEAKAGE_NAMED], *name[CLI_LEAKAGE_NAMED];
+    detrend_leakage first[CLI_LEAKAGE_NAMED];
+} cli_leakage_tally;
+void cli_tally_leakage(cli_leakage_tally *tally, const char *source, const char *name,
+                       const detrend_leakage *leakage, int tested);
+void cli_report_leakage(const cli_options *opts, const cli_leakage_tally *tally);
+
 /* With --null control: makes ps->null_source the residual of the control run's series of the
  * same name, cut to ps->n samples and detrended with ps's bandwidth in time units. */
 int cli_attach_control(const cli_options *opts, const cli_inputs *in, prepared_series *ps);
@@ -212,6 +219,9 @@ typedef struct {
     /* After finish, before the commit: figures that need the whole run (screen's q-values);
      * the inputs are still loaded, so series can be prepared again instead of kept. */
     int (*figures)(const cli_options *opts, const cli_inputs *in, void *context);
+    /* Used instead of visit and visit_table when set: the command runs its series itself
+     * (screen, through the library's batch driver). */
+    int (*run)(const cli_options *opts, const cli_inputs *in, void *context);
 } series_command;
 /* Load, open, visit, finish, then commit every output — or remove them all on failure. */
 int cli_run_series_command(const cli_options *opts, const series_command *command);
@@ -221,20 +231,8 @@ extern const char cli_rolling_header[];
 void cli_write_rolling(FILE *fp, const cli_options *opts, const prepared_series *ps,
                        double *const *values);
 
-/* One series' null distribution, drawn in parallel (cli/parallel_null.c). */
+/* The most threads --threads accepts. */
 enum { CLI_MAX_THREADS = 256 };
-typedef struct {
-    const surrogate_plan *plan;
-    surrogate_kind kind;
-    const surrogate_options *options;
-    const double *residual;
-    const null_trend_job *job;
-    size_t m;     /* replicates */
-    double *null; /* nkinds x m, replicate j of indicator k at k*m + j */
-    size_t unconverged; /* out: iaaft draws that hit the iteration limit */
-} cli_null_task;
-/* ws[0..threads) are workspaces of the series length, one per thread. */
-int cli_null_parallel(cli_null_task *task, null_trend_workspace *const *ws, size_t threads);
 
 /* --detrends LIST (cmd_robustness.c): comma-separated methods as --detrend takes them. */
 int cli_set_detrends(cli_options *opts, const char *name, const char *value);

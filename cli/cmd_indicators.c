@@ -30,6 +30,6 @@ static int write_series(const cli_options *opts, const prepared_series *ps, void
 int cmd_indicators(const cli_options *opts)
 {
     indicators_run run = {0};
-    series_command cmd = {open_outputs, write_series, NULL, &run, NULL, NULL};
+    series_command cmd = {open_outputs, write_series, NULL, &run, NULL, NULL, NULL};
     return cli_run_series_command(opts, &cmd);
 }

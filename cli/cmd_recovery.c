@@ -72,9 +72,9 @@ static double surrogate_p(const cli_options *opts, const prepared_series *ps, re
     cli_options drift_only = *opts;
     drift_only.nindicators = 0;
     drift_only.drift_test = 1;
-    trend_result result;
+    screen_result result;
     *rc = trend_test(&run->tester, &drift_only, ps, NULL, &result);
-    return result.p_value;
+    return result.tests[0].p_value;
 }
 
 /* The crossing of lambda = 0 within twice the record, with its residual-bootstrap interval
@@ -241,7 +241,7 @@ static int finish(const cli_options *opts, void *context)
 int cmd_recovery(const cli_options *opts)
 {
     recovery_run run = {0};
-    series_command cmd = {open_outputs, recovery_series, finish, &run, NULL, NULL};
+    series_command cmd = {open_outputs, recovery_series, finish, &run, NULL, NULL, NULL};
     int rc = cli_run_series_command(opts, &cmd);
     trend_tester_free(&run.tester);
     if (run.rng)

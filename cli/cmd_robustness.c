@@ -131,7 +131,7 @@ static int open_outputs(const cli_options *opts, cli_outputs *outs, void *contex
 
 /* One CSV row and its count; `window` NaN for recovery_trend. */
 static void put_row(method_pass *pass, const prepared_series *ps, size_t test, double window,
-                    const trend_result *r)
+                    const screen_test *r)
 {
     FILE *out = pass->run->out;
     cli_put_field(out, ps->name);
@@ -158,10 +158,11 @@ static int rolling_cell(method_pass *pass, const cli_options *cell, const prepar
                         size_t w, size_t b)
 {
     double *values[INDICATOR_COUNT] = {NULL};
-    trend_result results[TREND_MAX_TESTS];
+    screen_result res;
+    const screen_test *results = res.tests;
     int rc = cli_indicator_values(cell, ps, values);
     if (rc == EXIT_OK)
-        rc = trend_test(&pass->run->tester, cell, ps, values, results);
+        rc = trend_test(&pass->run->tester, cell, ps, values, &res);
     cell_grid *g = pass->grid;
     for (size_t j = 0; rc == EXIT_OK && j < cell->nindicators; j++) {
         put_row(pass, ps, j, (double)(ps->window - 1) * ps->dt, &results[j]);
@@ -181,15 +182,16 @@ static int drift_cell(method_pass *pass, const prepared_series *ps, size_t b)
     cli_options drift_only = *pass->opts;
     drift_only.nindicators = 0;
     drift_only.drift_test = 1;
-    trend_result r;
-    int rc = trend_test(&pass->run->drift_tester, &drift_only, ps, NULL, &r);
+    screen_result res;
+    const screen_test *r = &res.tests[0];
+    int rc = trend_test(&pass->run->drift_tester, &drift_only, ps, NULL, &res);
     if (rc != EXIT_OK)
         return rc;
-    put_row(pass, ps, pass->opts->nindicators, NAN, &r);
+    put_row(pass, ps, pass->opts->nindicators, NAN, r);
     cell_grid *g = pass->grid;
     if (g->drift_t) {
-        g->drift_t[pass->method * g->nb + b] = r.statistic;
-        g->drift_p[pass->method * g->nb + b] = r.p_value;
+        g->drift_t[pass->method * g->nb + b] = r->statistic;
+        g->drift_p[pass->method * g->nb + b] = r->p_value;
     }
     return EXIT_OK;
 }
@@ -253,7 +255,7 @@ static void put_fraction(FILE *fp, const char *series, const char *test, const c
 
 /* Per test: one row per method, then (with several methods) the row "all" over every cell. */
 static void write_fractions(robustness_run *run, const cli_options *opts, const method_list *m,
-                            const char *name, cell_counts (*counts)[TREND_MAX_TESTS])
+                            const char *name, cell_counts (*counts)[SCREEN_MAX_TESTS])
 {
     for (size_t j = 0; j < trend_test_count(opts); j++) {
         const char *test = j < opts->nindicators ? indicator_name(opts->indicators[j])
@@ -352,7 +354,7 @@ static int robustness_series(const cli_options *opts, const cli_inputs *in,
 {
     robustness_run *run = c;
     method_list m = grid_methods(opts);
-    cell_counts counts[CLI_MAX_DETRENDS][TREND_MAX_TESTS];
+    cell_counts counts[CLI_MAX_DETRENDS][SCREEN_MAX_TESTS];
     memset(counts, 0, sizeof counts);
     cell_grid grid = {NULL, NULL, NULL, NULL, 0, 0, 0};
     int rc = run->figures ? grid_alloc(opts, &m, &grid) : EXIT_OK;
@@ -374,7 +376,7 @@ static int robustness_series(const cli_options *opts, const cli_inputs *in,
 int cmd_robustness(const cli_options *opts)
 {
     robustness_run run = {0};
-    series_command cmd = {open_outputs, NULL, NULL, &run, robustness_series, NULL};
+    series_command cmd = {open_outputs, NULL, NULL, &run, robustness_series, NULL, NULL};
     int rc = cli_run_series_command(opts, &cmd);
     trend_tester_free(&run.tester);
     trend_tester_free(&run.drift_tester);

@@ -1,7 +1,10 @@
-/* slowscan screen: the main job. For every series: detrend, rolling indicators and the shared
- * trend test (trend_test.c); then q-values, flags and the summary, one row per series x test. */
+/* slowscan screen: the main job, through the screening library (screen.h). For every series:
+ * its paths and tests (screen_indicators, screen_test_series) on the series prepared by the
+ * shared driver; then q-values and flags (screen_decide) and the summary, one row per series
+ * x test. This file only turns the results into rows, messages and outputs. */
 #include "cli.h"
 #include "screen.h"
+#include "slowscan/screen_batch.h"
 #include "slowscan/significance.h"
 #include "slowscan/status.h"
 
@@ -26,6 +29,12 @@ static int open_outputs(const cli_options *opts, cli_outputs *outs, void *contex
     return rc;
 }
 
+/* The window of test j in time units; NaN for a test of the whole residual. */
+static double rolling_window(const screen_result *res, size_t j)
+{
+    return screen_test_rolling(res->tests[j].kind) ? res->window : NAN;
+}
+
 static screen_row *add_row(screen_run *run)
 {
     void *rows = run->rows;
@@ -38,55 +47,117 @@ static screen_row *add_row(screen_run *run)
     return row;
 }
 
-static int record_series(const cli_options *opts, const prepared_series *ps, screen_run *run,
-                         double *const *values)
+/* One row per test, with the warning of each insufficient one; nulls[j] (or NULL) is test
+ * j's null distribution, kept binned for --figures. */
+static int record_series(const prepared_series *ps, screen_run *run, const screen_result *res,
+                         const double *const *nulls)
 {
-    trend_result results[TREND_MAX_TESTS];
-    int rc = trend_test(&run->tester, opts, ps, values, results);
-    for (size_t j = 0; rc == EXIT_OK && j < trend_test_count(opts); j++) {
+    for (size_t j = 0; j < res->ntests; j++) {
         screen_row *row = add_row(run);
         if (!row || !(row->series = strdup(ps->name))) {
             cli_error("out of memory");
             return EXIT_INTERNAL;
         }
-        int drift = j >= opts->nindicators; /* the model-based test: no window */
-        row->label = drift ? "recovery_trend" : indicator_name(opts->indicators[j]);
-        row->n = ps->finite;
-        row->window = drift ? NAN : (double)(ps->window - 1) * ps->dt;
-        row->bandwidth = ps->bandwidth;
-        row->result = results[j];
-        row->q_value = NAN;
-        row->harmonics = isnan(opts->deseason) ? -1 : ps->harmonics;
-        row->leakage = ps->leakage;
-        row->leakage_tested = ps->leakage_tested;
-        if (isnan(row->result.statistic)) {
-            row->flag = "insufficient";
-            if (!ps->constant) /* a constant series was warned about when its values were made */
-                cli_warning("%s: column '%s', indicator %s: %s; flagged insufficient", ps->source,
-                            ps->name, row->label, row->result.reason);
-        } else if (opts->surrogates > 0 && isnan(row->result.p_value)) {
-            row->flag = "insufficient"; /* no null could be made; warned in trend_test */
-        } else
-            row->flag = "untested"; /* until decide() (for good with --surrogates 0) */
-        /* The tester's null holds this series' draws only when some were made (null_used). */
-        if (run->figures && row->result.null_used > 0 &&
-            screen_keep_null(row, run->tester.null + j * (size_t)opts->surrogates,
-                             (size_t)opts->surrogates) != EXIT_OK)
+        *row = (screen_row){row->series, res->n, rolling_window(res, j), res->bandwidth, NAN,
+                            res->tests[j], SCREEN_FLAG_UNTESTED, res->harmonics, res->leakage,
+                            res->leakage_tested, NULL};
+        /* a constant series was warned about when its paths were made */
+        if (isnan(row->result.statistic) && !ps->constant)
+            cli_warning("%s: column '%s', indicator %s: %s; flagged insufficient", ps->source,
+                        ps->name, screen_test_name(row->result.kind),
+                        cli_screen_reason(row->result.reason));
+        if (run->figures && row->result.null_used > 0 && nulls && nulls[j] &&
+            cli_screen_keep_null(row, nulls[j], run->cfg.surrogates) != EXIT_OK)
             return EXIT_INTERNAL;
     }
-    return rc;
+    return EXIT_OK;
 }
 
-static int screen_series(const cli_options *opts, const prepared_series *ps, void *context)
+/* The series of the inputs in order, as the batch driver takes them. */
+typedef struct {
+    const cli_inputs *in;
+    size_t table, series;
+    screen_input *controls; /* one per series with --null control (borrowed arrays) */
+} input_source;
+
+static int next_series(void *state, size_t index, screen_input *out, screen_detail *detail)
+{
+    (void)detail;
+    input_source *src = state;
+    while (src->table < src->in->ntables && src->series == src->in->tables[src->table].nseries) {
+        src->table++;
+        src->series = 0;
+    }
+    if (src->table == src->in->ntables)
+        return SCREEN_BATCH_END;
+    const series_table *t = &src->in->tables[src->table];
+    size_t k = src->series++;
+    *out = (screen_input){t->names[k], cli_source_name(t->source), t->time_name, t->time,
+                          t->values[k], t->n, NULL};
+    if (src->controls) {
+        src->controls[index] = cli_control_input(src->in, t->names[k]);
+        out->control = &src->controls[index];
+    }
+    return SLOWSCAN_OK;
+}
+
+/* Each series in input order: its warnings, rolling paths, rows, leakage and progress. */
+typedef struct {
+    const cli_options *opts;
+    screen_run *run;
+    cli_leakage_tally leakage;
+    size_t done, total;
+    int rc; /* the exit code of a failed sink */
+} ordered_sink;
+
+static int put_series(void *state, const screen_batch_item *item)
+{
+    ordered_sink *sink = state;
+    const prepared_series *ps = item->prepared;
+    const screen_result *res = item->result;
+    for (size_t w = 0; w < res->nwarnings; w++)
+        cli_screen_warn(sink->opts, ps, &res->warnings[w]);
+    if (sink->run->rolling)
+        cli_write_rolling(sink->run->rolling, sink->opts, ps, (double *const *)item->paths);
+    sink->rc = record_series(ps, sink->run, res, item->nulls);
+    if (sink->rc != EXIT_OK)
+        return SLOWSCAN_ENOMEM;
+    cli_tally_leakage(&sink->leakage, ps->source, ps->name, &res->leakage, res->leakage_tested);
+    cli_progress(sink->opts, sink->opts->command, ++sink->done, sink->total);
+    return SLOWSCAN_OK;
+}
+
+/* The failure that ended a run, in the words of the per-series commands. */
+static int refuse(const cli_options *opts, const screen_batch_failure *f, const ordered_sink *sink)
+{
+    if (sink->rc != EXIT_OK)
+        return sink->rc; /* the sink's own failure, already reported */
+    for (size_t w = 0; w < f->result.nwarnings; w++)
+        cli_screen_warn(opts, &f->prepared, &f->result.warnings[w]);
+    if (f->detail.control)
+        return cli_control_refuse(opts, f->input.control, &f->prepared, &f->detail);
+    return cli_screen_refuse(opts, &f->prepared, &f->detail);
+}
+
+/* Every series through the library's batch driver: threads over whole series, or over one
+ * series' surrogates when series are fewer than threads; results in input order. */
+static int run_series(const cli_options *opts, const cli_inputs *in, void *context)
 {
     screen_run *run = context;
-    double *values[INDICATOR_COUNT];
-    int rc = cli_indicator_values(opts, ps, values);
-    if (rc == EXIT_OK && run->rolling)
-        cli_write_rolling(run->rolling, opts, ps, values);
+    ordered_sink sink = {.opts = opts, .run = run, .total = cli_inputs_series_count(in)};
+    input_source src = {in, 0, 0, NULL};
+    if (in->has_control && !(src.controls = calloc(sink.total + 1, sizeof *src.controls))) {
+        cli_error("out of memory");
+        return EXIT_INTERNAL;
+    }
+    screen_source source = {next_series, NULL, sink.total, &src};
+    screen_sink ordered = {put_series, &sink, run->rolling || run->figures};
+    screen_batch_failure failure;
+    int st = screen_batch_run(&run->cfg, &source, &ordered, &failure);
+    int rc = st == SLOWSCAN_OK ? EXIT_OK : refuse(opts, &failure, &sink);
     if (rc == EXIT_OK)
-        rc = record_series(opts, ps, run, values);
-    cli_indicator_values_free(opts, values);
+        cli_report_leakage(opts, &sink.leakage);
+    free(src.controls);
     return rc;
 }
 
@@ -97,7 +168,7 @@ static void write_csv(const cli_options *opts, const screen_run *run)
     for (size_t r = 0; r < run->nrows; r++) {
         const screen_row *row = &run->rows[r];
         cli_put_field(run->out, row->series);
-        fprintf(run->out, ",%s,%zu,", row->label, row->n);
+        fprintf(run->out, ",%s,%zu,", screen_test_name(row->result.kind), row->n);
         const double cells[] = {row->window, row->bandwidth, row->result.tau, row->result.statistic,
                                 row->result.p_value, row->q_value};
         for (size_t c = 0; c < sizeof cells / sizeof cells[0]; c++) {
@@ -106,7 +177,7 @@ static void write_csv(const cli_options *opts, const screen_run *run)
         }
         fprintf(run->out, "%s,%ld,%s\n",
                 opts->surrogates > 0 ? cli_null_name(opts) : "none",
-                opts->surrogates, row->flag);
+                opts->surrogates, screen_flag_name(row->flag));
     }
 }
 
@@ -130,40 +201,35 @@ static void write_table(const screen_run *run)
     for (size_t r = 0; r < run->nrows; r++) {
         const screen_row *row = &run->rows[r];
         char tau[32], p[32], q[32];
-        fprintf(run->out, "%-*s  %-14s %9s %10s %10s  %s\n", width, row->series, row->label,
+        fprintf(run->out, "%-*s  %-14s %9s %10s %10s  %s\n", width, row->series,
+                screen_test_name(row->result.kind),
                 fixed(tau, row->result.statistic, 3, 1), fixed(p, row->result.p_value, 4, 0),
-                fixed(q, row->q_value, 4, 0), row->flag);
+                fixed(q, row->q_value, 4, 0), screen_flag_name(row->flag));
     }
 }
 
-/* q-values over every test of the run (Benjamini-Hochberg), then the flags: with one test
- * the p-value itself decides. */
+/* q-values over every test of the run (Benjamini-Hochberg), then the flags. */
 static int decide(const cli_options *opts, screen_run *run)
 {
-    double *p = malloc((run->nrows + 1) * sizeof *p), *q = malloc((run->nrows + 1) * sizeof *q);
-    size_t tests = 0;
-    for (size_t r = 0; p && r < run->nrows; r++) {
-        p[r] = run->rows[r].result.p_value;
-        tests += !isnan(p[r]);
+    const screen_test **tests = malloc((run->nrows + 1) * sizeof *tests);
+    double *q = malloc((run->nrows + 1) * sizeof *q);
+    screen_flag *flags = malloc((run->nrows + 1) * sizeof *flags);
+    int st = tests && q && flags ? SLOWSCAN_OK : SLOWSCAN_ENOMEM;
+    for (size_t r = 0; st == SLOWSCAN_OK && r < run->nrows; r++)
+        tests[r] = &run->rows[r].result;
+    if (st == SLOWSCAN_OK)
+        st = screen_decide(tests, run->nrows, opts->fdr, q, flags);
+    for (size_t r = 0; st == SLOWSCAN_OK && r < run->nrows; r++) {
+        run->rows[r].q_value = q[r];
+        run->rows[r].flag = flags[r];
     }
-    if (!p || !q || significance_bh(p, run->nrows, q, NULL) != SLOWSCAN_OK) {
-        free(p);
-        free(q);
-        cli_error("out of memory");
-        return EXIT_INTERNAL;
-    }
-    for (size_t r = 0; r < run->nrows; r++) {
-        screen_row *row = &run->rows[r];
-        if (isnan(row->result.p_value))
-            continue;
-        row->q_value = q[r];
-        double decisive = tests == 1 ? row->result.p_value : row->q_value;
-        /* "falling" only arises when a decreasing or two-sided alternative is tested. */
-        row->flag = decisive > opts->fdr ? "none" : row->result.statistic > 0 ? "rising" : "falling";
-    }
-    free(p);
+    free(tests);
     free(q);
-    return EXIT_OK;
+    free(flags);
+    if (st == SLOWSCAN_OK)
+        return EXIT_OK;
+    cli_error("out of memory");
+    return EXIT_INTERNAL;
 }
 
 static int finish(const cli_options *opts, void *context)
@@ -173,7 +239,7 @@ static int finish(const cli_options *opts, void *context)
     if (rc != EXIT_OK)
         return rc;
     if (run->json)
-        screen_write_json(run->json, opts, run);
+        cli_screen_json(run->json, opts, run);
     if (strcmp(opts->format, "table") == 0)
         write_table(run);
     else
@@ -184,7 +250,8 @@ static int finish(const cli_options *opts, void *context)
 int cmd_screen(const cli_options *opts)
 {
     screen_run run = {0};
-    series_command cmd = {open_outputs, screen_series, finish, &run, NULL, screen_figures};
+    cli_screen_config(opts, &run.cfg);
+    series_command cmd = {open_outputs, NULL, finish, &run, NULL, cli_screen_figures, run_series};
     if (opts->surrogates > 0 && opts->surrogates < 19)
         cli_warning("option --surrogates %ld: with fewer than 19 surrogates no p-value can reach "
                     "0.05 (the smallest is 1/(M+1))", opts->surrogates);
@@ -195,6 +262,5 @@ int cmd_screen(const cli_options *opts)
             gsl_histogram_free(run.rows[r].null_hist);
     }
     free(run.rows);
-    trend_tester_free(&run.tester);
     return rc;
 }

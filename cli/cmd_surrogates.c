@@ -76,7 +76,7 @@ int cmd_surrogates(const cli_options *opts)
     surrogates_run run = {NULL, gsl_rng_alloc(gsl_rng_mt19937), NULL};
     if (!run.rng)
         return EXIT_INTERNAL;
-    series_command cmd = {open_outputs, draw_series, NULL, &run, NULL, NULL};
+    series_command cmd = {open_outputs, draw_series, NULL, &run, NULL, NULL, NULL};
     int rc = cli_run_series_command(opts, &cmd);
     gsl_rng_free(run.rng);
     fftw_free(run.buffer);

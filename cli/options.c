@@ -448,36 +448,16 @@ static int command_bit(const char *command)
     return 0;
 }
 
+/* The science defaults are the library's (cli_science_defaults); the command adds its own
+ * (outputs, grids, threads). */
 static void set_defaults(const char *command, cli_options *o)
 {
-    memset(o, 0, sizeof *o);
-    o->command = command;
-    o->from = o->until = o->resample = o->deseason = NAN;
-    detrend_parse_method("gaussian-linear", &o->detrend); /* DESIGN §3: no lag at the ends */
-    o->detrend_text = "gaussian-linear";
-    o->bandwidth = (cli_length){10, 1, "10%"};
-    o->window = (cli_length){50, 1, "50%"};
-    o->indicators[0] = INDICATOR_VARIANCE;
-    o->indicators[1] = INDICATOR_LAG1;
-    o->nindicators = 2;
-    o->indicators_text = "variance,lag1";
-    if (strcmp(command, "screen") == 0) { /* the model-based test joins the default set */
-        o->drift_test = 1;
-        o->indicators_text = "variance,lag1,recovery_trend";
-    }
-    o->min_coverage = 0.8;
-    o->recovery = RECOVERY_LOG_AR1;
-    o->surrogates = strcmp(command, "surrogates") == 0 ? 10 : (strcmp(command, "robustness") == 0 || strcmp(command, "recovery") == 0) ? 0 : 1000;
-    o->null_model = SURROGATE_PHASE;
-    o->null_options = surrogate_default_options();
-    o->fdr = 0.05;
-    o->alternative = -1; /* per indicator: rising, or two-sided for skewness */
+    cli_science_defaults(command, o);
     o->format = "csv";
     o->figure_format = REPORT_PNG;
     o->progress = -1;
     parse_grid("--windows", "25%:75%:5%", o->windows, o->grid_text[0], &o->nwindows);
     parse_grid("--bandwidths", "5%:25%:5%", o->bandwidths, o->grid_text[1], &o->nbandwidths);
-    o->seed = 1;
     long cores = sysconf(_SC_NPROCESSORS_ONLN);
     o->threads = cores < 1 ? 1 : cores > CLI_MAX_THREADS ? CLI_MAX_THREADS : cores;
 }

@@ -175,34 +175,25 @@ static int for_each_table_series(const cli_options *opts, const cli_inputs *in,
     return EXIT_OK;
 }
 
-/* Series whose residual keeps part of the trend at an edge: one line each for a few, one
- * summary line with the first names for many (a field of grid cells would bury the output). */
-enum { LEAKAGE_NAMED = 3 };
-
-typedef struct {
-    size_t count, tested;
-    const char *source[LEAKAGE_NAMED], *name[LEAKAGE_NAMED];
-    detrend_leakage first[LEAKAGE_NAMED];
-} leakage_tally;
-
-static void tally_leakage(leakage_tally *tally, const prepared_series *ps)
+void cli_tally_leakage(cli_leakage_tally *tally, const char *source, const char *name,
+                       const detrend_leakage *leakage, int tested)
 {
-    tally->tested += ps->leakage_tested != 0;
-    if (!ps->leakage_tested || !ps->leakage.leaking)
+    tally->tested += tested != 0;
+    if (!tested || !leakage->leaking)
         return;
-    if (tally->count < LEAKAGE_NAMED) {
-        tally->source[tally->count] = ps->source;
-        tally->name[tally->count] = ps->name;
-        tally->first[tally->count] = ps->leakage;
+    if (tally->count < CLI_LEAKAGE_NAMED) {
+        tally->source[tally->count] = source;
+        tally->name[tally->count] = name;
+        tally->first[tally->count] = *leakage;
     }
     tally->count++;
 }
 
-static void report_leakage(const cli_options *opts, const leakage_tally *tally)
+void cli_report_leakage(const cli_options *opts, const cli_leakage_tally *tally)
 {
     static const char advice[] = "a narrower --bandwidth or another --detrend may follow the trend "
                                  "better; until then a rise near the ends may be the trend's";
-    if (tally->count > LEAKAGE_NAMED) {
+    if (tally->count > CLI_LEAKAGE_NAMED) {
         cli_warning("%zu of %zu series keep part of their trend at the record's start or end (%s "
                     "residual mean over one bandwidth away from zero at level 0.01), the first "
                     "'%s', '%s', '%s' (--json lists each); %s", tally->count, tally->tested,
@@ -222,7 +213,7 @@ static void report_leakage(const cli_options *opts, const leakage_tally *tally)
 typedef struct {
     series_visitor visit;
     void *context;
-    leakage_tally leakage;
+    cli_leakage_tally leakage;
 } prepared_visit;
 
 static int prepare_and_visit(const cli_options *opts, const cli_inputs *in,
@@ -232,7 +223,7 @@ static int prepare_and_visit(const cli_options *opts, const cli_inputs *in,
     prepared_series ps;
     int rc = cli_prepare_series(opts, t, k, &ps);
     if (rc == EXIT_OK)
-        tally_leakage(&pv->leakage, &ps);
+        cli_tally_leakage(&pv->leakage, ps.source, ps.name, &ps.leakage, ps.leakage_tested);
     if (rc == EXIT_OK && !ps.constant)
         rc = cli_attach_control(opts, in, &ps);
     if (rc == EXIT_OK)
@@ -247,7 +238,7 @@ int cli_for_each_series(const cli_options *opts, const cli_inputs *in, series_vi
     prepared_visit pv = {.visit = visit, .context = context};
     int rc = for_each_table_series(opts, in, prepare_and_visit, &pv);
     if (rc == EXIT_OK)
-        report_leakage(opts, &pv.leakage);
+        cli_report_leakage(opts, &pv.leakage);
     return rc;
 }
 
@@ -273,7 +264,9 @@ int cli_run_series_command(const cli_options *opts, const series_command *cmd)
     int rc = cli_inputs_load(opts, &in);
     if (rc == EXIT_OK && cmd->open)
         rc = cmd->open(opts, &outs, cmd->context);
-    if (rc == EXIT_OK)
+    if (rc == EXIT_OK && cmd->run)
+        rc = cmd->run(opts, &in, cmd->context);
+    else if (rc == EXIT_OK)
         rc = cmd->visit_table ? for_each_table_series(opts, &in, cmd->visit_table, cmd->context)
                               : cli_for_each_series(opts, &in, cmd->visit, cmd->context);
     if (rc == EXIT_OK && cmd->finish)
@@ -294,7 +287,9 @@ const char cli_rolling_header[] = "series,time,indicator,value\n";
 void cli_write_rolling(FILE *fp, const cli_options *opts, const prepared_series *ps,
                        double *const *values)
 {
-    rolling_spec spec = cli_rolling_spec(opts, ps);
+    screen_config cfg;
+    cli_screen_config(opts, &cfg);
+    rolling_spec spec = screen_rolling_spec(&cfg, ps);
     for (size_t j = 0; j < opts->nindicators; j++) {
         const char *name = indicator_name(opts->indicators[j]);
         /* Only the windows evaluated on the indicator's step have a row; an evaluated window

@@ -113,201 +113,33 @@ size_t cli_inputs_series_count(const cli_inputs *in)
     return total;
 }
 
-/* A length option in time units: percent of the span, or as given; must fit in the span. */
-static int resolve_length(const cli_length *len, const char *option, const series_table *t,
-                          double span, double *out)
-{
-    double v = len->percent ? len->amount / 100.0 * span : len->amount;
-    if (!(v <= span * (1 + 1e-9))) {
-        cli_error("%s: option %s %s is longer than the span %.12g of the analysed series",
-                  shown(t->source), option, len->text, span);
-        return EXIT_BAD_INPUT;
-    }
-    *out = v;
-    return EXIT_OK;
-}
-
-/* Samples in a window, DESIGN §3: round(window/dt)+1 or round(p/100 (n-1))+1. */
-static int resolve_window(const cli_options *o, const series_table *t, double dt, double span,
-                          size_t *window)
-{
-    double length;
-    int rc = resolve_length(&o->window, "--window", t, span, &length);
-    if (rc != EXIT_OK)
-        return rc;
-    double w = o->window.percent ? floor(o->window.amount / 100.0 * (double)(t->n - 1) + 0.5)
-                                 : floor(length / dt + 0.5);
-    *window = (size_t)w + 1;
-    if (*window < 3) {
-        cli_error("%s: option --window %s gives %zu samples per window; at least 3 are needed",
-                  shown(t->source), o->window.text, *window);
-        return EXIT_BAD_INPUT;
-    }
-    return EXIT_OK;
-}
-
 int cli_series_window(const cli_options *o, const series_table *t, size_t *window)
 {
-    double span = t->time[t->n - 1] - t->time[0];
-    return resolve_window(o, t, span / (double)(t->n - 1), span, window);
-}
-
-static int detrend_fail(int st, const cli_options *o, const prepared_series *ps)
-{
-    if (st == SLOWSCAN_ENOMEM) {
-        cli_error("out of memory");
-        return EXIT_INTERNAL;
-    }
-    /* robustness detrends with each method of its --detrends list in turn */
-    const char *option = o->ndetrends > 0 ? "--detrends" : "--detrend";
-    if (st == SLOWSCAN_EINVAL && o->detrend.method == DETREND_POLY)
-        cli_error("%s: column '%s': option %s %s: the degree is too high for %zu finite "
-                  "samples", ps->source, ps->name, option, o->detrend_text, ps->finite);
-    else
-        cli_error("%s: column '%s': detrending (%s %s) failed: %s", ps->source, ps->name,
-                  option, o->detrend_text, slowscan_strerror(st));
-    return EXIT_BAD_INPUT;
-}
-
-/* The option at fault in a deseasoning spec, with what its value must satisfy. */
-static int deseason_refuse(deseason_problem problem, const cli_options *o,
-                           const prepared_series *ps, double steps)
-{
-    const char *where = ps->source, *col = ps->name;
-    if (problem == DESEASON_BAD_HARMONICS)
-        cli_error("%s: column '%s': option --harmonics %ld%s: twice the number of harmonics must "
-                  "be below the period in time steps (%.12g; the Nyquist limit)", where, col,
-                  o->harmonics ? o->harmonics : (long)DETREND_DESEASON_HARMONICS,
-                  o->harmonics ? "" : " (the default, as the period is not a whole number of "
-                                      "steps)", steps);
-    else if (problem == DESEASON_BAD_WINDOW)
-        cli_error("%s: column '%s': option --deseason-window %s must hold at least two periods "
-                  "(2 x %.12g) and at most the record (%.12g)", where, col,
-                  o->deseason_window.text, o->deseason, ps->span);
-    else
-        cli_error("%s: column '%s': option --deseason %.12g must be at least 2 time steps (%.12g) "
-                  "and at most half the record", where, col, o->deseason, ps->dt);
-    return EXIT_BAD_INPUT;
-}
-
-/* Removes the cycle of --deseason (with --deseason-window, --harmonics) from ps->value. */
-static int deseason_series(const cli_options *o, const series_table *t, prepared_series *ps)
-{
-    deseason_spec spec = detrend_deseason_default();
-    spec.period = o->deseason;
-    spec.harmonics = (int)o->harmonics;
-    int rc = EXIT_OK;
-    if (o->deseason_window.text)
-        rc = resolve_length(&o->deseason_window, "--deseason-window", t, ps->span, &spec.window);
-    if (rc != EXIT_OK)
-        return rc;
-    deseason_problem problem;
-    if (detrend_deseason_check(&spec, ps->dt, ps->n, &problem, &ps->harmonics) != SLOWSCAN_OK)
-        return deseason_refuse(problem, o, ps, o->deseason / ps->dt);
-    int st = detrend_deseason_apply(&spec, ps->dt, ps->value, ps->n);
-    if (st == SLOWSCAN_ESHORT)
-        cli_error("%s: column '%s': option --deseason %.12g: %s", ps->source, ps->name,
-                  o->deseason, ps->harmonics ? "a window has too few finite samples to fit the "
-                  "harmonics" : "a phase of the cycle has no finite sample in some window");
-    else if (st != SLOWSCAN_OK)
-        cli_error("%s: column '%s': deseasoning failed: %s", ps->source, ps->name,
-                  slowscan_strerror(st));
-    return st == SLOWSCAN_OK ? EXIT_OK : st == SLOWSCAN_ENOMEM ? EXIT_INTERNAL : EXIT_BAD_INPUT;
-}
-
-static void count_finite(prepared_series *ps)
-{
-    double lo = INFINITY, hi = -INFINITY;
-    ps->finite = 0;
-    for (size_t i = 0; i < ps->n; i++)
-        if (isfinite(ps->value[i])) {
-            ps->finite++;
-            lo = fmin(lo, ps->value[i]);
-            hi = fmax(hi, ps->value[i]);
-        }
-    ps->constant = ps->finite > 0 && lo == hi;
-}
-
-/* A residual at round-off level (a straight line under --detrend linear, say) carries no
- * information: its lag-1 autocorrelation would be computed from rounding noise. Treat it as
- * constant rather than report numbers made of round-off. */
-static void flag_flat_residual(prepared_series *ps)
-{
-    double res = 0, scale = 0;
-    for (size_t i = 0; i < ps->n; i++)
-        if (isfinite(ps->residual[i])) {
-            res = fmax(res, fabs(ps->residual[i]));
-            scale = fmax(scale, fabs(ps->value[i]));
-        }
-    if (res <= 1e-11 * scale)
-        ps->constant = 2;
-}
-
-/* The trend-leakage diagnostic over edge spans of one bandwidth (--bandwidth, even for a
- * method that has none, so every method is judged on the same spans), at level 0.01. */
-enum { LEAKAGE_MIN_EDGE = 8 };
-#define LEAKAGE_LEVEL 0.01
-
-static void test_leakage(const cli_options *o, prepared_series *ps)
-{
-    double length = o->bandwidth.percent ? o->bandwidth.amount / 100.0 * ps->span
-                                         : o->bandwidth.amount;
-    double edge = floor(length / ps->dt + 0.5);
-    if (!(edge >= LEAKAGE_MIN_EDGE) || edge > (double)(ps->n / 2))
-        return; /* too short to say anything, or the edges would overlap */
-    ps->leakage_tested = detrend_leakage_test(ps->residual, ps->n, (size_t)edge, LEAKAGE_LEVEL,
-                                              &ps->leakage) == SLOWSCAN_OK;
+    screen_config cfg;
+    cli_screen_config(o, &cfg);
+    screen_detail d;
+    int st = screen_window(&cfg, t->n, t->time[t->n - 1] - t->time[0], window, &d);
+    if (st == SLOWSCAN_OK)
+        return EXIT_OK;
+    prepared_series named = {.name = "", .source = shown(t->source)};
+    return cli_screen_refuse(o, &named, &d);
 }
 
 int cli_prepare_series(const cli_options *o, const series_table *t, size_t k, prepared_series *ps)
 {
-    memset(ps, 0, sizeof *ps);
-    ps->name = t->names[k];
-    ps->source = shown(t->source);
-    ps->time_name = t->time_name;
-    ps->n = t->n;
-    ps->time = t->time;
-    ps->span = t->time[t->n - 1] - t->time[0];
-    ps->dt = ps->span / (double)(t->n - 1);
-    int rc = resolve_window(o, t, ps->dt, ps->span, &ps->window);
-    detrend_spec spec = o->detrend;
-    ps->bandwidth = NAN;
-    if (rc == EXIT_OK && detrend_uses_bandwidth(spec.method)) {
-        rc = resolve_length(&o->bandwidth, "--bandwidth", t, ps->span, &spec.bandwidth);
-        ps->bandwidth = spec.bandwidth;
-    }
-    if (rc != EXIT_OK)
-        return rc;
-    ps->value = malloc(3 * t->n * sizeof(double));
-    if (!ps->value)
-        return EXIT_INTERNAL;
-    ps->trend = ps->value + t->n;
-    ps->residual = ps->trend + t->n;
-    ps->null_source = ps->residual;
-    memcpy(ps->value, t->values[k], t->n * sizeof(double));
-    count_finite(ps);
-    int st;
-    if (!isnan(o->deseason) && (rc = deseason_series(o, t, ps)) != EXIT_OK)
-        return rc;
-    if (ps->finite < 2 || ps->constant) {
-        /* Nothing to detrend: the caller reports the series as insufficient. */
-        for (size_t i = 0; i < t->n; i++)
-            ps->trend[i] = ps->residual[i] = NAN;
+    screen_config cfg;
+    cli_screen_config(o, &cfg);
+    screen_input in = {t->names[k], shown(t->source), t->time_name, t->time, t->values[k], t->n,
+                       NULL};
+    screen_detail d;
+    if (screen_prepare(&cfg, &in, ps, &d) == SLOWSCAN_OK)
         return EXIT_OK;
-    }
-    if ((st = detrend_apply(&spec, ps->dt, ps->value, t->n, ps->trend, ps->residual)) != SLOWSCAN_OK)
-        return detrend_fail(st, o, ps);
-    flag_flat_residual(ps);
-    if (!ps->constant)
-        test_leakage(o, ps);
-    return EXIT_OK;
+    return cli_screen_refuse(o, ps, &d);
 }
 
 void cli_prepared_free(prepared_series *ps)
 {
-    free(ps->value);
-    free(ps->owned);
-    memset(ps, 0, sizeof *ps);
+    screen_prepared_free(ps);
 }
 
 void cli_indicator_values_free(const cli_options *o, double **values)
@@ -318,152 +150,85 @@ void cli_indicator_values_free(const cli_options *o, double **values)
     }
 }
 
-static void fill_nan(double *v, size_t n)
-{
-    for (size_t i = 0; i < n; i++)
-        v[i] = NAN;
-}
-
-rolling_spec cli_rolling_spec(const cli_options *o, const prepared_series *ps)
-{
-    return (rolling_spec){ps->window, o->min_coverage, ps->dt, o->recovery, (size_t)o->step,
-                          o->band_lo, o->band_hi, NULL};
-}
-
-/* The window and the band against the per-window indicators requested; one message each. */
-static int check_per_window(const cli_options *o, const prepared_series *ps)
-{
-    for (size_t j = 0; j < o->nindicators; j++) {
-        indicator_kind kind = o->indicators[j];
-        size_t need = indicator_min_window(kind);
-        if (indicator_per_window(kind) && ps->window < need) {
-            cli_error("%s: option --window %s gives %zu samples per window; %s needs at least %zu",
-                      ps->source, o->window.text, ps->window, indicator_name(kind), need);
-            return EXIT_BAD_INPUT;
-        }
-        if (kind != INDICATOR_SPECTRAL_EXPONENT || !o->band_text)
-            continue;
-        double nyquist = 0.5 / ps->dt;
-        if (o->band_hi > nyquist * (1 + 1e-9)) {
-            cli_error("%s: option --band %s is outside (0, %.12g]: the Nyquist frequency of time "
-                      "step %.12g is %.12g cycles per time unit", ps->source, o->band_text, nyquist,
-                      ps->dt, nyquist);
-            return EXIT_BAD_INPUT;
-        }
-        size_t inside = rolling_band_count(ps->window, ps->dt, o->band_lo, o->band_hi);
-        if (inside < SPECTRAL_MIN_FREQUENCIES) {
-            cli_error("%s: option --band %s holds %zu of the window's frequencies k/(W dt) "
-                      "(W = %zu); spectral_exponent needs at least %d", ps->source, o->band_text,
-                      inside, ps->window, SPECTRAL_MIN_FREQUENCIES);
-            return EXIT_BAD_INPUT;
-        }
-    }
-    return EXIT_OK;
-}
-
-int cli_rolling_plan(const cli_options *o, const prepared_series *ps, rolling_spec *spec,
-                     rolling_plan **plan)
-{
-    *plan = NULL;
-    int per_window = 0;
-    for (size_t j = 0; j < o->nindicators; j++)
-        per_window |= indicator_per_window(o->indicators[j]);
-    if (!per_window)
-        return EXIT_OK;
-    int rc = check_per_window(o, ps);
-    if (rc != EXIT_OK)
-        return rc;
-    int st = rolling_plan_alloc(spec, plan);
-    if (st != SLOWSCAN_OK) {
-        cli_error("%s: column '%s': spectral plan failed: %s", ps->source, ps->name,
-                  slowscan_strerror(st));
-        return st == SLOWSCAN_ENOMEM ? EXIT_INTERNAL : EXIT_BAD_INPUT;
-    }
-    spec->plan = *plan;
-    return EXIT_OK;
-}
-
 int cli_indicator_values(const cli_options *o, const prepared_series *ps, double **values)
 {
     for (size_t j = 0; j < o->nindicators; j++)
         values[j] = malloc(ps->n * sizeof(double));
+    screen_workspace *ws = screen_workspace_alloc(1);
+    int missing = !ws;
     for (size_t j = 0; j < o->nindicators; j++)
-        if (!values[j]) {
-            cli_error("out of memory");
-            return EXIT_INTERNAL;
+        missing |= !values[j];
+    if (missing) {
+        screen_workspace_free(ws);
+        cli_error("out of memory");
+        return EXIT_INTERNAL;
+    }
+    screen_config cfg;
+    cli_screen_config(o, &cfg);
+    screen_warning warning;
+    screen_detail d;
+    int warned, rc = EXIT_OK;
+    if (screen_indicators(ws, &cfg, ps, values, &warning, &warned, &d) != SLOWSCAN_OK)
+        rc = cli_screen_refuse(o, ps, &d);
+    else if (warned)
+        cli_screen_warn(o, ps, &warning);
+    screen_workspace_free(ws);
+    return rc;
+}
+
+const char *cli_source_name(const char *source)
+{
+    return shown(source);
+}
+
+screen_input cli_control_input(const cli_inputs *in, const char *name)
+{
+    const series_table *c = &in->control;
+    screen_input control = {name, shown(c->source), c->time_name, c->time, NULL, c->n, NULL};
+    for (size_t k = 0; k < c->nseries; k++)
+        if (strcmp(c->names[k], name) == 0) {
+            control.values = c->values[k];
+            break;
         }
-    if (ps->window > ps->n) {
-        cli_error("%s: option --window %s: the window (%zu samples) is longer than the series "
-                  "(%zu samples)", ps->source, o->window.text, ps->window, ps->n);
+    return control;
+}
+
+int cli_control_refuse(const cli_options *o, const screen_input *control,
+                       const prepared_series *ps, const screen_detail *d)
+{
+    const char *cname = control->source;
+    switch (d->rule) {
+    case SCREEN_RULE_CONTROL_MISSING:
+        cli_error("option --control: %s has no series '%s'", cname, ps->name);
         return EXIT_BAD_INPUT;
+    case SCREEN_RULE_CONTROL_SHORT:
+        cli_error("option --control: series '%s' of %s has %zu samples, fewer than the %zu "
+                  "analysed", ps->name, cname, d->count, d->need);
+        return EXIT_BAD_INPUT;
+    case SCREEN_RULE_CONTROL_STEP:
+        cli_error("option --control: %s has time step %.12g, the analysed series %.12g "
+                  "(use --resample)", cname, d->value, d->limit);
+        return EXIT_BAD_INPUT;
+    case SCREEN_RULE_CONTROL_FLAT:
+        cli_error("option --control: series '%s' of %s has no usable variation", ps->name, cname);
+        return EXIT_BAD_INPUT;
+    default: {
+        /* the control's own preparation failed: named as the control series */
+        prepared_series named = {.name = control->name, .source = cname};
+        return cli_screen_refuse(o, &named, d);
     }
-    rolling_spec spec = cli_rolling_spec(o, ps);
-    rolling_plan *plan = NULL;
-    int rc = cli_rolling_plan(o, ps, &spec, &plan);
-    if (rc != EXIT_OK)
-        return rc;
-    if (ps->constant || ps->finite < 2) {
-        cli_warning("%s: column '%s' %s; its indicators are NA", ps->source, ps->name,
-                    ps->constant == 1   ? "is constant"
-                    : ps->constant == 2 ? "has no variation left after detrending"
-                                        : "has fewer than 2 finite samples");
-        for (size_t j = 0; j < o->nindicators; j++)
-            fill_nan(values[j], ps->n);
-        rolling_plan_free(plan);
-        return EXIT_OK;
     }
-    int st = rolling_compute(&spec, ps->residual, ps->value, ps->n, o->indicators, o->nindicators,
-                             values);
-    rolling_plan_free(plan);
-    if (st != SLOWSCAN_OK) {
-        cli_error("%s: column '%s': rolling indicators failed: %s", ps->source, ps->name,
-                  slowscan_strerror(st));
-        return st == SLOWSCAN_ENOMEM ? EXIT_INTERNAL : EXIT_BAD_INPUT;
-    }
-    return EXIT_OK;
 }
 
 int cli_attach_control(const cli_options *o, const cli_inputs *in, prepared_series *ps)
 {
     if (!in->has_control)
         return EXIT_OK;
-    const series_table *c = &in->control;
-    const char *cname = shown(c->source);
-    size_t k = 0;
-    while (k < c->nseries && strcmp(c->names[k], ps->name) != 0)
-        k++;
-    if (k == c->nseries) {
-        cli_error("option --control: %s has no series '%s'", cname, ps->name);
-        return EXIT_BAD_INPUT;
-    }
-    if (c->n < ps->n) {
-        cli_error("option --control: series '%s' of %s has %zu samples, fewer than the %zu "
-                  "analysed", ps->name, cname, c->n, ps->n);
-        return EXIT_BAD_INPUT;
-    }
-    double cdt = (c->time[c->n - 1] - c->time[0]) / (double)(c->n - 1);
-    if (fabs(cdt - ps->dt) > 1e-6 * ps->dt) {
-        cli_error("option --control: %s has time step %.12g, the analysed series %.12g "
-                  "(use --resample)", cname, cdt, ps->dt);
-        return EXIT_BAD_INPUT;
-    }
-    /* The first n samples of the control, detrended exactly as the series was. */
-    series_table cut = *c;
-    cut.n = ps->n;
-    cli_options same = *o;
-    same.bandwidth = (cli_length){isnan(ps->bandwidth) ? 1.0 : ps->bandwidth, 0, o->bandwidth.text};
-    same.window = (cli_length){(double)(ps->window - 1) * ps->dt, 0, o->window.text};
-    prepared_series cps;
-    int rc = cli_prepare_series(&same, &cut, k, &cps);
-    if (rc == EXIT_OK && (cps.constant || cps.finite < 8)) {
-        cli_error("option --control: series '%s' of %s has no usable variation", ps->name, cname);
-        rc = EXIT_BAD_INPUT;
-    }
-    if (rc == EXIT_OK) {
-        ps->owned = cps.value; /* residual lives in the same block */
-        ps->null_source = cps.residual;
-        cps.value = NULL;
-    }
-    cli_prepared_free(&cps);
-    return rc;
+    screen_input control = cli_control_input(in, ps->name);
+    screen_config cfg;
+    cli_screen_config(o, &cfg);
+    screen_detail d;
+    if (screen_attach_control(&cfg, ps, &control, &d) == SLOWSCAN_OK)
+        return EXIT_OK;
+    return cli_control_refuse(o, &control, ps, &d);
 }

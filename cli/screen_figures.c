@@ -15,7 +15,7 @@
 /* Bins of a kept null distribution: enough to show its shape at M = 1000. */
 enum { NULL_BINS = 30 };
 
-int screen_keep_null(screen_row *row, const double *null, size_t m)
+int cli_screen_keep_null(screen_row *row, const double *null, size_t m)
 {
     double lo = INFINITY, hi = -INFINITY;
     for (size_t j = 0; j < m; j++)
@@ -41,8 +41,8 @@ int screen_keep_null(screen_row *row, const double *null, size_t m)
 
 static report_series_test test_of(const screen_row *row, const double *path)
 {
-    int drift = strcmp(row->label, "recovery_trend") == 0;
-    report_series_test t = {row->label, drift ? "t(a1)" : "tau", path, row->result.statistic,
+    int drift = !screen_test_rolling(row->result.kind);
+    report_series_test t = {screen_test_name(row->result.kind), drift ? "t(a1)" : "tau", path, row->result.statistic,
                             row->result.p_value, row->q_value, 0, NAN, NAN, NULL};
     if (row->null_hist) {
         t.nbins = gsl_histogram_bins(row->null_hist);
@@ -56,7 +56,7 @@ static report_series_test test_of(const screen_row *row, const double *path)
 static int draw_series(const cli_options *opts, const prepared_series *ps, void *context)
 {
     screen_run *run = context;
-    size_t tests = trend_test_count(opts), first = run->figure_series++ * tests;
+    size_t tests = screen_test_count(&run->cfg), first = run->figure_series++ * tests;
     if (first + tests > run->nrows || strcmp(run->rows[first].series, ps->name) != 0) {
         cli_error("internal error: screen figures out of step with the summary at '%s'", ps->name);
         return EXIT_INTERNAL;
@@ -66,7 +66,7 @@ static int draw_series(const cli_options *opts, const prepared_series *ps, void 
     /* A constant series has no paths (and was warned about in the run). */
     if (!ps->constant)
         rc = cli_indicator_values(opts, ps, values);
-    report_series_test list[TREND_MAX_TESTS];
+    report_series_test list[SCREEN_MAX_TESTS];
     for (size_t j = 0; j < tests; j++)
         list[j] = test_of(&run->rows[first + j], j < opts->nindicators ? values[j] : NULL);
     report_series_data data = {ps->name, ps->time_name, ps->source, ps->n, ps->time, ps->value,
@@ -80,10 +80,10 @@ static int draw_series(const cli_options *opts, const prepared_series *ps, void 
 
 static int draw_overview(const cli_options *opts, const screen_run *run)
 {
-    size_t tests = trend_test_count(opts);
-    const char *labels[TREND_MAX_TESTS], *stats[TREND_MAX_TESTS];
+    size_t tests = screen_test_count(&run->cfg);
+    const char *labels[SCREEN_MAX_TESTS], *stats[SCREEN_MAX_TESTS];
     for (size_t j = 0; j < tests; j++) {
-        labels[j] = run->rows[j].label;
+        labels[j] = screen_test_name(run->rows[j].result.kind);
         stats[j] = j < opts->nindicators ? "Kendall tau" : "t(a1)";
     }
     report_overview_point *points = malloc((run->nrows + 1) * sizeof *points);
@@ -94,8 +94,8 @@ static int draw_overview(const cli_options *opts, const screen_run *run)
     for (size_t r = 0; r < run->nrows; r++) {
         const screen_row *row = &run->rows[r];
         points[r] = (report_overview_point){row->series, r % tests, row->result.statistic,
-                                            row->q_value, strcmp(row->flag, "rising") == 0 ||
-                                                          strcmp(row->flag, "falling") == 0};
+                                            row->q_value, row->flag == SCREEN_FLAG_RISING ||
+                                                          row->flag == SCREEN_FLAG_FALLING};
     }
     report_overview_data data = {labels, stats, tests, points, run->nrows, opts->fdr};
     int rc = cli_figure_draw(run->figures, &report_overview_figure, &data, "", "screen-overview");
@@ -103,7 +103,7 @@ static int draw_overview(const cli_options *opts, const screen_run *run)
     return rc;
 }
 
-int screen_figures(const cli_options *opts, const cli_inputs *in, void *context)
+int cli_screen_figures(const cli_options *opts, const cli_inputs *in, void *context)
 {
     screen_run *run = context;
     cli_options quiet = *opts;

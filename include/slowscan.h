@@ -16,5 +16,7 @@
 #include "slowscan/significance.h"
 #include "slowscan/ar1_drift.h"
 #include "slowscan/io.h"
+#include "slowscan/screen.h"
+#include "slowscan/screen_batch.h"
 
 #endif

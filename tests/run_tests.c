@@ -24,6 +24,9 @@ void suite_leakage(void);
 void suite_co2(void);
 void suite_calibration(void);
 void suite_library(void);
+void suite_golden(void);
+void suite_screen(void);
+void suite_batch(void);
 
 static const struct {
     const char *name;
@@ -36,6 +39,8 @@ static const struct {
     {"report", suite_report},         {"robustness", suite_robustness}, {"leakage", suite_leakage},
     {"co2", suite_co2},               {"calibration", suite_calibration},
     {"library", suite_library},
+    {"golden", suite_golden},         {"screen", suite_screen},
+    {"batch", suite_batch},
 };
 
 int main(int argc, char **argv)

@@ -1,14 +1,14 @@
 /* The surrogate replicates of one series, dealt out to threads in whole blocks of
  * NULL_TREND_BLOCK. Every block draws from its own stream (null_trend.h), so the numbers do
  * not depend on which thread drew which block, nor on how many threads there are. */
-#include "cli.h"
+#include "screen_internal.h"
 #include "slowscan/status.h"
 
 #include <pthread.h>
 #include <stdlib.h>
 
 typedef struct {
-    cli_null_task *task;
+    screen_null_task *task;
     pthread_mutex_t lock;
     size_t next_block, nblocks;
     int status;
@@ -33,7 +33,7 @@ static void *worker(void *p)
 {
     worker_arg *arg = p;
     shared_state *s = arg->shared;
-    cli_null_task *t = s->task;
+    screen_null_task *t = s->task;
     int st;
     /* Each thread has its own source: the draw writes into the source's spectrum scratch. */
     surrogate_source *src = surrogate_source_alloc(t->plan, t->kind, t->residual, t->options, &st);
@@ -56,18 +56,18 @@ static void *worker(void *p)
     return NULL;
 }
 
-int cli_null_parallel(cli_null_task *task, null_trend_workspace *const *ws, size_t threads)
+int screen_null_parallel(screen_null_task *task, null_trend_workspace *const *ws, size_t threads)
 {
     task->unconverged = 0;
     shared_state s = {task, PTHREAD_MUTEX_INITIALIZER, 0,
                       (task->m + NULL_TREND_BLOCK - 1) / NULL_TREND_BLOCK, SLOWSCAN_OK};
     if (threads > s.nblocks)
         threads = s.nblocks ? s.nblocks : 1;
-    if (threads > CLI_MAX_THREADS)
-        threads = CLI_MAX_THREADS;
-    pthread_t ids[CLI_MAX_THREADS];
-    worker_arg args[CLI_MAX_THREADS];
-    int running[CLI_MAX_THREADS] = {0};
+    if (threads > SCREEN_MAX_THREADS)
+        threads = SCREEN_MAX_THREADS;
+    pthread_t ids[SCREEN_MAX_THREADS];
+    worker_arg args[SCREEN_MAX_THREADS];
+    int running[SCREEN_MAX_THREADS] = {0};
     for (size_t k = 0; k < threads; k++)
         args[k] = (worker_arg){&s, ws[k]};
     /* If a thread cannot start, the others simply take its blocks. */

@@ -1,0 +1,95 @@
+/* The screening run's defaults, its test kinds, and the run-wide decision (q-values, flags). */
+#include "slowscan/screen.h"
+#include "slowscan/significance.h"
+#include "slowscan/status.h"
+
+#include <math.h>
+#include <stdlib.h>
+
+const double screen_quantile_levels[SCREEN_QUANTILES] = {0.05, 0.25, 0.5, 0.75, 0.95};
+
+screen_config screen_config_default(void)
+{
+    screen_config c = {0};
+    detrend_parse_method("gaussian-linear", &c.detrend); /* DESIGN §3: no lag at the ends */
+    c.bandwidth = (screen_length){10, 1};
+    c.deseason = NAN;
+    c.deseason_window = (screen_length){NAN, 0};
+    c.window = (screen_length){50, 1};
+    c.indicators[0] = INDICATOR_VARIANCE;
+    c.indicators[1] = INDICATOR_LAG1;
+    c.nindicators = 2;
+    c.min_coverage = 0.8;
+    c.recovery = RECOVERY_LOG_AR1;
+    c.drift_test = 1; /* the model-based test joins the default set */
+    c.null_kind = SURROGATE_PHASE;
+    c.null_options = surrogate_default_options();
+    c.surrogates = 1000;
+    c.seed = 1;
+    c.fdr = 0.05;
+    c.alternative = -1; /* per test: rising, or two-sided for skewness */
+    c.threads = 1;
+    return c;
+}
+
+size_t screen_test_count(const screen_config *cfg)
+{
+    return cfg->nindicators + (cfg->drift_test != 0);
+}
+
+int screen_test_of(const screen_config *cfg, size_t j)
+{
+    return j < cfg->nindicators ? (int)cfg->indicators[j] : SCREEN_TEST_RECOVERY_TREND;
+}
+
+int screen_test_rolling(int kind)
+{
+    return kind >= 0 && kind < INDICATOR_COUNT;
+}
+
+const char *screen_test_name(int kind)
+{
+    return screen_test_rolling(kind) ? indicator_name((indicator_kind)kind) : "recovery_trend";
+}
+
+const char *screen_flag_name(screen_flag flag)
+{
+    static const char *const names[] = {"untested", "none", "rising", "falling", "insufficient"};
+    return (unsigned)flag < sizeof names / sizeof names[0] ? names[flag] : "untested";
+}
+
+static screen_flag flag_before_decision(const screen_test *t)
+{
+    if (isnan(t->statistic))
+        return SCREEN_FLAG_INSUFFICIENT;
+    /* surrogates were asked for but no null could be made */
+    return t->surrogates > 0 ? SCREEN_FLAG_INSUFFICIENT : SCREEN_FLAG_UNTESTED;
+}
+
+int screen_decide(const screen_test *const *tests, size_t count, double fdr, double *q,
+                  screen_flag *flags)
+{
+    double *p = calloc(count + 1, sizeof *p);
+    if (!p)
+        return SLOWSCAN_ENOMEM;
+    size_t tested = 0;
+    for (size_t r = 0; r < count; r++) {
+        p[r] = tests[r]->p_value;
+        tested += !isnan(p[r]);
+    }
+    int st = significance_bh(p, count, q, NULL);
+    for (size_t r = 0; st == SLOWSCAN_OK && r < count; r++) {
+        const screen_test *t = tests[r];
+        if (isnan(t->p_value)) {
+            q[r] = NAN;
+            flags[r] = flag_before_decision(t);
+            continue;
+        }
+        double decisive = tested == 1 ? t->p_value : q[r]; /* one test: p decides itself */
+        /* "falling" only arises when a decreasing or two-sided alternative is tested. */
+        flags[r] = decisive > fdr ? SCREEN_FLAG_NONE
+                   : t->statistic > 0 ? SCREEN_FLAG_RISING : SCREEN_FLAG_FALLING;
+    }
+    free(p);
+    return st;
+}

@@ -1,0 +1,227 @@
+/* The trend statistics of one prepared series — Kendall tau of each indicator path, the
+ * drifting-AR(1) t-value — and their surrogate null: p-values and null quantiles. */
+#include "screen_internal.h"
+#include "slowscan/significance.h"
+#include "slowscan/status.h"
+
+#include <fftw3.h>
+#include <gsl/gsl_statistics_double.h>
+#include <math.h>
+#include <stdlib.h>
+
+/* Kendall tau on fewer values says little and its null distribution is coarse. */
+enum { MIN_TREND_VALUES = 8 };
+
+/* Kendall tau of one indicator path against time; NaN with a reason when it cannot be had. */
+static double trend_of(screen_workspace *ws, const screen_prepared *ps, const double *values,
+                       screen_reason *reason)
+{
+    double tau = NAN;
+    size_t used = 0;
+    if (ws->kendall_n < ps->n) {
+        kendall_free(ws->kendall);
+        ws->kendall = kendall_alloc(ps->n);
+        ws->kendall_n = ws->kendall ? ps->n : 0;
+    }
+    if (!ws->kendall) {
+        *reason = SCREEN_REASON_NO_MEMORY;
+        return NAN;
+    }
+    int st = kendall_tau_b(ws->kendall, ps->time, values, ps->n, &tau, &used);
+    if (st == SLOWSCAN_ECONST)
+        *reason = SCREEN_REASON_CONSTANT_PATH;
+    else if (st != SLOWSCAN_OK || used < MIN_TREND_VALUES)
+        *reason = SCREEN_REASON_FEW_VALUES;
+    return used < MIN_TREND_VALUES ? NAN : tau;
+}
+
+/* The drift statistic of the observed residual: the t-value of a1. */
+static double drift_of(screen_workspace *ws, const screen_config *cfg, const screen_prepared *ps,
+                       screen_reason *reason, double *model)
+{
+    if (ws->drift_n != ps->n) {
+        ar1_drift_free(ws->drift);
+        ws->drift = ar1_drift_alloc(ps->n);
+        ws->drift_n = ws->drift ? ps->n : 0;
+    }
+    ar1_drift_fit fit;
+    if (ws->drift)
+        ar1_drift_set_noise_trend(ws->drift, cfg->noise_trend);
+    int st = ws->drift ? ar1_drift_estimate(ws->drift, ps->residual, ps->n, &fit) : SLOWSCAN_ENOMEM;
+    if (st == SLOWSCAN_OK && isfinite(fit.t_a1)) {
+        *model = fit.t_a1_model;
+        return fit.t_a1;
+    }
+    *reason = st == SLOWSCAN_ESHORT ? SCREEN_REASON_FEW_PAIRS : SCREEN_REASON_NO_FIT;
+    return NAN;
+}
+
+/* Everything sized by the series length is remade only when the length changes. */
+static int ready_null(screen_workspace *ws, const screen_config *cfg, size_t n, size_t tests)
+{
+    size_t m = cfg->surrogates;
+    if (ws->null_n != n || ws->null_kinds < cfg->nindicators) {
+        surrogate_plan_free(ws->plan);
+        for (size_t k = 0; k < ws->threads; k++) {
+            null_trend_free(ws->null_ws[k]);
+            ws->null_ws[k] = NULL;
+        }
+        ws->null_n = ws->null_kinds = 0;
+        ws->plan = surrogate_plan_alloc(n, FFTW_ESTIMATE);
+        int missing = !ws->plan;
+        for (size_t k = 0; k < ws->threads; k++)
+            missing |= !(ws->null_ws[k] = null_trend_alloc(n, cfg->nindicators));
+        if (missing)
+            return SLOWSCAN_ENOMEM;
+        ws->null_n = n;
+        ws->null_kinds = cfg->nindicators;
+    }
+    if (ws->null_cap < tests * m) {
+        free(ws->null);
+        ws->null_cap = (ws->null = malloc(tests * m * sizeof *ws->null)) ? tests * m : 0;
+    }
+    if (ws->sorted_cap < m) {
+        free(ws->sorted);
+        ws->sorted_cap = (ws->sorted = malloc(m * sizeof *ws->sorted)) ? m : 0;
+    }
+    return ws->null && ws->sorted ? SLOWSCAN_OK : SLOWSCAN_ENOMEM;
+}
+
+/* Test j's alternative: the setting, else the indicator's direction; the drift test looks for
+ * a growing memory (a1 > 0). */
+static significance_alternative alternative_of(const screen_config *cfg, size_t j)
+{
+    if (cfg->alternative >= 0)
+        return (significance_alternative)cfg->alternative;
+    if (j >= cfg->nindicators || indicator_direction(cfg->indicators[j]) > 0)
+        return ALTERNATIVE_INCREASING;
+    return ALTERNATIVE_TWO_SIDED;
+}
+
+static int by_double(const void *a, const void *b)
+{
+    double x = *(const double *)a, y = *(const double *)b;
+    return (x > y) - (x < y);
+}
+
+/* Quantiles of the finite null values. */
+static void null_quantiles(screen_workspace *ws, const double *null, size_t m, screen_test *t)
+{
+    size_t k = 0;
+    for (size_t j = 0; j < m; j++)
+        if (isfinite(null[j]))
+            ws->sorted[k++] = null[j];
+    t->null_used = k;
+    qsort(ws->sorted, k, sizeof *ws->sorted, by_double);
+    for (int q = 0; q < SCREEN_QUANTILES && k > 0; q++)
+        t->quantile[q] = gsl_stats_quantile_from_sorted_data(ws->sorted, 1, k,
+                                                              screen_quantile_levels[q]);
+}
+
+static void warn(screen_result *out, screen_warning_kind kind, size_t count, size_t total,
+                 int status)
+{
+    if (out->nwarnings < SCREEN_MAX_WARNINGS)
+        out->warnings[out->nwarnings++] = (screen_warning){kind, count, total, status};
+}
+
+/* Draws the null of every test over the surrogates of ps->null_source. */
+static int draw_null(screen_workspace *ws, const screen_config *cfg, const screen_prepared *ps,
+                     screen_result *out, size_t tests)
+{
+    rolling_spec spec;
+    screen_detail ignored;
+    int st = screen_rolling_ready(ws, cfg, ps, &spec, &ignored);
+    if (st != SLOWSCAN_OK)
+        return st; /* the paths were made with the same spec: this does not happen */
+    st = ready_null(ws, cfg, ps->n, tests);
+    int need_level = 0;
+    for (size_t j = 0; j < cfg->nindicators; j++)
+        need_level |= indicator_needs_level(cfg->indicators[j]);
+    null_trend_job job = {&spec, cfg->indicators, cfg->nindicators, ps->time,
+                          need_level ? ps->trend : NULL, cfg->seed, ps->name,
+                          cfg->null_name ? cfg->null_name : surrogate_name(cfg->null_kind),
+                          cfg->drift_test ? 1 + cfg->noise_trend : 0};
+    size_t m = cfg->surrogates;
+    screen_null_task task = {ws->plan, cfg->null_kind, &cfg->null_options, ps->null_source,
+                             &job, m, ws->null, 0};
+    size_t threads = cfg->threads < ws->threads ? cfg->threads : ws->threads;
+    if (st == SLOWSCAN_OK)
+        st = screen_null_parallel(&task, ws->null_ws, threads ? threads : 1);
+    if (task.unconverged)
+        warn(out, SCREEN_WARN_IAAFT_UNCONVERGED, task.unconverged, m, 0);
+    return st;
+}
+
+/* The null distribution of every test over the surrogates, and the p-values. */
+static int test_null(screen_workspace *ws, const screen_config *cfg, const screen_prepared *ps,
+                     screen_result *out, screen_detail *d)
+{
+    size_t block = cfg->null_options.block_length, tests = out->ntests, m = cfg->surrogates;
+    if (cfg->null_kind == SURROGATE_BLOCK && block > ps->n / 2) {
+        /* With blocks longer than half the record there are too few distinct starts for a
+         * null distribution (at L = n every replicate is the series itself). */
+        *d = (screen_detail){SCREEN_RULE_BLOCK_LENGTH, SCREEN_OPTION_NULL, SLOWSCAN_EINVAL, 0,
+                             block, ps->n, 0, 0, 0};
+        return SLOWSCAN_EINVAL;
+    }
+    int st = draw_null(ws, cfg, ps, out, tests);
+    if (st == SLOWSCAN_ESHORT || st == SLOWSCAN_ECONST) {
+        /* This series cannot carry a null (too few samples, or none varying): its tests are
+         * insufficient, the run goes on. */
+        warn(out, SCREEN_WARN_NO_SURROGATES, 0, m, st);
+        for (size_t j = 0; j < tests; j++)
+            out->tests[j].reason = SCREEN_REASON_NO_SURROGATES;
+        return SLOWSCAN_OK;
+    }
+    if (st != SLOWSCAN_OK) {
+        int ar1 = st == SLOWSCAN_ENUMERIC && cfg->null_kind == SURROGATE_AR1;
+        *d = (screen_detail){ar1 ? SCREEN_RULE_AR1_NONSTATIONARY : SCREEN_RULE_NULL_FAILED,
+                             SCREEN_OPTION_NULL, st, 0, 0, 0, 0, 0, 0};
+        return st;
+    }
+    ws->null_tests = tests;
+    ws->null_stride = m;
+    for (size_t j = 0; j < tests; j++) {
+        screen_test *t = &out->tests[j];
+        if (!isnan(t->statistic))
+            t->p_value = significance_p_value(t->statistic, ws->null + j * m, m,
+                                              alternative_of(cfg, j), &t->null_used);
+        null_quantiles(ws, ws->null + j * m, m, t);
+    }
+    return SLOWSCAN_OK;
+}
+
+int screen_test_series(screen_workspace *ws, const screen_config *cfg, const screen_prepared *ps,
+                       double *const *paths, screen_result *out, screen_detail *d)
+{
+    screen_describe(cfg, ps, out);
+    out->ntests = screen_test_count(cfg);
+    ws->null_tests = 0;
+    int any = 0;
+    for (size_t j = 0; j < out->ntests; j++) {
+        screen_test *t = &out->tests[j];
+        *t = (screen_test){.kind = screen_test_of(cfg, j), .tau = NAN, .statistic = NAN,
+                           .statistic_model = NAN, .p_value = NAN,
+                           .surrogates = cfg->surrogates,
+                           .quantile = {NAN, NAN, NAN, NAN, NAN},
+                           .reason = SCREEN_REASON_NO_VARIATION};
+        if (!ps->constant) {
+            if (j < cfg->nindicators)
+                t->tau = t->statistic = trend_of(ws, ps, paths[j], &t->reason);
+            else
+                t->statistic = drift_of(ws, cfg, ps, &t->reason, &t->statistic_model);
+        }
+        if (!isnan(t->statistic))
+            t->reason = SCREEN_REASON_NONE;
+        any |= !isnan(t->statistic);
+    }
+    if (cfg->surrogates > 0 && any)
+        return test_null(ws, cfg, ps, out, d);
+    return SLOWSCAN_OK;
+}
+
+const double *screen_workspace_null(const screen_workspace *ws, size_t j)
+{
+    return j < ws->null_tests ? ws->null + j * ws->null_stride : NULL;
+}
