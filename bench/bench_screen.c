@@ -1,14 +1,17 @@
-/* Benchmark of the standard screening job — one series, n = 2000, Gaussian detrend with
+/* Benchmark of the standard screening job as users run it, one call of the library's
+ * screen_series (screen.h) — one series, n = 2000, Gaussian (Nadaraya-Watson) detrend with
  * bandwidth 10%, window 50%, variance and lag1, 1000 phase surrogates — against the
  * numpy/scipy/pandas script ../shared/bench/reference_pipeline.py on the same input, both
- * single-threaded and measured in this run. Also: the cost of one surrogate over the cost of
- * its irreducible parts timed alone (one FFTW c2r of length n, and per indicator one rolling
- * pass and one Kendall count); and the cost of one surrogate tested on a per-window indicator
- * (redness, spectral_exponent, dfa at their default step) over one tested on lag1. */
+ * single-threaded and measured in this run; the taus and p-values of the two must agree.
+ * Also: the cost of one surrogate over the cost of its irreducible parts timed alone (one
+ * FFTW c2r of length n, and per indicator one rolling pass and one Kendall count); and the
+ * cost of one surrogate tested on a per-window indicator (redness, spectral_exponent, dfa at
+ * their default step) over one tested on lag1. */
 #include "slowscan/detrend.h"
 #include "slowscan/indicators.h"
 #include "slowscan/kendall.h"
 #include "slowscan/null_trend.h"
+#include "slowscan/screen.h"
 #include "slowscan/significance.h"
 #include "slowscan/status.h"
 #include "slowscan/surrogates.h"
@@ -30,9 +33,23 @@ static double now(void)
     return (double)t.tv_sec + 1e-9 * (double)t.tv_nsec;
 }
 
-/* Runs the reference on its own standard series, which it also writes for us to read. */
-static double run_reference(const char *csv, double *x)
+typedef struct {
+    double tau[2], p[2], seconds;
+} job_result;
+
+/* A number of the reference's JSON line by key, NaN when missing. */
+static double json_number(const char *line, const char *key)
 {
+    char quoted[64];
+    snprintf(quoted, sizeof quoted, "\"%s\":", key);
+    const char *at = strstr(line, quoted);
+    return at ? strtod(at + strlen(quoted), NULL) : NAN;
+}
+
+/* Runs the reference on its own standard series, which it also writes for us to read. */
+static job_result run_reference(const char *csv, double *x)
+{
+    job_result r = {{NAN, NAN}, {NAN, NAN}, NAN};
     char cmd[1024];
     snprintf(cmd, sizeof cmd, "OPENBLAS_NUM_THREADS=1 OMP_NUM_THREADS=1 /usr/bin/python3 %s "
              "--n %d --surrogates %d --write-input %s", REFERENCE, N, M, csv);
@@ -41,10 +58,9 @@ static double run_reference(const char *csv, double *x)
     if (!p || !fgets(line, sizeof line, p)) {
         if (p)
             pclose(p);
-        return NAN;
+        return r;
     }
     pclose(p);
-    const char *sec = strstr(line, "\"seconds\":");
     FILE *f = fopen(csv, "r");
     char row[256];
     for (size_t i = 0; f && fgets(row, sizeof row, f);)
@@ -53,12 +69,13 @@ static double run_reference(const char *csv, double *x)
     if (f)
         fclose(f);
     printf("reference (numpy/scipy/pandas): %s", line);
-    return sec ? strtod(sec + 10, NULL) : NAN;
+    r.tau[0] = json_number(line, "tau_variance");
+    r.tau[1] = json_number(line, "tau_lag1");
+    r.p[0] = json_number(line, "p_variance");
+    r.p[1] = json_number(line, "p_lag1");
+    r.seconds = json_number(line, "seconds");
+    return r;
 }
-
-typedef struct {
-    double tau[2], p[2], seconds;
-} job_result;
 
 /* The standard job's settings: time axis, Gaussian detrend with bandwidth 10% of the span,
  * windows of 50% (W = round(0.5 (n-1)) + 1). */
@@ -72,34 +89,51 @@ static rolling_spec standard_setup(const double *x, double *time_axis, double *t
     return (rolling_spec){W, 0.8, 1.0, RECOVERY_LOG_AR1, 0, 0, 0, NULL};
 }
 
-/* The whole job through the library, as screen runs it for one series. */
+/* The standard job's screen_config: the library's defaults with the reference script's
+ * settings (its Nadaraya-Watson `gaussian` detrend, not the default gaussian-linear;
+ * variance and lag1 only, no recovery_trend; M phase surrogates; one thread). */
+static screen_config standard_config(void)
+{
+    screen_config cfg = screen_config_default();
+    detrend_parse_method("gaussian", &cfg.detrend);
+    cfg.bandwidth = (screen_length){10, 1};
+    cfg.window = (screen_length){50, 1};
+    cfg.indicators[0] = INDICATOR_VARIANCE;
+    cfg.indicators[1] = INDICATOR_LAG1;
+    cfg.nindicators = 2;
+    cfg.drift_test = 0;
+    cfg.null_kind = SURROGATE_PHASE;
+    cfg.surrogates = M;
+    cfg.threads = 1;
+    return cfg;
+}
+
+/* The whole job as users run it: one call of the library's screen_series (workspace made and
+ * freed inside the timing, as a one-series run pays for it). */
 static job_result run_slowscan(const double *x)
 {
-    job_result r = {{0}, {0}, 0};
-    static double trend[N], resid[N], time_axis[N], null[2 * M];
-    double *paths[2] = {malloc(N * sizeof(double)), malloc(N * sizeof(double))};
-    indicator_kind kinds[2] = {INDICATOR_VARIANCE, INDICATOR_LAG1};
+    job_result r = {{NAN, NAN}, {NAN, NAN}, NAN};
+    static double time_axis[N];
+    for (size_t i = 0; i < N; i++)
+        time_axis[i] = (double)i;
+    screen_config cfg = standard_config();
+    screen_input in = {"y", "standard series", "time", time_axis, x, N, NULL};
+    screen_result res;
+    screen_detail detail;
     double t0 = now();
-    rolling_spec rs = standard_setup(x, time_axis, trend, resid);
-    rolling_compute(&rs, resid, NULL, N, kinds, 2, paths);
-    kendall_workspace *kw = kendall_alloc(N);
-    for (int k = 0; k < 2; k++)
-        kendall_tau_b(kw, time_axis, paths[k], N, &r.tau[k], NULL);
-    surrogate_plan *plan = surrogate_plan_alloc(N, FFTW_ESTIMATE);
-    int st;
-    surrogate_source *src = surrogate_source_alloc(plan, SURROGATE_PHASE, resid, NULL, &st);
-    null_trend_workspace *ws = null_trend_alloc(N, 2);
-    null_trend_job job = {&rs, kinds, 2, time_axis, NULL, 1, "y", "phase", 0};
-    null_trend_draw(ws, src, &job, 0, M, null, M);
-    for (int k = 0; k < 2; k++)
-        r.p[k] = significance_p_value(r.tau[k], null + k * M, M, ALTERNATIVE_INCREASING, NULL);
+    screen_workspace *ws = screen_workspace_alloc(cfg.threads);
+    int st = ws ? screen_series(ws, &cfg, &in, &res, &detail) : SLOWSCAN_ENOMEM;
+    screen_workspace_free(ws);
     r.seconds = now() - t0;
-    null_trend_free(ws);
-    surrogate_source_free(src);
-    surrogate_plan_free(plan);
-    kendall_free(kw);
-    free(paths[0]);
-    free(paths[1]);
+    if (st != SLOWSCAN_OK || res.ntests != 2) {
+        fprintf(stderr, "bench_screen: screen_series failed (status %d, rule %d)\n", st,
+                (int)detail.rule);
+        return r;
+    }
+    for (int k = 0; k < 2; k++) {
+        r.tau[k] = res.tests[k].tau;
+        r.p[k] = res.tests[k].p_value;
+    }
     return r;
 }
 
@@ -198,12 +232,40 @@ static void per_window_ratio(const double *x)
     rolling_plan_free(plan);
 }
 
+/* The library's job against the reference's: the same taus (same series, same detrend,
+ * window and tau-b; 1e-4 leaves room for a handful of the ~250 000 pairs to flip on
+ * round-off in the detrend) and p-values that differ by no more than the Monte Carlo error
+ * of two independent sets of M surrogates (different random phases: 4 standard errors of a
+ * binomial proportion plus one step 1/(M+1); common practice, no source). */
+static int check_agreement(const job_result *ours, const job_result *ref)
+{
+    static const char *const names[2] = {"variance", "lag1"};
+    int bad = 0;
+    for (int k = 0; k < 2; k++) {
+        double p = 0.5 * (ours->p[k] + ref->p[k]);
+        double p_tol = 4 * sqrt(2 * p * (1 - p) / M) + 1.0 / (M + 1);
+        if (!(fabs(ours->tau[k] - ref->tau[k]) <= 1e-4)) {
+            printf("FAIL: tau_%s %.6f, reference %.6f\n", names[k], ours->tau[k], ref->tau[k]);
+            bad = 1;
+        }
+        if (!(fabs(ours->p[k] - ref->p[k]) <= p_tol)) {
+            printf("FAIL: p_%s %.4f, reference %.4f (tolerance %.4f)\n", names[k], ours->p[k],
+                   ref->p[k], p_tol);
+            bad = 1;
+        }
+    }
+    if (!bad)
+        printf("taus agree with the reference within 1e-4, p-values within Monte Carlo error\n");
+    return bad;
+}
+
 int main(void)
 {
     static double x[N];
     const char *csv = "build/bench/standard_series.csv";
-    double ref = run_reference(csv, x);
-    if (isnan(ref)) {
+    job_result ref = run_reference(csv, x);
+    int have_ref = !isnan(ref.seconds);
+    if (!have_ref) {
         printf("reference pipeline not found or failed (%s, Debian python3-numpy/scipy/pandas); "
                "timing slowscan alone\n", REFERENCE);
         for (size_t i = 0; i < N; i++) /* the reference's standard series shape, our draw */
@@ -212,19 +274,22 @@ int main(void)
     /* This machine's speed drifts by tens of percent from minute to minute (a shared host):
      * the two sides are timed in alternation, twice each, and each keeps its best time. */
     job_result best = run_slowscan(x);
+    if (isnan(best.seconds) || isnan(best.tau[0]))
+        return 1;
     for (int round = 0; round < 2; round++) {
-        if (round == 1 && !isnan(ref))
-            ref = fmin(ref, run_reference(csv, x));
+        if (round == 1 && have_ref)
+            ref.seconds = fmin(ref.seconds, run_reference(csv, x).seconds);
         for (int k = 0; k < 5; k++)
             best.seconds = fmin(best.seconds, run_slowscan(x).seconds);
     }
-    printf("slowscan: tau_variance %.6f tau_lag1 %.6f p_variance %.4f p_lag1 %.4f, %.4f s\n",
-           best.tau[0], best.tau[1], best.p[0], best.p[1], best.seconds);
-    if (!isnan(ref))
-        printf("standard job (n=%d, %d phase surrogates, variance+lag1), single thread: reference "
-               "%.3f s, slowscan %.4f s, speed-up %.0fx (target >= 30x)\n", N, M, ref,
-               best.seconds, ref / best.seconds);
+    printf("slowscan (screen_series): tau_variance %.6f tau_lag1 %.6f p_variance %.4f p_lag1 "
+           "%.4f, %.4f s\n", best.tau[0], best.tau[1], best.p[0], best.p[1], best.seconds);
+    int bad = have_ref ? check_agreement(&best, &ref) : 0;
+    if (have_ref)
+        printf("standard job (n=%d, gaussian detrend, %d phase surrogates, variance+lag1), single "
+               "thread: reference %.3f s, slowscan %.4f s, speed-up %.0fx (target >= 30x)\n", N,
+               M, ref.seconds, best.seconds, ref.seconds / best.seconds);
     floor_ratio(x);
     per_window_ratio(x);
-    return 0;
+    return bad;
 }
