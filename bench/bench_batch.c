@@ -17,8 +17,11 @@
 #include <gsl/gsl_randist.h>
 #include <gsl/gsl_rng.h>
 
+#include <dirent.h>
+#include <errno.h>
 #include <fcntl.h>
 #include <math.h>
+#include <signal.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -33,18 +36,47 @@ enum { MAX_FILES = 16 };
 static char scratch[4096];
 static char *made[MAX_FILES];
 static size_t nmade;
+static volatile pid_t running_child;      /* the screen being run, for the signal handler */
+static volatile sig_atomic_t interrupted; /* the signal that asked us to stop, or 0 */
 
-/* Removes every file this run made, then the folder (also on an early exit). */
+/* Removes everything in the scratch folder, then the folder: the files this run made and
+ * whatever a screen stopped by a signal left behind (its atomic writer's temporary file). */
 static void remove_scratch(void)
 {
-    for (size_t i = 0; i < nmade; i++) {
-        unlink(made[i]);
-        free(made[i]);
+    DIR *d = *scratch ? opendir(scratch) : NULL;
+    for (struct dirent *e; d && (e = readdir(d));) {
+        char path[4400];
+        if (strcmp(e->d_name, ".") != 0 && strcmp(e->d_name, "..") != 0) {
+            snprintf(path, sizeof path, "%s/%s", scratch, e->d_name);
+            unlink(path);
+        }
     }
-    nmade = 0;
+    if (d)
+        closedir(d);
     if (*scratch)
         rmdir(scratch);
     *scratch = '\0';
+    for (size_t i = 0; i < nmade; i++)
+        free(made[i]);
+    nmade = 0;
+}
+
+/* Interrupted (Ctrl-C, a kill): stop the screen being run, and let the main line exit
+ * through remove_scratch once it has reaped it (wait4 returns EINTR; the CSV writer checks
+ * between rows), so no scratch table of ~100 MB is left in /tmp. */
+static void on_signal(int sig)
+{
+    interrupted = sig;
+    if (running_child > 0)
+        kill(running_child, SIGTERM);
+}
+
+static void stop_if_interrupted(void)
+{
+    if (interrupted) {
+        fprintf(stderr, "bench_batch: interrupted, scratch folder removed\n");
+        exit(128 + interrupted);
+    }
 }
 
 /* A path in the scratch folder, remembered for removal. */
@@ -90,12 +122,15 @@ static int write_ar1_csv(const char *path, size_t series, size_t n, unsigned lon
                 fprintf(f, ",%.6g", x[j]);
             }
             fputc('\n', f);
+            if (interrupted)
+                break;
         }
     }
     gsl_rng_free(r);
     free(x);
     if (f && fclose(f) != 0)
         ok = 0;
+    stop_if_interrupted();
     return ok ? 0 : -1;
 }
 
@@ -130,9 +165,17 @@ static int run_screen(const char *bin, const char *const *args, const char *inpu
         execvp(bin, (char *const *)argv);
         _exit(127);
     }
+    running_child = pid;
     int status = 0;
     struct rusage ru;
-    if (pid < 0 || wait4(pid, &status, 0, &ru) != pid || !WIFEXITED(status)
+    pid_t waited = -1;
+    if (interrupted && pid > 0) /* the signal came before the handler could see the child */
+        kill(pid, SIGTERM);
+    while (pid > 0 && (waited = wait4(pid, &status, 0, &ru)) < 0 && errno == EINTR) {
+    }
+    running_child = 0;
+    stop_if_interrupted();
+    if (waited != pid || !WIFEXITED(status)
         || WEXITSTATUS(status) != 0) {
         fprintf(stderr, "bench_batch: %s screen failed on %s (set SLOWSCAN_BIN); it said:\n", bin,
                 input);
@@ -261,6 +304,12 @@ int main(void)
         return 1;
     }
     atexit(remove_scratch);
+    struct sigaction sa = {0}; /* no SA_RESTART: wait4 must return to notice the signal */
+    sa.sa_handler = on_signal;
+    sigemptyset(&sa.sa_mask);
+    sigaction(SIGINT, &sa, NULL);
+    sigaction(SIGTERM, &sa, NULL);
+    sigaction(SIGHUP, &sa, NULL);
     int rc = thread_scaling(bin) == 0 ? 0 : 1;
     if (peak_memory(bin) != 0)
         rc = 1;
