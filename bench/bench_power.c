@@ -25,10 +25,10 @@
  * leave the basin (noise-induced escape, see approaches.h) are redrawn and counted: the
  * powers are those of records that have not yet tipped. */
 #include "approaches.h"
+#include "slowscan/significance.h"
 
 #include <csv.h>
 #include <gsl/gsl_cdf.h>
-#include <gsl/gsl_errno.h>
 #include <gsl/gsl_rng.h>
 #include <gsl/gsl_statistics_double.h>
 #include <math.h>
@@ -230,33 +230,6 @@ static int by_value(const void *a, const void *b)
     return (x > y) - (x < y);
 }
 
-/* The P quantile of Beta(a, b). GSL's inversion fails to converge for some parameters (e.g.
- * P = 0.975, a = 7, b = 394 in GSL 2.7); there the monotone cdf is bisected instead, to
- * double precision. */
-static double beta_quantile(double P, double a, double b)
-{
-    gsl_error_handler_t *previous = gsl_set_error_handler_off();
-    double x = gsl_cdf_beta_Pinv(P, a, b);
-    gsl_set_error_handler(previous);
-    if (isfinite(x))
-        return x;
-    double lo = 0.0, hi = 1.0;
-    for (int i = 0; i < 200 && lo < hi; i++) {
-        double mid = 0.5 * (lo + hi);
-        if (mid <= lo || mid >= hi)
-            break;
-        *(gsl_cdf_beta_P(mid, a, b) < P ? &lo : &hi) = mid;
-    }
-    return 0.5 * (lo + hi);
-}
-
-/* Exact (Clopper-Pearson) 95% interval of a binomial share k/n. */
-static void clopper_pearson(size_t k, size_t n, double *lo, double *hi)
-{
-    *lo = k == 0 ? 0.0 : beta_quantile(0.025, (double)k, (double)(n - k + 1));
-    *hi = k == n ? 1.0 : beta_quantile(0.975, (double)(k + 1), (double)(n - k));
-}
-
 /* A statistic the screen could not compute (NA) never exceeds a threshold: in the null it
  * sorts below every value, in the approaches it is not a detection. */
 static void report_cell(const char *model, const cell *c, estimate power[TESTS])
@@ -271,7 +244,7 @@ static void report_cell(const char *model, const cell *c, estimate power[TESTS])
         for (size_t j = NULLS; j < SERIES; j++)
             hits += c->stat[t][j] > threshold;
         estimate *e = &power[t];
-        clopper_pearson(hits, APPROACHES, &e->lo, &e->hi);
+        significance_binomial_interval(hits, APPROACHES, &e->lo, &e->hi);
         e->power = (double)hits / APPROACHES;
         printf("%-14s %5zu  %-15s %9.4f %7.3f  [%.3f, %.3f]\n", model, c->n, test_names[t],
                threshold, e->power, e->lo, e->hi);

@@ -2,6 +2,8 @@
 #include "slowscan/significance.h"
 #include "slowscan/status.h"
 
+#include <gsl/gsl_cdf.h>
+#include <gsl/gsl_errno.h>
 #include <math.h>
 #include <stdint.h>
 #include <stdlib.h>
@@ -87,4 +89,28 @@ unsigned long stream_seed(unsigned long seed, const char *series, const char *pu
         h = (h ^ ((block >> (8 * b)) & 0xff)) * prime;
     /* GSL's generators take 32 bits of the seed; fold the high half in. */
     return (unsigned long)((h ^ (h >> 32)) & 0xffffffffUL);
+}
+
+/* The p quantile of Beta(a, b); the handler is off around the inversion so a caller that
+ * keeps GSL's aborting default still gets the bisection, not abort(). */
+static double beta_quantile(double p, double a, double b)
+{
+    gsl_error_handler_t *old = gsl_set_error_handler_off();
+    double x = gsl_cdf_beta_Pinv(p, a, b);
+    gsl_set_error_handler(old);
+    if (isfinite(x))
+        return x;
+    double lo = 0.0, hi = 1.0;
+    for (int i = 0; i < 200 && hi - lo > 1e-15; i++) {
+        double mid = 0.5 * (lo + hi);
+        *(gsl_cdf_beta_P(mid, a, b) < p ? &lo : &hi) = mid;
+    }
+    return 0.5 * (lo + hi);
+}
+
+void significance_binomial_interval(size_t hits, size_t trials, double *lo, double *hi)
+{
+    double k = (double)hits, s = (double)trials;
+    *lo = hits == 0 ? 0.0 : beta_quantile(0.025, k, s - k + 1);
+    *hi = hits >= trials ? 1.0 : beta_quantile(0.975, k + 1, s - k);
 }

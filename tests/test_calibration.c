@@ -16,10 +16,10 @@
  * CALIBRATION_REPORT_ONLY=1 prints the table without counting FAIL cells as failed checks
  * (for a branch whose fixes have not landed); a screen that does not run still fails. */
 #include "calibration_cases.h"
+#include "slowscan/significance.h"
 #include "check.h"
 
 #include <gsl/gsl_cdf.h>
-#include <gsl/gsl_errno.h>
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -50,29 +50,9 @@ size_t calibration_bound(size_t series, double alpha)
     return c;
 }
 
-/* GSL's beta inverse gives up ("inverse failed to converge", aborting under the default
- * handler) at some counts, e.g. the upper end for 6 of 400 or 31 of 1000 (GSL 2.7, measured);
- * there the quantile is found by bisection on gsl_cdf_beta_P, which is monotone in x. */
-static double beta_quantile(double p, double a, double b)
-{
-    gsl_error_handler_t *old = gsl_set_error_handler_off();
-    double x = gsl_cdf_beta_Pinv(p, a, b);
-    gsl_set_error_handler(old);
-    if (isfinite(x))
-        return x;
-    double lo = 0.0, hi = 1.0;
-    for (int i = 0; i < 200 && hi - lo > 1e-15; i++) {
-        double mid = 0.5 * (lo + hi);
-        *(gsl_cdf_beta_P(mid, a, b) < p ? &lo : &hi) = mid;
-    }
-    return 0.5 * (lo + hi);
-}
-
 void calibration_interval(size_t hits, size_t series, double *lo, double *hi)
 {
-    double k = (double)hits, s = (double)series;
-    *lo = hits == 0 ? 0.0 : beta_quantile(0.025, k, s - k + 1);
-    *hi = hits >= series ? 1.0 : beta_quantile(0.975, k + 1, s - k);
+    significance_binomial_interval(hits, series, lo, hi);
 }
 
 const char *calibration_verdict(const calibration_case *c, int test, const char *null,

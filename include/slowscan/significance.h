@@ -33,4 +33,11 @@ SLOWSCAN_API
 unsigned long stream_seed(unsigned long seed, const char *series, const char *purpose,
                           unsigned long block);
 
+/* Exact (Clopper-Pearson) 95% interval of a binomial share hits/trials, for size and power
+ * tables. GSL's beta inverse fails to converge at some counts (e.g. the upper end for 6 of
+ * 400 or 31 of 1000, GSL 2.7); there the quantile is found by bisection on the monotone
+ * gsl_cdf_beta_P instead, to double precision. */
+SLOWSCAN_API
+void significance_binomial_interval(size_t hits, size_t trials, double *lo, double *hi);
+
 #endif
