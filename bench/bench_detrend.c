@@ -1,5 +1,5 @@
-/* Benchmark of the detrend workspace: 1000 detrend_apply calls (each plans, weighs and
- * transforms its kernel afresh) against 1000 detrend_apply_with calls on one workspace, at
+/* Benchmark of the detrend workspace: 1000 slowscan_detrend_apply calls (each plans, weighs and
+ * transforms its kernel afresh) against 1000 slowscan_detrend_apply_with calls on one workspace, at
  * n = 2000 and a bandwidth of 10% of the span; the ratio is measured in one run, each time the
  * best of three repetitions. Gap-free series reuse the mask sums too; series with gaps
  * recompute them. The outputs are compared bit for bit on the way. */
@@ -33,8 +33,8 @@ static double best_time(const detrend_spec *spec, detrend_workspace *ws, const d
         for (size_t c = 0; c < CALLS; c++) {
             const double *xs = x + (c % SERIES) * n;
             double *o = out + (c % SERIES) * n;
-            int st = ws ? detrend_apply_with(ws, xs, n, NULL, o)
-                        : detrend_apply(spec, 1.0, xs, n, NULL, o);
+            int st = ws ? slowscan_detrend_apply_with(ws, xs, n, NULL, o)
+                        : slowscan_detrend_apply(spec, 1.0, xs, n, NULL, o);
             if (st != SLOWSCAN_OK)
                 return -1.0;
         }
@@ -48,7 +48,7 @@ static int one_case(const char *method, int gaps, gsl_rng *rng, size_t n, double
                     double *a, double *b)
 {
     detrend_spec spec = {.bandwidth = 0.1 * (double)(n - 1)};
-    detrend_parse_method(method, &spec);
+    slowscan_detrend_parse_method(method, &spec);
     for (size_t k = 0; k < SERIES; k++) {
         double level = 0.0;
         for (size_t i = 0; i < n; i++) {
@@ -58,15 +58,15 @@ static int one_case(const char *method, int gaps, gsl_rng *rng, size_t n, double
                 x[k * n + i] = NAN;
         }
     }
-    detrend_workspace *ws = detrend_workspace_alloc(&spec, 1.0, n);
+    detrend_workspace *ws = slowscan_detrend_workspace_alloc(&spec, 1.0, n);
     if (!ws)
         return 1;
     double tf = best_time(&spec, NULL, x, n, a), tw = best_time(&spec, ws, x, n, b);
-    detrend_workspace_free(ws);
+    slowscan_detrend_workspace_free(ws);
     if (tf < 0.0 || tw < 0.0)
         return 1;
     int same = memcmp(a, b, SERIES * n * sizeof *a) == 0;
-    printf("%s n=%zu bandwidth 10%%%s: %d detrend_apply %.1f ms, %d detrend_apply_with "
+    printf("%s n=%zu bandwidth 10%%%s: %d slowscan_detrend_apply %.1f ms, %d slowscan_detrend_apply_with "
            "%.1f ms, ratio = %.2f (outputs %s)\n", method, n, gaps ? ", gaps" : "", CALLS,
            1e3 * tf, CALLS, 1e3 * tw, tf / tw, same ? "identical" : "DIFFER");
     return !same;

@@ -37,7 +37,7 @@ static double time_fast(kendall_workspace *ws, const double *x, const double *y,
     double best = INFINITY;
     for (int r = 0; r < reps; r++) {
         double t0 = now();
-        if (kendall_tau_b(ws, x, y, n, tau, NULL) != SLOWSCAN_OK)
+        if (slowscan_kendall_tau_b(ws, x, y, n, tau, NULL) != SLOWSCAN_OK)
             return -1.0;
         double t = now() - t0;
         best = t < best ? t : best;
@@ -49,7 +49,7 @@ int main(void)
 {
     const size_t small = 10000, large = 1000000;
     double *x = malloc(large * sizeof(double)), *y = malloc(large * sizeof(double));
-    kendall_workspace *ws = kendall_alloc(large);
+    kendall_workspace *ws = slowscan_kendall_alloc(large);
     gsl_rng *rng = gsl_rng_alloc(gsl_rng_mt19937);
     if (!x || !y || !ws || !rng) {
         fprintf(stderr, "bench_kendall: out of memory\n");
@@ -81,7 +81,7 @@ int main(void)
     printf("kendall tau-b n=%zu, x in random order: O(n log n) %.1f ms (ratio to x in time "
            "order %.2f)\n", large, 1e3 * tr, tr / tl);
     gsl_rng_free(rng);
-    kendall_free(ws);
+    slowscan_kendall_free(ws);
     free(x);
     free(y);
     return 0;

@@ -232,7 +232,7 @@ static int by_value(const void *a, const void *b)
 
 /* A statistic the screen could not compute (NA) never exceeds a threshold: in the null it
  * sorts below every value, in the approaches it is not a detection. */
-static void report_cell(const char *model, const cell *c, estimate power[TESTS])
+static void slowscan_report_cell(const char *model, const cell *c, estimate power[TESTS])
 {
     static double sorted[NULLS];
     for (int t = 0; t < TESTS; t++) {
@@ -244,7 +244,7 @@ static void report_cell(const char *model, const cell *c, estimate power[TESTS])
         for (size_t j = NULLS; j < SERIES; j++)
             hits += c->stat[t][j] > threshold;
         estimate *e = &power[t];
-        significance_binomial_interval(hits, APPROACHES, &e->lo, &e->hi);
+        slowscan_significance_binomial_interval(hits, APPROACHES, &e->lo, &e->hi);
         e->power = (double)hits / APPROACHES;
         printf("%-14s %5zu  %-15s %9.4f %7.3f  [%.3f, %.3f]\n", model, c->n, test_names[t],
                threshold, e->power, e->lo, e->hi);
@@ -271,7 +271,7 @@ static int run_cell(const bench_setup *s, size_t model, size_t length, cell *c, 
     remove(input);
     remove(output);
     if (rc == 0)
-        report_cell(approach_models[model].name, c, power);
+        slowscan_report_cell(approach_models[model].name, c, power);
     return rc;
 }
 

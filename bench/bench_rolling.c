@@ -29,7 +29,7 @@ typedef struct {
 static int run_streaming(const job *j)
 {
     rolling_spec spec = {j->W, 0.8, 1.0, RECOVERY_LOG_AR1, 0, 0, 0, NULL};
-    return rolling_compute(&spec, j->x, j->level, j->n, j->kinds, j->nkinds, j->out);
+    return slowscan_rolling_compute(&spec, j->x, j->level, j->n, j->kinds, j->nkinds, j->out);
 }
 
 /* variance and lag1 of every window, each recomputed from scratch by GSL. */

@@ -1,5 +1,5 @@
 /* Benchmark of the standard screening job as users run it, one call of the library's
- * screen_series (screen.h) — one series, n = 2000, Gaussian (Nadaraya-Watson) detrend with
+ * slowscan_screen_series (screen.h) — one series, n = 2000, Gaussian (Nadaraya-Watson) detrend with
  * bandwidth 10%, window 50%, variance and lag1, 1000 phase surrogates — against the
  * numpy/scipy/pandas script ../shared/bench/reference_pipeline.py on the same input, both
  * single-threaded and measured in this run; the taus and p-values of the two must agree.
@@ -84,7 +84,7 @@ static rolling_spec standard_setup(const double *x, double *time_axis, double *t
     for (size_t i = 0; i < N; i++)
         time_axis[i] = (double)i;
     detrend_spec spec = {DETREND_GAUSSIAN, 0.10 * (N - 1), 0};
-    detrend_apply(&spec, 1.0, x, N, trend, resid);
+    slowscan_detrend_apply(&spec, 1.0, x, N, trend, resid);
     size_t W = (size_t)floor(0.5 * (N - 1) + 0.5) + 1;
     return (rolling_spec){W, 0.8, 1.0, RECOVERY_LOG_AR1, 0, 0, 0, NULL};
 }
@@ -94,8 +94,8 @@ static rolling_spec standard_setup(const double *x, double *time_axis, double *t
  * variance and lag1 only, no recovery_trend; M phase surrogates; one thread). */
 static screen_config standard_config(void)
 {
-    screen_config cfg = screen_config_default();
-    detrend_parse_method("gaussian", &cfg.detrend);
+    screen_config cfg = slowscan_screen_config_default();
+    slowscan_detrend_parse_method("gaussian", &cfg.detrend);
     cfg.bandwidth = (screen_length){10, 1};
     cfg.window = (screen_length){50, 1};
     cfg.indicators[0] = INDICATOR_VARIANCE;
@@ -108,7 +108,7 @@ static screen_config standard_config(void)
     return cfg;
 }
 
-/* The whole job as users run it: one call of the library's screen_series (workspace made and
+/* The whole job as users run it: one call of the library's slowscan_screen_series (workspace made and
  * freed inside the timing, as a one-series run pays for it). */
 static job_result run_slowscan(const double *x)
 {
@@ -121,12 +121,12 @@ static job_result run_slowscan(const double *x)
     screen_result res;
     screen_detail detail;
     double t0 = now();
-    screen_workspace *ws = screen_workspace_alloc(cfg.threads);
-    int st = ws ? screen_series(ws, &cfg, &in, &res, &detail) : SLOWSCAN_ENOMEM;
-    screen_workspace_free(ws);
+    screen_workspace *ws = slowscan_screen_workspace_alloc(cfg.threads);
+    int st = ws ? slowscan_screen_series(ws, &cfg, &in, &res, &detail) : SLOWSCAN_ENOMEM;
+    slowscan_screen_workspace_free(ws);
     r.seconds = now() - t0;
     if (st != SLOWSCAN_OK || res.ntests != 2) {
-        fprintf(stderr, "bench_screen: screen_series failed (status %d, rule %d)\n", st,
+        fprintf(stderr, "bench_screen: slowscan_screen_series failed (status %d, rule %d)\n", st,
                 (int)detail.rule);
         return r;
     }
@@ -157,12 +157,12 @@ static void floor_ratio(const double *x)
     static double resid[N], time_axis[N], path[N], out[N], null[2 * REPS];
     indicator_kind kinds[2] = {INDICATOR_VARIANCE, INDICATOR_LAG1};
     rolling_spec rs = standard_setup(x, time_axis, NULL, resid);
-    surrogate_plan *plan = surrogate_plan_alloc(N, FFTW_ESTIMATE);
+    surrogate_plan *plan = slowscan_surrogate_plan_alloc(N, FFTW_ESTIMATE);
     int st;
-    surrogate_source *src = surrogate_source_alloc(plan, SURROGATE_PHASE, resid, NULL, &st);
-    null_trend_workspace *ws = null_trend_alloc(N, 2);
+    surrogate_source *src = slowscan_surrogate_source_alloc(plan, SURROGATE_PHASE, resid, NULL, &st);
+    null_trend_workspace *ws = slowscan_null_trend_alloc(N, 2);
     null_trend_job job = {&rs, kinds, 2, time_axis, NULL, 1, "y", "phase", 0};
-    kendall_workspace *kw = kendall_alloc(N);
+    kendall_workspace *kw = slowscan_kendall_alloc(N);
     double *real = fftw_alloc_real(N);
     fftw_complex *spectrum = fftw_alloc_complex(N / 2 + 1);
     fftw_plan c2r = fftw_plan_dft_c2r_1d(N, spectrum, real, FFTW_ESTIMATE);
@@ -171,12 +171,12 @@ static void floor_ratio(const double *x)
     fftw_execute(r2c);
     double per_surrogate, fft, roll_var, roll_lag1, kendall, tau;
     double *one[1] = {path};
-    BEST_PER_CALL(per_surrogate, 1, null_trend_draw(ws, src, &job, 0, REPS, null, REPS));
+    BEST_PER_CALL(per_surrogate, 1, slowscan_null_trend_draw(ws, src, &job, 0, REPS, null, REPS));
     per_surrogate /= REPS;
     BEST_PER_CALL(fft, REPS, fftw_execute_dft_c2r(c2r, spectrum, out));
-    BEST_PER_CALL(roll_var, REPS, rolling_compute(&rs, resid, NULL, N, &kinds[0], 1, one));
-    BEST_PER_CALL(roll_lag1, REPS, rolling_compute(&rs, resid, NULL, N, &kinds[1], 1, one));
-    BEST_PER_CALL(kendall, REPS, kendall_tau_b(kw, time_axis, path, N, &tau, NULL));
+    BEST_PER_CALL(roll_var, REPS, slowscan_rolling_compute(&rs, resid, NULL, N, &kinds[0], 1, one));
+    BEST_PER_CALL(roll_lag1, REPS, slowscan_rolling_compute(&rs, resid, NULL, N, &kinds[1], 1, one));
+    BEST_PER_CALL(kendall, REPS, slowscan_kendall_tau_b(kw, time_axis, path, N, &tau, NULL));
     double floor_cost = fft + roll_var + roll_lag1 + 2 * kendall;
     printf("one surrogate: %.1f us; its parts alone: c2r %.1f + rolling variance %.1f + rolling "
            "lag1 %.1f + 2 x Kendall %.1f = %.1f us; ratio %.2f\n", 1e6 * per_surrogate, 1e6 * fft,
@@ -186,10 +186,10 @@ static void floor_ratio(const double *x)
     fftw_destroy_plan(r2c);
     fftw_free(real);
     fftw_free(spectrum);
-    kendall_free(kw);
-    null_trend_free(ws);
-    surrogate_source_free(src);
-    surrogate_plan_free(plan);
+    slowscan_kendall_free(kw);
+    slowscan_null_trend_free(ws);
+    slowscan_surrogate_source_free(src);
+    slowscan_surrogate_plan_free(plan);
 }
 
 /* Seconds per surrogate of the standard job on one indicator, best of 5 runs of `reps`. */
@@ -197,16 +197,16 @@ static double per_surrogate(const rolling_spec *rs, const double *resid, const d
                             indicator_kind kind, int reps)
 {
     static double null[400];
-    surrogate_plan *plan = surrogate_plan_alloc(N, FFTW_ESTIMATE);
+    surrogate_plan *plan = slowscan_surrogate_plan_alloc(N, FFTW_ESTIMATE);
     int st;
-    surrogate_source *src = surrogate_source_alloc(plan, SURROGATE_PHASE, resid, NULL, &st);
-    null_trend_workspace *ws = null_trend_alloc(N, 1);
+    surrogate_source *src = slowscan_surrogate_source_alloc(plan, SURROGATE_PHASE, resid, NULL, &st);
+    null_trend_workspace *ws = slowscan_null_trend_alloc(N, 1);
     null_trend_job job = {rs, &kind, 1, time_axis, NULL, 1, "y", "phase", 0};
     double seconds;
-    BEST_PER_CALL(seconds, 1, null_trend_draw(ws, src, &job, 0, (size_t)reps, null, (size_t)reps));
-    null_trend_free(ws);
-    surrogate_source_free(src);
-    surrogate_plan_free(plan);
+    BEST_PER_CALL(seconds, 1, slowscan_null_trend_draw(ws, src, &job, 0, (size_t)reps, null, (size_t)reps));
+    slowscan_null_trend_free(ws);
+    slowscan_surrogate_source_free(src);
+    slowscan_surrogate_plan_free(plan);
     return seconds / reps;
 }
 
@@ -215,21 +215,21 @@ static void per_window_ratio(const double *x)
     static double resid[N], time_axis[N];
     rolling_spec rs = standard_setup(x, time_axis, NULL, resid);
     rolling_plan *plan = NULL;
-    if (rolling_plan_alloc(&rs, &plan) != SLOWSCAN_OK)
+    if (slowscan_rolling_plan_alloc(&rs, &plan) != SLOWSCAN_OK)
         return;
     rs.plan = plan;
     double lag1 = per_surrogate(&rs, resid, time_axis, INDICATOR_LAG1, 400);
     const indicator_kind kinds[3] = {INDICATOR_REDNESS, INDICATOR_SPECTRAL_EXPONENT, INDICATOR_DFA};
     printf("per-window indicators (n=%d, W=%zu, default step %zu: %zu windows), one surrogate "
            "relative to one lag1 surrogate (%.1f us):", N, rs.window,
-           rolling_step(&rs, INDICATOR_REDNESS, N), (N - rs.window) / rolling_step(&rs, INDICATOR_REDNESS, N) + 1,
+           slowscan_rolling_step(&rs, INDICATOR_REDNESS, N), (N - rs.window) / slowscan_rolling_step(&rs, INDICATOR_REDNESS, N) + 1,
            1e6 * lag1);
     for (int k = 0; k < 3; k++) {
         double cost = per_surrogate(&rs, resid, time_axis, kinds[k], 20);
-        printf(" %s %.0fx (%.2f ms)%s", indicator_name(kinds[k]), cost / lag1, 1e3 * cost,
+        printf(" %s %.0fx (%.2f ms)%s", slowscan_indicator_name(kinds[k]), cost / lag1, 1e3 * cost,
                k < 2 ? "," : "\n");
     }
-    rolling_plan_free(plan);
+    slowscan_rolling_plan_free(plan);
 }
 
 /* The library's job against the reference's: the same taus (same series, same detrend,
@@ -282,7 +282,7 @@ int main(void)
         for (int k = 0; k < 5; k++)
             best.seconds = fmin(best.seconds, run_slowscan(x).seconds);
     }
-    printf("slowscan (screen_series): tau_variance %.6f tau_lag1 %.6f p_variance %.4f p_lag1 "
+    printf("slowscan (slowscan_screen_series): tau_variance %.6f tau_lag1 %.6f p_variance %.4f p_lag1 "
            "%.4f, %.4f s\n", best.tau[0], best.tau[1], best.p[0], best.p[1], best.seconds);
     int bad = have_ref ? check_agreement(&best, &ref) : 0;
     if (have_ref)

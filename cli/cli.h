@@ -48,7 +48,7 @@ typedef struct {
     const char *indicators_text;
     double min_coverage;
     recovery_method recovery;
-    long step;              /* --step K; 0: the default per indicator (rolling_step) */
+    long step;              /* --step K; 0: the default per indicator (slowscan_rolling_step) */
     double band_lo, band_hi; /* --band LO:HI for spectral_exponent; both 0: all frequencies */
     const char *band_text;
     int drift_test; /* screen: the model-based "recovery_trend" test (ar1_drift.h) */
@@ -101,10 +101,10 @@ void cli_options_free(cli_options *opts);
 int cli_help(const char *topic, FILE *out);
 
 /* One series prepared for analysis: cut, resampled, logged, deseasoned and detrended
- * (screen_prepare; its source is the file as messages name it). */
+ * (slowscan_screen_prepare; its source is the file as messages name it). */
 typedef screen_prepared prepared_series;
 
-/* The defaults of `command` that decide numbers, from screen_config_default() (clears o). */
+/* The defaults of `command` that decide numbers, from slowscan_screen_config_default() (clears o). */
 void cli_science_defaults(const char *command, cli_options *o);
 /* The options as the screening library's configuration (screen.h). */
 void cli_screen_config(const cli_options *opts, screen_config *cfg);

@@ -10,7 +10,7 @@ static int write_demo(FILE *fp, const double *time, double *const *values, size_
 {
     fputs("day", fp);
     for (size_t k = 0; k < nst; k++)
-        fprintf(fp, ",%s", demo_station_get(k)->name);
+        fprintf(fp, ",%s", slowscan_demo_station_get(k)->name);
     fputc('\n', fp);
     for (size_t i = 0; i < DEMO_SAMPLES; i++) {
         fprintf(fp, "%.0f", time[i]);
@@ -24,7 +24,7 @@ static int write_demo(FILE *fp, const double *time, double *const *values, size_
 int cmd_demo(const cli_options *opts)
 {
     const char *dir = opts->out_dir ? opts->out_dir : "data";
-    size_t nst = demo_station_count();
+    size_t nst = slowscan_demo_station_count();
     double *time = malloc(DEMO_SAMPLES * sizeof *time);
     double *store = malloc(nst * DEMO_SAMPLES * sizeof *store);
     double *values[16];
@@ -37,7 +37,7 @@ int cmd_demo(const cli_options *opts)
     for (size_t k = 0; k < nst; k++)
         values[k] = store + k * DEMO_SAMPLES;
     int rc = EXIT_OK;
-    if (demo_generate(opts->seed, DEMO_SAMPLES, time, values) != SLOWSCAN_OK) {
+    if (slowscan_demo_generate(opts->seed, DEMO_SAMPLES, time, values) != SLOWSCAN_OK) {
         cli_error("demo: a simulated station left its stable state (seed %lu); try another --seed",
                   opts->seed);
         rc = EXIT_INTERNAL;

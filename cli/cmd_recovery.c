@@ -78,12 +78,12 @@ static double surrogate_p(const cli_options *opts, const prepared_series *ps, re
 }
 
 /* The crossing of lambda = 0 within twice the record, with its residual-bootstrap interval
- * (ar1_drift_project), one CSV row per series; *projected is filled for the JSON. */
+ * (slowscan_ar1_drift_project), one CSV row per series; *projected is filled for the JSON. */
 static int write_projection(const cli_options *opts, recovery_run *run, const prepared_series *ps,
                             ar1_drift_workspace *ws, const ar1_drift_fit *fit, ar1_projection *pr)
 {
-    gsl_rng_set(run->rng, stream_seed(opts->seed, ps->name, "projection", 0));
-    int st = ar1_drift_project(ws, fit, ps->n, 2.0 * (double)(ps->n - 1),
+    gsl_rng_set(run->rng, slowscan_stream_seed(opts->seed, ps->name, "projection", 0));
+    int st = slowscan_ar1_drift_project(ws, fit, ps->n, 2.0 * (double)(ps->n - 1),
                                (size_t)opts->projection_draws, run->rng, pr);
     if (st == SLOWSCAN_ENOMEM)
         return EXIT_INTERNAL;
@@ -188,25 +188,25 @@ static int project_and_draw(const cli_options *opts, recovery_run *run, const pr
     report_recovery_data data = {ps->name, ps->time_name, ps->n, ps->time, path,
                                  path + ps->n, path + 2 * ps->n, fit->t_a1, p,
                                  drawn ? &crossing : NULL};
-    return cli_figure_draw(run->figures, &report_recovery_figure, &data, "recovery", ps->name);
+    return cli_figure_draw(run->figures, &slowscan_report_recovery_figure, &data, "recovery", ps->name);
 }
 
 static int recovery_series(const cli_options *opts, const prepared_series *ps, void *context)
 {
     recovery_run *run = context;
-    ar1_drift_workspace *ws = ar1_drift_alloc(ps->n);
+    ar1_drift_workspace *ws = slowscan_ar1_drift_alloc(ps->n);
     if (ws)
-        ar1_drift_set_noise_trend(ws, opts->noise_trend);
+        slowscan_ar1_drift_set_noise_trend(ws, opts->noise_trend);
     double *path = malloc(3 * ps->n * sizeof *path);
     ar1_drift_fit fit;
-    int st = ws && path ? (ps->constant ? SLOWSCAN_ECONST : ar1_drift_estimate(ws, ps->residual, ps->n, &fit))
+    int st = ws && path ? (ps->constant ? SLOWSCAN_ECONST : slowscan_ar1_drift_estimate(ws, ps->residual, ps->n, &fit))
                         : SLOWSCAN_ENOMEM;
     int rc = st == SLOWSCAN_ENOMEM ? EXIT_INTERNAL : EXIT_OK;
     double p = NAN;
     if (st == SLOWSCAN_OK && opts->surrogates > 0)
         p = surrogate_p(opts, ps, run, &rc);
     if (st == SLOWSCAN_OK && rc == EXIT_OK) {
-        ar1_drift_path(&fit, ps->n, ps->dt, path, path + ps->n, path + 2 * ps->n);
+        slowscan_ar1_drift_path(&fit, ps->n, ps->dt, path, path + ps->n, path + 2 * ps->n);
         for (size_t i = 0; i < ps->n; i++) {
             cli_put_field(run->out, ps->name);
             for (int c = -1; c < 3; c++) {
@@ -221,7 +221,7 @@ static int recovery_series(const cli_options *opts, const prepared_series *ps, v
                     ps->source, ps->name, slowscan_strerror(st));
     }
     free(path);
-    ar1_drift_free(ws);
+    slowscan_ar1_drift_free(ws);
     return rc;
 }
 

@@ -53,7 +53,7 @@ static int same_method(const detrend_spec *a, const detrend_spec *b)
     return a->method == b->method && a->degree == b->degree;
 }
 
-/* Items must be non-empty, known to detrend_parse_method, and distinct as methods. */
+/* Items must be non-empty, known to slowscan_detrend_parse_method, and distinct as methods. */
 int cli_set_detrends(cli_options *o, const char *n, const char *v)
 {
     o->ndetrends = 0;
@@ -75,7 +75,7 @@ int cli_set_detrends(cli_options *o, const char *n, const char *v)
             memcpy(label, item, len);
             label[len] = '\0';
         }
-        if (!fits || detrend_parse_method(label, &spec) != SLOWSCAN_OK) {
+        if (!fits || slowscan_detrend_parse_method(label, &spec) != SLOWSCAN_OK) {
             cli_error("option %s: unknown method '%.*s' (the methods --detrend takes)", n,
                       (int)len, item);
             return EXIT_BAD_INPUT;
@@ -109,7 +109,7 @@ static method_list grid_methods(const cli_options *opts)
 
 static size_t bandwidths_of(const cli_options *opts, const detrend_spec *spec)
 {
-    return detrend_uses_bandwidth(spec->method) ? opts->nbandwidths : 1;
+    return slowscan_detrend_uses_bandwidth(spec->method) ? opts->nbandwidths : 1;
 }
 
 static int open_outputs(const cli_options *opts, cli_outputs *outs, void *context)
@@ -136,7 +136,7 @@ static void put_row(method_pass *pass, const prepared_series *ps, size_t test, d
     FILE *out = pass->run->out;
     cli_put_field(out, ps->name);
     const char *name = test < pass->opts->nindicators
-                           ? indicator_name(pass->opts->indicators[test]) : "recovery_trend";
+                           ? slowscan_indicator_name(pass->opts->indicators[test]) : "recovery_trend";
     fprintf(out, ",%s,", name);
     cli_put_field(out, pass->label);
     const double cells[] = {window, ps->bandwidth, r->tau, r->statistic, r->p_value};
@@ -205,7 +205,7 @@ static int prepare_bandwidths(const cli_options *opts, const cli_inputs *in, con
     for (size_t b = 0; rc == EXIT_OK && b < nb; b++) {
         cli_options cell = *opts;
         cell.window = opts->windows[0];
-        if (detrend_uses_bandwidth(opts->detrend.method))
+        if (slowscan_detrend_uses_bandwidth(opts->detrend.method))
             cell.bandwidth = opts->bandwidths[b];
         rc = cli_prepare_series(&cell, t, k, &ps[b]);
         if (rc == EXIT_OK && !ps[b].constant)
@@ -258,7 +258,7 @@ static void write_fractions(robustness_run *run, const cli_options *opts, const 
                             const char *name, cell_counts (*counts)[SCREEN_MAX_TESTS])
 {
     for (size_t j = 0; j < trend_test_count(opts); j++) {
-        const char *test = j < opts->nindicators ? indicator_name(opts->indicators[j])
+        const char *test = j < opts->nindicators ? slowscan_indicator_name(opts->indicators[j])
                                                  : "recovery_trend";
         cell_counts all = {0, 0, 0, 0, 0};
         for (size_t i = 0; i < m->count; i++) {
@@ -293,7 +293,7 @@ static void default_cell(const cli_options *opts, const series_table *t, const m
         if (cli_series_window(&cell, t, &w_samples) == EXIT_OK && w_samples == own)
             d->default_window = (long)w;
     }
-    if (!detrend_uses_bandwidth(opts->detrend.method)) {
+    if (!slowscan_detrend_uses_bandwidth(opts->detrend.method)) {
         d->default_bandwidth = 0;
         return;
     }
@@ -319,15 +319,15 @@ static int draw_heat_map(robustness_run *run, const cli_options *opts, const ser
     for (size_t b = 0; b < opts->nbandwidths; b++)
         bandwidths[b] = opts->bandwidths[b].text;
     for (size_t j = 0; j < opts->nindicators; j++)
-        names[j] = indicator_name(opts->indicators[j]);
+        names[j] = slowscan_indicator_name(opts->indicators[j]);
     for (size_t i = 0; i < m->count; i++)
-        has_bandwidth[i] = detrend_uses_bandwidth(m->spec[i].method);
+        has_bandwidth[i] = slowscan_detrend_uses_bandwidth(m->spec[i].method);
     report_robustness_data data = {t->names[k], t->time_name, opts->nwindows, opts->nbandwidths,
                                    windows, bandwidths, opts->nindicators, names, m->count,
                                    m->label, has_bandwidth, grid->tau, grid->p, opts->drift_test,
                                    grid->drift_t, grid->drift_p, -1, -1, -1, opts->surrogates > 0};
     default_cell(opts, t, m, &data);
-    return cli_figure_draw(run->figures, &report_robustness_figure, &data, "robustness", t->names[k]);
+    return cli_figure_draw(run->figures, &slowscan_report_robustness_figure, &data, "robustness", t->names[k]);
 }
 
 /* With --figures: room for every cell of the series (NaN where a method has fewer rows). */

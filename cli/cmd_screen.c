@@ -1,6 +1,6 @@
 /* slowscan screen: the main job, through the screening library (screen.h). For every series:
- * its paths and tests (screen_indicators, screen_test_series) on the series prepared by the
- * shared driver; then q-values and flags (screen_decide) and the summary, one row per series
+ * its paths and tests (slowscan_screen_indicators, slowscan_screen_test_series) on the series prepared by the
+ * shared driver; then q-values and flags (slowscan_screen_decide) and the summary, one row per series
  * x test. This file only turns the results into rows, messages and outputs. */
 #include "cli.h"
 #include "screen.h"
@@ -32,13 +32,13 @@ static int open_outputs(const cli_options *opts, cli_outputs *outs, void *contex
 /* The window of test j in time units; NaN for a test of the whole residual. */
 static double rolling_window(const screen_result *res, size_t j)
 {
-    return screen_test_rolling(res->tests[j].kind) ? res->window : NAN;
+    return slowscan_screen_test_rolling(res->tests[j].kind) ? res->window : NAN;
 }
 
 static screen_row *add_row(screen_run *run)
 {
     void *rows = run->rows;
-    int st = io_reserve(&rows, &run->cap, run->nrows, sizeof *run->rows, 64);
+    int st = slowscan_io_reserve(&rows, &run->cap, run->nrows, sizeof *run->rows, 64);
     run->rows = rows;
     if (st != SLOWSCAN_OK)
         return NULL;
@@ -64,7 +64,7 @@ static int record_series(const prepared_series *ps, screen_run *run, const scree
         /* a constant series was warned about when its paths were made */
         if (isnan(row->result.statistic) && !ps->constant)
             cli_warning("%s: column '%s', indicator %s: %s; flagged insufficient", ps->source,
-                        ps->name, screen_test_name(row->result.kind),
+                        ps->name, slowscan_screen_test_name(row->result.kind),
                         cli_screen_reason(row->result.reason));
         if (run->figures && row->result.null_used > 0 && nulls && nulls[j] &&
             cli_screen_keep_null(row, nulls[j], run->cfg.surrogates) != EXIT_OK)
@@ -153,7 +153,7 @@ static int run_series(const cli_options *opts, const cli_inputs *in, void *conte
     screen_source source = {next_series, NULL, sink.total, &src};
     screen_sink ordered = {put_series, &sink, run->rolling || run->figures};
     screen_batch_failure failure;
-    int st = screen_batch_run(&run->cfg, &source, &ordered, &failure);
+    int st = slowscan_screen_batch_run(&run->cfg, &source, &ordered, &failure);
     int rc = st == SLOWSCAN_OK ? EXIT_OK : refuse(opts, &failure, &sink);
     if (rc == EXIT_OK)
         cli_report_leakage(opts, &sink.leakage);
@@ -168,7 +168,7 @@ static void write_csv(const cli_options *opts, const screen_run *run)
     for (size_t r = 0; r < run->nrows; r++) {
         const screen_row *row = &run->rows[r];
         cli_put_field(run->out, row->series);
-        fprintf(run->out, ",%s,%zu,", screen_test_name(row->result.kind), row->n);
+        fprintf(run->out, ",%s,%zu,", slowscan_screen_test_name(row->result.kind), row->n);
         const double cells[] = {row->window, row->bandwidth, row->result.tau, row->result.statistic,
                                 row->result.p_value, row->q_value};
         for (size_t c = 0; c < sizeof cells / sizeof cells[0]; c++) {
@@ -177,7 +177,7 @@ static void write_csv(const cli_options *opts, const screen_run *run)
         }
         fprintf(run->out, "%s,%ld,%s\n",
                 opts->surrogates > 0 ? cli_null_name(opts) : "none",
-                opts->surrogates, screen_flag_name(row->flag));
+                opts->surrogates, slowscan_screen_flag_name(row->flag));
     }
 }
 
@@ -202,9 +202,9 @@ static void write_table(const screen_run *run)
         const screen_row *row = &run->rows[r];
         char tau[32], p[32], q[32];
         fprintf(run->out, "%-*s  %-14s %9s %10s %10s  %s\n", width, row->series,
-                screen_test_name(row->result.kind),
+                slowscan_screen_test_name(row->result.kind),
                 fixed(tau, row->result.statistic, 3, 1), fixed(p, row->result.p_value, 4, 0),
-                fixed(q, row->q_value, 4, 0), screen_flag_name(row->flag));
+                fixed(q, row->q_value, 4, 0), slowscan_screen_flag_name(row->flag));
     }
 }
 
@@ -218,7 +218,7 @@ static int decide(const cli_options *opts, screen_run *run)
     for (size_t r = 0; st == SLOWSCAN_OK && r < run->nrows; r++)
         tests[r] = &run->rows[r].result;
     if (st == SLOWSCAN_OK)
-        st = screen_decide(tests, run->nrows, opts->fdr, q, flags);
+        st = slowscan_screen_decide(tests, run->nrows, opts->fdr, q, flags);
     for (size_t r = 0; st == SLOWSCAN_OK && r < run->nrows; r++) {
         run->rows[r].q_value = q[r];
         run->rows[r].flag = flags[r];

@@ -28,8 +28,8 @@ static int write_replicates(const cli_options *opts, const prepared_series *ps,
 {
     const char *purpose = cli_null_name(opts);
     for (long j = 0; j < opts->surrogates; j++) {
-        null_trend_stream(run->rng, opts->seed, ps->name, purpose, (size_t)j);
-        int st = surrogate_draw(src, run->rng, run->buffer);
+        slowscan_null_trend_stream(run->rng, opts->seed, ps->name, purpose, (size_t)j);
+        int st = slowscan_surrogate_draw(src, run->rng, run->buffer);
         if (st != SLOWSCAN_OK)
             return st;
         for (size_t i = 0; i < ps->n; i++) {
@@ -53,8 +53,8 @@ static int draw_series(const cli_options *opts, const prepared_series *ps, void 
         return EXIT_OK;
     }
     int st = SLOWSCAN_ENOMEM;
-    surrogate_plan *plan = surrogate_plan_alloc(ps->n, FFTW_ESTIMATE);
-    surrogate_source *src = plan ? surrogate_source_alloc(plan, (surrogate_kind)opts->null_model,
+    surrogate_plan *plan = slowscan_surrogate_plan_alloc(ps->n, FFTW_ESTIMATE);
+    surrogate_source *src = plan ? slowscan_surrogate_source_alloc(plan, (surrogate_kind)opts->null_model,
                                                           ps->null_source, &opts->null_options, &st) : NULL;
     fftw_free(run->buffer);
     run->buffer = fftw_alloc_real(ps->n);
@@ -62,8 +62,8 @@ static int draw_series(const cli_options *opts, const prepared_series *ps, void 
         st = write_replicates(opts, ps, run, src);
     else if (st == SLOWSCAN_OK)
         st = SLOWSCAN_ENOMEM;
-    surrogate_source_free(src);
-    surrogate_plan_free(plan);
+    slowscan_surrogate_source_free(src);
+    slowscan_surrogate_plan_free(plan);
     if (st != SLOWSCAN_OK) {
         cli_error("%s: column '%s': surrogates failed: %s", ps->source, ps->name, slowscan_strerror(st));
         return st == SLOWSCAN_ENOMEM ? EXIT_INTERNAL : EXIT_BAD_INPUT;

@@ -163,7 +163,7 @@ static int set_log(cli_options *o, const char *n, const char *v) { (void)n; (voi
 static int set_detrend(cli_options *o, const char *n, const char *v)
 {
     o->detrend_text = v;
-    if (detrend_parse_method(v, &o->detrend) != SLOWSCAN_OK) {
+    if (slowscan_detrend_parse_method(v, &o->detrend) != SLOWSCAN_OK) {
         cli_error("option %s: unknown method '%s' (gaussian-linear, gaussian, moving, loess, "
                   "linear, poly:K with K from 1 to 12, difference, none)", n, v);
         return EXIT_BAD_INPUT;
@@ -194,7 +194,7 @@ static int set_indicators(cli_options *o, const char *n, const char *v)
             o->drift_test = 1;
             continue;
         }
-        if (indicator_lookup(tok, &kind) != SLOWSCAN_OK) {
+        if (slowscan_indicator_lookup(tok, &kind) != SLOWSCAN_OK) {
             cli_error("option %s: unknown indicator '%s' (variance, sd, cv, skewness, kurtosis, "
                       "lag1, ar1, recovery, redness, spectral_exponent, dfa; recovery_trend in "
                       "screen and robustness)", n, tok);
@@ -299,7 +299,7 @@ static int set_projection_draws(cli_options *o, const char *n, const char *v)
 static int set_null(cli_options *o, const char *n, const char *v)
 {
     surrogate_kind kind;
-    if (surrogate_lookup(v, &kind) == SLOWSCAN_OK) {
+    if (slowscan_surrogate_lookup(v, &kind) == SLOWSCAN_OK) {
         o->null_model = (int)kind;
         o->use_control = 0;
         return EXIT_OK;
@@ -374,7 +374,7 @@ static int set_figures(cli_options *o, const char *n, const char *v) { (void)n; 
 static int set_figure_format(cli_options *o, const char *n, const char *v)
 {
     o->figure_format_text = v;
-    if (report_format_parse(v, &o->figure_format) != SLOWSCAN_OK) {
+    if (slowscan_report_format_parse(v, &o->figure_format) != SLOWSCAN_OK) {
         cli_error("option %s: '%s' is not png, svg or pdf", n, v);
         return EXIT_BAD_INPUT;
     }
@@ -592,5 +592,5 @@ void cli_warning(const char *fmt, ...)
 
 const char *cli_null_name(const cli_options *o)
 {
-    return o->use_control ? "control" : surrogate_name((surrogate_kind)o->null_model);
+    return o->use_control ? "control" : slowscan_surrogate_name((surrogate_kind)o->null_model);
 }

@@ -24,14 +24,14 @@ static int output_clashes(const cli_outputs *outs, const cli_options *opts, cons
     }
     for (size_t f = 0; f <= opts->nfiles; f++) {
         const char *in = f < opts->nfiles ? opts->files[f] : opts->control_file;
-        if (in && (strcmp(path, in) == 0 || io_same_file(path, in))) {
+        if (in && (strcmp(path, in) == 0 || slowscan_io_same_file(path, in))) {
             cli_error("option %s: output %s is an input file; refusing to overwrite it", option, path);
             return 1;
         }
     }
     for (size_t j = 0; j < outs->count; j++) {
         const char *other = outs->files[j].path;
-        if (other && (strcmp(other, path) == 0 || io_same_file(other, path))) {
+        if (other && (strcmp(other, path) == 0 || slowscan_io_same_file(other, path))) {
             cli_error("option %s: output %s is already written by another option", option, path);
             return 1;
         }
@@ -48,7 +48,7 @@ int cli_outputs_open(cli_outputs *outs, const cli_options *opts, const char *pat
         return EXIT_INTERNAL;
     io_error err = {{0}};
     atomic_file *file = &outs->files[outs->count];
-    if (atomic_open(file, path, &err) != SLOWSCAN_OK) {
+    if (slowscan_atomic_open(file, path, &err) != SLOWSCAN_OK) {
         cli_error("option %s: %s", option, err.message);
         return EXIT_BAD_INPUT;
     }
@@ -73,21 +73,21 @@ int cli_outputs_commit(cli_outputs *outs)
         }
     /* Figures first: a figure that cannot be put in place then still aborts every table. */
     io_error err = {{0}};
-    if (rc == EXIT_OK && outs->figures && report_batch_commit(outs->figures, &err) != SLOWSCAN_OK) {
+    if (rc == EXIT_OK && outs->figures && slowscan_report_batch_commit(outs->figures, &err) != SLOWSCAN_OK) {
         cli_error("option --figures: %s", err.message);
         rc = EXIT_BAD_INPUT;
     }
     for (size_t j = 0; j < outs->count; j++) {
         io_error commit_err = {{0}};
         if (rc != EXIT_OK) {
-            atomic_abort(&outs->files[j]);
-        } else if (atomic_commit(&outs->files[j], &commit_err) != SLOWSCAN_OK) {
+            slowscan_atomic_abort(&outs->files[j]);
+        } else if (slowscan_atomic_commit(&outs->files[j], &commit_err) != SLOWSCAN_OK) {
             cli_error("%s", commit_err.message);
             rc = EXIT_BAD_INPUT;
         }
     }
     outs->count = 0;
-    report_batch_free(outs->figures);
+    slowscan_report_batch_free(outs->figures);
     outs->figures = NULL;
     return rc;
 }
@@ -95,9 +95,9 @@ int cli_outputs_commit(cli_outputs *outs)
 void cli_outputs_abort(cli_outputs *outs)
 {
     for (size_t j = 0; j < outs->count; j++)
-        atomic_abort(&outs->files[j]);
+        slowscan_atomic_abort(&outs->files[j]);
     outs->count = 0;
-    report_batch_free(outs->figures); /* removes every figure drawn so far */
+    slowscan_report_batch_free(outs->figures); /* removes every figure drawn so far */
     outs->figures = NULL;
 }
 
@@ -107,7 +107,7 @@ int cli_figures_open(cli_outputs *outs, const cli_options *opts, report_batch **
     if (!opts->figures_dir)
         return EXIT_OK;
     io_error err = {{0}};
-    int st = report_batch_open(&outs->figures, opts->figures_dir, opts->figure_format, &err);
+    int st = slowscan_report_batch_open(&outs->figures, opts->figures_dir, opts->figure_format, &err);
     if (st != SLOWSCAN_OK) {
         cli_error("option --figures: %s", err.message);
         return st == SLOWSCAN_ENOMEM ? EXIT_INTERNAL : EXIT_BAD_INPUT;
@@ -120,7 +120,7 @@ int cli_figure_draw(report_batch *figures, const report_figure_type *type, const
                     const char *prefix, const char *name)
 {
     io_error err = {{0}};
-    int st = report_batch_draw(figures, type, data, prefix, name, &err);
+    int st = slowscan_report_batch_draw(figures, type, data, prefix, name, &err);
     if (st == SLOWSCAN_OK)
         return EXIT_OK;
     cli_error("option --figures: %s", err.message);
@@ -289,12 +289,12 @@ void cli_write_rolling(FILE *fp, const cli_options *opts, const prepared_series 
 {
     screen_config cfg;
     cli_screen_config(opts, &cfg);
-    rolling_spec spec = screen_rolling_spec(&cfg, ps);
+    rolling_spec spec = slowscan_screen_rolling_spec(&cfg, ps);
     for (size_t j = 0; j < opts->nindicators; j++) {
-        const char *name = indicator_name(opts->indicators[j]);
+        const char *name = slowscan_indicator_name(opts->indicators[j]);
         /* Only the windows evaluated on the indicator's step have a row; an evaluated window
          * whose value is undefined is NA, as at step 1. */
-        size_t step = rolling_step(&spec, opts->indicators[j], ps->n);
+        size_t step = slowscan_rolling_step(&spec, opts->indicators[j], ps->n);
         for (size_t i = ps->window - 1; i < ps->n; i++) {
             if (!rolling_evaluated(step, ps->n, i))
                 continue;

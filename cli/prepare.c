@@ -28,16 +28,16 @@ static int ready_table(const cli_options *opts, series_table *t)
     io_error err = {{0}};
     int st;
     if (!isnan(opts->from) || !isnan(opts->until))
-        if ((st = table_select_span(t, opts->from, opts->until, &err)) != SLOWSCAN_OK)
+        if ((st = slowscan_table_select_span(t, opts->from, opts->until, &err)) != SLOWSCAN_OK)
             return io_fail(st, &err);
     double dt;
     if (!isnan(opts->resample))
-        st = table_resample(t, opts->resample, &err);
+        st = slowscan_table_resample(t, opts->resample, &err);
     else
-        st = table_check_grid(t, &dt, &err);
+        st = slowscan_table_check_grid(t, &dt, &err);
     if (st != SLOWSCAN_OK)
         return io_fail(st, &err);
-    if (opts->log_values && (st = table_log(t, &err)) != SLOWSCAN_OK)
+    if (opts->log_values && (st = slowscan_table_log(t, &err)) != SLOWSCAN_OK)
         return io_fail(st, &err);
     if (t->n < MIN_ROWS) {
         cli_error("%s: %zu samples in the analysed span; at least %d are needed", shown(t->source), t->n,
@@ -52,14 +52,14 @@ static int ready_table(const cli_options *opts, series_table *t)
 static int load_control(const cli_options *opts, cli_inputs *in)
 {
     for (size_t f = 0; f < opts->nfiles; f++)
-        if (io_same_file(opts->control_file, opts->files[f])) {
+        if (slowscan_io_same_file(opts->control_file, opts->files[f])) {
             cli_error("option --control: %s is also an input; a control run must be another file",
                       opts->control_file);
             return EXIT_BAD_INPUT;
         }
     csv_read_options ro = {opts->time_column, opts->vars};
     io_error err = {{0}};
-    int st = csv_read_table(opts->control_file, &ro, &in->control, &err);
+    int st = slowscan_csv_read_table(opts->control_file, &ro, &in->control, &err);
     if (st != SLOWSCAN_OK) {
         cli_error("option --control: %s", err.message);
         return st == SLOWSCAN_ENOMEM ? EXIT_INTERNAL : EXIT_BAD_INPUT;
@@ -79,12 +79,12 @@ int cli_inputs_load(const cli_options *opts, cli_inputs *in)
     csv_read_options ro = {opts->time_column, opts->vars};
     for (size_t f = 0; f < opts->nfiles; f++) {
         for (size_t g = 0; g < f; g++)
-            if (strcmp(opts->files[f], opts->files[g]) == 0 || io_same_file(opts->files[f], opts->files[g])) {
+            if (strcmp(opts->files[f], opts->files[g]) == 0 || slowscan_io_same_file(opts->files[f], opts->files[g])) {
                 cli_error("%s: the same input is given twice", opts->files[f]);
                 return EXIT_BAD_INPUT;
             }
         io_error err = {{0}};
-        int st = csv_read_table(opts->files[f], &ro, &in->tables[f], &err);
+        int st = slowscan_csv_read_table(opts->files[f], &ro, &in->tables[f], &err);
         in->ntables = f + 1;
         if (st != SLOWSCAN_OK)
             return io_fail(st, &err);
@@ -98,9 +98,9 @@ int cli_inputs_load(const cli_options *opts, cli_inputs *in)
 void cli_inputs_free(cli_inputs *in)
 {
     if (in->has_control)
-        series_table_free(&in->control);
+        slowscan_series_table_free(&in->control);
     for (size_t f = 0; f < in->ntables; f++)
-        series_table_free(&in->tables[f]);
+        slowscan_series_table_free(&in->tables[f]);
     free(in->tables);
     memset(in, 0, sizeof *in);
 }
@@ -118,7 +118,7 @@ int cli_series_window(const cli_options *o, const series_table *t, size_t *windo
     screen_config cfg;
     cli_screen_config(o, &cfg);
     screen_detail d;
-    int st = screen_window(&cfg, t->n, t->time[t->n - 1] - t->time[0], window, &d);
+    int st = slowscan_screen_window(&cfg, t->n, t->time[t->n - 1] - t->time[0], window, &d);
     if (st == SLOWSCAN_OK)
         return EXIT_OK;
     prepared_series named = {.name = "", .source = shown(t->source)};
@@ -132,14 +132,14 @@ int cli_prepare_series(const cli_options *o, const series_table *t, size_t k, pr
     screen_input in = {t->names[k], shown(t->source), t->time_name, t->time, t->values[k], t->n,
                        NULL};
     screen_detail d;
-    if (screen_prepare(&cfg, &in, ps, &d) == SLOWSCAN_OK)
+    if (slowscan_screen_prepare(&cfg, &in, ps, &d) == SLOWSCAN_OK)
         return EXIT_OK;
     return cli_screen_refuse(o, ps, &d);
 }
 
 void cli_prepared_free(prepared_series *ps)
 {
-    screen_prepared_free(ps);
+    slowscan_screen_prepared_free(ps);
 }
 
 void cli_indicator_values_free(const cli_options *o, double **values)
@@ -154,12 +154,12 @@ int cli_indicator_values(const cli_options *o, const prepared_series *ps, double
 {
     for (size_t j = 0; j < o->nindicators; j++)
         values[j] = malloc(ps->n * sizeof(double));
-    screen_workspace *ws = screen_workspace_alloc(1);
+    screen_workspace *ws = slowscan_screen_workspace_alloc(1);
     int missing = !ws;
     for (size_t j = 0; j < o->nindicators; j++)
         missing |= !values[j];
     if (missing) {
-        screen_workspace_free(ws);
+        slowscan_screen_workspace_free(ws);
         cli_error("out of memory");
         return EXIT_INTERNAL;
     }
@@ -168,11 +168,11 @@ int cli_indicator_values(const cli_options *o, const prepared_series *ps, double
     screen_warning warning;
     screen_detail d;
     int warned, rc = EXIT_OK;
-    if (screen_indicators(ws, &cfg, ps, values, &warning, &warned, &d) != SLOWSCAN_OK)
+    if (slowscan_screen_indicators(ws, &cfg, ps, values, &warning, &warned, &d) != SLOWSCAN_OK)
         rc = cli_screen_refuse(o, ps, &d);
     else if (warned)
         cli_screen_warn(o, ps, &warning);
-    screen_workspace_free(ws);
+    slowscan_screen_workspace_free(ws);
     return rc;
 }
 
@@ -228,7 +228,7 @@ int cli_attach_control(const cli_options *o, const cli_inputs *in, prepared_seri
     screen_config cfg;
     cli_screen_config(o, &cfg);
     screen_detail d;
-    if (screen_attach_control(&cfg, ps, &control, &d) == SLOWSCAN_OK)
+    if (slowscan_screen_attach_control(&cfg, ps, &control, &d) == SLOWSCAN_OK)
         return EXIT_OK;
     return cli_control_refuse(o, &control, ps, &d);
 }

@@ -41,8 +41,8 @@ int cli_screen_keep_null(screen_row *row, const double *null, size_t m)
 
 static report_series_test test_of(const screen_row *row, const double *path)
 {
-    int drift = !screen_test_rolling(row->result.kind);
-    report_series_test t = {screen_test_name(row->result.kind), drift ? "t(a1)" : "tau", path, row->result.statistic,
+    int drift = !slowscan_screen_test_rolling(row->result.kind);
+    report_series_test t = {slowscan_screen_test_name(row->result.kind), drift ? "t(a1)" : "tau", path, row->result.statistic,
                             row->result.p_value, row->q_value, 0, NAN, NAN, NULL};
     if (row->null_hist) {
         t.nbins = gsl_histogram_bins(row->null_hist);
@@ -56,7 +56,7 @@ static report_series_test test_of(const screen_row *row, const double *path)
 static int draw_series(const cli_options *opts, const prepared_series *ps, void *context)
 {
     screen_run *run = context;
-    size_t tests = screen_test_count(&run->cfg), first = run->figure_series++ * tests;
+    size_t tests = slowscan_screen_test_count(&run->cfg), first = run->figure_series++ * tests;
     if (first + tests > run->nrows || strcmp(run->rows[first].series, ps->name) != 0) {
         cli_error("internal error: screen figures out of step with the summary at '%s'", ps->name);
         return EXIT_INTERNAL;
@@ -72,7 +72,7 @@ static int draw_series(const cli_options *opts, const prepared_series *ps, void 
     report_series_data data = {ps->name, ps->time_name, ps->source, ps->n, ps->time, ps->value,
                                ps->trend, ps->residual, ps->window, list, tests};
     if (rc == EXIT_OK)
-        rc = cli_figure_draw(run->figures, &report_series_figure, &data, "screen", ps->name);
+        rc = cli_figure_draw(run->figures, &slowscan_report_series_figure, &data, "screen", ps->name);
     if (!ps->constant)
         cli_indicator_values_free(opts, values);
     return rc;
@@ -80,10 +80,10 @@ static int draw_series(const cli_options *opts, const prepared_series *ps, void 
 
 static int draw_overview(const cli_options *opts, const screen_run *run)
 {
-    size_t tests = screen_test_count(&run->cfg);
+    size_t tests = slowscan_screen_test_count(&run->cfg);
     const char *labels[SCREEN_MAX_TESTS], *stats[SCREEN_MAX_TESTS];
     for (size_t j = 0; j < tests; j++) {
-        labels[j] = screen_test_name(run->rows[j].result.kind);
+        labels[j] = slowscan_screen_test_name(run->rows[j].result.kind);
         stats[j] = j < opts->nindicators ? "Kendall tau" : "t(a1)";
     }
     report_overview_point *points = malloc((run->nrows + 1) * sizeof *points);
@@ -98,7 +98,7 @@ static int draw_overview(const cli_options *opts, const screen_run *run)
                                                           row->flag == SCREEN_FLAG_FALLING};
     }
     report_overview_data data = {labels, stats, tests, points, run->nrows, opts->fdr};
-    int rc = cli_figure_draw(run->figures, &report_overview_figure, &data, "", "screen-overview");
+    int rc = cli_figure_draw(run->figures, &slowscan_report_overview_figure, &data, "", "screen-overview");
     free(points);
     return rc;
 }

@@ -95,7 +95,7 @@ static void write_row(FILE *fp, const screen_row *row)
 {
     fputs("    {\"series\": ", fp);
     cli_json_string(fp, row->series);
-    fprintf(fp, ", \"indicator\": \"%s\", \"n\": %zu", screen_test_name(row->result.kind), row->n);
+    fprintf(fp, ", \"indicator\": \"%s\", \"n\": %zu", slowscan_screen_test_name(row->result.kind), row->n);
     const struct { const char *key; double v; } cells[] = {
         {"window", row->window}, {"bandwidth", row->bandwidth}, {"tau", row->result.tau},
         {"statistic", row->result.statistic},
@@ -104,7 +104,7 @@ static void write_row(FILE *fp, const screen_row *row)
         fprintf(fp, ", \"%s\": ", cells[k].key);
         cli_json_number(fp, cells[k].v);
     }
-    fprintf(fp, ", \"flag\": \"%s\", \"deseason_harmonics\": ", screen_flag_name(row->flag));
+    fprintf(fp, ", \"flag\": \"%s\", \"deseason_harmonics\": ", slowscan_screen_flag_name(row->flag));
     /* the cycle removed from this series: null none, 0 the mean cycle, K harmonics */
     row->harmonics < 0 ? (void)fputs("null", fp) : (void)fprintf(fp, "%d", row->harmonics);
     /* recovery_trend: the statistic is t(a1) with the HC3 standard error; this one uses the

@@ -24,13 +24,13 @@ static void append_name(char *text, size_t size, const char *name)
 void cli_science_defaults(const char *command, cli_options *o)
 {
     static char bandwidth_text[32], window_text[32], indicators_text[128];
-    screen_config c = screen_config_default();
+    screen_config c = slowscan_screen_config_default();
     memset(o, 0, sizeof *o);
     o->command = command;
     o->from = o->until = o->resample = NAN;
     o->deseason = c.deseason;
     o->detrend = c.detrend;
-    o->detrend_text = detrend_method_name(c.detrend.method);
+    o->detrend_text = slowscan_detrend_method_name(c.detrend.method);
     o->bandwidth = (cli_length){c.bandwidth.amount, c.bandwidth.percent,
                                 default_length_text(&c.bandwidth, bandwidth_text)};
     o->window = (cli_length){c.window.amount, c.window.percent,
@@ -38,14 +38,14 @@ void cli_science_defaults(const char *command, cli_options *o)
     indicators_text[0] = 0;
     for (size_t j = 0; j < c.nindicators; j++) {
         o->indicators[j] = c.indicators[j];
-        append_name(indicators_text, sizeof indicators_text, indicator_name(c.indicators[j]));
+        append_name(indicators_text, sizeof indicators_text, slowscan_indicator_name(c.indicators[j]));
     }
     o->nindicators = c.nindicators;
     o->indicators_text = indicators_text;
     if (strcmp(command, "screen") == 0 && c.drift_test) { /* joins screen's default set only */
         o->drift_test = 1;
         append_name(indicators_text, sizeof indicators_text,
-                    screen_test_name(SCREEN_TEST_RECOVERY_TREND));
+                    slowscan_screen_test_name(SCREEN_TEST_RECOVERY_TREND));
     }
     o->min_coverage = c.min_coverage;
     o->recovery = c.recovery;
@@ -63,7 +63,7 @@ void cli_science_defaults(const char *command, cli_options *o)
 
 void cli_screen_config(const cli_options *o, screen_config *cfg)
 {
-    *cfg = screen_config_default();
+    *cfg = slowscan_screen_config_default();
     cfg->detrend = o->detrend;
     cfg->bandwidth = (screen_length){o->bandwidth.amount, o->bandwidth.percent};
     cfg->deseason = o->deseason;
@@ -162,7 +162,7 @@ static int refuse_rolling(const cli_options *o, const prepared_series *ps, const
     case SCREEN_RULE_WINDOW_INDICATOR:
         cli_error("%s: option --window %s gives %zu samples per window; %s needs at least %zu",
                   ps->source, o->window.text, d->count,
-                  indicator_name((indicator_kind)d->indicator), d->need);
+                  slowscan_indicator_name((indicator_kind)d->indicator), d->need);
         break;
     case SCREEN_RULE_BAND_NYQUIST:
         cli_error("%s: option --band %s is outside (0, %.12g]: the Nyquist frequency of time "

@@ -1,5 +1,5 @@
 /* The trend test every analysing command shares (screen, robustness, recovery): the
- * screening library's statistics and surrogate null (screen_test_series) with its warnings
+ * screening library's statistics and surrogate null (slowscan_screen_test_series) with its warnings
  * and refusals printed in the command's words. The tester keeps the library's workspace (all
  * that is sized by the series length) between series. */
 #ifndef SLOWSCAN_CLI_TREND_TEST_H

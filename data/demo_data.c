@@ -19,11 +19,11 @@ static const demo_station stations[] = {
     {"spring_head",  0.30,   0.30,  10.0,  0.0},
 };
 
-size_t demo_station_count(void) { return sizeof stations / sizeof stations[0]; }
+size_t slowscan_demo_station_count(void) { return sizeof stations / sizeof stations[0]; }
 
-const demo_station *demo_station_get(size_t k)
+const demo_station *slowscan_demo_station_get(size_t k)
 {
-    return k < demo_station_count() ? &stations[k] : NULL;
+    return k < slowscan_demo_station_count() ? &stations[k] : NULL;
 }
 
 /* Dynamics run in weeks (one sample per week) with a lake response time of TAU weeks:
@@ -56,7 +56,7 @@ static int simulate_station(const demo_station *s, gsl_rng *rng, size_t n, doubl
     return SLOWSCAN_OK;
 }
 
-int demo_generate(unsigned long seed, size_t n, double *time, double **values)
+int slowscan_demo_generate(unsigned long seed, size_t n, double *time, double **values)
 {
     if (n < 8)
         return SLOWSCAN_EINVAL;
@@ -66,7 +66,7 @@ int demo_generate(unsigned long seed, size_t n, double *time, double **values)
     for (size_t i = 0; i < n; i++)
         time[i] = DEMO_STEP_DAYS * (double)i;
     int status = SLOWSCAN_OK;
-    for (size_t k = 0; k < demo_station_count() && status == SLOWSCAN_OK; k++) {
+    for (size_t k = 0; k < slowscan_demo_station_count() && status == SLOWSCAN_OK; k++) {
         /* One stream per station, so adding a station never changes the others. */
         gsl_rng_set(rng, seed * 1000003UL + k);
         status = simulate_station(&stations[k], rng, n, values[k]);

@@ -32,7 +32,7 @@
 #define PERIOD_REL_TOL 1e-6 /* period/dt this close to an integer counts as whole */
 #define LENGTH_REL_TOL 1e-9 /* window lengths compared in time units */
 
-deseason_spec detrend_deseason_default(void)
+deseason_spec slowscan_detrend_deseason_default(void)
 {
     return (deseason_spec){0.0, 0, 0.0};
 }
@@ -61,7 +61,7 @@ static deseason_problem find_problem(const deseason_spec *s, double dt, size_t n
     return DESEASON_FINE;
 }
 
-int detrend_deseason_check(const deseason_spec *spec, double dt, size_t n,
+int slowscan_detrend_deseason_check(const deseason_spec *spec, double dt, size_t n,
                            deseason_problem *problem, int *harmonics)
 {
     int k = 0;
@@ -221,10 +221,10 @@ static int harmonic_sweep(int k, double steps, size_t m, const double *d, size_t
     return status;
 }
 
-int detrend_deseason_apply(const deseason_spec *spec, double dt, double *x, size_t n)
+int slowscan_detrend_deseason_apply(const deseason_spec *spec, double dt, double *x, size_t n)
 {
     int k = 0;
-    if ((!x && n > 0) || detrend_deseason_check(spec, dt, n, NULL, &k) != SLOWSCAN_OK)
+    if ((!x && n > 0) || slowscan_detrend_deseason_check(spec, dt, n, NULL, &k) != SLOWSCAN_OK)
         return SLOWSCAN_EINVAL;
     double steps = spec->period / dt;
     size_t m = (size_t)round(steps);

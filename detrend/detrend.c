@@ -1,5 +1,5 @@
 /* slowscan detrend — method names, argument checks, the detrend workspace and the dispatch
- * of detrend_apply_with (detrend_apply is alloc + apply + free).
+ * of slowscan_detrend_apply_with (slowscan_detrend_apply is alloc + apply + free).
  *
  * The per-method files compute a trend only, from what the workspace keeps for them;
  * everything every method shares (validation, the finite-sample count, the residual rule
@@ -49,7 +49,7 @@ static int parse_degree(const char *digits, int *degree)
     return SLOWSCAN_OK;
 }
 
-int detrend_parse_method(const char *text, detrend_spec *spec)
+int slowscan_detrend_parse_method(const char *text, detrend_spec *spec)
 {
     if (!text || !spec)
         return SLOWSCAN_EINVAL;
@@ -72,12 +72,12 @@ int detrend_parse_method(const char *text, detrend_spec *spec)
     return SLOWSCAN_EINVAL;
 }
 
-const char *detrend_method_name(detrend_method method)
+const char *slowscan_detrend_method_name(detrend_method method)
 {
     return method_valid(method) ? method_names[method] : "unknown";
 }
 
-int detrend_uses_bandwidth(detrend_method method)
+int slowscan_detrend_uses_bandwidth(detrend_method method)
 {
     return method == DETREND_GAUSSIAN || method == DETREND_GAUSSIAN_LINEAR ||
            method == DETREND_MOVING || method == DETREND_LOESS;
@@ -118,7 +118,7 @@ static int check_spec(const detrend_spec *spec, double dt)
         return SLOWSCAN_EINVAL;
     if (!(dt > 0.0) || !isfinite(dt))
         return SLOWSCAN_EINVAL;
-    if (detrend_uses_bandwidth(spec->method) &&
+    if (slowscan_detrend_uses_bandwidth(spec->method) &&
         (!(spec->bandwidth > 0.0) || !isfinite(spec->bandwidth)))
         return SLOWSCAN_EINVAL;
     if (spec->method == DETREND_POLY &&
@@ -145,7 +145,7 @@ struct detrend_workspace {
     detrend_loess_ws *loess;
 };
 
-void detrend_workspace_free(detrend_workspace *ws)
+void slowscan_detrend_workspace_free(detrend_workspace *ws)
 {
     if (!ws)
         return;
@@ -155,7 +155,7 @@ void detrend_workspace_free(detrend_workspace *ws)
     free(ws);
 }
 
-/* detrend_workspace_alloc with the reason for a NULL in *status (for detrend_apply). */
+/* slowscan_detrend_workspace_alloc with the reason for a NULL in *status (for slowscan_detrend_apply). */
 static detrend_workspace *workspace_make(const detrend_spec *spec, double dt, size_t n,
                                          int *status)
 {
@@ -182,13 +182,13 @@ static detrend_workspace *workspace_make(const detrend_spec *spec, double dt, si
     else if (spec->method == DETREND_LOESS)
         ws->loess = detrend_loess_alloc(spec->bandwidth, dt, n, status);
     if (*status != SLOWSCAN_OK) {
-        detrend_workspace_free(ws);
+        slowscan_detrend_workspace_free(ws);
         return NULL;
     }
     return ws;
 }
 
-detrend_workspace *detrend_workspace_alloc(const detrend_spec *spec, double dt, size_t n)
+detrend_workspace *slowscan_detrend_workspace_alloc(const detrend_spec *spec, double dt, size_t n)
 {
     int status;
     return workspace_make(spec, dt, n, &status);
@@ -214,7 +214,7 @@ static int compute_trend(detrend_workspace *ws, const double *x, size_t n, doubl
     return SLOWSCAN_EINVAL;
 }
 
-/* Checks that need the data, in the order detrend_apply has always made them. */
+/* Checks that need the data, in the order slowscan_detrend_apply has always made them. */
 static int check_data(const detrend_spec *spec, const double *x, size_t n)
 {
     if (!x && n > 0)
@@ -230,7 +230,7 @@ static int check_data(const detrend_spec *spec, const double *x, size_t n)
 /* The trend goes to the workspace's buffer first so that `trend` or `residual` may alias `x`
  * (in-place detrending): the residual is formed element by element before `trend` is
  * written. */
-int detrend_apply_with(detrend_workspace *ws, const double *x, size_t n, double *trend,
+int slowscan_detrend_apply_with(detrend_workspace *ws, const double *x, size_t n, double *trend,
                        double *residual)
 {
     if (!ws || n > ws->n)
@@ -250,7 +250,7 @@ int detrend_apply_with(detrend_workspace *ws, const double *x, size_t n, double 
 
 /* The data are checked before the workspace is made so that the status codes stay those of
  * the checks (ESHORT for a series too short, not a failed allocation). */
-int detrend_apply(const detrend_spec *spec, double dt, const double *x, size_t n,
+int slowscan_detrend_apply(const detrend_spec *spec, double dt, const double *x, size_t n,
                   double *trend, double *residual)
 {
     int status = check_spec(spec, dt);
@@ -260,7 +260,7 @@ int detrend_apply(const detrend_spec *spec, double dt, const double *x, size_t n
         return status;
     detrend_workspace *ws = workspace_make(spec, dt, n, &status);
     if (ws)
-        status = detrend_apply_with(ws, x, n, trend, residual);
-    detrend_workspace_free(ws);
+        status = slowscan_detrend_apply_with(ws, x, n, trend, residual);
+    slowscan_detrend_workspace_free(ws);
     return status;
 }

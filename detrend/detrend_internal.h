@@ -40,7 +40,7 @@ typedef struct {
 
 /* The plans, the kernel's transforms (powers 0..max_power) and the buffers of the sums for
  * series of up to n samples with zero padding to N >= n + h. This is where the module plans
- * FFTs, so it is called only from detrend_workspace_alloc. NULL with *status
+ * FFTs, so it is called only from slowscan_detrend_workspace_alloc. NULL with *status
  * SLOWSCAN_ENOMEM (also for N beyond FFTW's int sizes) or SLOWSCAN_ENUMERIC. */
 typedef struct detrend_kernel_fft detrend_kernel_fft;
 detrend_kernel_fft *detrend_kernel_fft_alloc(const detrend_kernel *k, size_t n, int max_power,

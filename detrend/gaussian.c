@@ -22,7 +22,7 @@
  *
  * What depends only on the kernel and the length -- the weights, the plans, the kernel's
  * transforms and, for a gap-free series, the sums S0 S1 S2 of its all-ones mask -- is made
- * once in a detrend_gauss_ws (by detrend_workspace_alloc); each series then costs the
+ * once in a detrend_gauss_ws (by slowscan_detrend_workspace_alloc); each series then costs the
  * transform of its centred data and two or five inverse transforms (five when it has gaps,
  * whose mask must be transformed too).
  *

@@ -66,7 +66,7 @@ static void edge_test(const double *r, size_t first, size_t edge, double sd, dou
     out->p = 2.0 * gsl_cdf_ugaussian_Q(fabs(out->z));
 }
 
-int detrend_leakage_test(const double *residual, size_t n, size_t edge, double level,
+int slowscan_detrend_leakage_test(const double *residual, size_t n, size_t edge, double level,
                          detrend_leakage *out)
 {
     if (!residual || !out || edge < 2 || edge > n || !(level > 0 && level < 1))

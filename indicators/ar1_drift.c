@@ -8,7 +8,7 @@
 #include <stdlib.h>
 
 
-void ar1_drift_free(ar1_drift_workspace *ws)
+void slowscan_ar1_drift_free(ar1_drift_workspace *ws)
 {
     if (!ws)
         return;
@@ -29,7 +29,7 @@ void ar1_drift_free(ar1_drift_workspace *ws)
     free(ws);
 }
 
-ar1_drift_workspace *ar1_drift_alloc(size_t nmax)
+ar1_drift_workspace *slowscan_ar1_drift_alloc(size_t nmax)
 {
     if (nmax < 2)
         return NULL;
@@ -45,7 +45,7 @@ ar1_drift_workspace *ar1_drift_alloc(size_t nmax)
     ws->s = gsl_vector_alloc(nmax - 1);
     ws->weight = gsl_vector_alloc(nmax - 1);
     if (!ws->design || !ws->response || !ws->coef || !ws->cov || !ws->lw || !ws->s || !ws->weight) {
-        ar1_drift_free(ws);
+        slowscan_ar1_drift_free(ws);
         return NULL;
     }
     return ws;
@@ -69,7 +69,7 @@ static size_t fill_design(ar1_drift_workspace *ws, const double *x, size_t n)
     return m;
 }
 
-void ar1_drift_set_noise_trend(ar1_drift_workspace *ws, int noise_trend)
+void slowscan_ar1_drift_set_noise_trend(ar1_drift_workspace *ws, int noise_trend)
 {
     ws->noise_trend = noise_trend != 0;
 }
@@ -145,7 +145,7 @@ static int noise_trend_refit(ar1_drift_workspace *ws, const gsl_matrix *X, const
     return rank < 3 ? SLOWSCAN_ECONST : SLOWSCAN_OK;
 }
 
-int ar1_drift_estimate(ar1_drift_workspace *ws, const double *x, size_t n, ar1_drift_fit *fit)
+int slowscan_ar1_drift_estimate(ar1_drift_workspace *ws, const double *x, size_t n, ar1_drift_fit *fit)
 {
     if (n > ws->nmax || n < 2)
         return SLOWSCAN_EINVAL;
@@ -187,7 +187,7 @@ int ar1_drift_estimate(ar1_drift_workspace *ws, const double *x, size_t n, ar1_d
     return SLOWSCAN_OK;
 }
 
-void ar1_drift_path(const ar1_drift_fit *fit, size_t n, double dt, double *lambda, double *lo,
+void slowscan_ar1_drift_path(const ar1_drift_fit *fit, size_t n, double dt, double *lambda, double *lo,
                     double *hi)
 {
     double v0 = fit->se_a0 * fit->se_a0, v1 = fit->se_a1 * fit->se_a1;

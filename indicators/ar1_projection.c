@@ -32,7 +32,7 @@ static void bootstrap_design(const ar1_drift_workspace *ws, const ar1_drift_fit 
 {
     size_t m = fit->pairs;
     double inverse[3][3], b[3] = {fit->a0, fit->a1, fit->c}, mean = 0;
-    /* GSL's covariance is sigma2 (X'WX)^-1 (scaled so by ar1_drift_estimate under WLS too). */
+    /* GSL's covariance is sigma2 (X'WX)^-1 (scaled so by slowscan_ar1_drift_estimate under WLS too). */
     for (size_t i = 0; i < 3; i++)
         for (size_t j = 0; j < 3; j++)
             inverse[i][j] = gsl_matrix_get(ws->cov, i, j) / fit->sigma2;
@@ -84,7 +84,7 @@ static void draw_crossings(const ar1_drift_fit *fit, size_t n, double horizon, c
     }
 }
 
-int ar1_drift_project(ar1_drift_workspace *ws, const ar1_drift_fit *fit, size_t n, double horizon,
+int slowscan_ar1_drift_project(ar1_drift_workspace *ws, const ar1_drift_fit *fit, size_t n, double horizon,
                       size_t draws, gsl_rng *rng, ar1_projection *out)
 {
     if (draws < 1 || fit->pairs < 8 || n < 2 || !(fit->sigma2 > 0))

@@ -41,7 +41,7 @@ int dfa_design_init(dfa_design *d, size_t window)
 {
     *d = (dfa_design){0, NULL, NULL, NULL};
     if (window < DFA_MIN_WINDOW)
-        return SLOWSCAN_OK; /* no dfa at this W; rolling_compute refuses it */
+        return SLOWSCAN_OK; /* no dfa at this W; slowscan_rolling_compute refuses it */
     size_t smax = window / 4, cap = (size_t)(SIZES_PER_OCTAVE * log2((double)smax)) + 2;
     d->sizes = malloc(cap * sizeof *d->sizes);
     d->box_sxx = malloc(cap * sizeof *d->box_sxx);

@@ -34,12 +34,12 @@ static int valid(indicator_kind kind)
     return (unsigned)kind < (unsigned)INDICATOR_COUNT;
 }
 
-const char *indicator_name(indicator_kind kind)
+const char *slowscan_indicator_name(indicator_kind kind)
 {
     return valid(kind) ? table[kind].name : NULL;
 }
 
-int indicator_lookup(const char *name, indicator_kind *kind)
+int slowscan_indicator_lookup(const char *name, indicator_kind *kind)
 {
     if (!name || !kind)
         return SLOWSCAN_EINVAL;
@@ -51,22 +51,22 @@ int indicator_lookup(const char *name, indicator_kind *kind)
     return SLOWSCAN_EINVAL;
 }
 
-int indicator_direction(indicator_kind kind)
+int slowscan_indicator_direction(indicator_kind kind)
 {
     return valid(kind) ? table[kind].direction : 0;
 }
 
-int indicator_needs_level(indicator_kind kind)
+int slowscan_indicator_needs_level(indicator_kind kind)
 {
     return valid(kind) ? table[kind].needs_level : 0;
 }
 
-int indicator_per_window(indicator_kind kind)
+int slowscan_indicator_per_window(indicator_kind kind)
 {
     return valid(kind) ? table[kind].per_window : 0;
 }
 
-size_t indicator_min_window(indicator_kind kind)
+size_t slowscan_indicator_min_window(indicator_kind kind)
 {
     return valid(kind) ? table[kind].min_window : 0;
 }

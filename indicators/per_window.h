@@ -1,7 +1,7 @@
 /* Private to indicators/: the per-window indicators (redness, spectral_exponent, dfa) and the
  * plan they share. Everything that depends only on the window length — the FFTW plan, the
  * taper, the frequency bins, the regression weights, DFA's box sizes — is computed once in
- * rolling_plan_alloc; evaluating a window then costs one r2c (or one profile) and sums. */
+ * slowscan_rolling_plan_alloc; evaluating a window then costs one r2c (or one profile) and sums. */
 #ifndef SLOWSCAN_INDICATORS_PER_WINDOW_H
 #define SLOWSCAN_INDICATORS_PER_WINDOW_H
 
@@ -19,7 +19,7 @@ typedef struct {
 
 struct rolling_plan {
     size_t window;
-    double dt, band_lo, band_hi; /* as made (rolling_plan_matches) */
+    double dt, band_lo, band_hi; /* as made (slowscan_rolling_plan_matches) */
     fftw_plan r2c;      /* length W, executed on scratch arrays (new-array execute) */
     double *taper;      /* W: periodic Hann */
     size_t npos;        /* positive frequencies, k = 1 .. floor(W/2) */

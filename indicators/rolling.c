@@ -123,7 +123,7 @@ static int per_window_ready(const rolling_spec *spec, indicator_kind kind)
     const rolling_plan *plan = spec->plan;
     if (!plan || plan->window != spec->window || plan->dt != spec->dt)
         return 0;
-    if (spec->window < indicator_min_window(kind))
+    if (spec->window < slowscan_indicator_min_window(kind))
         return 0;
     if (kind == INDICATOR_DFA)
         return plan->dfa.count > 0;
@@ -146,9 +146,9 @@ static int validate(const rolling_spec *spec, const double *residual, const doub
     for (size_t k = 0; k < nkinds; k++) {
         if ((unsigned)kinds[k] >= (unsigned)INDICATOR_COUNT || !out[k])
             return SLOWSCAN_EINVAL;
-        if (indicator_needs_level(kinds[k]) && !level)
+        if (slowscan_indicator_needs_level(kinds[k]) && !level)
             return SLOWSCAN_EINVAL;
-        if (indicator_per_window(kinds[k]) && !per_window_ready(spec, kinds[k]))
+        if (slowscan_indicator_per_window(kinds[k]) && !per_window_ready(spec, kinds[k]))
             return SLOWSCAN_EINVAL;
     }
     return SLOWSCAN_OK;
@@ -169,12 +169,12 @@ static void moment_pass(const rolling_spec *spec, const double *residual, const 
     int high = 0, pairs = 0, uses_level = 0;
     size_t moments[INDICATOR_COUNT], count = 0; /* which of kinds stream: tested once, not per step */
     for (size_t k = 0; k < nkinds; k++) {
-        if (!indicator_per_window(kinds[k]))
+        if (!slowscan_indicator_per_window(kinds[k]))
             moments[count++] = k;
         high |= kinds[k] == INDICATOR_SKEWNESS || kinds[k] == INDICATOR_KURTOSIS;
         pairs |= kinds[k] == INDICATOR_LAG1 || kinds[k] == INDICATOR_AR1 ||
                  kinds[k] == INDICATOR_RECOVERY;
-        uses_level |= indicator_needs_level(kinds[k]);
+        uses_level |= slowscan_indicator_needs_level(kinds[k]);
     }
     if (count == 0)
         return;
@@ -207,8 +207,8 @@ static void thin_moments(const rolling_spec *spec, size_t n, const indicator_kin
                          size_t nkinds, double *const *out)
 {
     for (size_t k = 0; k < nkinds; k++) {
-        size_t step = rolling_step(spec, kinds[k], n);
-        if (indicator_per_window(kinds[k]) || step == 1)
+        size_t step = slowscan_rolling_step(spec, kinds[k], n);
+        if (slowscan_indicator_per_window(kinds[k]) || step == 1)
             continue;
         for (size_t i = spec->window - 1; i < n; i++)
             if (!rolling_evaluated(step, n, i))
@@ -216,7 +216,7 @@ static void thin_moments(const rolling_spec *spec, size_t n, const indicator_kin
     }
 }
 
-int rolling_compute_with(const rolling_spec *spec, rolling_scratch *scratch,
+int slowscan_rolling_compute_with(const rolling_spec *spec, rolling_scratch *scratch,
                          const double *residual, const double *level, size_t n,
                          const indicator_kind *kinds, size_t nkinds, double *const *out)
 {
@@ -228,18 +228,18 @@ int rolling_compute_with(const rolling_spec *spec, rolling_scratch *scratch,
     return rolling_per_window_pass(spec, scratch, residual, n, kinds, nkinds, out);
 }
 
-int rolling_compute(const rolling_spec *spec, const double *residual, const double *level,
+int slowscan_rolling_compute(const rolling_spec *spec, const double *residual, const double *level,
                     size_t n, const indicator_kind *kinds, size_t nkinds, double *const *out)
 {
     int per_window = 0;
     for (size_t k = 0; k < nkinds && kinds; k++)
-        per_window |= indicator_per_window(kinds[k]);
+        per_window |= slowscan_indicator_per_window(kinds[k]);
     if (!per_window || !spec)
-        return rolling_compute_with(spec, NULL, residual, level, n, kinds, nkinds, out);
-    rolling_scratch *scratch = rolling_scratch_alloc(spec->window);
+        return slowscan_rolling_compute_with(spec, NULL, residual, level, n, kinds, nkinds, out);
+    rolling_scratch *scratch = slowscan_rolling_scratch_alloc(spec->window);
     if (!scratch)
         return SLOWSCAN_ENOMEM;
-    int status = rolling_compute_with(spec, scratch, residual, level, n, kinds, nkinds, out);
-    rolling_scratch_free(scratch);
+    int status = slowscan_rolling_compute_with(spec, scratch, residual, level, n, kinds, nkinds, out);
+    slowscan_rolling_scratch_free(scratch);
     return status;
 }

@@ -41,7 +41,7 @@ static void band_bins(size_t window, double dt, double lo, double hi, size_t *fi
     *count = b >= a ? (size_t)(b - a) + 1 : 0;
 }
 
-size_t rolling_band_count(size_t window, double dt, double lo, double hi)
+size_t slowscan_rolling_band_count(size_t window, double dt, double lo, double hi)
 {
     size_t first, count;
     band_bins(window, dt, lo, hi, &first, &count);

@@ -7,7 +7,7 @@
 #include <math.h>
 #include <stdlib.h>
 
-void rolling_plan_free(rolling_plan *plan)
+void slowscan_rolling_plan_free(rolling_plan *plan)
 {
     if (!plan)
         return;
@@ -18,7 +18,7 @@ void rolling_plan_free(rolling_plan *plan)
     free(plan);
 }
 
-int rolling_plan_matches(const rolling_plan *plan, const rolling_spec *spec)
+int slowscan_rolling_plan_matches(const rolling_plan *plan, const rolling_spec *spec)
 {
     return plan && spec && plan->window == spec->window && plan->dt == spec->dt &&
            plan->band_lo == spec->band_lo && plan->band_hi == spec->band_hi;
@@ -37,7 +37,7 @@ static fftw_plan make_r2c(size_t W)
     return p;
 }
 
-int rolling_plan_alloc(const rolling_spec *spec, rolling_plan **out)
+int slowscan_rolling_plan_alloc(const rolling_spec *spec, rolling_plan **out)
 {
     if (!spec || !out)
         return SLOWSCAN_EINVAL;
@@ -58,14 +58,14 @@ int rolling_plan_alloc(const rolling_spec *spec, rolling_plan **out)
     if (st == SLOWSCAN_OK && !(plan->r2c = make_r2c(spec->window)))
         st = SLOWSCAN_ENOMEM;
     if (st != SLOWSCAN_OK) {
-        rolling_plan_free(plan);
+        slowscan_rolling_plan_free(plan);
         return st;
     }
     *out = plan;
     return SLOWSCAN_OK;
 }
 
-void rolling_scratch_free(rolling_scratch *s)
+void slowscan_rolling_scratch_free(rolling_scratch *s)
 {
     if (!s)
         return;
@@ -76,7 +76,7 @@ void rolling_scratch_free(rolling_scratch *s)
     free(s);
 }
 
-rolling_scratch *rolling_scratch_alloc(size_t max_window)
+rolling_scratch *slowscan_rolling_scratch_alloc(size_t max_window)
 {
     rolling_scratch *s = calloc(1, sizeof *s);
     if (!s || max_window == 0) {
@@ -89,17 +89,17 @@ rolling_scratch *rolling_scratch_alloc(size_t max_window)
     s->power = malloc((max_window / 2 + 1) * sizeof *s->power);
     s->profile = malloc(max_window * sizeof *s->profile);
     if (!s->real || !s->spectrum || !s->power || !s->profile) {
-        rolling_scratch_free(s);
+        slowscan_rolling_scratch_free(s);
         return NULL;
     }
     return s;
 }
 
-size_t rolling_step(const rolling_spec *spec, indicator_kind kind, size_t n)
+size_t slowscan_rolling_step(const rolling_spec *spec, indicator_kind kind, size_t n)
 {
     if (spec->step > 0)
         return spec->step;
-    if (!indicator_per_window(kind) || n < spec->window)
+    if (!slowscan_indicator_per_window(kind) || n < spec->window)
         return 1;
     return (n - spec->window) / ROLLING_MAX_WINDOWS + 1;
 }
@@ -109,7 +109,7 @@ static int fits(const rolling_plan *plan, rolling_scratch *scratch, const double
     return plan && scratch && x && scratch->capacity >= plan->window;
 }
 
-int rolling_periodogram(const rolling_plan *plan, rolling_scratch *scratch, const double *x,
+int slowscan_rolling_periodogram(const rolling_plan *plan, rolling_scratch *scratch, const double *x,
                         double *power)
 {
     if (!fits(plan, scratch, x) || !power)
@@ -120,7 +120,7 @@ int rolling_periodogram(const rolling_plan *plan, rolling_scratch *scratch, cons
     return SLOWSCAN_OK;
 }
 
-int rolling_dfa_fluctuation(const rolling_plan *plan, rolling_scratch *scratch, const double *x,
+int slowscan_rolling_dfa_fluctuation(const rolling_plan *plan, rolling_scratch *scratch, const double *x,
                             size_t *sizes, double *F, size_t max, size_t *count)
 {
     if (!fits(plan, scratch, x) || !sizes || !F || !count || plan->dfa.count == 0 ||
@@ -149,7 +149,7 @@ static void evaluate_window(const rolling_plan *plan, rolling_scratch *scratch, 
 {
     int complete = window_complete(x, plan->window), have_power = 0;
     for (size_t k = 0; k < nkinds; k++) {
-        if (!indicator_per_window(kinds[k]))
+        if (!slowscan_indicator_per_window(kinds[k]))
             continue;
         double v = NAN;
         if (complete && kinds[k] == INDICATOR_DFA) {
@@ -171,8 +171,8 @@ int rolling_per_window_pass(const rolling_spec *spec, rolling_scratch *scratch, 
 {
     size_t W = spec->window, step = 0;
     for (size_t k = 0; k < nkinds; k++)
-        if (indicator_per_window(kinds[k])) {
-            step = rolling_step(spec, kinds[k], n); /* the same for every per-window kind */
+        if (slowscan_indicator_per_window(kinds[k])) {
+            step = slowscan_rolling_step(spec, kinds[k], n); /* the same for every per-window kind */
             for (size_t i = 0; i < n; i++)
                 out[k][i] = NAN;
         }

@@ -34,7 +34,7 @@ static void set_mode(int fd, const char *path)
     }
 }
 
-char *atomic_temp_beside(const char *path)
+char *slowscan_atomic_temp_beside(const char *path)
 {
     size_t len = strlen(path) + sizeof ".tmp.XXXXXX";
     char *temp = malloc(len);
@@ -51,7 +51,7 @@ char *atomic_temp_beside(const char *path)
     return temp;
 }
 
-int atomic_open(atomic_file *f, const char *path, io_error *err)
+int slowscan_atomic_open(atomic_file *f, const char *path, io_error *err)
 {
     char why[128];
     memset(f, 0, sizeof *f);
@@ -76,7 +76,7 @@ int atomic_open(atomic_file *f, const char *path, io_error *err)
          * to avoid. */
         if (!(f->fp = fopen(path, "w")) || !(f->path = io_strdup(path))) {
             int e = errno;
-            atomic_abort(f);
+            slowscan_atomic_abort(f);
             return io_fail(err, SLOWSCAN_EIO, "cannot write %s: %s", path, io_strerror(e, why, sizeof why));
         }
         return SLOWSCAN_OK;
@@ -85,7 +85,7 @@ int atomic_open(atomic_file *f, const char *path, io_error *err)
     f->path = io_strdup(path);
     f->temp_path = malloc(len + sizeof ".tmp.XXXXXX");
     if (!f->path || !f->temp_path) {
-        atomic_abort(f);
+        slowscan_atomic_abort(f);
         return io_fail(err, SLOWSCAN_ENOMEM, "cannot write %s: out of memory", path);
     }
     snprintf(f->temp_path, len + sizeof ".tmp.XXXXXX", "%s.tmp.XXXXXX", path);
@@ -94,14 +94,14 @@ int atomic_open(atomic_file *f, const char *path, io_error *err)
         int e = errno;
         free(f->temp_path); /* nothing was created: there is nothing to remove */
         f->temp_path = NULL;
-        atomic_abort(f);
+        slowscan_atomic_abort(f);
         return io_fail(err, SLOWSCAN_EIO, "cannot write %s: %s", path, io_strerror(e, why, sizeof why));
     }
     set_mode(fd, path);
     if (!(f->fp = fdopen(fd, "w"))) {
         int e = errno;
         close(fd);
-        atomic_abort(f);
+        slowscan_atomic_abort(f);
         return io_fail(err, SLOWSCAN_EIO, "cannot write %s: %s", path, io_strerror(e, why, sizeof why));
     }
     return SLOWSCAN_OK;
@@ -126,10 +126,10 @@ static int commit_stdout(atomic_file *f, io_error *err)
                : SLOWSCAN_OK;
 }
 
-int atomic_commit(atomic_file *f, io_error *err)
+int slowscan_atomic_commit(atomic_file *f, io_error *err)
 {
     if (!f->fp)
-        return io_fail(err, SLOWSCAN_EINVAL, "atomic_commit: the output file is not open");
+        return io_fail(err, SLOWSCAN_EINVAL, "slowscan_atomic_commit: the output file is not open");
     if (!f->path)
         return commit_stdout(f, err);
     /* errno is only meaningful from the call that failed; keep the first one. */
@@ -146,7 +146,7 @@ int atomic_commit(atomic_file *f, io_error *err)
     if (e) {
         char why[128];
         io_fail(err, SLOWSCAN_EIO, "cannot write %s: %s", f->path, io_strerror(e, why, sizeof why));
-        atomic_abort(f); /* removes the temporary file */
+        slowscan_atomic_abort(f); /* removes the temporary file */
         return SLOWSCAN_EIO;
     }
     free(f->temp_path);
@@ -155,7 +155,7 @@ int atomic_commit(atomic_file *f, io_error *err)
     return SLOWSCAN_OK;
 }
 
-void atomic_abort(atomic_file *f)
+void slowscan_atomic_abort(atomic_file *f)
 {
     if (f->fp) /* a file of ours, or the spool of standard output (deleted on close) */
         fclose(f->fp);
@@ -167,7 +167,7 @@ void atomic_abort(atomic_file *f)
     f->temp_path = f->path = NULL;
 }
 
-int io_reserve(void **array, size_t *cap, size_t count, size_t size, size_t first)
+int slowscan_io_reserve(void **array, size_t *cap, size_t count, size_t size, size_t first)
 {
     if (count < *cap)
         return SLOWSCAN_OK;
@@ -180,7 +180,7 @@ int io_reserve(void **array, size_t *cap, size_t count, size_t size, size_t firs
     return SLOWSCAN_OK;
 }
 
-int io_same_file(const char *a, const char *b)
+int slowscan_io_same_file(const char *a, const char *b)
 {
     struct stat sa, sb;
     if (!a || !b || strcmp(a, "-") == 0 || strcmp(b, "-") == 0)

@@ -171,7 +171,7 @@ static int setup_series(csv_reader *r, size_t nseries)
     r->row_values = malloc((nseries + 1) * sizeof *r->row_values);
     if (!t->names || !t->values || !r->row_values)
         return csv_failf(r, SLOWSCAN_ENOMEM, "out of memory");
-    t->nseries = nseries; /* set first so that series_table_free sees every name */
+    t->nseries = nseries; /* set first so that slowscan_series_table_free sees every name */
     for (size_t c = 0; c < r->ncols; c++)
         if (r->role[c] >= 0 && !(t->names[r->role[c]] = io_strdup(r->header[c])))
             return csv_failf(r, SLOWSCAN_ENOMEM, "out of memory");

@@ -305,14 +305,14 @@ static void reader_free(csv_reader *r)
     free(r->row_values);
 }
 
-int csv_read_table(const char *path, const csv_read_options *options, series_table *t,
+int slowscan_csv_read_table(const char *path, const csv_read_options *options, series_table *t,
                    io_error *err)
 {
     static const csv_read_options defaults = {NULL, NULL};
     if (err)
         err->message[0] = '\0';
     if (!t || !path)
-        return io_fail(err, SLOWSCAN_EINVAL, "csv_read_table: no %s given", t ? "file" : "table");
+        return io_fail(err, SLOWSCAN_EINVAL, "slowscan_csv_read_table: no %s given", t ? "file" : "table");
     memset(t, 0, sizeof *t);
     int is_stdin = strcmp(path, "-") == 0;
     csv_reader r = {.name = io_display_name(path), .err = err, .options = options ? options : &defaults,
@@ -335,7 +335,7 @@ int csv_read_table(const char *path, const csv_read_options *options, series_tab
         csv_failf(&r, SLOWSCAN_EINVAL, "the file has a header but no data rows");
     reader_free(&r);
     if (r.status != SLOWSCAN_OK)
-        series_table_free(t);
+        slowscan_series_table_free(t);
     else
         shrink_data(t);
     return r.status;

@@ -6,7 +6,7 @@
 #include <stdlib.h>
 #include <string.h>
 
-void series_table_free(series_table *t)
+void slowscan_series_table_free(series_table *t)
 {
     if (!t)
         return;

@@ -25,7 +25,7 @@ static void span_text(double from, double until, char *buf, size_t size)
         snprintf(buf, size, "--until %.15g", until);
 }
 
-int table_select_span(series_table *t, double from, double until, io_error *err)
+int slowscan_table_select_span(series_table *t, double from, double until, io_error *err)
 {
     const char *name = io_display_name(t->source);
     char opts[128];
@@ -55,7 +55,7 @@ int table_select_span(series_table *t, double from, double until, io_error *err)
     return SLOWSCAN_OK;
 }
 
-int table_check_grid(const series_table *t, double *dt, io_error *err)
+int slowscan_table_check_grid(const series_table *t, double *dt, io_error *err)
 {
     const char *name = io_display_name(t->source);
     if (t->n < 2)
@@ -109,7 +109,7 @@ static void free_columns(double **values, size_t nseries, double *grid)
     free(grid);
 }
 
-int table_resample(series_table *t, double step, io_error *err)
+int slowscan_table_resample(series_table *t, double step, io_error *err)
 {
     const char *name = io_display_name(t->source);
     if (t->n < 2)
@@ -146,7 +146,7 @@ int table_resample(series_table *t, double step, io_error *err)
     return SLOWSCAN_OK;
 }
 
-int table_log(series_table *t, io_error *err)
+int slowscan_table_log(series_table *t, io_error *err)
 {
     /* Check everything first so that a failure leaves the table as it was. */
     for (size_t k = 0; k < t->nseries; k++)

@@ -23,7 +23,7 @@ static const char *escaped(const char *text, char *out, size_t size)
 void report_panel(const report_figure *fig, size_t row, size_t col, double x0, double x1,
                   double y0, double y1, int numbers)
 {
-    report_box box = report_cell(report_figure_layout(fig), row, col);
+    report_box box = slowscan_report_cell(slowscan_report_figure_layout(fig), row, col);
     plvpor(box.x0, box.x1, box.y0, box.y1);
     plwind(x0, x1, y0, y1);
     report_frame(numbers);

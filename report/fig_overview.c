@@ -12,7 +12,7 @@
 static void overview_layout(const void *data, report_layout *layout)
 {
     const report_overview_data *d = data;
-    report_layout_grid(layout, d->ntests, 2, REPORT_TALL_ROW_HEIGHT);
+    slowscan_report_layout_grid(layout, d->ntests, 2, REPORT_TALL_ROW_HEIGHT);
 }
 
 static double minus_log_q(double q)
@@ -108,7 +108,7 @@ static int test_panel(report_figure *fig, const report_overview_data *d, size_t 
 static int overview_draw(report_figure *fig, const void *data)
 {
     const report_overview_data *d = data;
-    const report_layout *layout = report_figure_layout(fig);
+    const report_layout *layout = slowscan_report_figure_layout(fig);
     report_heading("screening overview (labelled: flagged series, at most 20, smallest q first)");
     int st = SLOWSCAN_OK;
     for (size_t j = 0; st == SLOWSCAN_OK && j < d->ntests; j++)
@@ -116,4 +116,4 @@ static int overview_draw(report_figure *fig, const void *data)
     return st;
 }
 
-const report_figure_type report_overview_figure = {"overview", overview_layout, overview_draw};
+const report_figure_type slowscan_report_overview_figure = {"overview", overview_layout, overview_draw};

@@ -11,7 +11,7 @@
 static void recovery_layout(const void *data, report_layout *layout)
 {
     (void)data;
-    report_layout_grid(layout, 1, 1, REPORT_TALL_ROW_HEIGHT);
+    slowscan_report_layout_grid(layout, 1, 1, REPORT_TALL_ROW_HEIGHT);
 }
 
 /* The time axis reaches the end of the crossing's interval when there is one. */
@@ -109,4 +109,4 @@ static int recovery_draw(report_figure *fig, const void *data)
     return SLOWSCAN_OK;
 }
 
-const report_figure_type report_recovery_figure = {"recovery", recovery_layout, recovery_draw};
+const report_figure_type slowscan_report_recovery_figure = {"recovery", recovery_layout, recovery_draw};

@@ -32,7 +32,7 @@ static size_t columns(const report_robustness_data *d)
 static void robustness_layout(const void *data, report_layout *layout)
 {
     const report_robustness_data *d = data;
-    report_layout_grid(layout, (d->ndetrends ? d->ndetrends : 1) * tests_of(d), columns(d),
+    slowscan_report_layout_grid(layout, (d->ndetrends ? d->ndetrends : 1) * tests_of(d), columns(d),
                        REPORT_TALL_ROW_HEIGHT);
     layout->right_margin = COLOUR_BAR_ROOM;
 }
@@ -165,7 +165,7 @@ static int robustness_draw(report_figure *fig, const void *data)
     snprintf(heading, sizeof heading, "%s: trend robustness; %sbox: own choice", d->name,
              d->have_p ? "dot: p <= 0.05, " : "");
     report_heading(heading);
-    panel_place at = {0, 0, 0, 0, report_figure_layout(fig)->cols[0], 0.05, 1.0};
+    panel_place at = {0, 0, 0, 0, slowscan_report_figure_layout(fig)->cols[0], 0.05, 1.0};
     at.tau_scale = symmetric_scale(d->tau, methods * d->nindicators * d->nwindows * d->nbandwidths,
                                    0.05, 1.0);
     if (d->drift)
@@ -183,5 +183,5 @@ static int robustness_draw(report_figure *fig, const void *data)
     return SLOWSCAN_OK;
 }
 
-const report_figure_type report_robustness_figure = {"robustness", robustness_layout,
+const report_figure_type slowscan_report_robustness_figure = {"robustness", robustness_layout,
                                                      robustness_draw};

@@ -140,7 +140,7 @@ static int series_draw(report_figure *fig, const void *data)
     const report_series_data *d = data;
     if (d->n < 2)
         return SLOWSCAN_ESHORT;
-    const report_layout *layout = report_figure_layout(fig);
+    const report_layout *layout = slowscan_report_figure_layout(fig);
     char heading[400];
     snprintf(heading, sizeof heading, "%s  (%s)", d->name, d->source);
     report_heading(heading);
@@ -150,4 +150,4 @@ static int series_draw(report_figure *fig, const void *data)
     return SLOWSCAN_OK;
 }
 
-const report_figure_type report_series_figure = {"series", series_layout, series_draw};
+const report_figure_type slowscan_report_series_figure = {"series", series_layout, series_draw};

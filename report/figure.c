@@ -14,7 +14,7 @@ static const struct {
     const char *name, *device;
 } formats[] = {{"png", "pngcairo"}, {"svg", "svgcairo"}, {"pdf", "pdfcairo"}};
 
-int report_format_parse(const char *name, report_format *format)
+int slowscan_report_format_parse(const char *name, report_format *format)
 {
     for (size_t k = 0; k < sizeof formats / sizeof formats[0]; k++)
         if (strcmp(name, formats[k].name) == 0) {
@@ -24,7 +24,7 @@ int report_format_parse(const char *name, report_format *format)
     return SLOWSCAN_EINVAL;
 }
 
-const char *report_format_extension(report_format format)
+const char *slowscan_report_format_extension(report_format format)
 {
     return formats[format].name;
 }
@@ -35,14 +35,14 @@ const char *report_format_extension(report_format format)
  * numbers and a label on the left. */
 enum { CELL_LEFT = 78, CELL_RIGHT = 22, CELL_TOP = 24, CELL_BOTTOM = 46 };
 
-int report_page_height(const report_layout *layout)
+int slowscan_report_page_height(const report_layout *layout)
 {
     return REPORT_PAGE_TOP + (int)layout->rows * layout->row_height + REPORT_PAGE_BOTTOM;
 }
 
-report_box report_cell(const report_layout *layout, size_t row, size_t col)
+report_box slowscan_report_cell(const report_layout *layout, size_t row, size_t col)
 {
-    double height = report_page_height(layout);
+    double height = slowscan_report_page_height(layout);
     double usable = REPORT_PAGE_WIDTH - layout->right_margin;
     double cell_width = usable / (double)(layout->cols[row] ? layout->cols[row] : 1);
     double top = REPORT_PAGE_TOP + (double)row * layout->row_height; /* from the page top */
@@ -54,7 +54,7 @@ report_box report_cell(const report_layout *layout, size_t row, size_t col)
     return box;
 }
 
-void report_layout_grid(report_layout *layout, size_t panels, size_t max_cols, int row_height)
+void slowscan_report_layout_grid(report_layout *layout, size_t panels, size_t max_cols, int row_height)
 {
     size_t n = panels ? panels : 1, cols = n < max_cols ? n : max_cols;
     layout->rows = (n + cols - 1) / cols;
@@ -69,7 +69,7 @@ struct report_figure {
     report_layout layout;
 };
 
-const report_layout *report_figure_layout(const report_figure *figure)
+const report_layout *slowscan_report_figure_layout(const report_figure *figure)
 {
     return &figure->layout;
 }
@@ -119,7 +119,7 @@ static void open_stream(const report_layout *layout, report_format format, const
     plsfnam(path);
     /* 90 dots per inch: the cairo drivers size text from it, so fonts are the same size in
      * every format relative to the page. */
-    plspage(90, 90, REPORT_PAGE_WIDTH, report_page_height(layout), 0, 0);
+    plspage(90, 90, REPORT_PAGE_WIDTH, slowscan_report_page_height(layout), 0, 0);
     set_palette();
     plinit();
     plfontld(0);
@@ -172,7 +172,7 @@ static int probe_dir(const char *dir, io_error *err)
     return SLOWSCAN_OK;
 }
 
-int report_batch_open(report_batch **out, const char *dir, report_format format, io_error *err)
+int slowscan_report_batch_open(report_batch **out, const char *dir, report_format format, io_error *err)
 {
     *out = NULL;
     struct stat st;
@@ -198,7 +198,7 @@ int report_batch_open(report_batch **out, const char *dir, report_format format,
     return SLOWSCAN_OK;
 }
 
-void report_safe_name(const char *name, char *out, size_t size)
+void slowscan_report_safe_name(const char *name, char *out, size_t size)
 {
     size_t k = 0;
     for (const char *c = name; *c && k + 1 < size; c++) {
@@ -223,7 +223,7 @@ static int name_taken(const report_batch *b, const char *path)
 static char *unique_path(const report_batch *b, const char *prefix, const char *name)
 {
     char safe[128];
-    report_safe_name(name, safe, sizeof safe);
+    slowscan_report_safe_name(name, safe, sizeof safe);
     size_t len = strlen(b->dir) + strlen(prefix) + strlen(safe) + 40;
     char *path = malloc(len);
     for (unsigned k = 1; path; k++) {
@@ -231,7 +231,7 @@ static char *unique_path(const report_batch *b, const char *prefix, const char *
         if (k > 1)
             snprintf(suffix, sizeof suffix, "-%u", k);
         snprintf(path, len, "%s/%s%s%s%s.%s", b->dir, prefix, *prefix ? "-" : "", safe, suffix,
-                 report_format_extension(b->format));
+                 slowscan_report_format_extension(b->format));
         if (!name_taken(b, path))
             break;
     }
@@ -241,7 +241,7 @@ static char *unique_path(const report_batch *b, const char *prefix, const char *
 static int add_entry(report_batch *b, char *final, char *temp)
 {
     void *entries = b->entries;
-    int st = io_reserve(&entries, &b->cap, b->count, sizeof *b->entries, 16);
+    int st = slowscan_io_reserve(&entries, &b->cap, b->count, sizeof *b->entries, 16);
     b->entries = entries;
     if (st != SLOWSCAN_OK)
         return st;
@@ -249,7 +249,7 @@ static int add_entry(report_batch *b, char *final, char *temp)
     return SLOWSCAN_OK;
 }
 
-int report_batch_draw(report_batch *b, const report_figure_type *type, const void *data,
+int slowscan_report_batch_draw(report_batch *b, const report_figure_type *type, const void *data,
                       const char *prefix, const char *name, io_error *err)
 {
     char *final = unique_path(b, prefix, name);
@@ -262,7 +262,7 @@ int report_batch_draw(report_batch *b, const report_figure_type *type, const voi
         free(final);
         return st;
     }
-    char *temp = final ? atomic_temp_beside(final) : NULL;
+    char *temp = final ? slowscan_atomic_temp_beside(final) : NULL;
     if (!temp || add_entry(b, final, temp) != SLOWSCAN_OK) {
         int e = errno;
         if (temp)
@@ -290,7 +290,7 @@ int report_batch_draw(report_batch *b, const report_figure_type *type, const voi
     return SLOWSCAN_OK;
 }
 
-int report_batch_commit(report_batch *b, io_error *err)
+int slowscan_report_batch_commit(report_batch *b, io_error *err)
 {
     for (; b->committed < b->count; b->committed++) {
         batch_entry *e = &b->entries[b->committed];
@@ -309,7 +309,7 @@ static void remove_uncommitted(report_batch *b)
             unlink(b->entries[i].temp);
 }
 
-void report_batch_free(report_batch *b)
+void slowscan_report_batch_free(report_batch *b)
 {
     if (!b)
         return;
@@ -325,12 +325,12 @@ void report_batch_free(report_batch *b)
     free(b);
 }
 
-size_t report_batch_count(const report_batch *b)
+size_t slowscan_report_batch_count(const report_batch *b)
 {
     return b ? b->count : 0;
 }
 
-const char *report_batch_path(const report_batch *b, size_t i)
+const char *slowscan_report_batch_path(const report_batch *b, size_t i)
 {
     return i < b->count ? b->entries[i].final : NULL;
 }

@@ -41,7 +41,7 @@ typedef struct {
  * series without its arrays, and with keep_series the arrays, paths and nulls too. */
 static int keep(batch *b, screen_workspace *ws, slot *s)
 {
-    const screen_prepared *ps = screen_workspace_prepared(ws);
+    const screen_prepared *ps = slowscan_screen_workspace_prepared(ws);
     s->prepared = *ps;
     s->prepared.value = s->prepared.trend = s->prepared.residual = s->prepared.owned = NULL;
     s->prepared.null_source = NULL;
@@ -61,10 +61,10 @@ static int keep(batch *b, screen_workspace *ws, slot *s)
     s->prepared.residual = s->kept + 2 * n;
     for (size_t j = 0; j < nind; j++) {
         s->paths[j] = s->kept + (3 + j) * n;
-        memcpy(s->paths[j], screen_workspace_path(ws, j), n * sizeof *s->kept);
+        memcpy(s->paths[j], slowscan_screen_workspace_path(ws, j), n * sizeof *s->kept);
     }
     for (size_t j = 0; j < s->result.ntests; j++) {
-        const double *null = screen_workspace_null(ws, j);
+        const double *null = slowscan_screen_workspace_null(ws, j);
         s->nulls[j] = null ? s->kept + (3 + nind) * n + j * m : NULL;
         if (null)
             memcpy(s->nulls[j], null, m * sizeof *s->kept);
@@ -74,7 +74,7 @@ static int keep(batch *b, screen_workspace *ws, slot *s)
 
 static void compute(batch *b, screen_workspace *ws, slot *s, size_t index)
 {
-    s->status = ws ? screen_series(ws, &b->series_cfg, &s->input, &s->result, &s->detail)
+    s->status = ws ? slowscan_screen_series(ws, &b->series_cfg, &s->input, &s->result, &s->detail)
                    : SLOWSCAN_ENOMEM;
     if (!ws)
         s->detail = (screen_detail){.rule = SCREEN_RULE_NO_MEMORY, .status = SLOWSCAN_ENOMEM};
@@ -195,7 +195,7 @@ static size_t split_threads(const screen_config *cfg, const screen_source *sourc
     return threads;
 }
 
-int screen_batch_run(const screen_config *cfg, screen_source *source, screen_sink *sink,
+int slowscan_screen_batch_run(const screen_config *cfg, screen_source *source, screen_sink *sink,
                      screen_batch_failure *failure)
 {
     batch b = {.source = source, .sink = sink, .failure = failure};
@@ -208,7 +208,7 @@ int screen_batch_run(const screen_config *cfg, screen_source *source, screen_sin
     int *running = calloc(workers, sizeof *running);
     int st = b.slots && args && ids && running ? SLOWSCAN_OK : SLOWSCAN_ENOMEM;
     for (size_t k = 0; st == SLOWSCAN_OK && k < workers; k++) {
-        args[k] = (worker_arg){&b, screen_workspace_alloc(b.series_cfg.threads)};
+        args[k] = (worker_arg){&b, slowscan_screen_workspace_alloc(b.series_cfg.threads)};
         if (!args[k].ws)
             st = SLOWSCAN_ENOMEM;
     }
@@ -233,7 +233,7 @@ int screen_batch_run(const screen_config *cfg, screen_source *source, screen_sin
         st = b.status;
     }
     for (size_t k = 0; args && k < workers; k++)
-        screen_workspace_free(args[k].ws);
+        slowscan_screen_workspace_free(args[k].ws);
     for (size_t k = 0; b.slots && k < b.cap; k++)
         free(b.slots[k].kept);
     free(b.slots);

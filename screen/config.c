@@ -8,10 +8,10 @@
 
 const double screen_quantile_levels[SCREEN_QUANTILES] = {0.05, 0.25, 0.5, 0.75, 0.95};
 
-screen_config screen_config_default(void)
+screen_config slowscan_screen_config_default(void)
 {
     screen_config c = {0};
-    detrend_parse_method("gaussian-linear", &c.detrend); /* DESIGN §3: no lag at the ends */
+    slowscan_detrend_parse_method("gaussian-linear", &c.detrend); /* DESIGN §3: no lag at the ends */
     c.bandwidth = (screen_length){10, 1};
     c.deseason = NAN;
     c.deseason_window = (screen_length){NAN, 0};
@@ -23,7 +23,7 @@ screen_config screen_config_default(void)
     c.recovery = RECOVERY_LOG_AR1;
     c.drift_test = 1; /* the model-based test joins the default set */
     c.null_kind = SURROGATE_PHASE;
-    c.null_options = surrogate_default_options();
+    c.null_options = slowscan_surrogate_default_options();
     c.surrogates = 1000;
     c.seed = 1;
     c.fdr = 0.05;
@@ -32,27 +32,27 @@ screen_config screen_config_default(void)
     return c;
 }
 
-size_t screen_test_count(const screen_config *cfg)
+size_t slowscan_screen_test_count(const screen_config *cfg)
 {
     return cfg->nindicators + (cfg->drift_test != 0);
 }
 
-int screen_test_of(const screen_config *cfg, size_t j)
+int slowscan_screen_test_of(const screen_config *cfg, size_t j)
 {
     return j < cfg->nindicators ? (int)cfg->indicators[j] : SCREEN_TEST_RECOVERY_TREND;
 }
 
-int screen_test_rolling(int kind)
+int slowscan_screen_test_rolling(int kind)
 {
     return kind >= 0 && kind < INDICATOR_COUNT;
 }
 
-const char *screen_test_name(int kind)
+const char *slowscan_screen_test_name(int kind)
 {
-    return screen_test_rolling(kind) ? indicator_name((indicator_kind)kind) : "recovery_trend";
+    return slowscan_screen_test_rolling(kind) ? slowscan_indicator_name((indicator_kind)kind) : "recovery_trend";
 }
 
-const char *screen_flag_name(screen_flag flag)
+const char *slowscan_screen_flag_name(screen_flag flag)
 {
     static const char *const names[] = {"untested", "none", "rising", "falling", "insufficient"};
     return (unsigned)flag < sizeof names / sizeof names[0] ? names[flag] : "untested";
@@ -66,7 +66,7 @@ static screen_flag flag_before_decision(const screen_test *t)
     return t->surrogates > 0 ? SCREEN_FLAG_INSUFFICIENT : SCREEN_FLAG_UNTESTED;
 }
 
-int screen_decide(const screen_test *const *tests, size_t count, double fdr, double *q,
+int slowscan_screen_decide(const screen_test *const *tests, size_t count, double fdr, double *q,
                   screen_flag *flags)
 {
     double *p = calloc(count + 1, sizeof *p);
@@ -77,7 +77,7 @@ int screen_decide(const screen_test *const *tests, size_t count, double fdr, dou
         p[r] = tests[r]->p_value;
         tested += !isnan(p[r]);
     }
-    int st = significance_bh(p, count, q, NULL);
+    int st = slowscan_significance_bh(p, count, q, NULL);
     for (size_t r = 0; st == SLOWSCAN_OK && r < count; r++) {
         const screen_test *t = tests[r];
         if (isnan(t->p_value)) {

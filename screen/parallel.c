@@ -36,18 +36,18 @@ static void *worker(void *p)
     screen_null_task *t = s->task;
     int st;
     /* Each thread has its own source: the draw writes into the source's spectrum scratch. */
-    surrogate_source *src = surrogate_source_alloc(t->plan, t->kind, t->residual, t->options, &st);
+    surrogate_source *src = slowscan_surrogate_source_alloc(t->plan, t->kind, t->residual, t->options, &st);
     size_t block;
     while (st == SLOWSCAN_OK && take_block(s, &block)) {
         size_t first = block * NULL_TREND_BLOCK, count = t->m - first;
         if (count > NULL_TREND_BLOCK)
             count = NULL_TREND_BLOCK;
-        st = null_trend_draw(arg->ws, src, t->job, first, count, t->null, t->m);
+        st = slowscan_null_trend_draw(arg->ws, src, t->job, first, count, t->null, t->m);
     }
     size_t unconverged = 0;
     if (src)
-        surrogate_iaaft_report(src, NULL, NULL, &unconverged);
-    surrogate_source_free(src);
+        slowscan_surrogate_iaaft_report(src, NULL, NULL, &unconverged);
+    slowscan_surrogate_source_free(src);
     pthread_mutex_lock(&s->lock);
     if (st != SLOWSCAN_OK && s->status == SLOWSCAN_OK)
         s->status = st;

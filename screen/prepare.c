@@ -29,7 +29,7 @@ static int resolve_length(const screen_length *len, screen_option option, double
 }
 
 /* Samples in a window, DESIGN §3: round(window/dt)+1 or round(p/100 (n-1))+1. */
-int screen_window(const screen_config *cfg, size_t n, double span, size_t *window,
+int slowscan_screen_window(const screen_config *cfg, size_t n, double span, size_t *window,
                   screen_detail *d)
 {
     double length, dt = span / (double)(n - 1);
@@ -49,7 +49,7 @@ int screen_window(const screen_config *cfg, size_t n, double span, size_t *windo
 /* Removes the cycle of cfg->deseason from ps->value. */
 static int deseason_series(const screen_config *cfg, screen_prepared *ps, screen_detail *d)
 {
-    deseason_spec spec = detrend_deseason_default();
+    deseason_spec spec = slowscan_detrend_deseason_default();
     spec.period = cfg->deseason;
     spec.harmonics = cfg->harmonics;
     int st = SLOWSCAN_OK;
@@ -59,7 +59,7 @@ static int deseason_series(const screen_config *cfg, screen_prepared *ps, screen
     if (st != SLOWSCAN_OK)
         return st;
     deseason_problem problem;
-    if (detrend_deseason_check(&spec, ps->dt, ps->n, &problem, &ps->harmonics) != SLOWSCAN_OK) {
+    if (slowscan_detrend_deseason_check(&spec, ps->dt, ps->n, &problem, &ps->harmonics) != SLOWSCAN_OK) {
         d->value = cfg->deseason / ps->dt; /* the period in steps */
         d->limit = problem == DESEASON_BAD_WINDOW ? ps->span : ps->dt;
         screen_rule rule = problem == DESEASON_BAD_HARMONICS ? SCREEN_RULE_DESEASON_HARMONICS
@@ -70,7 +70,7 @@ static int deseason_series(const screen_config *cfg, screen_prepared *ps, screen
                                                                  : SCREEN_OPTION_DESEASON;
         return refuse(d, rule, option, SLOWSCAN_EINVAL);
     }
-    st = detrend_deseason_apply(&spec, ps->dt, ps->value, ps->n);
+    st = slowscan_detrend_deseason_apply(&spec, ps->dt, ps->value, ps->n);
     if (st == SLOWSCAN_ESHORT)
         return refuse(d, SCREEN_RULE_DESEASON_SHORT, SCREEN_OPTION_DESEASON, st);
     if (st != SLOWSCAN_OK)
@@ -118,14 +118,14 @@ static void test_leakage(const screen_config *cfg, screen_prepared *ps)
     double edge = floor(length / ps->dt + 0.5);
     if (!(edge >= LEAKAGE_MIN_EDGE) || edge > (double)(ps->n / 2))
         return; /* too short to say anything, or the edges would overlap */
-    ps->leakage_tested = detrend_leakage_test(ps->residual, ps->n, (size_t)edge, LEAKAGE_LEVEL,
+    ps->leakage_tested = slowscan_detrend_leakage_test(ps->residual, ps->n, (size_t)edge, LEAKAGE_LEVEL,
                                               &ps->leakage) == SLOWSCAN_OK;
 }
 
 static int detrend_series(const screen_config *cfg, const detrend_spec *spec,
                           screen_prepared *ps, screen_detail *d)
 {
-    int st = detrend_apply(spec, ps->dt, ps->value, ps->n, ps->trend, ps->residual);
+    int st = slowscan_detrend_apply(spec, ps->dt, ps->value, ps->n, ps->trend, ps->residual);
     if (st == SLOWSCAN_ENOMEM)
         return refuse(d, SCREEN_RULE_NO_MEMORY, SCREEN_OPTION_NONE, st);
     if (st != SLOWSCAN_OK) {
@@ -140,7 +140,7 @@ static int detrend_series(const screen_config *cfg, const detrend_spec *spec,
     return SLOWSCAN_OK;
 }
 
-int screen_prepare(const screen_config *cfg, const screen_input *in, screen_prepared *ps,
+int slowscan_screen_prepare(const screen_config *cfg, const screen_input *in, screen_prepared *ps,
                    screen_detail *d)
 {
     memset(ps, 0, sizeof *ps);
@@ -152,10 +152,10 @@ int screen_prepare(const screen_config *cfg, const screen_input *in, screen_prep
     ps->time = in->time;
     ps->span = in->time[in->n - 1] - in->time[0];
     ps->dt = ps->span / (double)(in->n - 1);
-    int st = screen_window(cfg, in->n, ps->span, &ps->window, d);
+    int st = slowscan_screen_window(cfg, in->n, ps->span, &ps->window, d);
     detrend_spec spec = cfg->detrend;
     ps->bandwidth = NAN;
-    if (st == SLOWSCAN_OK && detrend_uses_bandwidth(spec.method)) {
+    if (st == SLOWSCAN_OK && slowscan_detrend_uses_bandwidth(spec.method)) {
         st = resolve_length(&cfg->bandwidth, SCREEN_OPTION_BANDWIDTH, ps->span, &spec.bandwidth, d);
         ps->bandwidth = spec.bandwidth;
     }
@@ -180,7 +180,7 @@ int screen_prepare(const screen_config *cfg, const screen_input *in, screen_prep
     return detrend_series(cfg, &spec, ps, d);
 }
 
-void screen_prepared_free(screen_prepared *ps)
+void slowscan_screen_prepared_free(screen_prepared *ps)
 {
     free(ps->value);
     free(ps->owned);

@@ -23,7 +23,7 @@ struct screen_workspace {
     ar1_drift_workspace *drift;
     size_t drift_n;
     rolling_plan *rolling_plan; /* the per-window indicators' plan, kept while W and dt stay */
-    /* screen_series: the last series and its paths */
+    /* slowscan_screen_series: the last series and its paths */
     screen_prepared prepared;
     double *paths;  /* nindicators x n */
     size_t paths_cap;

@@ -1,5 +1,5 @@
 /* The screening workspace, the rolling indicators of a prepared series, and the whole
- * pipeline of one series (screen_series). */
+ * pipeline of one series (slowscan_screen_series). */
 #include "screen_internal.h"
 #include "slowscan/status.h"
 
@@ -7,7 +7,7 @@
 #include <stdlib.h>
 #include <string.h>
 
-screen_workspace *screen_workspace_alloc(size_t threads)
+screen_workspace *slowscan_screen_workspace_alloc(size_t threads)
 {
     screen_workspace *ws = calloc(1, sizeof *ws);
     if (ws)
@@ -15,19 +15,19 @@ screen_workspace *screen_workspace_alloc(size_t threads)
     return ws;
 }
 
-void screen_workspace_free(screen_workspace *ws)
+void slowscan_screen_workspace_free(screen_workspace *ws)
 {
     if (!ws)
         return;
-    kendall_free(ws->kendall);
-    surrogate_plan_free(ws->plan);
+    slowscan_kendall_free(ws->kendall);
+    slowscan_surrogate_plan_free(ws->plan);
     for (size_t k = 0; k < ws->threads; k++)
-        null_trend_free(ws->null_ws[k]);
+        slowscan_null_trend_free(ws->null_ws[k]);
     free(ws->null);
     free(ws->sorted);
-    ar1_drift_free(ws->drift);
-    rolling_plan_free(ws->rolling_plan);
-    screen_prepared_free(&ws->prepared);
+    slowscan_ar1_drift_free(ws->drift);
+    slowscan_rolling_plan_free(ws->rolling_plan);
+    slowscan_screen_prepared_free(&ws->prepared);
     free(ws->paths);
     free(ws);
 }
@@ -37,8 +37,8 @@ static int check_per_window(const screen_config *cfg, const screen_prepared *ps,
 {
     for (size_t j = 0; j < cfg->nindicators; j++) {
         indicator_kind kind = cfg->indicators[j];
-        size_t need = indicator_min_window(kind);
-        if (indicator_per_window(kind) && ps->window < need) {
+        size_t need = slowscan_indicator_min_window(kind);
+        if (slowscan_indicator_per_window(kind) && ps->window < need) {
             *d = (screen_detail){SCREEN_RULE_WINDOW_INDICATOR, SCREEN_OPTION_WINDOW,
                                  SLOWSCAN_EINVAL, (int)kind, ps->window, need, 0, 0, 0};
             return SLOWSCAN_EINVAL;
@@ -51,7 +51,7 @@ static int check_per_window(const screen_config *cfg, const screen_prepared *ps,
                                  (int)kind, 0, 0, ps->dt, nyquist, 0};
             return SLOWSCAN_EINVAL;
         }
-        size_t inside = rolling_band_count(ps->window, ps->dt, cfg->band_lo, cfg->band_hi);
+        size_t inside = slowscan_rolling_band_count(ps->window, ps->dt, cfg->band_lo, cfg->band_hi);
         if (inside < SPECTRAL_MIN_FREQUENCIES) {
             *d = (screen_detail){SCREEN_RULE_BAND_TOO_FEW, SCREEN_OPTION_BAND, SLOWSCAN_EINVAL,
                                  (int)kind, inside, SPECTRAL_MIN_FREQUENCIES, 0, 0, 0};
@@ -63,7 +63,7 @@ static int check_per_window(const screen_config *cfg, const screen_prepared *ps,
 
 /* The observed series and every surrogate share one plan per window length and time step;
  * it is made here, in the calling thread, before the surrogate threads start. */
-rolling_spec screen_rolling_spec(const screen_config *cfg, const screen_prepared *ps)
+rolling_spec slowscan_screen_rolling_spec(const screen_config *cfg, const screen_prepared *ps)
 {
     return (rolling_spec){ps->window, cfg->min_coverage, ps->dt, cfg->recovery, cfg->step,
                           cfg->band_lo, cfg->band_hi, NULL};
@@ -72,19 +72,19 @@ rolling_spec screen_rolling_spec(const screen_config *cfg, const screen_prepared
 int screen_rolling_ready(screen_workspace *ws, const screen_config *cfg,
                          const screen_prepared *ps, rolling_spec *spec, screen_detail *d)
 {
-    *spec = screen_rolling_spec(cfg, ps);
+    *spec = slowscan_screen_rolling_spec(cfg, ps);
     int per_window = 0;
     for (size_t j = 0; j < cfg->nindicators; j++)
-        per_window |= indicator_per_window(cfg->indicators[j]);
+        per_window |= slowscan_indicator_per_window(cfg->indicators[j]);
     if (!per_window)
         return SLOWSCAN_OK;
     int st = check_per_window(cfg, ps, d);
     if (st != SLOWSCAN_OK)
         return st;
-    if (!ws->rolling_plan || !rolling_plan_matches(ws->rolling_plan, spec)) {
-        rolling_plan_free(ws->rolling_plan);
+    if (!ws->rolling_plan || !slowscan_rolling_plan_matches(ws->rolling_plan, spec)) {
+        slowscan_rolling_plan_free(ws->rolling_plan);
         ws->rolling_plan = NULL;
-        if ((st = rolling_plan_alloc(spec, &ws->rolling_plan)) != SLOWSCAN_OK) {
+        if ((st = slowscan_rolling_plan_alloc(spec, &ws->rolling_plan)) != SLOWSCAN_OK) {
             *d = (screen_detail){SCREEN_RULE_PLAN_FAILED, SCREEN_OPTION_NONE, st, 0, 0, 0, 0, 0, 0};
             return st;
         }
@@ -93,7 +93,7 @@ int screen_rolling_ready(screen_workspace *ws, const screen_config *cfg,
     return SLOWSCAN_OK;
 }
 
-int screen_indicators(screen_workspace *ws, const screen_config *cfg, const screen_prepared *ps,
+int slowscan_screen_indicators(screen_workspace *ws, const screen_config *cfg, const screen_prepared *ps,
                       double *const *paths, screen_warning *warning, int *warned,
                       screen_detail *d)
 {
@@ -116,7 +116,7 @@ int screen_indicators(screen_workspace *ws, const screen_config *cfg, const scre
                 paths[j][i] = NAN;
         return SLOWSCAN_OK;
     }
-    st = rolling_compute(&spec, ps->residual, ps->value, ps->n, cfg->indicators, cfg->nindicators,
+    st = slowscan_rolling_compute(&spec, ps->residual, ps->value, ps->n, cfg->indicators, cfg->nindicators,
                          paths);
     if (st != SLOWSCAN_OK)
         *d = (screen_detail){SCREEN_RULE_ROLLING_FAILED, SCREEN_OPTION_NONE, st, 0, 0, 0, 0, 0, 0};
@@ -145,7 +145,7 @@ static int check_control(const screen_prepared *ps, const screen_input *c, scree
     return SLOWSCAN_OK;
 }
 
-int screen_attach_control(const screen_config *cfg, screen_prepared *ps,
+int slowscan_screen_attach_control(const screen_config *cfg, screen_prepared *ps,
                           const screen_input *control, screen_detail *d)
 {
     int st = check_control(ps, control, d);
@@ -160,7 +160,7 @@ int screen_attach_control(const screen_config *cfg, screen_prepared *ps,
     cut.n = ps->n;
     cut.control = NULL;
     screen_prepared cps;
-    st = screen_prepare(&same, &cut, &cps, d);
+    st = slowscan_screen_prepare(&same, &cut, &cps, d);
     if (st == SLOWSCAN_OK && (cps.constant || cps.finite < 8)) {
         *d = (screen_detail){SCREEN_RULE_CONTROL_FLAT, SCREEN_OPTION_NULL, SLOWSCAN_ECONST, 0, 0, 0,
                              0, 0, 0};
@@ -172,7 +172,7 @@ int screen_attach_control(const screen_config *cfg, screen_prepared *ps,
         ps->null_source = cps.residual;
         cps.value = NULL;
     }
-    screen_prepared_free(&cps);
+    slowscan_screen_prepared_free(&cps);
     if (st != SLOWSCAN_OK)
         d->control = 1;
     return st;
@@ -189,15 +189,15 @@ void screen_describe(const screen_config *cfg, const screen_prepared *ps, screen
     out->leakage_tested = ps->leakage_tested;
 }
 
-int screen_series(screen_workspace *ws, const screen_config *cfg, const screen_input *in,
+int slowscan_screen_series(screen_workspace *ws, const screen_config *cfg, const screen_input *in,
                   screen_result *out, screen_detail *d)
 {
     memset(out, 0, sizeof *out);
-    screen_prepared_free(&ws->prepared);
+    slowscan_screen_prepared_free(&ws->prepared);
     screen_prepared *ps = &ws->prepared;
-    int st = screen_prepare(cfg, in, ps, d);
+    int st = slowscan_screen_prepare(cfg, in, ps, d);
     if (st == SLOWSCAN_OK && in->control && !ps->constant)
-        st = screen_attach_control(cfg, ps, in->control, d);
+        st = slowscan_screen_attach_control(cfg, ps, in->control, d);
     if (st != SLOWSCAN_OK)
         return st;
     size_t need = cfg->nindicators * in->n;
@@ -214,17 +214,17 @@ int screen_series(screen_workspace *ws, const screen_config *cfg, const screen_i
     for (size_t j = 0; j < cfg->nindicators; j++)
         paths[j] = ws->paths + j * in->n;
     int warned;
-    st = screen_indicators(ws, cfg, ps, paths, &out->warnings[0], &warned, d);
+    st = slowscan_screen_indicators(ws, cfg, ps, paths, &out->warnings[0], &warned, d);
     out->nwarnings = (size_t)warned;
-    return st == SLOWSCAN_OK ? screen_test_series(ws, cfg, ps, paths, out, d) : st;
+    return st == SLOWSCAN_OK ? slowscan_screen_test_series(ws, cfg, ps, paths, out, d) : st;
 }
 
-const screen_prepared *screen_workspace_prepared(const screen_workspace *ws)
+const screen_prepared *slowscan_screen_workspace_prepared(const screen_workspace *ws)
 {
     return &ws->prepared;
 }
 
-const double *screen_workspace_path(const screen_workspace *ws, size_t j)
+const double *slowscan_screen_workspace_path(const screen_workspace *ws, size_t j)
 {
     return ws->paths && ws->prepared.value ? ws->paths + j * ws->prepared.n : NULL;
 }

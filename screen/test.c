@@ -19,15 +19,15 @@ static double trend_of(screen_workspace *ws, const screen_prepared *ps, const do
     double tau = NAN;
     size_t used = 0;
     if (ws->kendall_n < ps->n) {
-        kendall_free(ws->kendall);
-        ws->kendall = kendall_alloc(ps->n);
+        slowscan_kendall_free(ws->kendall);
+        ws->kendall = slowscan_kendall_alloc(ps->n);
         ws->kendall_n = ws->kendall ? ps->n : 0;
     }
     if (!ws->kendall) {
         *reason = SCREEN_REASON_NO_MEMORY;
         return NAN;
     }
-    int st = kendall_tau_b(ws->kendall, ps->time, values, ps->n, &tau, &used);
+    int st = slowscan_kendall_tau_b(ws->kendall, ps->time, values, ps->n, &tau, &used);
     if (st == SLOWSCAN_ECONST)
         *reason = SCREEN_REASON_CONSTANT_PATH;
     else if (st != SLOWSCAN_OK || used < MIN_TREND_VALUES)
@@ -40,14 +40,14 @@ static double drift_of(screen_workspace *ws, const screen_config *cfg, const scr
                        screen_reason *reason, double *model)
 {
     if (ws->drift_n != ps->n) {
-        ar1_drift_free(ws->drift);
-        ws->drift = ar1_drift_alloc(ps->n);
+        slowscan_ar1_drift_free(ws->drift);
+        ws->drift = slowscan_ar1_drift_alloc(ps->n);
         ws->drift_n = ws->drift ? ps->n : 0;
     }
     ar1_drift_fit fit;
     if (ws->drift)
-        ar1_drift_set_noise_trend(ws->drift, cfg->noise_trend);
-    int st = ws->drift ? ar1_drift_estimate(ws->drift, ps->residual, ps->n, &fit) : SLOWSCAN_ENOMEM;
+        slowscan_ar1_drift_set_noise_trend(ws->drift, cfg->noise_trend);
+    int st = ws->drift ? slowscan_ar1_drift_estimate(ws->drift, ps->residual, ps->n, &fit) : SLOWSCAN_ENOMEM;
     if (st == SLOWSCAN_OK && isfinite(fit.t_a1)) {
         *model = fit.t_a1_model;
         return fit.t_a1;
@@ -61,16 +61,16 @@ static int ready_null(screen_workspace *ws, const screen_config *cfg, size_t n, 
 {
     size_t m = cfg->surrogates;
     if (ws->null_n != n || ws->null_kinds < cfg->nindicators) {
-        surrogate_plan_free(ws->plan);
+        slowscan_surrogate_plan_free(ws->plan);
         for (size_t k = 0; k < ws->threads; k++) {
-            null_trend_free(ws->null_ws[k]);
+            slowscan_null_trend_free(ws->null_ws[k]);
             ws->null_ws[k] = NULL;
         }
         ws->null_n = ws->null_kinds = 0;
-        ws->plan = surrogate_plan_alloc(n, FFTW_ESTIMATE);
+        ws->plan = slowscan_surrogate_plan_alloc(n, FFTW_ESTIMATE);
         int missing = !ws->plan;
         for (size_t k = 0; k < ws->threads; k++)
-            missing |= !(ws->null_ws[k] = null_trend_alloc(n, cfg->nindicators));
+            missing |= !(ws->null_ws[k] = slowscan_null_trend_alloc(n, cfg->nindicators));
         if (missing)
             return SLOWSCAN_ENOMEM;
         ws->null_n = n;
@@ -93,7 +93,7 @@ static significance_alternative alternative_of(const screen_config *cfg, size_t 
 {
     if (cfg->alternative >= 0)
         return (significance_alternative)cfg->alternative;
-    if (j >= cfg->nindicators || indicator_direction(cfg->indicators[j]) > 0)
+    if (j >= cfg->nindicators || slowscan_indicator_direction(cfg->indicators[j]) > 0)
         return ALTERNATIVE_INCREASING;
     return ALTERNATIVE_TWO_SIDED;
 }
@@ -137,10 +137,10 @@ static int draw_null(screen_workspace *ws, const screen_config *cfg, const scree
     st = ready_null(ws, cfg, ps->n, tests);
     int need_level = 0;
     for (size_t j = 0; j < cfg->nindicators; j++)
-        need_level |= indicator_needs_level(cfg->indicators[j]);
+        need_level |= slowscan_indicator_needs_level(cfg->indicators[j]);
     null_trend_job job = {&spec, cfg->indicators, cfg->nindicators, ps->time,
                           need_level ? ps->trend : NULL, cfg->seed, ps->name,
-                          cfg->null_name ? cfg->null_name : surrogate_name(cfg->null_kind),
+                          cfg->null_name ? cfg->null_name : slowscan_surrogate_name(cfg->null_kind),
                           cfg->drift_test ? 1 + cfg->noise_trend : 0};
     size_t m = cfg->surrogates;
     screen_null_task task = {ws->plan, cfg->null_kind, &cfg->null_options, ps->null_source,
@@ -185,23 +185,23 @@ static int test_null(screen_workspace *ws, const screen_config *cfg, const scree
     for (size_t j = 0; j < tests; j++) {
         screen_test *t = &out->tests[j];
         if (!isnan(t->statistic))
-            t->p_value = significance_p_value(t->statistic, ws->null + j * m, m,
+            t->p_value = slowscan_significance_p_value(t->statistic, ws->null + j * m, m,
                                               alternative_of(cfg, j), &t->null_used);
         null_quantiles(ws, ws->null + j * m, m, t);
     }
     return SLOWSCAN_OK;
 }
 
-int screen_test_series(screen_workspace *ws, const screen_config *cfg, const screen_prepared *ps,
+int slowscan_screen_test_series(screen_workspace *ws, const screen_config *cfg, const screen_prepared *ps,
                        double *const *paths, screen_result *out, screen_detail *d)
 {
     screen_describe(cfg, ps, out);
-    out->ntests = screen_test_count(cfg);
+    out->ntests = slowscan_screen_test_count(cfg);
     ws->null_tests = 0;
     int any = 0;
     for (size_t j = 0; j < out->ntests; j++) {
         screen_test *t = &out->tests[j];
-        *t = (screen_test){.kind = screen_test_of(cfg, j), .tau = NAN, .statistic = NAN,
+        *t = (screen_test){.kind = slowscan_screen_test_of(cfg, j), .tau = NAN, .statistic = NAN,
                            .statistic_model = NAN, .p_value = NAN,
                            .surrogates = cfg->surrogates,
                            .quantile = {NAN, NAN, NAN, NAN, NAN},
@@ -221,7 +221,7 @@ int screen_test_series(screen_workspace *ws, const screen_config *cfg, const scr
     return SLOWSCAN_OK;
 }
 
-const double *screen_workspace_null(const screen_workspace *ws, size_t j)
+const double *slowscan_screen_workspace_null(const screen_workspace *ws, size_t j)
 {
     return j < ws->null_tests ? ws->null + j * ws->null_stride : NULL;
 }

@@ -27,7 +27,7 @@ struct kendall_workspace {
     double *tx, *ty; /* merge scratch */
 };
 
-kendall_workspace *kendall_alloc(size_t nmax)
+kendall_workspace *slowscan_kendall_alloc(size_t nmax)
 {
     size_t len = nmax ? nmax : 1;
     if (len > SIZE_MAX / sizeof(double))
@@ -41,13 +41,13 @@ kendall_workspace *kendall_alloc(size_t nmax)
     ws->tx = malloc(len * sizeof(double));
     ws->ty = malloc(len * sizeof(double));
     if (!ws->x || !ws->y || !ws->tx || !ws->ty) {
-        kendall_free(ws);
+        slowscan_kendall_free(ws);
         return NULL;
     }
     return ws;
 }
 
-void kendall_free(kendall_workspace *ws)
+void slowscan_kendall_free(kendall_workspace *ws)
 {
     if (!ws)
         return;
@@ -328,7 +328,7 @@ static int x_strictly_increasing(const double *x, size_t n)
     return 1;
 }
 
-int kendall_tau_b(kendall_workspace *ws, const double *x, const double *y, size_t n,
+int slowscan_kendall_tau_b(kendall_workspace *ws, const double *x, const double *y, size_t n,
                   double *tau, size_t *used)
 {
     if (tau)

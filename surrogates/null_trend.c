@@ -22,7 +22,7 @@ struct null_trend_workspace {
     gsl_rng *rng;
 };
 
-void null_trend_free(null_trend_workspace *ws)
+void slowscan_null_trend_free(null_trend_workspace *ws)
 {
     if (!ws)
         return;
@@ -30,15 +30,15 @@ void null_trend_free(null_trend_workspace *ws)
     free(ws->level);
     free(ws->store);
     free(ws->paths);
-    kendall_free(ws->kendall);
-    ar1_drift_free(ws->drift);
-    rolling_scratch_free(ws->scratch);
+    slowscan_kendall_free(ws->kendall);
+    slowscan_ar1_drift_free(ws->drift);
+    slowscan_rolling_scratch_free(ws->scratch);
     if (ws->rng)
         gsl_rng_free(ws->rng);
     free(ws);
 }
 
-null_trend_workspace *null_trend_alloc(size_t n, size_t nkinds)
+null_trend_workspace *slowscan_null_trend_alloc(size_t n, size_t nkinds)
 {
     if (n < 2)
         return NULL;
@@ -53,13 +53,13 @@ null_trend_workspace *null_trend_alloc(size_t n, size_t nkinds)
     ws->level = malloc(n * sizeof *ws->level);
     ws->store = malloc(nkinds * n * sizeof *ws->store);
     ws->paths = malloc(nkinds * sizeof *ws->paths);
-    ws->kendall = kendall_alloc(n);
-    ws->drift = ar1_drift_alloc(n);
-    ws->scratch = rolling_scratch_alloc(n);
+    ws->kendall = slowscan_kendall_alloc(n);
+    ws->drift = slowscan_ar1_drift_alloc(n);
+    ws->scratch = slowscan_rolling_scratch_alloc(n);
     ws->rng = gsl_rng_alloc(gsl_rng_mt19937);
     if (!ws->surrogate || !ws->level || !ws->store || !ws->paths || !ws->kendall || !ws->drift ||
         !ws->scratch || !ws->rng) {
-        null_trend_free(ws);
+        slowscan_null_trend_free(ws);
         return NULL;
     }
     for (size_t k = 0; k < nkinds; k++)
@@ -71,7 +71,7 @@ null_trend_workspace *null_trend_alloc(size_t n, size_t nkinds)
 static int one_replicate(null_trend_workspace *ws, surrogate_source *source,
                          const null_trend_job *job, double *tau)
 {
-    int st = surrogate_draw(source, ws->rng, ws->surrogate);
+    int st = slowscan_surrogate_draw(source, ws->rng, ws->surrogate);
     if (st != SLOWSCAN_OK)
         return st;
     const double *level = NULL;
@@ -81,38 +81,38 @@ static int one_replicate(null_trend_workspace *ws, surrogate_source *source,
         level = ws->level;
     }
     if (job->nkinds > 0 &&
-        (st = rolling_compute_with(job->rolling, ws->scratch, ws->surrogate, level, ws->n,
+        (st = slowscan_rolling_compute_with(job->rolling, ws->scratch, ws->surrogate, level, ws->n,
                                    job->kinds, job->nkinds, ws->paths)) != SLOWSCAN_OK)
         return st;
     if (job->drift) { /* the model-based statistic, on the same surrogate */
         ar1_drift_fit fit;
-        ar1_drift_set_noise_trend(ws->drift, job->drift == 2);
-        tau[job->nkinds] = ar1_drift_estimate(ws->drift, ws->surrogate, ws->n, &fit) == SLOWSCAN_OK
+        slowscan_ar1_drift_set_noise_trend(ws->drift, job->drift == 2);
+        tau[job->nkinds] = slowscan_ar1_drift_estimate(ws->drift, ws->surrogate, ws->n, &fit) == SLOWSCAN_OK
                                ? fit.t_a1 : NAN;
     }
     for (size_t k = 0; k < job->nkinds; k++) {
         size_t used = 0;
-        if (kendall_tau_b(ws->kendall, job->time, ws->paths[k], ws->n, &tau[k], &used) != SLOWSCAN_OK)
+        if (slowscan_kendall_tau_b(ws->kendall, job->time, ws->paths[k], ws->n, &tau[k], &used) != SLOWSCAN_OK)
             tau[k] = NAN;
     }
     return SLOWSCAN_OK;
 }
 
-void null_trend_stream(gsl_rng *rng, unsigned long seed, const char *series, const char *purpose,
+void slowscan_null_trend_stream(gsl_rng *rng, unsigned long seed, const char *series, const char *purpose,
                        size_t j)
 {
     if (j % NULL_TREND_BLOCK == 0)
-        gsl_rng_set(rng, stream_seed(seed, series, purpose, j / NULL_TREND_BLOCK));
+        gsl_rng_set(rng, slowscan_stream_seed(seed, series, purpose, j / NULL_TREND_BLOCK));
 }
 
-int null_trend_draw(null_trend_workspace *ws, surrogate_source *source, const null_trend_job *job,
+int slowscan_null_trend_draw(null_trend_workspace *ws, surrogate_source *source, const null_trend_job *job,
                     size_t first, size_t count, double *null, size_t stride)
 {
     if (first % NULL_TREND_BLOCK != 0 || job->nkinds > ws->nkinds || job->nkinds > INDICATOR_COUNT)
         return SLOWSCAN_EINVAL;
     double tau[INDICATOR_COUNT + 1];
     for (size_t j = first; j < first + count; j++) {
-        null_trend_stream(ws->rng, job->seed, job->series, job->purpose, j);
+        slowscan_null_trend_stream(ws->rng, job->seed, job->series, job->purpose, j);
         int st = one_replicate(ws, source, job, tau);
         if (st != SLOWSCAN_OK)
             return st;

@@ -17,7 +17,7 @@ static int exceeds(double s, double observed, significance_alternative alt)
     }
 }
 
-double significance_p_value(double observed, const double *null, size_t count,
+double slowscan_significance_p_value(double observed, const double *null, size_t count,
                             significance_alternative alternative, size_t *used)
 {
     size_t m = 0, hits = 0;
@@ -47,7 +47,7 @@ static int by_p(const void *a, const void *b)
     return x->index < y->index ? -1 : (x->index > y->index); /* stable: ties by position */
 }
 
-int significance_bh(const double *p, size_t count, double *q, size_t *order)
+int slowscan_significance_bh(const double *p, size_t count, double *q, size_t *order)
 {
     ranked_p *r = malloc((count ? count : 1) * sizeof *r);
     if (!r)
@@ -72,7 +72,7 @@ int significance_bh(const double *p, size_t count, double *q, size_t *order)
     return SLOWSCAN_OK;
 }
 
-unsigned long stream_seed(unsigned long seed, const char *series, const char *purpose,
+unsigned long slowscan_stream_seed(unsigned long seed, const char *series, const char *purpose,
                           unsigned long block)
 {
     uint64_t h = 1469598103934665603ULL; /* FNV-1a 64-bit offset basis */
@@ -108,7 +108,7 @@ static double beta_quantile(double p, double a, double b)
     return 0.5 * (lo + hi);
 }
 
-void significance_binomial_interval(size_t hits, size_t trials, double *lo, double *hi)
+void slowscan_significance_binomial_interval(size_t hits, size_t trials, double *lo, double *hi)
 {
     double k = (double)hits, s = (double)trials;
     *lo = hits == 0 ? 0.0 : beta_quantile(0.025, k, s - k + 1);

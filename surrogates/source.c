@@ -23,12 +23,12 @@ static const surrogate_model models[SURROGATE_COUNT] = {
     [SURROGATE_BLOCK] = {surrogate_block_prepare, surrogate_block_draw},
 };
 
-const char *surrogate_name(surrogate_kind kind)
+const char *slowscan_surrogate_name(surrogate_kind kind)
 {
     return (unsigned)kind < SURROGATE_COUNT ? names[kind] : "unknown";
 }
 
-int surrogate_lookup(const char *name, surrogate_kind *kind)
+int slowscan_surrogate_lookup(const char *name, surrogate_kind *kind)
 {
     for (int k = 0; k < SURROGATE_COUNT; k++)
         if (strcmp(name, names[k]) == 0) {
@@ -38,12 +38,12 @@ int surrogate_lookup(const char *name, surrogate_kind *kind)
     return SLOWSCAN_EINVAL;
 }
 
-surrogate_options surrogate_default_options(void)
+surrogate_options slowscan_surrogate_default_options(void)
 {
     return (surrogate_options){1e-4, 200, 0};
 }
 
-surrogate_plan *surrogate_plan_alloc(size_t n, unsigned fftw_flags)
+surrogate_plan *slowscan_surrogate_plan_alloc(size_t n, unsigned fftw_flags)
 {
     if (n < 2 || n > (size_t)INT32_MAX)
         return NULL;
@@ -59,13 +59,13 @@ surrogate_plan *surrogate_plan_alloc(size_t n, unsigned fftw_flags)
     fftw_free(real);
     fftw_free(cplx);
     if (p && (!p->forward || !p->backward)) {
-        surrogate_plan_free(p);
+        slowscan_surrogate_plan_free(p);
         p = NULL;
     }
     return p;
 }
 
-void surrogate_plan_free(surrogate_plan *p)
+void slowscan_surrogate_plan_free(surrogate_plan *p)
 {
     if (!p)
         return;
@@ -76,9 +76,9 @@ void surrogate_plan_free(surrogate_plan *p)
     free(p);
 }
 
-size_t surrogate_plan_length(const surrogate_plan *p) { return p->n; }
+size_t slowscan_surrogate_plan_length(const surrogate_plan *p) { return p->n; }
 
-void surrogate_source_free(surrogate_source *s)
+void slowscan_surrogate_source_free(surrogate_source *s)
 {
     if (!s)
         return;
@@ -137,7 +137,7 @@ static int allocate(surrogate_source *s)
                : SLOWSCAN_ENOMEM;
 }
 
-surrogate_source *surrogate_source_alloc(const surrogate_plan *plan, surrogate_kind kind,
+surrogate_source *slowscan_surrogate_source_alloc(const surrogate_plan *plan, surrogate_kind kind,
                                          const double *x, const surrogate_options *options,
                                          int *status)
 {
@@ -150,19 +150,19 @@ surrogate_source *surrogate_source_alloc(const surrogate_plan *plan, surrogate_k
         return NULL;
     s->plan = plan;
     s->kind = kind;
-    s->options = options ? *options : surrogate_default_options();
+    s->options = options ? *options : slowscan_surrogate_default_options();
     s->n = plan->n;
     s->nfreq = plan->n / 2 + 1;
     if ((*status = allocate(s)) == SLOWSCAN_OK && (*status = fill_gaps(s, x)) == SLOWSCAN_OK)
         *status = models[kind].prepare(s);
     if (*status != SLOWSCAN_OK) {
-        surrogate_source_free(s);
+        slowscan_surrogate_source_free(s);
         return NULL;
     }
     return s;
 }
 
-int surrogate_draw(surrogate_source *s, gsl_rng *rng, double *out)
+int slowscan_surrogate_draw(surrogate_source *s, gsl_rng *rng, double *out)
 {
     int st = models[s->kind].draw(s, rng, out);
     for (size_t i = 0; s->nmissing && i < s->n; i++)
@@ -171,7 +171,7 @@ int surrogate_draw(surrogate_source *s, gsl_rng *rng, double *out)
     return st;
 }
 
-void surrogate_iaaft_report(const surrogate_source *s, int *iterations, double *error,
+void slowscan_surrogate_iaaft_report(const surrogate_source *s, int *iterations, double *error,
                             size_t *unconverged)
 {
     if (iterations)

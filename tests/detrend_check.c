@@ -56,7 +56,7 @@ int dc_run(detrend_method method, double bandwidth, int degree, double dt, const
            size_t n, double *trend, double *residual)
 {
     detrend_spec spec = {.method = method, .bandwidth = bandwidth, .degree = degree};
-    return detrend_apply(&spec, dt, x, n, trend, residual);
+    return slowscan_detrend_apply(&spec, dt, x, n, trend, residual);
 }
 
 double dc_python_error(const char *script, const detrend_spec *spec, double dt,
@@ -68,7 +68,7 @@ double dc_python_error(const char *script, const detrend_spec *spec, double dt,
         snprintf(arg, sizeof arg, "%d", spec->degree);
     else
         snprintf(arg, sizeof arg, "%.17g", spec->bandwidth);
-    int ok = detrend_apply(spec, dt, x, n, got, NULL) == SLOWSCAN_OK &&
+    int ok = slowscan_detrend_apply(spec, dt, x, n, got, NULL) == SLOWSCAN_OK &&
              dc_python_reference(script, arg, dt, x, n, want, n);
     double err = ok ? check_max_diff(got, want, n) / dc_max_abs(x, n) : INFINITY;
     free(got);

@@ -1,8 +1,8 @@
 /* The batch driver (screen_batch.h): results reach the sink in input order and equal
- * screen_series run one series at a time, whatever the thread count (threads over series, or
+ * slowscan_screen_series run one series at a time, whatever the thread count (threads over series, or
  * over one series' surrogates when series are fewer than threads); the first failure in input
  * order ends the run after every result before it. A check of the project against itself:
- * screen_series is checked against the command's output in suite screen. */
+ * slowscan_screen_series is checked against the command's output in suite screen. */
 #include "check.h"
 #include "slowscan/io.h"
 #include "slowscan/screen_batch.h"
@@ -58,7 +58,7 @@ static int put(void *state, const screen_batch_item *item)
         CHECK(memcmp(&a->statistic, &b->statistic, sizeof a->statistic) == 0 &&
               memcmp(&a->p_value, &b->p_value, sizeof a->p_value) == 0 &&
               memcmp(a->quantile, b->quantile, sizeof a->quantile) == 0,
-              "series %zu test %zu equals screen_series", item->index, j);
+              "series %zu test %zu equals slowscan_screen_series", item->index, j);
     }
     if (item->paths && e->want_path[item->index])
         e->paths_differ |= memcmp(item->paths[0], e->want_path[item->index],
@@ -71,23 +71,23 @@ void suite_batch(void)
     series_table t;
     io_error err;
     csv_read_options ro = {NULL, NULL};
-    if (csv_read_table("data/stations.csv", &ro, &t, &err) != SLOWSCAN_OK) {
+    if (slowscan_csv_read_table("data/stations.csv", &ro, &t, &err) != SLOWSCAN_OK) {
         CHECK(0, "data/stations.csv: %s", err.message);
         return;
     }
-    screen_config cfg = screen_config_default();
+    screen_config cfg = slowscan_screen_config_default();
     cfg.deseason = 364;
     cfg.surrogates = 99;
     expect_sink e = {0};
-    screen_workspace *ws = screen_workspace_alloc(1);
+    screen_workspace *ws = slowscan_screen_workspace_alloc(1);
     for (size_t k = 0; k < t.nseries && k < 16; k++) {
         screen_input in = {t.names[k], t.source, t.time_name, t.time, t.values[k], t.n, NULL};
         screen_detail d;
-        CHECK(screen_series(ws, &cfg, &in, &e.want[k], &d) == SLOWSCAN_OK, "%s", t.names[k]);
+        CHECK(slowscan_screen_series(ws, &cfg, &in, &e.want[k], &d) == SLOWSCAN_OK, "%s", t.names[k]);
         e.want_path[k] = malloc(t.n * sizeof(double));
-        memcpy(e.want_path[k], screen_workspace_path(ws, 0), t.n * sizeof(double));
+        memcpy(e.want_path[k], slowscan_screen_workspace_path(ws, 0), t.n * sizeof(double));
     }
-    screen_workspace_free(ws);
+    slowscan_screen_workspace_free(ws);
     /* 1 and 3 threads over the 8 series; 16: fewer series than threads, shared surrogates */
     const size_t threads[] = {1, 3, 16};
     for (size_t r = 0; r < 3; r++) {
@@ -98,7 +98,7 @@ void suite_batch(void)
         e.paths_differ = 0;
         screen_sink sink = {put, &e, r == 1};
         screen_batch_failure f;
-        CHECK(screen_batch_run(&cfg, &source, &sink, &f) == SLOWSCAN_OK, "batch, %zu threads",
+        CHECK(slowscan_screen_batch_run(&cfg, &source, &sink, &f) == SLOWSCAN_OK, "batch, %zu threads",
               threads[r]);
         CHECK(e.seen == t.nseries && e.bad_order == 0 && !e.paths_differ &&
               src.released == t.nseries, "%zu threads: %zu of %zu series, %zu out of order",
@@ -111,10 +111,10 @@ void suite_batch(void)
     e.seen = e.bad_order = 0;
     screen_sink sink = {put, &e, 0};
     screen_batch_failure f;
-    int st = screen_batch_run(&cfg, &source, &sink, &f);
+    int st = slowscan_screen_batch_run(&cfg, &source, &sink, &f);
     CHECK(st == SLOWSCAN_EINVAL && f.index == 5 && e.seen == 5 && e.bad_order == 0,
           "failure at 5: status %d, index %zu, %zu delivered", st, f.index, e.seen);
     for (size_t k = 0; k < 16; k++)
         free(e.want_path[k]);
-    series_table_free(&t);
+    slowscan_series_table_free(&t);
 }

@@ -52,7 +52,7 @@ size_t calibration_bound(size_t series, double alpha)
 
 void calibration_interval(size_t hits, size_t series, double *lo, double *hi)
 {
-    significance_binomial_interval(hits, series, lo, hi);
+    slowscan_significance_binomial_interval(hits, series, lo, hi);
 }
 
 const char *calibration_verdict(const calibration_case *c, int test, const char *null,

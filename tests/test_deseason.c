@@ -1,4 +1,4 @@
-/* Tests of deseasoning (detrend_deseason_apply): the fixed mean cycle against statsmodels, the
+/* Tests of deseasoning (slowscan_detrend_deseason_apply): the fixed mean cycle against statsmodels, the
  * running climatology and the harmonic fit against an independent numpy implementation of
  * their definitions (tests/reference/deseason_ref.py, numpy.linalg.lstsq and statsmodels
  * OLS), analytic cases, NaN handling, spec errors, and the statsmodels co2 data set through
@@ -19,11 +19,11 @@ void suite_deseason(void);
 static int deseason(double period, int harmonics, double window, double dt, double *x,
                     size_t n)
 {
-    deseason_spec spec = detrend_deseason_default();
+    deseason_spec spec = slowscan_detrend_deseason_default();
     spec.period = period;
     spec.harmonics = harmonics;
     spec.window = window;
-    return detrend_deseason_apply(&spec, dt, x, n);
+    return slowscan_detrend_deseason_apply(&spec, dt, x, n);
 }
 
 /* Largest |x_i - want_i| where want_i = level + slope i; NaN in x must sit where nan_at says. */
@@ -228,7 +228,7 @@ static void expect_problem(deseason_spec spec, double dt, size_t n, deseason_pro
 {
     deseason_problem got = DESEASON_FINE;
     int k = -1;
-    int rc = detrend_deseason_check(&spec, dt, n, &got, &k);
+    int rc = slowscan_detrend_deseason_check(&spec, dt, n, &got, &k);
     CHECK(got == want && rc == (want == DESEASON_FINE ? SLOWSCAN_OK : SLOWSCAN_EINVAL) &&
               (want != DESEASON_FINE || k == want_k),
           "%s: problem %d (want %d), harmonics %d (want %d)", what, (int)got, (int)want, k,
@@ -237,7 +237,7 @@ static void expect_problem(deseason_spec spec, double dt, size_t n, deseason_pro
 
 static void test_spec_errors(void)
 {
-    deseason_spec s = detrend_deseason_default();
+    deseason_spec s = slowscan_detrend_deseason_default();
     CHECK(s.period == 0.0 && s.harmonics == 0 && s.window == 0.0, "default spec");
     expect_problem(s, 1.0, 100, DESEASON_BAD_PERIOD, 0, "period 0");
     s.period = 12.0;
@@ -270,8 +270,8 @@ static void test_spec_errors(void)
     expect_problem(s, 1.0, 100, DESEASON_BAD_WINDOW, 0, "window > record");
     s.window = -1.0;
     expect_problem(s, 1.0, 100, DESEASON_BAD_WINDOW, 0, "window < 0");
-    CHECK(detrend_deseason_check(NULL, 1.0, 100, NULL, NULL) == SLOWSCAN_EINVAL &&
-              detrend_deseason_apply(NULL, 1.0, NULL, 0) == SLOWSCAN_EINVAL,
+    CHECK(slowscan_detrend_deseason_check(NULL, 1.0, 100, NULL, NULL) == SLOWSCAN_EINVAL &&
+              slowscan_detrend_deseason_apply(NULL, 1.0, NULL, 0) == SLOWSCAN_EINVAL,
           "NULL spec");
 }
 

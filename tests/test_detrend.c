@@ -29,7 +29,7 @@ static void test_parse(void)
     };
     for (size_t k = 0; k < sizeof good / sizeof good[0]; k++) {
         detrend_spec spec = {.method = DETREND_NONE, .bandwidth = 7.5, .degree = -1};
-        int rc = detrend_parse_method(good[k].text, &spec);
+        int rc = slowscan_detrend_parse_method(good[k].text, &spec);
         CHECK(rc == SLOWSCAN_OK && spec.method == good[k].method &&
                   spec.degree == good[k].degree && spec.bandwidth == 7.5,
               "parse %s: rc %d method %d degree %d", good[k].text, rc, (int)spec.method,
@@ -41,19 +41,19 @@ static void test_parse(void)
                                       "", "linear ", "gauss", "poly:999999999999999999"};
     for (size_t k = 0; k < sizeof bad / sizeof bad[0]; k++) {
         detrend_spec spec = {.method = DETREND_LOESS, .bandwidth = 1.0, .degree = 5};
-        int rc = detrend_parse_method(bad[k], &spec);
+        int rc = slowscan_detrend_parse_method(bad[k], &spec);
         CHECK(rc == SLOWSCAN_EINVAL && spec.method == DETREND_LOESS && spec.degree == 5,
               "parse '%s' must fail and leave spec alone (rc %d)", bad[k], rc);
     }
-    CHECK(detrend_parse_method(NULL, &(detrend_spec){0}) == SLOWSCAN_EINVAL, "parse NULL");
-    CHECK(strcmp(detrend_method_name(DETREND_LOESS), "loess") == 0, "name loess");
-    CHECK(strcmp(detrend_method_name(DETREND_DIFFERENCE), "difference") == 0, "name diff");
-    CHECK(strcmp(detrend_method_name(DETREND_GAUSSIAN_LINEAR), "gaussian-linear") == 0,
+    CHECK(slowscan_detrend_parse_method(NULL, &(detrend_spec){0}) == SLOWSCAN_EINVAL, "parse NULL");
+    CHECK(strcmp(slowscan_detrend_method_name(DETREND_LOESS), "loess") == 0, "name loess");
+    CHECK(strcmp(slowscan_detrend_method_name(DETREND_DIFFERENCE), "difference") == 0, "name diff");
+    CHECK(strcmp(slowscan_detrend_method_name(DETREND_GAUSSIAN_LINEAR), "gaussian-linear") == 0,
           "name gaussian-linear");
-    CHECK(detrend_uses_bandwidth(DETREND_GAUSSIAN) &&
-              detrend_uses_bandwidth(DETREND_GAUSSIAN_LINEAR) && detrend_uses_bandwidth(DETREND_MOVING) &&
-              detrend_uses_bandwidth(DETREND_LOESS) && !detrend_uses_bandwidth(DETREND_POLY) &&
-              !detrend_uses_bandwidth(DETREND_LINEAR) && !detrend_uses_bandwidth(DETREND_NONE),
+    CHECK(slowscan_detrend_uses_bandwidth(DETREND_GAUSSIAN) &&
+              slowscan_detrend_uses_bandwidth(DETREND_GAUSSIAN_LINEAR) && slowscan_detrend_uses_bandwidth(DETREND_MOVING) &&
+              slowscan_detrend_uses_bandwidth(DETREND_LOESS) && !slowscan_detrend_uses_bandwidth(DETREND_POLY) &&
+              !slowscan_detrend_uses_bandwidth(DETREND_LINEAR) && !slowscan_detrend_uses_bandwidth(DETREND_NONE),
           "uses_bandwidth");
 }
 
@@ -268,7 +268,7 @@ static void test_errors(void)
               dc_run(DETREND_GAUSSIAN_LINEAR, 2.0, 0, 1.0, nanx, 10, t, NULL) == SLOWSCAN_ESHORT,
           "one finite sample -> ESHORT");
     CHECK(dc_run(DETREND_NONE, 2.0, 0, 1.0, x, 0, t, NULL) == SLOWSCAN_ESHORT, "n = 0");
-    CHECK(detrend_apply(NULL, 1.0, x, 10, t, NULL) == SLOWSCAN_EINVAL, "NULL spec");
+    CHECK(slowscan_detrend_apply(NULL, 1.0, x, 10, t, NULL) == SLOWSCAN_EINVAL, "NULL spec");
 }
 
 void suite_detrend(void)

@@ -1,6 +1,6 @@
-/* Tests of the detrend workspace (detrend_workspace_alloc, detrend_apply_with): the contract in
+/* Tests of the detrend workspace (slowscan_detrend_workspace_alloc, slowscan_detrend_apply_with): the contract in
  * include/slowscan/detrend.h. These are internal-consistency checks (the reused workspace
- * against the one-shot call, bit for bit; no outside reference applies): detrend_apply itself
+ * against the one-shot call, bit for bit; no outside reference applies): slowscan_detrend_apply itself
  * is checked against numpy/statsmodels and analytic results in test_detrend.c and
  * test_gaussian.c. Run by the detrend suite. */
 #include "detrend_check.h"
@@ -18,7 +18,7 @@ enum { WS_METHODS = sizeof ws_methods / sizeof ws_methods[0] };
 static detrend_spec spec_of(const char *method, double bandwidth)
 {
     detrend_spec spec = {.bandwidth = bandwidth};
-    detrend_parse_method(method, &spec);
+    slowscan_detrend_parse_method(method, &spec);
     return spec;
 }
 
@@ -31,13 +31,13 @@ static void family_series(check_rng *rng, size_t k, double *x, size_t n)
         dc_punch_gaps(x, n, n / 3 + 5, n / 20 + 1);
 }
 
-/* 1 when apply_with on ws gives the same status and the same bits as detrend_apply. */
+/* 1 when apply_with on ws gives the same status and the same bits as slowscan_detrend_apply. */
 static int same_as_apply(detrend_workspace *ws, const detrend_spec *spec, double dt,
                          const double *x, size_t n, double *buf)
 {
     double *t1 = buf, *r1 = buf + n, *t2 = buf + 2 * n, *r2 = buf + 3 * n;
-    int s1 = detrend_apply(spec, dt, x, n, t1, r1);
-    int s2 = detrend_apply_with(ws, x, n, t2, r2);
+    int s1 = slowscan_detrend_apply(spec, dt, x, n, t1, r1);
+    int s2 = slowscan_detrend_apply_with(ws, x, n, t2, r2);
     return s1 == s2 && (s1 != SLOWSCAN_OK || (memcmp(t1, t2, n * sizeof *t1) == 0 &&
                                               memcmp(r1, r2, n * sizeof *r1) == 0));
 }
@@ -54,7 +54,7 @@ static void check_every_method(check_rng *rng)
             for (size_t b = 0; b < sizeof share / sizeof share[0]; b++) {
                 size_t n = lengths[a], bad = 0;
                 detrend_spec spec = spec_of(ws_methods[m], share[b] * dt * (double)(n - 1));
-                detrend_workspace *ws = detrend_workspace_alloc(&spec, dt, n);
+                detrend_workspace *ws = slowscan_detrend_workspace_alloc(&spec, dt, n);
                 double *x = malloc(5 * n * sizeof *x);
                 for (size_t k = 0; k < 4 && ws; k++) {
                     family_series(rng, k, x, n);
@@ -62,7 +62,7 @@ static void check_every_method(check_rng *rng)
                 }
                 CHECK(ws && bad == 0, "%s n=%zu bandwidth %.3g of the span: %zu of 4 differ",
                       ws_methods[m], n, share[b], bad);
-                detrend_workspace_free(ws);
+                slowscan_detrend_workspace_free(ws);
                 free(x);
             }
 }
@@ -71,7 +71,7 @@ static void check_every_method(check_rng *rng)
 static void check_reuse(check_rng *rng, const char *method, size_t n)
 {
     detrend_spec spec = spec_of(method, 0.1 * (double)(n - 1));
-    detrend_workspace *ws = detrend_workspace_alloc(&spec, 1.0, n);
+    detrend_workspace *ws = slowscan_detrend_workspace_alloc(&spec, 1.0, n);
     double *x = malloc(5 * n * sizeof *x);
     size_t bad = 0;
     for (size_t k = 0; k < 100 && ws; k++) {
@@ -79,7 +79,7 @@ static void check_reuse(check_rng *rng, const char *method, size_t n)
         bad += !same_as_apply(ws, &spec, 1.0, x, n, x + n);
     }
     CHECK(ws && bad == 0, "%s n=%zu: %zu of 100 reused-workspace fits differ", method, n, bad);
-    detrend_workspace_free(ws);
+    slowscan_detrend_workspace_free(ws);
     free(x);
 }
 
@@ -98,13 +98,13 @@ static void *thread_run(void *arg)
     thread_job *job = arg;
     job->status = SLOWSCAN_OK;
     for (size_t k = 0; k < THREAD_SERIES && job->status == SLOWSCAN_OK; k++)
-        job->status = detrend_apply_with(job->ws, job->x + k * job->n, job->n, NULL,
+        job->status = slowscan_detrend_apply_with(job->ws, job->x + k * job->n, job->n, NULL,
                                          job->out + k * job->n);
     return NULL;
 }
 
 /* Two threads, each with its own workspace (allocated here, on one thread, as the header asks),
- * detrend the same series concurrently; both give what serial detrend_apply gives. */
+ * detrend the same series concurrently; both give what serial slowscan_detrend_apply gives. */
 static void check_threads(check_rng *rng, const char *method, size_t n)
 {
     detrend_spec spec = spec_of(method, 0.1 * (double)(n - 1));
@@ -113,12 +113,12 @@ static void check_threads(check_rng *rng, const char *method, size_t n)
     thread_job job[2];
     for (size_t k = 0; k < THREAD_SERIES; k++) {
         family_series(rng, k, x + k * n, n);
-        detrend_apply(&spec, 1.0, x + k * n, n, NULL, serial + k * n);
+        slowscan_detrend_apply(&spec, 1.0, x + k * n, n, NULL, serial + k * n);
     }
     pthread_t tid[2];
     int started[2] = {0, 0};
     for (int t = 0; t < 2; t++) {
-        job[t] = (thread_job){.ws = detrend_workspace_alloc(&spec, 1.0, n), .x = x, .n = n,
+        job[t] = (thread_job){.ws = slowscan_detrend_workspace_alloc(&spec, 1.0, n), .x = x, .n = n,
                               .out = x + (size_t)(2 + t) * THREAD_SERIES * n,
                               .status = SLOWSCAN_ENOMEM};
         started[t] = job[t].ws && pthread_create(&tid[t], NULL, thread_run, &job[t]) == 0;
@@ -130,7 +130,7 @@ static void check_threads(check_rng *rng, const char *method, size_t n)
                   memcmp(job[t].out, serial, THREAD_SERIES * n * sizeof *x) == 0,
               "%s n=%zu: thread %d differs from the serial fits (status %d)", method, n, t,
               job[t].status);
-        detrend_workspace_free(job[t].ws);
+        slowscan_detrend_workspace_free(job[t].ws);
     }
     free(x);
 }
@@ -144,21 +144,21 @@ static void check_shorter(check_rng *rng)
     family_series(rng, 1, x, m);
     for (size_t k = 0; k < WS_METHODS; k++) {
         detrend_spec spec = spec_of(ws_methods[k], 150.0);
-        detrend_workspace *ws = detrend_workspace_alloc(&spec, 1.0, n);
+        detrend_workspace *ws = slowscan_detrend_workspace_alloc(&spec, 1.0, n);
         int gauss = spec.method == DETREND_GAUSSIAN || spec.method == DETREND_GAUSSIAN_LINEAR;
         if (!gauss) {
             CHECK(ws && same_as_apply(ws, &spec, 1.0, x, m, x + n), "%s: n %zu in a workspace "
-                  "of %zu differs from detrend_apply", ws_methods[k], m, n);
+                  "of %zu differs from slowscan_detrend_apply", ws_methods[k], m, n);
         } else {
             double *want = x + n, *got = x + 2 * n;
-            int s1 = detrend_apply(&spec, 1.0, x, m, want, NULL);
-            int s2 = ws ? detrend_apply_with(ws, x, m, got, NULL) : SLOWSCAN_ENOMEM;
+            int s1 = slowscan_detrend_apply(&spec, 1.0, x, m, want, NULL);
+            int s2 = ws ? slowscan_detrend_apply_with(ws, x, m, got, NULL) : SLOWSCAN_ENOMEM;
             double err = s1 == SLOWSCAN_OK && s2 == SLOWSCAN_OK ? check_max_diff(got, want, m)
                                                                 : INFINITY;
             CHECK(err <= 1e-11 * dc_max_abs(x, m), "%s: n %zu in a workspace of %zu: "
                   "max difference %.3g", ws_methods[k], m, n, err);
         }
-        detrend_workspace_free(ws);
+        slowscan_detrend_workspace_free(ws);
     }
     free(x);
 }
@@ -169,28 +169,28 @@ static void check_errors(void)
     for (size_t i = 0; i < 64; i++)
         x[i] = sin(0.3 * (double)i);
     detrend_spec good = spec_of("gaussian-linear", 5.0);
-    detrend_workspace *ws = detrend_workspace_alloc(&good, 1.0, 32);
+    detrend_workspace *ws = slowscan_detrend_workspace_alloc(&good, 1.0, 32);
     CHECK(ws != NULL, "workspace for n = 32");
-    CHECK(detrend_apply_with(ws, x, 33, out, out) == SLOWSCAN_EINVAL, "n above the workspace's");
-    CHECK(detrend_apply_with(NULL, x, 10, out, out) == SLOWSCAN_EINVAL, "NULL workspace");
-    CHECK(detrend_apply_with(ws, NULL, 10, out, out) == SLOWSCAN_EINVAL, "NULL x");
-    CHECK(detrend_apply_with(ws, x, 1, out, out) == SLOWSCAN_ESHORT, "one sample");
-    CHECK(detrend_apply_with(ws, x, 32, out, out) == SLOWSCAN_OK, "after errors, still usable");
-    detrend_workspace_free(ws);
-    detrend_workspace_free(NULL); /* a no-op, like free */
+    CHECK(slowscan_detrend_apply_with(ws, x, 33, out, out) == SLOWSCAN_EINVAL, "n above the workspace's");
+    CHECK(slowscan_detrend_apply_with(NULL, x, 10, out, out) == SLOWSCAN_EINVAL, "NULL workspace");
+    CHECK(slowscan_detrend_apply_with(ws, NULL, 10, out, out) == SLOWSCAN_EINVAL, "NULL x");
+    CHECK(slowscan_detrend_apply_with(ws, x, 1, out, out) == SLOWSCAN_ESHORT, "one sample");
+    CHECK(slowscan_detrend_apply_with(ws, x, 32, out, out) == SLOWSCAN_OK, "after errors, still usable");
+    slowscan_detrend_workspace_free(ws);
+    slowscan_detrend_workspace_free(NULL); /* a no-op, like free */
     detrend_spec bad[] = {spec_of("gaussian", 0.0), spec_of("loess", -1.0),
                           spec_of("moving", NAN), {.method = (detrend_method)99},
                           {.method = DETREND_POLY, .degree = 13}};
     for (size_t k = 0; k < sizeof bad / sizeof bad[0]; k++)
-        CHECK(detrend_workspace_alloc(&bad[k], 1.0, 32) == NULL, "bad spec %zu: no workspace", k);
-    CHECK(detrend_workspace_alloc(NULL, 1.0, 32) == NULL, "NULL spec: no workspace");
-    CHECK(detrend_workspace_alloc(&good, 0.0, 32) == NULL, "dt 0: no workspace");
-    CHECK(detrend_workspace_alloc(&good, 1.0, 0) == NULL, "n 0: no workspace");
+        CHECK(slowscan_detrend_workspace_alloc(&bad[k], 1.0, 32) == NULL, "bad spec %zu: no workspace", k);
+    CHECK(slowscan_detrend_workspace_alloc(NULL, 1.0, 32) == NULL, "NULL spec: no workspace");
+    CHECK(slowscan_detrend_workspace_alloc(&good, 0.0, 32) == NULL, "dt 0: no workspace");
+    CHECK(slowscan_detrend_workspace_alloc(&good, 1.0, 0) == NULL, "n 0: no workspace");
     detrend_spec poly = spec_of("poly:5", 0.0);
-    ws = detrend_workspace_alloc(&poly, 1.0, 32);
-    CHECK(ws && detrend_apply_with(ws, x, 5, out, out) == SLOWSCAN_EINVAL,
-          "poly:5 on 5 samples (as detrend_apply)");
-    detrend_workspace_free(ws);
+    ws = slowscan_detrend_workspace_alloc(&poly, 1.0, 32);
+    CHECK(ws && slowscan_detrend_apply_with(ws, x, 5, out, out) == SLOWSCAN_EINVAL,
+          "poly:5 on 5 samples (as slowscan_detrend_apply)");
+    slowscan_detrend_workspace_free(ws);
 }
 
 void detrend_workspace_checks(check_rng *rng)

@@ -45,7 +45,7 @@ static int run_all(const double *x, const double *level, size_t n, size_t W, dou
 {
     rolling_spec spec = {W, cov, dt, rm, 0, 0, 0, NULL};
     /* cv needs a level; where a test has none, cv is computed on x and not checked. */
-    return rolling_compute(&spec, x, level ? level : x, n, all_kinds, NK, o->v);
+    return slowscan_rolling_compute(&spec, x, level ? level : x, n, all_kinds, NK, o->v);
 }
 
 /* offset + scale * AR(1) with coefficient phi, unit innovations. */
@@ -179,7 +179,7 @@ static void compare_series(const char *label, const double *x, const double *lev
 {
     outputs o = outputs_alloc(n);
     int st = run_all(x, level, n, W, cov, 1.0, RECOVERY_LOG_AR1, &o);
-    CHECK(st == SLOWSCAN_OK, "%s W=%zu: rolling_compute status %d", label, W, st);
+    CHECK(st == SLOWSCAN_OK, "%s W=%zu: slowscan_rolling_compute status %d", label, W, st);
     scratch s = {malloc(W * sizeof(double)), malloc(W * sizeof(double)),
                  malloc(W * sizeof(double))};
     tally t[7] = {{"variance", REL, 0, 0, 0, 0, 0, 0}, {"sd", REL, 0, 0, 0, 0, 0, 0},
@@ -254,7 +254,7 @@ static void test_hard_series(void)
     indicator_kind kind = INDICATOR_AR1;
     rolling_spec spec = {50, 0.8, 1.0, RECOVERY_LOG_AR1, 0, 0, 0, NULL};
     double worst = 0;
-    if (rolling_compute(&spec, spike, NULL, n, &kind, 1, &ar1) == SLOWSCAN_OK)
+    if (slowscan_rolling_compute(&spec, spike, NULL, n, &kind, 1, &ar1) == SLOWSCAN_OK)
         for (size_t i = 990; i < 1060; i++) {
             double c0, c1, c00, c01, c11, ssq; /* reference library: GSL gsl_fit_linear */
             const double *w = spike + i + 1 - 50;
@@ -309,15 +309,15 @@ static void test_coverage_threshold(void)
     double *outs[1] = {out};
     indicator_kind kind = INDICATOR_VARIANCE;
     rolling_spec spec = {10, 0.8, 1.0, RECOVERY_LOG_AR1, 0, 0, 0, NULL};
-    CHECK(rolling_compute(&spec, x, NULL, 10, &kind, 1, outs) == SLOWSCAN_OK, "coverage run");
+    CHECK(slowscan_rolling_compute(&spec, x, NULL, 10, &kind, 1, outs) == SLOWSCAN_OK, "coverage run");
     double present[8] = {1, 4, 2, 8, 5, 7, 3, 6};
     /* Reference library: GSL gsl_stats_variance on the 8 present samples. */
     CHECK_CLOSE(out[9], gsl_stats_variance(present, 1, 8), 1e-14, 0, "8 of 10 present");
     x[0] = NAN;
-    CHECK(rolling_compute(&spec, x, NULL, 10, &kind, 1, outs) == SLOWSCAN_OK, "coverage run");
+    CHECK(slowscan_rolling_compute(&spec, x, NULL, 10, &kind, 1, outs) == SLOWSCAN_OK, "coverage run");
     CHECK(isnan(out[9]), "7 of 10 present at coverage 0.8 gives NaN, got %g", out[9]);
     spec.min_coverage = 0.7;
-    CHECK(rolling_compute(&spec, x, NULL, 10, &kind, 1, outs) == SLOWSCAN_OK, "coverage run");
+    CHECK(slowscan_rolling_compute(&spec, x, NULL, 10, &kind, 1, outs) == SLOWSCAN_OK, "coverage run");
     CHECK(isfinite(out[9]), "7 of 10 present at coverage 0.7 gives a value");
 }
 
@@ -336,7 +336,7 @@ static void test_sunspots(void)
     double lag1[309], var[309], *outs[2] = {lag1, var};
     indicator_kind kinds[2] = {INDICATOR_LAG1, INDICATOR_VARIANCE};
     rolling_spec spec = {n, 1.0, 1.0, RECOVERY_LOG_AR1, 0, 0, 0, NULL};
-    CHECK(rolling_compute(&spec, x, NULL, n, kinds, 2, outs) == SLOWSCAN_OK, "sunspots run");
+    CHECK(slowscan_rolling_compute(&spec, x, NULL, n, kinds, 2, outs) == SLOWSCAN_OK, "sunspots run");
     CHECK_CLOSE(lag1[n - 1], vals[n + 1], 1e-12, 0, "sunspots lag1 vs statsmodels acf");
     CHECK_CLOSE(var[n - 1], vals[n + 2], 1e-12, 0, "sunspots variance vs numpy var(ddof=1)");
     CHECK(isnan(lag1[n - 2]), "sunspots: index n-2 < W-1 is NaN");
@@ -450,26 +450,26 @@ static void test_errors(void)
         x[i] = (double)(i % 7);
     indicator_kind var = INDICATOR_VARIANCE, cv = INDICATOR_CV, bad = INDICATOR_COUNT;
     rolling_spec ok = {10, 0.8, 1.0, RECOVERY_LOG_AR1, 0, 0, 0, NULL}, s;
-    CHECK(rolling_compute(&ok, x, NULL, 20, &var, 1, outs) == SLOWSCAN_OK, "valid spec");
+    CHECK(slowscan_rolling_compute(&ok, x, NULL, 20, &var, 1, outs) == SLOWSCAN_OK, "valid spec");
     s = ok, s.window = 2;
-    CHECK(rolling_compute(&s, x, NULL, 20, &var, 1, outs) == SLOWSCAN_EINVAL, "W < 3");
+    CHECK(slowscan_rolling_compute(&s, x, NULL, 20, &var, 1, outs) == SLOWSCAN_EINVAL, "W < 3");
     s = ok, s.window = 21;
-    CHECK(rolling_compute(&s, x, NULL, 20, &var, 1, outs) == SLOWSCAN_EINVAL, "W > n");
+    CHECK(slowscan_rolling_compute(&s, x, NULL, 20, &var, 1, outs) == SLOWSCAN_EINVAL, "W > n");
     s = ok, s.window = 20;
-    CHECK(rolling_compute(&s, x, NULL, 20, &var, 1, outs) == SLOWSCAN_OK, "W = n");
+    CHECK(slowscan_rolling_compute(&s, x, NULL, 20, &var, 1, outs) == SLOWSCAN_OK, "W = n");
     const double covs[4] = {0.0, -0.1, 1.0000001, NAN};
     for (int c = 0; c < 4; c++) {
         s = ok, s.min_coverage = covs[c];
-        CHECK(rolling_compute(&s, x, NULL, 20, &var, 1, outs) == SLOWSCAN_EINVAL,
+        CHECK(slowscan_rolling_compute(&s, x, NULL, 20, &var, 1, outs) == SLOWSCAN_EINVAL,
               "coverage %g", covs[c]);
     }
     s = ok, s.dt = 0.0;
-    CHECK(rolling_compute(&s, x, NULL, 20, &var, 1, outs) == SLOWSCAN_EINVAL, "dt = 0");
-    CHECK(rolling_compute(&ok, x, NULL, 20, &cv, 1, outs) == SLOWSCAN_EINVAL, "cv, no level");
-    CHECK(rolling_compute(&ok, x, x, 20, &cv, 1, outs) == SLOWSCAN_OK, "cv with level");
-    CHECK(rolling_compute(&ok, x, NULL, 20, &bad, 1, outs) == SLOWSCAN_EINVAL, "bad kind");
-    CHECK(rolling_compute(&ok, x, NULL, 20, &var, 1, NULL) == SLOWSCAN_EINVAL, "no out");
-    CHECK(rolling_compute(NULL, x, NULL, 20, &var, 1, outs) == SLOWSCAN_EINVAL, "no spec");
+    CHECK(slowscan_rolling_compute(&s, x, NULL, 20, &var, 1, outs) == SLOWSCAN_EINVAL, "dt = 0");
+    CHECK(slowscan_rolling_compute(&ok, x, NULL, 20, &cv, 1, outs) == SLOWSCAN_EINVAL, "cv, no level");
+    CHECK(slowscan_rolling_compute(&ok, x, x, 20, &cv, 1, outs) == SLOWSCAN_OK, "cv with level");
+    CHECK(slowscan_rolling_compute(&ok, x, NULL, 20, &bad, 1, outs) == SLOWSCAN_EINVAL, "bad kind");
+    CHECK(slowscan_rolling_compute(&ok, x, NULL, 20, &var, 1, NULL) == SLOWSCAN_EINVAL, "no out");
+    CHECK(slowscan_rolling_compute(NULL, x, NULL, 20, &var, 1, outs) == SLOWSCAN_EINVAL, "no spec");
 }
 
 static void test_names(void)
@@ -478,18 +478,18 @@ static void test_names(void)
                              "kurtosis", "lag1", "ar1", "recovery"};
     for (int k = 0; k < NK; k++) {
         indicator_kind got = INDICATOR_COUNT;
-        CHECK(indicator_name((indicator_kind)k) && !strcmp(indicator_name((indicator_kind)k),
+        CHECK(slowscan_indicator_name((indicator_kind)k) && !strcmp(slowscan_indicator_name((indicator_kind)k),
                                                            names[k]), "name %d", k);
-        CHECK(indicator_lookup(names[k], &got) == SLOWSCAN_OK && got == (indicator_kind)k,
+        CHECK(slowscan_indicator_lookup(names[k], &got) == SLOWSCAN_OK && got == (indicator_kind)k,
               "lookup %s", names[k]);
-        CHECK(indicator_direction((indicator_kind)k) == (k == INDICATOR_SKEWNESS ? 0 : 1),
+        CHECK(slowscan_indicator_direction((indicator_kind)k) == (k == INDICATOR_SKEWNESS ? 0 : 1),
               "direction %s", names[k]);
-        CHECK(indicator_needs_level((indicator_kind)k) == (k == INDICATOR_CV), "level %s",
+        CHECK(slowscan_indicator_needs_level((indicator_kind)k) == (k == INDICATOR_CV), "level %s",
               names[k]);
     }
     indicator_kind got;
-    CHECK(indicator_lookup("redness?", &got) == SLOWSCAN_EINVAL, "unknown name");
-    CHECK(indicator_name(INDICATOR_COUNT) == NULL, "name of an invalid kind");
+    CHECK(slowscan_indicator_lookup("redness?", &got) == SLOWSCAN_EINVAL, "unknown name");
+    CHECK(slowscan_indicator_name(INDICATOR_COUNT) == NULL, "name of an invalid kind");
 }
 
 /* The comparison must be able to fail: a reference taken over windows one sample short

@@ -62,7 +62,7 @@ static void test_against_scipy(kendall_workspace *ws)
             size_t n = sizes[s], used = 0;
             fill(rng, kind, x, y, n);
             double tau = NAN, want = tau_scipy(x, y, n);
-            int st = kendall_tau_b(ws, x, y, n, &tau, &used);
+            int st = slowscan_kendall_tau_b(ws, x, y, n, &tau, &used);
             CHECK(st == SLOWSCAN_OK && used == n, "%s n=%zu: status %d used %zu", names[kind],
                   n, st, used);
             CHECK_CLOSE(tau, want, 1e-12, 1e-12, names[kind]);
@@ -80,14 +80,14 @@ static void test_against_direct(kendall_workspace *ws)
     for (int kind = 0; kind < 3; kind++) {
         fill(rng, kind, x, y, n);
         /* common practice, no source: the O(n^2) count is the definition itself */
-        CHECK(kendall_tau_b(ws, x, y, n, &tau, NULL) == SLOWSCAN_OK, "direct kind %d", kind);
+        CHECK(slowscan_kendall_tau_b(ws, x, y, n, &tau, NULL) == SLOWSCAN_OK, "direct kind %d", kind);
         CHECK_CLOSE(tau, tau_direct(x, y, n), 1e-13, 1e-14, "tau vs O(n^2) count");
     }
     /* All small sizes, where the merge-sort run boundaries are irregular. */
     size_t bad = 0;
     for (size_t m = 2; m < 300; m++) {
         fill(rng, (int)(m % 3), x, y, m);
-        int st = kendall_tau_b(ws, x, y, m, &tau, NULL);
+        int st = slowscan_kendall_tau_b(ws, x, y, m, &tau, NULL);
         if (st == SLOWSCAN_OK)
             bad += !check_close(tau, tau_direct(x, y, m), 1e-13, 1e-14);
         else
@@ -104,16 +104,16 @@ static void test_hand(kendall_workspace *ws)
 {
     double x[5] = {1, 2, 3, 4, 5}, y[5] = {1, 3, 2, 5, 4}, tau;
     /* 10 pairs, 2 discordant (3,2) and (5,4): (8 - 2) / 10 = 0.6. */
-    CHECK(kendall_tau_b(ws, x, y, 5, &tau, NULL) == SLOWSCAN_OK, "hand example");
+    CHECK(slowscan_kendall_tau_b(ws, x, y, 5, &tau, NULL) == SLOWSCAN_OK, "hand example");
     CHECK_CLOSE(tau, 0.6, 1e-15, 0, "tau of 1 3 2 5 4");
     double xt[4] = {1, 2, 2, 3}, yt[4] = {1, 1, 2, 3};
     /* 6 pairs: 4 concordant, one tied in x, one in y: 4 / sqrt(5 * 5) = 0.8. */
-    CHECK(kendall_tau_b(ws, xt, yt, 4, &tau, NULL) == SLOWSCAN_OK, "hand example, ties");
+    CHECK(slowscan_kendall_tau_b(ws, xt, yt, 4, &tau, NULL) == SLOWSCAN_OK, "hand example, ties");
     CHECK_CLOSE(tau, 0.8, 1e-15, 0, "tau-b with one tie in each");
     double yr[5] = {5, 4, 3, 2, 1};
-    int st = kendall_tau_b(ws, x, yr, 5, &tau, NULL);
+    int st = slowscan_kendall_tau_b(ws, x, yr, 5, &tau, NULL);
     CHECK(st == SLOWSCAN_OK && tau == -1.0, "reversed order gives exactly -1, got %.17g", tau);
-    st = kendall_tau_b(ws, x, x, 5, &tau, NULL);
+    st = slowscan_kendall_tau_b(ws, x, x, 5, &tau, NULL);
     CHECK(st == SLOWSCAN_OK && tau == 1.0, "identical order gives exactly 1, got %.17g", tau);
 }
 
@@ -135,9 +135,9 @@ static void test_nan_skipping(kendall_workspace *ws)
             cy[m++] = y[i];
         }
     }
-    CHECK(kendall_tau_b(ws, x, y, n, &tau, &used) == SLOWSCAN_OK, "NaN run");
+    CHECK(slowscan_kendall_tau_b(ws, x, y, n, &tau, &used) == SLOWSCAN_OK, "NaN run");
     CHECK(used == m, "used %zu, want %zu finite pairs", used, m);
-    CHECK(kendall_tau_b(ws, cx, cy, m, &want, NULL) == SLOWSCAN_OK, "compacted run");
+    CHECK(slowscan_kendall_tau_b(ws, cx, cy, m, &want, NULL) == SLOWSCAN_OK, "compacted run");
     CHECK(tau == want, "with NaN %.17g vs compacted %.17g", tau, want);
     CHECK_CLOSE(tau, tau_direct(cx, cy, m), 1e-13, 1e-14, "NaN skipping vs O(n^2) count");
     check_rng_free(rng);
@@ -148,28 +148,28 @@ static void test_errors(kendall_workspace *ws)
     double x[6] = {1, 2, 3, 4, 5, 6}, c[6] = {2, 2, 2, 2, 2, 2}, tau = 0;
     double nan6[6] = {NAN, NAN, NAN, NAN, NAN, 1};
     size_t used = 99;
-    CHECK(kendall_tau_b(ws, x, c, 6, &tau, &used) == SLOWSCAN_ECONST && isnan(tau) && used == 6,
+    CHECK(slowscan_kendall_tau_b(ws, x, c, 6, &tau, &used) == SLOWSCAN_ECONST && isnan(tau) && used == 6,
           "constant y: ECONST, NaN");
-    CHECK(kendall_tau_b(ws, c, x, 6, &tau, NULL) == SLOWSCAN_ECONST && isnan(tau),
+    CHECK(slowscan_kendall_tau_b(ws, c, x, 6, &tau, NULL) == SLOWSCAN_ECONST && isnan(tau),
           "constant x: ECONST, NaN");
-    CHECK(kendall_tau_b(ws, x, nan6, 6, &tau, &used) == SLOWSCAN_ESHORT && isnan(tau) &&
+    CHECK(slowscan_kendall_tau_b(ws, x, nan6, 6, &tau, &used) == SLOWSCAN_ESHORT && isnan(tau) &&
               used == 1, "one finite pair: ESHORT");
-    CHECK(kendall_tau_b(ws, x, x, 1, &tau, NULL) == SLOWSCAN_ESHORT, "n = 1: ESHORT");
-    CHECK(kendall_tau_b(ws, x, x, 0, &tau, NULL) == SLOWSCAN_ESHORT, "n = 0: ESHORT");
-    kendall_workspace *small = kendall_alloc(4);
-    CHECK(small != NULL, "kendall_alloc(4)");
-    CHECK(kendall_tau_b(small, x, x, 6, &tau, NULL) == SLOWSCAN_EINVAL && isnan(tau),
+    CHECK(slowscan_kendall_tau_b(ws, x, x, 1, &tau, NULL) == SLOWSCAN_ESHORT, "n = 1: ESHORT");
+    CHECK(slowscan_kendall_tau_b(ws, x, x, 0, &tau, NULL) == SLOWSCAN_ESHORT, "n = 0: ESHORT");
+    kendall_workspace *small = slowscan_kendall_alloc(4);
+    CHECK(small != NULL, "slowscan_kendall_alloc(4)");
+    CHECK(slowscan_kendall_tau_b(small, x, x, 6, &tau, NULL) == SLOWSCAN_EINVAL && isnan(tau),
           "n > nmax: EINVAL");
-    CHECK(kendall_tau_b(small, x, x, 4, &tau, NULL) == SLOWSCAN_OK && tau == 1.0, "n = nmax");
-    kendall_free(small);
-    kendall_free(NULL);
-    CHECK(kendall_tau_b(NULL, x, x, 4, &tau, NULL) == SLOWSCAN_EINVAL, "no workspace");
+    CHECK(slowscan_kendall_tau_b(small, x, x, 4, &tau, NULL) == SLOWSCAN_OK && tau == 1.0, "n = nmax");
+    slowscan_kendall_free(small);
+    slowscan_kendall_free(NULL);
+    CHECK(slowscan_kendall_tau_b(NULL, x, x, 4, &tau, NULL) == SLOWSCAN_EINVAL, "no workspace");
 }
 
 void suite_kendall(void)
 {
-    kendall_workspace *ws = kendall_alloc(5000);
-    CHECK(ws != NULL, "kendall_alloc(5000)");
+    kendall_workspace *ws = slowscan_kendall_alloc(5000);
+    CHECK(ws != NULL, "slowscan_kendall_alloc(5000)");
     if (!ws)
         return;
     test_hand(ws);
@@ -177,5 +177,5 @@ void suite_kendall(void)
     test_against_direct(ws);
     test_nan_skipping(ws);
     test_errors(ws);
-    kendall_free(ws);
+    slowscan_kendall_free(ws);
 }

@@ -28,7 +28,7 @@ static void test_definition(check_rng *rng)
     for (size_t i = N - EDGE; i < N; i++)
         x[i] += 1.5; /* a step left at the end */
     detrend_leakage l;
-    CHECK(detrend_leakage_test(x, N, EDGE, 0.01, &l) == SLOWSCAN_OK, "leakage test runs");
+    CHECK(slowscan_detrend_leakage_test(x, N, EDGE, 0.01, &l) == SLOWSCAN_OK, "leakage test runs");
     double mean = 0, ss = 0, cross = 0, last = 0;
     for (size_t i = 0; i < N; i++)
         mean += x[i] / N;
@@ -48,12 +48,12 @@ static void test_definition(check_rng *rng)
     CHECK_CLOSE(l.last.p, 2 * gsl_cdf_ugaussian_Q(fabs(z)), 1e-10, 0, "p of the last edge");
     CHECK(l.leaking && l.last.p < 0.005, "a step of 1.5 sd over the last edge leaks (p %.3g)", l.last.p);
     /* errors */
-    CHECK(detrend_leakage_test(x, N, 1, 0.01, &l) == SLOWSCAN_EINVAL, "edge of 1 refused");
-    CHECK(detrend_leakage_test(x, N, N + 1, 0.01, &l) == SLOWSCAN_EINVAL, "edge > n refused");
-    CHECK(detrend_leakage_test(x, N, EDGE, 0, &l) == SLOWSCAN_EINVAL, "level 0 refused");
+    CHECK(slowscan_detrend_leakage_test(x, N, 1, 0.01, &l) == SLOWSCAN_EINVAL, "edge of 1 refused");
+    CHECK(slowscan_detrend_leakage_test(x, N, N + 1, 0.01, &l) == SLOWSCAN_EINVAL, "edge > n refused");
+    CHECK(slowscan_detrend_leakage_test(x, N, EDGE, 0, &l) == SLOWSCAN_EINVAL, "level 0 refused");
     for (size_t i = 0; i < N; i++)
         x[i] = 3.0;
-    CHECK(detrend_leakage_test(x, N, EDGE, 0.01, &l) == SLOWSCAN_ECONST, "constant residual");
+    CHECK(slowscan_detrend_leakage_test(x, N, EDGE, 0.01, &l) == SLOWSCAN_ECONST, "constant residual");
 }
 
 /* Size: residuals of the default detrend of stationary AR(1) series (no trend) must not be
@@ -70,13 +70,13 @@ static void test_size_and_power(check_rng *rng)
     detrend_leakage l;
     for (size_t k = 0; k < SERIES; k++) {
         ar1_fill(rng, 0.5, x, N);
-        if (detrend_apply(&linear, 1.0, x, N, NULL, res) == SLOWSCAN_OK &&
-            detrend_leakage_test(res, N, 50, 0.01, &l) == SLOWSCAN_OK)
+        if (slowscan_detrend_apply(&linear, 1.0, x, N, NULL, res) == SLOWSCAN_OK &&
+            slowscan_detrend_leakage_test(res, N, 50, 0.01, &l) == SLOWSCAN_OK)
             leaks += l.leaking;
         for (size_t i = 0; i < N; i++)
             x[i] += 0.05 * (double)i; /* 25 units over the record, ~1.15 noise sd */
-        if (detrend_apply(&constant, 1.0, x, N, NULL, res) == SLOWSCAN_OK &&
-            detrend_leakage_test(res, N, 50, 0.01, &l) == SLOWSCAN_OK)
+        if (slowscan_detrend_apply(&constant, 1.0, x, N, NULL, res) == SLOWSCAN_OK &&
+            slowscan_detrend_leakage_test(res, N, 50, 0.01, &l) == SLOWSCAN_OK)
             caught += l.leaking;
     }
     unsigned bound = 0;

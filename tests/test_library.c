@@ -234,6 +234,15 @@ static void check_exports(void)
           diff);
     free(diff);
     free(names);
+    /* Every name either library exports carries the project prefix, so a caller's own
+     * detrend_apply or report_batch can never collide with ours. */
+    snprintf(cmd, sizeof cmd, "nm -D --defined-only '%s/lib/libslowscan.so' "
+             "'%s/lib/libslowscan-report.so' | awk 'NF == 3 { print $3 }' | "
+             "grep -v '^slowscan_' | sort -u", prefix, prefix);
+    char *unprefixed = run(cmd, NULL);
+    CHECK(!*unprefixed, "every exported name starts with slowscan_; these do not:\n%s",
+          unprefixed);
+    free(unprefixed);
 }
 
 /* (c) The core library does not need PLplot; the report library does. */

@@ -46,8 +46,8 @@ static void test_against_delta_method(ar1_drift_workspace *ws, gsl_rng *rng, dou
     check_rng_free(r);
     ar1_drift_fit fit;
     ar1_projection pr;
-    CHECK(ar1_drift_estimate(ws, x, N, &fit) == SLOWSCAN_OK, "fit of the long drifting AR(1)");
-    CHECK(ar1_drift_project(ws, &fit, N, 2.0 * (N - 1), 2000, rng, &pr) == SLOWSCAN_OK,
+    CHECK(slowscan_ar1_drift_estimate(ws, x, N, &fit) == SLOWSCAN_OK, "fit of the long drifting AR(1)");
+    CHECK(slowscan_ar1_drift_project(ws, &fit, N, 2.0 * (N - 1), 2000, rng, &pr) == SLOWSCAN_OK,
           "projection runs");
     double g0 = -1.0 / fit.a1, g1 = -(1.0 - fit.a0) / (fit.a1 * fit.a1);
     double var = g0 * g0 * fit.se_a0 * fit.se_a0 + g1 * g1 * fit.se_a1 * fit.se_a1 +
@@ -75,8 +75,8 @@ static void test_coverage_model(ar1_drift_workspace *ws, gsl_rng *rng, double *x
         simulate_drifting_ar1(r, x, N, 0.7, 0.4);
         ar1_drift_fit fit;
         ar1_projection pr;
-        if (ar1_drift_estimate(ws, x, N, &fit) != SLOWSCAN_OK ||
-            ar1_drift_project(ws, &fit, N, 2.0 * (N - 1), 500, rng, &pr) != SLOWSCAN_OK)
+        if (slowscan_ar1_drift_estimate(ws, x, N, &fit) != SLOWSCAN_OK ||
+            slowscan_ar1_drift_project(ws, &fit, N, 2.0 * (N - 1), 500, rng, &pr) != SLOWSCAN_OK)
             continue;
         covered += pr.index_lo <= truth && truth <= pr.index_hi;
     }
@@ -108,9 +108,9 @@ static void test_coverage_fold(ar1_drift_workspace *ws, gsl_rng *rng, double *x)
         simulate_fold(r, x, N, a_end);
         ar1_drift_fit fit;
         ar1_projection pr;
-        if (detrend_apply(&spec, 1.0, x, N, NULL, residual) != SLOWSCAN_OK ||
-            ar1_drift_estimate(ws, residual, N, &fit) != SLOWSCAN_OK ||
-            ar1_drift_project(ws, &fit, N, 2.0 * (N - 1), 500, rng, &pr) != SLOWSCAN_OK)
+        if (slowscan_detrend_apply(&spec, 1.0, x, N, NULL, residual) != SLOWSCAN_OK ||
+            slowscan_ar1_drift_estimate(ws, residual, N, &fit) != SLOWSCAN_OK ||
+            slowscan_ar1_drift_project(ws, &fit, N, 2.0 * (N - 1), 500, rng, &pr) != SLOWSCAN_OK)
             continue;
         ahead += pr.kind == PROJECTION_AHEAD;
         covered += pr.index_lo <= truth && truth <= pr.index_hi;
@@ -136,12 +136,12 @@ static void test_no_crossing(ar1_drift_workspace *ws, gsl_rng *rng, double *x)
     check_rng_free(r);
     ar1_drift_fit fit;
     ar1_projection pr;
-    CHECK(ar1_drift_estimate(ws, x, N, &fit) == SLOWSCAN_OK, "fit of the stationary AR(1)");
-    CHECK(ar1_drift_project(ws, &fit, N, 2.0 * (N - 1), 500, rng, &pr) == SLOWSCAN_OK, "projects");
+    CHECK(slowscan_ar1_drift_estimate(ws, x, N, &fit) == SLOWSCAN_OK, "fit of the stationary AR(1)");
+    CHECK(slowscan_ar1_drift_project(ws, &fit, N, 2.0 * (N - 1), 500, rng, &pr) == SLOWSCAN_OK, "projects");
     CHECK(pr.kind == PROJECTION_NONE && isnan(pr.index) && isinf(pr.index_hi) &&
               pr.share_crossing < 0.05, "no crossing: kind %d, share %.3f", (int)pr.kind,
           pr.share_crossing);
-    CHECK(ar1_drift_project(ws, &fit, N, 2.0 * (N - 1), 0, rng, &pr) == SLOWSCAN_EINVAL,
+    CHECK(slowscan_ar1_drift_project(ws, &fit, N, 2.0 * (N - 1), 0, rng, &pr) == SLOWSCAN_EINVAL,
           "zero draws refused");
 }
 
@@ -220,7 +220,7 @@ void suite_projection(void)
 {
     test_cli_projection();
     double *x = malloc(20000 * sizeof *x);
-    ar1_drift_workspace *ws = ar1_drift_alloc(20000);
+    ar1_drift_workspace *ws = slowscan_ar1_drift_alloc(20000);
     gsl_rng *rng = gsl_rng_alloc(gsl_rng_mt19937);
     gsl_rng_set(rng, 7);
     test_against_delta_method(ws, rng, x);
@@ -228,6 +228,6 @@ void suite_projection(void)
     test_coverage_fold(ws, rng, x);
     test_no_crossing(ws, rng, x);
     gsl_rng_free(rng);
-    ar1_drift_free(ws);
+    slowscan_ar1_drift_free(ws);
     free(x);
 }

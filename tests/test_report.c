@@ -71,9 +71,9 @@ static int panel_pixels(const char *png, const report_layout *layout, const size
 {
     char args[4096];
     int len = snprintf(args, sizeof args, "png_chroma.py %s", png);
-    double width = REPORT_PAGE_WIDTH, height = report_page_height(layout);
+    double width = REPORT_PAGE_WIDTH, height = slowscan_report_page_height(layout);
     for (size_t k = 0; k < ncells; k++) {
-        report_box b = report_cell(layout, cells[k][0], cells[k][1]);
+        report_box b = slowscan_report_cell(layout, cells[k][0], cells[k][1]);
         len += snprintf(args + len, sizeof args - (size_t)len, " %d %d %d %d", (int)(b.x0 * width) + 2,
                         (int)((1 - b.y1) * height) + 2, (int)(b.x1 * width) - 2,
                         (int)((1 - b.y0) * height) - 2);
@@ -93,8 +93,8 @@ static void expect_valid_png(const char *path, const report_layout *layout)
 {
     unsigned w = 0, h = 0;
     CHECK(png_size(path, &w, &h), "%s is a PNG", path);
-    CHECK(w == REPORT_PAGE_WIDTH && h == (unsigned)report_page_height(layout),
-          "%s: %ux%u, want %dx%d", path, w, h, REPORT_PAGE_WIDTH, report_page_height(layout));
+    CHECK(w == REPORT_PAGE_WIDTH && h == (unsigned)slowscan_report_page_height(layout),
+          "%s: %ux%u, want %dx%d", path, w, h, REPORT_PAGE_WIDTH, slowscan_report_page_height(layout));
 }
 
 /* Every listed panel has drawn data (at least `least` coloured pixels); the heading strip has
@@ -124,7 +124,7 @@ static report_layout series_layout(size_t paths, size_t tests)
     data.tests = list;
     data.ntests = tests;
     report_layout layout = {0};
-    report_series_figure.layout(&data, &layout);
+    slowscan_report_series_figure.layout(&data, &layout);
     return layout;
 }
 
@@ -165,7 +165,7 @@ static void test_screen_figures(void)
     report_layout over = {0};
     const char *labels[3] = {"variance", "lag1", "recovery_trend"};
     report_overview_data od = {labels, labels, 3, NULL, 0, 0.05};
-    report_overview_figure.layout(&od, &over);
+    slowscan_report_overview_figure.layout(&od, &over);
     path_in(png, sizeof png, dir, "screen-overview.png");
     expect_valid_png(png, &over);
     const size_t ocells[][2] = {{0, 0}, {0, 1}, {1, 0}};
@@ -221,7 +221,7 @@ static void test_robustness_and_recovery_figures(void)
     report_robustness_data rd = {0};
     rd.nindicators = 2;
     rd.indicator_labels = names;
-    report_robustness_figure.layout(&rd, &layout);
+    slowscan_report_robustness_figure.layout(&rd, &layout);
     path_in(png, sizeof png, dir, "robustness-mill_pond.png");
     expect_valid_png(png, &layout);
     const size_t cells[][2] = {{0, 0}, {0, 1}};
@@ -246,7 +246,7 @@ static void test_robustness_and_recovery_figures(void)
     md.detrend_labels = methods;
     md.detrend_has_bandwidth = has_bandwidth;
     md.drift = 1;
-    report_robustness_figure.layout(&md, &layout);
+    slowscan_report_robustness_figure.layout(&md, &layout);
     CHECK(layout.rows == 2 && layout.cols[0] == 2, "a row per method: %zu rows", layout.rows);
     path_in(png, sizeof png, dir, "robustness-mill_pond.png");
     expect_valid_png(png, &layout);
@@ -260,7 +260,7 @@ static void test_robustness_and_recovery_figures(void)
         CHECK(rc_ == 0, "recovery --figures: %s", run_err);
     }
     report_recovery_data rec = {0};
-    report_recovery_figure.layout(&rec, &layout);
+    slowscan_report_recovery_figure.layout(&rec, &layout);
     path_in(png, sizeof png, dir, "recovery-mill_pond.png");
     expect_valid_png(png, &layout);
     const size_t one[][2] = {{0, 0}};
@@ -384,21 +384,21 @@ static void test_failed_run_leaves_no_figure(void)
 static void test_module(void)
 {
     char safe[64];
-    report_safe_name("north bay/2 #1", safe, sizeof safe);
+    slowscan_report_safe_name("north bay/2 #1", safe, sizeof safe);
     CHECK(strcmp(safe, "north_bay_2__1") == 0, "safe name: %s", safe);
-    report_safe_name(".hidden", safe, sizeof safe);
+    slowscan_report_safe_name(".hidden", safe, sizeof safe);
     CHECK(strcmp(safe, "_hidden") == 0, "no leading dot: %s", safe);
-    report_safe_name("", safe, sizeof safe);
+    slowscan_report_safe_name("", safe, sizeof safe);
     CHECK(strcmp(safe, "series") == 0, "empty name: %s", safe);
     report_format fmt;
-    CHECK(report_format_parse("pdf", &fmt) == SLOWSCAN_OK && fmt == REPORT_PDF &&
-              report_format_parse("gif", &fmt) == SLOWSCAN_EINVAL, "format names");
+    CHECK(slowscan_report_format_parse("pdf", &fmt) == SLOWSCAN_OK && fmt == REPORT_PDF &&
+              slowscan_report_format_parse("gif", &fmt) == SLOWSCAN_EINVAL, "format names");
 
     char dir[512];
     snprintf(dir, sizeof dir, "%s", check_tmp_path("fig-module"));
     report_batch *batch = NULL;
     io_error err = {{0}};
-    CHECK(report_batch_open(&batch, dir, REPORT_PNG, &err) == SLOWSCAN_OK, "batch: %s", err.message);
+    CHECK(slowscan_report_batch_open(&batch, dir, REPORT_PNG, &err) == SLOWSCAN_OK, "batch: %s", err.message);
     enum { N = 100 };
     double t[N], lambda[N], lo[N], hi[N];
     for (int i = 0; i < N; i++) { /* a recovery rate rising linearly toward zero */
@@ -409,32 +409,32 @@ static void test_module(void)
     }
     report_crossing cross = {1, 133.0, 120.0, 150.0, 0, NAN, 0, NULL, NULL};
     report_recovery_data data = {"a b", "t", N, t, lambda, lo, hi, 4.0, 0.01, &cross};
-    int ok = batch && report_batch_draw(batch, &report_recovery_figure, &data, "recovery", "a b", &err) == SLOWSCAN_OK;
+    int ok = batch && slowscan_report_batch_draw(batch, &slowscan_report_recovery_figure, &data, "recovery", "a b", &err) == SLOWSCAN_OK;
     report_crossing none = {0, NAN, NAN, NAN, 1, NAN, 0, NULL, NULL};
     data.crossing = &none;
-    ok = ok && report_batch_draw(batch, &report_recovery_figure, &data, "recovery", "a_b", &err) == SLOWSCAN_OK;
-    CHECK(ok && report_batch_count(batch) == 2, "two recovery figures drawn: %s", err.message);
-    CHECK(ok && strstr(report_batch_path(batch, 1), "recovery-a_b-2.png"),
-          "names that meet are made unique: %s", ok ? report_batch_path(batch, 1) : "");
+    ok = ok && slowscan_report_batch_draw(batch, &slowscan_report_recovery_figure, &data, "recovery", "a_b", &err) == SLOWSCAN_OK;
+    CHECK(ok && slowscan_report_batch_count(batch) == 2, "two recovery figures drawn: %s", err.message);
+    CHECK(ok && strstr(slowscan_report_batch_path(batch, 1), "recovery-a_b-2.png"),
+          "names that meet are made unique: %s", ok ? slowscan_report_batch_path(batch, 1) : "");
     CHECK(ok && files_in(dir, "^recovery-.*\\.png$") == 0, "nothing in place before the commit");
-    CHECK(batch && report_batch_commit(batch, &err) == SLOWSCAN_OK, "commit: %s", err.message);
+    CHECK(batch && slowscan_report_batch_commit(batch, &err) == SLOWSCAN_OK, "commit: %s", err.message);
     char png[700];
     path_in(png, sizeof png, dir, "recovery-a_b.png");
     report_layout layout = {0};
-    report_recovery_figure.layout(&data, &layout);
+    slowscan_report_recovery_figure.layout(&data, &layout);
     expect_valid_png(png, &layout);
     /* The extrapolation (beyond t = 99 up to 150) is drawn in the vermilion mark colour: the
      * right third of the panel has coloured pixels though no data lies there. */
-    report_box box = report_cell(&layout, 0, 0);
+    report_box box = slowscan_report_cell(&layout, 0, 0);
     char args[1200];
-    double height = report_page_height(&layout), values[4];
+    double height = slowscan_report_page_height(&layout), values[4];
     double x_data_end = box.x0 + (box.x1 - box.x0) * 99.0 / 150.0;
     snprintf(args, sizeof args, "png_chroma.py %s %d %d %d %d", png,
              (int)(x_data_end * REPORT_PAGE_WIDTH) + 4, (int)((1 - box.y1) * height) + 2,
              (int)(box.x1 * REPORT_PAGE_WIDTH) - 2, (int)((1 - box.y0) * height) - 2);
     CHECK(check_python(args, values, 4) == 3 && values[2] > 100,
           "extrapolation region drawn (%g coloured pixels)", values[2]);
-    report_batch_free(batch);
+    slowscan_report_batch_free(batch);
 }
 
 void suite_report(void)

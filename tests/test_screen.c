@@ -1,7 +1,7 @@
 /* The screening library (screen.h) through its public header alone: one series screened by
- * screen_series gives the numbers of the `screen` command (tests/golden/, the command's
+ * slowscan_screen_series gives the numbers of the `screen` command (tests/golden/, the command's
  * committed output), at any thread count; refusals come back as details; warnings and
- * reasons as data; screen_decide's q-values are Benjamini-Hochberg's and its flags follow
+ * reasons as data; slowscan_screen_decide's q-values are Benjamini-Hochberg's and its flags follow
  * the summary's rule. */
 #include "check.h"
 #include "slowscan/io.h"
@@ -18,7 +18,7 @@ static void defaults(void)
 {
     /* DESIGN §4: --bandwidth 10%, --window 50%, variance,lag1, --surrogates 1000, --seed 1,
      * --fdr 0.05, --null phase, gaussian-linear; min coverage 0.8 (§3). */
-    screen_config c = screen_config_default();
+    screen_config c = slowscan_screen_config_default();
     CHECK(c.bandwidth.percent && c.bandwidth.amount == 10, "default bandwidth 10%%");
     CHECK(c.window.percent && c.window.amount == 50, "default window 50%%");
     CHECK(c.nindicators == 2 && c.indicators[0] == INDICATOR_VARIANCE &&
@@ -27,9 +27,9 @@ static void defaults(void)
           "default M, seed, fdr, coverage");
     CHECK(c.null_kind == SURROGATE_PHASE && c.detrend.method == DETREND_GAUSSIAN_LINEAR,
           "default null and detrend");
-    CHECK(isnan(c.deseason) && screen_test_count(&c) == 3, "no deseasoning; three tests");
-    CHECK(strcmp(screen_test_name(screen_test_of(&c, 2)), "recovery_trend") == 0 &&
-          !screen_test_rolling(SCREEN_TEST_RECOVERY_TREND), "the drift test's kind");
+    CHECK(isnan(c.deseason) && slowscan_screen_test_count(&c) == 3, "no deseasoning; three tests");
+    CHECK(strcmp(slowscan_screen_test_name(slowscan_screen_test_of(&c, 2)), "recovery_trend") == 0 &&
+          !slowscan_screen_test_rolling(SCREEN_TEST_RECOVERY_TREND), "the drift test's kind");
 }
 
 /* Formats v as the summary CSV does (%.12g, NA) for a byte comparison. */
@@ -50,8 +50,8 @@ static void compare_with_summary(const char *summary, const char *name, const sc
         cell(tau, t->tau);
         cell(stat, t->statistic);
         cell(p, t->p_value);
-        cell(window, screen_test_rolling(t->kind) ? r->window : NAN);
-        snprintf(want, sizeof want, "\n%s,%s,%zu,%s,", name, screen_test_name(t->kind), r->n, window);
+        cell(window, slowscan_screen_test_rolling(t->kind) ? r->window : NAN);
+        snprintf(want, sizeof want, "\n%s,%s,%zu,%s,", name, slowscan_screen_test_name(t->kind), r->n, window);
         const char *row = strstr(summary, want);
         CHECK(row != NULL, "%s: no summary row '%s'", name, want + 1);
         if (!row)
@@ -61,7 +61,7 @@ static void compare_with_summary(const char *summary, const char *name, const sc
         cell(bw, r->bandwidth);
         snprintf(tail, sizeof tail, ",%s,%s,%s,%s,", bw, tau, stat, p);
         CHECK(strstr(line, tail) != NULL, "%s %s: library %s, command %s", name,
-              screen_test_name(t->kind), tail, line);
+              slowscan_screen_test_name(t->kind), tail, line);
         free(line);
     }
 }
@@ -73,33 +73,33 @@ static void stations(void)
     csv_read_options ro = {NULL, NULL};
     char *summary = check_read_file("tests/golden/screen_stations.out");
     CHECK(summary != NULL, "tests/golden/screen_stations.out");
-    if (!summary || csv_read_table("data/stations.csv", &ro, &t, &err) != SLOWSCAN_OK) {
+    if (!summary || slowscan_csv_read_table("data/stations.csv", &ro, &t, &err) != SLOWSCAN_OK) {
         free(summary);
         return;
     }
     /* the options of the golden run: --deseason 364 --surrogates 99 */
-    screen_config cfg = screen_config_default();
+    screen_config cfg = slowscan_screen_config_default();
     cfg.deseason = 364;
     cfg.surrogates = 99;
     for (size_t threads = 1; threads <= 3; threads += 2) {
         cfg.threads = threads;
-        screen_workspace *ws = screen_workspace_alloc(threads);
+        screen_workspace *ws = slowscan_screen_workspace_alloc(threads);
         for (size_t k = 0; ws && k < t.nseries; k++) {
             screen_input in = {t.names[k], "data/stations.csv", t.time_name, t.time, t.values[k],
                                t.n, NULL};
             screen_result r;
             screen_detail d;
-            int st = screen_series(ws, &cfg, &in, &r, &d);
+            int st = slowscan_screen_series(ws, &cfg, &in, &r, &d);
             CHECK(st == SLOWSCAN_OK && r.ntests == 3 && r.nwarnings == 0, "%s: status %d",
                   t.names[k], st);
             if (st == SLOWSCAN_OK)
                 compare_with_summary(summary, t.names[k], &r);
-            CHECK(screen_workspace_path(ws, 0) && screen_workspace_null(ws, 2) &&
-                  screen_workspace_prepared(ws)->n == t.n, "%s: paths and null kept", t.names[k]);
+            CHECK(slowscan_screen_workspace_path(ws, 0) && slowscan_screen_workspace_null(ws, 2) &&
+                  slowscan_screen_workspace_prepared(ws)->n == t.n, "%s: paths and null kept", t.names[k]);
         }
-        screen_workspace_free(ws);
+        slowscan_screen_workspace_free(ws);
     }
-    series_table_free(&t);
+    slowscan_series_table_free(&t);
     free(summary);
 }
 
@@ -110,9 +110,9 @@ static void control(void)
     io_error err;
     csv_read_options ro = {NULL, NULL};
     char *summary = check_read_file("tests/golden/screen_control.out");
-    int ok = summary && csv_read_table("tests/golden/batch.csv", &ro, &t, &err) == SLOWSCAN_OK;
-    if (ok && csv_read_table("tests/golden/control.csv", &ro, &c, &err) != SLOWSCAN_OK) {
-        series_table_free(&t);
+    int ok = summary && slowscan_csv_read_table("tests/golden/batch.csv", &ro, &t, &err) == SLOWSCAN_OK;
+    if (ok && slowscan_csv_read_table("tests/golden/control.csv", &ro, &c, &err) != SLOWSCAN_OK) {
+        slowscan_series_table_free(&t);
         ok = 0;
     }
     CHECK(ok, "golden batch, control and summary");
@@ -120,10 +120,10 @@ static void control(void)
         free(summary);
         return;
     }
-    screen_config cfg = screen_config_default();
+    screen_config cfg = slowscan_screen_config_default();
     cfg.surrogates = 19;
     cfg.null_name = "control"; /* the streams of --null control */
-    screen_workspace *ws = screen_workspace_alloc(2);
+    screen_workspace *ws = slowscan_screen_workspace_alloc(2);
     cfg.threads = 2;
     const size_t series[] = {0, 3, 20};
     for (size_t s = 0; ws && s < 3; s++) {
@@ -132,12 +132,12 @@ static void control(void)
         screen_input in = {t.names[k], "batch", t.time_name, t.time, t.values[k], t.n, &ci};
         screen_result r;
         screen_detail d;
-        CHECK(screen_series(ws, &cfg, &in, &r, &d) == SLOWSCAN_OK, "%s with a control", t.names[k]);
+        CHECK(slowscan_screen_series(ws, &cfg, &in, &r, &d) == SLOWSCAN_OK, "%s with a control", t.names[k]);
         compare_with_summary(summary, t.names[k], &r);
     }
-    screen_workspace_free(ws);
-    series_table_free(&t);
-    series_table_free(&c);
+    slowscan_screen_workspace_free(ws);
+    slowscan_series_table_free(&t);
+    slowscan_series_table_free(&c);
     free(summary);
 }
 
@@ -150,13 +150,13 @@ static void refusals_and_warnings(void)
         flat[i] = 2.5;
         wavy[i] = sin(0.7 * (double)i) + 0.01 * (double)(i * i % 7);
     }
-    screen_config cfg = screen_config_default();
+    screen_config cfg = slowscan_screen_config_default();
     cfg.surrogates = 19;
-    screen_workspace *ws = screen_workspace_alloc(1);
+    screen_workspace *ws = slowscan_screen_workspace_alloc(1);
     screen_result r;
     screen_detail d;
     screen_input in = {"flat", "memory", "t", time, flat, N, NULL};
-    int st = screen_series(ws, &cfg, &in, &r, &d);
+    int st = slowscan_screen_series(ws, &cfg, &in, &r, &d);
     CHECK(st == SLOWSCAN_OK && r.nwarnings == 1 && r.warnings[0].kind == SCREEN_WARN_NO_PATHS &&
           r.warnings[0].status == SCREEN_CONSTANT, "a constant series warns, as data");
     for (size_t j = 0; st == SLOWSCAN_OK && j < r.ntests; j++)
@@ -164,20 +164,20 @@ static void refusals_and_warnings(void)
               "constant series, test %zu: no variation", j);
     cfg.window = (screen_length){2, 1}; /* round(0.02 x 39) + 1 = 2 samples */
     in.values = wavy;
-    st = screen_series(ws, &cfg, &in, &r, &d);
+    st = slowscan_screen_series(ws, &cfg, &in, &r, &d);
     CHECK(st == SLOWSCAN_EINVAL && d.rule == SCREEN_RULE_WINDOW_TOO_FEW && d.count == 2 &&
           d.option == SCREEN_OPTION_WINDOW, "a two-sample window is refused (rule %d)", d.rule);
     cfg.window = (screen_length){50, 1};
     cfg.bandwidth = (screen_length){100, 0}; /* longer than the span 39 */
-    st = screen_series(ws, &cfg, &in, &r, &d);
+    st = slowscan_screen_series(ws, &cfg, &in, &r, &d);
     CHECK(st == SLOWSCAN_EINVAL && d.rule == SCREEN_RULE_LONGER_THAN_SPAN &&
           d.option == SCREEN_OPTION_BANDWIDTH && d.limit == 39, "a bandwidth beyond the span");
-    screen_workspace_free(ws);
+    slowscan_screen_workspace_free(ws);
 }
 
 static void decide(void)
 {
-    /* The check is that screen_decide's q-values are significance_bh's (that one is compared
+    /* The check is that slowscan_screen_decide's q-values are slowscan_significance_bh's (that one is compared
      * with statsmodels in the significance suite), so any p-values do; these span the steps. */
     const double p[] = {0.0001, 0.0004, 0.0019, 0.0095, 0.0201, 0.0278};
     enum { T = 9 };
@@ -193,17 +193,17 @@ static void decide(void)
     /* tests[7]: a statistic, surrogates asked for, no p: insufficient */
     double q[T], want[6];
     screen_flag flags[T];
-    CHECK(screen_decide(list, T, 0.05, q, flags) == SLOWSCAN_OK, "decide");
-    significance_bh(p, 6, want, NULL);
+    CHECK(slowscan_screen_decide(list, T, 0.05, q, flags) == SLOWSCAN_OK, "decide");
+    slowscan_significance_bh(p, 6, want, NULL);
     for (size_t r = 0; r < 6; r++)
-        CHECK_CLOSE(q[r], want[r], 0, 0, "q equals significance_bh's");
+        CHECK_CLOSE(q[r], want[r], 0, 0, "q equals slowscan_significance_bh's");
     CHECK(flags[0] == SCREEN_FLAG_RISING && flags[2] == SCREEN_FLAG_FALLING, "rising, falling");
     CHECK(flags[6] == SCREEN_FLAG_INSUFFICIENT && flags[7] == SCREEN_FLAG_INSUFFICIENT &&
           flags[8] == SCREEN_FLAG_UNTESTED && isnan(q[7]), "insufficient, untested");
-    CHECK(strcmp(screen_flag_name(flags[8]), "untested") == 0, "flag names");
+    CHECK(strcmp(slowscan_screen_flag_name(flags[8]), "untested") == 0, "flag names");
     /* a single tested p decides itself: 0.04 <= 0.05 */
     tests[0].p_value = 0.04;
-    CHECK(screen_decide(list, 1, 0.05, q, flags) == SLOWSCAN_OK && flags[0] == SCREEN_FLAG_RISING,
+    CHECK(slowscan_screen_decide(list, 1, 0.05, q, flags) == SLOWSCAN_OK && flags[0] == SCREEN_FLAG_RISING,
           "one test: p decides");
 }
 

@@ -22,7 +22,7 @@ static rolling_spec spec_with_plan(size_t W, size_t step, double lo, double hi)
 {
     rolling_spec spec = {W, 0.8, 1.0, RECOVERY_LOG_AR1, step, lo, hi, NULL};
     rolling_plan *plan = NULL;
-    int st = rolling_plan_alloc(&spec, &plan);
+    int st = slowscan_rolling_plan_alloc(&spec, &plan);
     CHECK(st == SLOWSCAN_OK, "plan for W=%zu band %g:%g: status %d", W, lo, hi, st);
     spec.plan = plan;
     return spec;
@@ -30,7 +30,7 @@ static rolling_spec spec_with_plan(size_t W, size_t step, double lo, double hi)
 
 static void spec_free(rolling_spec *spec)
 {
-    rolling_plan_free((rolling_plan *)spec->plan);
+    slowscan_rolling_plan_free((rolling_plan *)spec->plan);
     spec->plan = NULL;
 }
 
@@ -52,8 +52,8 @@ static size_t per_window_means(const rolling_spec *spec, const double *x, size_t
     double *v[3];
     for (int k = 0; k < 3; k++)
         v[k] = malloc(n * sizeof(double));
-    int st = rolling_compute(spec, x, NULL, n, per_window, 3, v);
-    CHECK(st == SLOWSCAN_OK, "rolling_compute status %d", st);
+    int st = slowscan_rolling_compute(spec, x, NULL, n, per_window, 3, v);
+    CHECK(st == SLOWSCAN_OK, "slowscan_rolling_compute status %d", st);
     size_t used = 0;
     for (int k = 0; k < 3; k++) {
         double sum = 0.0;
@@ -81,8 +81,8 @@ static void test_periodogram_numpy(void)
         for (size_t j = 0; j < W; j++)
             x[j] += 40.0; /* a mean far from zero, which the demeaning must remove */
         rolling_spec spec = spec_with_plan(W, 0, 0, 0);
-        rolling_scratch *scratch = rolling_scratch_alloc(W);
-        int st = rolling_periodogram(spec.plan, scratch, x, power);
+        rolling_scratch *scratch = slowscan_rolling_scratch_alloc(W);
+        int st = slowscan_rolling_periodogram(spec.plan, scratch, x, power);
         int got = check_python_on("periodogram_hann.py", x, W, NULL, want, 129);
         CHECK(st == SLOWSCAN_OK && got == (int)(W / 2 + 1), "W=%zu: periodogram %d, numpy %d",
               W, st, got);
@@ -94,7 +94,7 @@ static void test_periodogram_numpy(void)
         /* numpy.fft.rfft with scipy.signal.get_window("hann"): round-off only. */
         CHECK(got > 0 && worst < 1e-12, "W=%zu: periodogram differs from numpy by %g of its peak",
               W, worst);
-        rolling_scratch_free(scratch);
+        slowscan_rolling_scratch_free(scratch);
         spec_free(&spec);
         free(x);
     }
@@ -113,8 +113,8 @@ static void test_designs_against_gsl(void)
     const double bands[2][2] = {{0, 0}, {0.05, 0.3}};
     for (int b = 0; b < 2; b++) {
         rolling_spec spec = spec_with_plan(W, 0, bands[b][0], bands[b][1]);
-        rolling_scratch *scratch = rolling_scratch_alloc(W);
-        rolling_periodogram(spec.plan, scratch, x, power);
+        rolling_scratch *scratch = slowscan_rolling_scratch_alloc(W);
+        slowscan_rolling_periodogram(spec.plan, scratch, x, power);
         size_t m = 0;
         for (size_t k = 1; k <= W / 2; k++) {
             double f = (double)k / W;
@@ -123,11 +123,11 @@ static void test_designs_against_gsl(void)
                 lp[m++] = log(power[k]);
             }
         }
-        CHECK(m == rolling_band_count(W, 1.0, bands[b][0], bands[b][1]), "band count %zu", m);
+        CHECK(m == slowscan_rolling_band_count(W, 1.0, bands[b][0], bands[b][1]), "band count %zu", m);
         gsl_fit_linear(lf, 1, lp, 1, m, &c0, &c1, &cov00, &cov01, &cov11, &ss);
-        CHECK(rolling_compute(&spec, x, NULL, W, kinds, 2, out) == SLOWSCAN_OK, "compute");
+        CHECK(slowscan_rolling_compute(&spec, x, NULL, W, kinds, 2, out) == SLOWSCAN_OK, "compute");
         CHECK_CLOSE(out_e[W - 1], -c1, 1e-10, 1e-12, "spectral_exponent vs gsl_fit_linear");
-        CHECK(rolling_dfa_fluctuation(spec.plan, scratch, x, sizes, F, 64, &count) == SLOWSCAN_OK,
+        CHECK(slowscan_rolling_dfa_fluctuation(spec.plan, scratch, x, sizes, F, 64, &count) == SLOWSCAN_OK,
               "dfa fluctuation");
         double profile[W], sum = 0.0, mean = gsl_stats_mean(x, 1, W), worst = 0.0, jj[W];
         for (size_t i = 0; i < W; i++) {
@@ -150,7 +150,7 @@ static void test_designs_against_gsl(void)
         CHECK(worst < 1e-10, "F(s) vs per-box gsl_fit_linear: relative %g", worst);
         gsl_fit_linear(ls, 1, lF, 1, count, &c0, &c1, &cov00, &cov01, &cov11, &ss);
         CHECK_CLOSE(out_d[W - 1], c1, 1e-10, 1e-12, "dfa vs gsl_fit_linear of ln F on ln s");
-        rolling_scratch_free(scratch);
+        slowscan_rolling_scratch_free(scratch);
         spec_free(&spec);
     }
     free(x);
@@ -244,8 +244,8 @@ static void test_steps(void)
     }
     rolling_spec spec = spec_with_plan(W, 1, 0, 0), coarse = spec;
     coarse.step = STEP;
-    CHECK(rolling_compute(&spec, x, x, N, kinds, K, one) == SLOWSCAN_OK, "step 1");
-    CHECK(rolling_compute(&coarse, x, x, N, kinds, K, stepped) == SLOWSCAN_OK, "step 7");
+    CHECK(slowscan_rolling_compute(&spec, x, x, N, kinds, K, one) == SLOWSCAN_OK, "step 1");
+    CHECK(slowscan_rolling_compute(&coarse, x, x, N, kinds, K, stepped) == SLOWSCAN_OK, "step 7");
     size_t evaluated = 0, bad = 0;
     for (size_t i = W - 1; i < N; i++) {
         int on = (N - 1 - i) % STEP == 0;
@@ -259,10 +259,10 @@ static void test_steps(void)
     /* The default: moment indicators every window, per-window ones at most 500 windows. */
     rolling_spec def = spec;
     def.step = 0;
-    CHECK(rolling_step(&def, INDICATOR_LAG1, 2000) == 1, "default step of lag1");
+    CHECK(slowscan_rolling_step(&def, INDICATOR_LAG1, 2000) == 1, "default step of lag1");
     def.window = 1001;
-    CHECK(rolling_step(&def, INDICATOR_DFA, 2000) == 2 && rolling_step(&def, INDICATOR_DFA, 1500) == 1 &&
-          rolling_step(&def, INDICATOR_REDNESS, 1501) == 2, "default step: smallest with <= 500 windows");
+    CHECK(slowscan_rolling_step(&def, INDICATOR_DFA, 2000) == 2 && slowscan_rolling_step(&def, INDICATOR_DFA, 1500) == 1 &&
+          slowscan_rolling_step(&def, INDICATOR_REDNESS, 1501) == 2, "default step: smallest with <= 500 windows");
     for (int k = 0; k < K; k++) {
         free(one[k]);
         free(stepped[k]);
@@ -281,7 +281,7 @@ static void test_missing(void)
     for (int k = 0; k < 3; k++)
         v[k] = malloc(N * sizeof(double));
     rolling_spec spec = spec_with_plan(W, 1, 0, 0);
-    CHECK(rolling_compute(&spec, x, NULL, N, per_window, 3, v) == SLOWSCAN_OK, "gap: status");
+    CHECK(slowscan_rolling_compute(&spec, x, NULL, N, per_window, 3, v) == SLOWSCAN_OK, "gap: status");
     size_t bad = 0;
     for (size_t i = W - 1; i < N; i++)
         for (int k = 0; k < 3; k++)
@@ -300,38 +300,38 @@ static void test_errors(void)
     indicator_kind dfa = INDICATOR_DFA, exponent = INDICATOR_SPECTRAL_EXPONENT;
     rolling_spec bare = {40, 0.8, 1.0, RECOVERY_LOG_AR1, 0, 0, 0, NULL}, s = bare;
     rolling_plan *plan = NULL;
-    CHECK(rolling_compute(&bare, x, NULL, N, &dfa, 1, outs) == SLOWSCAN_EINVAL, "no plan");
+    CHECK(slowscan_rolling_compute(&bare, x, NULL, N, &dfa, 1, outs) == SLOWSCAN_EINVAL, "no plan");
     const double bad_bands[3][2] = {{0.1, 0.6}, {0.3, 0.2}, {-0.1, 0.2}};
     for (int b = 0; b < 3; b++) {
         s.band_lo = bad_bands[b][0], s.band_hi = bad_bands[b][1];
-        CHECK(rolling_plan_alloc(&s, &plan) == SLOWSCAN_EINVAL && !plan, "band %g:%g refused",
+        CHECK(slowscan_rolling_plan_alloc(&s, &plan) == SLOWSCAN_EINVAL && !plan, "band %g:%g refused",
               s.band_lo, s.band_hi);
     }
     s = bare, s.band_lo = 0.1, s.band_hi = 0.14; /* k/40 in it: 0.1, 0.125 */
-    CHECK(rolling_band_count(40, 1.0, 0.1, 0.14) == 2, "two frequencies in the band");
-    CHECK(rolling_plan_alloc(&s, &plan) == SLOWSCAN_OK, "narrow band: plan made");
+    CHECK(slowscan_rolling_band_count(40, 1.0, 0.1, 0.14) == 2, "two frequencies in the band");
+    CHECK(slowscan_rolling_plan_alloc(&s, &plan) == SLOWSCAN_OK, "narrow band: plan made");
     s.plan = plan;
-    CHECK(rolling_compute(&s, x, NULL, N, &exponent, 1, outs) == SLOWSCAN_EINVAL,
+    CHECK(slowscan_rolling_compute(&s, x, NULL, N, &exponent, 1, outs) == SLOWSCAN_EINVAL,
           "band with 2 frequencies refused");
-    rolling_plan_free(plan);
+    slowscan_rolling_plan_free(plan);
     s = bare, s.window = DFA_MIN_WINDOW - 1;
-    CHECK(rolling_plan_alloc(&s, &plan) == SLOWSCAN_OK, "W=31: plan made");
+    CHECK(slowscan_rolling_plan_alloc(&s, &plan) == SLOWSCAN_OK, "W=31: plan made");
     s.plan = plan;
-    CHECK(rolling_compute(&s, x, NULL, N, &dfa, 1, outs) == SLOWSCAN_EINVAL, "dfa at W=31");
+    CHECK(slowscan_rolling_compute(&s, x, NULL, N, &dfa, 1, outs) == SLOWSCAN_EINVAL, "dfa at W=31");
     s.window = DFA_MIN_WINDOW;
-    CHECK(rolling_compute(&s, x, NULL, N, &dfa, 1, outs) == SLOWSCAN_EINVAL,
+    CHECK(slowscan_rolling_compute(&s, x, NULL, N, &dfa, 1, outs) == SLOWSCAN_EINVAL,
           "a plan of another window refused");
-    rolling_plan_free(plan);
+    slowscan_rolling_plan_free(plan);
     /* The smallest DFA window: box sizes 4, 5, 6, 7, 8 (four per octave, rounded). */
     s.plan = NULL;
-    CHECK(rolling_plan_alloc(&s, &plan) == SLOWSCAN_OK, "W=32: plan made");
-    rolling_scratch *scratch = rolling_scratch_alloc(DFA_MIN_WINDOW);
+    CHECK(slowscan_rolling_plan_alloc(&s, &plan) == SLOWSCAN_OK, "W=32: plan made");
+    rolling_scratch *scratch = slowscan_rolling_scratch_alloc(DFA_MIN_WINDOW);
     size_t sizes[16], count = 0;
     double F[16];
-    CHECK(rolling_dfa_fluctuation(plan, scratch, x, sizes, F, 16, &count) == SLOWSCAN_OK &&
+    CHECK(slowscan_rolling_dfa_fluctuation(plan, scratch, x, sizes, F, 16, &count) == SLOWSCAN_OK &&
           count == 5 && sizes[0] == 4 && sizes[1] == 5 && sizes[4] == 8, "W=32: %zu box sizes", count);
-    rolling_scratch_free(scratch);
-    rolling_plan_free(plan);
+    slowscan_rolling_scratch_free(scratch);
+    slowscan_rolling_plan_free(plan);
     free(x);
 }
 

@@ -19,16 +19,16 @@ static void test_p_value(void)
 {
     double null[9] = {-0.4, -0.2, 0.0, 0.1, 0.2, 0.3, 0.5, NAN, 0.7};
     size_t used = 0;
-    CHECK_CLOSE(significance_p_value(0.3, null, 9, ALTERNATIVE_INCREASING, &used), 4.0 / 9.0,
+    CHECK_CLOSE(slowscan_significance_p_value(0.3, null, 9, ALTERNATIVE_INCREASING, &used), 4.0 / 9.0,
                 1e-15, 0, "one-sided: 3 of 8 at or above, (1+3)/(8+1)");
     CHECK(used == 8, "NaN null values are not counted (%zu)", used);
-    CHECK_CLOSE(significance_p_value(0.8, null, 9, ALTERNATIVE_INCREASING, NULL), 1.0 / 9.0, 1e-15,
+    CHECK_CLOSE(slowscan_significance_p_value(0.8, null, 9, ALTERNATIVE_INCREASING, NULL), 1.0 / 9.0, 1e-15,
                 0, "beyond the null: the smallest p, 1/(M+1)");
-    CHECK_CLOSE(significance_p_value(-0.2, null, 9, ALTERNATIVE_DECREASING, NULL), 3.0 / 9.0,
+    CHECK_CLOSE(slowscan_significance_p_value(-0.2, null, 9, ALTERNATIVE_DECREASING, NULL), 3.0 / 9.0,
                 1e-15, 0, "decreasing: -0.4, -0.2 at or below");
-    CHECK_CLOSE(significance_p_value(-0.45, null, 9, ALTERNATIVE_TWO_SIDED, NULL), 3.0 / 9.0,
+    CHECK_CLOSE(slowscan_significance_p_value(-0.45, null, 9, ALTERNATIVE_TWO_SIDED, NULL), 3.0 / 9.0,
                 1e-15, 0, "two-sided on |tau|: 0.5, 0.7 at or above 0.45");
-    CHECK(isnan(significance_p_value(NAN, null, 9, ALTERNATIVE_INCREASING, NULL)), "NaN observed");
+    CHECK(isnan(slowscan_significance_p_value(NAN, null, 9, ALTERNATIVE_INCREASING, NULL)), "NaN observed");
 }
 
 /* The worked example of Benjamini & Hochberg (1995, J. R. Stat. Soc. B 57:289, section 3.2):
@@ -40,7 +40,7 @@ static void test_benjamini_hochberg(void)
                     0.0459, 0.3240, 0.4262, 0.5719, 0.6528, 0.7590, 1.0000};
     double q[15];
     size_t order[15];
-    CHECK(significance_bh(p, 15, q, order) == SLOWSCAN_OK, "bh runs");
+    CHECK(slowscan_significance_bh(p, 15, q, order) == SLOWSCAN_OK, "bh runs");
     int rejected = 0;
     for (int i = 0; i < 15; i++)
         rejected += q[i] <= 0.05;
@@ -55,16 +55,16 @@ static void test_benjamini_hochberg(void)
     double pn[16], qn[16];
     memcpy(pn, p, sizeof p);
     pn[15] = NAN;
-    significance_bh(pn, 16, qn, NULL);
+    slowscan_significance_bh(pn, 16, qn, NULL);
     CHECK(isnan(qn[15]) && check_close(qn[7], q[7], 1e-15, 0), "NaN left out of the family");
 }
 
 static void test_stream_seeds(void)
 {
-    unsigned long a = stream_seed(1, "north_bay", "phase", 0);
-    CHECK(a == stream_seed(1, "north_bay", "phase", 0), "seed is a function of its parts");
-    CHECK(a != stream_seed(2, "north_bay", "phase", 0) && a != stream_seed(1, "north_ba", "yphase", 0) &&
-              a != stream_seed(1, "north_bay", "phase", 1) && a != stream_seed(1, "north_bay", "ar1", 0),
+    unsigned long a = slowscan_stream_seed(1, "north_bay", "phase", 0);
+    CHECK(a == slowscan_stream_seed(1, "north_bay", "phase", 0), "seed is a function of its parts");
+    CHECK(a != slowscan_stream_seed(2, "north_bay", "phase", 0) && a != slowscan_stream_seed(1, "north_ba", "yphase", 0) &&
+              a != slowscan_stream_seed(1, "north_bay", "phase", 1) && a != slowscan_stream_seed(1, "north_bay", "ar1", 0),
           "different parts give different seeds");
 }
 
@@ -75,9 +75,9 @@ static void check_spectrum_kept(size_t n)
     double *x = fftw_alloc_real(n), *y = fftw_alloc_real(n);
     for (size_t i = 0; i < n; i++)
         x[i] = 0.7 * (i ? x[i - 1] : 0) + check_rng_gaussian(r) + 100.0;
-    surrogate_plan *plan = surrogate_plan_alloc(n, FFTW_ESTIMATE);
+    surrogate_plan *plan = slowscan_surrogate_plan_alloc(n, FFTW_ESTIMATE);
     int status;
-    surrogate_source *src = surrogate_source_alloc(plan, SURROGATE_PHASE, x, NULL, &status);
+    surrogate_source *src = slowscan_surrogate_source_alloc(plan, SURROGATE_PHASE, x, NULL, &status);
     CHECK(src && status == SLOWSCAN_OK, "phase source n=%zu", n);
     fftw_complex *fx = fftw_alloc_complex(n / 2 + 1), *fy = fftw_alloc_complex(n / 2 + 1);
     fftw_plan pf = fftw_plan_dft_r2c_1d((int)n, x, fx, FFTW_ESTIMATE | FFTW_PRESERVE_INPUT);
@@ -86,7 +86,7 @@ static void check_spectrum_kept(size_t n)
     gsl_rng_set(rng, 5);
     double worst = 0, differs = 0, scale = hypot(fx[0][0], fx[0][1]);
     for (int rep = 0; rep < 20 && src; rep++) {
-        surrogate_draw(src, rng, y);
+        slowscan_surrogate_draw(src, rng, y);
         fftw_execute_dft_r2c(pf, y, fy);
         for (size_t k = 0; k <= n / 2; k++)
             worst = fmax(worst, fabs(hypot(fy[k][0], fy[k][1]) - hypot(fx[k][0], fx[k][1])));
@@ -101,8 +101,8 @@ static void check_spectrum_kept(size_t n)
     fftw_free(fy);
     fftw_free(x);
     fftw_free(y);
-    surrogate_source_free(src);
-    surrogate_plan_free(plan);
+    slowscan_surrogate_source_free(src);
+    slowscan_surrogate_plan_free(plan);
     check_rng_free(r);
 }
 
@@ -115,19 +115,19 @@ static void test_phase_surrogates(void)
     for (int i = 0; i < 64; i++)
         x[i] = sin(0.3 * i) + 0.1 * i;
     x[5] = x[40] = NAN;
-    surrogate_plan *plan = surrogate_plan_alloc(64, FFTW_ESTIMATE);
+    surrogate_plan *plan = slowscan_surrogate_plan_alloc(64, FFTW_ESTIMATE);
     int status;
-    surrogate_source *src = surrogate_source_alloc(plan, SURROGATE_PHASE, x, NULL, &status);
+    surrogate_source *src = slowscan_surrogate_source_alloc(plan, SURROGATE_PHASE, x, NULL, &status);
     gsl_rng *rng = gsl_rng_alloc(gsl_rng_mt19937);
-    surrogate_draw(src, rng, y); /* y is not fftw-aligned on purpose: the copy path */
+    slowscan_surrogate_draw(src, rng, y); /* y is not fftw-aligned on purpose: the copy path */
     CHECK(isnan(y[5]) && isnan(y[40]) && isfinite(y[6]), "gaps restored");
     for (int i = 0; i < 64; i++)
         x[i] = 3.0;
-    CHECK(!surrogate_source_alloc(plan, SURROGATE_PHASE, x, NULL, &status) && status == SLOWSCAN_ECONST,
+    CHECK(!slowscan_surrogate_source_alloc(plan, SURROGATE_PHASE, x, NULL, &status) && status == SLOWSCAN_ECONST,
           "constant series refused");
     gsl_rng_free(rng);
-    surrogate_source_free(src);
-    surrogate_plan_free(plan);
+    slowscan_surrogate_source_free(src);
+    slowscan_surrogate_plan_free(plan);
 }
 
 static int by_double(const void *a, const void *b)
@@ -181,16 +181,16 @@ static void test_amplitude_adjusted(void)
     skewed_ar1(x, N, 17);
     memcpy(sx, x, sizeof x);
     qsort(sx, N, sizeof *sx, by_double);
-    surrogate_plan *plan = surrogate_plan_alloc(N, FFTW_ESTIMATE);
+    surrogate_plan *plan = slowscan_surrogate_plan_alloc(N, FFTW_ESTIMATE);
     gsl_rng *rng = gsl_rng_alloc(gsl_rng_mt19937);
     double distance[2] = {0, 0};
     surrogate_kind kinds[2] = {SURROGATE_AAFT, SURROGATE_IAAFT};
     for (int k = 0; k < 2; k++) {
         int status;
-        surrogate_source *src = surrogate_source_alloc(plan, kinds[k], x, NULL, &status);
+        surrogate_source *src = slowscan_surrogate_source_alloc(plan, kinds[k], x, NULL, &status);
         int exact = 1, changed = 0;
         for (int rep = 0; src && rep < 10; rep++) {
-            surrogate_draw(src, rng, y);
+            slowscan_surrogate_draw(src, rng, y);
             memcpy(sy, y, sizeof sy);
             qsort(sy, N, sizeof *sy, by_double);
             exact &= memcmp(sx, sy, sizeof sx) == 0;
@@ -198,21 +198,21 @@ static void test_amplitude_adjusted(void)
             distance[k] += spectral_distance(x, y, N) / 10;
         }
         CHECK(src && exact && changed, "%s: sorted values identical, series reordered",
-              surrogate_name(kinds[k]));
+              slowscan_surrogate_name(kinds[k]));
         if (kinds[k] == SURROGATE_IAAFT && src) {
             int it;
             double err;
             size_t unconverged;
-            surrogate_iaaft_report(src, &it, &err, &unconverged);
+            slowscan_surrogate_iaaft_report(src, &it, &err, &unconverged);
             CHECK(unconverged == 0 && it > 1 && check_close(err, spectral_distance(x, y, N), 1e-9, 1e-12),
                   "iaaft converged in %d iterations, reported error %.4g", it, err);
         }
-        surrogate_source_free(src);
+        slowscan_surrogate_source_free(src);
     }
     CHECK(distance[1] < 0.5 * distance[0], "iaaft spectrum closer than aaft's: %.4f vs %.4f",
           distance[1], distance[0]);
     gsl_rng_free(rng);
-    surrogate_plan_free(plan);
+    slowscan_surrogate_plan_free(plan);
     fftw_free(y);
 }
 
@@ -232,13 +232,13 @@ static void test_ar1_null(void)
     memcpy(h, x, sizeof h);
     memcpy(t, x + 1, sizeof t);
     gsl_fit_linear(h, 1, t, 1, N - 1, &c0, &fit_phi, &cov00, &cov01, &cov11, &ss);
-    surrogate_plan *plan = surrogate_plan_alloc(N, FFTW_ESTIMATE);
+    surrogate_plan *plan = slowscan_surrogate_plan_alloc(N, FFTW_ESTIMATE);
     int status;
-    surrogate_source *src = surrogate_source_alloc(plan, SURROGATE_AR1, x, NULL, &status);
+    surrogate_source *src = slowscan_surrogate_source_alloc(plan, SURROGATE_AR1, x, NULL, &status);
     gsl_rng *rng = gsl_rng_alloc(gsl_rng_mt19937);
     double mean_lag1 = 0, mean_level = 0;
     for (int rep = 0; src && rep < REPS; rep++) {
-        surrogate_draw(src, rng, y);
+        slowscan_surrogate_draw(src, rng, y);
         mean_lag1 += gsl_stats_lag1_autocorrelation(y, 1, N) / REPS;
         mean_level += gsl_stats_mean(y, 1, N) / REPS;
     }
@@ -248,8 +248,8 @@ static void test_ar1_null(void)
           "ar1 null: mean lag1 %.4f vs fitted %.4f", mean_lag1, fit_phi);
     CHECK(fabs(mean_level - gsl_stats_mean(x, 1, N)) < 0.1, "ar1 null keeps the level (%.3f)", mean_level);
     gsl_rng_free(rng);
-    surrogate_source_free(src);
-    surrogate_plan_free(plan);
+    slowscan_surrogate_source_free(src);
+    slowscan_surrogate_plan_free(plan);
 }
 
 /* block: every replicate is made of runs of L consecutive samples of the series (Kunsch
@@ -260,11 +260,11 @@ static void test_block_null(void)
     double x[N], y[N];
     for (size_t i = 0; i < N; i++)
         x[i] = sin(0.1 * (double)i) + 0.001 * (double)i * (double)i; /* all values distinct */
-    surrogate_plan *plan = surrogate_plan_alloc(N, FFTW_ESTIMATE);
+    surrogate_plan *plan = slowscan_surrogate_plan_alloc(N, FFTW_ESTIMATE);
     int status;
-    surrogate_source *src = surrogate_source_alloc(plan, SURROGATE_BLOCK, x, NULL, &status);
+    surrogate_source *src = slowscan_surrogate_source_alloc(plan, SURROGATE_BLOCK, x, NULL, &status);
     gsl_rng *rng = gsl_rng_alloc(gsl_rng_mt19937);
-    surrogate_draw(src, rng, y);
+    slowscan_surrogate_draw(src, rng, y);
     size_t L = 5, bad = 0; /* round(125^(1/3)) = 5 */
     for (size_t i = 0; i < N; i += L) {
         size_t from = 0;
@@ -275,8 +275,8 @@ static void test_block_null(void)
     }
     CHECK(src && bad == 0, "block: runs of %zu consecutive samples (%zu mismatches)", L, bad);
     gsl_rng_free(rng);
-    surrogate_source_free(src);
-    surrogate_plan_free(plan);
+    slowscan_surrogate_source_free(src);
+    slowscan_surrogate_plan_free(plan);
 }
 
 void suite_surrogates(void)

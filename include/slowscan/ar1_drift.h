@@ -34,9 +34,9 @@ typedef struct {
 typedef struct ar1_drift_workspace ar1_drift_workspace;
 
 SLOWSCAN_API
-ar1_drift_workspace *ar1_drift_alloc(size_t nmax);
+ar1_drift_workspace *slowscan_ar1_drift_alloc(size_t nmax);
 SLOWSCAN_API
-void ar1_drift_free(ar1_drift_workspace *ws);
+void slowscan_ar1_drift_free(ar1_drift_workspace *ws);
 
 /* With noise_trend non-zero, later fits let the innovation variance drift linearly too:
  * after the OLS fit, the squared residuals are regressed on s_t, and the fit is redone by
@@ -44,19 +44,19 @@ void ar1_drift_free(ar1_drift_workspace *ws);
  * residual), the covariance scaled by the weighted residual variance. A noise that grows
  * then no longer passes for a memory that grows. */
 SLOWSCAN_API
-void ar1_drift_set_noise_trend(ar1_drift_workspace *ws, int noise_trend);
+void slowscan_ar1_drift_set_noise_trend(ar1_drift_workspace *ws, int noise_trend);
 
 /* Fits x[0..n) (NaN: missing; a pair is used when both samples are present). SLOWSCAN_ESHORT
  * with fewer than 8 pairs, SLOWSCAN_ECONST when the design is singular (a constant series),
  * SLOWSCAN_EINVAL for n > nmax. */
 SLOWSCAN_API
-int ar1_drift_estimate(ar1_drift_workspace *ws, const double *x, size_t n, ar1_drift_fit *fit);
+int slowscan_ar1_drift_estimate(ar1_drift_workspace *ws, const double *x, size_t n, ar1_drift_fit *fit);
 
 /* The recovery-rate path lambda(t_i) = ln(a0 + a1 s_i) / dt at every sample i, with a
  * pointwise 95% band by the delta method (se(phi) / (phi dt), phi = a0 + a1 s_i, +-1.96 se).
  * NaN where phi <= 0. lo and hi may be NULL. */
 SLOWSCAN_API
-void ar1_drift_path(const ar1_drift_fit *fit, size_t n, double dt, double *lambda, double *lo,
+void slowscan_ar1_drift_path(const ar1_drift_fit *fit, size_t n, double dt, double *lambda, double *lo,
                     double *hi);
 
 /* Projected crossing of lambda = 0 — an extrapolation of the fitted linear trend in the AR(1)
@@ -80,7 +80,7 @@ typedef struct {
     size_t draws;
 } ar1_projection;
 
-/* Residual bootstrap of the last fit made with ws (fit must be what ar1_drift_estimate just
+/* Residual bootstrap of the last fit made with ws (fit must be what slowscan_ar1_drift_estimate just
  * returned for the same series): the design is kept, the centred residuals (standardised by
  * the weights under the noise trend, inflated by sqrt(m/(m-3))) are drawn with replacement, the
  * coefficients refitted, and each draw's upward crossing phi = 1 located. The horizon is
@@ -88,7 +88,7 @@ typedef struct {
  * refit is b + (X'WX)^-1 X'W e*, with the projection matrix formed once.
  * SLOWSCAN_EINVAL for draws < 1; SLOWSCAN_ENOMEM. */
 SLOWSCAN_API
-int ar1_drift_project(ar1_drift_workspace *ws, const ar1_drift_fit *fit, size_t n, double horizon,
+int slowscan_ar1_drift_project(ar1_drift_workspace *ws, const ar1_drift_fit *fit, size_t n, double horizon,
                       size_t draws, gsl_rng *rng, ar1_projection *out);
 
 #endif

@@ -21,9 +21,9 @@ typedef struct {
 } demo_station;
 
 SLOWSCAN_API
-size_t demo_station_count(void);
+size_t slowscan_demo_station_count(void);
 SLOWSCAN_API
-const demo_station *demo_station_get(size_t k);
+const demo_station *slowscan_demo_station_get(size_t k);
 
 /* Sampling of the demo: weekly, in days since the start of the record. */
 #define DEMO_SAMPLES 1040
@@ -33,6 +33,6 @@ const demo_station *demo_station_get(size_t k);
  * given seed. SLOWSCAN_EINVAL for n < 8; SLOWSCAN_ENUMERIC if a path escaped the basin
  * (cannot happen with the shipped parameters, checked anyway). */
 SLOWSCAN_API
-int demo_generate(unsigned long seed, size_t n, double *time, double **values);
+int slowscan_demo_generate(unsigned long seed, size_t n, double *time, double **values);
 
 #endif

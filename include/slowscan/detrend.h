@@ -38,12 +38,12 @@ typedef struct {
 /* "gaussian-linear", "gaussian", "moving", "loess", "linear", "poly:K", "difference", "none".
  * Sets spec->method and spec->degree; leaves spec->bandwidth alone. */
 SLOWSCAN_API
-int detrend_parse_method(const char *text, detrend_spec *spec);
+int slowscan_detrend_parse_method(const char *text, detrend_spec *spec);
 SLOWSCAN_API
-const char *detrend_method_name(detrend_method method);
+const char *slowscan_detrend_method_name(detrend_method method);
 /* Whether the method reads spec->bandwidth. */
 SLOWSCAN_API
-int detrend_uses_bandwidth(detrend_method method);
+int slowscan_detrend_uses_bandwidth(detrend_method method);
 
 /* Writes trend[n] and residual[n] (either may be NULL). Returns SLOWSCAN_EINVAL for a
  * bandwidth <= 0 where one is used, dt <= 0, or a polynomial degree not below the number of
@@ -60,42 +60,42 @@ int detrend_uses_bandwidth(detrend_method method);
  * undetermined and the local-constant (gaussian) value is used; NaN where no finite sample
  * lies within 8 s. gaussian: the Nadaraya-Watson weighted mean with the same weights. */
 SLOWSCAN_API
-int detrend_apply(const detrend_spec *spec, double dt, const double *x, size_t n,
+int slowscan_detrend_apply(const detrend_spec *spec, double dt, const double *x, size_t n,
                   double *trend, double *residual);
 
 /* Detrend workspace: plan once, detrend many series of one length (DESIGN §2).
  *
- * detrend_workspace_alloc makes everything a method needs for series of up to n samples of
+ * slowscan_detrend_workspace_alloc makes everything a method needs for series of up to n samples of
  * step dt: for gaussian and gaussian-linear the kernel weights, the FFT plans and the
  * kernel's transforms, the kernel sums of a gap-free series' sample mask (S0, S1, S2 of the
  * local-linear fit; a series with NaN has them recomputed), and all scratch;
  * for loess its scratch and GSL workspace. It copies *spec. NULL for a bad spec or dt (the
- * cases for which detrend_apply returns SLOWSCAN_EINVAL without looking at data), n = 0, or
+ * cases for which slowscan_detrend_apply returns SLOWSCAN_EINVAL without looking at data), n = 0, or
  * no memory.
  *
- * detrend_apply_with detrends x[n] with it, neither allocating (apart from linear and poly,
+ * slowscan_detrend_apply_with detrends x[n] with it, neither allocating (apart from linear and poly,
  * which allocate their least-squares system per call) nor planning, and gives exactly the
- * doubles detrend_apply gives for the same spec, dt and n equal to the workspace's (which is
- * what detrend_apply does: alloc, apply, free), with the same status codes; n above the
+ * doubles slowscan_detrend_apply gives for the same spec, dt and n equal to the workspace's (which is
+ * what slowscan_detrend_apply does: alloc, apply, free), with the same status codes; n above the
  * workspace's, or a NULL ws: SLOWSCAN_EINVAL. A shorter series is allowed; the Gaussian fits
- * then use the longer transform and agree with detrend_apply to round-off (~1e-12 of the
+ * then use the longer transform and agree with slowscan_detrend_apply to round-off (~1e-12 of the
  * data's spread, the bound the fits keep anyway), not to the bit.
  *
  * Threads: a workspace is used by one thread at a time; different workspaces may detrend in
  * parallel (FFTW's new-array execute calls on each workspace's own buffers). FFT plans are
- * made only in detrend_workspace_alloc (and so in detrend_apply), and FFTW's planner is not
- * thread-safe: allocate workspaces (and call detrend_apply) from one thread at a time, or call
+ * made only in slowscan_detrend_workspace_alloc (and so in slowscan_detrend_apply), and FFTW's planner is not
+ * thread-safe: allocate workspaces (and call slowscan_detrend_apply) from one thread at a time, or call
  * fftw_make_planner_thread_safe() once first (the slowscan command does). The library takes
  * no lock of its own: it would guard only its own planning, not the caller's or another
  * library's use of the same planner, and would be a global, which the core does not keep. */
 typedef struct detrend_workspace detrend_workspace;
 
 SLOWSCAN_API
-detrend_workspace *detrend_workspace_alloc(const detrend_spec *spec, double dt, size_t n);
+detrend_workspace *slowscan_detrend_workspace_alloc(const detrend_spec *spec, double dt, size_t n);
 SLOWSCAN_API
-void detrend_workspace_free(detrend_workspace *ws);
+void slowscan_detrend_workspace_free(detrend_workspace *ws);
 SLOWSCAN_API
-int detrend_apply_with(detrend_workspace *ws, const double *x, size_t n, double *trend,
+int slowscan_detrend_apply_with(detrend_workspace *ws, const double *x, size_t n, double *trend,
                        double *residual);
 
 /* Seasonal-cycle removal (deseasoning), done before detrending.
@@ -128,7 +128,7 @@ typedef struct {
 
 /* period 0 (to be set), harmonics 0, window 0. */
 SLOWSCAN_API
-deseason_spec detrend_deseason_default(void);
+deseason_spec slowscan_detrend_deseason_default(void);
 
 /* Which field of a spec is out of its domain. */
 typedef enum {
@@ -143,15 +143,15 @@ typedef enum {
  * harmonics that will be fitted in *harmonics (0: the mean cycle). Either pointer may be
  * NULL. */
 SLOWSCAN_API
-int detrend_deseason_check(const deseason_spec *spec, double dt, size_t n,
+int slowscan_detrend_deseason_check(const deseason_spec *spec, double dt, size_t n,
                            deseason_problem *problem, int *harmonics);
 
 /* Removes the cycle described above from x[n] in place. SLOWSCAN_EINVAL for a bad spec (see
- * detrend_deseason_check) or NULL x with n > 0; SLOWSCAN_ESHORT when a phase of some window
+ * slowscan_detrend_deseason_check) or NULL x with n > 0; SLOWSCAN_ESHORT when a phase of some window
  * has no usable sample (mean cycle) or some window has too few to separate the harmonics.
  * On any failure x is left unchanged. */
 SLOWSCAN_API
-int detrend_deseason_apply(const deseason_spec *spec, double dt, double *x, size_t n);
+int slowscan_detrend_deseason_apply(const deseason_spec *spec, double dt, double *x, size_t n);
 
 
 /* The trend-leakage diagnostic (detrend/leakage.c): is the residual's mean over the first and
@@ -175,7 +175,7 @@ typedef struct {
 /* SLOWSCAN_EINVAL for edge < 2 or > n or level outside (0, 1); SLOWSCAN_ESHORT with fewer than
  * 3 finite values; SLOWSCAN_ECONST for a constant residual. NaN samples are skipped. */
 SLOWSCAN_API
-int detrend_leakage_test(const double *residual, size_t n, size_t edge, double level,
+int slowscan_detrend_leakage_test(const double *residual, size_t n, size_t edge, double level,
                          detrend_leakage *out);
 
 #endif

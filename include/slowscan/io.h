@@ -30,7 +30,7 @@ typedef struct {
 } series_table;
 
 SLOWSCAN_API
-void series_table_free(series_table *table);
+void slowscan_series_table_free(series_table *table);
 
 typedef struct {
     const char *time_column; /* NULL: the first column */
@@ -44,30 +44,30 @@ typedef struct {
  * that is not a number, an infinite value, a missing time, a non-increasing time, an unknown
  * or duplicated column in `vars`, a header with no series column. */
 SLOWSCAN_API
-int csv_read_table(const char *path, const csv_read_options *options, series_table *table,
+int slowscan_csv_read_table(const char *path, const csv_read_options *options, series_table *table,
                    io_error *err);
 
 /* Keeps the rows with from <= time <= until (NaN: no limit). SLOWSCAN_ESHORT with a message
  * when fewer than 2 rows remain. */
 SLOWSCAN_API
-int table_select_span(series_table *table, double from, double until, io_error *err);
+int slowscan_table_select_span(series_table *table, double from, double until, io_error *err);
 
 /* Checks that the time steps are regular: every step within 1e-6 (relative) of
  * dt = (t_last - t_first)/(n-1). On failure the message names the first offending row and
  * suggests --resample. */
 SLOWSCAN_API
-int table_check_grid(const series_table *table, double *dt, io_error *err);
+int slowscan_table_check_grid(const series_table *table, double *dt, io_error *err);
 
 /* Interpolates every series linearly onto t_first, t_first+step, ... <= t_last. A grid point
  * whose bracketing samples include a missing one is missing (unless it hits a present sample
  * exactly). SLOWSCAN_EINVAL for step <= 0 or step > span. */
 SLOWSCAN_API
-int table_resample(series_table *table, double step, io_error *err);
+int slowscan_table_resample(series_table *table, double step, io_error *err);
 
 /* Replaces every value by its natural logarithm; a value <= 0 is an error naming row and
  * column. */
 SLOWSCAN_API
-int table_log(series_table *table, io_error *err);
+int slowscan_table_log(series_table *table, io_error *err);
 
 /* Output written to a temporary file next to the target and renamed into place on commit, so
  * a failed run leaves no partial file. path NULL or "-" is standard output, spooled to an
@@ -81,27 +81,27 @@ typedef struct {
 } atomic_file;
 
 SLOWSCAN_API
-int atomic_open(atomic_file *file, const char *path, io_error *err);
+int slowscan_atomic_open(atomic_file *file, const char *path, io_error *err);
 /* Flushes, checks for write errors, closes and renames. On failure the temp file is removed. */
 SLOWSCAN_API
-int atomic_commit(atomic_file *file, io_error *err);
+int slowscan_atomic_commit(atomic_file *file, io_error *err);
 /* Closes and removes the temporary file; safe to call on a committed or unopened file. */
 SLOWSCAN_API
-void atomic_abort(atomic_file *file);
+void slowscan_atomic_abort(atomic_file *file);
 
 /* Creates an empty temporary file beside `path` (same directory, so a rename into place is
  * atomic), with the permissions a plain fopen of `path` would give; returns its malloc'd
  * name, or NULL with errno set. For writers that open files by name (the figure drivers). */
 SLOWSCAN_API
-char *atomic_temp_beside(const char *path);
+char *slowscan_atomic_temp_beside(const char *path);
 
 /* Makes room for one more element in a growing array: when count == *cap, doubles *cap
  * (first: `first` elements) and reallocates *array. SLOWSCAN_ENOMEM leaves it unchanged. */
 SLOWSCAN_API
-int io_reserve(void **array, size_t *cap, size_t count, size_t size, size_t first);
+int slowscan_io_reserve(void **array, size_t *cap, size_t count, size_t size, size_t first);
 
 /* 1 if the two paths name the same existing file (same device and inode), else 0. */
 SLOWSCAN_API
-int io_same_file(const char *a, const char *b);
+int slowscan_io_same_file(const char *a, const char *b);
 
 #endif

@@ -14,15 +14,15 @@
 typedef struct kendall_workspace kendall_workspace;
 
 SLOWSCAN_API
-kendall_workspace *kendall_alloc(size_t nmax);
+kendall_workspace *slowscan_kendall_alloc(size_t nmax);
 SLOWSCAN_API
-void kendall_free(kendall_workspace *ws);
+void slowscan_kendall_free(kendall_workspace *ws);
 
 /* tau-b of (x_i, y_i) over the pairs where both are finite; `used` (may be NULL) receives
  * their number. n <= nmax of the workspace. Sets *tau = NaN and returns SLOWSCAN_ESHORT when
  * fewer than 2 pairs remain, SLOWSCAN_ECONST when x or y is constant over them. */
 SLOWSCAN_API
-int kendall_tau_b(kendall_workspace *ws, const double *x, const double *y, size_t n,
+int slowscan_kendall_tau_b(kendall_workspace *ws, const double *x, const double *y, size_t n,
                   double *tau, size_t *used);
 
 #endif

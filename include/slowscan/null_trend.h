@@ -5,7 +5,7 @@
  * pipeline needs for one series length, so drawing allocates nothing.
  *
  * Random streams: replicate j draws from the stream seeded by
- * stream_seed(seed, series, purpose, j / NULL_TREND_BLOCK), restarted at each block, so any
+ * slowscan_stream_seed(seed, series, purpose, j / NULL_TREND_BLOCK), restarted at each block, so any
  * split of the replicates into whole blocks (across threads or ranks) gives the same numbers. */
 #ifndef SLOWSCAN_NULL_TREND_H
 #define SLOWSCAN_NULL_TREND_H
@@ -25,9 +25,9 @@ typedef struct null_trend_workspace null_trend_workspace;
 
 /* For series of n samples and up to nkinds indicators. NULL on failure. */
 SLOWSCAN_API
-null_trend_workspace *null_trend_alloc(size_t n, size_t nkinds);
+null_trend_workspace *slowscan_null_trend_alloc(size_t n, size_t nkinds);
 SLOWSCAN_API
-void null_trend_free(null_trend_workspace *ws);
+void slowscan_null_trend_free(null_trend_workspace *ws);
 
 typedef struct {
     const rolling_spec *rolling; /* with per-window indicators, its plan is shared read-only by
@@ -42,22 +42,22 @@ typedef struct {
     const char *purpose; /* the null's name, part of the stream seed */
     int drift;           /* also the t-value of the drifting-AR(1) coefficient (ar1_drift.h),
                             written after the indicators, at row nkinds of null; 2: with the
-                            innovation variance drifting too (ar1_drift_set_noise_trend) */
+                            innovation variance drifting too (slowscan_ar1_drift_set_noise_trend) */
 } null_trend_job;
 
 /* Positions rng for replicate j of (seed, series, purpose): at the start of each block it is
  * reseeded, within a block it runs on. Calling it for j = first, first+1, ... (first a
  * multiple of NULL_TREND_BLOCK) before each draw reproduces the replicates of
- * null_trend_draw — the `surrogates` command writes exactly the series screen tests with. */
+ * slowscan_null_trend_draw — the `surrogates` command writes exactly the series screen tests with. */
 SLOWSCAN_API
-void null_trend_stream(gsl_rng *rng, unsigned long seed, const char *series, const char *purpose,
+void slowscan_null_trend_stream(gsl_rng *rng, unsigned long seed, const char *series, const char *purpose,
                        size_t j);
 
 /* Draws replicates [first, first + count) from `source` and writes, for indicator k and
  * replicate j, tau into null[k * stride + j] (NaN when a replicate's tau is undefined).
  * `first` must be a multiple of NULL_TREND_BLOCK. */
 SLOWSCAN_API
-int null_trend_draw(null_trend_workspace *ws, surrogate_source *source, const null_trend_job *job,
+int slowscan_null_trend_draw(null_trend_workspace *ws, surrogate_source *source, const null_trend_job *job,
                     size_t first, size_t count, double *null, size_t stride);
 
 #endif

@@ -2,12 +2,12 @@
  *
  * A figure is one page of panels laid out in rows (each row split into one or more cells),
  * written by PLplot's cairo drivers as PNG, SVG or PDF. The module owns the device: one
- * PLplot stream per figure (made, drawn and ended in report_batch_draw), the page size, the
+ * PLplot stream per figure (made, drawn and ended in slowscan_report_batch_draw), the page size, the
  * fonts and our palette. A figure type is a draw function plus a layout function; the four
  * types below are built on it and later ones plug in the same way.
  *
  * Figures of a run are collected in a batch: each is drawn into a temporary file in the
- * figure directory and only renamed into place by report_batch_commit, so a failed run leaves
+ * figure directory and only renamed into place by slowscan_report_batch_commit, so a failed run leaves
  * no figure, whole or partial. PLplot is not thread-safe: draw from one thread only.
  * Like io/, report/ never prints or exits; errors come back as a status and an io_error. */
 #ifndef SLOWSCAN_REPORT_H
@@ -23,9 +23,9 @@ typedef enum { REPORT_PNG, REPORT_SVG, REPORT_PDF } report_format;
 
 /* "png", "svg" or "pdf"; SLOWSCAN_EINVAL otherwise. */
 SLOWSCAN_API
-int report_format_parse(const char *name, report_format *format);
+int slowscan_report_format_parse(const char *name, report_format *format);
 SLOWSCAN_API
-const char *report_format_extension(report_format format);
+const char *slowscan_report_format_extension(report_format format);
 
 /* Page geometry, in pixels for PNG and points for SVG/PDF: every figure is REPORT_PAGE_WIDTH
  * wide; its height is REPORT_PAGE_TOP + rows x (the row height) + REPORT_PAGE_BOTTOM. */
@@ -53,14 +53,14 @@ typedef struct {
 } report_box;
 
 SLOWSCAN_API
-int report_page_height(const report_layout *layout);
+int slowscan_report_page_height(const report_layout *layout);
 /* `panels` equal cells, row by row, at most max_cols to a row. */
 SLOWSCAN_API
-void report_layout_grid(report_layout *layout, size_t panels, size_t max_cols, int row_height);
+void slowscan_report_layout_grid(report_layout *layout, size_t panels, size_t max_cols, int row_height);
 /* The plotting area of cell `col` of row `row` (room for its title and axis labels left
  * around it). The tests use it to find the panels in a PNG. */
 SLOWSCAN_API
-report_box report_cell(const report_layout *layout, size_t row, size_t col);
+report_box slowscan_report_cell(const report_layout *layout, size_t row, size_t col);
 
 typedef struct report_figure report_figure;
 
@@ -73,36 +73,36 @@ typedef struct {
 
 /* The layout of the page being drawn, for draw functions. */
 SLOWSCAN_API
-const report_layout *report_figure_layout(const report_figure *figure);
+const report_layout *slowscan_report_figure_layout(const report_figure *figure);
 
 typedef struct report_batch report_batch;
 
 /* Opens the figure directory: made if missing (its parent must exist), refused when it is
  * not a directory or a probe file cannot be created in it. */
 SLOWSCAN_API
-int report_batch_open(report_batch **batch, const char *dir, report_format format, io_error *err);
+int slowscan_report_batch_open(report_batch **batch, const char *dir, report_format format, io_error *err);
 /* Draws one figure into a temporary file in the directory; `name` (any text: a series name)
  * is made safe for a file name, prefixed with `prefix-` and made unique within the batch. */
 SLOWSCAN_API
-int report_batch_draw(report_batch *batch, const report_figure_type *type, const void *data,
+int slowscan_report_batch_draw(report_batch *batch, const report_figure_type *type, const void *data,
                       const char *prefix, const char *name, io_error *err);
 /* Renames every figure into place; on failure the ones not yet renamed are removed. */
 SLOWSCAN_API
-int report_batch_commit(report_batch *batch, io_error *err);
+int slowscan_report_batch_commit(report_batch *batch, io_error *err);
 /* Removes every temporary file (and the directory when this batch made it and it is empty),
  * then frees the batch. Safe on NULL and after commit. */
 SLOWSCAN_API
-void report_batch_free(report_batch *batch);
+void slowscan_report_batch_free(report_batch *batch);
 SLOWSCAN_API
-size_t report_batch_count(const report_batch *batch);
+size_t slowscan_report_batch_count(const report_batch *batch);
 /* The final path of figure i of the batch (in drawing order). */
 SLOWSCAN_API
-const char *report_batch_path(const report_batch *batch, size_t i);
+const char *slowscan_report_batch_path(const report_batch *batch, size_t i);
 
 /* `name` made safe for a file name into out[size]: letters, digits, '-', '_' and '.' kept,
  * everything else '_', no leading '.', at most size-1 bytes; "series" when nothing is left. */
 SLOWSCAN_API
-void report_safe_name(const char *name, char *out, size_t size);
+void slowscan_report_safe_name(const char *name, char *out, size_t size);
 
 /* ---- figure types ---------------------------------------------------------------------- */
 
@@ -129,7 +129,7 @@ typedef struct {
     const report_series_test *tests;
     size_t ntests;
 } report_series_data;
-extern SLOWSCAN_API const report_figure_type report_series_figure;
+extern SLOWSCAN_API const report_figure_type slowscan_report_series_figure;
 
 /* Screening overview: per test, every series' statistic against -log10(q); the series with
  * flag set are labelled, at most REPORT_OVERVIEW_LABELS of them (smallest q first). */
@@ -148,7 +148,7 @@ typedef struct {
     size_t npoints;
     double fdr;
 } report_overview_data;
-extern SLOWSCAN_API const report_figure_type report_overview_figure;
+extern SLOWSCAN_API const report_figure_type slowscan_report_overview_figure;
 
 /* Robustness heat-maps: one panel per detrending method x test. An indicator's panel has
  * windows across and bandwidths up, each cell coloured by tau, cells with p <= 0.05 marked; a
@@ -170,7 +170,7 @@ typedef struct {
     long default_detrend, default_window, default_bandwidth;
     int have_p;
 } report_robustness_data;
-extern SLOWSCAN_API const report_figure_type report_robustness_figure;
+extern SLOWSCAN_API const report_figure_type slowscan_report_robustness_figure;
 
 /* The projected time at which lambda reaches zero, with its bootstrap interval, drawn as a
  * marked extrapolation; or the note that no crossing falls within twice the record. */
@@ -192,6 +192,6 @@ typedef struct {
     double t_a1, p_value; /* p NaN without surrogates */
     const report_crossing *crossing;
 } report_recovery_data;
-extern SLOWSCAN_API const report_figure_type report_recovery_figure;
+extern SLOWSCAN_API const report_figure_type slowscan_report_recovery_figure;
 
 #endif

@@ -3,7 +3,7 @@
  * One series (time, values, name) goes through: deseason -> detrend -> the window rule ->
  * the round-off (flat residual) check -> the trend-leakage test -> rolling indicators ->
  * trend statistics (Kendall tau of each indicator path; the drifting-AR(1) t-value) ->
- * surrogates of the residual through the same pipeline -> p-values. screen_decide then turns
+ * surrogates of the residual through the same pipeline -> p-values. slowscan_screen_decide then turns
  * the p-values of a whole run into Benjamini-Hochberg q-values and flags.
  *
  * Nothing here prints. A refusal returns a status (status.h) and fills a screen_detail saying
@@ -38,12 +38,12 @@ typedef struct {
     size_t nindicators;            /* variance, lag1 */
     double min_coverage;           /* 0.8 */
     recovery_method recovery;      /* ln(ar1)/dt */
-    size_t step;                   /* 0: each indicator's default step (rolling_step) */
+    size_t step;                   /* 0: each indicator's default step (slowscan_rolling_step) */
     double band_lo, band_hi;       /* spectral_exponent's band; both 0: every frequency */
     int drift_test;                /* the model-based recovery_trend test (ar1_drift.h): 1 */
     int noise_trend;               /* its innovation variance may drift too: 0 */
     surrogate_kind null_kind;      /* phase */
-    const char *null_name;         /* part of the random streams; NULL: surrogate_name(kind) */
+    const char *null_name;         /* part of the random streams; NULL: slowscan_surrogate_name(kind) */
     surrogate_options null_options;
     size_t surrogates;             /* M per test: 1000 */
     unsigned long seed;            /* 1 */
@@ -53,7 +53,7 @@ typedef struct {
 } screen_config;
 
 SLOWSCAN_API
-screen_config screen_config_default(void);
+screen_config slowscan_screen_config_default(void);
 
 /* What a test is: a rolling indicator's Kendall tau (the indicator_kind values), or a model
  * statistic of the residual. */
@@ -65,14 +65,14 @@ typedef enum {
 /* Tests of a run: one per indicator, then recovery_trend when cfg->drift_test. */
 enum { SCREEN_MAX_TESTS = INDICATOR_COUNT + 1 };
 SLOWSCAN_API
-size_t screen_test_count(const screen_config *cfg);
+size_t slowscan_screen_test_count(const screen_config *cfg);
 /* Test j of cfg; its name ("variance", ..., "recovery_trend"); whether it is a rolling tau. */
 SLOWSCAN_API
-int screen_test_of(const screen_config *cfg, size_t j);
+int slowscan_screen_test_of(const screen_config *cfg, size_t j);
 SLOWSCAN_API
-const char *screen_test_name(int kind);
+const char *slowscan_screen_test_name(int kind);
 SLOWSCAN_API
-int screen_test_rolling(int kind);
+int slowscan_screen_test_rolling(int kind);
 
 /* Quantiles of each test's null distribution. */
 enum { SCREEN_QUANTILES = 5 };
@@ -134,7 +134,7 @@ struct screen_input {
     size_t n;
     const screen_input *control; /* NULL, or the same series of a control run (values NULL
                                     when the run has none of that name): surrogates are made
-                                    from its first n samples' residual (screen_attach_control) */
+                                    from its first n samples' residual (slowscan_screen_attach_control) */
 };
 
 /* A series prepared for the indicators: deseasoned and detrended. */
@@ -226,39 +226,39 @@ typedef struct {
  * Remade when the length changes, reused while it stays. NULL on failure. */
 typedef struct screen_workspace screen_workspace;
 SLOWSCAN_API
-screen_workspace *screen_workspace_alloc(size_t threads);
+screen_workspace *slowscan_screen_workspace_alloc(size_t threads);
 SLOWSCAN_API
-void screen_workspace_free(screen_workspace *ws);
+void slowscan_screen_workspace_free(screen_workspace *ws);
 
-/* Deseasons and detrends one series into *out (free with screen_prepared_free, also after a
+/* Deseasons and detrends one series into *out (free with slowscan_screen_prepared_free, also after a
  * failure). Refusals: SLOWSCAN_EINVAL / ESHORT with *detail filled; SLOWSCAN_ENOMEM. */
 SLOWSCAN_API
-int screen_prepare(const screen_config *cfg, const screen_input *in, screen_prepared *out,
+int slowscan_screen_prepare(const screen_config *cfg, const screen_input *in, screen_prepared *out,
                    screen_detail *detail);
 SLOWSCAN_API
-void screen_prepared_free(screen_prepared *ps);
+void slowscan_screen_prepared_free(screen_prepared *ps);
 /* Makes ps->null_source the residual of the control run's first ps->n samples, deseasoned
  * and detrended with ps's bandwidth and window in time units. Refused (SCREEN_RULE_CONTROL_*)
  * when the control has no such series (values NULL), fewer samples, another time step
  * (relative 1e-6), or fewer than 8 finite samples or no variation; else its own refusals. */
 SLOWSCAN_API
-int screen_attach_control(const screen_config *cfg, screen_prepared *ps,
+int slowscan_screen_attach_control(const screen_config *cfg, screen_prepared *ps,
                           const screen_input *control, screen_detail *detail);
 /* W of cfg->window for a series of n samples spanning `span`, or a refusal in *detail. */
 SLOWSCAN_API
-int screen_window(const screen_config *cfg, size_t n, double span, size_t *window,
+int slowscan_screen_window(const screen_config *cfg, size_t n, double span, size_t *window,
                   screen_detail *detail);
 
 /* The rolling spec (window, coverage, dt, step, band; no plan) of a prepared series, as
- * screen_indicators uses it: with rolling_step it says which windows carry a value. */
+ * slowscan_screen_indicators uses it: with slowscan_rolling_step it says which windows carry a value. */
 SLOWSCAN_API
-rolling_spec screen_rolling_spec(const screen_config *cfg, const screen_prepared *ps);
+rolling_spec slowscan_screen_rolling_spec(const screen_config *cfg, const screen_prepared *ps);
 
 /* Rolling indicators of a prepared series into paths[j][ps->n] (caller's storage, j <
  * cfg->nindicators); NaN everywhere when the series does not vary (a SCREEN_WARN_NO_PATHS in
  * *warning->kind, else warning->kind is left alone). */
 SLOWSCAN_API
-int screen_indicators(screen_workspace *ws, const screen_config *cfg, const screen_prepared *ps,
+int slowscan_screen_indicators(screen_workspace *ws, const screen_config *cfg, const screen_prepared *ps,
                       double *const *paths, screen_warning *warning, int *warned,
                       screen_detail *detail);
 
@@ -267,22 +267,22 @@ int screen_indicators(screen_workspace *ws, const screen_config *cfg, const scre
  * and out->tests; appends to
  * out->warnings (out->nwarnings counts those already there). */
 SLOWSCAN_API
-int screen_test_series(screen_workspace *ws, const screen_config *cfg, const screen_prepared *ps,
+int slowscan_screen_test_series(screen_workspace *ws, const screen_config *cfg, const screen_prepared *ps,
                        double *const *paths, screen_result *out, screen_detail *detail);
 
 /* The whole pipeline for one series. The prepared series and its paths stay readable in the
- * workspace until the next call (screen_workspace_prepared, screen_workspace_path). */
+ * workspace until the next call (slowscan_screen_workspace_prepared, slowscan_screen_workspace_path). */
 SLOWSCAN_API
-int screen_series(screen_workspace *ws, const screen_config *cfg, const screen_input *in,
+int slowscan_screen_series(screen_workspace *ws, const screen_config *cfg, const screen_input *in,
                   screen_result *out, screen_detail *detail);
 SLOWSCAN_API
-const screen_prepared *screen_workspace_prepared(const screen_workspace *ws);
+const screen_prepared *slowscan_screen_workspace_prepared(const screen_workspace *ws);
 SLOWSCAN_API
-const double *screen_workspace_path(const screen_workspace *ws, size_t j);
+const double *slowscan_screen_workspace_path(const screen_workspace *ws, size_t j);
 /* The null distribution of test j of the last series (surrogates values, NaN where
  * undefined), or NULL when none was drawn. */
 SLOWSCAN_API
-const double *screen_workspace_null(const screen_workspace *ws, size_t j);
+const double *slowscan_screen_workspace_null(const screen_workspace *ws, size_t j);
 
 /* How a test ends. */
 typedef enum {
@@ -293,13 +293,13 @@ typedef enum {
     SCREEN_FLAG_INSUFFICIENT
 } screen_flag;
 SLOWSCAN_API
-const char *screen_flag_name(screen_flag flag);
+const char *slowscan_screen_flag_name(screen_flag flag);
 
 /* q-values (Benjamini-Hochberg over every test with a p-value) and flags of `count` tests:
  * with a single tested p it decides itself, else q <= fdr. q[] and flags[] have count
  * entries. SLOWSCAN_ENOMEM. */
 SLOWSCAN_API
-int screen_decide(const screen_test *const *tests, size_t count, double fdr, double *q,
+int slowscan_screen_decide(const screen_test *const *tests, size_t count, double fdr, double *q,
                   screen_flag *flags);
 
 #endif

@@ -1,7 +1,7 @@
 /* slowscan — the batch driver: many series through the per-series pipeline (screen.h), threads
  * over whole series, results handed on in input order (module prefix: screen_batch_).
  *
- *     source (one series at a time) -> workers (screen_series) -> reorder buffer -> sink
+ *     source (one series at a time) -> workers (slowscan_screen_series) -> reorder buffer -> sink
  *
  * - Threads take whole series; a reorder buffer of a few series per thread hands results to
  *   the sink in input order, from one thread at a time, so the sink needs no locking.
@@ -73,7 +73,7 @@ typedef struct {
  * to `sink` in order. Returns SLOWSCAN_OK, or the status of the first failure (described in
  * *failure), or SLOWSCAN_ENOMEM. */
 SLOWSCAN_API
-int screen_batch_run(const screen_config *cfg, screen_source *source, screen_sink *sink,
+int slowscan_screen_batch_run(const screen_config *cfg, screen_source *source, screen_sink *sink,
                      screen_batch_failure *failure);
 
 #endif

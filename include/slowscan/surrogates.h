@@ -4,7 +4,7 @@
  * series length: FFTW plans, made once and shared read-only by every thread (execution uses
  * the new-array interface). A surrogate_source holds what depends on one series — its
  * Fourier amplitudes, sorted values, fitted AR(1) — plus the scratch of one thread; make one
- * source per thread and series. surrogate_draw then allocates nothing.
+ * source per thread and series. slowscan_surrogate_draw then allocates nothing.
  *
  * Missing samples: the source series is filled at its NaN positions by the mean of its finite
  * samples before transforming, and every surrogate gets NaN back at exactly those positions,
@@ -40,12 +40,12 @@ typedef struct {
 
 /* The defaults above. */
 SLOWSCAN_API
-surrogate_options surrogate_default_options(void);
+surrogate_options slowscan_surrogate_default_options(void);
 
 SLOWSCAN_API
-const char *surrogate_name(surrogate_kind kind);
+const char *slowscan_surrogate_name(surrogate_kind kind);
 SLOWSCAN_API
-int surrogate_lookup(const char *name, surrogate_kind *kind);
+int slowscan_surrogate_lookup(const char *name, surrogate_kind *kind);
 
 typedef struct surrogate_plan surrogate_plan;
 typedef struct surrogate_source surrogate_source;
@@ -54,30 +54,30 @@ typedef struct surrogate_source surrogate_source;
  * draws reuse the plan. Planning is not thread-safe unless fftw_make_planner_thread_safe()
  * was called: make plans before starting threads. NULL on failure. */
 SLOWSCAN_API
-surrogate_plan *surrogate_plan_alloc(size_t n, unsigned fftw_flags);
+surrogate_plan *slowscan_surrogate_plan_alloc(size_t n, unsigned fftw_flags);
 SLOWSCAN_API
-void surrogate_plan_free(surrogate_plan *plan);
+void slowscan_surrogate_plan_free(surrogate_plan *plan);
 SLOWSCAN_API
-size_t surrogate_plan_length(const surrogate_plan *plan);
+size_t slowscan_surrogate_plan_length(const surrogate_plan *plan);
 
 /* The source of surrogates of x[n] (n = plan length). *status: SLOWSCAN_ESHORT when fewer
  * than 8 finite samples, SLOWSCAN_ECONST when they do not vary, SLOWSCAN_ENOMEM. */
 SLOWSCAN_API
-surrogate_source *surrogate_source_alloc(const surrogate_plan *plan, surrogate_kind kind,
+surrogate_source *slowscan_surrogate_source_alloc(const surrogate_plan *plan, surrogate_kind kind,
                                          const double *x, const surrogate_options *options,
                                          int *status);
 SLOWSCAN_API
-void surrogate_source_free(surrogate_source *source);
+void slowscan_surrogate_source_free(surrogate_source *source);
 
 /* One replicate into out[n], drawing from rng. */
 SLOWSCAN_API
-int surrogate_draw(surrogate_source *source, gsl_rng *rng, double *out);
+int slowscan_surrogate_draw(surrogate_source *source, gsl_rng *rng, double *out);
 
 /* IAAFT only: iterations of the last draw, its final relative spectral error
  * sqrt(sum (|S_k| - A_k)^2 / sum A_k^2), and whether it met the tolerance before the
  * iteration limit. Counts of draws that did not converge accumulate in *unconverged. */
 SLOWSCAN_API
-void surrogate_iaaft_report(const surrogate_source *source, int *iterations, double *error,
+void slowscan_surrogate_iaaft_report(const surrogate_source *source, int *iterations, double *error,
                             size_t *unconverged);
 
 #endif

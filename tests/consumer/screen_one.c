@@ -23,15 +23,15 @@ static int lag1_tau(const series_table *table, double dt, double *tau)
                             .min_coverage = 0.8, .dt = dt, .recovery = RECOVERY_LOG_AR1};
     indicator_kind lag1 = INDICATOR_LAG1;
     double *residual = malloc(n * sizeof *residual), *path = malloc(n * sizeof *path);
-    kendall_workspace *kendall = kendall_alloc(n);
+    kendall_workspace *kendall = slowscan_kendall_alloc(n);
     int st = residual && path && kendall ? SLOWSCAN_OK : SLOWSCAN_ENOMEM;
     if (st == SLOWSCAN_OK)
-        st = detrend_apply(&detrend, dt, table->values[0], n, NULL, residual);
+        st = slowscan_detrend_apply(&detrend, dt, table->values[0], n, NULL, residual);
     if (st == SLOWSCAN_OK)
-        st = rolling_compute(&rolling, residual, NULL, n, &lag1, 1, &path);
+        st = slowscan_rolling_compute(&rolling, residual, NULL, n, &lag1, 1, &path);
     if (st == SLOWSCAN_OK)
-        st = kendall_tau_b(kendall, table->time, path, n, tau, NULL);
-    kendall_free(kendall);
+        st = slowscan_kendall_tau_b(kendall, table->time, path, n, tau, NULL);
+    slowscan_kendall_free(kendall);
     free(path);
     free(residual);
     return st;
@@ -47,17 +47,17 @@ int main(int argc, char **argv)
     io_error err;
     csv_read_options options = {NULL, NULL};
     double dt, tau;
-    if (csv_read_table(argv[1], &options, &table, &err) != SLOWSCAN_OK) {
+    if (slowscan_csv_read_table(argv[1], &options, &table, &err) != SLOWSCAN_OK) {
         fprintf(stderr, "screen_one: %s\n", err.message);
         return 1;
     }
-    int st = table_check_grid(&table, &dt, &err);
+    int st = slowscan_table_check_grid(&table, &dt, &err);
     if (st != SLOWSCAN_OK)
         fprintf(stderr, "screen_one: %s\n", err.message);
     else if ((st = lag1_tau(&table, dt, &tau)) != SLOWSCAN_OK)
         fprintf(stderr, "screen_one: %s: %s\n", argv[1], slowscan_strerror(st));
     else
         printf("%.12g\n", tau);
-    series_table_free(&table);
+    slowscan_series_table_free(&table);
     return st == SLOWSCAN_OK ? 0 : 1;
 }
