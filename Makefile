@@ -53,7 +53,7 @@ SCLI_OBJ  := $(CLI_SRC:%.c=$(B)/asan/%.o)
 STEST_OBJ := $(TEST_SRC:%.c=$(B)/asan/%.o)
 BENCH_BIN := $(BENCH_SRC:bench/%.c=$(B)/bench/%)
 
-.PHONY: all deps check demo bench validate install clean
+.PHONY: all deps check demo bench validate install clean lib-sources
 # Programs link the static archives: the binary then runs from the build tree and from any
 # prefix without a library path, and the tests may reach module internals.
 STATIC_LIBS := $(B)/libslowscan-report.a $(B)/libslowscan.a
@@ -169,5 +169,10 @@ install: all
 
 clean:
 	rm -rf $(B)
+
+# The library's sources, one per line (suite library checks that none of them reaches a
+# header under cli/).
+lib-sources:
+	@printf '%s\n' $(LIB_SRC) $(wildcard include/*.h include/slowscan/*.h)
 
 -include $(shell find $(B) -name '*.d' 2>/dev/null)

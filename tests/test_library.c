@@ -245,6 +245,31 @@ static void check_exports(void)
     free(unprefixed);
 }
 
+/* (d) Layering: the libraries are the job, cli/ only translates, so no library source or
+ * public header may include anything under cli/ — directly, by a relative path, or through
+ * another header. The compiler's own dependency list (-MM) is what is checked, so an include
+ * that resolves into cli/ by any route is caught; the sources come from the Makefile. */
+static void check_no_cli_includes(void)
+{
+    char cmd[1200];
+    snprintf(cmd, sizeof cmd,
+             "for f in $(${MAKE:-make} -s --no-print-directory lib-sources); do "
+             "${CC:-cc} -std=c11 -D_POSIX_C_SOURCE=200809L -MM -Iinclude "
+             "$(pkg-config --cflags gsl fftw3 netcdf plplot 2>/dev/null) \"$f\" "
+             "|| echo \"unreadable: $f\"; done");
+    int rc;
+    char *deps = run(cmd, &rc);
+    size_t sources = 0;
+    for (const char *c = deps; (c = strstr(c, ".o:")); c++)
+        sources++;
+    const char *cli = strstr(deps, "cli/");
+    const char *bad = strstr(deps, "unreadable");
+    CHECK(rc == 0 && sources > 50 && !cli && !bad,
+          "no library source or public header includes a cli/ header (%zu checked; %s)", sources,
+          cli ? cli : bad ? bad : "ok");
+    free(deps);
+}
+
 /* (c) The core library does not need PLplot; the report library does. */
 static void check_dependencies(void)
 {
@@ -299,4 +324,5 @@ void suite_library(void)
     check_gsl_errors();
     check_exports();
     check_dependencies();
+    check_no_cli_includes();
 }
