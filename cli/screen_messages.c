@@ -118,28 +118,40 @@ static void context_of(const cli_options *o, const char *source, const char *ser
     c->ctx = (message_context){source, series, control_source, &c->cfg, c->names, c->values};
 }
 
-typedef enum { SAY_REFUSAL, SAY_WARNING, SAY_INSUFFICIENT } say_kind;
+/* One message to print: what the library words, and the words' own arguments. */
+typedef enum { SAY_REFUSAL, SAY_WARNING, SAY_INSUFFICIENT, SAY_LEAKAGE, SAY_LEAKAGE_SUMMARY } say_kind;
+typedef struct {
+    say_kind kind;
+    const void *what; /* screen_detail, screen_warning, screen_test, detrend_leakage */
+    const message_context *ctx;
+    size_t count, tested; /* the leakage summary's */
+    const char *const *first;
+    size_t nfirst;
+} cli_message;
 
-static size_t render(say_kind kind, const void *what, const message_context *ctx, char *buf,
-                     size_t size)
+static size_t render(const cli_message *m, char *buf, size_t size)
 {
-    switch (kind) {
-    case SAY_REFUSAL: return slowscan_message_refusal(buf, size, what, ctx);
-    case SAY_WARNING: return slowscan_message_warning(buf, size, what, ctx);
-    default: return slowscan_message_insufficient(buf, size, what, ctx);
+    switch (m->kind) {
+    case SAY_REFUSAL: return slowscan_message_refusal(buf, size, m->what, m->ctx);
+    case SAY_WARNING: return slowscan_message_warning(buf, size, m->what, m->ctx);
+    case SAY_INSUFFICIENT: return slowscan_message_insufficient(buf, size, m->what, m->ctx);
+    case SAY_LEAKAGE: return slowscan_message_leakage(buf, size, m->what, m->ctx);
+    default:
+        return slowscan_message_leakage_summary(buf, size, m->count, m->tested, m->first,
+                                                m->nfirst, m->ctx);
     }
 }
 
 /* Prints one library message, from the heap when it outgrows the stack buffer. */
-static void say(say_kind kind, const void *what, const message_context *ctx)
+static void say(const cli_message *m)
 {
     char stack[1024], *text = stack;
-    size_t len = render(kind, what, ctx, stack, sizeof stack);
+    size_t len = render(m, stack, sizeof stack);
     if (len >= sizeof stack && (text = malloc(len + 1)) != NULL)
-        render(kind, what, ctx, text, len + 1);
+        render(m, text, len + 1);
     if (!text)
         text = stack; /* out of memory: the message cut short rather than lost */
-    if (kind == SAY_REFUSAL)
+    if (m->kind == SAY_REFUSAL)
         cli_error("%s", text);
     else
         cli_warning("%s", text);
@@ -152,7 +164,7 @@ static int refuse(const cli_options *o, const prepared_series *ps, const char *c
 {
     cli_message_context c;
     context_of(o, ps->source, ps->name, control_source, &c);
-    say(SAY_REFUSAL, d, &c.ctx);
+    say(&(cli_message){SAY_REFUSAL, d, &c.ctx, 0, 0, NULL, 0});
     int internal = d->rule == SCREEN_RULE_NO_MEMORY || d->rule == SCREEN_RULE_NONE ||
                    d->status == SLOWSCAN_ENOMEM;
     return internal ? EXIT_INTERNAL : EXIT_BAD_INPUT;
@@ -173,7 +185,7 @@ void cli_screen_warn(const cli_options *o, const prepared_series *ps, const scre
 {
     cli_message_context c;
     context_of(o, ps->source, ps->name, NULL, &c);
-    say(SAY_WARNING, w, &c.ctx);
+    say(&(cli_message){SAY_WARNING, w, &c.ctx, 0, 0, NULL, 0});
 }
 
 void cli_screen_insufficient(const prepared_series *ps, const screen_test *test)
@@ -181,5 +193,21 @@ void cli_screen_insufficient(const prepared_series *ps, const screen_test *test)
     message_context ctx = slowscan_message_context_default();
     ctx.source = ps->source;
     ctx.series = ps->name;
-    say(SAY_INSUFFICIENT, test, &ctx);
+    say(&(cli_message){SAY_INSUFFICIENT, test, &ctx, 0, 0, NULL, 0});
+}
+
+void cli_report_leakage(const cli_options *opts, const cli_leakage_tally *tally)
+{
+    cli_message_context c;
+    for (size_t k = 0; tally->count <= CLI_LEAKAGE_NAMED && k < tally->count; k++) {
+        context_of(opts, tally->source[k], tally->name[k], NULL, &c);
+        c.names[SCREEN_OPTION_DETREND] = NULL; /* the advice names --detrend in every command */
+        say(&(cli_message){SAY_LEAKAGE, &tally->first[k], &c.ctx, 0, 0, NULL, 0});
+    }
+    if (tally->count <= CLI_LEAKAGE_NAMED)
+        return;
+    context_of(opts, NULL, NULL, NULL, &c);
+    c.names[SCREEN_OPTION_DETREND] = NULL;
+    say(&(cli_message){SAY_LEAKAGE_SUMMARY, NULL, &c.ctx, tally->count, tally->tested,
+                       tally->name, CLI_LEAKAGE_NAMED});
 }

@@ -55,6 +55,7 @@ static const char *const cli_names[SCREEN_OPTION_COUNT] = {
     [SCREEN_OPTION_IAAFT_TOL] = "--iaaft-tol",
     [SCREEN_OPTION_CONTROL] = "--control",
     [SCREEN_OPTION_RESAMPLE] = "--resample",
+    [SCREEN_OPTION_JSON] = "--json",
 };
 
 static int option_known(screen_option option)
@@ -355,5 +356,42 @@ size_t slowscan_message_insufficient(char *buf, size_t size, const screen_test *
     put(&m, ", indicator %s: %s; flagged insufficient",
         known ? slowscan_screen_test_name(test->kind) : "of unknown kind",
         slowscan_message_reason(test->reason));
+    return m.len;
+}
+
+/* What to do about a leaking residual, in the caller's option names. */
+static void put_leakage_advice(message_out *m)
+{
+    put(m, "a narrower %s or another %s may follow the trend better; until then a rise near the "
+           "ends may be the trend's", name_of(m, SCREEN_OPTION_BANDWIDTH),
+        name_of(m, SCREEN_OPTION_DETREND));
+}
+
+size_t slowscan_message_leakage(char *buf, size_t size, const detrend_leakage *l,
+                                const message_context *ctx)
+{
+    message_out m = message_begin(buf, size, ctx);
+    int last = l->last.p < l->first.p;
+    put_column(&m);
+    put(&m, ": the residual keeps part of the trend at the record's %s (mean %.3g over one "
+            "bandwidth, p = %.2g); ", last ? "end" : "start", last ? l->last.mean : l->first.mean,
+        last ? l->last.p : l->first.p);
+    put_leakage_advice(&m);
+    return m.len;
+}
+
+size_t slowscan_message_leakage_summary(char *buf, size_t size, size_t count, size_t tested,
+                                        const char *const *first, size_t nfirst,
+                                        const message_context *ctx)
+{
+    message_out m = message_begin(buf, size, ctx);
+    char value[64];
+    put(&m, "%zu of %zu series keep part of their trend at the record's start or end (%s residual "
+            "mean over one bandwidth away from zero at level 0.01), the first ", count, tested,
+        value_of(&m, SCREEN_OPTION_DETREND, value));
+    for (size_t k = 0; k < nfirst; k++)
+        put(&m, "%s'%s'", k ? ", " : "", first[k] ? first[k] : "");
+    put(&m, " (%s lists each); ", name_of(&m, SCREEN_OPTION_JSON));
+    put_leakage_advice(&m);
     return m.len;
 }

@@ -3,7 +3,8 @@
  * exactly what `slowscan` prints on standard error (the command being the reference: its
  * words are the ones users and the golden files know). Rules no input can reach (a failed
  * allocation or FFTW plan) are checked against the command's wording before the move into
- * the library (cli/screen_messages.c at commit eca1cf2). Then the snprintf contract
+ * the library (cli/screen_messages.c at commit eca1cf2). The run's trend-leakage warnings
+ * follow, as the command ends them. Then the snprintf contract
  * (truncation, the returned length) and unknown enum values. */
 #include "check.h"
 #include "slowscan/io.h"
@@ -50,13 +51,17 @@ static double v_ramp(size_t c, size_t i) /* a control: b with every other sample
 {
     return c == 0 ? (double)(i % 3) + 0.1 * (double)i : i % 2 ? NAN : 0.3 * (double)i;
 }
+static double v_steep(size_t c, size_t i) /* s0..s5 rise steeply: a lagging fit leaks */
+{
+    return (c < 6 ? 0.05 * (double)i : 0.0) + sin(1.3 * (double)i + (double)c);
+}
 static double v_flat(size_t c, size_t i)
 {
     (void)i;
     return 3.0 + (double)c;
 }
 
-enum { IN_NONE, IN_FULL, IN_GAP, IN_HOLE, IN_GROW, IN_LONG, IN_SMALL,
+enum { IN_NONE, IN_FULL, IN_GAP, IN_HOLE, IN_GROW, IN_LONG, IN_SMALL, IN_STEEP,
        CTL_GAP, CTL_ONLY_A, CTL_SHORT, CTL_STEP, CTL_FLAT };
 static const input_spec inputs[] = {
     [IN_FULL] = {"t,a,b", 20, 1, v_full},
@@ -65,6 +70,7 @@ static const input_spec inputs[] = {
     [IN_GROW] = {"t,g,line,one", 40, 1, v_grow},
     [IN_LONG] = {"t,rising,steady", 200, 1, v_long},
     [IN_SMALL] = {"t,a,b", 10, 1, v_full},
+    [IN_STEEP] = {"t,s0,s1,s2,s3,s4,s5,s6,s7", 400, 1, v_steep},
     [CTL_GAP] = {"t,a,b", 20, 1, v_ramp},
     [CTL_ONLY_A] = {"t,a", 20, 1, v_ramp},
     [CTL_SHORT] = {"t,a,b", 12, 1, v_full},
@@ -148,6 +154,10 @@ static const message_case cases[] = {
     {.label = "constant, flat residual", .input = IN_GROW, .vars = "line,one",
      .detrend = "linear"},
     {.label = "no finite samples; insufficient tests", .input = IN_HOLE, .vars = "none"},
+    {.label = "leaking residuals one by one", .input = IN_STEEP, .vars = "s0,s1,s7",
+     .detrend = "gaussian", .surrogates = 19},
+    {.label = "leaking residuals summed up", .input = IN_STEEP, .detrend = "gaussian",
+     .surrogates = 19},
     {.label = "iaaft not converged", .input = IN_GROW, .vars = "g", .null_name = "iaaft",
      .iaaft_iterations = 1, .surrogates = 19},
 };
@@ -300,26 +310,41 @@ static int library_messages(const series_table *t, const series_table *ctl, cons
     return refused;
 }
 
-/* Standard error without the run's closing trend-leakage warnings, which come from the
- * command's tally of a whole run, not from one series. */
-static void drop_leakage_lines(char *err)
+enum { NAMED_LEAKS = 3 }; /* the command names this many leaking series, then sums up */
+
+/* The run's closing trend-leakage warnings (a command that finished only). */
+static void library_leakage(const series_table *t, const screen_config *cfg, const char *in_path,
+                            const char *const *values, char *expected, size_t size)
 {
-    char *keep = err;
-    for (char *line = err; *line;) {
-        char *end = strchr(line, '\n');
-        size_t len = end ? (size_t)(end - line) + 1 : strlen(line);
-        char saved = line[len - 1];
-        line[len - 1] = 0;
-        int leak = strstr(line, "part of the trend at the record") ||
-                   strstr(line, "keep part of their trend");
-        line[len - 1] = saved;
-        if (!leak) {
-            memmove(keep, line, len);
-            keep += len;
+    screen_workspace *ws = slowscan_screen_workspace_alloc(1);
+    const char *first[NAMED_LEAKS];
+    detrend_leakage leaks[NAMED_LEAKS];
+    size_t count = 0, tested = 0;
+    for (size_t k = 0; ws && k < t->nseries; k++) {
+        screen_input in = {t->names[k], in_path, t->time_name, t->time, t->values[k], t->n, NULL};
+        screen_result r;
+        screen_detail d;
+        if (slowscan_screen_series(ws, cfg, &in, &r, &d) != SLOWSCAN_OK)
+            continue;
+        tested += r.leakage_tested != 0;
+        if (r.leakage_tested && r.leakage.leaking && count++ < NAMED_LEAKS) {
+            first[count - 1] = t->names[k];
+            leaks[count - 1] = r.leakage;
         }
-        line += len;
     }
-    *keep = 0;
+    slowscan_screen_workspace_free(ws);
+    char text[2048];
+    message_context ctx = {in_path, NULL, NULL, cfg, NULL, values};
+    if (count > NAMED_LEAKS) {
+        slowscan_message_leakage_summary(text, sizeof text, count, tested, first, NAMED_LEAKS,
+                                         &ctx);
+        expect_line(expected, size, 1, text);
+    }
+    for (size_t k = 0; count <= NAMED_LEAKS && k < count; k++) {
+        ctx.series = first[k];
+        slowscan_message_leakage(text, sizeof text, &leaks[k], &ctx);
+        expect_line(expected, size, 1, text);
+    }
 }
 
 static void run_case(const message_case *c)
@@ -350,8 +375,8 @@ static void run_case(const message_case *c)
     char expected[8192] = "";
     int refused = library_messages(&t, have_ctl ? &ctl : NULL, in_path, ctl_path, &cfg, names,
                                    values, expected, sizeof expected);
-    if (err)
-        drop_leakage_lines(err);
+    if (!refused)
+        library_leakage(&t, &cfg, in_path, values, expected, sizeof expected);
     /* the command's wording is the reference (module comment) */
     CHECK(rc == (refused ? 1 : 0), "%s: exit %d, library %s", c->label, rc,
           refused ? "refuses" : "accepts");
@@ -503,6 +528,11 @@ static void other_callers(void)
     slowscan_message_refusal(got, sizeof got, &degree, &ctx);
     CHECK(strcmp(got, "frame: column 'x': option detrend= poly:4: the degree is too high for 3 "
                       "finite samples") == 0, "degree from the config: %s", got);
+    const char *first[] = {"x", "y"};
+    slowscan_message_leakage_summary(got, sizeof got, 2, 5, first, 2, &ctx);
+    CHECK(strstr(got, "2 of 5 series keep part of their trend") && strstr(got, "(poly:4 residual") &&
+              strstr(got, "the first 'x', 'y' (--json lists each)") &&
+              strstr(got, "another detrend= may follow"), "leakage summary: %s", got);
 }
 
 void suite_messages(void)

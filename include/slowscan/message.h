@@ -1,7 +1,8 @@
 /* slowscan — the library's refusals, warnings and reasons in words (module prefix: message_).
  *
  * The screening functions (screen.h) report through data: a status with a screen_detail, a
- * screen_warning on the result, a screen_reason on a test. These functions turn that data
+ * screen_warning on the result, a screen_reason on a test, the trend-leakage test of the
+ * residual. These functions turn that data
  * into the one sentence every front end prints, so the command line and a binding say the
  * same words. A message_context says which series it is about and how the caller's users
  * name the settings (the command line says "--window", a Python caller may say "window=").
@@ -66,5 +67,18 @@ const char *slowscan_message_reason(screen_reason reason);
 SLOWSCAN_API
 size_t slowscan_message_insufficient(char *buf, size_t size, const screen_test *test,
                                      const message_context *ctx);
+
+/* The trend-leakage warning of one series whose residual leaks (screen_result.leakage,
+ * screen_prepared.leakage with leaking set): the edge that leaks more, its mean and p. */
+SLOWSCAN_API
+size_t slowscan_message_leakage(char *buf, size_t size, const detrend_leakage *leakage,
+                                const message_context *ctx);
+
+/* One line for a run in which `count` of the `tested` series leak, naming the first nfirst
+ * of them (a caller names a few series one by one, and sums up beyond that). */
+SLOWSCAN_API
+size_t slowscan_message_leakage_summary(char *buf, size_t size, size_t count, size_t tested,
+                                        const char *const *first, size_t nfirst,
+                                        const message_context *ctx);
 
 #endif

@@ -216,6 +216,7 @@ typedef enum {
     SCREEN_OPTION_IAAFT_TOL,
     SCREEN_OPTION_CONTROL,  /* the control run's file */
     SCREEN_OPTION_RESAMPLE, /* the advice of a control on another step */
+    SCREEN_OPTION_JSON,     /* the output listing every series' leakage test */
     SCREEN_OPTION_COUNT
 } screen_option;
 
