@@ -119,10 +119,18 @@ static void context_of(const cli_options *o, const char *source, const char *ser
 }
 
 /* One message to print: what the library words, and the words' own arguments. */
-typedef enum { SAY_REFUSAL, SAY_WARNING, SAY_INSUFFICIENT, SAY_LEAKAGE, SAY_LEAKAGE_SUMMARY } say_kind;
+typedef enum {
+    SAY_REFUSAL,
+    SAY_WARNING,
+    SAY_INSUFFICIENT,
+    SAY_DETRENDED,
+    SAY_LEAKAGE,
+    SAY_LEAKAGE_SUMMARY
+} say_kind;
 typedef struct {
     say_kind kind;
-    const void *what; /* screen_detail, screen_warning, screen_test, detrend_leakage */
+    const void *what; /* screen_detail, screen_warning, screen_test, screen_prepared,
+                         detrend_leakage */
     const message_context *ctx;
     size_t count, tested; /* the leakage summary's */
     const char *const *first;
@@ -135,6 +143,7 @@ static size_t render(const cli_message *m, char *buf, size_t size)
     case SAY_REFUSAL: return slowscan_message_refusal(buf, size, m->what, m->ctx);
     case SAY_WARNING: return slowscan_message_warning(buf, size, m->what, m->ctx);
     case SAY_INSUFFICIENT: return slowscan_message_insufficient(buf, size, m->what, m->ctx);
+    case SAY_DETRENDED: return slowscan_message_detrended(buf, size, m->what, m->ctx);
     case SAY_LEAKAGE: return slowscan_message_leakage(buf, size, m->what, m->ctx);
     default:
         return slowscan_message_leakage_summary(buf, size, m->count, m->tested, m->first,
@@ -142,11 +151,14 @@ static size_t render(const cli_message *m, char *buf, size_t size)
     }
 }
 
-/* Prints one library message, from the heap when it outgrows the stack buffer. */
+/* Prints one library message (none when its text is empty), from the heap when it outgrows
+ * the stack buffer. */
 static void say(const cli_message *m)
 {
     char stack[1024], *text = stack;
     size_t len = render(m, stack, sizeof stack);
+    if (len == 0)
+        return;
     if (len >= sizeof stack && (text = malloc(len + 1)) != NULL)
         render(m, text, len + 1);
     if (!text)
@@ -194,6 +206,14 @@ void cli_screen_insufficient(const prepared_series *ps, const screen_test *test)
     ctx.source = ps->source;
     ctx.series = ps->name;
     say(&(cli_message){SAY_INSUFFICIENT, test, &ctx, 0, 0, NULL, 0});
+}
+
+void cli_screen_detrended(const prepared_series *ps)
+{
+    message_context ctx = slowscan_message_context_default();
+    ctx.source = ps->source;
+    ctx.series = ps->name;
+    say(&(cli_message){SAY_DETRENDED, ps, &ctx, 0, 0, NULL, 0});
 }
 
 void cli_report_leakage(const cli_options *opts, const cli_leakage_tally *tally)

@@ -332,6 +332,21 @@ size_t slowscan_message_warning(char *buf, size_t size, const screen_warning *w,
     return m.len;
 }
 
+size_t slowscan_message_detrended(char *buf, size_t size, const screen_prepared *ps,
+                                  const message_context *ctx)
+{
+    message_out m = message_begin(buf, size, ctx);
+    if (ps->constant == SCREEN_FLAT_RESIDUAL) {
+        put_column(&m);
+        put(&m, " has no variation left after detrending (the residual is round-off)");
+    } else if (ps->constant || ps->finite < 2) {
+        put_column(&m);
+        put(&m, " has %s; trend and residual are NA",
+            ps->constant ? "a constant value" : "fewer than 2 finite samples");
+    }
+    return m.len;
+}
+
 const char *slowscan_message_reason(screen_reason reason)
 {
     switch (reason) {

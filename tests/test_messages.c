@@ -388,6 +388,44 @@ static void run_case(const message_case *c)
     free(err);
 }
 
+/* `detrend` warns of series left without a trend in the library's words: the binary's
+ * standard error equals the texts of what slowscan_screen_prepare reports. */
+static void detrended(int input, const char *vars, const char *method)
+{
+    const char *in_path = check_tmp_path("messages-detrend.csv");
+    char cmd[1024], *err = NULL, expected[2048] = "", text[512];
+    if (write_input(in_path, input) != 0)
+        return;
+    snprintf(cmd, sizeof cmd, "%s detrend --vars %s --detrend %s %s", check_binary(), vars,
+             method, in_path);
+    int rc = check_run(cmd, NULL, &err);
+    screen_config cfg = slowscan_screen_config_default();
+    slowscan_detrend_parse_method(method, &cfg.detrend);
+    csv_read_options ro = {NULL, vars};
+    series_table t;
+    io_error io;
+    if (slowscan_csv_read_table(in_path, &ro, &t, &io) != SLOWSCAN_OK) {
+        CHECK(0, "detrend %s: %s", vars, io.message);
+        free(err);
+        return;
+    }
+    for (size_t k = 0; k < t.nseries; k++) {
+        screen_input in = {t.names[k], in_path, t.time_name, t.time, t.values[k], t.n, NULL};
+        screen_prepared ps;
+        screen_detail d;
+        message_context ctx = {in_path, t.names[k], NULL, &cfg, NULL, NULL};
+        if (slowscan_screen_prepare(&cfg, &in, &ps, &d) == SLOWSCAN_OK &&
+            slowscan_message_detrended(text, sizeof text, &ps, &ctx) > 0)
+            expect_line(expected, sizeof expected, 1, text);
+        slowscan_screen_prepared_free(&ps);
+    }
+    /* the command's wording is the reference (module comment) */
+    CHECK(rc == 0 && err && expected[0] && strcmp(err, expected) == 0,
+          "detrend --vars %s:\n  command: %s  library: %s", vars, err ? err : "(none)\n", expected);
+    slowscan_series_table_free(&t);
+    free(err);
+}
+
 /* ---- rules the binary cannot reach, and the writers' contract ---- */
 
 static void check_refusal(const screen_detail *d, const message_context *ctx, const char *want)
@@ -539,6 +577,8 @@ void suite_messages(void)
 {
     for (size_t j = 0; j < sizeof cases / sizeof cases[0]; j++)
         run_case(&cases[j]);
+    detrended(IN_GROW, "line,one", "linear"); /* a round-off residual; one sample: constant */
+    detrended(IN_HOLE, "none", "gaussian-linear");
     unreachable_rules();
     truncation();
     unknown_values();

@@ -58,6 +58,13 @@ SLOWSCAN_API
 size_t slowscan_message_warning(char *buf, size_t size, const screen_warning *warning,
                                 const message_context *ctx);
 
+/* The warning of a prepared series (slowscan_screen_prepare) left without a trend: constant,
+ * fewer than 2 finite samples, or a residual at round-off level. 0 and an empty text when
+ * it has its trend. */
+SLOWSCAN_API
+size_t slowscan_message_detrended(char *buf, size_t size, const screen_prepared *ps,
+                                  const message_context *ctx);
+
 /* Why a test has no statistic ("fewer than 8 finite indicator values"): a static string. */
 SLOWSCAN_API
 const char *slowscan_message_reason(screen_reason reason);
