@@ -81,25 +81,18 @@ static const input_spec inputs[] = {
 static int write_input(const char *path, int which)
 {
     const input_spec *s = &inputs[which];
-    size_t columns = 1;
+    size_t count = 0;
     for (const char *p = s->header; *p; p++)
-        columns += *p == ',';
-    FILE *fp = fopen(path, "w");
-    if (!fp)
+        count += *p == ',';
+    double *x = malloc(count * s->n * sizeof *x);
+    if (!x)
         return -1;
-    fprintf(fp, "%s\n", s->header);
-    for (size_t i = 0; i < s->n; i++) {
-        fprintf(fp, "%.12g", s->step * (double)i);
-        for (size_t c = 0; c + 1 < columns; c++) {
-            double v = s->value(c, i);
-            if (isnan(v))
-                fputs(",NA", fp);
-            else
-                fprintf(fp, ",%.12g", v);
-        }
-        fputc('\n', fp);
-    }
-    return fclose(fp) == 0 ? 0 : -1;
+    for (size_t c = 0; c < count; c++)
+        for (size_t i = 0; i < s->n; i++)
+            x[c * s->n + i] = s->value(c, i);
+    int st = check_write_table_csv(path, s->header, count, s->n, s->step, x);
+    free(x);
+    return st;
 }
 
 /* ---- cases: the options once, as the command line and as a screen_config ---- */
