@@ -41,7 +41,7 @@ static message_out message_begin(char *buf, size_t size, const message_context *
     return m;
 }
 
-static const char *const cli_names[SCREEN_OPTION_COUNT] = {
+static const char *const command_line_names[SCREEN_OPTION_COUNT] = {
     [SCREEN_OPTION_WINDOW] = "--window",
     [SCREEN_OPTION_BANDWIDTH] = "--bandwidth",
     [SCREEN_OPTION_DESEASON] = "--deseason",
@@ -70,7 +70,7 @@ message_context slowscan_message_context_default(void)
 
 const char *slowscan_message_option_name(screen_option option)
 {
-    return option_known(option) ? cli_names[option] : "";
+    return option_known(option) ? command_line_names[option] : "";
 }
 
 static const char *name_of(const message_out *m, screen_option option)
