@@ -113,8 +113,11 @@ void cli_screen_config(const cli_options *opts, screen_config *cfg);
 int cli_screen_refuse(const cli_options *opts, const prepared_series *ps, const screen_detail *d);
 /* Prints one warning of a screened series. */
 void cli_screen_warn(const cli_options *opts, const prepared_series *ps, const screen_warning *w);
-/* Why a test is insufficient, as the warnings say it. */
-const char *cli_screen_reason(screen_reason reason);
+/* Prints the warning of a test without a statistic (flagged insufficient). */
+void cli_screen_insufficient(const prepared_series *ps, const screen_test *test);
+/* Prints the warning of a series left without a trend (constant, too few samples, round-off
+ * residual), if it is one. */
+void cli_screen_detrended(const prepared_series *ps);
 
 /* The inputs of a run: every table read and made ready (span, grid, log). */
 typedef struct {

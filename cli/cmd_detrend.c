@@ -18,12 +18,7 @@ static int write_series(const cli_options *opts, const prepared_series *ps, void
 {
     (void)opts;
     detrend_run *run = context;
-    if (ps->constant == 2)
-        cli_warning("%s: column '%s' has no variation left after detrending (the residual is "
-                    "round-off)", ps->source, ps->name);
-    else if (ps->constant || ps->finite < 2)
-        cli_warning("%s: column '%s' has %s; trend and residual are NA", ps->source, ps->name,
-                    ps->constant ? "a constant value" : "fewer than 2 finite samples");
+    cli_screen_detrended(ps);
     for (size_t i = 0; i < ps->n; i++) {
         cli_put_field(run->out, ps->name);
         const double cells[] = {ps->time[i], ps->value[i], ps->trend[i], ps->residual[i]};

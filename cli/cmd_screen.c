@@ -63,9 +63,7 @@ static int record_series(const prepared_series *ps, screen_run *run, const scree
                             res->leakage_tested, NULL};
         /* a constant series was warned about when its paths were made */
         if (isnan(row->result.statistic) && !ps->constant)
-            cli_warning("%s: column '%s', indicator %s: %s; flagged insufficient", ps->source,
-                        ps->name, slowscan_screen_test_name(row->result.kind),
-                        cli_screen_reason(row->result.reason));
+            cli_screen_insufficient(ps, &row->result);
         if (run->figures && row->result.null_used > 0 && nulls && nulls[j] &&
             cli_screen_keep_null(row, nulls[j], run->cfg.surrogates) != EXIT_OK)
             return EXIT_INTERNAL;

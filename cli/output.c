@@ -189,27 +189,6 @@ void cli_tally_leakage(cli_leakage_tally *tally, const char *source, const char 
     tally->count++;
 }
 
-void cli_report_leakage(const cli_options *opts, const cli_leakage_tally *tally)
-{
-    static const char advice[] = "a narrower --bandwidth or another --detrend may follow the trend "
-                                 "better; until then a rise near the ends may be the trend's";
-    if (tally->count > CLI_LEAKAGE_NAMED) {
-        cli_warning("%zu of %zu series keep part of their trend at the record's start or end (%s "
-                    "residual mean over one bandwidth away from zero at level 0.01), the first "
-                    "'%s', '%s', '%s' (--json lists each); %s", tally->count, tally->tested,
-                    opts->detrend_text, tally->name[0], tally->name[1], tally->name[2], advice);
-        return;
-    }
-    for (size_t k = 0; k < tally->count; k++) {
-        const detrend_leakage *l = &tally->first[k];
-        int last = l->last.p < l->first.p;
-        cli_warning("%s: column '%s': the residual keeps part of the trend at the record's %s (mean "
-                    "%.3g over one bandwidth, p = %.2g); %s", tally->source[k], tally->name[k],
-                    last ? "end" : "start", last ? l->last.mean : l->first.mean,
-                    last ? l->last.p : l->first.p, advice);
-    }
-}
-
 typedef struct {
     series_visitor visit;
     void *context;

@@ -193,33 +193,6 @@ screen_input cli_control_input(const cli_inputs *in, const char *name)
     return control;
 }
 
-int cli_control_refuse(const cli_options *o, const screen_input *control,
-                       const prepared_series *ps, const screen_detail *d)
-{
-    const char *cname = control->source;
-    switch (d->rule) {
-    case SCREEN_RULE_CONTROL_MISSING:
-        cli_error("option --control: %s has no series '%s'", cname, ps->name);
-        return EXIT_BAD_INPUT;
-    case SCREEN_RULE_CONTROL_SHORT:
-        cli_error("option --control: series '%s' of %s has %zu samples, fewer than the %zu "
-                  "analysed", ps->name, cname, d->count, d->need);
-        return EXIT_BAD_INPUT;
-    case SCREEN_RULE_CONTROL_STEP:
-        cli_error("option --control: %s has time step %.12g, the analysed series %.12g "
-                  "(use --resample)", cname, d->value, d->limit);
-        return EXIT_BAD_INPUT;
-    case SCREEN_RULE_CONTROL_FLAT:
-        cli_error("option --control: series '%s' of %s has no usable variation", ps->name, cname);
-        return EXIT_BAD_INPUT;
-    default: {
-        /* the control's own preparation failed: named as the control series */
-        prepared_series named = {.name = control->name, .source = cname};
-        return cli_screen_refuse(o, &named, d);
-    }
-    }
-}
-
 int cli_attach_control(const cli_options *o, const cli_inputs *in, prepared_series *ps)
 {
     if (!in->has_control)

@@ -1,10 +1,13 @@
 /* Between the command line and the screening library (screen.h): the options as a
- * screen_config, and the library's refusals, warnings and reasons in the command's words. */
+ * screen_config, and the library's refusals, warnings and reasons printed in the words of
+ * its message module (message.h), with the options as this command spells them. */
 #include "cli.h"
+#include "slowscan/message.h"
 #include "slowscan/status.h"
 
 #include <math.h>
 #include <stdio.h>
+#include <stdlib.h>
 #include <string.h>
 
 /* The display text of a default length ("10%"), kept for messages and --json. */
@@ -92,164 +95,139 @@ void cli_screen_config(const cli_options *o, screen_config *cfg)
     cfg->threads = o->threads > 0 ? (size_t)o->threads : 1;
 }
 
-static const char *length_text(const cli_options *o, screen_option option)
-{
-    return option == SCREEN_OPTION_WINDOW      ? o->window.text
-           : option == SCREEN_OPTION_BANDWIDTH ? o->bandwidth.text
-                                               : o->deseason_window.text;
-}
+/* The library's message context for this command: the series, and the options as its user
+ * spelled and wrote them (the library words the rest). */
+typedef struct {
+    const char *names[SCREEN_OPTION_COUNT], *values[SCREEN_OPTION_COUNT];
+    screen_config cfg;
+    message_context ctx;
+} cli_message_context;
 
-static const char *option_name(screen_option option)
+static void context_of(const cli_options *o, const char *source, const char *series,
+                       const char *control_source, cli_message_context *c)
 {
-    return option == SCREEN_OPTION_WINDOW      ? "--window"
-           : option == SCREEN_OPTION_BANDWIDTH ? "--bandwidth"
-                                               : "--deseason-window";
-}
-
-/* Deseasoning and detrending refusals. */
-static int refuse_preparation(const cli_options *o, const prepared_series *ps,
-                              const screen_detail *d)
-{
-    const char *where = ps->source, *col = ps->name;
+    memset(c, 0, sizeof *c);
+    cli_screen_config(o, &c->cfg);
     /* robustness detrends with each method of its --detrends list in turn */
-    const char *detrend = o->ndetrends > 0 ? "--detrends" : "--detrend";
-    switch (d->rule) {
-    case SCREEN_RULE_DESEASON_HARMONICS:
-        cli_error("%s: column '%s': option --harmonics %ld%s: twice the number of harmonics must "
-                  "be below the period in time steps (%.12g; the Nyquist limit)", where, col,
-                  o->harmonics ? o->harmonics : (long)DETREND_DESEASON_HARMONICS,
-                  o->harmonics ? "" : " (the default, as the period is not a whole number of "
-                                      "steps)", d->value);
-        break;
-    case SCREEN_RULE_DESEASON_WINDOW:
-        cli_error("%s: column '%s': option --deseason-window %s must hold at least two periods "
-                  "(2 x %.12g) and at most the record (%.12g)", where, col,
-                  o->deseason_window.text, o->deseason, d->limit);
-        break;
-    case SCREEN_RULE_DESEASON_PERIOD:
-        cli_error("%s: column '%s': option --deseason %.12g must be at least 2 time steps (%.12g) "
-                  "and at most half the record", where, col, o->deseason, d->limit);
-        break;
-    case SCREEN_RULE_DESEASON_SHORT:
-        cli_error("%s: column '%s': option --deseason %.12g: %s", where, col, o->deseason,
-                  ps->harmonics ? "a window has too few finite samples to fit the harmonics"
-                                : "a phase of the cycle has no finite sample in some window");
-        break;
-    case SCREEN_RULE_DESEASON_FAILED:
-        cli_error("%s: column '%s': deseasoning failed: %s", where, col,
-                  slowscan_strerror(d->status));
-        break;
-    case SCREEN_RULE_DETREND_DEGREE:
-        cli_error("%s: column '%s': option %s %s: the degree is too high for %zu finite "
-                  "samples", where, col, detrend, o->detrend_text, d->count);
-        break;
-    default:
-        cli_error("%s: column '%s': detrending (%s %s) failed: %s", where, col, detrend,
-                  o->detrend_text, slowscan_strerror(d->status));
-        break;
-    }
-    return d->status == SLOWSCAN_ENOMEM ? EXIT_INTERNAL : EXIT_BAD_INPUT;
+    c->names[SCREEN_OPTION_DETREND] = o->ndetrends > 0 ? "--detrends" : NULL;
+    c->values[SCREEN_OPTION_WINDOW] = o->window.text;
+    c->values[SCREEN_OPTION_BANDWIDTH] = o->bandwidth.text;
+    c->values[SCREEN_OPTION_DESEASON_WINDOW] = o->deseason_window.text;
+    c->values[SCREEN_OPTION_DETREND] = o->detrend_text;
+    c->values[SCREEN_OPTION_BAND] = o->band_text;
+    c->ctx = (message_context){source, series, control_source, &c->cfg, c->names, c->values};
 }
 
-/* Window and band refusals of the rolling indicators. */
-static int refuse_rolling(const cli_options *o, const prepared_series *ps, const screen_detail *d)
+/* One message to print: what the library words, and the words' own arguments. */
+typedef enum {
+    SAY_REFUSAL,
+    SAY_WARNING,
+    SAY_INSUFFICIENT,
+    SAY_DETRENDED,
+    SAY_LEAKAGE,
+    SAY_LEAKAGE_SUMMARY
+} say_kind;
+typedef struct {
+    say_kind kind;
+    const void *what; /* screen_detail, screen_warning, screen_test, screen_prepared,
+                         detrend_leakage */
+    const message_context *ctx;
+    size_t count, tested; /* the leakage summary's */
+    const char *const *first;
+    size_t nfirst;
+} cli_message;
+
+static size_t render(const cli_message *m, char *buf, size_t size)
 {
-    switch (d->rule) {
-    case SCREEN_RULE_WINDOW_LONGER:
-        cli_error("%s: option --window %s: the window (%zu samples) is longer than the series "
-                  "(%zu samples)", ps->source, o->window.text, d->count, d->need);
-        break;
-    case SCREEN_RULE_WINDOW_INDICATOR:
-        cli_error("%s: option --window %s gives %zu samples per window; %s needs at least %zu",
-                  ps->source, o->window.text, d->count,
-                  slowscan_indicator_name((indicator_kind)d->indicator), d->need);
-        break;
-    case SCREEN_RULE_BAND_NYQUIST:
-        cli_error("%s: option --band %s is outside (0, %.12g]: the Nyquist frequency of time "
-                  "step %.12g is %.12g cycles per time unit", ps->source, o->band_text, d->limit,
-                  d->value, d->limit);
-        break;
-    case SCREEN_RULE_BAND_TOO_FEW:
-        cli_error("%s: option --band %s holds %zu of the window's frequencies k/(W dt) "
-                  "(W = %zu); spectral_exponent needs at least %zu", ps->source, o->band_text,
-                  d->count, ps->window, d->need);
-        break;
-    case SCREEN_RULE_PLAN_FAILED:
-        cli_error("%s: column '%s': spectral plan failed: %s", ps->source, ps->name,
-                  slowscan_strerror(d->status));
-        break;
+    switch (m->kind) {
+    case SAY_REFUSAL: return slowscan_message_refusal(buf, size, m->what, m->ctx);
+    case SAY_WARNING: return slowscan_message_warning(buf, size, m->what, m->ctx);
+    case SAY_INSUFFICIENT: return slowscan_message_insufficient(buf, size, m->what, m->ctx);
+    case SAY_DETRENDED: return slowscan_message_detrended(buf, size, m->what, m->ctx);
+    case SAY_LEAKAGE: return slowscan_message_leakage(buf, size, m->what, m->ctx);
     default:
-        cli_error("%s: column '%s': rolling indicators failed: %s", ps->source, ps->name,
-                  slowscan_strerror(d->status));
-        break;
+        return slowscan_message_leakage_summary(buf, size, m->count, m->tested, m->first,
+                                                m->nfirst, m->ctx);
     }
-    return d->status == SLOWSCAN_ENOMEM ? EXIT_INTERNAL : EXIT_BAD_INPUT;
+}
+
+/* Prints one library message (none when its text is empty), from the heap when it outgrows
+ * the stack buffer. */
+static void say(const cli_message *m)
+{
+    char stack[1024], *text = stack;
+    size_t len = render(m, stack, sizeof stack);
+    if (len == 0)
+        return;
+    if (len >= sizeof stack && (text = malloc(len + 1)) != NULL)
+        render(m, text, len + 1);
+    if (!text)
+        text = stack; /* out of memory: the message cut short rather than lost */
+    if (m->kind == SAY_REFUSAL)
+        cli_error("%s", text);
+    else
+        cli_warning("%s", text);
+    if (text != stack)
+        free(text);
+}
+
+static int refuse(const cli_options *o, const prepared_series *ps, const char *control_source,
+                  const screen_detail *d)
+{
+    cli_message_context c;
+    context_of(o, ps->source, ps->name, control_source, &c);
+    say(&(cli_message){SAY_REFUSAL, d, &c.ctx, 0, 0, NULL, 0});
+    int internal = d->rule == SCREEN_RULE_NO_MEMORY || d->rule == SCREEN_RULE_NONE ||
+                   d->status == SLOWSCAN_ENOMEM;
+    return internal ? EXIT_INTERNAL : EXIT_BAD_INPUT;
 }
 
 int cli_screen_refuse(const cli_options *o, const prepared_series *ps, const screen_detail *d)
 {
-    switch (d->rule) {
-    case SCREEN_RULE_LONGER_THAN_SPAN:
-        cli_error("%s: option %s %s is longer than the span %.12g of the analysed series",
-                  ps->source, option_name(d->option), length_text(o, d->option), d->limit);
-        return EXIT_BAD_INPUT;
-    case SCREEN_RULE_WINDOW_TOO_FEW:
-        cli_error("%s: option --window %s gives %zu samples per window; at least 3 are needed",
-                  ps->source, o->window.text, d->count);
-        return EXIT_BAD_INPUT;
-    case SCREEN_RULE_BLOCK_LENGTH:
-        cli_error("%s: column '%s': option --block-length %zu is more than half the %zu samples",
-                  ps->source, ps->name, d->count, d->need);
-        return EXIT_BAD_INPUT;
-    case SCREEN_RULE_AR1_NONSTATIONARY:
-        cli_error("%s: column '%s': option --null ar1: the fitted AR(1) coefficient is not below 1 "
-                  "(the residual is not stationary); detrend differently or choose another null",
-                  ps->source, ps->name);
-        return EXIT_BAD_INPUT;
-    case SCREEN_RULE_NULL_FAILED:
-        cli_error("%s: column '%s': surrogate null failed: %s", ps->source, ps->name,
-                  slowscan_strerror(d->status));
-        return d->status == SLOWSCAN_ENOMEM ? EXIT_INTERNAL : EXIT_BAD_INPUT;
-    case SCREEN_RULE_CONTROL_FLAT:
-        cli_error("option --control: series '%s' has no usable variation", ps->name);
-        return EXIT_BAD_INPUT;
-    case SCREEN_RULE_NO_MEMORY:
-    case SCREEN_RULE_NONE:
-        cli_error("out of memory");
-        return EXIT_INTERNAL;
-    default:
-        break;
-    }
-    if (d->rule >= SCREEN_RULE_DESEASON_PERIOD && d->rule <= SCREEN_RULE_DETREND_FAILED)
-        return refuse_preparation(o, ps, d);
-    return refuse_rolling(o, ps, d);
+    return refuse(o, ps, NULL, d);
+}
+
+int cli_control_refuse(const cli_options *o, const screen_input *control,
+                       const prepared_series *ps, const screen_detail *d)
+{
+    return refuse(o, ps, control->source, d);
 }
 
 void cli_screen_warn(const cli_options *o, const prepared_series *ps, const screen_warning *w)
 {
-    if (w->kind == SCREEN_WARN_NO_PATHS)
-        cli_warning("%s: column '%s' %s; its indicators are NA", ps->source, ps->name,
-                    w->status == SCREEN_CONSTANT        ? "is constant"
-                    : w->status == SCREEN_FLAT_RESIDUAL ? "has no variation left after detrending"
-                                                        : "has fewer than 2 finite samples");
-    else if (w->kind == SCREEN_WARN_IAAFT_UNCONVERGED)
-        cli_warning("%s: column '%s': %zu of %zu iaaft surrogates did not converge within %d "
-                    "iterations (--iaaft-iterations, --iaaft-tol)", ps->source, ps->name,
-                    w->count, w->total, o->null_options.iaaft_max_iterations);
-    else
-        cli_warning("%s: column '%s': no surrogates can be made (%s); its p-values are NA",
-                    ps->source, ps->name, slowscan_strerror(w->status));
+    cli_message_context c;
+    context_of(o, ps->source, ps->name, NULL, &c);
+    say(&(cli_message){SAY_WARNING, w, &c.ctx, 0, 0, NULL, 0});
 }
 
-const char *cli_screen_reason(screen_reason reason)
+void cli_screen_insufficient(const prepared_series *ps, const screen_test *test)
 {
-    switch (reason) {
-    case SCREEN_REASON_FEW_VALUES: return "fewer than 8 finite indicator values";
-    case SCREEN_REASON_CONSTANT_PATH: return "the indicator does not vary";
-    case SCREEN_REASON_FEW_PAIRS: return "fewer than 8 adjacent pairs";
-    case SCREEN_REASON_NO_FIT: return "no AR(1) drift fit";
-    case SCREEN_REASON_NO_SURROGATES: return "no surrogates can be made";
-    case SCREEN_REASON_NO_MEMORY: return "out of memory";
-    default: return "the series has no variation";
+    message_context ctx = slowscan_message_context_default();
+    ctx.source = ps->source;
+    ctx.series = ps->name;
+    say(&(cli_message){SAY_INSUFFICIENT, test, &ctx, 0, 0, NULL, 0});
+}
+
+void cli_screen_detrended(const prepared_series *ps)
+{
+    message_context ctx = slowscan_message_context_default();
+    ctx.source = ps->source;
+    ctx.series = ps->name;
+    say(&(cli_message){SAY_DETRENDED, ps, &ctx, 0, 0, NULL, 0});
+}
+
+void cli_report_leakage(const cli_options *opts, const cli_leakage_tally *tally)
+{
+    cli_message_context c;
+    for (size_t k = 0; tally->count <= CLI_LEAKAGE_NAMED && k < tally->count; k++) {
+        context_of(opts, tally->source[k], tally->name[k], NULL, &c);
+        c.names[SCREEN_OPTION_DETREND] = NULL; /* the advice names --detrend in every command */
+        say(&(cli_message){SAY_LEAKAGE, &tally->first[k], &c.ctx, 0, 0, NULL, 0});
     }
+    if (tally->count <= CLI_LEAKAGE_NAMED)
+        return;
+    context_of(opts, NULL, NULL, NULL, &c);
+    c.names[SCREEN_OPTION_DETREND] = NULL;
+    say(&(cli_message){SAY_LEAKAGE_SUMMARY, NULL, &c.ctx, tally->count, tally->tested,
+                       tally->name, CLI_LEAKAGE_NAMED});
 }

@@ -71,8 +71,10 @@ static int deseason_series(const screen_config *cfg, screen_prepared *ps, screen
         return refuse(d, rule, option, SLOWSCAN_EINVAL);
     }
     st = slowscan_detrend_deseason_apply(&spec, ps->dt, ps->value, ps->n);
-    if (st == SLOWSCAN_ESHORT)
+    if (st == SLOWSCAN_ESHORT) {
+        d->count = (size_t)ps->harmonics; /* the message says which fit lacked samples */
         return refuse(d, SCREEN_RULE_DESEASON_SHORT, SCREEN_OPTION_DESEASON, st);
+    }
     if (st != SLOWSCAN_OK)
         return refuse(d, SCREEN_RULE_DESEASON_FAILED, SCREEN_OPTION_DESEASON, st);
     return SLOWSCAN_OK;

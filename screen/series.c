@@ -54,7 +54,8 @@ static int check_per_window(const screen_config *cfg, const screen_prepared *ps,
         size_t inside = slowscan_rolling_band_count(ps->window, ps->dt, cfg->band_lo, cfg->band_hi);
         if (inside < SPECTRAL_MIN_FREQUENCIES) {
             *d = (screen_detail){SCREEN_RULE_BAND_TOO_FEW, SCREEN_OPTION_BAND, SLOWSCAN_EINVAL,
-                                 (int)kind, inside, SPECTRAL_MIN_FREQUENCIES, 0, 0, 0};
+                                 (int)kind, inside, SPECTRAL_MIN_FREQUENCIES, (double)ps->window, 0,
+                                 0};
             return SLOWSCAN_EINVAL;
         }
     }

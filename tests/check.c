@@ -232,17 +232,22 @@ int check_totals(const char *label)
 }
 
 /* Columns t (0, 1, ...), s0, s1, ...; NaN is written as NA (a missing cell). */
-int check_write_columns_csv(const char *path, size_t count, size_t n, const double *x)
+int check_write_table_csv(const char *path, const char *header, size_t count, size_t n,
+                          double step, const double *x)
 {
     FILE *f = fopen(path, "w");
     if (!f)
         return -1;
-    fputs("t", f);
-    for (size_t k = 0; k < count; k++)
-        fprintf(f, ",s%zu", k);
+    if (header)
+        fputs(header, f);
+    else {
+        fputs("t", f);
+        for (size_t k = 0; k < count; k++)
+            fprintf(f, ",s%zu", k);
+    }
     fputc('\n', f);
     for (size_t i = 0; i < n; i++) {
-        fprintf(f, "%zu", i);
+        fprintf(f, "%.12g", step * (double)i);
         for (size_t k = 0; k < count; k++) {
             double v = x[k * n + i];
             if (isnan(v))
@@ -253,6 +258,11 @@ int check_write_columns_csv(const char *path, size_t count, size_t n, const doub
         fputc('\n', f);
     }
     return fclose(f) == 0 ? 0 : -1;
+}
+
+int check_write_columns_csv(const char *path, size_t count, size_t n, const double *x)
+{
+    return check_write_table_csv(path, NULL, count, n, 1.0, x);
 }
 
 /* Series k sample i from gen, series-major draws. */

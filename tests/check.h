@@ -72,5 +72,8 @@ void check_write_series_csv(const char *path, size_t count, size_t n, check_samp
 /* The same CSV from x[k*n + i] (series k, sample i) already drawn; NaN is written as NA.
  * Returns 0, or -1 when the file cannot be written. */
 int check_write_columns_csv(const char *path, size_t count, size_t n, const double *x);
+/* The same with the header line given (NULL: t,s0,s1,...) and times 0, step, 2 step, ... */
+int check_write_table_csv(const char *path, const char *header, size_t count, size_t n,
+                          double step, const double *x);
 
 #endif

@@ -176,15 +176,16 @@ typedef enum {
     SCREEN_RULE_LONGER_THAN_SPAN,   /* option: the length exceeds the span (limit) */
     SCREEN_RULE_WINDOW_TOO_FEW,     /* --window gives count < 3 samples */
     SCREEN_RULE_DESEASON_PERIOD,    /* --deseason outside [2 dt, n/2 dt] (limit = dt) */
-    SCREEN_RULE_DESEASON_HARMONICS, /* 2K >= period in steps (value = steps, count = K) */
+    SCREEN_RULE_DESEASON_HARMONICS, /* 2K >= period in steps (value = steps) */
     SCREEN_RULE_DESEASON_WINDOW,    /* window outside [2 periods, record] (limit = span) */
-    SCREEN_RULE_DESEASON_SHORT,     /* a phase/window without enough finite samples */
+    SCREEN_RULE_DESEASON_SHORT,     /* a phase/window without enough finite samples (count =
+                                       the harmonics fitted, 0: the mean cycle) */
     SCREEN_RULE_DESEASON_FAILED,    /* status */
     SCREEN_RULE_DETREND_DEGREE,     /* poly degree too high for count finite samples */
     SCREEN_RULE_DETREND_FAILED,     /* status */
     SCREEN_RULE_WINDOW_INDICATOR,   /* window (count) below what `indicator` needs (need) */
     SCREEN_RULE_BAND_NYQUIST,       /* band above Nyquist (limit), dt in value */
-    SCREEN_RULE_BAND_TOO_FEW,       /* band holds count frequencies, need needed */
+    SCREEN_RULE_BAND_TOO_FEW,       /* band holds count frequencies, need needed (value = W) */
     SCREEN_RULE_PLAN_FAILED,        /* status */
     SCREEN_RULE_WINDOW_LONGER,      /* the window (count) longer than the series (need) */
     SCREEN_RULE_ROLLING_FAILED,     /* status */
@@ -208,7 +209,15 @@ typedef enum {
     SCREEN_OPTION_HARMONICS,
     SCREEN_OPTION_DETREND,
     SCREEN_OPTION_BAND,
-    SCREEN_OPTION_NULL
+    SCREEN_OPTION_NULL,
+    /* named by messages (message.h), never by a screen_detail's `option` */
+    SCREEN_OPTION_BLOCK_LENGTH,
+    SCREEN_OPTION_IAAFT_ITERATIONS,
+    SCREEN_OPTION_IAAFT_TOL,
+    SCREEN_OPTION_CONTROL,  /* the control run's file */
+    SCREEN_OPTION_RESAMPLE, /* the advice of a control on another step */
+    SCREEN_OPTION_JSON,     /* the output listing every series' leakage test */
+    SCREEN_OPTION_COUNT
 } screen_option;
 
 typedef struct {
