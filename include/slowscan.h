@@ -19,5 +19,6 @@
 #include "slowscan/screen.h"
 #include "slowscan/screen_batch.h"
 #include "slowscan/robustness.h"
+#include "slowscan/recovery.h"
 
 #endif
