@@ -236,38 +236,19 @@ static void write_fractions(const series_pass *pass)
 }
 
 /* The cell of the grid that is the run's own choice (--detrend, --window, --bandwidth, or
- * their defaults), windows compared in samples, bandwidths in time units; -1 when it is not
- * on the grid. */
+ * their defaults; slowscan_robustness_own_cell); -1 when it is not on the grid. */
 static void default_cell(const cli_options *opts, const series_table *t, const method_list *m,
                          report_robustness_data *d)
 {
-    size_t own = 0, w_samples = 0;
-    d->default_detrend = d->default_window = d->default_bandwidth = -1;
-    for (size_t i = 0; i < m->count && d->default_detrend < 0; i++)
-        if (same_method(&m->spec[i], &opts->detrend))
-            d->default_detrend = (long)i;
-    if (d->default_detrend < 0 || cli_series_window(opts, t, &own) != EXIT_OK)
-        return;
-    for (size_t w = 0; w < opts->nwindows && d->default_window < 0; w++) {
-        cli_options cell = *opts;
-        cell.window = opts->windows[w];
-        if (cli_series_window(&cell, t, &w_samples) == EXIT_OK && w_samples == own)
-            d->default_window = (long)w;
-    }
-    if (!slowscan_detrend_uses_bandwidth(opts->detrend.method)) {
-        d->default_bandwidth = 0;
-        return;
-    }
-    /* Both sides resolved the way prepare.c does: percent of the span or time units. */
-    double span = t->time[t->n - 1] - t->time[0];
-    double want = opts->bandwidth.percent ? opts->bandwidth.amount / 100.0 * span
-                                          : opts->bandwidth.amount;
-    for (size_t b = 0; b < opts->nbandwidths && d->default_bandwidth < 0; b++) {
-        const cli_length *g = &opts->bandwidths[b];
-        double have = g->percent ? g->amount / 100.0 * span : g->amount;
-        if (fabs(have - want) <= 1e-9 * fabs(want))
-            d->default_bandwidth = (long)b;
-    }
+    robustness_grid grid;
+    grid_of(opts, m, &grid);
+    screen_config cfg;
+    cli_screen_config(opts, &cfg);
+    robustness_own_cell own = slowscan_robustness_own_cell(&grid, &cfg, t->n,
+                                                           t->time[t->n - 1] - t->time[0]);
+    d->default_detrend = own.method;
+    d->default_window = own.window;
+    d->default_bandwidth = own.bandwidth;
 }
 
 static int draw_heat_map(robustness_run *run, const cli_options *opts, const series_table *t,

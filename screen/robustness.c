@@ -231,6 +231,44 @@ int slowscan_robustness_series(robustness_workspace *ws, const robustness_grid *
     return st;
 }
 
+static double length_in_time(const screen_length *len, double span)
+{
+    return len->percent ? len->amount / 100.0 * span : len->amount;
+}
+
+robustness_own_cell slowscan_robustness_own_cell(const robustness_grid *grid,
+                                                 const screen_config *cfg, size_t n, double span)
+{
+    robustness_own_cell own = {-1, -1, -1};
+    for (size_t i = 0; i < grid->nmethods && own.method < 0; i++)
+        if (grid->methods[i].method == cfg->detrend.method &&
+            grid->methods[i].degree == cfg->detrend.degree)
+            own.method = (long)i;
+    if (grid->nmethods == 0)
+        own.method = 0;
+    size_t w_own = 0, w_cell = 0;
+    screen_detail d;
+    if (own.method < 0 || slowscan_screen_window(cfg, n, span, &w_own, &d) != SLOWSCAN_OK)
+        return own;
+    for (size_t w = 0; w < grid->nwindows && own.window < 0; w++) {
+        screen_config cell = *cfg;
+        cell.window = grid->windows[w];
+        if (slowscan_screen_window(&cell, n, span, &w_cell, &d) == SLOWSCAN_OK && w_cell == w_own)
+            own.window = (long)w;
+    }
+    if (grid->nwindows == 0)
+        own.window = 0;
+    if (!slowscan_detrend_uses_bandwidth(cfg->detrend.method) || grid->nbandwidths == 0) {
+        own.bandwidth = 0;
+        return own;
+    }
+    double want = length_in_time(&cfg->bandwidth, span);
+    for (size_t b = 0; b < grid->nbandwidths && own.bandwidth < 0; b++)
+        if (fabs(length_in_time(&grid->bandwidths[b], span) - want) <= 1e-9 * fabs(want))
+            own.bandwidth = (long)b;
+    return own;
+}
+
 robustness_counts slowscan_robustness_counts_default(void)
 {
     return (robustness_counts){0, 0, 0, 0, 0};

@@ -92,6 +92,18 @@ SLOWSCAN_API
 const screen_prepared *slowscan_robustness_workspace_prepared(const robustness_workspace *ws,
                                                               size_t b);
 
+/* The cell of the grid that is cfg's own choice (its detrend, window and bandwidth) for a
+ * series of n samples spanning `span`: methods compared by kind and degree, windows in
+ * samples, bandwidths in time units (relative 1e-9); -1 where it is not on the grid (window
+ * and bandwidth stay -1 when the method is not, or cfg's window is refused). A method
+ * without a bandwidth has bandwidth 0. */
+typedef struct {
+    long method, window, bandwidth;
+} robustness_own_cell;
+SLOWSCAN_API
+robustness_own_cell slowscan_robustness_own_cell(const robustness_grid *grid,
+                                                 const screen_config *cfg, size_t n, double span);
+
 /* How the cells of one test (and method) came out. */
 typedef struct {
     size_t cells, with_statistic, positive, with_p, significant; /* p <= 0.05 */
