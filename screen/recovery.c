@@ -3,6 +3,7 @@
 #include "slowscan/recovery.h"
 #include "slowscan/significance.h"
 #include "slowscan/status.h"
+#include "screen_internal.h"
 
 #include <gsl/gsl_rng.h>
 #include <math.h>
@@ -74,9 +75,7 @@ static int fit_series(recovery_workspace *ws, const screen_config *cfg, const sc
 static int surrogate_p(recovery_workspace *ws, const screen_config *cfg, const screen_prepared *ps,
                        recovery_result *out, screen_detail *d)
 {
-    screen_config drift_only = *cfg;
-    drift_only.nindicators = 0;
-    drift_only.drift_test = 1;
+    screen_config drift_only = screen_drift_only(cfg);
     screen_result res;
     memset(&res, 0, sizeof res);
     int st = slowscan_screen_test_series(ws->test, &drift_only, ps, NULL, &res, d);

@@ -2,6 +2,7 @@
  * pipeline's preparation, indicators and tests (screen.h), run once per cell. */
 #include "slowscan/robustness.h"
 #include "slowscan/status.h"
+#include "screen_internal.h"
 
 #include <math.h>
 #include <stdlib.h>
@@ -171,9 +172,7 @@ static int rolling_cell(method_pass *p, const screen_config *cell, screen_prepar
 /* recovery_trend of one bandwidth's residual: it has no window, so it is tested once. */
 static int drift_cell(method_pass *p, size_t b)
 {
-    screen_config drift_only = *p->cfg;
-    drift_only.nindicators = 0;
-    drift_only.drift_test = 1;
+    screen_config drift_only = screen_drift_only(p->cfg);
     *p->where = (robustness_position){p->where->method, ROBUSTNESS_NO_WINDOW, b};
     screen_result res;
     memset(&res, 0, sizeof res);
