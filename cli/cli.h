@@ -112,6 +112,8 @@ void cli_screen_config(const cli_options *opts, screen_config *cfg);
  * returns the exit code. */
 int cli_screen_refuse(const cli_options *opts, const prepared_series *ps, const screen_detail *d);
 /* Prints one warning of a screened series. */
+/* A refusal that skips only this series (SCREEN_RULE_NULL_TOO_LITTLE), printed as a warning. */
+void cli_screen_notice(const cli_options *o, const prepared_series *ps, const screen_detail *d);
 void cli_screen_warn(const cli_options *opts, const prepared_series *ps, const screen_warning *w);
 /* Prints the warning of a test without a statistic (flagged insufficient). */
 void cli_screen_insufficient(const prepared_series *ps, const screen_test *test);

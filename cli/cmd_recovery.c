@@ -4,20 +4,18 @@
  * series a0, a1, their standard errors, the t-value of a1 and, with --surrogates M, its
  * surrogate p-value (one-sided: a1 > 0, memory growing). */
 #include "cli.h"
-#include "trend_test.h"
-#include "slowscan/ar1_drift.h"
-#include "slowscan/significance.h"
+#include "slowscan/recovery.h"
 #include "slowscan/status.h"
 
 #include <math.h>
-#include <gsl/gsl_rng.h>
 #include <stdlib.h>
 
 typedef struct {
     FILE *out, *json, *projection;
     size_t written;
-    trend_tester tester;
-    gsl_rng *rng; /* for the projection's bootstrap; reseeded per series */
+    recovery_workspace *ws; /* made on first use, for --threads threads */
+    double *path;           /* lambda, lo, hi of the series */
+    size_t path_cap;
     report_batch *figures;
 } recovery_run;
 
@@ -52,9 +50,6 @@ static int open_outputs(const cli_options *opts, cli_outputs *outs, void *contex
     if (rc == EXIT_OK && run->projection) {
         fputs("series,status,crossing_time,crossing_lo,crossing_hi,interval,share_crossing,draws,"
               "basis\n", run->projection);
-        run->rng = gsl_rng_alloc(gsl_rng_mt19937);
-        if (!run->rng)
-            rc = EXIT_INTERNAL;
     }
     if (rc == EXIT_OK && run->json)
         fprintf(run->json, "{\n  \"program\": \"slowscan\",\n  \"null\": \"%s\",\n  \"surrogates\": %ld,\n"
@@ -64,46 +59,24 @@ static int open_outputs(const cli_options *opts, cli_outputs *outs, void *contex
     return rc;
 }
 
-/* The surrogate p-value of t(a1): the drift test of screen (trend_test.c), run alone, so the
- * same surrogates, streams and threads give the same p as screen's recovery_trend row. */
-static double surrogate_p(const cli_options *opts, const prepared_series *ps, recovery_run *run,
-                          int *rc)
+/* The projected crossing (the library's), one CSV row per series. */
+static void write_projection(recovery_run *run, const prepared_series *ps,
+                             const recovery_result *r)
 {
-    cli_options drift_only = *opts;
-    drift_only.nindicators = 0;
-    drift_only.drift_test = 1;
-    screen_result result;
-    *rc = trend_test(&run->tester, &drift_only, ps, NULL, &result);
-    return result.tests[0].p_value;
-}
-
-/* The crossing of lambda = 0 within twice the record, with its residual-bootstrap interval
- * (slowscan_ar1_drift_project), one CSV row per series; *projected is filled for the JSON. */
-static int write_projection(const cli_options *opts, recovery_run *run, const prepared_series *ps,
-                            ar1_drift_workspace *ws, const ar1_drift_fit *fit, ar1_projection *pr)
-{
-    gsl_rng_set(run->rng, slowscan_stream_seed(opts->seed, ps->name, "projection", 0));
-    int st = slowscan_ar1_drift_project(ws, fit, ps->n, 2.0 * (double)(ps->n - 1),
-                               (size_t)opts->projection_draws, run->rng, pr);
-    if (st == SLOWSCAN_ENOMEM)
-        return EXIT_INTERNAL;
-    if (st != SLOWSCAN_OK) {
+    const ar1_projection *pr = &r->projection;
+    if (r->projection_status != SLOWSCAN_OK)
         cli_warning("%s: column '%s': no projected crossing (%s)", ps->source, ps->name,
-                    slowscan_strerror(st));
-        pr->kind = PROJECTION_NONE, pr->index = pr->index_lo = pr->index_hi = NAN;
-        pr->share_crossing = NAN, pr->draws = 0;
-    }
+                    slowscan_strerror(r->projection_status));
     cli_put_field(run->projection, ps->name);
     fprintf(run->projection, ",%s,", status_name(pr));
-    const double index[] = {pr->index, pr->index_lo, pr->index_hi};
+    const double times[] = {r->crossing_time, r->crossing_lo, r->crossing_hi};
     for (int k = 0; k < 3; k++) {
-        cli_put_number(run->projection, index_time(ps, index[k]));
+        cli_put_number(run->projection, times[k]);
         fputc(',', run->projection);
     }
     fprintf(run->projection, "%s,", pr->draws == 0 ? "NA" : isinf(pr->index_hi) ? "open_above" : "closed");
     cli_put_number(run->projection, pr->share_crossing);
     fprintf(run->projection, ",%zu,%s\n", pr->draws, projection_basis);
-    return EXIT_OK;
 }
 
 enum { EXTENSION_POINTS = 64 };
@@ -132,24 +105,26 @@ static report_crossing figure_crossing(const prepared_series *ps, const ar1_drif
     return c;
 }
 
-static void write_json_projection(FILE *fp, const prepared_series *ps, const ar1_projection *pr)
+static void write_json_projection(FILE *fp, const recovery_result *r)
 {
+    const ar1_projection *pr = &r->projection;
     fprintf(fp, ", \"projection\": {\"basis\": \"%s\", \"status\": \"%s\"", projection_basis,
             status_name(pr));
     const char *k[] = {"crossing_time", "crossing_lo", "crossing_hi"};
-    const double index[] = {pr->index, pr->index_lo, pr->index_hi};
+    const double times[] = {r->crossing_time, r->crossing_lo, r->crossing_hi};
     for (int i = 0; i < 3; i++) {
         fprintf(fp, ", \"%s\": ", k[i]);
-        cli_json_number(fp, index_time(ps, index[i]));
+        cli_json_number(fp, times[i]);
     }
     fprintf(fp, ", \"open_above\": %s, \"share_crossing\": ", isinf(pr->index_hi) ? "true" : "false");
     cli_json_number(fp, pr->share_crossing);
     fprintf(fp, ", \"draws\": %zu}", pr->draws);
 }
 
-static void write_json(recovery_run *run, const prepared_series *ps, const ar1_drift_fit *f, double p,
-                       const ar1_projection *pr)
+static void write_json(recovery_run *run, const prepared_series *ps, const recovery_result *r)
 {
+    const ar1_drift_fit *f = &r->fit;
+    double p = r->p_value;
     fprintf(run->json, "%s\n    {\"series\": ", run->written++ ? "," : "");
     cli_json_string(run->json, ps->name);
     /* se_* are HC3; the model-based error of a1 and its t are kept beside them */
@@ -162,67 +137,85 @@ static void write_json(recovery_run *run, const prepared_series *ps, const ar1_d
         cli_json_number(run->json, v[i]);
     }
     fprintf(run->json, ", \"pairs\": %zu", f->pairs);
-    if (pr)
-        write_json_projection(run->json, ps, pr);
+    if (r->projected)
+        write_json_projection(run->json, r);
     fputc('}', run->json);
 }
 
 /* After the path rows: the projection (--project), the JSON entry, the figure. */
-static int project_and_draw(const cli_options *opts, recovery_run *run, const prepared_series *ps,
-                            ar1_drift_workspace *ws, const ar1_drift_fit *fit, double p,
-                            const double *path)
+static int project_and_draw(recovery_run *run, const prepared_series *ps,
+                            const recovery_result *r, const double *path)
 {
-    ar1_projection projected;
-    int rc = run->projection ? write_projection(opts, run, ps, ws, fit, &projected) : EXIT_OK;
-    if (rc != EXIT_OK)
-        return rc;
+    if (run->projection)
+        write_projection(run, ps, r);
     if (run->json)
-        write_json(run, ps, fit, p, run->projection ? &projected : NULL);
+        write_json(run, ps, r);
     if (!run->figures)
         return EXIT_OK;
     report_crossing crossing = {0};
     double extension[2 * EXTENSION_POINTS];
-    int drawn = run->projection && projected.draws > 0;
+    int drawn = run->projection && r->projection.draws > 0;
     if (drawn)
-        crossing = figure_crossing(ps, fit, &projected, extension);
+        crossing = figure_crossing(ps, &r->fit, &r->projection, extension);
     report_recovery_data data = {ps->name, ps->time_name, ps->n, ps->time, path,
-                                 path + ps->n, path + 2 * ps->n, fit->t_a1, p,
+                                 path + ps->n, path + 2 * ps->n, r->fit.t_a1, r->p_value,
                                  drawn ? &crossing : NULL};
     return cli_figure_draw(run->figures, &slowscan_report_recovery_figure, &data, "recovery", ps->name);
+}
+
+/* The library's analysis of one series, then its rows. */
+static int analyse(const cli_options *opts, recovery_run *run, const prepared_series *ps,
+                   recovery_result *r)
+{
+    if (!run->ws && !(run->ws = slowscan_recovery_workspace_alloc((size_t)opts->threads))) {
+        cli_error("out of memory");
+        return EXIT_INTERNAL;
+    }
+    if (run->path_cap < 3 * ps->n) {
+        free(run->path);
+        run->path = malloc(3 * ps->n * sizeof *run->path);
+        run->path_cap = run->path ? 3 * ps->n : 0;
+        if (!run->path) {
+            cli_error("out of memory");
+            return EXIT_INTERNAL;
+        }
+    }
+    screen_config cfg;
+    cli_screen_config(opts, &cfg);
+    recovery_config rcfg = slowscan_recovery_config_default();
+    if (run->projection)
+        rcfg.projection_draws = (size_t)opts->projection_draws;
+    screen_detail d;
+    double *path = run->path;
+    int st = slowscan_recovery_series(run->ws, &cfg, &rcfg, ps, path, path + ps->n,
+                                      path + 2 * ps->n, r, &d);
+    for (size_t w = 0; w < r->nwarnings; w++)
+        cli_screen_warn(opts, ps, &r->warnings[w]);
+    return st == SLOWSCAN_OK ? EXIT_OK : cli_screen_refuse(opts, ps, &d);
 }
 
 static int recovery_series(const cli_options *opts, const prepared_series *ps, void *context)
 {
     recovery_run *run = context;
-    ar1_drift_workspace *ws = slowscan_ar1_drift_alloc(ps->n);
-    if (ws)
-        slowscan_ar1_drift_set_noise_trend(ws, opts->noise_trend);
-    double *path = malloc(3 * ps->n * sizeof *path);
-    ar1_drift_fit fit;
-    int st = ws && path ? (ps->constant ? SLOWSCAN_ECONST : slowscan_ar1_drift_estimate(ws, ps->residual, ps->n, &fit))
-                        : SLOWSCAN_ENOMEM;
-    int rc = st == SLOWSCAN_ENOMEM ? EXIT_INTERNAL : EXIT_OK;
-    double p = NAN;
-    if (st == SLOWSCAN_OK && opts->surrogates > 0)
-        p = surrogate_p(opts, ps, run, &rc);
-    if (st == SLOWSCAN_OK && rc == EXIT_OK) {
-        slowscan_ar1_drift_path(&fit, ps->n, ps->dt, path, path + ps->n, path + 2 * ps->n);
-        for (size_t i = 0; i < ps->n; i++) {
-            cli_put_field(run->out, ps->name);
-            for (int c = -1; c < 3; c++) {
-                fputc(',', run->out);
-                cli_put_number(run->out, c < 0 ? ps->time[i] : path[c * ps->n + i]);
-            }
-            fputc('\n', run->out);
-        }
-        rc = project_and_draw(opts, run, ps, ws, &fit, p, path);
-    } else if (rc == EXIT_OK) {
+    recovery_result r;
+    int rc = analyse(opts, run, ps, &r);
+    if (rc != EXIT_OK)
+        return rc;
+    if (r.fit_status != SLOWSCAN_OK) {
         cli_warning("%s: column '%s': no drifting AR(1) fit (%s); no rows written for it",
-                    ps->source, ps->name, slowscan_strerror(st));
+                    ps->source, ps->name, slowscan_strerror(r.fit_status));
+        return EXIT_OK;
     }
-    free(path);
-    slowscan_ar1_drift_free(ws);
-    return rc;
+    const double *path = run->path;
+    for (size_t i = 0; i < ps->n; i++) {
+        cli_put_field(run->out, ps->name);
+        for (int c = -1; c < 3; c++) {
+            fputc(',', run->out);
+            cli_put_number(run->out, c < 0 ? ps->time[i] : path[c * ps->n + i]);
+        }
+        fputc('\n', run->out);
+    }
+    return project_and_draw(run, ps, &r, path);
 }
 
 static int finish(const cli_options *opts, void *context)
@@ -243,8 +236,7 @@ int cmd_recovery(const cli_options *opts)
     recovery_run run = {0};
     series_command cmd = {open_outputs, recovery_series, finish, &run, NULL, NULL, NULL};
     int rc = cli_run_series_command(opts, &cmd);
-    trend_tester_free(&run.tester);
-    if (run.rng)
-        gsl_rng_free(run.rng);
+    slowscan_recovery_workspace_free(run.ws);
+    free(run.path);
     return rc;
 }

@@ -5,7 +5,7 @@
  * FILE the share of cells whose statistic is > 0 and whose p is <= 0.05, per method and, when
  * the grid has several methods, over all of them. */
 #include "cli.h"
-#include "trend_test.h"
+#include "slowscan/robustness.h"
 #include "slowscan/status.h"
 
 #include <math.h>
@@ -14,8 +14,7 @@
 
 typedef struct {
     FILE *out, *fractions;
-    trend_tester tester;       /* the rolling indicators of one (method, bandwidth, window) */
-    trend_tester drift_tester; /* recovery_trend alone: its workspaces are sized for it */
+    robustness_workspace *ws; /* made on first use, for --threads threads */
     report_batch *figures;
 } robustness_run;
 
@@ -34,19 +33,15 @@ typedef struct {
     size_t nind, nw, nb;
 } cell_grid;
 
-typedef struct {
-    size_t cells, with_stat, positive, with_p, significant;
-} cell_counts;
-
-/* Everything one (method, series) pass writes into. */
+/* Everything the cells of one series write into. */
 typedef struct {
     robustness_run *run;
-    const cli_options *opts; /* with this method as its --detrend */
-    const char *label;
-    size_t method;
-    cell_counts *counts; /* per test of the run: indicators, then recovery_trend */
+    const cli_options *opts;
+    const method_list *methods;
+    const screen_prepared *named; /* the series' name and source, for warnings */
+    robustness_counts counts[CLI_MAX_DETRENDS * SCREEN_MAX_TESTS]; /* [method][test] */
     cell_grid *grid;
-} method_pass;
+} series_pass;
 
 static int same_method(const detrend_spec *a, const detrend_spec *b)
 {
@@ -107,11 +102,6 @@ static method_list grid_methods(const cli_options *opts)
     return m;
 }
 
-static size_t bandwidths_of(const cli_options *opts, const detrend_spec *spec)
-{
-    return slowscan_detrend_uses_bandwidth(spec->method) ? opts->nbandwidths : 1;
-}
-
 static int open_outputs(const cli_options *opts, cli_outputs *outs, void *context)
 {
     robustness_run *run = context;
@@ -129,184 +119,136 @@ static int open_outputs(const cli_options *opts, cli_outputs *outs, void *contex
     return rc;
 }
 
-/* One CSV row and its count; `window` NaN for recovery_trend. */
-static void put_row(method_pass *pass, const prepared_series *ps, size_t test, double window,
-                    const screen_test *r)
+/* One CSV row; `window` NA for recovery_trend. */
+static void put_row(const series_pass *pass, const robustness_record *r)
 {
     FILE *out = pass->run->out;
-    cli_put_field(out, ps->name);
-    const char *name = test < pass->opts->nindicators
-                           ? slowscan_indicator_name(pass->opts->indicators[test]) : "recovery_trend";
-    fprintf(out, ",%s,", name);
-    cli_put_field(out, pass->label);
-    const double cells[] = {window, ps->bandwidth, r->tau, r->statistic, r->p_value};
+    cli_put_field(out, pass->named->name);
+    fprintf(out, ",%s,", slowscan_screen_test_name(r->kind));
+    cli_put_field(out, pass->methods->label[r->method]);
+    const double cells[] = {r->window, r->bandwidth, r->tau, r->statistic, r->p_value};
     for (size_t c = 0; c < sizeof cells / sizeof cells[0]; c++) {
         fputc(',', out);
         cli_put_number(out, cells[c]);
     }
     fputc('\n', out);
-    cell_counts *c = &pass->counts[test];
-    c->cells++;
-    c->with_stat += !isnan(r->statistic);
-    c->positive += r->statistic > 0;
-    c->with_p += !isnan(r->p_value);
-    c->significant += r->p_value <= 0.05;
 }
 
-/* The rolling indicators of one (window, bandwidth) cell. */
-static int rolling_cell(method_pass *pass, const cli_options *cell, const prepared_series *ps,
-                        size_t w, size_t b)
+/* With --figures: the record's place in the heat map's grid. */
+static void store_cell(cell_grid *g, const robustness_record *r)
 {
-    double *values[INDICATOR_COUNT] = {NULL};
-    screen_result res;
-    const screen_test *results = res.tests;
-    int rc = cli_indicator_values(cell, ps, values);
-    if (rc == EXIT_OK)
-        rc = trend_test(&pass->run->tester, cell, ps, values, &res);
-    cell_grid *g = pass->grid;
-    for (size_t j = 0; rc == EXIT_OK && j < cell->nindicators; j++) {
-        put_row(pass, ps, j, (double)(ps->window - 1) * ps->dt, &results[j]);
-        if (g->tau) {
-            size_t at = ((pass->method * g->nind + j) * g->nw + w) * g->nb + b;
-            g->tau[at] = results[j].tau;
-            g->p[at] = results[j].p_value;
-        }
+    if (!g->tau)
+        return;
+    if (r->window_index == ROBUSTNESS_NO_WINDOW) {
+        g->drift_t[r->method * g->nb + r->bandwidth_index] = r->statistic;
+        g->drift_p[r->method * g->nb + r->bandwidth_index] = r->p_value;
+        return;
     }
-    cli_indicator_values_free(cell, values);
-    return rc;
+    size_t at = ((r->method * g->nind + r->test) * g->nw + r->window_index) * g->nb +
+                r->bandwidth_index;
+    g->tau[at] = r->tau;
+    g->p[at] = r->p_value;
 }
 
-/* recovery_trend of one bandwidth's residual: it has no window, so it is tested once. */
-static int drift_cell(method_pass *pass, const prepared_series *ps, size_t b)
+/* The library's sink: warnings, rows, counts and heat-map cells of one grid cell. */
+static int take_cell(void *context, const robustness_cell *cell)
 {
-    cli_options drift_only = *pass->opts;
-    drift_only.nindicators = 0;
-    drift_only.drift_test = 1;
-    screen_result res;
-    const screen_test *r = &res.tests[0];
-    int rc = trend_test(&pass->run->drift_tester, &drift_only, ps, NULL, &res);
-    if (rc != EXIT_OK)
-        return rc;
-    put_row(pass, ps, pass->opts->nindicators, NAN, r);
-    cell_grid *g = pass->grid;
-    if (g->drift_t) {
-        g->drift_t[pass->method * g->nb + b] = r->statistic;
-        g->drift_p[pass->method * g->nb + b] = r->p_value;
+    series_pass *pass = context;
+    for (size_t w = 0; w < cell->nwarnings; w++)
+        cli_screen_warn(pass->opts, pass->named, &cell->warnings[w]);
+    for (size_t i = 0; i < cell->nrecords; i++) {
+        put_row(pass, &cell->records[i]);
+        store_cell(pass->grid, &cell->records[i]);
     }
-    return EXIT_OK;
+    slowscan_robustness_tally(pass->counts, SCREEN_MAX_TESTS, cell->records, cell->nrecords);
+    return 0;
 }
 
-/* Detrending depends on the method and bandwidth only: each bandwidth's residual (and control
- * residual) is made once and reused for every window. */
-static int prepare_bandwidths(const cli_options *opts, const cli_inputs *in, const series_table *t,
-                              size_t k, size_t nb, prepared_series *ps)
-{
-    int rc = EXIT_OK;
-    for (size_t b = 0; rc == EXIT_OK && b < nb; b++) {
-        cli_options cell = *opts;
-        cell.window = opts->windows[0];
-        if (slowscan_detrend_uses_bandwidth(opts->detrend.method))
-            cell.bandwidth = opts->bandwidths[b];
-        rc = cli_prepare_series(&cell, t, k, &ps[b]);
-        if (rc == EXIT_OK && !ps[b].constant)
-            rc = cli_attach_control(&cell, in, &ps[b]);
-    }
-    return rc;
-}
-
-/* Every cell of one method: windows x bandwidths for the indicators, then recovery_trend per
- * bandwidth. */
-static int method_cells(method_pass *pass, const cli_inputs *in, const series_table *t, size_t k)
+/* The message of a refusal, with the options of the cell it met in force. */
+static int refuse_cell(const series_pass *pass, const cli_inputs *in, const screen_detail *d,
+                       const robustness_position *at)
 {
     const cli_options *opts = pass->opts;
-    size_t nb = bandwidths_of(opts, &opts->detrend);
-    prepared_series ps[CLI_MAX_GRID] = {{0}};
-    int rc = prepare_bandwidths(opts, in, t, k, nb, ps);
-    for (size_t w = 0; rc == EXIT_OK && opts->nindicators > 0 && w < opts->nwindows; w++) {
-        cli_options cell = *opts;
-        cell.window = opts->windows[w];
-        size_t window = 0;
-        rc = cli_series_window(&cell, t, &window);
-        for (size_t b = 0; rc == EXIT_OK && b < nb; b++) {
-            ps[b].window = window;
-            rc = rolling_cell(pass, &cell, &ps[b], w, b);
-        }
-    }
-    for (size_t b = 0; rc == EXIT_OK && opts->drift_test && b < nb; b++)
-        rc = drift_cell(pass, &ps[b], b);
-    for (size_t b = 0; b < nb; b++)
-        cli_prepared_free(&ps[b]);
-    return rc;
+    cli_options cell = *opts;
+    cell.detrend = pass->methods->spec[at->method];
+    cell.detrend_text = pass->methods->label[at->method];
+    if (at->window_index != ROBUSTNESS_NO_WINDOW)
+        cell.window = opts->windows[at->window_index];
+    if (slowscan_detrend_uses_bandwidth(cell.detrend.method))
+        cell.bandwidth = opts->bandwidths[at->bandwidth_index];
+    const screen_prepared *ps = slowscan_robustness_workspace_prepared(pass->run->ws,
+                                                                       at->bandwidth_index);
+    if (!ps)
+        ps = pass->named;
+    if (!d->control)
+        return cli_screen_refuse(&cell, ps, d);
+    screen_input control = cli_control_input(in, ps->name);
+    return cli_control_refuse(&cell, &control, ps, d);
+}
+
+/* The options' grid as the library takes it. */
+static void grid_of(const cli_options *opts, const method_list *m, robustness_grid *g)
+{
+    *g = slowscan_robustness_grid_default();
+    for (size_t w = 0; w < opts->nwindows; w++)
+        g->windows[w] = (screen_length){opts->windows[w].amount, opts->windows[w].percent};
+    for (size_t b = 0; b < opts->nbandwidths; b++)
+        g->bandwidths[b] = (screen_length){opts->bandwidths[b].amount, opts->bandwidths[b].percent};
+    for (size_t i = 0; i < m->count; i++)
+        g->methods[i] = m->spec[i];
+    g->nwindows = opts->nwindows;
+    g->nbandwidths = opts->nbandwidths;
+    g->nmethods = m->count;
 }
 
 static void put_fraction(FILE *fp, const char *series, const char *test, const char *method,
-                         const cell_counts *c)
+                         const robustness_counts *c)
 {
+    double positive, significant;
+    slowscan_robustness_shares(c, &positive, &significant);
     cli_put_field(fp, series);
     fprintf(fp, ",%s,", test);
     cli_put_field(fp, method);
-    /* Shares among the cells where the quantity exists; NA when it exists nowhere. */
     fprintf(fp, ",%zu,", c->cells);
-    cli_put_number(fp, c->with_stat ? (double)c->positive / (double)c->with_stat : NAN);
+    cli_put_number(fp, positive);
     fputc(',', fp);
-    cli_put_number(fp, c->with_p ? (double)c->significant / (double)c->with_p : NAN);
+    cli_put_number(fp, significant);
     fputc('\n', fp);
 }
 
 /* Per test: one row per method, then (with several methods) the row "all" over every cell. */
-static void write_fractions(robustness_run *run, const cli_options *opts, const method_list *m,
-                            const char *name, cell_counts (*counts)[SCREEN_MAX_TESTS])
+static void write_fractions(const series_pass *pass)
 {
-    for (size_t j = 0; j < trend_test_count(opts); j++) {
-        const char *test = j < opts->nindicators ? slowscan_indicator_name(opts->indicators[j])
-                                                 : "recovery_trend";
-        cell_counts all = {0, 0, 0, 0, 0};
-        for (size_t i = 0; i < m->count; i++) {
-            put_fraction(run->fractions, name, test, m->label[i], &counts[i][j]);
-            all.cells += counts[i][j].cells;
-            all.with_stat += counts[i][j].with_stat;
-            all.positive += counts[i][j].positive;
-            all.with_p += counts[i][j].with_p;
-            all.significant += counts[i][j].significant;
-        }
+    const cli_options *opts = pass->opts;
+    const method_list *m = pass->methods;
+    screen_config cfg;
+    cli_screen_config(opts, &cfg);
+    for (size_t j = 0; j < slowscan_screen_test_count(&cfg); j++) {
+        const char *test = slowscan_screen_test_name(slowscan_screen_test_of(&cfg, j));
+        for (size_t i = 0; i < m->count; i++)
+            put_fraction(pass->run->fractions, pass->named->name, test, m->label[i],
+                         &pass->counts[i * SCREEN_MAX_TESTS + j]);
+        robustness_counts all = slowscan_robustness_total(pass->counts, m->count,
+                                                          SCREEN_MAX_TESTS, j);
         if (m->count > 1)
-            put_fraction(run->fractions, name, test, "all", &all);
+            put_fraction(pass->run->fractions, pass->named->name, test, "all", &all);
     }
 }
 
 /* The cell of the grid that is the run's own choice (--detrend, --window, --bandwidth, or
- * their defaults), windows compared in samples, bandwidths in time units; -1 when it is not
- * on the grid. */
+ * their defaults; slowscan_robustness_own_cell); -1 when it is not on the grid. */
 static void default_cell(const cli_options *opts, const series_table *t, const method_list *m,
                          report_robustness_data *d)
 {
-    size_t own = 0, w_samples = 0;
-    d->default_detrend = d->default_window = d->default_bandwidth = -1;
-    for (size_t i = 0; i < m->count && d->default_detrend < 0; i++)
-        if (same_method(&m->spec[i], &opts->detrend))
-            d->default_detrend = (long)i;
-    if (d->default_detrend < 0 || cli_series_window(opts, t, &own) != EXIT_OK)
-        return;
-    for (size_t w = 0; w < opts->nwindows && d->default_window < 0; w++) {
-        cli_options cell = *opts;
-        cell.window = opts->windows[w];
-        if (cli_series_window(&cell, t, &w_samples) == EXIT_OK && w_samples == own)
-            d->default_window = (long)w;
-    }
-    if (!slowscan_detrend_uses_bandwidth(opts->detrend.method)) {
-        d->default_bandwidth = 0;
-        return;
-    }
-    /* Both sides resolved the way prepare.c does: percent of the span or time units. */
-    double span = t->time[t->n - 1] - t->time[0];
-    double want = opts->bandwidth.percent ? opts->bandwidth.amount / 100.0 * span
-                                          : opts->bandwidth.amount;
-    for (size_t b = 0; b < opts->nbandwidths && d->default_bandwidth < 0; b++) {
-        const cli_length *g = &opts->bandwidths[b];
-        double have = g->percent ? g->amount / 100.0 * span : g->amount;
-        if (fabs(have - want) <= 1e-9 * fabs(want))
-            d->default_bandwidth = (long)b;
-    }
+    robustness_grid grid;
+    grid_of(opts, m, &grid);
+    screen_config cfg;
+    cli_screen_config(opts, &cfg);
+    robustness_own_cell own = slowscan_robustness_own_cell(&grid, &cfg, t->n,
+                                                           t->time[t->n - 1] - t->time[0]);
+    d->default_detrend = own.method;
+    d->default_window = own.window;
+    d->default_bandwidth = own.bandwidth;
 }
 
 static int draw_heat_map(robustness_run *run, const cli_options *opts, const series_table *t,
@@ -353,23 +295,42 @@ static int robustness_series(const cli_options *opts, const cli_inputs *in,
                              const series_table *t, size_t k, void *c)
 {
     robustness_run *run = c;
+    if (!run->ws && !(run->ws = slowscan_robustness_workspace_alloc((size_t)opts->threads))) {
+        cli_error("out of memory");
+        return EXIT_INTERNAL;
+    }
     method_list m = grid_methods(opts);
-    cell_counts counts[CLI_MAX_DETRENDS][SCREEN_MAX_TESTS];
-    memset(counts, 0, sizeof counts);
-    cell_grid grid = {NULL, NULL, NULL, NULL, 0, 0, 0};
-    int rc = run->figures ? grid_alloc(opts, &m, &grid) : EXIT_OK;
-    for (size_t i = 0; rc == EXIT_OK && i < m.count; i++) {
-        cli_options method = *opts;
-        method.detrend = m.spec[i];
-        method.detrend_text = m.label[i];
-        method_pass pass = {run, &method, m.label[i], i, counts[i], &grid};
-        rc = method_cells(&pass, in, t, k);
+    robustness_grid grid;
+    grid_of(opts, &m, &grid);
+    screen_config cfg;
+    cli_screen_config(opts, &cfg);
+    screen_input control = {0};
+    if (in->has_control)
+        control = cli_control_input(in, t->names[k]);
+    screen_input input = {t->names[k], cli_source_name(t->source), t->time_name, t->time,
+                          t->values[k], t->n, in->has_control ? &control : NULL};
+    screen_prepared named = {.name = input.name, .source = input.source};
+    cell_grid cells = {NULL, NULL, NULL, NULL, 0, 0, 0};
+    int rc = run->figures ? grid_alloc(opts, &m, &cells) : EXIT_OK;
+    series_pass *pass = calloc(1, sizeof *pass);
+    if (rc == EXIT_OK && !pass) {
+        cli_error("out of memory");
+        rc = EXIT_INTERNAL;
+    }
+    if (rc == EXIT_OK) {
+        *pass = (series_pass){run, opts, &m, &named, {{0}}, &cells};
+        screen_detail d;
+        robustness_position at;
+        if (slowscan_robustness_series(run->ws, &grid, &cfg, &input, take_cell, pass, &d, &at) !=
+            SLOWSCAN_OK)
+            rc = refuse_cell(pass, in, &d, &at);
     }
     if (rc == EXIT_OK && run->fractions)
-        write_fractions(run, opts, &m, t->names[k], counts);
+        write_fractions(pass);
     if (rc == EXIT_OK && run->figures)
-        rc = draw_heat_map(run, opts, t, k, &m, &grid);
-    free(grid.tau);
+        rc = draw_heat_map(run, opts, t, k, &m, &cells);
+    free(pass);
+    free(cells.tau);
     return rc;
 }
 
@@ -378,7 +339,6 @@ int cmd_robustness(const cli_options *opts)
     robustness_run run = {0};
     series_command cmd = {open_outputs, NULL, NULL, &run, robustness_series, NULL, NULL};
     int rc = cli_run_series_command(opts, &cmd);
-    trend_tester_free(&run.tester);
-    trend_tester_free(&run.drift_tester);
+    slowscan_robustness_workspace_free(run.ws);
     return rc;
 }

@@ -1,17 +1,15 @@
 /* slowscan surrogates: null-model replicates of every series' residual,
- * `series,replicate,time,value` — the very series screen tests against (same streams). */
+ * `series,replicate,time,value` — the very series screen tests against (the library's
+ * slowscan_screen_replicate, on the same streams). */
 #include "cli.h"
 #include "slowscan/status.h"
 
-#include <fftw3.h>
-#include <gsl/gsl_rng.h>
-#include <math.h>
 #include <stdlib.h>
 
 typedef struct {
     FILE *out;
-    gsl_rng *rng;
     double *buffer;
+    size_t buffer_cap;
 } surrogates_run;
 
 static int open_outputs(const cli_options *opts, cli_outputs *outs, void *context)
@@ -24,12 +22,10 @@ static int open_outputs(const cli_options *opts, cli_outputs *outs, void *contex
 }
 
 static int write_replicates(const cli_options *opts, const prepared_series *ps,
-                            surrogates_run *run, surrogate_source *src)
+                            surrogates_run *run, screen_replicates *reps)
 {
-    const char *purpose = cli_null_name(opts);
     for (long j = 0; j < opts->surrogates; j++) {
-        slowscan_null_trend_stream(run->rng, opts->seed, ps->name, purpose, (size_t)j);
-        int st = slowscan_surrogate_draw(src, run->rng, run->buffer);
+        int st = slowscan_screen_replicate(reps, (size_t)j, run->buffer);
         if (st != SLOWSCAN_OK)
             return st;
         for (size_t i = 0; i < ps->n; i++) {
@@ -47,23 +43,24 @@ static int write_replicates(const cli_options *opts, const prepared_series *ps,
 static int draw_series(const cli_options *opts, const prepared_series *ps, void *context)
 {
     surrogates_run *run = context;
-    if (ps->constant || ps->finite < 8) {
-        cli_warning("%s: column '%s' %s; no surrogates written for it", ps->source, ps->name,
-                    ps->constant ? "has no variation" : "has fewer than 8 finite samples");
+    screen_config cfg;
+    cli_screen_config(opts, &cfg);
+    screen_replicates *reps = NULL;
+    screen_detail d;
+    int st = slowscan_screen_replicates_alloc(&cfg, ps, &reps, &d);
+    if (d.rule == SCREEN_RULE_NULL_TOO_LITTLE) {
+        cli_screen_notice(opts, ps, &d);
         return EXIT_OK;
     }
-    int st = SLOWSCAN_ENOMEM;
-    surrogate_plan *plan = slowscan_surrogate_plan_alloc(ps->n, FFTW_ESTIMATE);
-    surrogate_source *src = plan ? slowscan_surrogate_source_alloc(plan, (surrogate_kind)opts->null_model,
-                                                          ps->null_source, &opts->null_options, &st) : NULL;
-    fftw_free(run->buffer);
-    run->buffer = fftw_alloc_real(ps->n);
-    if (src && run->buffer)
-        st = write_replicates(opts, ps, run, src);
-    else if (st == SLOWSCAN_OK)
-        st = SLOWSCAN_ENOMEM;
-    slowscan_surrogate_source_free(src);
-    slowscan_surrogate_plan_free(plan);
+    if (st == SLOWSCAN_OK && run->buffer_cap < ps->n) {
+        free(run->buffer);
+        run->buffer = malloc(ps->n * sizeof *run->buffer);
+        run->buffer_cap = run->buffer ? ps->n : 0;
+        st = run->buffer ? SLOWSCAN_OK : SLOWSCAN_ENOMEM;
+    }
+    if (st == SLOWSCAN_OK)
+        st = write_replicates(opts, ps, run, reps);
+    slowscan_screen_replicates_free(reps);
     if (st != SLOWSCAN_OK) {
         cli_error("%s: column '%s': surrogates failed: %s", ps->source, ps->name, slowscan_strerror(st));
         return st == SLOWSCAN_ENOMEM ? EXIT_INTERNAL : EXIT_BAD_INPUT;
@@ -73,12 +70,9 @@ static int draw_series(const cli_options *opts, const prepared_series *ps, void 
 
 int cmd_surrogates(const cli_options *opts)
 {
-    surrogates_run run = {NULL, gsl_rng_alloc(gsl_rng_mt19937), NULL};
-    if (!run.rng)
-        return EXIT_INTERNAL;
+    surrogates_run run = {NULL, NULL, 0};
     series_command cmd = {open_outputs, draw_series, NULL, &run, NULL, NULL, NULL};
     int rc = cli_run_series_command(opts, &cmd);
-    gsl_rng_free(run.rng);
-    fftw_free(run.buffer);
+    free(run.buffer);
     return rc;
 }

@@ -121,6 +121,7 @@ static void context_of(const cli_options *o, const char *source, const char *ser
 /* One message to print: what the library words, and the words' own arguments. */
 typedef enum {
     SAY_REFUSAL,
+    SAY_NOTICE, /* a refusal that only skips one series: worded alike, printed as a warning */
     SAY_WARNING,
     SAY_INSUFFICIENT,
     SAY_DETRENDED,
@@ -140,7 +141,8 @@ typedef struct {
 static size_t render(const cli_message *m, char *buf, size_t size)
 {
     switch (m->kind) {
-    case SAY_REFUSAL: return slowscan_message_refusal(buf, size, m->what, m->ctx);
+    case SAY_REFUSAL:
+    case SAY_NOTICE: return slowscan_message_refusal(buf, size, m->what, m->ctx);
     case SAY_WARNING: return slowscan_message_warning(buf, size, m->what, m->ctx);
     case SAY_INSUFFICIENT: return slowscan_message_insufficient(buf, size, m->what, m->ctx);
     case SAY_DETRENDED: return slowscan_message_detrended(buf, size, m->what, m->ctx);
@@ -191,6 +193,13 @@ int cli_control_refuse(const cli_options *o, const screen_input *control,
                        const prepared_series *ps, const screen_detail *d)
 {
     return refuse(o, ps, control->source, d);
+}
+
+void cli_screen_notice(const cli_options *o, const prepared_series *ps, const screen_detail *d)
+{
+    cli_message_context c;
+    context_of(o, ps->source, ps->name, NULL, &c);
+    say(&(cli_message){SAY_NOTICE, d, &c.ctx, 0, 0, NULL, 0});
 }
 
 void cli_screen_warn(const cli_options *o, const prepared_series *ps, const screen_warning *w)

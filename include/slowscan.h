@@ -18,6 +18,8 @@
 #include "slowscan/io.h"
 #include "slowscan/screen.h"
 #include "slowscan/screen_batch.h"
+#include "slowscan/robustness.h"
+#include "slowscan/recovery.h"
 #include "slowscan/message.h"
 
 #endif

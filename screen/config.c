@@ -1,5 +1,5 @@
 /* The screening run's defaults, its test kinds, and the run-wide decision (q-values, flags). */
-#include "slowscan/screen.h"
+#include "screen_internal.h"
 #include "slowscan/significance.h"
 #include "slowscan/status.h"
 
@@ -35,6 +35,14 @@ screen_config slowscan_screen_config_default(void)
 size_t slowscan_screen_test_count(const screen_config *cfg)
 {
     return cfg->nindicators + (cfg->drift_test != 0);
+}
+
+screen_config screen_drift_only(const screen_config *cfg)
+{
+    screen_config drift_only = *cfg;
+    drift_only.nindicators = 0;
+    drift_only.drift_test = 1;
+    return drift_only;
 }
 
 int slowscan_screen_test_of(const screen_config *cfg, size_t j)

@@ -297,6 +297,11 @@ size_t slowscan_message_refusal(char *buf, size_t size, const screen_detail *d,
     case SCREEN_RULE_CONTROL_FLAT:
         refuse_control(&m, d);
         break;
+    case SCREEN_RULE_NULL_TOO_LITTLE: /* said as a warning: the run goes on without it */
+        put_column(&m);
+        put(&m, " %s; no surrogates written for it",
+            d->status == SLOWSCAN_ECONST ? "has no variation" : "has fewer than 8 finite samples");
+        break;
     default: /* the null model's and the indicators' computations, and unknown rules */
         refuse_null(&m, d);
         break;

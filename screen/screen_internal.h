@@ -34,6 +34,10 @@ struct screen_workspace {
 int screen_rolling_ready(screen_workspace *ws, const screen_config *cfg,
                          const screen_prepared *ps, rolling_spec *spec, screen_detail *d);
 
+/* cfg with recovery_trend as its only test: the test of a whole residual, which robustness
+ * and recovery run apart from the rolling indicators (same surrogates, streams and p). */
+screen_config screen_drift_only(const screen_config *cfg);
+
 /* The series' own record on the result: what the rows of every test share. */
 void screen_describe(const screen_config *cfg, const screen_prepared *ps, screen_result *out);
 

@@ -28,6 +28,7 @@ void suite_golden(void);
 void suite_screen(void);
 void suite_batch(void);
 void suite_messages(void);
+void suite_series_calls(void);
 
 static const struct {
     const char *name;
@@ -42,6 +43,7 @@ static const struct {
     {"library", suite_library},
     {"golden", suite_golden},         {"screen", suite_screen},
     {"batch", suite_batch},           {"messages", suite_messages},
+    {"series_calls", suite_series_calls},
 };
 
 int main(int argc, char **argv)

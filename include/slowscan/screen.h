@@ -196,7 +196,9 @@ typedef enum {
     SCREEN_RULE_CONTROL_SHORT,      /* the control has count samples, fewer than need */
     SCREEN_RULE_CONTROL_STEP,       /* the control's step (value) is not the series' (limit) */
     SCREEN_RULE_CONTROL_FLAT,       /* the control run has no usable variation */
-    SCREEN_RULE_NO_MEMORY
+    SCREEN_RULE_NO_MEMORY,
+    SCREEN_RULE_NULL_TOO_LITTLE     /* no replicates: the series does not vary (status ECONST)
+                                       or has count finite samples, fewer than need */
 } screen_rule;
 
 /* Which setting a rule is about. */
@@ -292,6 +294,23 @@ const double *slowscan_screen_workspace_path(const screen_workspace *ws, size_t 
  * undefined), or NULL when none was drawn. */
 SLOWSCAN_API
 const double *slowscan_screen_workspace_null(const screen_workspace *ws, size_t j);
+
+/* Replicates of a prepared series' null source (its residual, or the control run's), one at a
+ * time: replicate j (from 0) is the series screen's surrogate null is drawn from as its j-th,
+ * on the random stream slowscan_null_trend_stream(cfg->seed, ps->name, cfg->null_name, j),
+ * so a caller sees what screen tests against. Asked in increasing order they cost one draw
+ * each; another order replays from the start of j's block of NULL_TREND_BLOCK.
+ * Refused (SCREEN_RULE_NULL_TOO_LITTLE) when the series does not vary (ECONST) or has fewer
+ * than 8 finite samples (ESHORT); SCREEN_RULE_NULL_FAILED when the null model cannot be fitted (status). */
+typedef struct screen_replicates screen_replicates;
+SLOWSCAN_API
+int slowscan_screen_replicates_alloc(const screen_config *cfg, const screen_prepared *ps,
+                                     screen_replicates **out, screen_detail *detail);
+/* Replicate j into out[ps->n]. A status of the null model's draw. */
+SLOWSCAN_API
+int slowscan_screen_replicate(screen_replicates *reps, size_t j, double *out);
+SLOWSCAN_API
+void slowscan_screen_replicates_free(screen_replicates *reps);
 
 /* How a test ends. */
 typedef enum {
