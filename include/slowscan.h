@@ -15,6 +15,8 @@
 #include "slowscan/null_trend.h"
 #include "slowscan/significance.h"
 #include "slowscan/ar1_drift.h"
+#include "slowscan/calendar.h"
+#include "slowscan/time_units.h"
 #include "slowscan/io.h"
 #include "slowscan/screen.h"
 #include "slowscan/screen_batch.h"
