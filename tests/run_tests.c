@@ -28,6 +28,7 @@ void suite_golden(void);
 void suite_screen(void);
 void suite_batch(void);
 void suite_calendar(void);
+void suite_time_column(void);
 
 static const struct {
     const char *name;
@@ -42,6 +43,7 @@ static const struct {
     {"library", suite_library},
     {"golden", suite_golden},         {"screen", suite_screen},
     {"batch", suite_batch},          {"calendar", suite_calendar},
+    {"time_column", suite_time_column},
 };
 
 int main(int argc, char **argv)

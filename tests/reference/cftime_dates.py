@@ -5,6 +5,8 @@ Usage: cftime_dates.py days COUNT   -> per CF calendar (slowscan's calendar_kind
           date cftime gives for each: "kind year month day hour minute second days"
        cftime_dates.py units        -> for several "UNIT since DATE" strings and calendars,
           values and their dates: "case value year month day hour minute second"
+       cftime_dates.py csv FILE CALENDAR -> date2num (days since 1970-01-01) of the ISO dates
+          (YYYY-MM-DD[Thh:mm:ss]) in the first column of FILE, header skipped
 Dates before year 1 follow cftime's defaults (CF 1.9: no year 0 in standard and julian)."""
 import sys
 import numpy as np
@@ -48,8 +50,21 @@ def print_units():
             second = d.second + d.microsecond / 1e6
             print(case, repr(float(v)), d.year, d.month, d.day, d.hour, d.minute, repr(second))
 
+def print_csv(path, cal):
+    with open(path) as f:
+        next(f)
+        for line in f:
+            text = line.split(",")[0].strip()
+            day, _, clock = text.partition("T")
+            y, m, d = (int(p) for p in day.split("-"))
+            hh, mm, ss = (int(p) for p in (clock or "0:0:0").split(":"))
+            when = cftime.datetime(y, m, d, hh, mm, ss, calendar=cal)
+            print(repr(cftime.date2num(when, "days since 1970-01-01", calendar=cal)))
+
 if __name__ == "__main__":
-    if sys.argv[1] == "days":
+    if sys.argv[1] == "csv":
+        print_csv(sys.argv[2], sys.argv[3])
+    elif sys.argv[1] == "days":
         print_days(int(sys.argv[2]))
     else:
         print_units()
