@@ -91,6 +91,10 @@ static void data_field(csv_reader *r, char *s, size_t len)
      * not a series: it is left out with a notice. A column that starts with numbers and then
      * holds text is a broken series, refused below. */
     if (bad == 1 && !r->options->vars && r->series_state[role] != SERIES_NUMERIC) {
+        if (!r->first_text[0]) /* said when no column holds numbers at all */
+            snprintf(r->first_text, sizeof r->first_text, "row %zu, column '%s': \"%.*s%s\" is "
+                     "not a number", r->line, r->header[r->field], SHOWN_CELL, cell,
+                     len > SHOWN_CELL ? "..." : "");
         r->series_state[role] = SERIES_TEXT;
         r->role[r->field] = IO_ROLE_SKIP;
         r->row_values[role + 1] = NAN;
@@ -371,8 +375,8 @@ static int drop_text_series(csv_reader *r)
     if (ntext == 0)
         return SLOWSCAN_OK;
     if (ntext == t->nseries)
-        return csv_failf(r, SLOWSCAN_EINVAL, "no column besides the time column '%s' holds "
-                         "numbers (the first value of each is text)", t->time_name);
+        return csv_failf(r, SLOWSCAN_EINVAL, "%s (no column besides the time column '%s' "
+                         "holds numbers)", r->first_text, t->time_name);
     if (!(t->skipped = calloc(ntext, sizeof *t->skipped)))
         return csv_failf(r, SLOWSCAN_ENOMEM, "out of memory");
     for (size_t k = 0; k < t->nseries; k++) {

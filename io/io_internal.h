@@ -65,6 +65,7 @@ typedef struct {
     size_t cap;             /* rows allocated in every data array */
     time_reader time;       /* the time column's cells */
     unsigned char *series_state; /* per series: nothing read yet, numbers seen, or text */
+    char first_text[300];   /* the first text cell of a column left out, for messages */
     int direction;          /* +1: times must rise; -1: (ages) they fall, rows turned at the end */
     struct {
         int quoted, line_start, comment;
