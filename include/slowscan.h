@@ -18,6 +18,7 @@
 #include "slowscan/calendar.h"
 #include "slowscan/time_units.h"
 #include "slowscan/io.h"
+#include "slowscan/netcdf_input.h"
 #include "slowscan/screen.h"
 #include "slowscan/screen_batch.h"
 

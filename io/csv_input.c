@@ -475,7 +475,7 @@ int slowscan_csv_read_table(const char *path, const csv_read_options *options, s
         shrink_data(t);
         if (r.direction < 0)
             reverse_rows(t);
-        time_reader_settle(&r.time, t);
+        time_reader_settle(&r.time, t->time, t->n, &t->axis);
     }
     free(r.series_state);
     if (r.status != SLOWSCAN_OK)

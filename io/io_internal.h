@@ -35,8 +35,11 @@ void time_reader_init(time_reader *tr, const csv_read_options *options);
 int time_reader_cell(time_reader *tr, const char *cell, double *value, char *why, size_t size);
 /* A time read so far as text for messages (a date for dated columns). */
 void time_reader_text(const time_reader *tr, double value, char *buffer, size_t size);
-/* After the last row: the table's axis, moving monthly and yearly records onto their index. */
-void time_reader_settle(const time_reader *tr, series_table *t);
+/* Numbers in CF units as an axis: day numbers, then settled as below (a NetCDF time). */
+void time_axis_from_units(const time_units *units, double *time, size_t n, time_axis *axis);
+/* After the last row: the axis of time[n], monthly and yearly records moved onto their index
+ * (in place). Also for a NetCDF time coordinate, read as numbers in CF units. */
+void time_reader_settle(const time_reader *tr, double *time, size_t n, time_axis *axis);
 
 /* Column roles: a file column is ignored, the time, or series k >= 0. */
 enum { SERIES_UNSEEN = 0, SERIES_NUMERIC, SERIES_TEXT };

@@ -118,18 +118,18 @@ static int compare_doubles(const void *a, const void *b)
 
 /* Whether every step of the dated rows moves on by k whole periods (months when per_year is
  * 12, years when 1) of `low`..`high` days each, k >= 1. */
-static int steps_by_period(const series_table *t, calendar_kind cal, int per_year, double low,
-                           double high)
+static int steps_by_period(const double *time, size_t n, calendar_kind cal, int per_year,
+                           double low, double high)
 {
     long previous = 0;
-    for (size_t i = 0; i < t->n; i++) {
+    for (size_t i = 0; i < n; i++) {
         calendar_date d;
-        if (slowscan_calendar_from_day_number(cal, t->time[i], &d) != SLOWSCAN_OK)
+        if (slowscan_calendar_from_day_number(cal, time[i], &d) != SLOWSCAN_OK)
             return 0;
         long month = slowscan_calendar_month_index(cal, &d);
         long index = per_year == 12 ? month : year_of_month(month);
         long k = index - previous;
-        double days = i ? t->time[i] - t->time[i - 1] : 0.0;
+        double days = i ? time[i] - time[i - 1] : 0.0;
         if (i && (k < 1 || days < low * (double)k || days > high * (double)k))
             return 0;
         previous = index;
@@ -138,22 +138,22 @@ static int steps_by_period(const series_table *t, calendar_kind cal, int per_yea
 }
 
 /* The median step in days (n >= 2). */
-static double median_step(const series_table *t)
+static double median_step(const double *time, size_t n)
 {
-    double *steps = malloc((t->n - 1) * sizeof *steps);
+    double *steps = malloc((n - 1) * sizeof *steps);
     if (!steps)
         return NAN;
-    for (size_t i = 1; i < t->n; i++)
-        steps[i - 1] = t->time[i] - t->time[i - 1];
-    qsort(steps, t->n - 1, sizeof *steps, compare_doubles);
-    double m = steps[(t->n - 1) / 2];
+    for (size_t i = 1; i < n; i++)
+        steps[i - 1] = time[i] - time[i - 1];
+    qsort(steps, n - 1, sizeof *steps, compare_doubles);
+    double m = steps[(n - 1) / 2];
     free(steps);
     return m;
 }
 
 /* Monthly or yearly records go on a month or year index (see io.h); anything else stays on
  * day numbers. Year steps are tried first: twelve months of steps pass the month rule too. */
-static time_axis_unit dated_unit(const series_table *t, const time_reader *tr)
+static time_axis_unit dated_unit(const double *time, size_t n, const time_reader *tr)
 {
     calendar_kind cal = tr->options->calendar;
     /* dates written to the year or the month say so themselves */
@@ -161,23 +161,23 @@ static time_axis_unit dated_unit(const series_table *t, const time_reader *tr)
         return TIME_AXIS_YEARS;
     if (tr->kind == TIME_CELLS_DATES && tr->finest == DATE_MONTH)
         return TIME_AXIS_MONTHS;
-    if (t->n < 2)
+    if (n < 2)
         return TIME_AXIS_DAYS;
-    double median = median_step(t);
-    if (median >= 359.0 && median <= 367.0 && steps_by_period(t, cal, 1, 359.0, 367.0))
+    double median = median_step(time, n);
+    if (median >= 359.0 && median <= 367.0 && steps_by_period(time, n, cal, 1, 359.0, 367.0))
         return TIME_AXIS_YEARS;
-    if (median >= 27.0 && median <= 32.0 && steps_by_period(t, cal, 12, 27.0, 32.0))
+    if (median >= 27.0 && median <= 32.0 && steps_by_period(time, n, cal, 12, 27.0, 32.0))
         return TIME_AXIS_MONTHS;
     return TIME_AXIS_DAYS;
 }
 
 /* The finest field the day numbers need, for numbers read through CF units: whole days print
  * as dates, anything finer with its time of day. */
-static date_precision units_precision(const series_table *t)
+static date_precision units_precision(const double *time, size_t n)
 {
     date_precision p = DATE_DAY;
-    for (size_t i = 0; i < t->n && p < DATE_SECOND; i++) {
-        double seconds = (t->time[i] - floor(t->time[i])) * 86400.0;
+    for (size_t i = 0; i < n && p < DATE_SECOND; i++) {
+        double seconds = (time[i] - floor(time[i])) * 86400.0;
         double rounded = round(seconds);
         if (fabs(seconds - rounded) > 1e-3)
             p = DATE_SECOND;
@@ -191,23 +191,23 @@ static date_precision units_precision(const series_table *t)
     return p;
 }
 
-void time_reader_settle(const time_reader *tr, series_table *t)
+void time_reader_settle(const time_reader *tr, double *time, size_t n, time_axis *out)
 {
     time_axis axis = {TIME_AXIS_NUMBER, tr->options->calendar, tr->finest, tr->decimals,
                       tr->options->age};
     if (tr->kind == TIME_CELLS_NUMBERS && !tr->options->units) {
-        t->axis = axis;
+        *out = axis;
         return;
     }
     if (tr->options->units)
-        axis.precision = units_precision(t);
+        axis.precision = units_precision(time, n);
     axis.decimals = -1;
-    axis.unit = dated_unit(t, tr);
-    for (size_t i = 0; axis.unit != TIME_AXIS_DAYS && i < t->n; i++) {
+    axis.unit = dated_unit(time, n, tr);
+    for (size_t i = 0; axis.unit != TIME_AXIS_DAYS && i < n; i++) {
         calendar_date d;
-        slowscan_calendar_from_day_number(axis.calendar, t->time[i], &d);
+        slowscan_calendar_from_day_number(axis.calendar, time[i], &d);
         long month = slowscan_calendar_month_index(axis.calendar, &d);
-        t->time[i] = (double)(axis.unit == TIME_AXIS_MONTHS ? month : year_of_month(month));
+        time[i] = (double)(axis.unit == TIME_AXIS_MONTHS ? month : year_of_month(month));
     }
     if (axis.unit == TIME_AXIS_MONTHS)
         axis.precision = DATE_MONTH;
@@ -215,7 +215,7 @@ void time_reader_settle(const time_reader *tr, series_table *t)
         axis.precision = DATE_YEAR;
     else if (axis.precision < DATE_DAY)
         axis.precision = DATE_DAY;
-    t->axis = axis;
+    *out = axis;
 }
 
 const char *slowscan_time_axis_unit_name(time_axis_unit unit)
@@ -280,4 +280,18 @@ void time_reader_text(const time_reader *tr, double value, char *buffer, size_t 
     if (axis.precision < DATE_DAY)
         axis.precision = DATE_DAY;
     slowscan_time_axis_format(&axis, value, buffer, size);
+}
+
+void time_axis_from_units(const time_units *units, double *time, size_t n, time_axis *axis)
+{
+    csv_read_options o = slowscan_csv_read_options_default();
+    o.calendar = units->calendar;
+    o.units = units;
+    time_reader tr;
+    time_reader_init(&tr, &o);
+    tr.kind = TIME_CELLS_NUMBERS;
+    tr.decimals = -1;
+    for (size_t i = 0; i < n; i++)
+        time[i] = slowscan_time_units_day_number(units, time[i]);
+    time_reader_settle(&tr, time, n, axis);
 }

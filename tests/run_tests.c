@@ -29,6 +29,7 @@ void suite_screen(void);
 void suite_batch(void);
 void suite_calendar(void);
 void suite_time_column(void);
+void suite_netcdf(void);
 
 static const struct {
     const char *name;
@@ -43,7 +44,7 @@ static const struct {
     {"library", suite_library},
     {"golden", suite_golden},         {"screen", suite_screen},
     {"batch", suite_batch},          {"calendar", suite_calendar},
-    {"time_column", suite_time_column},
+    {"time_column", suite_time_column}, {"netcdf", suite_netcdf},
 };
 
 int main(int argc, char **argv)
