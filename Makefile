@@ -23,12 +23,12 @@ INCS     = -Iinclude $(shell pkg-config --cflags $(PKGS) 2>/dev/null)
 # What the core library needs (nothing of PLplot), what the report library adds, and what
 # programs linking both need (the CLI also uses FFTW's thread-safe planner).
 CORE_LIBS   = $(shell pkg-config --libs $(CORE_PKGS) 2>/dev/null || echo -lgsl -lgslcblas -lfftw3 -lnetcdf) \
-              -lfftw3_threads -lcsv -lpthread -lm
+              -lfftw3_threads -lcsv -ludunits2 -lpthread -lm
 REPORT_LIBS = $(shell pkg-config --libs plplot 2>/dev/null || echo -lplplot)
 LIBS        = $(REPORT_LIBS) $(CORE_LIBS)
 SAN     := -fsanitize=address,undefined -fno-omit-frame-pointer -fno-sanitize-recover=undefined
 
-CORE_DIRS := detrend indicators surrogates screen response io library
+CORE_DIRS := detrend indicators surrogates screen response calendar io library
 REPORT_DIRS := report data
 CORE_SRC  := $(foreach d,$(CORE_DIRS),$(wildcard $(d)/*.c))
 REPORT_SRC := $(foreach d,$(REPORT_DIRS),$(wildcard $(d)/*.c))

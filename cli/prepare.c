@@ -57,7 +57,9 @@ static int load_control(const cli_options *opts, cli_inputs *in)
                       opts->control_file);
             return EXIT_BAD_INPUT;
         }
-    csv_read_options ro = {opts->time_column, opts->vars};
+    csv_read_options ro = slowscan_csv_read_options_default();
+    ro.time_column = opts->time_column;
+    ro.vars = opts->vars;
     io_error err = {{0}};
     int st = slowscan_csv_read_table(opts->control_file, &ro, &in->control, &err);
     if (st != SLOWSCAN_OK) {
@@ -76,7 +78,9 @@ int cli_inputs_load(const cli_options *opts, cli_inputs *in)
     in->tables = calloc(opts->nfiles, sizeof *in->tables);
     if (!in->tables)
         return EXIT_INTERNAL;
-    csv_read_options ro = {opts->time_column, opts->vars};
+    csv_read_options ro = slowscan_csv_read_options_default();
+    ro.time_column = opts->time_column;
+    ro.vars = opts->vars;
     for (size_t f = 0; f < opts->nfiles; f++) {
         for (size_t g = 0; g < f; g++)
             if (strcmp(opts->files[f], opts->files[g]) == 0 || slowscan_io_same_file(opts->files[f], opts->files[g])) {

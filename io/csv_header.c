@@ -169,7 +169,8 @@ static int setup_series(csv_reader *r, size_t nseries)
     t->names = calloc(nseries, sizeof *t->names);
     t->values = calloc(nseries, sizeof *t->values);
     r->row_values = malloc((nseries + 1) * sizeof *r->row_values);
-    if (!t->names || !t->values || !r->row_values)
+    r->series_state = calloc(nseries, 1);
+    if (!t->names || !t->values || !r->row_values || !r->series_state)
         return csv_failf(r, SLOWSCAN_ENOMEM, "out of memory");
     t->nseries = nseries; /* set first so that slowscan_series_table_free sees every name */
     for (size_t c = 0; c < r->ncols; c++)

@@ -55,6 +55,16 @@ static int parse_cell(const char *s, double *v)
     return 0;
 }
 
+/* Whether v is one of the codes for a missing value (to 1e-7 relative, so that a fill value
+ * written to six digits, 9.96921e36, matches the float it stands for). */
+static int is_missing_code(const csv_read_options *o, double v)
+{
+    for (size_t c = 0; c < o->nmissing; c++)
+        if (fabs(v - o->missing[c]) <= 1e-7 * fabs(o->missing[c]))
+            return 1;
+    return 0;
+}
+
 /* A selected cell of a data record. A bad cell is remembered, not reported at once, so that
  * a ragged record is reported as ragged (its cells are probably shifted). */
 static void data_field(csv_reader *r, char *s, size_t len)
@@ -63,15 +73,46 @@ static void data_field(csv_reader *r, char *s, size_t len)
         return;
     char *cell = csv_trim(s, &len);
     double v;
+    long role = r->role[r->field];
+    if (role == IO_ROLE_TIME) {
+        char why[200];
+        if (time_reader_cell(&r->time, cell, &v, why, sizeof why) != SLOWSCAN_OK &&
+            !r->cell_status) {
+            r->cell_status = SLOWSCAN_EINVAL;
+            snprintf(r->cell_msg, sizeof r->cell_msg, "row %zu, column '%s': \"%.*s%s\" %s",
+                     r->line, r->header[r->field], SHOWN_CELL, cell,
+                     len > SHOWN_CELL ? "..." : "", why);
+        }
+        r->row_values[0] = v;
+        return;
+    }
     int bad = parse_cell(cell, &v);
+    /* Without --vars, a column whose first value is text (a station id, a flag column) is
+     * not a series: it is left out with a notice. A column that starts with numbers and then
+     * holds text is a broken series, refused below. */
+    if (bad == 1 && !r->options->vars && r->series_state[role] != SERIES_NUMERIC) {
+        if (!r->first_text[0]) /* said when no column holds numbers at all */
+            snprintf(r->first_text, sizeof r->first_text, "row %zu, column '%s': \"%.*s%s\" is "
+                     "not a number", r->line, r->header[r->field], SHOWN_CELL, cell,
+                     len > SHOWN_CELL ? "..." : "");
+        r->series_state[role] = SERIES_TEXT;
+        r->role[r->field] = IO_ROLE_SKIP;
+        r->row_values[role + 1] = NAN;
+        return;
+    }
+    if (!bad && !isnan(v))
+        r->series_state[role] = SERIES_NUMERIC;
+    if (!bad && is_missing_code(r->options, v)) {
+        v = NAN;
+        r->t->coded_missing++;
+    }
     if (bad && !r->cell_status) {
         r->cell_status = SLOWSCAN_EINVAL;
         snprintf(r->cell_msg, sizeof r->cell_msg, "row %zu, column '%s': \"%.*s%s\" is not a %s",
                  r->line, r->header[r->field], SHOWN_CELL, cell, len > SHOWN_CELL ? "..." : "",
                  bad == 1 ? "number" : "finite number");
     }
-    long role = r->role[r->field];
-    r->row_values[role == IO_ROLE_TIME ? 0 : role + 1] = v;
+    r->row_values[role + 1] = v;
 }
 
 static void on_field(void *data, size_t len, void *context)
@@ -137,9 +178,20 @@ static void store_row(csv_reader *r)
                   t->time_name);
         return;
     }
-    if (t->n > 0 && !(time > t->time[t->n - 1])) {
-        csv_failf(r, SLOWSCAN_EINVAL, "row %zu: time %.15g is not greater than the previous time "
-                  "%.15g (rows must be in increasing time order)", r->line, time, t->time[t->n - 1]);
+    /* ages may run either way; the first two rows say which, the rest must follow */
+    if (t->n == 1 && r->options->age && time < t->time[0])
+        r->direction = -1;
+    if (t->n > 0 && !((time - t->time[t->n - 1]) * r->direction > 0)) {
+        char now[64], before[64];
+        time_reader_text(&r->time, time, now, sizeof now);
+        time_reader_text(&r->time, t->time[t->n - 1], before, sizeof before);
+        if (r->options->age)
+            csv_failf(r, SLOWSCAN_EINVAL, "row %zu: age %s does not continue the order of the "
+                      "rows above (previous age %s; ages must all rise or all fall)", r->line,
+                      now, before);
+        else
+            csv_failf(r, SLOWSCAN_EINVAL, "row %zu: time %s is not greater than the previous "
+                      "time %s (rows must be in increasing time order)", r->line, now, before);
         return;
     }
     if (grow_data(r) != SLOWSCAN_OK)
@@ -177,6 +229,7 @@ static void on_row(int c, void *context)
 typedef struct {
     size_t pos, comma, semicolon, tab;
     int quoted, blank;
+    int line_start, comment; /* a '#' in the first column makes the line a comment */
 } detector;
 
 /* Scans the first non-blank line (up to a line end outside double quotes); returns 1 with
@@ -188,12 +241,20 @@ static int detect_delimiter(detector *d, const char *buf, size_t len, int at_end
     int complete = 0;
     for (; d->pos < len && !complete; d->pos++) {
         char c = buf[d->pos];
+        int at_start = d->line_start;
+        d->line_start = 0;
+        if (d->comment || (at_start && c == '#' && !d->quoted)) {
+            d->comment = c != '\n' && c != '\r';
+            d->line_start = !d->comment;
+            continue;
+        }
         if (c == '"') {
             d->quoted = !d->quoted;
             d->blank = 0;
         } else if (d->quoted) {
             continue;
         } else if (c == '\n' || c == '\r') {
+            d->line_start = 1;
             complete = !d->blank; /* blank lines before the header are skipped, as libcsv does */
             if (!complete)
                 d->comma = d->semicolon = d->tab = 0;
@@ -218,7 +279,7 @@ static int read_head(csv_reader *r, FILE *fp, char **buf, size_t *len, size_t *s
                      unsigned char *delim)
 {
     size_t cap = 0;
-    detector d = {0, 0, 0, 0, 0, 1};
+    detector d = {0, 0, 0, 0, 0, 1, 1, 0};
     for (*len = 0;;) {
         if (cap - *len < CHUNK) {
             char *b = realloc(*buf, cap + 2 * CHUNK);
@@ -241,8 +302,32 @@ static int read_head(csv_reader *r, FILE *fp, char **buf, size_t *len, size_t *s
     }
 }
 
-static void feed(csv_reader *r, struct csv_parser *p, const char *s, size_t len)
+/* Blanks out comment lines — a '#' in the first column, outside a quoted field — keeping
+ * their line ends, so that libcsv sees an empty line (which it skips) and file rows still
+ * count. In place: the text only shrinks. The state carries across chunks. */
+static size_t drop_comments(csv_reader *r, char *s, size_t len)
 {
+    size_t out = 0;
+    for (size_t i = 0; i < len; i++) {
+        char c = s[i];
+        int at_start = r->filter.line_start;
+        r->filter.line_start = 0;
+        if (r->filter.comment || (at_start && c == '#' && !r->filter.quoted)) {
+            r->filter.comment = c != '\n' && c != '\r';
+            if (r->filter.comment)
+                continue;
+        } else if (c == '"') {
+            r->filter.quoted = !r->filter.quoted;
+        }
+        r->filter.line_start = !r->filter.quoted && (c == '\n' || c == '\r');
+        s[out++] = c;
+    }
+    return out;
+}
+
+static void feed(csv_reader *r, struct csv_parser *p, char *s, size_t len)
+{
+    len = drop_comments(r, s, len);
     if (len == 0 || csv_parse(p, s, len, on_field, on_row, r) == len)
         return;
     int e = csv_error(p);
@@ -280,6 +365,48 @@ static int parse_stream(csv_reader *r, FILE *fp)
     return r->status;
 }
 
+/* Takes the text columns out of the series (their names move to table->skipped). */
+static int drop_text_series(csv_reader *r)
+{
+    series_table *t = r->t;
+    size_t kept = 0, ntext = 0;
+    for (size_t k = 0; k < t->nseries; k++)
+        ntext += r->series_state[k] == SERIES_TEXT;
+    if (ntext == 0)
+        return SLOWSCAN_OK;
+    if (ntext == t->nseries)
+        return csv_failf(r, SLOWSCAN_EINVAL, "%s (no column besides the time column '%s' "
+                         "holds numbers)", r->first_text, t->time_name);
+    if (!(t->skipped = calloc(ntext, sizeof *t->skipped)))
+        return csv_failf(r, SLOWSCAN_ENOMEM, "out of memory");
+    for (size_t k = 0; k < t->nseries; k++) {
+        if (r->series_state[k] == SERIES_TEXT) {
+            t->skipped[t->nskipped++] = t->names[k];
+            free(t->values[k]);
+            continue;
+        }
+        t->names[kept] = t->names[k];
+        t->values[kept++] = t->values[k];
+    }
+    t->nseries = kept;
+    return SLOWSCAN_OK;
+}
+
+/* Rows stored youngest age first run backward in time: turned round. */
+static void reverse_rows(series_table *t)
+{
+    for (size_t i = 0, j = t->n - 1; i < j; i++, j--) {
+        double tt = t->time[i];
+        t->time[i] = t->time[j], t->time[j] = tt;
+        size_t rr = t->rows[i];
+        t->rows[i] = t->rows[j], t->rows[j] = rr;
+        for (size_t k = 0; k < t->nseries; k++) {
+            double v = t->values[k][i];
+            t->values[k][i] = t->values[k][j], t->values[k][j] = v;
+        }
+    }
+}
+
 /* Gives back the unused part of the doubling arrays (a failed shrink keeps the larger one). */
 static void shrink_data(series_table *t)
 {
@@ -305,10 +432,18 @@ static void reader_free(csv_reader *r)
     free(r->row_values);
 }
 
+csv_read_options slowscan_csv_read_options_default(void)
+{
+    csv_read_options o = {.time_column = NULL, .vars = NULL, .calendar = CALENDAR_STANDARD,
+                          .time_format = NULL, .units = NULL, .age = 0, .missing = NULL,
+                          .nmissing = 0};
+    return o;
+}
+
 int slowscan_csv_read_table(const char *path, const csv_read_options *options, series_table *t,
                    io_error *err)
 {
-    static const csv_read_options defaults = {NULL, NULL};
+    const csv_read_options defaults = slowscan_csv_read_options_default();
     if (err)
         err->message[0] = '\0';
     if (!t || !path)
@@ -316,13 +451,15 @@ int slowscan_csv_read_table(const char *path, const csv_read_options *options, s
     memset(t, 0, sizeof *t);
     int is_stdin = strcmp(path, "-") == 0;
     csv_reader r = {.name = io_display_name(path), .err = err, .options = options ? options : &defaults,
-                    .t = t, .in_header = 1, .line = 1};
+                    .t = t, .in_header = 1, .line = 1, .filter = {.line_start = 1},
+                    .direction = 1};
     FILE *fp = is_stdin ? stdin : fopen(path, "rb");
     if (!fp) {
         char why[128];
         return io_fail(err, SLOWSCAN_EIO, "%s: cannot open the file: %s", path,
                        io_strerror(errno, why, sizeof why));
     }
+    time_reader_init(&r.time, r.options);
     if (!(t->source = io_strdup(path)))
         csv_failf(&r, SLOWSCAN_ENOMEM, "out of memory");
     else
@@ -334,9 +471,14 @@ int slowscan_csv_read_table(const char *path, const csv_read_options *options, s
     else if (r.status == SLOWSCAN_OK && t->n == 0)
         csv_failf(&r, SLOWSCAN_EINVAL, "the file has a header but no data rows");
     reader_free(&r);
+    if (r.status == SLOWSCAN_OK && drop_text_series(&r) == SLOWSCAN_OK) {
+        shrink_data(t);
+        if (r.direction < 0)
+            reverse_rows(t);
+        time_reader_settle(&r.time, t->time, t->n, &t->axis);
+    }
+    free(r.series_state);
     if (r.status != SLOWSCAN_OK)
         slowscan_series_table_free(t);
-    else
-        shrink_data(t);
     return r.status;
 }

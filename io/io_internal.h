@@ -21,7 +21,28 @@ const char *io_strerror(int errnum, char *buf, size_t size);
  * "time 3.5" (after resampling). */
 void io_sample_where(const series_table *t, size_t i, char *buf, size_t size);
 
+/* The time column while it is read: numbers, or dates (ISO 8601 or a format), or numbers in
+ * CF units, all stored as numbers of the axis-to-be (day numbers for dates). */
+typedef struct {
+    const csv_read_options *options;
+    int kind;                         /* unknown until the first cell, then numbers or dates */
+    date_precision finest, coarsest;  /* of the dates read */
+    int decimals;                     /* most decimals of the numbers read (-1: unknown) */
+} time_reader;
+void time_reader_init(time_reader *tr, const csv_read_options *options);
+/* One time cell into *value (NaN when missing); SLOWSCAN_EINVAL with the end of a sentence
+ * in why ("is not a date of the noleap calendar ..."). */
+int time_reader_cell(time_reader *tr, const char *cell, double *value, char *why, size_t size);
+/* A time read so far as text for messages (a date for dated columns). */
+void time_reader_text(const time_reader *tr, double value, char *buffer, size_t size);
+/* Numbers in CF units as an axis: day numbers, then settled as below (a NetCDF time). */
+void time_axis_from_units(const time_units *units, double *time, size_t n, time_axis *axis);
+/* After the last row: the axis of time[n], monthly and yearly records moved onto their index
+ * (in place). Also for a NetCDF time coordinate, read as numbers in CF units. */
+void time_reader_settle(const time_reader *tr, double *time, size_t n, time_axis *axis);
+
 /* Column roles: a file column is ignored, the time, or series k >= 0. */
+enum { SERIES_UNSEEN = 0, SERIES_NUMERIC, SERIES_TEXT };
 enum { IO_ROLE_SKIP = -1, IO_ROLE_TIME = -2 };
 
 typedef struct {
@@ -45,6 +66,13 @@ typedef struct {
     int cell_status;        /* first bad cell of the current record ... */
     char cell_msg[900];     /* ... reported when the record is not ragged (raggedness first) */
     size_t cap;             /* rows allocated in every data array */
+    time_reader time;       /* the time column's cells */
+    unsigned char *series_state; /* per series: nothing read yet, numbers seen, or text */
+    char first_text[300];   /* the first text cell of a column left out, for messages */
+    int direction;          /* +1: times must rise; -1: (ages) they fall, rows turned at the end */
+    struct {
+        int quoted, line_start, comment;
+    } filter;               /* comment lines, across chunks */
 } csv_reader;
 
 /* Sets the reader's error once ("NAME: " is prepended); returns the reader's status. */

@@ -17,6 +17,9 @@ void slowscan_series_table_free(series_table *t)
             free(t->values[k]);
     }
     free(t->names);
+    for (size_t k = 0; k < t->nskipped; k++)
+        free(t->skipped[k]);
+    free(t->skipped);
     free(t->values);
     free(t->time);
     free(t->rows);

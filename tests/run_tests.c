@@ -29,6 +29,9 @@ void suite_screen(void);
 void suite_batch(void);
 void suite_messages(void);
 void suite_series_calls(void);
+void suite_calendar(void);
+void suite_time_column(void);
+void suite_netcdf(void);
 
 static const struct {
     const char *name;
@@ -44,6 +47,8 @@ static const struct {
     {"golden", suite_golden},         {"screen", suite_screen},
     {"batch", suite_batch},           {"messages", suite_messages},
     {"series_calls", suite_series_calls},
+    {"calendar", suite_calendar},
+    {"time_column", suite_time_column}, {"netcdf", suite_netcdf},
 };
 
 int main(int argc, char **argv)

@@ -70,7 +70,7 @@ void suite_batch(void)
 {
     series_table t;
     io_error err;
-    csv_read_options ro = {NULL, NULL};
+    csv_read_options ro = slowscan_csv_read_options_default();
     if (slowscan_csv_read_table("data/stations.csv", &ro, &t, &err) != SLOWSCAN_OK) {
         CHECK(0, "data/stations.csv: %s", err.message);
         return;

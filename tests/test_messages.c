@@ -356,7 +356,8 @@ static void run_case(const message_case *c)
     const char *names[SCREEN_OPTION_COUNT] = {0}, *values[SCREEN_OPTION_COUNT] = {0};
     screen_config cfg;
     configure(c, &cfg, names, values);
-    csv_read_options ro = {NULL, c->vars};
+    csv_read_options ro = slowscan_csv_read_options_default();
+    ro.vars = c->vars;
     series_table t, ctl;
     io_error io;
     int have_ctl = ctl_path && slowscan_csv_read_table(ctl_path, &ro, &ctl, &io) == SLOWSCAN_OK;
@@ -394,7 +395,8 @@ static void detrended(int input, const char *vars, const char *method)
     int rc = check_run(cmd, NULL, &err);
     screen_config cfg = slowscan_screen_config_default();
     slowscan_detrend_parse_method(method, &cfg.detrend);
-    csv_read_options ro = {NULL, vars};
+    csv_read_options ro = slowscan_csv_read_options_default();
+    ro.vars = vars;
     series_table t;
     io_error io;
     if (slowscan_csv_read_table(in_path, &ro, &t, &io) != SLOWSCAN_OK) {

@@ -70,7 +70,7 @@ static void stations(void)
 {
     series_table t;
     io_error err;
-    csv_read_options ro = {NULL, NULL};
+    csv_read_options ro = slowscan_csv_read_options_default();
     char *summary = check_read_file("tests/golden/screen_stations.out");
     CHECK(summary != NULL, "tests/golden/screen_stations.out");
     if (!summary || slowscan_csv_read_table("data/stations.csv", &ro, &t, &err) != SLOWSCAN_OK) {
@@ -108,7 +108,7 @@ static void control(void)
 {
     series_table t, c;
     io_error err;
-    csv_read_options ro = {NULL, NULL};
+    csv_read_options ro = slowscan_csv_read_options_default();
     char *summary = check_read_file("tests/golden/screen_control.out");
     int ok = summary && slowscan_csv_read_table("tests/golden/batch.csv", &ro, &t, &err) == SLOWSCAN_OK;
     if (ok && slowscan_csv_read_table("tests/golden/control.csv", &ro, &c, &err) != SLOWSCAN_OK) {

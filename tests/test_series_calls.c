@@ -31,7 +31,7 @@ static int same(double a, double b)
 static int read_stations(series_table *t)
 {
     io_error err;
-    csv_read_options ro = {NULL, NULL};
+    csv_read_options ro = slowscan_csv_read_options_default();
     int st = slowscan_csv_read_table("data/stations.csv", &ro, t, &err);
     CHECK(st == SLOWSCAN_OK, "data/stations.csv: %s", err.message);
     return st == SLOWSCAN_OK;

@@ -9,8 +9,50 @@
 
 #include "slowscan/export.h"
 
+#include "slowscan/calendar.h"
+#include "slowscan/time_units.h"
+
 #include <stddef.h>
 #include <stdio.h>
+
+/* What the numbers of a table's time column are. A column of numbers is taken as it is
+ * (TIME_AXIS_NUMBER). A column of dates, or of numbers in CF units ("days since ..."), becomes
+ * day numbers of its calendar (calendar.h); a record with one row per month (dates written
+ * to the month, or steps of 28-31 days each in a month of its own) is put on a month index
+ * instead, and one with one row per year on the year, so that months of 28 to 31 days make a
+ * regular grid. Outputs turn the numbers back into dates (slowscan_time_axis_format). */
+typedef enum {
+    TIME_AXIS_NUMBER = 0, /* the column's own numbers */
+    TIME_AXIS_DAYS,       /* day numbers: days since 1970-01-01 of the calendar */
+    TIME_AXIS_MONTHS,     /* months since January of year 0 (slowscan_calendar_month_index) */
+    TIME_AXIS_YEARS       /* the astronomical year */
+} time_axis_unit;
+
+typedef struct {
+    time_axis_unit unit;
+    calendar_kind calendar;   /* dated axes */
+    date_precision precision; /* the finest date field written: output stamps use it */
+    int decimals;             /* TIME_AXIS_NUMBER: most decimals written in the column
+                                 (-1: some value had an exponent or more than 15) */
+    int backward;             /* the column counts back in time (ages before present): the
+                                 axis holds minus the written numbers, so it runs forward */
+} time_axis;
+
+/* The unit of an axis in words ("days", "months", "years"); NULL for TIME_AXIS_NUMBER. */
+SLOWSCAN_API
+const char *slowscan_time_axis_unit_name(time_axis_unit unit);
+
+/* A time of the axis as text: the date at the axis' precision (a month axis prints YYYY-MM,
+ * a year axis YYYY), or the number with %.15g (an age axis prints the age as written).
+ * Returns the length needed (as snprintf). */
+SLOWSCAN_API
+int slowscan_time_axis_format(const time_axis *axis, double value, char *buffer, size_t size);
+
+/* Reads `text` as a time of the axis (for --from/--until): a date on a dated axis, a number on
+ * a number axis. SLOWSCAN_EINVAL for text that is neither, or a date the calendar lacks. */
+SLOWSCAN_API
+int slowscan_time_axis_value(const time_axis *axis, const char *text, const char *format,
+                             double *value);
 
 typedef struct {
     char message[1024];
@@ -27,17 +69,34 @@ typedef struct {
     char **names;     /* nseries */
     double **values;  /* nseries arrays of n */
     size_t *rows;     /* n: the file row each sample came from (for messages); NULL after resampling */
+    time_axis axis;   /* what the times are (numbers, day numbers, month or year indices) */
+    char **skipped;   /* nskipped columns left out because their first value is text */
+    size_t nskipped;
+    size_t coded_missing; /* cells read as missing because they held a csv_read_options code */
 } series_table;
 
 SLOWSCAN_API
 void slowscan_series_table_free(series_table *table);
 
 typedef struct {
-    const char *time_column; /* NULL: the first column */
-    const char *vars;        /* comma-separated list, NULL: every column but time */
+    const char *time_column;  /* NULL: the first column */
+    const char *vars;         /* comma-separated list, NULL: every column but time */
+    calendar_kind calendar;   /* of dates in the time column: standard */
+    const char *time_format;  /* NULL: numbers or ISO 8601 dates; else slowscan_date_parse's */
+    const time_units *units;  /* NULL: numbers are numbers; else "UNIT since DATE" */
+    int age;                  /* the time column holds ages (before present), either order */
+    const double *missing;    /* nmissing values that stand for a missing value (-999, ...) */
+    size_t nmissing;
 } csv_read_options;
 
-/* Reads a CSV file with a header row ("-" reads standard input). The delimiter (comma,
+/* The defaults: the first column is time, every other column a series, numbers or ISO 8601
+ * dates on the standard calendar. */
+SLOWSCAN_API
+csv_read_options slowscan_csv_read_options_default(void);
+
+/* Reads a CSV file with a header row ("-" reads standard input). The time column holds numbers,
+ * or dates (ISO 8601, or options->time_format) on options->calendar; the table's axis says
+ * which (time_axis above). The delimiter (comma,
  * semicolon or tab) is detected from the header; quoted fields, CRLF line ends and a UTF-8
  * byte-order mark are accepted. Empty cells, NA, NaN (any case) are missing. Errors, each
  * naming file, row and column: unreadable file, empty file, header only, ragged row, a cell
@@ -57,6 +116,29 @@ int slowscan_table_select_span(series_table *table, double from, double until, i
  * suggests --resample. */
 SLOWSCAN_API
 int slowscan_table_check_grid(const series_table *table, double *dt, io_error *err);
+
+/* Puts the rows on a regular grid: the base step is the most common step; a step that is a
+ * whole number of base steps is a gap, filled with missing rows (NaN; *gaps says how many);
+ * times within the precision they were written with (axis.decimals) of the grid are moved
+ * onto it. Anything else is an irregular grid: SLOWSCAN_EINVAL naming the first row off it. A
+ * grid regular to 1e-6 already is left as it is. */
+SLOWSCAN_API
+int slowscan_table_regularize(series_table *table, size_t *gaps, io_error *err);
+
+/* A value of one series that looks like an unflagged missing-value code. */
+typedef struct {
+    double value;
+    size_t count;       /* samples holding it */
+    size_t first_index; /* the first of them */
+    size_t first_row;   /* its file row (0 when not known) */
+} suspect_code;
+
+/* 1 with *found when series k holds a value that every time it occurs jumps out of the
+ * series and straight back — by more than 12 robust spreads of the first differences — and
+ * either repeats exactly or is one of the usual codes (-999, -9999, -99999, 9.96921e36, 1e20);
+ * else 0. Silent for series whose first differences have no spread, or fewer than 8. */
+SLOWSCAN_API
+int slowscan_table_suspect_code(const series_table *table, size_t k, suspect_code *found);
 
 /* Interpolates every series linearly onto t_first, t_first+step, ... <= t_last. A grid point
  * whose bracketing samples include a missing one is missing (unless it hits a present sample

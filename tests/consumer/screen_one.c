@@ -45,7 +45,7 @@ int main(int argc, char **argv)
     }
     series_table table;
     io_error err;
-    csv_read_options options = {NULL, NULL};
+    csv_read_options options = slowscan_csv_read_options_default();
     double dt, tau;
     if (slowscan_csv_read_table(argv[1], &options, &table, &err) != SLOWSCAN_OK) {
         fprintf(stderr, "screen_one: %s\n", err.message);

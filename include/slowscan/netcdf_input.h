@@ -1,0 +1,88 @@
+/* slowscan — gridded input from NetCDF files that follow the CF conventions (module prefix:
+ * netcdf_).
+ *
+ * A variable on (time, lat, lon) — or any dimensions of which one is time — is many series:
+ * one per combination of its other indices (a grid cell), named VAR[lat=-28.5,lon=120] with
+ * the values of the coordinate variables (or VAR[x=3,y=5] with indices where there are none).
+ *
+ * - The time axis is the dimension whose coordinate variable says it is time: axis = "T",
+ *   standard_name = "time", or units "UNIT since DATE"; its calendar attribute (default
+ *   standard) and units turn it into the axis of io.h (day numbers, or a month or year index
+ *   for monthly and yearly records).
+ * - Values are unpacked (scale_factor, add_offset) and every value the file marks as missing
+ *   becomes NaN: _FillValue (or the netCDF default fill of the type when it has none),
+ *   missing_value, and anything outside valid_min / valid_max / valid_range.
+ * - Cells are read in blocks of many cells x all times sized by a memory budget, never the
+ *   whole variable. A variable stored in chunks of few time steps (one map per chunk, as
+ *   models write them) would have each chunk read once per block; it is instead read once,
+ *   time slab by time slab, into a temporary file laid out by blocks (removed on close), from
+ *   which the blocks are then read.
+ *
+ * Errors come back as a status and a message naming the file, the variable, the attribute or
+ * the --select item. Nothing here prints. */
+#ifndef SLOWSCAN_NETCDF_INPUT_H
+#define SLOWSCAN_NETCDF_INPUT_H
+
+#include "slowscan/export.h"
+
+#include "slowscan/io.h"
+
+#include <stddef.h>
+
+typedef struct {
+    const char *vars;     /* comma-separated variable names; NULL: every variable on the time
+                             dimension that is not a coordinate or bounds variable */
+    const char *select;   /* "lat=-30:30,lon=0:90,lev=850": ranges of coordinate values
+                             (inclusive, either order) or one value; NULL: everything */
+    size_t memory_budget; /* bytes for one block of cells x all times; 0: 256 MiB */
+    const char *temp_dir; /* where the transposed copy goes; NULL: $TMPDIR or /tmp */
+} netcdf_read_options;
+
+SLOWSCAN_API
+netcdf_read_options slowscan_netcdf_read_options_default(void);
+
+enum { NETCDF_MAX_DIMS = 8 };
+
+/* One grid cell of a variable, valid until the next call of slowscan_netcdf_next. */
+typedef struct {
+    const char *name;       /* VAR[lat=-28.5,lon=120] */
+    const char *variable;   /* VAR */
+    size_t variable_index;  /* which of the selected variables */
+    size_t cell;            /* the cell's index within its variable (row-major, selected) */
+    size_t ncoords;         /* the variable's other dimensions */
+    const char *coord_name[NETCDF_MAX_DIMS];
+    double coord_value[NETCDF_MAX_DIMS]; /* the coordinate variable's value, or the index */
+    size_t coord_index[NETCDF_MAX_DIMS]; /* index in the file */
+    const double *values;   /* n, unpacked, NaN where missing */
+    size_t n;
+    int all_missing;        /* every value is missing (land in an ocean field) */
+} netcdf_series;
+
+typedef struct netcdf_reader netcdf_reader;
+
+/* Opens a NetCDF file (classic, 64-bit offset, CDF-5 or NetCDF-4) and finds its time axis,
+ * variables and selection. SLOWSCAN_EIO (unreadable, not NetCDF), SLOWSCAN_EINVAL (no time
+ * axis, unknown variable, bad --select, bad units or calendar), SLOWSCAN_ENOMEM. */
+SLOWSCAN_API
+int slowscan_netcdf_open(const char *path, const netcdf_read_options *options,
+                         netcdf_reader **reader, io_error *err);
+SLOWSCAN_API
+void slowscan_netcdf_close(netcdf_reader *reader);
+
+/* The time axis: n times (borrowed), the axis, and the name of the time variable. */
+SLOWSCAN_API
+const double *slowscan_netcdf_times(const netcdf_reader *reader, size_t *n, time_axis *axis,
+                                    const char **name);
+/* Series (cells) the reader will give over all selected variables. */
+SLOWSCAN_API
+size_t slowscan_netcdf_series_count(const netcdf_reader *reader);
+
+/* What slowscan_netcdf_next returns after the last cell. */
+enum { NETCDF_END = -1 };
+
+/* The next cell in order (variables in the order asked, cells row-major): SLOWSCAN_OK,
+ * NETCDF_END when there are no more (series untouched), or a status with err filled. */
+SLOWSCAN_API
+int slowscan_netcdf_next(netcdf_reader *reader, netcdf_series *series, io_error *err);
+
+#endif

@@ -1,0 +1,77 @@
+/* Private state of the NetCDF reader (io/netcdf_open.c, io/netcdf_blocks.c). */
+#ifndef SLOWSCAN_NETCDF_INTERNAL_H
+#define SLOWSCAN_NETCDF_INTERNAL_H
+
+#include "io_internal.h"
+#include "slowscan/netcdf_input.h"
+
+#include <stdio.h>
+
+/* One non-time dimension of a variable, with the selected index range. */
+typedef struct {
+    int dimid;
+    char name[260];
+    size_t length;        /* in the file */
+    size_t start, count;  /* selected */
+    double *coord;        /* length values of its coordinate variable, NULL: none (indices) */
+} netcdf_dim;
+
+/* What turns a stored value into a number or a missing value. */
+typedef struct {
+    double scale, offset;    /* unpacking: value = raw * scale + offset */
+    double fill;             /* raw _FillValue, or the type's default fill */
+    int has_fill;
+    double missing[4];       /* raw missing_value entries */
+    size_t nmissing;
+    double valid_min, valid_max; /* raw; -inf / +inf when not given */
+} netcdf_packing;
+
+typedef struct {
+    int varid;
+    char name[260];
+    int ndims;
+    int time_position;       /* which of its dimensions is time */
+    netcdf_dim dims[NETCDF_MAX_DIMS]; /* the other dimensions, in file order */
+    int ncoords;
+    size_t ncells;           /* selected cells */
+    netcdf_packing packing;
+    int time_chunked;        /* chunks hold fewer than all time steps: read by time slabs */
+} netcdf_variable;
+
+struct netcdf_reader {
+    int ncid;
+    char *path;
+    netcdf_read_options options;
+    /* time */
+    int time_dimid;
+    char time_name[260];
+    size_t nt;
+    double *time;
+    time_axis axis;
+    /* variables */
+    netcdf_variable *vars;
+    size_t nvars, total_cells;
+    /* iteration */
+    size_t var_at, cell_at;        /* the next cell to hand out */
+    size_t block_first, block_cells; /* cells of var_at now in `block` */
+    size_t block_capacity;         /* cells a block may hold (the memory budget) */
+    double *block;                 /* block_cells x nt, cell-major */
+    double *raw;                   /* the hyperslab as read, in file order */
+    FILE *spill;                   /* the transposed copy of a time-chunked variable */
+    char *spill_path;
+    size_t spilled_var;            /* which variable the spill holds (+1; 0: none) */
+    char name[512];                /* the current series' name */
+};
+
+/* Formats into err the message "PATH: what" and returns status (io_fail with the file). */
+int netcdf_fail(const netcdf_reader *r, io_error *err, int status, const char *fmt, ...)
+    __attribute__((format(printf, 4, 5)));
+/* A netCDF library error as a message naming the call's purpose. */
+int netcdf_library_fail(const netcdf_reader *r, io_error *err, int nc_status, const char *doing);
+
+/* --select applied to every variable's dimensions; the cell counts (netcdf_select.c). */
+int netcdf_apply_selection(netcdf_reader *r, io_error *err);
+/* Closes and removes the transposed copy, if any (netcdf_blocks.c). */
+void netcdf_drop_spill(netcdf_reader *r);
+
+#endif
