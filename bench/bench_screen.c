@@ -117,7 +117,7 @@ static job_result run_slowscan(const double *x)
     for (size_t i = 0; i < N; i++)
         time_axis[i] = (double)i;
     screen_config cfg = standard_config();
-    screen_input in = {"y", "standard series", "time", time_axis, x, N, NULL};
+    screen_input in = {.name = "y", .source = "standard series", .time_name = "time", .time = time_axis, .values = x, .n = N, .control = NULL};
     screen_result res;
     screen_detail detail;
     double t0 = now();

@@ -170,6 +170,8 @@ void cli_outputs_abort(cli_outputs *outs);
 
 /* Writes a number the way every slowscan CSV does: %.12g, NA for non-finite. */
 void cli_put_number(FILE *fp, double v);
+/* A time of the series' axis: a date on a dated axis, else the number (an age as written). */
+void cli_put_time(FILE *fp, const time_axis *axis, double v);
 /* JSON (RFC 8259): a string with its escapes; a number, or null when not finite. */
 void cli_json_string(FILE *fp, const char *s);
 void cli_json_number(FILE *fp, double v);

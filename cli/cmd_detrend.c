@@ -21,7 +21,9 @@ static int write_series(const cli_options *opts, const prepared_series *ps, void
     cli_screen_detrended(ps);
     for (size_t i = 0; i < ps->n; i++) {
         cli_put_field(run->out, ps->name);
-        const double cells[] = {ps->time[i], ps->value[i], ps->trend[i], ps->residual[i]};
+        fputc(',', run->out);
+        cli_put_time(run->out, &ps->axis, ps->time[i]);
+        const double cells[] = {ps->value[i], ps->trend[i], ps->residual[i]};
         for (size_t c = 0; c < sizeof cells / sizeof cells[0]; c++) {
             fputc(',', run->out);
             cli_put_number(run->out, cells[c]);

@@ -71,7 +71,7 @@ static void write_projection(recovery_run *run, const prepared_series *ps,
     fprintf(run->projection, ",%s,", status_name(pr));
     const double times[] = {r->crossing_time, r->crossing_lo, r->crossing_hi};
     for (int k = 0; k < 3; k++) {
-        cli_put_number(run->projection, times[k]);
+        cli_put_time(run->projection, &ps->axis, times[k]);
         fputc(',', run->projection);
     }
     fprintf(run->projection, "%s,", pr->draws == 0 ? "NA" : isinf(pr->index_hi) ? "open_above" : "closed");
@@ -211,7 +211,10 @@ static int recovery_series(const cli_options *opts, const prepared_series *ps, v
         cli_put_field(run->out, ps->name);
         for (int c = -1; c < 3; c++) {
             fputc(',', run->out);
-            cli_put_number(run->out, c < 0 ? ps->time[i] : path[c * ps->n + i]);
+            if (c < 0)
+                cli_put_time(run->out, &ps->axis, ps->time[i]);
+            else
+                cli_put_number(run->out, path[c * ps->n + i]);
         }
         fputc('\n', run->out);
     }

@@ -307,8 +307,7 @@ static int robustness_series(const cli_options *opts, const cli_inputs *in,
     screen_input control = {0};
     if (in->has_control)
         control = cli_control_input(in, t->names[k]);
-    screen_input input = {t->names[k], cli_source_name(t->source), t->time_name, t->time,
-                          t->values[k], t->n, in->has_control ? &control : NULL};
+    screen_input input = {.name = t->names[k], .source = cli_source_name(t->source), .time_name = t->time_name, .time = t->time, .values = t->values[k], .n = t->n, .control = in->has_control ? &control : NULL, .axis = t->axis};
     screen_prepared named = {.name = input.name, .source = input.source};
     cell_grid cells = {NULL, NULL, NULL, NULL, 0, 0, 0};
     int rc = run->figures ? grid_alloc(opts, &m, &cells) : EXIT_OK;

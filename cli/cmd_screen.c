@@ -90,8 +90,7 @@ static int next_series(void *state, size_t index, screen_input *out, screen_deta
         return SCREEN_BATCH_END;
     const series_table *t = &src->in->tables[src->table];
     size_t k = src->series++;
-    *out = (screen_input){t->names[k], cli_source_name(t->source), t->time_name, t->time,
-                          t->values[k], t->n, NULL};
+    *out = (screen_input){.name = t->names[k], .source = cli_source_name(t->source), .time_name = t->time_name, .time = t->time, .values = t->values[k], .n = t->n, .control = NULL, .axis = t->axis};
     if (src->controls) {
         src->controls[index] = cli_control_input(src->in, t->names[k]);
         out->control = &src->controls[index];

@@ -31,7 +31,7 @@ static int write_replicates(const cli_options *opts, const prepared_series *ps,
         for (size_t i = 0; i < ps->n; i++) {
             cli_put_field(run->out, ps->name);
             fprintf(run->out, ",%ld,", j + 1);
-            cli_put_number(run->out, ps->time[i]);
+            cli_put_time(run->out, &ps->axis, ps->time[i]);
             fputc(',', run->out);
             cli_put_number(run->out, run->buffer[i]);
             fputc('\n', run->out);

@@ -135,6 +135,17 @@ void cli_put_number(FILE *fp, double v)
         fputs("NA", fp);
 }
 
+void cli_put_time(FILE *fp, const time_axis *axis, double v)
+{
+    char text[64];
+    if (!isfinite(v) || axis->unit == TIME_AXIS_NUMBER) {
+        cli_put_number(fp, axis->backward ? -v : v); /* ages as written */
+        return;
+    }
+    slowscan_time_axis_format(axis, v, text, sizeof text);
+    fputs(text, fp);
+}
+
 void cli_put_field(FILE *fp, const char *s)
 {
     if (!strpbrk(s, ",;\t\"\r\n")) {
@@ -279,7 +290,7 @@ void cli_write_rolling(FILE *fp, const cli_options *opts, const prepared_series 
                 continue;
             cli_put_field(fp, ps->name);
             fputc(',', fp);
-            cli_put_number(fp, ps->time[i]);
+            cli_put_time(fp, &ps->axis, ps->time[i]);
             fprintf(fp, ",%s,", name);
             cli_put_number(fp, values[j][i]);
             fputc('\n', fp);

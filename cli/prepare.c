@@ -133,8 +133,7 @@ int cli_prepare_series(const cli_options *o, const series_table *t, size_t k, pr
 {
     screen_config cfg;
     cli_screen_config(o, &cfg);
-    screen_input in = {t->names[k], shown(t->source), t->time_name, t->time, t->values[k], t->n,
-                       NULL};
+    screen_input in = {.name = t->names[k], .source = shown(t->source), .time_name = t->time_name, .time = t->time, .values = t->values[k], .n = t->n, .control = NULL, .axis = t->axis};
     screen_detail d;
     if (slowscan_screen_prepare(&cfg, &in, ps, &d) == SLOWSCAN_OK)
         return EXIT_OK;
@@ -188,7 +187,7 @@ const char *cli_source_name(const char *source)
 screen_input cli_control_input(const cli_inputs *in, const char *name)
 {
     const series_table *c = &in->control;
-    screen_input control = {name, shown(c->source), c->time_name, c->time, NULL, c->n, NULL};
+    screen_input control = {.name = name, .source = shown(c->source), .time_name = c->time_name, .time = c->time, .values = NULL, .n = c->n, .control = NULL, .axis = c->axis};
     for (size_t k = 0; k < c->nseries; k++)
         if (strcmp(c->names[k], name) == 0) {
             control.values = c->values[k];

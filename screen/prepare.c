@@ -152,6 +152,7 @@ int slowscan_screen_prepare(const screen_config *cfg, const screen_input *in, sc
     ps->time_name = in->time_name;
     ps->n = in->n;
     ps->time = in->time;
+    ps->axis = in->axis;
     ps->span = in->time[in->n - 1] - in->time[0];
     ps->dt = ps->span / (double)(in->n - 1);
     int st = slowscan_screen_window(cfg, in->n, ps->span, &ps->window, d);

@@ -28,8 +28,7 @@ static int next_series(void *state, size_t index, screen_input *in, screen_detai
         return SLOWSCAN_EINVAL;
     }
     const series_table *t = src->t;
-    *in = (screen_input){t->names[index], t->source, t->time_name, t->time, t->values[index],
-                         t->n, NULL};
+    *in = (screen_input){.name = t->names[index], .source = t->source, .time_name = t->time_name, .time = t->time, .values = t->values[index], .n = t->n, .control = NULL};
     src->given++;
     return SLOWSCAN_OK;
 }
@@ -81,7 +80,7 @@ void suite_batch(void)
     expect_sink e = {0};
     screen_workspace *ws = slowscan_screen_workspace_alloc(1);
     for (size_t k = 0; k < t.nseries && k < 16; k++) {
-        screen_input in = {t.names[k], t.source, t.time_name, t.time, t.values[k], t.n, NULL};
+        screen_input in = {.name = t.names[k], .source = t.source, .time_name = t.time_name, .time = t.time, .values = t.values[k], .n = t.n, .control = NULL};
         screen_detail d;
         CHECK(slowscan_screen_series(ws, &cfg, &in, &e.want[k], &d) == SLOWSCAN_OK, "%s", t.names[k]);
         e.want_path[k] = malloc(t.n * sizeof(double));

@@ -276,11 +276,8 @@ static int library_messages(const series_table *t, const series_table *ctl, cons
     int refused = 0;
     char text[2048];
     for (size_t k = 0; ws && k < t->nseries && !refused; k++) {
-        screen_input control = {t->names[k], ctl_path, ctl ? ctl->time_name : NULL,
-                                ctl ? ctl->time : NULL, control_values(ctl, t->names[k]),
-                                ctl ? ctl->n : 0, NULL};
-        screen_input in = {t->names[k], in_path, t->time_name, t->time, t->values[k], t->n,
-                           ctl ? &control : NULL};
+        screen_input control = {.name = t->names[k], .source = ctl_path, .time_name = ctl ? ctl->time_name : NULL, .time = ctl ? ctl->time : NULL, .values = control_values(ctl, t->names[k]), .n = ctl ? ctl->n : 0, .control = NULL};
+        screen_input in = {.name = t->names[k], .source = in_path, .time_name = t->time_name, .time = t->time, .values = t->values[k], .n = t->n, .control = ctl ? &control : NULL};
         screen_result r;
         screen_detail d;
         int st = slowscan_screen_series(ws, cfg, &in, &r, &d);
@@ -314,7 +311,7 @@ static void library_leakage(const series_table *t, const screen_config *cfg, con
     detrend_leakage leaks[NAMED_LEAKS];
     size_t count = 0, tested = 0;
     for (size_t k = 0; ws && k < t->nseries; k++) {
-        screen_input in = {t->names[k], in_path, t->time_name, t->time, t->values[k], t->n, NULL};
+        screen_input in = {.name = t->names[k], .source = in_path, .time_name = t->time_name, .time = t->time, .values = t->values[k], .n = t->n, .control = NULL};
         screen_result r;
         screen_detail d;
         if (slowscan_screen_series(ws, cfg, &in, &r, &d) != SLOWSCAN_OK)
@@ -405,7 +402,7 @@ static void detrended(int input, const char *vars, const char *method)
         return;
     }
     for (size_t k = 0; k < t.nseries; k++) {
-        screen_input in = {t.names[k], in_path, t.time_name, t.time, t.values[k], t.n, NULL};
+        screen_input in = {.name = t.names[k], .source = in_path, .time_name = t.time_name, .time = t.time, .values = t.values[k], .n = t.n, .control = NULL};
         screen_prepared ps;
         screen_detail d;
         message_context ctx = {in_path, t.names[k], NULL, &cfg, NULL, NULL};

@@ -85,8 +85,7 @@ static void stations(void)
         cfg.threads = threads;
         screen_workspace *ws = slowscan_screen_workspace_alloc(threads);
         for (size_t k = 0; ws && k < t.nseries; k++) {
-            screen_input in = {t.names[k], "data/stations.csv", t.time_name, t.time, t.values[k],
-                               t.n, NULL};
+            screen_input in = {.name = t.names[k], .source = "data/stations.csv", .time_name = t.time_name, .time = t.time, .values = t.values[k], .n = t.n, .control = NULL};
             screen_result r;
             screen_detail d;
             int st = slowscan_screen_series(ws, &cfg, &in, &r, &d);
@@ -128,8 +127,8 @@ static void control(void)
     const size_t series[] = {0, 3, 20};
     for (size_t s = 0; ws && s < 3; s++) {
         size_t k = series[s];
-        screen_input ci = {c.names[k], "control", c.time_name, c.time, c.values[k], c.n, NULL};
-        screen_input in = {t.names[k], "batch", t.time_name, t.time, t.values[k], t.n, &ci};
+        screen_input ci = {.name = c.names[k], .source = "control", .time_name = c.time_name, .time = c.time, .values = c.values[k], .n = c.n, .control = NULL};
+        screen_input in = {.name = t.names[k], .source = "batch", .time_name = t.time_name, .time = t.time, .values = t.values[k], .n = t.n, .control = &ci};
         screen_result r;
         screen_detail d;
         CHECK(slowscan_screen_series(ws, &cfg, &in, &r, &d) == SLOWSCAN_OK, "%s with a control", t.names[k]);
@@ -155,7 +154,7 @@ static void refusals_and_warnings(void)
     screen_workspace *ws = slowscan_screen_workspace_alloc(1);
     screen_result r;
     screen_detail d;
-    screen_input in = {"flat", "memory", "t", time, flat, N, NULL};
+    screen_input in = {.name = "flat", .source = "memory", .time_name = "t", .time = time, .values = flat, .n = N, .control = NULL};
     int st = slowscan_screen_series(ws, &cfg, &in, &r, &d);
     CHECK(st == SLOWSCAN_OK && r.nwarnings == 1 && r.warnings[0].kind == SCREEN_WARN_NO_PATHS &&
           r.warnings[0].status == SCREEN_CONSTANT, "a constant series warns, as data");

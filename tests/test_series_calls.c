@@ -39,8 +39,7 @@ static int read_stations(series_table *t)
 
 static screen_input station(const series_table *t, size_t k)
 {
-    return (screen_input){t->names[k], "data/stations.csv", t->time_name, t->time, t->values[k],
-                          t->n, NULL};
+    return (screen_input){.name = t->names[k], .source = "data/stations.csv", .time_name = t->time_name, .time = t->time, .values = t->values[k], .n = t->n, .control = NULL};
 }
 
 static size_t named(const series_table *t, const char *name)
@@ -297,7 +296,7 @@ static void recovery_without_fit(void)
     for (size_t i = 0; i < 40; i++)
         time[i] = (double)i, values[i] = 3.0;
     screen_config cfg = slowscan_screen_config_default();
-    screen_input in = {"flat", "memory", "t", time, values, 40, NULL};
+    screen_input in = {.name = "flat", .source = "memory", .time_name = "t", .time = time, .values = values, .n = 40, .control = NULL};
     screen_prepared ps;
     screen_detail d;
     recovery_result r;
@@ -365,7 +364,7 @@ static void replicates_equal_command(void)
     const double *values[] = {few, flat};
     const int want[] = {SLOWSCAN_ESHORT, SLOWSCAN_ECONST};
     for (int c = 0; c < 2; c++) {
-        screen_input small = {"small", "memory", "t", time, values[c], 12, NULL};
+        screen_input small = {.name = "small", .source = "memory", .time_name = "t", .time = time, .values = values[c], .n = 12, .control = NULL};
         st = slowscan_screen_prepare(&lin, &small, &ps, &d);
         if (st == SLOWSCAN_OK)
             st = slowscan_screen_replicates_alloc(&lin, &ps, &reps, &d);

@@ -15,44 +15,6 @@
 #include <stddef.h>
 #include <stdio.h>
 
-/* What the numbers of a table's time column are. A column of numbers is taken as it is
- * (TIME_AXIS_NUMBER). A column of dates, or of numbers in CF units ("days since ..."), becomes
- * day numbers of its calendar (calendar.h); a record with one row per month (dates written
- * to the month, or steps of 28-31 days each in a month of its own) is put on a month index
- * instead, and one with one row per year on the year, so that months of 28 to 31 days make a
- * regular grid. Outputs turn the numbers back into dates (slowscan_time_axis_format). */
-typedef enum {
-    TIME_AXIS_NUMBER = 0, /* the column's own numbers */
-    TIME_AXIS_DAYS,       /* day numbers: days since 1970-01-01 of the calendar */
-    TIME_AXIS_MONTHS,     /* months since January of year 0 (slowscan_calendar_month_index) */
-    TIME_AXIS_YEARS       /* the astronomical year */
-} time_axis_unit;
-
-typedef struct {
-    time_axis_unit unit;
-    calendar_kind calendar;   /* dated axes */
-    date_precision precision; /* the finest date field written: output stamps use it */
-    int decimals;             /* TIME_AXIS_NUMBER: most decimals written in the column
-                                 (-1: some value had an exponent or more than 15) */
-    int backward;             /* the column counts back in time (ages before present): the
-                                 axis holds minus the written numbers, so it runs forward */
-} time_axis;
-
-/* The unit of an axis in words ("days", "months", "years"); NULL for TIME_AXIS_NUMBER. */
-SLOWSCAN_API
-const char *slowscan_time_axis_unit_name(time_axis_unit unit);
-
-/* A time of the axis as text: the date at the axis' precision (a month axis prints YYYY-MM,
- * a year axis YYYY), or the number with %.15g (an age axis prints the age as written).
- * Returns the length needed (as snprintf). */
-SLOWSCAN_API
-int slowscan_time_axis_format(const time_axis *axis, double value, char *buffer, size_t size);
-
-/* Reads `text` as a time of the axis (for --from/--until): a date on a dated axis, a number on
- * a number axis. SLOWSCAN_EINVAL for text that is neither, or a date the calendar lacks. */
-SLOWSCAN_API
-int slowscan_time_axis_value(const time_axis *axis, const char *text, const char *format,
-                             double *value);
 
 typedef struct {
     char message[1024];

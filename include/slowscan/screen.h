@@ -14,6 +14,7 @@
 
 #include "slowscan/export.h"
 
+#include "slowscan/calendar.h"
 #include "slowscan/detrend.h"
 #include "slowscan/indicators.h"
 #include "slowscan/surrogates.h"
@@ -135,6 +136,7 @@ struct screen_input {
     const screen_input *control; /* NULL, or the same series of a control run (values NULL
                                     when the run has none of that name): surrogates are made
                                     from its first n samples' residual (slowscan_screen_attach_control) */
+    time_axis axis;         /* what the times are (calendar.h); zero: plain numbers */
 };
 
 /* A series prepared for the indicators: deseasoned and detrended. */
@@ -142,6 +144,7 @@ typedef struct {
     const char *name, *source, *time_name; /* borrowed from the input */
     size_t n;
     const double *time;
+    time_axis axis;                   /* the input's: outputs print times with it */
     double dt, span;
     double *value, *trend, *residual; /* n each, owned; value = what was detrended */
     size_t finite;                    /* finite samples of value */

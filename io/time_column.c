@@ -1,7 +1,7 @@
 /* The time column of a table: numbers, dates or numbers in CF units, cell by cell while the
  * CSV is read (time_reader_cell), then the axis the analysis runs on (time_reader_settle:
- * day numbers, or a month or year index for monthly and yearly records), and the way back
- * from an axis value to a date for outputs (include/slowscan/io.h). */
+ * day numbers, or a month or year index for monthly and yearly records). The way back from
+ * an axis value to a date is calendar/time_axis.c. */
 #include "io_internal.h"
 
 #include <errno.h>
@@ -216,59 +216,6 @@ void time_reader_settle(const time_reader *tr, double *time, size_t n, time_axis
     else if (axis.precision < DATE_DAY)
         axis.precision = DATE_DAY;
     *out = axis;
-}
-
-const char *slowscan_time_axis_unit_name(time_axis_unit unit)
-{
-    switch (unit) {
-    case TIME_AXIS_DAYS: return "days";
-    case TIME_AXIS_MONTHS: return "months";
-    case TIME_AXIS_YEARS: return "years";
-    default: return NULL;
-    }
-}
-
-int slowscan_time_axis_format(const time_axis *axis, double value, char *buffer, size_t size)
-{
-    calendar_date d = {0, 1, 1, 0, 0, 0.0, 0};
-    int whole = value == floor(value) && fabs(value) < 1e12;
-    int dated = axis->unit == TIME_AXIS_DAYS ||
-                ((axis->unit == TIME_AXIS_MONTHS || axis->unit == TIME_AXIS_YEARS) && whole);
-    if (axis->unit == TIME_AXIS_DAYS)
-        dated = slowscan_calendar_from_day_number(axis->calendar, value, &d) == SLOWSCAN_OK;
-    else if (dated)
-        slowscan_calendar_month_of_index(axis->calendar,
-                                         (long)value * (axis->unit == TIME_AXIS_YEARS ? 12 : 1),
-                                         &d.year, &d.month);
-    /* a fraction of a month or year (a window's middle) has no date: it prints as a number */
-    if (!dated)
-        return snprintf(buffer, size, "%.15g", axis->backward ? -value : value);
-    return slowscan_date_format(&d, axis->precision, buffer, size);
-}
-
-int slowscan_time_axis_value(const time_axis *axis, const char *text, const char *format,
-                             double *value)
-{
-    if (axis->unit == TIME_AXIS_NUMBER) {
-        if (read_number(text, value) != 0)
-            return SLOWSCAN_EINVAL;
-        *value = axis->backward ? -*value : *value;
-        return SLOWSCAN_OK;
-    }
-    /* a year axis also takes a bare year */
-    if (axis->unit == TIME_AXIS_YEARS && !format && read_number(text, value) == 0)
-        return *value == floor(*value) ? SLOWSCAN_OK : SLOWSCAN_EINVAL;
-    calendar_date d;
-    double days;
-    if (slowscan_date_parse(text, format, &d, NULL) != SLOWSCAN_OK ||
-        slowscan_calendar_day_number(axis->calendar, &d, &days) != SLOWSCAN_OK)
-        return SLOWSCAN_EINVAL;
-    long month = slowscan_calendar_month_index(axis->calendar, &d);
-    if (axis->unit == TIME_AXIS_DAYS)
-        *value = days;
-    else
-        *value = (double)(axis->unit == TIME_AXIS_MONTHS ? month : year_of_month(month));
-    return SLOWSCAN_OK;
 }
 
 void time_reader_text(const time_reader *tr, double value, char *buffer, size_t size)
