@@ -32,7 +32,16 @@ typedef struct {
     const char *command;
     /* input */
     const char *time_column, *vars;
-    double from, until, resample; /* NaN: not given */
+    double from, until, resample; /* NaN: not given (from/until: or given as a date) */
+    const char *from_text, *until_text; /* --from/--until as written (dates, ages) */
+    double max_gap;          /* --max-gap: steps --resample may bridge; NaN: 2 original steps */
+    calendar_kind calendar;  /* --calendar (standard) */
+    int calendar_given;
+    const char *time_format; /* --time-format, NULL: numbers or ISO 8601 dates */
+    const char *time_units;  /* --time-units "UNIT since DATE", NULL: numbers as they are */
+    int age;                 /* --age: the time column counts back (before present) */
+    double missing[16];      /* --missing codes */
+    size_t nmissing;
     int log_values;
     /* detrending */
     detrend_spec detrend;
@@ -252,5 +261,13 @@ int cmd_demo(const cli_options *opts);
 int cmd_surrogates(const cli_options *opts);
 int cmd_robustness(const cli_options *opts);
 int cmd_recovery(const cli_options *opts);
+
+/* input_checks.c: reading options from the command's (CF units parsed on the calendar), the
+ * --from/--until span on a table's axis, the grid (gaps or --resample), notices on what the
+ * reader left out or suspects. Each returns an exit code (the message printed). */
+int cli_read_options(const cli_options *o, time_units *units, csv_read_options *ro);
+int cli_span_on_axis(const cli_options *o, const series_table *t, double *from, double *until);
+int cli_grid(const cli_options *o, series_table *t, io_error *err);
+void cli_input_notices(const cli_options *o, const series_table *t);
 
 #endif

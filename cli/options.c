@@ -74,8 +74,62 @@ static int parse_length(const char *name, const char *value, cli_length *len)
 
 static int set_time(cli_options *o, const char *n, const char *v) { (void)n; o->time_column = v; return EXIT_OK; }
 static int set_vars(cli_options *o, const char *n, const char *v) { (void)n; o->vars = v; return EXIT_OK; }
-static int set_from(cli_options *o, const char *n, const char *v) { return parse_number(n, v, &o->from); }
-static int set_until(cli_options *o, const char *n, const char *v) { return parse_number(n, v, &o->until); }
+/* --from/--until: a number stays a number (as before); anything else (a date) is read
+ * against each input's time axis once the input is read. */
+static int set_bound(const char *v, const char **text, double *value)
+{
+    char *end;
+    double x = strtod(v, &end);
+    *text = v;
+    *value = end != v && *end == '\0' && isfinite(x) ? x : NAN;
+    return EXIT_OK;
+}
+static int set_from(cli_options *o, const char *n, const char *v) { (void)n; return set_bound(v, &o->from_text, &o->from); }
+static int set_until(cli_options *o, const char *n, const char *v) { (void)n; return set_bound(v, &o->until_text, &o->until); }
+static int set_max_gap(cli_options *o, const char *n, const char *v) { return parse_positive(n, v, &o->max_gap); }
+static int set_time_format(cli_options *o, const char *n, const char *v)
+{
+    if (!strstr(v, "%Y") || !strstr(v, "%m")) {
+        cli_error("option %s: '%s' needs at least %%Y and %%m (e.g. %%Y%%m%%d)", n, v);
+        return EXIT_BAD_INPUT;
+    }
+    o->time_format = v;
+    return EXIT_OK;
+}
+static int set_time_units(cli_options *o, const char *n, const char *v) { (void)n; o->time_units = v; return EXIT_OK; }
+static int set_age(cli_options *o, const char *n, const char *v) { (void)n; (void)v; o->age = 1; return EXIT_OK; }
+static int set_calendar(cli_options *o, const char *n, const char *v)
+{
+    if (slowscan_calendar_lookup(v, &o->calendar) != SLOWSCAN_OK) {
+        cli_error("option %s: '%s' is not a CF calendar (standard, gregorian, "
+                  "proleptic_gregorian, noleap, 365_day, all_leap, 366_day, 360_day, julian)", n, v);
+        return EXIT_BAD_INPUT;
+    }
+    o->calendar_given = 1;
+    return EXIT_OK;
+}
+/* --missing V1,V2,...: numbers that stand for a missing value. */
+static int set_missing(cli_options *o, const char *n, const char *v)
+{
+    const size_t max = sizeof o->missing / sizeof o->missing[0];
+    o->nmissing = 0;
+    for (const char *p = v;;) {
+        const char *comma = strchr(p, ',');
+        size_t len = comma ? (size_t)(comma - p) : strlen(p);
+        char item[64];
+        if (len == 0 || len >= sizeof item || o->nmissing == max) {
+            cli_error("option %s: '%s' is not a list of at most %zu numbers", n, v, max);
+            return EXIT_BAD_INPUT;
+        }
+        memcpy(item, p, len);
+        item[len] = '\0';
+        if (parse_number(n, item, &o->missing[o->nmissing++]) != EXIT_OK)
+            return EXIT_BAD_INPUT;
+        if (!comma)
+            return EXIT_OK;
+        p = comma + 1;
+    }
+}
 static int set_resample(cli_options *o, const char *n, const char *v) { return parse_positive(n, v, &o->resample); }
 static int set_deseason(cli_options *o, const char *n, const char *v) { return parse_positive(n, v, &o->deseason); }
 static int set_deseason_window(cli_options *o, const char *n, const char *v) { return parse_length(n, v, &o->deseason_window); }
@@ -398,6 +452,12 @@ static const option_spec options[] = {
     {"--until", 1, C_SERIES, set_until},
     {"--log", 0, C_SERIES, set_log},
     {"--resample", 1, C_SERIES, set_resample},
+    {"--max-gap", 1, C_SERIES, set_max_gap},
+    {"--calendar", 1, C_SERIES, set_calendar},
+    {"--time-format", 1, C_SERIES, set_time_format},
+    {"--time-units", 1, C_SERIES, set_time_units},
+    {"--age", 0, C_SERIES, set_age},
+    {"--missing", 1, C_SERIES, set_missing},
     {"--detrend", 1, C_SERIES, set_detrend},
     {"--bandwidth", 1, C_SERIES, set_bandwidth},
     {"--deseason", 1, C_SERIES, set_deseason},

@@ -27,15 +27,13 @@ static int ready_table(const cli_options *opts, series_table *t)
 {
     io_error err = {{0}};
     int st;
-    if (!isnan(opts->from) || !isnan(opts->until))
-        if ((st = slowscan_table_select_span(t, opts->from, opts->until, &err)) != SLOWSCAN_OK)
+    double from, until;
+    if (cli_span_on_axis(opts, t, &from, &until) != EXIT_OK)
+        return EXIT_BAD_INPUT;
+    if (!isnan(from) || !isnan(until))
+        if ((st = slowscan_table_select_span(t, from, until, &err)) != SLOWSCAN_OK)
             return io_fail(st, &err);
-    double dt;
-    if (!isnan(opts->resample))
-        st = slowscan_table_resample(t, opts->resample, &err);
-    else
-        st = slowscan_table_check_grid(t, &dt, &err);
-    if (st != SLOWSCAN_OK)
+    if ((st = cli_grid(opts, t, &err)) != SLOWSCAN_OK)
         return io_fail(st, &err);
     if (opts->log_values && (st = slowscan_table_log(t, &err)) != SLOWSCAN_OK)
         return io_fail(st, &err);
@@ -57,9 +55,10 @@ static int load_control(const cli_options *opts, cli_inputs *in)
                       opts->control_file);
             return EXIT_BAD_INPUT;
         }
-    csv_read_options ro = slowscan_csv_read_options_default();
-    ro.time_column = opts->time_column;
-    ro.vars = opts->vars;
+    csv_read_options ro;
+    time_units units;
+    if (cli_read_options(opts, &units, &ro) != EXIT_OK)
+        return EXIT_BAD_INPUT;
     io_error err = {{0}};
     int st = slowscan_csv_read_table(opts->control_file, &ro, &in->control, &err);
     if (st != SLOWSCAN_OK) {
@@ -69,6 +68,7 @@ static int load_control(const cli_options *opts, cli_inputs *in)
     in->has_control = 1;
     cli_options whole = *opts;
     whole.from = whole.until = NAN;
+    whole.from_text = whole.until_text = NULL;
     return ready_table(&whole, &in->control);
 }
 
@@ -78,10 +78,10 @@ int cli_inputs_load(const cli_options *opts, cli_inputs *in)
     in->tables = calloc(opts->nfiles, sizeof *in->tables);
     if (!in->tables)
         return EXIT_INTERNAL;
-    csv_read_options ro = slowscan_csv_read_options_default();
-    ro.time_column = opts->time_column;
-    ro.vars = opts->vars;
-    for (size_t f = 0; f < opts->nfiles; f++) {
+    csv_read_options ro;
+    time_units units;
+    int rc = cli_read_options(opts, &units, &ro);
+    for (size_t f = 0; rc == EXIT_OK && f < opts->nfiles; f++) {
         for (size_t g = 0; g < f; g++)
             if (strcmp(opts->files[f], opts->files[g]) == 0 || slowscan_io_same_file(opts->files[f], opts->files[g])) {
                 cli_error("%s: the same input is given twice", opts->files[f]);
@@ -92,10 +92,11 @@ int cli_inputs_load(const cli_options *opts, cli_inputs *in)
         in->ntables = f + 1;
         if (st != SLOWSCAN_OK)
             return io_fail(st, &err);
-        int rc = ready_table(opts, &in->tables[f]);
-        if (rc != EXIT_OK)
-            return rc;
+        cli_input_notices(opts, &in->tables[f]);
+        rc = ready_table(opts, &in->tables[f]);
     }
+    if (rc != EXIT_OK)
+        return rc;
     return opts->control_file ? load_control(opts, in) : EXIT_OK;
 }
 

@@ -30,7 +30,7 @@ void cli_science_defaults(const char *command, cli_options *o)
     screen_config c = slowscan_screen_config_default();
     memset(o, 0, sizeof *o);
     o->command = command;
-    o->from = o->until = o->resample = NAN;
+    o->from = o->until = o->resample = o->max_gap = NAN;
     o->deseason = c.deseason;
     o->detrend = c.detrend;
     o->detrend_text = slowscan_detrend_method_name(c.detrend.method);

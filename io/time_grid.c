@@ -82,8 +82,10 @@ int slowscan_table_check_grid(const series_table *t, double *dt, io_error *err)
 /* Linear interpolation of one series at the grid points, walking both axes once. A grid
  * point within `tol` of a sample takes that sample (missing if it is missing); otherwise a
  * missing neighbour makes it missing (NaN propagates through the weighted sum). */
+/* Linear interpolation of x(t) at the grid points; a point between two samples more than
+ * `max_span` apart (a gap) stays missing, unless it hits a sample. */
 static void interpolate(const double *t, const double *x, size_t n, const double *grid,
-                        size_t m, double tol, double *out)
+                        size_t m, double tol, double max_span, double *out)
 {
     size_t j = 0;
     for (size_t g = 0; g < m; g++) {
@@ -94,7 +96,9 @@ static void interpolate(const double *t, const double *x, size_t n, const double
             out[g] = x[j];
         else if (fabs(t[j + 1] - at) <= tol)
             out[g] = x[j + 1];
-        else {
+        else if (t[j + 1] - t[j] > max_span) {
+            out[g] = NAN;
+        } else {
             double w = (at - t[j]) / (t[j + 1] - t[j]);
             out[g] = (1 - w) * x[j] + w * x[j + 1];
         }
@@ -109,7 +113,51 @@ static void free_columns(double **values, size_t nseries, double *grid)
     free(grid);
 }
 
+static int resample_onto(series_table *t, double step, double max_span, io_error *err);
+
+static int compare_steps(const void *a, const void *b)
+{
+    double x = *(const double *)a, y = *(const double *)b;
+    return (x > y) - (x < y);
+}
+
+/* The median of the time steps (n >= 2); NaN when out of memory. */
+static double median_time_step(const series_table *t)
+{
+    double *steps = malloc((t->n - 1) * sizeof *steps);
+    if (!steps)
+        return NAN;
+    for (size_t i = 1; i < t->n; i++)
+        steps[i - 1] = t->time[i] - t->time[i - 1];
+    qsort(steps, t->n - 1, sizeof *steps, compare_steps);
+    double median = steps[(t->n - 1) / 2];
+    free(steps);
+    return median;
+}
+
+int slowscan_table_resample_within(series_table *t, double step, double max_gap, io_error *err)
+{
+    const char *name = io_display_name(t->source);
+    if (t->n >= 2 && isfinite(max_gap)) {
+        double median = median_time_step(t);
+        if (isnan(median))
+            return io_fail(err, SLOWSCAN_ENOMEM, "%s: out of memory resampling", name);
+        if (step < median * (1.0 - 1e-9))
+            return io_fail(err, SLOWSCAN_EINVAL, "%s: option --resample %.15g: the step is finer "
+                           "than the data's median step %.15g; interpolating onto it would "
+                           "create memory (lag-1 autocorrelation) the data do not have: use a "
+                           "step of at least %.15g", name, step, median, median);
+        return resample_onto(t, step, max_gap * median, err);
+    }
+    return resample_onto(t, step, INFINITY, err);
+}
+
 int slowscan_table_resample(series_table *t, double step, io_error *err)
+{
+    return slowscan_table_resample_within(t, step, INFINITY, err);
+}
+
+static int resample_onto(series_table *t, double step, double max_span, io_error *err)
 {
     const char *name = io_display_name(t->source);
     if (t->n < 2)
@@ -136,7 +184,8 @@ int slowscan_table_resample(series_table *t, double step, io_error *err)
     for (size_t g = 0; g < m; g++) /* first + g*step, not a running sum: no drift */
         grid[g] = first + (double)g * step;
     for (size_t k = 0; k < t->nseries; k++)
-        interpolate(t->time, t->values[k], t->n, grid, m, GRID_SLACK * step, values[k]);
+        interpolate(t->time, t->values[k], t->n, grid, m, GRID_SLACK * step, max_span,
+                    values[k]);
     free_columns(t->values, t->nseries, t->time);
     free(t->rows);
     t->values = values;

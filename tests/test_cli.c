@@ -245,10 +245,24 @@ static void test_stdin_and_resample(void)
     const char *in = check_tmp_path("irregular.csv");
     check_write_file(in, "t,a\n0,0\n1,1\n3,3\n4,4\n5,5\n6,6\n7,7\n8,8\n10,10\n");
     char args[600];
+    snprintf(args, sizeof args, "detrend --detrend none --resample 1 %s", in);
+    /* Linear interpolation of a straight line reproduces it (analytic); gaps of two steps
+     * are within the default --max-gap. */
+    CHECK(slowscan(args) == 0 && count_lines(run_out) == 1 + 11 && strstr(run_out, "a,2,2,0,2\n"),
+          "resample onto step 1: %s", run_err ? run_err : "");
+    /* A step finer than the data's is refused: interpolation would invent memory. */
     snprintf(args, sizeof args, "detrend --detrend none --resample 0.5 %s", in);
-    /* Linear interpolation of a straight line reproduces it (analytic). */
-    CHECK(slowscan(args) == 0 && count_lines(run_out) == 1 + 21 && strstr(run_out, "a,2.5,2.5,0,2.5\n"),
-          "resample onto step 0.5: %s", run_err ? run_err : "");
+    CHECK(slowscan(args) == 1 && run_err && strstr(run_err, "option --resample 0.5: the step is "
+          "finer than the data's median step 1"), "finer resample refused: %s", run_err ? run_err : "");
+    /* Across a gap longer than --max-gap nothing is interpolated: missing stays missing. */
+    snprintf(args, sizeof args, "detrend --detrend none --resample 1 --max-gap 1 %s", in);
+    CHECK(slowscan(args) == 0 && strstr(run_out, "a,2,NA,0,NA\n") && strstr(run_out, "a,9,NA,0,NA\n"),
+          "--max-gap 1 leaves the gaps missing: %s", run_out ? run_out : "");
+    /* Without --resample the two missing rows are gaps of the regular grid, read as missing. */
+    snprintf(args, sizeof args, "detrend --detrend none %s", in);
+    CHECK(slowscan(args) == 0 && strstr(run_out, "a,2,NA,0,NA\n") && run_err &&
+              strstr(run_err, "2 rows missing from the regular grid (step 1) were read as missing"),
+          "gaps filled with a warning: %s", run_err ? run_err : "");
 }
 
 static void test_constant_series(void)

@@ -107,6 +107,13 @@ int slowscan_table_suspect_code(const series_table *table, size_t k, suspect_cod
  * exactly). SLOWSCAN_EINVAL for step <= 0 or step > span. */
 SLOWSCAN_API
 int slowscan_table_resample(series_table *table, double step, io_error *err);
+/* The same with two guards against invented memory: a step finer than the median time step
+ * is refused (interpolation would make neighbours alike), and a grid point between samples
+ * more than max_gap median steps apart stays missing instead of being interpolated across
+ * the gap (max_gap infinite: no guard, as slowscan_table_resample). */
+SLOWSCAN_API
+int slowscan_table_resample_within(series_table *table, double step, double max_gap,
+                                   io_error *err);
 
 /* Replaces every value by its natural logarithm; a value <= 0 is an error naming row and
  * column. */
