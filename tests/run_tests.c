@@ -32,6 +32,7 @@ void suite_series_calls(void);
 void suite_calendar(void);
 void suite_time_column(void);
 void suite_netcdf(void);
+void suite_dated_cli(void);
 
 static const struct {
     const char *name;
@@ -49,6 +50,7 @@ static const struct {
     {"series_calls", suite_series_calls},
     {"calendar", suite_calendar},
     {"time_column", suite_time_column}, {"netcdf", suite_netcdf},
+    {"dated_cli", suite_dated_cli},
 };
 
 int main(int argc, char **argv)

@@ -1,0 +1,161 @@
+/* Suite dated_cli: the command on dated, aged and coded records, end to end (the options
+ * --calendar, --time-format, --time-units, --age, --missing and dates in --from/--until).
+ * What a right answer is: the same numbers as the same series on a plain numeric time axis
+ * (the dates only name the samples), and the direction of time (common practice, no source:
+ * an age axis runs backward). */
+#include "check.h"
+
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+static char *out, *err;
+
+static int run(const char *args)
+{
+    free(out), free(err);
+    out = err = NULL;
+    char cmd[2048];
+    snprintf(cmd, sizeof cmd, "%s %s", check_binary(), args);
+    return check_run(cmd, &out, &err);
+}
+
+enum { N = 240 };
+
+/* An AR(1) whose noise grows along the record (variance rises in forward time). */
+static void draw(double *x)
+{
+    check_rng *rng = check_rng_alloc(3);
+    double v = 0;
+    for (size_t i = 0; i < N; i++) {
+        v = 0.5 * v + (1.0 + 2.0 * (double)i / N) * check_rng_gaussian(rng);
+        x[i] = v;
+    }
+    check_rng_free(rng);
+}
+
+/* The summary row of `test` from screen's output: its tau. */
+static double tau_of(const char *text, const char *test)
+{
+    char key[64];
+    snprintf(key, sizeof key, "\n%s,", test);
+    const char *at = text ? strstr(text, key) : NULL;
+    double tau = NAN;
+    if (at)
+        sscanf(at + strlen(key), "%*[^,],%*[^,],%*[^,],%*[^,],%lf", &tau);
+    return tau;
+}
+
+/* Monthly dates (noleap, mid-month), CF units and plain month numbers give the same taus. */
+static void check_same_numbers(void)
+{
+    double x[N];
+    draw(x);
+    static char plain[N * 40], dated[N * 40], units[N * 40];
+    size_t a = (size_t)snprintf(plain, sizeof plain, "t,x\n");
+    size_t b = (size_t)snprintf(dated, sizeof dated, "date,x\n");
+    size_t c = (size_t)snprintf(units, sizeof units, "days,x\n");
+    static const int mid[12] = {16, 15, 16, 16, 16, 16, 16, 16, 16, 16, 16, 16};
+    static const int before[12] = {0, 31, 59, 90, 120, 151, 181, 212, 243, 273, 304, 334};
+    for (size_t i = 0; i < N; i++) {
+        a += (size_t)snprintf(plain + a, sizeof plain - a, "%zu,%.6f\n", i, x[i]);
+        b += (size_t)snprintf(dated + b, sizeof dated - b, "%zu-%02zu-%02d,%.6f\n", 1850 + i / 12,
+                              i % 12 + 1, mid[i % 12], x[i]);
+        c += (size_t)snprintf(units + c, sizeof units - c, "%zu,%.6f\n",
+                              365 * (i / 12) + (size_t)before[i % 12] + (size_t)mid[i % 12] - 1,
+                              x[i]);
+    }
+    const char *pp = check_tmp_path("plain.csv"), *dp = check_tmp_path("dated.csv"),
+               *up = check_tmp_path("units.csv");
+    check_write_file(pp, plain), check_write_file(dp, dated), check_write_file(up, units);
+    char args[1200];
+    snprintf(args, sizeof args, "screen --surrogates 0 --window 60 --bandwidth 24 %s", pp);
+    int rc = run(args);
+    double want = tau_of(out, "x");
+    snprintf(args, sizeof args, "screen --surrogates 0 --window 60 --bandwidth 24 --calendar "
+             "noleap %s", dp);
+    int rd = run(args);
+    double got_dated = tau_of(out, "x");
+    snprintf(args, sizeof args, "screen --surrogates 0 --window 60 --bandwidth 24 --calendar "
+             "noleap --time-units 'days since 1850-01-01' %s", up);
+    int ru = run(args);
+    double got_units = tau_of(out, "x");
+    CHECK(rc == 0 && rd == 0 && ru == 0 && isfinite(want) && got_dated == want &&
+              got_units == want,
+          "variance tau: month numbers %g, noleap dates %g, CF units %g", want, got_dated,
+          got_units);
+    snprintf(args, sizeof args, "detrend --calendar noleap --from 1860-01 --until 1861-12-31 %s",
+             dp);
+    CHECK(run(args) == 0 && out && strstr(out, "\nx,1860-01,") && strstr(out, "\nx,1861-12,") &&
+              !strstr(out, "1862-01"),
+          "--from/--until as dates, outputs stamped by month: %.80s", out ? out : "");
+    snprintf(args, sizeof args, "detrend --from 1860-13-01 %s", dp);
+    CHECK(run(args) == 1 && err && strstr(err, "option --from: '1860-13-01' is not a date"),
+          "a bad date in --from refused: %s", err ? err : "");
+    snprintf(args, sizeof args, "detrend --calendar lunar %s", dp);
+    CHECK(run(args) == 1 && err && strstr(err, "option --calendar: 'lunar' is not a CF calendar"),
+          "an unknown calendar refused: %s", err ? err : "");
+    snprintf(args, sizeof args, "detrend --time-units 'months since 1850-01-01' %s", up);
+    CHECK(run(args) == 1 && err && strstr(err, "option --time-units") &&
+              strstr(err, "360_day"),
+          "months on the standard calendar refused: %s", err ? err : "");
+}
+
+/* Ages, youngest first: the variance that rises in forward time still rises (tau > 0). */
+static void check_ages(void)
+{
+    double x[N];
+    draw(x);
+    static char text[N * 40];
+    size_t len = (size_t)snprintf(text, sizeof text, "age_ka,x\n");
+    for (size_t i = 0; i < N; i++) /* youngest first: sample i is the (N-1-i)-th in time */
+        len += (size_t)snprintf(text + len, sizeof text - len, "%zu,%.6f\n", 1000 + 10 * i,
+                                x[N - 1 - i]);
+    const char *path = check_tmp_path("ages.csv");
+    check_write_file(path, text);
+    char args[800];
+    snprintf(args, sizeof args, "screen --surrogates 0 --window 600 --bandwidth 240 --age %s",
+             path);
+    int rc = run(args);
+    double tau = tau_of(out, "x");
+    CHECK(rc == 0 && tau > 0.3, "ages youngest first: variance tau %g > 0.3 (forward time)",
+          tau);
+    snprintf(args, sizeof args, "detrend --age --from 1200 --until 1050 %s", path);
+    CHECK(run(args) == 0 && out && strstr(out, "\nx,1200,") && strstr(out, "\nx,1050,") &&
+              strstr(out, "\nx,1200,") < strstr(out, "\nx,1050,") &&
+              !strstr(out, "\nx,1040,") && !strstr(out, "\nx,1210,"),
+          "--from/--until ages in either order; rows oldest first, ages as written: %s",
+          err ? err : "");
+}
+
+/* -999 codes: warned about; with --missing they are missing and the warning goes. */
+static void check_codes(void)
+{
+    double x[N];
+    draw(x);
+    static char text[N * 40];
+    size_t len = (size_t)snprintf(text, sizeof text, "t,x\n");
+    for (size_t i = 0; i < N; i++)
+        len += (size_t)snprintf(text + len, sizeof text - len, "%zu,%.6f\n", i,
+                                i % 37 == 5 ? -999.0 : x[i]);
+    const char *path = check_tmp_path("codes.csv");
+    check_write_file(path, text);
+    char args[800];
+    snprintf(args, sizeof args, "screen --surrogates 0 %s", path);
+    CHECK(run(args) == 0 && err && strstr(err, "column 'x': the value -999 occurs 7 times, "
+          "first in row 7") && strstr(err, "give --missing -999"),
+          "an unflagged -999 warned about: %s", err ? err : "");
+    snprintf(args, sizeof args, "screen --surrogates 0 --missing -999 %s", path);
+    CHECK(run(args) == 0 && err && !strstr(err, "occurs") &&
+              strstr(err, "7 values given by --missing were read as missing"),
+          "--missing -999: read as missing: %s", err ? err : "");
+}
+
+void suite_dated_cli(void)
+{
+    check_same_numbers();
+    check_ages();
+    check_codes();
+    free(out), free(err);
+}
