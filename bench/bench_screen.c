@@ -96,8 +96,8 @@ static screen_config standard_config(void)
 {
     screen_config cfg = slowscan_screen_config_default();
     slowscan_detrend_parse_method("gaussian", &cfg.detrend);
-    cfg.bandwidth = (screen_length){10, 1};
-    cfg.window = (screen_length){50, 1};
+    cfg.bandwidth = (screen_length){.amount = 10, .percent = 1};
+    cfg.window = (screen_length){.amount = 50, .percent = 1};
     cfg.indicators[0] = INDICATOR_VARIANCE;
     cfg.indicators[1] = INDICATOR_LAG1;
     cfg.nindicators = 2;

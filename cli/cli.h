@@ -21,7 +21,11 @@ typedef struct {
     double amount;
     int percent;
     const char *text; /* as the user wrote it, for messages */
+    length_unit unit; /* a calendar unit (30y, 6mon, 10d), else the axis' own */
 } cli_length;
+
+/* The suffix that writes a length's unit ("%", "y", "mon", "d", or none). */
+const char *cli_length_suffix(int percent, length_unit unit);
 
 /* A list of lengths for robustness grids: "A:B:STEP" or "A,B,C" (all in % or all in time units). */
 enum { CLI_MAX_GRID = 64 };

@@ -191,9 +191,13 @@ static void grid_of(const cli_options *opts, const method_list *m, robustness_gr
 {
     *g = slowscan_robustness_grid_default();
     for (size_t w = 0; w < opts->nwindows; w++)
-        g->windows[w] = (screen_length){opts->windows[w].amount, opts->windows[w].percent};
+        g->windows[w] = (screen_length){.amount = opts->windows[w].amount,
+                                        .percent = opts->windows[w].percent,
+                                        .unit = opts->windows[w].unit};
     for (size_t b = 0; b < opts->nbandwidths; b++)
-        g->bandwidths[b] = (screen_length){opts->bandwidths[b].amount, opts->bandwidths[b].percent};
+        g->bandwidths[b] = (screen_length){.amount = opts->bandwidths[b].amount,
+                                           .percent = opts->bandwidths[b].percent,
+                                           .unit = opts->bandwidths[b].unit};
     for (size_t i = 0; i < m->count; i++)
         g->methods[i] = m->spec[i];
     g->nwindows = opts->nwindows;
@@ -245,7 +249,8 @@ static void default_cell(const cli_options *opts, const series_table *t, const m
     screen_config cfg;
     cli_screen_config(opts, &cfg);
     robustness_own_cell own = slowscan_robustness_own_cell(&grid, &cfg, t->n,
-                                                           t->time[t->n - 1] - t->time[0]);
+                                                           t->time[t->n - 1] - t->time[0],
+                                                           &t->axis);
     d->default_detrend = own.method;
     d->default_window = own.window;
     d->default_bandwidth = own.bandwidth;

@@ -58,7 +58,8 @@ static const char input_options[] =
     "  -o FILE              output file (default: standard output); written atomically\n"
     "  --progress, --no-progress   progress on stderr (default: on when stderr is a terminal)\n"
     "\n"
-    "LEN is N% of the analysed span or a number of time units.\n";
+    "LEN is N% of the analysed span, a number of time units, or for dated times a length\n"
+    "in calendar units: 30y, 6mon, 10d (the calendar's mean year; a month is a twelfth).\n";
 
 static const char rolling_options[] =
     "indicators:\n"

@@ -49,21 +49,47 @@ static int parse_positive(const char *name, const char *value, double *out)
     return rc;
 }
 
-/* "N%" or a bare number of time units; must be positive (the span check comes later). */
+/* Calendar units a length may carry, longest suffix first. */
+static const struct {
+    const char *suffix;
+    length_unit unit;
+} length_units[] = {{"mon", LENGTH_MONTHS}, {"y", LENGTH_YEARS}, {"d", LENGTH_DAYS}};
+
+const char *cli_length_suffix(int percent, length_unit unit)
+{
+    if (percent)
+        return "%";
+    for (size_t k = 0; k < sizeof length_units / sizeof length_units[0]; k++)
+        if (length_units[k].unit == unit)
+            return length_units[k].suffix;
+    return "";
+}
+
+/* "N%", "N" in time units, or N with a calendar unit (30y, 6mon, 10d: a dated time column
+ * is needed, checked per input); must be positive (the span check comes later). */
 static int parse_length(const char *name, const char *value, cli_length *len)
 {
     size_t n = strlen(value);
     char buf[64];
     len->text = value;
     len->percent = n > 0 && value[n - 1] == '%';
+    len->unit = LENGTH_AXIS;
     if (n == 0 || n >= sizeof buf) {
-        cli_error("option %s: '%s' is not a length (write N%% of the span or a number of time units)",
-                  name, value);
+        cli_error("option %s: '%s' is not a length (write N%% of the span, a number of time "
+                  "units, or N with y, mon or d)", name, value);
         return EXIT_BAD_INPUT;
     }
     memcpy(buf, value, n + 1);
     if (len->percent)
         buf[n - 1] = '\0';
+    for (size_t k = 0; !len->percent && k < sizeof length_units / sizeof length_units[0]; k++) {
+        size_t m = strlen(length_units[k].suffix);
+        if (n > m && strcmp(buf + n - m, length_units[k].suffix) == 0) {
+            buf[n - m] = '\0';
+            len->unit = length_units[k].unit;
+            break;
+        }
+    }
     int rc = parse_positive(name, buf, &len->amount);
     if (rc == EXIT_OK && len->percent && len->amount > 100) {
         cli_error("option %s: %s is more than 100%% of the span", name, value);
@@ -160,7 +186,8 @@ static int parse_grid(const char *name, const char *v, cli_length *items, char (
         if (parse_length(name, buf, &lo) || parse_length(name, second, &hi) ||
             parse_length(name, third + 1, &step))
             return EXIT_BAD_INPUT;
-        if (lo.percent != hi.percent || lo.percent != step.percent || hi.amount < lo.amount) {
+        if (lo.percent != hi.percent || lo.percent != step.percent || lo.unit != hi.unit ||
+            lo.unit != step.unit || hi.amount < lo.amount) {
             cli_error("option %s: '%s' mixes units or runs backwards", name, v);
             return EXIT_BAD_INPUT;
         }
@@ -169,8 +196,8 @@ static int parse_grid(const char *name, const char *v, cli_length *items, char (
                 cli_error("option %s: more than %d values", name, CLI_MAX_GRID);
                 return EXIT_BAD_INPUT;
             }
-            snprintf(texts[*count], 32, lo.percent ? "%g%%" : "%g", a);
-            items[*count] = (cli_length){a, lo.percent, texts[*count]};
+            snprintf(texts[*count], 32, "%g%s", a, cli_length_suffix(lo.percent, lo.unit));
+            items[*count] = (cli_length){a, lo.percent, texts[*count], lo.unit};
             (*count)++;
         }
         return EXIT_OK;

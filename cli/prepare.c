@@ -122,8 +122,10 @@ int cli_series_window(const cli_options *o, const series_table *t, size_t *windo
 {
     screen_config cfg;
     cli_screen_config(o, &cfg);
-    screen_detail d;
-    int st = slowscan_screen_window(&cfg, t->n, t->time[t->n - 1] - t->time[0], window, &d);
+    screen_detail d = {0};
+    int st = slowscan_screen_config_on_axis(&cfg, &t->axis, &d);
+    if (st == SLOWSCAN_OK)
+        st = slowscan_screen_window(&cfg, t->n, t->time[t->n - 1] - t->time[0], window, &d);
     if (st == SLOWSCAN_OK)
         return EXIT_OK;
     prepared_series named = {.name = "", .source = shown(t->source)};

@@ -35,9 +35,10 @@ void cli_science_defaults(const char *command, cli_options *o)
     o->detrend = c.detrend;
     o->detrend_text = slowscan_detrend_method_name(c.detrend.method);
     o->bandwidth = (cli_length){c.bandwidth.amount, c.bandwidth.percent,
-                                default_length_text(&c.bandwidth, bandwidth_text)};
+                                default_length_text(&c.bandwidth, bandwidth_text),
+                                c.bandwidth.unit};
     o->window = (cli_length){c.window.amount, c.window.percent,
-                             default_length_text(&c.window, window_text)};
+                             default_length_text(&c.window, window_text), c.window.unit};
     indicators_text[0] = 0;
     for (size_t j = 0; j < c.nindicators; j++) {
         o->indicators[j] = c.indicators[j];
@@ -68,13 +69,17 @@ void cli_screen_config(const cli_options *o, screen_config *cfg)
 {
     *cfg = slowscan_screen_config_default();
     cfg->detrend = o->detrend;
-    cfg->bandwidth = (screen_length){o->bandwidth.amount, o->bandwidth.percent};
+    cfg->bandwidth = (screen_length){.amount = o->bandwidth.amount, .percent = o->bandwidth.percent,
+                                     .unit = o->bandwidth.unit};
     cfg->deseason = o->deseason;
     cfg->deseason_window = o->deseason_window.text
-                               ? (screen_length){o->deseason_window.amount, o->deseason_window.percent}
-                               : (screen_length){NAN, 0};
+                               ? (screen_length){.amount = o->deseason_window.amount,
+                                                 .percent = o->deseason_window.percent,
+                                                 .unit = o->deseason_window.unit}
+                               : (screen_length){.amount = NAN, .percent = 0};
     cfg->harmonics = (int)o->harmonics;
-    cfg->window = (screen_length){o->window.amount, o->window.percent};
+    cfg->window = (screen_length){.amount = o->window.amount, .percent = o->window.percent,
+                                  .unit = o->window.unit};
     for (size_t j = 0; j < o->nindicators; j++)
         cfg->indicators[j] = o->indicators[j];
     cfg->nindicators = o->nindicators;

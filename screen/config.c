@@ -12,10 +12,10 @@ screen_config slowscan_screen_config_default(void)
 {
     screen_config c = {0};
     slowscan_detrend_parse_method("gaussian-linear", &c.detrend); /* DESIGN §3: no lag at the ends */
-    c.bandwidth = (screen_length){10, 1};
+    c.bandwidth = (screen_length){.amount = 10, .percent = 1};
     c.deseason = NAN;
-    c.deseason_window = (screen_length){NAN, 0};
-    c.window = (screen_length){50, 1};
+    c.deseason_window = (screen_length){.amount = NAN, .percent = 0};
+    c.window = (screen_length){.amount = 50, .percent = 1};
     c.indicators[0] = INDICATOR_VARIANCE;
     c.indicators[1] = INDICATOR_LAG1;
     c.nindicators = 2;

@@ -80,11 +80,22 @@ static const char *name_of(const message_out *m, screen_option option)
                                                             : slowscan_message_option_name(option);
 }
 
+static const char *unit_suffix(length_unit unit)
+{
+    switch (unit) {
+    case LENGTH_DAYS: return "d";
+    case LENGTH_MONTHS: return "mon";
+    case LENGTH_YEARS: return "y";
+    default: return "";
+    }
+}
+
 static const char *length_text(const screen_length *len, char buf[64])
 {
-    snprintf(buf, 64, len->percent ? "%g%%" : "%g", len->amount);
+    snprintf(buf, 64, "%g%s", len->amount, len->percent ? "%" : unit_suffix(len->unit));
     return buf;
 }
+
 
 /* A setting's value as the user wrote it, else as the config holds it. */
 static const char *value_of(const message_out *m, screen_option option, char buf[64])
@@ -173,6 +184,22 @@ static void refuse_preparation(message_out *m, const screen_detail *d)
 }
 
 /* The window and band refusals: about one setting, not one column. */
+/* A length in a unit the time axis cannot measure. */
+static void refuse_length_unit(message_out *m, const screen_detail *d)
+{
+    static const char *const unit_names[] = {"time units", "days", "months", "years"};
+    const char *unit = d->count < 4 ? unit_names[d->count] : "an unknown unit";
+    put_option(m, d->option);
+    if (d->need == TIME_AXIS_NUMBER)
+        put(m, " is in %s, but the time column holds plain numbers, not dates; give the "
+               "length in its own units or as N%%", unit);
+    else
+        put(m, " is in %s, which the time axis (%s) cannot measure; give it in %s or as N%%",
+            unit, d->need == TIME_AXIS_MONTHS ? "one row per month, counted in months"
+                                              : "one row per year, counted in years",
+            d->need == TIME_AXIS_MONTHS ? "mon or y" : "y");
+}
+
 static void refuse_setting(message_out *m, const screen_detail *d)
 {
     const char *indicator = slowscan_indicator_name((indicator_kind)d->indicator);
@@ -296,6 +323,9 @@ size_t slowscan_message_refusal(char *buf, size_t size, const screen_detail *d,
     case SCREEN_RULE_CONTROL_STEP:
     case SCREEN_RULE_CONTROL_FLAT:
         refuse_control(&m, d);
+        break;
+    case SCREEN_RULE_LENGTH_UNIT:
+        refuse_length_unit(&m, d);
         break;
     case SCREEN_RULE_NULL_TOO_LITTLE: /* said as a warning: the run goes on without it */
         put_column(&m);

@@ -142,11 +142,13 @@ static int detrend_series(const screen_config *cfg, const detrend_spec *spec,
     return SLOWSCAN_OK;
 }
 
-int slowscan_screen_prepare(const screen_config *cfg, const screen_input *in, screen_prepared *ps,
-                   screen_detail *d)
+int slowscan_screen_prepare(const screen_config *given, const screen_input *in,
+                            screen_prepared *ps, screen_detail *d)
 {
     memset(ps, 0, sizeof *ps);
     memset(d, 0, sizeof *d);
+    screen_config on_axis = *given;
+    const screen_config *cfg = &on_axis;
     ps->name = in->name;
     ps->source = in->source;
     ps->time_name = in->time_name;
@@ -155,7 +157,11 @@ int slowscan_screen_prepare(const screen_config *cfg, const screen_input *in, sc
     ps->axis = in->axis;
     ps->span = in->time[in->n - 1] - in->time[0];
     ps->dt = ps->span / (double)(in->n - 1);
-    int st = slowscan_screen_window(cfg, in->n, ps->span, &ps->window, d);
+    /* lengths in calendar units (30y) measured on this input's axis */
+    int st = slowscan_screen_config_on_axis(&on_axis, &in->axis, d);
+    if (st != SLOWSCAN_OK)
+        return st;
+    st = slowscan_screen_window(cfg, in->n, ps->span, &ps->window, d);
     detrend_spec spec = cfg->detrend;
     ps->bandwidth = NAN;
     if (st == SLOWSCAN_OK && slowscan_detrend_uses_bandwidth(spec.method)) {

@@ -206,6 +206,25 @@ static int method_cells(method_pass *p)
     return st;
 }
 
+/* The grid's windows and bandwidths in the axis' own unit (a refusal names the first that
+ * cannot be measured on it). */
+static int grid_on_axis(robustness_grid *grid, const time_axis *axis, screen_detail *d)
+{
+    for (size_t k = 0; k < grid->nwindows + grid->nbandwidths; k++) {
+        int is_window = k < grid->nwindows;
+        screen_length *len = is_window ? &grid->windows[k] : &grid->bandwidths[k - grid->nwindows];
+        if (slowscan_screen_length_on_axis(len, axis, len) != SLOWSCAN_OK) {
+            d->rule = SCREEN_RULE_LENGTH_UNIT;
+            d->option = is_window ? SCREEN_OPTION_WINDOW : SCREEN_OPTION_BANDWIDTH;
+            d->status = SLOWSCAN_EINVAL;
+            d->count = (size_t)len->unit;
+            d->need = (size_t)axis->unit;
+            return SLOWSCAN_EINVAL;
+        }
+    }
+    return SLOWSCAN_OK;
+}
+
 int slowscan_robustness_series(robustness_workspace *ws, const robustness_grid *grid,
                                const screen_config *cfg, const screen_input *in,
                                robustness_cell_sink sink, void *context, screen_detail *detail,
@@ -217,8 +236,17 @@ int slowscan_robustness_series(robustness_workspace *ws, const robustness_grid *
     if (grid->nwindows > ROBUSTNESS_MAX_LENGTHS || grid->nbandwidths > ROBUSTNESS_MAX_LENGTHS ||
         grid->nmethods > ROBUSTNESS_MAX_METHODS || in->n < 2)
         return refuse(detail, SCREEN_RULE_NONE, SLOWSCAN_EINVAL);
+    /* lengths in calendar units (30y) measured on this input's axis, once */
+    robustness_grid on_axis = *grid;
+    screen_config base = *cfg;
+    int st = grid_on_axis(&on_axis, &in->axis, detail);
+    if (st == SLOWSCAN_OK)
+        st = slowscan_screen_config_on_axis(&base, &in->axis, detail);
+    if (st != SLOWSCAN_OK)
+        return st;
+    grid = &on_axis;
+    cfg = &base;
     size_t nm = grid->nmethods ? grid->nmethods : 1;
-    int st = SLOWSCAN_OK;
     for (size_t i = 0; st == SLOWSCAN_OK && i < nm; i++) {
         screen_config method = *cfg;
         if (grid->nmethods)
@@ -235,10 +263,19 @@ static double length_in_time(const screen_length *len, double span)
     return len->percent ? len->amount / 100.0 * span : len->amount;
 }
 
-robustness_own_cell slowscan_robustness_own_cell(const robustness_grid *grid,
-                                                 const screen_config *cfg, size_t n, double span)
+robustness_own_cell slowscan_robustness_own_cell(const robustness_grid *given,
+                                                 const screen_config *given_cfg, size_t n,
+                                                 double span, const time_axis *axis)
 {
     robustness_own_cell own = {-1, -1, -1};
+    robustness_grid on_axis = *given;
+    screen_config base = *given_cfg;
+    screen_detail refused = {0};
+    if (grid_on_axis(&on_axis, axis, &refused) != SLOWSCAN_OK ||
+        slowscan_screen_config_on_axis(&base, axis, &refused) != SLOWSCAN_OK)
+        return own;
+    const robustness_grid *grid = &on_axis;
+    const screen_config *cfg = &base;
     for (size_t i = 0; i < grid->nmethods && own.method < 0; i++)
         if (grid->methods[i].method == cfg->detrend.method &&
             grid->methods[i].degree == cfg->detrend.degree)

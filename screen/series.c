@@ -155,8 +155,8 @@ int slowscan_screen_attach_control(const screen_config *cfg, screen_prepared *ps
         return st;
     }
     screen_config same = *cfg;
-    same.bandwidth = (screen_length){isnan(ps->bandwidth) ? 1.0 : ps->bandwidth, 0};
-    same.window = (screen_length){(double)(ps->window - 1) * ps->dt, 0};
+    same.bandwidth = (screen_length){.amount = isnan(ps->bandwidth) ? 1.0 : ps->bandwidth, .percent = 0};
+    same.window = (screen_length){.amount = (double)(ps->window - 1) * ps->dt, .percent = 0};
     screen_input cut = *control;
     cut.n = ps->n;
     cut.control = NULL;

@@ -4,6 +4,7 @@
  * (the dates only name the samples), and the direction of time (common practice, no source:
  * an age axis runs backward). */
 #include "check.h"
+#include "slowscan/screen.h"
 
 #include <math.h>
 #include <stdio.h>
@@ -152,10 +153,61 @@ static void check_codes(void)
           "--missing -999: read as missing: %s", err ? err : "");
 }
 
+/* Lengths with calendar units: the year of each calendar (Gregorian 365.2425 days: 97 leap
+ * years in 400, common practice, no source; the others by their definitions, CF 1.9 4.4.1). */
+static void check_length_units(void)
+{
+    static const struct {
+        length_unit unit;
+        time_axis_unit axis;
+        calendar_kind calendar;
+        double want; /* axis units per unit, NaN: refused */
+    } cases[] = {{LENGTH_YEARS, TIME_AXIS_DAYS, CALENDAR_STANDARD, 365.2425},
+                 {LENGTH_YEARS, TIME_AXIS_DAYS, CALENDAR_JULIAN, 365.25},
+                 {LENGTH_YEARS, TIME_AXIS_DAYS, CALENDAR_NOLEAP, 365},
+                 {LENGTH_YEARS, TIME_AXIS_DAYS, CALENDAR_ALL_LEAP, 366},
+                 {LENGTH_MONTHS, TIME_AXIS_DAYS, CALENDAR_360_DAY, 30},
+                 {LENGTH_DAYS, TIME_AXIS_DAYS, CALENDAR_NOLEAP, 1},
+                 {LENGTH_YEARS, TIME_AXIS_MONTHS, CALENDAR_NOLEAP, 12},
+                 {LENGTH_MONTHS, TIME_AXIS_MONTHS, CALENDAR_NOLEAP, 1},
+                 {LENGTH_DAYS, TIME_AXIS_MONTHS, CALENDAR_NOLEAP, NAN},
+                 {LENGTH_MONTHS, TIME_AXIS_YEARS, CALENDAR_STANDARD, 1.0 / 12},
+                 {LENGTH_DAYS, TIME_AXIS_YEARS, CALENDAR_STANDARD, NAN},
+                 {LENGTH_YEARS, TIME_AXIS_NUMBER, CALENDAR_STANDARD, NAN}};
+    for (size_t k = 0; k < sizeof cases / sizeof cases[0]; k++) {
+        screen_length len = {.amount = 2, .percent = 0, .unit = cases[k].unit}, out;
+        time_axis axis = {cases[k].axis, cases[k].calendar, DATE_DAY, -1, 0};
+        int st = slowscan_screen_length_on_axis(&len, &axis, &out);
+        int ok = isnan(cases[k].want) ? st != 0
+                                      : st == 0 && out.unit == LENGTH_AXIS &&
+                                            fabs(out.amount - 2 * cases[k].want) < 1e-12;
+        CHECK(ok, "2 of unit %d on axis %d (%s): status %d, %g", (int)cases[k].unit,
+              (int)cases[k].axis, slowscan_calendar_name(cases[k].calendar), st, out.amount);
+    }
+    /* the command: 5y and 60 months are the same window on a monthly record */
+    const char *path = check_tmp_path("dated.csv");
+    char args[800];
+    snprintf(args, sizeof args, "screen --surrogates 0 --window 5y --bandwidth 2y --calendar "
+             "noleap %s", path);
+    int a = run(args);
+    char *years = out ? strdup(out) : NULL;
+    snprintf(args, sizeof args, "screen --surrogates 0 --window 60 --bandwidth 24 --calendar "
+             "noleap %s", path);
+    int b = run(args);
+    CHECK(a == 0 && b == 0 && years && out && strcmp(years, out) == 0,
+          "--window 5y --bandwidth 2y = --window 60 --bandwidth 24 on months");
+    free(years);
+    snprintf(args, sizeof args, "screen --surrogates 0 --window 30d --calendar noleap %s", path);
+    CHECK(run(args) == 1 && err && strstr(err, "option --window 30d is in days, which the time "
+          "axis (one row per month, counted in months) cannot measure"),
+          "days on a monthly record refused: %s", err ? err : "");
+}
+
 void suite_dated_cli(void)
 {
     check_same_numbers();
     check_ages();
     check_codes();
+    check_length_units();
     free(out), free(err);
 }

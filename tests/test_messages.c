@@ -159,7 +159,7 @@ static screen_length parse_length(const char *text)
 {
     char *end;
     double v = strtod(text, &end);
-    return (screen_length){v, *end == '%'};
+    return (screen_length){.amount = v, .percent = *end == '%'};
 }
 
 static void configure_indicators(screen_config *cfg, const char *list)
@@ -545,7 +545,7 @@ static void other_callers(void)
     CHECK(strcmp(got, "option --window 50% gives 2 samples per window; at least 3 are needed") == 0,
           "no context: %s", got);
     screen_config cfg = slowscan_screen_config_default();
-    cfg.window = (screen_length){12.5, 0};
+    cfg.window = (screen_length){.amount = 12.5, .percent = 0};
     cfg.detrend = (detrend_spec){DETREND_POLY, 0, 4};
     const char *names[SCREEN_OPTION_COUNT] = {[SCREEN_OPTION_WINDOW] = "window=",
                                               [SCREEN_OPTION_DETREND] = "detrend="};

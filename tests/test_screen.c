@@ -161,13 +161,13 @@ static void refusals_and_warnings(void)
     for (size_t j = 0; st == SLOWSCAN_OK && j < r.ntests; j++)
         CHECK(isnan(r.tests[j].statistic) && r.tests[j].reason == SCREEN_REASON_NO_VARIATION,
               "constant series, test %zu: no variation", j);
-    cfg.window = (screen_length){2, 1}; /* round(0.02 x 39) + 1 = 2 samples */
+    cfg.window = (screen_length){.amount = 2, .percent = 1}; /* round(0.02 x 39) + 1 = 2 samples */
     in.values = wavy;
     st = slowscan_screen_series(ws, &cfg, &in, &r, &d);
     CHECK(st == SLOWSCAN_EINVAL && d.rule == SCREEN_RULE_WINDOW_TOO_FEW && d.count == 2 &&
           d.option == SCREEN_OPTION_WINDOW, "a two-sample window is refused (rule %d)", d.rule);
-    cfg.window = (screen_length){50, 1};
-    cfg.bandwidth = (screen_length){100, 0}; /* longer than the span 39 */
+    cfg.window = (screen_length){.amount = 50, .percent = 1};
+    cfg.bandwidth = (screen_length){.amount = 100, .percent = 0}; /* longer than the span 39 */
     st = slowscan_screen_series(ws, &cfg, &in, &r, &d);
     CHECK(st == SLOWSCAN_EINVAL && d.rule == SCREEN_RULE_LONGER_THAN_SPAN &&
           d.option == SCREEN_OPTION_BANDWIDTH && d.limit == 39, "a bandwidth beyond the span");

@@ -55,11 +55,11 @@ static size_t named(const series_table *t, const char *name)
 static robustness_grid stations_grid(void)
 {
     robustness_grid g = slowscan_robustness_grid_default();
-    g.windows[0] = (screen_length){40, 1};
-    g.windows[1] = (screen_length){60, 1};
+    g.windows[0] = (screen_length){.amount = 40, .percent = 1};
+    g.windows[1] = (screen_length){.amount = 60, .percent = 1};
     g.nwindows = 2;
-    g.bandwidths[0] = (screen_length){5, 1};
-    g.bandwidths[1] = (screen_length){15, 1};
+    g.bandwidths[0] = (screen_length){.amount = 5, .percent = 1};
+    g.bandwidths[1] = (screen_length){.amount = 15, .percent = 1};
     g.nbandwidths = 2;
     slowscan_detrend_parse_method("gaussian-linear", &g.methods[0]);
     slowscan_detrend_parse_method("linear", &g.methods[1]);
@@ -183,8 +183,8 @@ static void refusal_and_own_cell(void)
     cfg.surrogates = 0;
     cfg.drift_test = 0;
     robustness_grid grid = slowscan_robustness_grid_default();
-    grid.windows[0] = (screen_length){50, 1};
-    grid.windows[1] = (screen_length){t.time[1] - t.time[0], 0};
+    grid.windows[0] = (screen_length){.amount = 50, .percent = 1};
+    grid.windows[1] = (screen_length){.amount = t.time[1] - t.time[0], .percent = 0};
     grid.nwindows = 2;
     screen_input in = station(&t, 1);
     robustness_workspace *ws = slowscan_robustness_workspace_alloc(1);
@@ -198,24 +198,24 @@ static void refusal_and_own_cell(void)
           "window %zu, %zu cells before", st, d.rule, at.window_index, cells);
     CHECK(ws && slowscan_robustness_workspace_prepared(ws, 0) &&
               slowscan_robustness_workspace_prepared(ws, 0)->n == t.n, "prepared series kept");
-    grid.windows[1] = (screen_length){60, 1};
+    grid.windows[1] = (screen_length){.amount = 60, .percent = 1};
     grid.windows[2] = cfg.window; /* 50% again: the first in grid order wins */
     grid.nwindows = 3;
-    grid.bandwidths[0] = (screen_length){5, 1};
-    grid.bandwidths[1] = (screen_length){10, 1};
+    grid.bandwidths[0] = (screen_length){.amount = 5, .percent = 1};
+    grid.bandwidths[1] = (screen_length){.amount = 10, .percent = 1};
     grid.nbandwidths = 2;
     slowscan_detrend_parse_method("linear", &grid.methods[0]);
     grid.methods[1] = cfg.detrend;
     grid.nmethods = 2;
     double span = t.time[t.n - 1] - t.time[0];
-    robustness_own_cell own = slowscan_robustness_own_cell(&grid, &cfg, t.n, span);
+    robustness_own_cell own = slowscan_robustness_own_cell(&grid, &cfg, t.n, span, &t.axis);
     CHECK(own.method == 1 && own.window == 0 && own.bandwidth == 1, "own cell %ld/%ld/%ld",
           own.method, own.window, own.bandwidth);
-    cfg.bandwidth = (screen_length){0.1 * span, 0}; /* the same in time units */
-    own = slowscan_robustness_own_cell(&grid, &cfg, t.n, span);
+    cfg.bandwidth = (screen_length){.amount = 0.1 * span, .percent = 0}; /* the same in time units */
+    own = slowscan_robustness_own_cell(&grid, &cfg, t.n, span, &t.axis);
     CHECK(own.bandwidth == 1, "own bandwidth in time units: %ld", own.bandwidth);
     grid.nmethods = 1;
-    own = slowscan_robustness_own_cell(&grid, &cfg, t.n, span);
+    own = slowscan_robustness_own_cell(&grid, &cfg, t.n, span, &t.axis);
     CHECK(own.method == -1 && own.window == -1, "method off the grid");
     slowscan_robustness_workspace_free(ws);
     slowscan_series_table_free(&t);

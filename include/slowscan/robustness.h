@@ -96,13 +96,14 @@ const screen_prepared *slowscan_robustness_workspace_prepared(const robustness_w
  * series of n samples spanning `span`: methods compared by kind and degree, windows in
  * samples, bandwidths in time units (relative 1e-9); -1 where it is not on the grid (window
  * and bandwidth stay -1 when the method is not, or cfg's window is refused). A method
- * without a bandwidth has bandwidth 0. */
+ * without a bandwidth has bandwidth 0. Lengths in calendar units are measured on `axis`. */
 typedef struct {
     long method, window, bandwidth;
 } robustness_own_cell;
 SLOWSCAN_API
 robustness_own_cell slowscan_robustness_own_cell(const robustness_grid *grid,
-                                                 const screen_config *cfg, size_t n, double span);
+                                                 const screen_config *cfg, size_t n, double span,
+                                                 const time_axis *axis);
 
 /* How the cells of one test (and method) came out. */
 typedef struct {

@@ -21,10 +21,23 @@
 
 #include <stddef.h>
 
-/* A length: `amount` percent of the span when `percent`, else time units. */
+/* The unit of a length that is not a percentage: the time axis' own unit, or a calendar
+ * unit converted on a dated axis (calendar.h) — a year is the calendar's mean year (365.2425
+ * days standard and proleptic_gregorian, 365.25 julian, 365 noleap, 366 all_leap, 360
+ * 360_day), a month a twelfth of it; on a month index a year is 12 months and a day has no
+ * meaning, on a year index only whole years exist. */
+typedef enum {
+    LENGTH_AXIS = 0, /* the axis' own unit (time units of a numeric column) */
+    LENGTH_DAYS,
+    LENGTH_MONTHS,
+    LENGTH_YEARS
+} length_unit;
+
+/* A length: `amount` percent of the span when `percent`, else `amount` in `unit`. */
 typedef struct {
     double amount;
     int percent;
+    length_unit unit;
 } screen_length;
 
 /* Everything that decides the numbers of a screening run. */
@@ -200,8 +213,10 @@ typedef enum {
     SCREEN_RULE_CONTROL_STEP,       /* the control's step (value) is not the series' (limit) */
     SCREEN_RULE_CONTROL_FLAT,       /* the control run has no usable variation */
     SCREEN_RULE_NO_MEMORY,
-    SCREEN_RULE_NULL_TOO_LITTLE     /* no replicates: the series does not vary (status ECONST)
+    SCREEN_RULE_NULL_TOO_LITTLE,    /* no replicates: the series does not vary (status ECONST)
                                        or has count finite samples, fewer than need */
+    SCREEN_RULE_LENGTH_UNIT         /* a length in a calendar unit (count: length_unit) the
+                                       time axis (need: time_axis_unit) cannot measure */
 } screen_rule;
 
 /* Which setting a rule is about. */
@@ -259,6 +274,19 @@ SLOWSCAN_API
 int slowscan_screen_attach_control(const screen_config *cfg, screen_prepared *ps,
                           const screen_input *control, screen_detail *detail);
 /* W of cfg->window for a series of n samples spanning `span`, or a refusal in *detail. */
+/* A length in a calendar unit as a length in the axis' own unit (percentages and axis units
+ * unchanged). SLOWSCAN_EINVAL when the axis cannot measure it: any calendar unit on a plain
+ * number axis, days on a month or year index. */
+SLOWSCAN_API
+int slowscan_screen_length_on_axis(const screen_length *len, const time_axis *axis,
+                                   screen_length *out);
+/* Every length of cfg (window, bandwidth, deseason window) in the axis' own unit; a refusal
+ * (SCREEN_RULE_LENGTH_UNIT) names the first that cannot be. slowscan_screen_prepare does
+ * this with the input's axis itself; callers resolving windows beforehand call it first. */
+SLOWSCAN_API
+int slowscan_screen_config_on_axis(screen_config *cfg, const time_axis *axis,
+                                   screen_detail *detail);
+
 SLOWSCAN_API
 int slowscan_screen_window(const screen_config *cfg, size_t n, double span, size_t *window,
                   screen_detail *detail);
