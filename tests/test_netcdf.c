@@ -170,8 +170,40 @@ static void check_bad_files(void)
     }
 }
 
+/* The same cells as tables of at most five series, the all-missing one left out. */
+static void check_tables(void)
+{
+    static double ref[VARS * CELLS * NT];
+    const char *path = check_tmp_path("grid.nc");
+    if (!make_grid(path, "NETCDF4", "map_chunks", ref))
+        return;
+    netcdf_reader *r;
+    io_error err;
+    int st = slowscan_netcdf_open(path, NULL, &r, &err);
+    size_t tables = 0, series = 0, all_missing = 0, bad = 0, cell = 0;
+    series_table t;
+    while (st == SLOWSCAN_OK && (st = slowscan_netcdf_next_table(r, 5, &t, &all_missing, &err)) ==
+                                    SLOWSCAN_OK) {
+        tables++;
+        for (size_t k = 0; k < t.nseries; k++, cell++) {
+            if (cell == 7)
+                cell++; /* tas[lat=0,lon=15], all missing */
+            bad += check_max_diff(t.values[k], ref + cell * NT, NT) > 1e-9 * 300;
+        }
+        series += t.nseries;
+        bad += t.n != NT || t.axis.unit != TIME_AXIS_MONTHS || t.rows != NULL;
+        slowscan_series_table_free(&t);
+    }
+    CHECK(st == NETCDF_END && tables == 5 && series == 23 && all_missing == 1 && bad == 0,
+          "tables of at most 5 cells: %zu tables, %zu series, %zu all missing, %zu bad (%s)",
+          tables, series, all_missing, bad, err.message);
+    if (r)
+        slowscan_netcdf_close(r);
+}
+
 void suite_netcdf(void)
 {
+    check_tables();
     check_layout("NETCDF3_64BIT_OFFSET", "contiguous", 0);
     check_layout("NETCDF3_64BIT_OFFSET", "contiguous", 2 * 2 * NT * sizeof(double));
     check_layout("NETCDF4", "series_chunks", 5 * 2 * NT * sizeof(double));

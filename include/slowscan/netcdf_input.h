@@ -85,4 +85,13 @@ enum { NETCDF_END = -1 };
 SLOWSCAN_API
 int slowscan_netcdf_next(netcdf_reader *reader, netcdf_series *series, io_error *err);
 
+/* The next cells as a series table (io.h) of at most max_series series with data: the
+ * file's time axis (copied), one series per cell (names as slowscan_netcdf_next gives them,
+ * values copied), rows NULL. Cells with no value at all (land in an ocean field) are not
+ * tables' series: *all_missing (may be NULL) counts them. SLOWSCAN_OK with a table,
+ * NETCDF_END when no cell is left (table zeroed), or a status with err filled. */
+SLOWSCAN_API
+int slowscan_netcdf_next_table(netcdf_reader *reader, size_t max_series, series_table *table,
+                               size_t *all_missing, io_error *err);
+
 #endif
