@@ -58,7 +58,7 @@ static int draw_series(const cli_options *opts, const prepared_series *ps, void 
     for (size_t j = 0; j < tests; j++)
         list[j] = test_of(&run->rows[first + j], j < opts->nindicators ? values[j] : NULL);
     report_series_data data = {ps->name, ps->time_name, ps->source, ps->n, ps->time, ps->value,
-                               ps->trend, ps->residual, ps->window, list, tests};
+                               ps->trend, ps->window, list, tests};
     if (rc == EXIT_OK)
         rc = cli_figure_draw(run->figures, &slowscan_report_series_figure, &data, "screen", ps->name);
     if (!ps->constant)

@@ -108,6 +108,38 @@ void report_path(const report_axes *a, size_t n, const double *x, const double *
     plwidth(1.0);
 }
 
+void report_path_stepped(const report_axes *a, size_t n, const double *x, const double *y, int colour,
+                         double width)
+{
+    size_t step = 0, last = n, m = 0;
+    for (size_t i = 0; i < n; i++)
+        if (isfinite(y[i])) {
+            if (last < n && (step == 0 || i - last < step))
+                step = i - last;
+            last = i;
+        }
+    double *px = step > 1 ? malloc(4 * n * sizeof *px) : NULL;
+    if (!px) { /* values at every sample (or no memory): the path as it is */
+        report_path(a, n, x, y, colour, width);
+        return;
+    }
+    double *py = px + 2 * n;
+    last = n;
+    for (size_t i = 0; i < n; i++) {
+        if (!isfinite(y[i]))
+            continue;
+        if (last < n && i - last > step) { /* a real gap: missing windows */
+            px[m] = x[i];
+            py[m++] = NAN;
+        }
+        px[m] = x[i];
+        py[m++] = y[i];
+        last = i;
+    }
+    report_path(a, m, px, py, colour, width);
+    free(px);
+}
+
 void report_segment(double x0, double y0, double x1, double y1, int colour, double width)
 {
     PLFLT x[2] = {x0, x1}, y[2] = {y0, y1};

@@ -43,13 +43,17 @@ static void draw_extension(const report_crossing *c)
     pllsty(1);
 }
 
-/* A note in the panel's lower right corner. */
-static void corner_note(report_figure *fig, const report_axes *a, const char *text)
+/* Room under the x label for the note on the extrapolation, page units. */
+enum { NOTE_ROOM = 24 };
+
+/* The note on the extrapolation, on its own line under the panel's x label (inside the
+ * panel it would cross the lines it explains). */
+static void extrapolation_note(report_figure *fig, const report_axes *a, const char *text)
 {
     char fitted[REPORT_TEXT_MAX];
-    double line = report_line_height(fig, REPORT_SIZE_SMALL);
-    report_say(fig, report_fit(fig, text, REPORT_SIZE_SMALL, a->area.x1 - a->area.x0 - 12, fitted),
-               REPORT_SIZE_SMALL, 1.0, a->area.x1 - 6, a->area.y1 - 6 - line, INK_MARK);
+    double top = a->area.y1 + NOTE_ROOM + 6 + report_line_height(fig, REPORT_SIZE_SMALL);
+    report_say(fig, report_fit(fig, text, REPORT_SIZE_BODY, a->area.x1 - a->area.x0, fitted),
+               REPORT_SIZE_BODY, 1.0, a->area.x1, top, INK_MARK);
 }
 
 static void draw_crossing(report_figure *fig, const report_axes *a, const report_recovery_data *d)
@@ -60,12 +64,12 @@ static void draw_crossing(report_figure *fig, const report_axes *a, const report
     plgvpw(&x0, &x1, &y0, &y1);
     if (c->beyond_horizon) {
         draw_extension(c);
-        corner_note(fig, a, "extrapolation: no crossing of lambda = 0 within twice the record");
+        extrapolation_note(fig, a, "extrapolation: no crossing of lambda = 0 within twice the record");
         return;
     }
     if (!c->has_crossing)
         return;
-    report_rect(last, x1, y0, y1, INK_WINDOW);
+    report_rect(last, x1, y0, y1, INK_AHEAD);
     draw_extension(c);
     if (isfinite(c->lo) && !isnan(c->hi)) { /* an interval open above runs off the panel */
         PLFLT bx[2] = {fmax(c->lo, x0), fmin(c->hi, x1)}, by[2] = {0.0, 0.0};
@@ -84,7 +88,7 @@ static void draw_crossing(report_figure *fig, const report_axes *a, const report
     snprintf(text, sizeof text, "extrapolation, not a forecast: lambda = 0 at %s (95%%: %s to %s)",
              report_number(t, c->time), report_number(lo, c->lo),
              isfinite(c->hi) ? report_number(hi, c->hi) : "beyond");
-    corner_note(fig, a, text);
+    extrapolation_note(fig, a, text);
 }
 
 static int recovery_draw(report_figure *fig, const void *data)
@@ -102,6 +106,7 @@ static int recovery_draw(report_figure *fig, const void *data)
     report_heading(fig, report_fit(fig, heading, REPORT_SIZE_HEADING, REPORT_PAGE_WIDTH - 20, fitted));
     report_ticks xt, yt;
     report_axes a = report_cell_axes(fig, 0, 0, d->time[0], time_end(d), lo, hi, &xt, &yt);
+    a.area.y1 -= NOTE_ROOM;
     report_axes_enter(&a);
     if (d->crossing)
         draw_crossing(fig, &a, d);

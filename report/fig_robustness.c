@@ -104,6 +104,17 @@ static void grid_line(const double *v, size_t n, size_t stride)
     }
 }
 
+/* A panel's title: the test, and the detrending method when the figure has several (one
+ * method is named in the heading). */
+static void panel_title(const report_robustness_data *d, size_t method, const char *test, char *out,
+                        size_t size)
+{
+    if (d->ndetrends > 1)
+        snprintf(out, size, "%s | %s", test, d->detrend_labels[method]);
+    else
+        snprintf(out, size, "%s", test);
+}
+
 static void indicator_panel(report_figure *fig, const report_robustness_data *d, const panel_place *at)
 {
     int has_bw = !d->detrend_has_bandwidth || d->detrend_has_bandwidth[at->method];
@@ -132,8 +143,7 @@ static void indicator_panel(report_figure *fig, const report_robustness_data *d,
             mark(&a, (double)w, tau[k], p[k], d->have_p, own);
         }
     char title[300];
-    const char *method = d->ndetrends ? d->detrend_labels[at->method] : "";
-    snprintf(title, sizeof title, "%s, %s detrending: tau", d->indicator_labels[at->test], method);
+    panel_title(d, at->method, d->indicator_labels[at->test], title, sizeof title);
     int percent = nw > 0 && strchr(d->window_labels[0], '%') != NULL;
     char xlabel[200];
     snprintf(xlabel, sizeof xlabel, "window (%s)", percent ? "% of the span" : d->time_name);
@@ -167,8 +177,7 @@ static void drift_panel(report_figure *fig, const report_robustness_data *d, con
              (long)at->method == d->default_detrend && (long)b == d->default_bandwidth);
     }
     char title[300];
-    snprintf(title, sizeof title, "recovery_trend, %s detrending: t(a1)",
-             d->ndetrends ? d->detrend_labels[at->method] : "");
+    panel_title(d, at->method, "recovery_trend", title, sizeof title);
     report_cell_labels(fig, &a, at->row, at->col, title, "bandwidth", "t(a1)");
 }
 
@@ -194,13 +203,14 @@ static void draw_key(report_figure *fig, const report_robustness_data *d)
     report_say(fig, "ring: own choice", REPORT_SIZE_SMALL, 0.0, x, y + line, INK_MARK);
 }
 
-/* One axis for every tau panel: the values and zero, within [-1, 1]. */
+/* One axis for every tau panel, within [-1, 1]: the spread over the grid is what the figure
+ * is for, so zero is shown (a faint line) only when the values come near it. */
 static void tau_range(const report_robustness_data *d, size_t methods, double *lo, double *hi)
 {
     const double *all[1] = {d->tau};
     report_range(all, 1, methods * d->nindicators * d->nwindows * d->nbandwidths, lo, hi);
-    *lo = fmax(-1.0, fmin(*lo, -0.05));
-    *hi = fmin(1.0, fmax(*hi, 0.05));
+    *lo = fmax(-1.0, *lo);
+    *hi = fmin(1.0, *hi);
 }
 
 static int robustness_draw(report_figure *fig, const void *data)
@@ -210,8 +220,12 @@ static int robustness_draw(report_figure *fig, const void *data)
     if (d->nwindows == 0 || d->nbandwidths == 0 || tests == 0)
         return SLOWSCAN_EINVAL;
     char heading[REPORT_TEXT_MAX], fitted[REPORT_TEXT_MAX];
-    snprintf(heading, sizeof heading, "%s: does the trend hold over the window and bandwidth grid?",
-             d->name);
+    if (d->ndetrends == 1)
+        snprintf(heading, sizeof heading, "%s: does the trend hold over windows and bandwidths? "
+                 "(%s detrending)", d->name, d->detrend_labels[0]);
+    else
+        snprintf(heading, sizeof heading, "%s: does the trend hold over windows, bandwidths and "
+                 "detrending?", d->name);
     report_heading(fig, report_fit(fig, heading, REPORT_SIZE_HEADING, REPORT_PAGE_WIDTH - 20, fitted));
     panel_place at = {0, 0, 0, 0, -1, 1};
     tau_range(d, methods, &at.tau_lo, &at.tau_hi);

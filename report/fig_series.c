@@ -227,7 +227,7 @@ static void draw_traces(report_figure *fig, const report_series_data *d, const s
     size_t drawn = 0;
     for (size_t j = 0; j < d->ntests && j < MAX_TESTS; j++)
         if (p->z[j]) {
-            report_path(&a, d->n, d->time, p->z[j], trace_colour(j), 1.4);
+            report_path_stepped(&a, d->n, d->time, p->z[j], trace_colour(j), 1.4);
             drawn++;
         }
     end_labels(fig, d, p, &a);

@@ -26,6 +26,7 @@ enum {
     INK_NULL,     /* blue-grey: null intervals, plain points */
     INK_MISSING,  /* mid grey: NA */
     INK_DIM,      /* mid grey text: secondary notes */
+    INK_AHEAD,    /* pale lilac: time beyond the record (extrapolation) */
     INK_TRACE0,   /* the indicator traces: INK_TRACE0 + k, REPORT_TRACES of them */
     REPORT_TRACES = 11,
     INK_COUNT = INK_TRACE0 + REPORT_TRACES
@@ -147,6 +148,10 @@ const char *report_number(char buf[32], double v);
  * the same and the file does not grow with n). */
 void report_path(const report_axes *a, size_t n, const double *x, const double *y, int colour,
                  double width);
+/* A path with values every k-th sample (indicators computed on a coarser step): joined
+ * from value to value, broken only where more than k samples lack one. */
+void report_path_stepped(const report_axes *a, size_t n, const double *x, const double *y, int colour,
+                         double width);
 /* The area between lo and hi, filled where both are finite. */
 void report_band(size_t n, const double *x, const double *lo, const double *hi, int colour);
 /* Horizontal / vertical lines across the current window; dashed when `dashed`. */

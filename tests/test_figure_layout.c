@@ -158,7 +158,7 @@ static void draw_series_case(report_batch *batch, size_t ntests, size_t n, const
             tests[j].null_q99 = 2.6;
         }
     }
-    report_series_data data = {name, "year", "invented.csv", n, s.time, s.value, s.trend, NULL,
+    report_series_data data = {name, "year", "invented.csv", n, s.time, s.value, s.trend,
                                n / 2 + 1, tests, ntests};
     io_error err = {{0}};
     CHECK(slowscan_report_batch_draw(batch, &slowscan_report_series_figure, &data, "series", name, &err) ==
@@ -196,6 +196,33 @@ static void test_series_geometry(void)
         free(m.boxes);
     }
     slowscan_report_batch_free(batch);
+}
+
+static long file_size(const char *path)
+{
+    struct stat st;
+    return stat(path, &st) == 0 ? (long)st.st_size : -1;
+}
+
+/* Long paths are reduced per pixel column: the SVG of 10^6 samples is about the size of the
+ * one of 10^5 (drawn point by point it would be ten times larger). */
+static void test_decimation(void)
+{
+    char dir[512], small[700], large[700];
+    snprintf(dir, sizeof dir, "%s", check_tmp_path("geometry-svg"));
+    report_batch *batch = NULL;
+    io_error err = {{0}};
+    CHECK(slowscan_report_batch_open(&batch, dir, REPORT_SVG, &err) == SLOWSCAN_OK, "batch: %s", err.message);
+    if (!batch)
+        return;
+    draw_series_case(batch, 6, 100000, "n100000");
+    draw_series_case(batch, 6, 1000000, "n1000000");
+    CHECK(slowscan_report_batch_commit(batch, &err) == SLOWSCAN_OK, "commit: %s", err.message);
+    slowscan_report_batch_free(batch);
+    snprintf(small, sizeof small, "%s/series-n100000.svg", dir);
+    snprintf(large, sizeof large, "%s/series-n1000000.svg", dir);
+    long a = file_size(small), b = file_size(large);
+    CHECK(a > 0 && b > 0 && (double)b < 1.5 * (double)a, "SVG of 10^6 samples %ld bytes, of 10^5 %ld", b, a);
 }
 
 /* ---- the overview with many flagged series --------------------------------------------- */
@@ -287,6 +314,7 @@ static void test_binary_figures(void)
 void suite_figure_layout(void)
 {
     test_series_geometry();
+    test_decimation();
     test_overview_labels();
     test_binary_figures();
 }

@@ -137,7 +137,7 @@ typedef struct {
 typedef struct {
     const char *name, *time_name, *source;
     size_t n;
-    const double *time, *value, *trend, *residual;
+    const double *time, *value, *trend;
     size_t window; /* W, samples */
     const report_series_test *tests;
     size_t ntests;
