@@ -92,13 +92,23 @@ void report_axes_enter(const report_axes *a)
     plwind(a->x0, a->x1, a->y0, a->y1);
 }
 
-void report_restore_view(double vx0, double vx1, double vy0, double vy1, double wx0, double wx1,
-                         double wy0, double wy1)
+report_page_view report_page_enter(const report_figure *fig)
 {
-    if (!(vx1 > vx0 && vy1 > vy0 && wx1 != wx0 && wy1 != wy0))
+    report_page_view v;
+    plgvpd(&v.vx0, &v.vx1, &v.vy0, &v.vy1);
+    plgvpw(&v.wx0, &v.wx1, &v.wy0, &v.wy1);
+    v.height = report_figure_height(fig);
+    plvpor(0, 1, 0, 1);
+    plwind(0, REPORT_PAGE_WIDTH, 0, v.height);
+    return v;
+}
+
+void report_page_leave(const report_page_view *v)
+{
+    if (!(v->vx1 > v->vx0 && v->vy1 > v->vy0 && v->wx1 != v->wx0 && v->wy1 != v->wy0))
         return; /* nothing was set before */
-    plvpor(vx0, vx1, vy0, vy1);
-    plwind(wx0, wx1, wy0, wy1);
+    plvpor(v->vx0, v->vx1, v->vy0, v->vy1);
+    plwind(v->wx0, v->wx1, v->wy0, v->wy1);
 }
 
 void report_frame(void)

@@ -256,26 +256,18 @@ void report_range(const double *const *arrays, size_t narrays, size_t n, double 
 void report_page_line(report_figure *fig, double x0, double y0, double x1, double y1, int colour,
                       double width)
 {
-    PLFLT vx0, vx1, vy0, vy1, wx0, wx1, wy0, wy1;
-    plgvpd(&vx0, &vx1, &vy0, &vy1);
-    plgvpw(&wx0, &wx1, &wy0, &wy1);
-    double height = report_figure_height(fig);
-    plvpor(0, 1, 0, 1);
-    plwind(0, REPORT_PAGE_WIDTH, 0, height);
+    report_page_view view = report_page_enter(fig);
+    double height = view.height;
     report_segment(x0, height - y0, x1, height - y1, colour, width);
-    report_restore_view(vx0, vx1, vy0, vy1, wx0, wx1, wy0, wy1);
+    report_page_leave(&view);
 }
 
 void report_page_patch(report_figure *fig, report_rect_px r, int colour)
 {
-    PLFLT vx0, vx1, vy0, vy1, wx0, wx1, wy0, wy1;
-    plgvpd(&vx0, &vx1, &vy0, &vy1);
-    plgvpw(&wx0, &wx1, &wy0, &wy1);
-    double height = report_figure_height(fig);
-    plvpor(0, 1, 0, 1);
-    plwind(0, REPORT_PAGE_WIDTH, 0, height);
+    report_page_view view = report_page_enter(fig);
+    double height = view.height;
     report_rect(r.x0, r.x1, height - r.y1, height - r.y0, colour);
-    report_restore_view(vx0, vx1, vy0, vy1, wx0, wx1, wy0, wy1);
+    report_page_leave(&view);
 }
 
 double report_key(report_figure *fig, const report_key_item *items, size_t count, double x, double top)

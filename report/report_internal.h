@@ -130,9 +130,13 @@ void report_cell_labels(report_figure *fig, const report_axes *a, size_t row, si
                         const char *title, const char *xlabel, const char *ylabel);
 /* A y label reading upwards, its left edge at `left`, centred on the area's height. */
 void report_y_label(report_figure *fig, const report_rect_px *area, double left, const char *text);
-/* Puts back a viewport and world window read with plgvpd/plgvpw (none when none was set). */
-void report_restore_view(double vx0, double vx1, double vy0, double vy1, double wx0, double wx1,
-                         double wy0, double wy1);
+/* Page units for drawing outside panels (x from the left, y from the bottom: height - y),
+ * and back to the panel that was current (none when none was set). */
+typedef struct {
+    double vx0, vx1, vy0, vy1, wx0, wx1, wy0, wy1, height;
+} report_page_view;
+report_page_view report_page_enter(const report_figure *fig);
+void report_page_leave(const report_page_view *v);
 /* The frame again, over fills that covered it. */
 void report_frame(void);
 

@@ -208,18 +208,14 @@ report_rect_px report_text_draw(report_figure *fig, const report_textspec *t, do
 {
     char buf[REPORT_TEXT_MAX];
     report_rect_px r = report_text_box(fig, t, x, y);
-    PLFLT vx0, vx1, vy0, vy1, wx0, wx1, wy0, wy1;
-    plgvpd(&vx0, &vx1, &vy0, &vy1);
-    plgvpw(&wx0, &wx1, &wy0, &wy1);
-    double height = report_figure_height(fig);
-    plvpor(0, 1, 0, 1);
-    plwind(0, REPORT_PAGE_WIDTH, 0, height);
+    report_page_view view = report_page_enter(fig);
+    double height = view.height;
     report_set_size(t->size);
     plcol0(colour);
     plptex(x, height - y, t->vertical ? 0.0 : 1.0, t->vertical ? 1.0 : 0.0, t->just,
            escaped(t->text, buf, sizeof buf));
     report_set_size(REPORT_SIZE_BODY);
-    report_restore_view(vx0, vx1, vy0, vy1, wx0, wx1, wy0, wy1);
+    report_page_leave(&view);
     report_record(fig, REPORT_BOX_TEXT, r, t->text);
     return r;
 }

@@ -166,16 +166,26 @@ static void draw_series_case(report_batch *batch, size_t ntests, size_t n, const
     free_series(&s);
 }
 
+/* A batch into the scratch folder `name` (its path in dir), recording box manifests. */
+static report_batch *open_batch(const char *name, report_format format, char *dir, size_t size)
+{
+    snprintf(dir, size, "%s", check_tmp_path(name));
+    report_batch *batch = NULL;
+    io_error err = {{0}};
+    CHECK(slowscan_report_batch_open(&batch, dir, format, &err) == SLOWSCAN_OK, "batch %s: %s", name,
+          err.message);
+    if (batch)
+        slowscan_report_batch_record_boxes(batch, 1);
+    return batch;
+}
+
 static void test_series_geometry(void)
 {
     char dir[512], png[700];
-    snprintf(dir, sizeof dir, "%s", check_tmp_path("geometry-series"));
-    report_batch *batch = NULL;
     io_error err = {{0}};
-    CHECK(slowscan_report_batch_open(&batch, dir, REPORT_PNG, &err) == SLOWSCAN_OK, "batch: %s", err.message);
+    report_batch *batch = open_batch("geometry-series", REPORT_PNG, dir, sizeof dir);
     if (!batch)
         return;
-    slowscan_report_batch_record_boxes(batch, 1);
     static const struct {
         size_t tests, n;
         const char *name;
@@ -209,10 +219,8 @@ static long file_size(const char *path)
 static void test_decimation(void)
 {
     char dir[512], small[700], large[700];
-    snprintf(dir, sizeof dir, "%s", check_tmp_path("geometry-svg"));
-    report_batch *batch = NULL;
     io_error err = {{0}};
-    CHECK(slowscan_report_batch_open(&batch, dir, REPORT_SVG, &err) == SLOWSCAN_OK, "batch: %s", err.message);
+    report_batch *batch = open_batch("geometry-svg", REPORT_SVG, dir, sizeof dir);
     if (!batch)
         return;
     draw_series_case(batch, 6, 100000, "n100000");
@@ -244,13 +252,9 @@ static void test_overview_labels(void)
     check_rng_free(rng);
     const char *labels[1] = {"variance"}, *stats[1] = {"Kendall tau"};
     report_overview_data data = {labels, stats, 1, points, FLAGGED + PLAIN, 0.05};
-    snprintf(dir, sizeof dir, "%s", check_tmp_path("geometry-overview"));
-    report_batch *batch = NULL;
     io_error err = {{0}};
-    int ok = slowscan_report_batch_open(&batch, dir, REPORT_PNG, &err) == SLOWSCAN_OK;
-    if (ok)
-        slowscan_report_batch_record_boxes(batch, 1);
-    ok = ok && slowscan_report_batch_draw(batch, &slowscan_report_overview_figure, &data, "", "overview", &err) == SLOWSCAN_OK;
+    report_batch *batch = open_batch("geometry-overview", REPORT_PNG, dir, sizeof dir);
+    int ok = batch && slowscan_report_batch_draw(batch, &slowscan_report_overview_figure, &data, "", "overview", &err) == SLOWSCAN_OK;
     ok = ok && slowscan_report_batch_commit(batch, &err) == SLOWSCAN_OK;
     CHECK(ok, "overview drawn: %s", err.message);
     slowscan_report_batch_free(batch);
