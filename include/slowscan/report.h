@@ -144,8 +144,11 @@ typedef struct {
 } report_series_data;
 extern SLOWSCAN_API const report_figure_type slowscan_report_series_figure;
 
-/* Screening overview: per test, every series' statistic against -log10(q); the series with
- * flag set are labelled, at most REPORT_OVERVIEW_LABELS of them (smallest q first). */
+/* Screening overview: per test, every series' statistic against -log10(q). The series with
+ * flag set are named, strongest first (smallest q, then the larger |statistic|), each where
+ * its name touches no other name or flagged point: the first REPORT_OVERVIEW_LABELS may be
+ * moved off their point with a leader line, later ones only beside it, at most 40; the
+ * number left unnamed is given in a box in the emptiest corner. */
 enum { REPORT_OVERVIEW_LABELS = 20 };
 typedef struct {
     const char *series;
