@@ -211,6 +211,9 @@ static void tau_range(const report_robustness_data *d, size_t methods, double *l
     report_range(all, 1, methods * d->nindicators * d->nwindows * d->nbandwidths, lo, hi);
     *lo = fmax(-1.0, *lo);
     *hi = fmin(1.0, *hi);
+    double room = 0.04 * (*hi - *lo); /* a point at either end is drawn whole */
+    *lo -= room;
+    *hi += room;
 }
 
 static int robustness_draw(report_figure *fig, const void *data)

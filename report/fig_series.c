@@ -271,9 +271,12 @@ static void summary_range(const report_series_data *d, const size_t *idx, size_t
     double pad = b > a ? 0.06 * (b - a) : 1.0;
     *lo = a - pad;
     *hi = b + pad;
-    if (rolling) {
+    if (rolling) { /* no further than [-1, 1], with room for a dot at either end */
         *lo = fmax(*lo, -1.0);
         *hi = fmin(*hi, 1.0);
+        double room = 0.03 * (*hi - *lo);
+        *lo -= room;
+        *hi += room;
     }
 }
 
