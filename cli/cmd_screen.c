@@ -147,7 +147,9 @@ static int run_series(const cli_options *opts, const cli_inputs *in, void *conte
         return EXIT_INTERNAL;
     }
     screen_source source = {next_series, NULL, sink.total, &src};
-    screen_sink ordered = {put_series, &sink, run->rolling || run->figures};
+    /* Only --rolling needs the paths handed on: the figures read the null's quantiles from
+     * the results and prepare the series again once the q-values exist. */
+    screen_sink ordered = {put_series, &sink, run->rolling != NULL};
     screen_batch_failure failure;
     int st = slowscan_screen_batch_run(&run->cfg, &source, &ordered, &failure);
     int rc = st == SLOWSCAN_OK ? EXIT_OK : refuse(opts, &failure, &sink);
