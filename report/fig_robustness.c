@@ -182,25 +182,32 @@ static void drift_panel(report_figure *fig, const report_robustness_data *d, con
 }
 
 /* The key in the right margin: a line per bandwidth, then what the marks mean. */
+/* A line of the key, shortened to the room the layout estimated for it. */
+static void key_text(report_figure *fig, const char *text, double x, double top, int colour)
+{
+    char fitted[REPORT_TEXT_MAX];
+    report_say(fig, report_fit(fig, text, REPORT_SIZE_SMALL, REPORT_PAGE_WIDTH - 6 - x, fitted),
+               REPORT_SIZE_SMALL, 0.0, x, top, colour);
+}
+
 static void draw_key(report_figure *fig, const report_robustness_data *d)
 {
     const report_layout *layout = slowscan_report_figure_layout(fig);
     double x = REPORT_PAGE_WIDTH - layout->right_margin + 8, top = REPORT_PAGE_TOP + 30;
     double line = report_line_height(fig, REPORT_SIZE_SMALL) + 3;
-    report_say(fig, "bandwidth", REPORT_SIZE_SMALL, 0.0, x, top, INK_TEXT);
+    key_text(fig, "bandwidth", x, top, INK_TEXT);
     size_t shown = d->nbandwidths < KEY_ROWS_MAX ? d->nbandwidths : KEY_ROWS_MAX;
     for (size_t b = 0; b < shown; b++) {
         size_t which = shown < d->nbandwidths ? b * (d->nbandwidths - 1) / (shown - 1) : b;
         double y = top + (double)(b + 1) * line;
-        report_say(fig, d->bandwidth_labels[which], REPORT_SIZE_SMALL, 0.0, x + 22, y, INK_TEXT);
+        key_text(fig, d->bandwidth_labels[which], x + 22, y, INK_TEXT);
         double middle = y + 0.5 * (line - 3);
         bandwidth_colour(which, d->nbandwidths);
         report_page_line(fig, x, middle, x + 16, middle, REPORT_CURRENT_COLOUR, 2.4);
     }
     double y = top + (double)(shown + 2) * line;
-    report_say(fig, d->have_p ? "filled: p <= 0.05" : "no p (no surrogates)", REPORT_SIZE_SMALL, 0.0, x, y,
-               INK_TEXT);
-    report_say(fig, "ring: own choice", REPORT_SIZE_SMALL, 0.0, x, y + line, INK_MARK);
+    key_text(fig, d->have_p ? "filled: p <= 0.05" : "no p (no surrogates)", x, y, INK_TEXT);
+    key_text(fig, "ring: own choice", x, y + line, INK_MARK);
 }
 
 /* One axis for every tau panel, within [-1, 1]: the spread over the grid is what the figure

@@ -288,6 +288,59 @@ static void test_overview_labels(void)
     free(m.boxes);
 }
 
+/* ---- robustness and recovery from invented data ------------------------------------------ */
+
+/* A grid larger than the binary's demo: two methods (one without a bandwidth), four
+ * indicators and recovery_trend, eleven windows, twelve bandwidths with long labels; and the
+ * recovery figure with a crossing and without one. */
+static void test_grid_and_recovery_geometry(void)
+{
+    enum { METHODS = 2, IND = 4, NW = 11, NB = 12, N = 300 };
+    static double tau[METHODS * IND * NW * NB], p[METHODS * IND * NW * NB], t[METHODS * NB], tp[METHODS * NB];
+    char wl[NW][16], bl[NB][24], dir[512], png[800];
+    const char *windows[NW], *bands[NB], *names[IND] = {"variance", "lag1", "spectral_exponent", "dfa"};
+    const char *methods[METHODS] = {"gaussian-linear", "poly:2"};
+    const int has_bw[METHODS] = {1, 0};
+    for (int w = 0; w < NW; w++)
+        snprintf(wl[w], sizeof wl[w], "%d%%", 25 + 5 * w), windows[w] = wl[w];
+    for (int b = 0; b < NB; b++)
+        snprintf(bl[b], sizeof bl[b], "%d days", 100 + 50 * b), bands[b] = bl[b];
+    for (size_t i = 0; i < sizeof tau / sizeof tau[0]; i++) {
+        tau[i] = i % 7 == 0 ? NAN : 0.98 - 0.0015 * (double)i;
+        p[i] = (double)(i % 20) / 20.0;
+    }
+    for (size_t i = 0; i < METHODS * NB; i++)
+        t[i] = -1.0 + 0.4 * (double)i, tp[i] = 0.5;
+    report_robustness_data rd = {"a grid", "day", NW, NB, windows, bands, IND, names, METHODS, methods,
+                                 has_bw, tau, p, 1, t, tp, 0, 5, 2, 1};
+    enum { NR = 120 };
+    double time[NR], lambda[NR], lo[NR], hi[NR];
+    for (int i = 0; i < NR; i++)
+        time[i] = i, lambda[i] = -0.3 + 0.002 * i, lo[i] = lambda[i] - 0.03, hi[i] = lambda[i] + 0.03;
+    report_crossing cross = {1, 150.0, 131.0, INFINITY, 0, 240.0, 0, NULL, NULL};
+    report_crossing never = {0, NAN, NAN, NAN, 1, NAN, 0, NULL, NULL};
+    report_recovery_data rec = {"a record", "day", NR, time, lambda, lo, hi, 2.5, 0.001, &cross};
+    io_error err = {{0}};
+    report_batch *batch = open_batch("geometry-grid", REPORT_PNG, dir, sizeof dir);
+    int ok = batch && slowscan_report_batch_draw(batch, &slowscan_report_robustness_figure, &rd, "robustness",
+                                                 "grid", &err) == SLOWSCAN_OK;
+    ok = ok && slowscan_report_batch_draw(batch, &slowscan_report_recovery_figure, &rec, "recovery", "cross",
+                                          &err) == SLOWSCAN_OK;
+    rec.crossing = &never;
+    ok = ok && slowscan_report_batch_draw(batch, &slowscan_report_recovery_figure, &rec, "recovery", "never",
+                                          &err) == SLOWSCAN_OK;
+    ok = ok && slowscan_report_batch_commit(batch, &err) == SLOWSCAN_OK;
+    CHECK(ok, "grid and recovery figures drawn: %s", err.message);
+    slowscan_report_batch_free(batch);
+    static const char *const figures[] = {"robustness-grid", "recovery-cross", "recovery-never"};
+    for (size_t k = 0; ok && k < 3; k++) {
+        snprintf(png, sizeof png, "%s/%s.png", dir, figures[k]);
+        manifest m;
+        check_figure(png, figures[k], &m);
+        free(m.boxes);
+    }
+}
+
 /* ---- the figures of the binary ---------------------------------------------------------- */
 
 static void test_binary_figures(void)
@@ -320,5 +373,6 @@ void suite_figure_layout(void)
     test_series_geometry();
     test_decimation();
     test_overview_labels();
+    test_grid_and_recovery_geometry();
     test_binary_figures();
 }
