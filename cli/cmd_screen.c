@@ -47,10 +47,9 @@ static screen_row *add_row(screen_run *run)
     return row;
 }
 
-/* One row per test, with the warning of each insufficient one; nulls[j] (or NULL) is test
- * j's null distribution, kept binned for --figures. */
-static int record_series(const prepared_series *ps, screen_run *run, const screen_result *res,
-                         const double *const *nulls)
+/* One row per test, with the warning of each insufficient one (the figures read the
+ * null's quantiles from the result). */
+static int record_series(const prepared_series *ps, screen_run *run, const screen_result *res)
 {
     for (size_t j = 0; j < res->ntests; j++) {
         screen_row *row = add_row(run);
@@ -60,13 +59,10 @@ static int record_series(const prepared_series *ps, screen_run *run, const scree
         }
         *row = (screen_row){row->series, res->n, rolling_window(res, j), res->bandwidth, NAN,
                             res->tests[j], SCREEN_FLAG_UNTESTED, res->harmonics, res->leakage,
-                            res->leakage_tested, NULL};
+                            res->leakage_tested};
         /* a constant series was warned about when its paths were made */
         if (isnan(row->result.statistic) && !ps->constant)
             cli_screen_insufficient(ps, &row->result);
-        if (run->figures && row->result.null_used > 0 && nulls && nulls[j] &&
-            cli_screen_keep_null(row, nulls[j], run->cfg.surrogates) != EXIT_OK)
-            return EXIT_INTERNAL;
     }
     return EXIT_OK;
 }
@@ -116,7 +112,7 @@ static int put_series(void *state, const screen_batch_item *item)
         cli_screen_warn(sink->opts, ps, &res->warnings[w]);
     if (sink->run->rolling)
         cli_write_rolling(sink->run->rolling, sink->opts, ps, (double *const *)item->paths);
-    sink->rc = record_series(ps, sink->run, res, item->nulls);
+    sink->rc = record_series(ps, sink->run, res);
     if (sink->rc != EXIT_OK)
         return SLOWSCAN_ENOMEM;
     cli_tally_leakage(&sink->leakage, ps->source, ps->name, &res->leakage, res->leakage_tested);
@@ -148,7 +144,9 @@ static int run_series(const cli_options *opts, const cli_inputs *in, void *conte
         return EXIT_INTERNAL;
     }
     screen_source source = {next_series, NULL, sink.total, &src};
-    screen_sink ordered = {put_series, &sink, run->rolling || run->figures};
+    /* Only --rolling needs the paths handed on: the figures read the null's quantiles from
+     * the results and prepare the series again once the q-values exist. */
+    screen_sink ordered = {put_series, &sink, run->rolling != NULL};
     screen_batch_failure failure;
     int st = slowscan_screen_batch_run(&run->cfg, &source, &ordered, &failure);
     int rc = st == SLOWSCAN_OK ? EXIT_OK : refuse(opts, &failure, &sink);
@@ -253,11 +251,8 @@ int cmd_screen(const cli_options *opts)
         cli_warning("option --surrogates %ld: with fewer than 19 surrogates no p-value can reach "
                     "0.05 (the smallest is 1/(M+1))", opts->surrogates);
     int rc = cli_run_series_command(opts, &cmd);
-    for (size_t r = 0; r < run.nrows; r++) {
+    for (size_t r = 0; r < run.nrows; r++)
         free(run.rows[r].series);
-        if (run.rows[r].null_hist)
-            gsl_histogram_free(run.rows[r].null_hist);
-    }
     free(run.rows);
     return rc;
 }

@@ -180,11 +180,13 @@ static void help_screen(FILE *out)
           "                       null distribution and every parameter of the run\n"
           "  --format csv|table   summary as CSV (default) or as an aligned table\n", out);
     fputs(figure_options, out);
-    fputs("                       screen-SERIES: series and trend, residual, each indicator\n"
-          "                       with tau, p, q and the first window, the null histograms\n"
-          "                       (recovery_trend: of t(a1)) with the observed value marked;\n"
+    fputs("                       screen-SERIES: the record and its trend (first window\n"
+          "                       shaded), the indicators standardised on one panel, and a\n"
+          "                       line per test: the surrogate null as 5-95% and 1-99%\n"
+          "                       intervals, the observed statistic as a dot, p, q, verdict;\n"
           "                       screen-overview (two or more series): statistic against\n"
-          "                       -log10(q) per test, the strongest 20 flagged series named\n\n", out);
+          "                       -log10(q) per test, flagged series named where they fit\n"
+          "                       (the strongest 20 first), the rest counted\n\n", out);
     fputs(cautions, out);
 }
 
@@ -205,20 +207,19 @@ static void help_robustness(FILE *out)
           "  --detrends LIST      detrending methods, comma-separated, each as --detrend takes\n"
           "                       it (e.g. gaussian,loess,linear,poly:2; default: the one\n"
           "                       --detrend); --detrend names the run's own choice in figures\n"
-          "  --windows LIST       windows as A:B:STEP or A,B,C (default 25%:75%:5%)\n"
-          "  --bandwidths LIST    bandwidths likewise (default 5%:25%:5%); ignored by detrending\n"
-          "                       methods without a bandwidth\n"
+          "  --windows LIST       windows as A:B:STEP or A,B,C (default 30%:70%:10%)\n"
+          "  --bandwidths LIST    bandwidths likewise (default 5%,7%,10%,14%,20%); ignored by\n"
+          "                       detrending methods without a bandwidth\n"
           "  --fractions FILE     per series x indicator x method: cells, share with statistic\n"
           "                       > 0, share with p <= 0.05; with several methods also a row\n"
           "                       'all' over every cell (series,indicator,detrend,cells,\n"
           "                       share_statistic_positive,share_p_at_most_0.05)\n"
           "  --noise-trend        recovery_trend: let the innovation variance drift linearly\n", out);
     fputs(figure_options, out);
-    fputs("                       robustness-SERIES: a panel per method x indicator (tau over\n"
-          "                       window x bandwidth) and per method for recovery_trend (t(a1)\n"
-          "                       by bandwidth, its own scale, values written); cells with\n"
-          "                       p <= 0.05 dotted, the --detrend/--window/--bandwidth cell\n"
-          "                       outlined\n", out);
+    fputs("                       robustness-SERIES: a panel per method x indicator (tau\n"
+          "                       against the window, a line per bandwidth) and per method for\n"
+          "                       recovery_trend (t(a1) against the bandwidth); filled points\n"
+          "                       p <= 0.05, the --detrend/--window/--bandwidth choice ringed\n", out);
     fputs(testing_options, out);
     fputs("\n", out);
     fputs(cautions, out);

@@ -543,8 +543,10 @@ static void set_defaults(const char *command, cli_options *o)
     o->format = "csv";
     o->figure_format = REPORT_PNG;
     o->progress = -1;
-    parse_grid("--windows", "25%:75%:5%", o->windows, o->grid_text[0], &o->nwindows);
-    parse_grid("--bandwidths", "5%:25%:5%", o->bandwidths, o->grid_text[1], &o->nbandwidths);
+    /* The default grid is centred on screen's own choice (50%, 10%): windows in even steps
+     * from 30% to 70%, bandwidths in equal ratios (about sqrt 2) from half to twice 10%. */
+    parse_grid("--windows", "30%:70%:10%", o->windows, o->grid_text[0], &o->nwindows);
+    parse_grid("--bandwidths", "5%,7%,10%,14%,20%", o->bandwidths, o->grid_text[1], &o->nbandwidths);
     long cores = sysconf(_SC_NPROCESSORS_ONLN);
     o->threads = cores < 1 ? 1 : cores > CLI_MAX_THREADS ? CLI_MAX_THREADS : cores;
 }

@@ -112,6 +112,9 @@ int cli_figures_open(cli_outputs *outs, const cli_options *opts, report_batch **
         cli_error("option --figures: %s", err.message);
         return st == SLOWSCAN_ENOMEM ? EXIT_INTERNAL : EXIT_BAD_INPUT;
     }
+    /* The test hook of the geometry test: a box manifest beside every figure. */
+    const char *boxes = getenv("SLOWSCAN_FIGURE_BOXES");
+    slowscan_report_batch_record_boxes(outs->figures, boxes && *boxes && strcmp(boxes, "0") != 0);
     *figures = outs->figures;
     return EXIT_OK;
 }

@@ -5,8 +5,6 @@
 
 #include "cli.h"
 
-#include <gsl/gsl_histogram.h>
-
 typedef struct {
     char *series;
     size_t n;
@@ -16,7 +14,6 @@ typedef struct {
     int harmonics; /* the cycle removed: -1 none, 0 the mean cycle, K harmonics */
     detrend_leakage leakage; /* the series' trend-leakage test (valid when leakage_tested) */
     int leakage_tested;
-    gsl_histogram *null_hist; /* with --figures: the null distribution, binned; else NULL */
 } screen_row;
 
 typedef struct {
@@ -32,10 +29,9 @@ typedef struct {
 /* Writes the run as JSON: every parameter needed to reproduce it, then the rows. */
 void cli_screen_json(FILE *fp, const cli_options *opts, const screen_run *run);
 
-/* screen --figures (cli_screen_figures.c): the null of one row, kept binned (a few hundred bytes
- * a row, so memory stays bounded for many series); then, after the q-values, one figure per
- * series and the overview. */
-int cli_screen_keep_null(screen_row *row, const double *null, size_t m);
+/* screen --figures (screen_figures.c): after the q-values, one figure per series (its tests'
+ * nulls summarised by the quantiles of the rows, so memory stays bounded for many series)
+ * and the overview. */
 int cli_screen_figures(const cli_options *opts, const cli_inputs *in, void *context);
 
 #endif

@@ -1,10 +1,10 @@
-/* screen --figures DIR: a figure per series (series, trend, residual, indicator paths, the
- * null histograms) and, for more than one series, the screening overview.
+/* screen --figures DIR: a figure per series (record and trend, the indicators together, each
+ * test against its null) and, for more than one series, the screening overview.
  *
  * The figures need the q-values, which exist only once every series is tested. Rather than
  * keep every series' paths until then (memory would grow with the number of series), the
  * series are prepared again after the run — detrending and rolling indicators are cheap and
- * deterministic — and only each test's null distribution is kept from the run, binned. */
+ * deterministic — and of each test's null only the quantiles of its result are kept. */
 #include "screen.h"
 #include "slowscan/status.h"
 
@@ -12,44 +12,32 @@
 #include <stdlib.h>
 #include <string.h>
 
-/* Bins of a kept null distribution: enough to show its shape at M = 1000. */
-enum { NULL_BINS = 30 };
-
-int cli_screen_keep_null(screen_row *row, const double *null, size_t m)
+/* The flag in the figure's words: "none" alone would read as "no result". */
+static const char *verdict(screen_flag flag)
 {
-    double lo = INFINITY, hi = -INFINITY;
-    for (size_t j = 0; j < m; j++)
-        if (isfinite(null[j])) {
-            lo = fmin(lo, null[j]);
-            hi = fmax(hi, null[j]);
-        }
-    if (!(lo <= hi))
-        return EXIT_OK;
-    /* gsl_histogram bins are [a, b): widen a little so the largest draw is counted. */
-    double pad = hi > lo ? 1e-9 * (hi - lo) : 0.5 * fmax(fabs(lo), 1e-3);
-    row->null_hist = gsl_histogram_alloc(NULL_BINS);
-    if (!row->null_hist || gsl_histogram_set_ranges_uniform(row->null_hist, lo - (hi > lo ? 0 : pad),
-                                                            hi + pad) != 0) {
-        cli_error("out of memory");
-        return EXIT_INTERNAL;
+    switch (flag) {
+    case SCREEN_FLAG_RISING:
+        return "flagged: rising";
+    case SCREEN_FLAG_FALLING:
+        return "flagged: falling";
+    case SCREEN_FLAG_NONE:
+        return "not flagged";
+    default:
+        return slowscan_screen_flag_name(flag);
     }
-    for (size_t j = 0; j < m; j++)
-        if (isfinite(null[j]))
-            gsl_histogram_increment(row->null_hist, null[j]);
-    return EXIT_OK;
 }
 
 static report_series_test test_of(const screen_row *row, const double *path)
 {
-    int drift = !slowscan_screen_test_rolling(row->result.kind);
-    report_series_test t = {slowscan_screen_test_name(row->result.kind), drift ? "t(a1)" : "tau", path, row->result.statistic,
-                            row->result.p_value, row->q_value, 0, NAN, NAN, NULL};
-    if (row->null_hist) {
-        t.nbins = gsl_histogram_bins(row->null_hist);
-        t.bin_lo = gsl_histogram_min(row->null_hist);
-        t.bin_hi = gsl_histogram_max(row->null_hist);
-        t.counts = row->null_hist->bin;
-    }
+    const screen_test *r = &row->result;
+    int rolling = slowscan_screen_test_rolling(r->kind), has_null = r->null_used > 0;
+    report_series_test t = {slowscan_screen_test_name(r->kind), rolling ? "tau" : "t(a1)", path,
+                            r->statistic, r->p_value, row->q_value,
+                            has_null ? r->quantile_tail[0] : NAN, has_null ? r->quantile[0] : NAN,
+                            has_null ? r->quantile[2] : NAN, has_null ? r->quantile[4] : NAN,
+                            has_null ? r->quantile_tail[1] : NAN, r->null_used,
+                            verdict(row->flag),
+                            row->flag == SCREEN_FLAG_RISING || row->flag == SCREEN_FLAG_FALLING};
     return t;
 }
 
@@ -70,7 +58,7 @@ static int draw_series(const cli_options *opts, const prepared_series *ps, void 
     for (size_t j = 0; j < tests; j++)
         list[j] = test_of(&run->rows[first + j], j < opts->nindicators ? values[j] : NULL);
     report_series_data data = {ps->name, ps->time_name, ps->source, ps->n, ps->time, ps->value,
-                               ps->trend, ps->residual, ps->window, list, tests};
+                               ps->trend, ps->window, list, tests};
     if (rc == EXIT_OK)
         rc = cli_figure_draw(run->figures, &slowscan_report_series_figure, &data, "screen", ps->name);
     if (!ps->constant)

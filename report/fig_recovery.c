@@ -43,7 +43,20 @@ static void draw_extension(const report_crossing *c)
     pllsty(1);
 }
 
-static void draw_crossing(const report_recovery_data *d, double y_lo, double y_hi)
+/* Room under the x label for the note on the extrapolation, page units. */
+enum { NOTE_ROOM = 24 };
+
+/* The note on the extrapolation, on its own line under the panel's x label (inside the
+ * panel it would cross the lines it explains). */
+static void extrapolation_note(report_figure *fig, const report_axes *a, const char *text)
+{
+    char fitted[REPORT_TEXT_MAX];
+    double top = a->area.y1 + NOTE_ROOM + 6 + report_line_height(fig, REPORT_SIZE_SMALL);
+    report_say(fig, report_fit(fig, text, REPORT_SIZE_BODY, a->area.x1 - a->area.x0, fitted),
+               REPORT_SIZE_BODY, 1.0, a->area.x1, top, INK_MARK);
+}
+
+static void draw_crossing(report_figure *fig, const report_axes *a, const report_recovery_data *d)
 {
     const report_crossing *c = d->crossing;
     double last = d->time[d->n - 1];
@@ -51,14 +64,12 @@ static void draw_crossing(const report_recovery_data *d, double y_lo, double y_h
     plgvpw(&x0, &x1, &y0, &y1);
     if (c->beyond_horizon) {
         draw_extension(c);
-        plcol0(INK_MARK);
-        report_text(x0 + 0.98 * (x1 - x0), y_lo + 0.06 * (y_hi - y_lo), 1.0,
-                    "extrapolation: no crossing of lambda = 0 within twice the record");
+        extrapolation_note(fig, a, "extrapolation: no crossing of lambda = 0 within twice the record");
         return;
     }
     if (!c->has_crossing)
         return;
-    report_rect(last, x1, y0, y1, INK_SPAN);
+    report_rect(last, x1, y0, y1, INK_AHEAD);
     draw_extension(c);
     if (isfinite(c->lo) && !isnan(c->hi)) { /* an interval open above runs off the panel */
         PLFLT bx[2] = {fmax(c->lo, x0), fmin(c->hi, x1)}, by[2] = {0.0, 0.0};
@@ -73,12 +84,11 @@ static void draw_crossing(const report_recovery_data *d, double y_lo, double y_h
         report_vline(c->time, INK_MARK, 1);
         plwidth(1.0);
     }
-    plcol0(INK_MARK);
-    char text[200], a[32], b[32], e[32];
+    char text[200], t[32], lo[32], hi[32];
     snprintf(text, sizeof text, "extrapolation, not a forecast: lambda = 0 at %s (95%%: %s to %s)",
-             report_number(a, c->time), report_number(b, c->lo),
-             isfinite(c->hi) ? report_number(e, c->hi) : "beyond");
-    report_text(x0 + 0.98 * (x1 - x0), y_lo + 0.06 * (y_hi - y_lo), 1.0, text);
+             report_number(t, c->time), report_number(lo, c->lo),
+             isfinite(c->hi) ? report_number(hi, c->hi) : "beyond");
+    extrapolation_note(fig, a, text);
 }
 
 static int recovery_draw(report_figure *fig, const void *data)
@@ -91,21 +101,23 @@ static int recovery_draw(report_figure *fig, const void *data)
     report_range(all, 3, d->n, &lo, &hi);
     lo = fmin(lo, 0.0);
     hi = fmax(hi, 0.05 * (hi - lo)); /* the zero line always shows */
-    char heading[300], title[300], a[32], b[32];
+    char heading[REPORT_TEXT_MAX], title[300], ylabel[200], a1[32], p[32], fitted[REPORT_TEXT_MAX];
     snprintf(heading, sizeof heading, "%s: recovery rate of the drifting AR(1)", d->name);
-    report_heading(heading);
-    report_panel(fig, 0, 0, d->time[0], time_end(d), lo, hi, REPORT_X_NUMBERS);
+    report_heading(fig, report_fit(fig, heading, REPORT_SIZE_HEADING, REPORT_PAGE_WIDTH - 20, fitted));
+    report_ticks xt, yt;
+    report_axes a = report_cell_axes(fig, 0, 0, d->time[0], time_end(d), lo, hi, &xt, &yt);
+    a.area.y1 -= NOTE_ROOM;
+    report_axes_enter(&a);
     if (d->crossing)
-        draw_crossing(d, lo, hi);
+        draw_crossing(fig, &a, d);
     report_band(d->n, d->time, d->lo, d->hi, INK_BAND);
-    report_frame(REPORT_X_NUMBERS);
+    report_axes_draw(fig, &a, &xt, &yt, 0, "recovery");
     report_hline(0.0, INK_TEXT, 0);
-    report_path(d->n, d->time, d->lambda, INK_SERIES);
+    report_path(&a, d->n, d->time, d->lambda, INK_SERIES, 1.3);
     snprintf(title, sizeof title, "lambda(t) with its pointwise 95%% band; t(a1) = %s, "
-             "surrogate p = %s", report_number(a, d->t_a1), report_number(b, d->p_value));
-    char ylabel[200];
+             "surrogate p = %s", report_number(a1, d->t_a1), report_number(p, d->p_value));
     snprintf(ylabel, sizeof ylabel, "lambda (1/%s)", d->time_name);
-    report_labels(title, ylabel, d->time_name);
+    report_cell_labels(fig, &a, 0, 0, title, d->time_name, ylabel);
     return SLOWSCAN_OK;
 }
 

@@ -7,6 +7,7 @@
 #include <stdlib.h>
 
 const double screen_quantile_levels[SCREEN_QUANTILES] = {0.05, 0.25, 0.5, 0.75, 0.95};
+const double screen_tail_levels[SCREEN_TAIL_QUANTILES] = {0.01, 0.99};
 
 screen_config slowscan_screen_config_default(void)
 {

@@ -116,6 +116,9 @@ static void null_quantiles(screen_workspace *ws, const double *null, size_t m, s
     for (int q = 0; q < SCREEN_QUANTILES && k > 0; q++)
         t->quantile[q] = gsl_stats_quantile_from_sorted_data(ws->sorted, 1, k,
                                                               screen_quantile_levels[q]);
+    for (int q = 0; q < SCREEN_TAIL_QUANTILES && k > 0; q++)
+        t->quantile_tail[q] = gsl_stats_quantile_from_sorted_data(ws->sorted, 1, k,
+                                                                  screen_tail_levels[q]);
 }
 
 static void warn(screen_result *out, screen_warning_kind kind, size_t count, size_t total,
@@ -205,6 +208,7 @@ int slowscan_screen_test_series(screen_workspace *ws, const screen_config *cfg, 
                            .statistic_model = NAN, .p_value = NAN,
                            .surrogates = cfg->surrogates,
                            .quantile = {NAN, NAN, NAN, NAN, NAN},
+                           .quantile_tail = {NAN, NAN},
                            .reason = SCREEN_REASON_NO_VARIATION};
         if (!ps->constant) {
             if (j < cfg->nindicators)

@@ -19,6 +19,7 @@ void suite_ar1_drift(void);
 void suite_cli(void);
 void suite_projection(void);
 void suite_report(void);
+void suite_figure_layout(void);
 void suite_robustness(void);
 void suite_leakage(void);
 void suite_co2(void);
@@ -42,7 +43,8 @@ static const struct {
     {"spectral", suite_spectral},
     {"kendall", suite_kendall},       {"surrogates", suite_surrogates}, {"ar1_drift", suite_ar1_drift}, {"cli", suite_cli},
     {"significance", suite_significance}, {"projection", suite_projection},
-    {"report", suite_report},         {"robustness", suite_robustness}, {"leakage", suite_leakage},
+    {"report", suite_report},         {"figure_layout", suite_figure_layout},
+    {"robustness", suite_robustness}, {"leakage", suite_leakage},
     {"co2", suite_co2},               {"calibration", suite_calibration},
     {"library", suite_library},
     {"golden", suite_golden},         {"screen", suite_screen},

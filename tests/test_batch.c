@@ -56,7 +56,8 @@ static int put(void *state, const screen_batch_item *item)
         const screen_test *a = &r->tests[j], *b = &w->tests[j];
         CHECK(memcmp(&a->statistic, &b->statistic, sizeof a->statistic) == 0 &&
               memcmp(&a->p_value, &b->p_value, sizeof a->p_value) == 0 &&
-              memcmp(a->quantile, b->quantile, sizeof a->quantile) == 0,
+              memcmp(a->quantile, b->quantile, sizeof a->quantile) == 0 &&
+              memcmp(a->quantile_tail, b->quantile_tail, sizeof a->quantile_tail) == 0,
               "series %zu test %zu equals slowscan_screen_series", item->index, j);
     }
     if (item->paths && e->want_path[item->index])

@@ -3,6 +3,7 @@
  * pixels counted in the decoded PNG), 1 and 200 series work, and a figure directory that
  * cannot be used is refused before any computation. */
 #include "check.h"
+#include "figure_manifest.h"
 #include "slowscan/report.h"
 #include "slowscan/status.h"
 
@@ -63,32 +64,6 @@ static int png_size(const char *path, unsigned *width, unsigned *height)
     return ok;
 }
 
-/* Decodes the PNG (tests/reference/png_chroma.py, standard-library zlib) and counts the
- * coloured pixels in each cell of the layout (cells[k] = row, col), plus a last box: the page
- * heading strip above the panels, which holds only neutral text and must count ~0. */
-static int panel_pixels(const char *png, const report_layout *layout, const size_t (*cells)[2],
-                        size_t ncells, double *counts)
-{
-    char args[4096];
-    int len = snprintf(args, sizeof args, "png_chroma.py %s", png);
-    double width = REPORT_PAGE_WIDTH, height = slowscan_report_page_height(layout);
-    for (size_t k = 0; k < ncells; k++) {
-        report_box b = slowscan_report_cell(layout, cells[k][0], cells[k][1]);
-        len += snprintf(args + len, sizeof args - (size_t)len, " %d %d %d %d", (int)(b.x0 * width) + 2,
-                        (int)((1 - b.y1) * height) + 2, (int)(b.x1 * width) - 2,
-                        (int)((1 - b.y0) * height) - 2);
-    }
-    snprintf(args + len, sizeof args - (size_t)len, " 0 0 %d %d", REPORT_PAGE_WIDTH, REPORT_PAGE_TOP - 8);
-    double values[64];
-    int got = check_python(args, values, 64);
-    if (got != (int)ncells + 3)
-        return -1;
-    CHECK(values[0] == width && values[1] == height, "%s: decoded size %gx%g", png, values[0], values[1]);
-    for (size_t k = 0; k <= ncells; k++)
-        counts[k] = values[2 + k];
-    return 0;
-}
-
 static void expect_valid_png(const char *path, const report_layout *layout)
 {
     unsigned w = 0, h = 0;
@@ -97,29 +72,54 @@ static void expect_valid_png(const char *path, const report_layout *layout)
           "%s: %ux%u, want %dx%d", path, w, h, REPORT_PAGE_WIDTH, slowscan_report_page_height(layout));
 }
 
-/* Every listed panel has drawn data (at least `least` coloured pixels); the heading strip has
- * none — the count can tell a drawn panel from an empty one. */
-static void expect_panels_drawn(const char *png, const report_layout *layout,
-                                const size_t (*cells)[2], size_t ncells, double least)
+/* Every panel of the figure's manifest (there must be `panels`) holds drawn data: at least
+ * `least` clearly coloured pixels inside its frame (tests/reference/png_chroma.py, standard
+ * library zlib); the heading strip above the panels holds only neutral text and must count
+ * ~0, so the count can tell a drawn panel from an empty one. */
+static void expect_panels_drawn(const char *png, size_t panels, double least)
 {
-    double counts[32];
-    if (panel_pixels(png, layout, cells, ncells, counts) != 0) {
-        CHECK(0, "%s: could not decode", png);
+    char path[800], args[4096];
+    snprintf(path, sizeof path, "%s.boxes", png);
+    manifest m;
+    if (read_manifest(path, &m) != 0) {
+        CHECK(0, "%s: no box manifest", png);
+        free(m.boxes);
         return;
     }
-    for (size_t k = 0; k < ncells; k++)
-        CHECK(counts[k] >= least, "%s: panel (%zu,%zu) has %g coloured pixels, want >= %g", png,
-              cells[k][0], cells[k][1], counts[k], least);
-    CHECK(counts[ncells] < 5, "%s: the heading strip has %g coloured pixels", png, counts[ncells]);
+    int len = snprintf(args, sizeof args, "png_chroma.py %s", png);
+    size_t found = 0;
+    for (size_t i = 0; i < m.count && len < (int)sizeof args - 64; i++)
+        if (strcmp(m.boxes[i].kind, "panel") == 0) {
+            const box *b = &m.boxes[i];
+            len += snprintf(args + len, sizeof args - (size_t)len, " %d %d %d %d", (int)b->x0 + 2,
+                            (int)b->y0 + 2, (int)b->x1 - 2, (int)b->y1 - 2);
+            found++;
+        }
+    snprintf(args + len, sizeof args - (size_t)len, " 0 0 %d %d", REPORT_PAGE_WIDTH, REPORT_PAGE_TOP - 8);
+    CHECK(found == panels, "%s: %zu panels, want %zu", png, found, panels);
+    double values[64];
+    int got = check_python(args, values, 64);
+    CHECK(got == (int)found + 3 && values[0] == m.width && values[1] == m.height,
+          "%s: decoded (%d values)", png, got);
+    for (size_t k = 0; got == (int)found + 3 && k < found; k++)
+        CHECK(values[2 + k] >= least, "%s: panel %zu has %g coloured pixels, want >= %g", png, k,
+              values[2 + k], least);
+    if (got == (int)found + 3)
+        CHECK(values[2 + found] < 5, "%s: the heading strip has %g coloured pixels", png,
+              values[2 + found]);
+    free(m.boxes);
 }
 
-/* The layout screen's per-series figure has with `paths` indicator panels and `tests` tests. */
+/* The layout of screen's per-series figure with `paths` indicator paths of `tests` tests
+ * (the others model tests). */
 static report_layout series_layout(size_t paths, size_t tests)
 {
     static const double dummy[1] = {0};
     report_series_test list[8] = {{0}};
-    for (size_t j = 0; j < tests; j++)
+    for (size_t j = 0; j < tests; j++) {
         list[j].path = j < paths ? dummy : NULL;
+        list[j].statistic_name = j < paths ? "tau" : "t(a1)";
+    }
     report_series_data data = {0};
     data.tests = list;
     data.ntests = tests;
@@ -142,7 +142,9 @@ static void test_screen_figures(void)
     }
     snprintf(args, sizeof args, "screen %s --figures %s -o %s data/stations.csv", demo_args, dir, with);
     {
+        setenv("SLOWSCAN_FIGURE_BOXES", "1", 1); /* panels found through the manifest */
         int rc_ = slowscan(args);
+        unsetenv("SLOWSCAN_FIGURE_BOXES");
         CHECK(rc_ == 0, "screen --figures: %s", run_err);
     }
     CHECK(run_err && run_err[0] == '\0', "screen --figures is silent: %s", run_err);
@@ -150,17 +152,18 @@ static void test_screen_figures(void)
     CHECK(a && b && strcmp(a, b) == 0, "the summary is the same with and without --figures");
     free(a);
     free(b);
-    /* The demo has eight stations: eight series figures and the overview, nothing else. */
-    CHECK(files_in(dir, "^screen-.*\\.png$") == 9 && files_in(dir, ".") == 9,
-          "nine figures in %s", dir);
+    /* The demo has eight stations: eight series figures and the overview, each with its
+     * manifest, nothing else. */
+    CHECK(files_in(dir, "^screen-.*\\.png$") == 9 && files_in(dir, "^screen-.*\\.png\\.boxes$") == 9 &&
+              files_in(dir, ".") == 18, "nine figures and their manifests in %s", dir);
     CHECK(files_in(dir, "\\.tmp\\.") == 0, "no temporary files left");
-    /* variance and lag1 have paths, recovery_trend only a null: 2 + 2 + 1 rows. */
+    /* variance and lag1 have paths, recovery_trend only a null: the record, the indicators,
+     * the tau tests and the model test. */
     report_layout layout = series_layout(2, 3);
-    CHECK(layout.rows == 5, "series layout rows %zu", layout.rows);
+    CHECK(layout.rows == 4, "series layout rows %zu", layout.rows);
     path_in(png, sizeof png, dir, "screen-mill_pond.png");
     expect_valid_png(png, &layout);
-    const size_t cells[][2] = {{0, 0}, {1, 0}, {2, 0}, {3, 0}, {4, 0}, {4, 1}, {4, 2}};
-    expect_panels_drawn(png, &layout, cells, 7, 300);
+    expect_panels_drawn(png, 4, 300);
 
     report_layout over = {0};
     const char *labels[3] = {"variance", "lag1", "recovery_trend"};
@@ -168,8 +171,7 @@ static void test_screen_figures(void)
     slowscan_report_overview_figure.layout(&od, &over);
     path_in(png, sizeof png, dir, "screen-overview.png");
     expect_valid_png(png, &over);
-    const size_t ocells[][2] = {{0, 0}, {0, 1}, {1, 0}};
-    expect_panels_drawn(png, &over, ocells, 3, 40); /* eight points per panel */
+    expect_panels_drawn(png, 3, 40); /* eight points per panel */
 }
 
 static void test_vector_formats_and_one_series(void)
@@ -209,6 +211,7 @@ static void test_vector_formats_and_one_series(void)
 static void test_robustness_and_recovery_figures(void)
 {
     char dir[512], args[2048], png[700];
+    setenv("SLOWSCAN_FIGURE_BOXES", "1", 1); /* panels found through the manifest */
     snprintf(dir, sizeof dir, "%s", check_tmp_path("fig-rob"));
     snprintf(args, sizeof args, "robustness %s --vars mill_pond --windows 30%%:70%%:20%% "
              "--bandwidths 5%%:15%%:5%% --figures %s -o /dev/null data/stations.csv", demo_args, dir);
@@ -224,11 +227,10 @@ static void test_robustness_and_recovery_figures(void)
     slowscan_report_robustness_figure.layout(&rd, &layout);
     path_in(png, sizeof png, dir, "robustness-mill_pond.png");
     expect_valid_png(png, &layout);
-    const size_t cells[][2] = {{0, 0}, {0, 1}};
-    expect_panels_drawn(png, &layout, cells, 2, 5000); /* 3 x 3 coloured cells each */
+    expect_panels_drawn(png, 2, 300); /* three bandwidth lines over three windows each */
 
     /* Several detrending methods and recovery_trend: a panel per method x test, the method
-     * without a bandwidth one row of cells, recovery_trend one column over bandwidth. */
+     * without a bandwidth one line, recovery_trend a line over bandwidth. */
     snprintf(dir, sizeof dir, "%s", check_tmp_path("fig-rob-methods"));
     snprintf(args, sizeof args, "robustness %s --vars mill_pond --windows 30%%,60%% "
              "--bandwidths 5%%,15%% --detrends gaussian,linear --indicators variance,recovery_trend "
@@ -250,8 +252,7 @@ static void test_robustness_and_recovery_figures(void)
     CHECK(layout.rows == 2 && layout.cols[0] == 2, "a row per method: %zu rows", layout.rows);
     path_in(png, sizeof png, dir, "robustness-mill_pond.png");
     expect_valid_png(png, &layout);
-    const size_t four[][2] = {{0, 0}, {0, 1}, {1, 0}, {1, 1}};
-    expect_panels_drawn(png, &layout, four, 4, 3000); /* every panel filled with cells */
+    expect_panels_drawn(png, 4, 40); /* a line in every panel (one segment at least) */
 
     snprintf(args, sizeof args, "recovery %s --vars mill_pond --figures %s -o /dev/null "
              "data/stations.csv", demo_args, dir);
@@ -263,8 +264,8 @@ static void test_robustness_and_recovery_figures(void)
     slowscan_report_recovery_figure.layout(&rec, &layout);
     path_in(png, sizeof png, dir, "recovery-mill_pond.png");
     expect_valid_png(png, &layout);
-    const size_t one[][2] = {{0, 0}};
-    expect_panels_drawn(png, &layout, one, 1, 500);
+    expect_panels_drawn(png, 1, 500);
+    unsetenv("SLOWSCAN_FIGURE_BOXES");
 }
 
 /* Noise whose amplitude grows in every fourth series (invented, for scale only). */
@@ -399,6 +400,8 @@ static void test_module(void)
     report_batch *batch = NULL;
     io_error err = {{0}};
     CHECK(slowscan_report_batch_open(&batch, dir, REPORT_PNG, &err) == SLOWSCAN_OK, "batch: %s", err.message);
+    if (batch)
+        slowscan_report_batch_record_boxes(batch, 1);
     enum { N = 100 };
     double t[N], lambda[N], lo[N], hi[N];
     for (int i = 0; i < N; i++) { /* a recovery rate rising linearly toward zero */
@@ -416,7 +419,8 @@ static void test_module(void)
     CHECK(ok && slowscan_report_batch_count(batch) == 2, "two recovery figures drawn: %s", err.message);
     CHECK(ok && strstr(slowscan_report_batch_path(batch, 1), "recovery-a_b-2.png"),
           "names that meet are made unique: %s", ok ? slowscan_report_batch_path(batch, 1) : "");
-    CHECK(ok && files_in(dir, "^recovery-.*\\.png$") == 0, "nothing in place before the commit");
+    CHECK(ok && files_in(dir, "^recovery-.*\\.png$") == 0 && files_in(dir, "\\.boxes$") == 0,
+          "nothing in place before the commit");
     CHECK(batch && slowscan_report_batch_commit(batch, &err) == SLOWSCAN_OK, "commit: %s", err.message);
     char png[700];
     path_in(png, sizeof png, dir, "recovery-a_b.png");
@@ -425,13 +429,20 @@ static void test_module(void)
     expect_valid_png(png, &layout);
     /* The extrapolation (beyond t = 99 up to 150) is drawn in the vermilion mark colour: the
      * right third of the panel has coloured pixels though no data lies there. */
-    report_box box = slowscan_report_cell(&layout, 0, 0);
-    char args[1200];
-    double height = slowscan_report_page_height(&layout), values[4];
-    double x_data_end = box.x0 + (box.x1 - box.x0) * 99.0 / 150.0;
-    snprintf(args, sizeof args, "png_chroma.py %s %d %d %d %d", png,
-             (int)(x_data_end * REPORT_PAGE_WIDTH) + 4, (int)((1 - box.y1) * height) + 2,
-             (int)(box.x1 * REPORT_PAGE_WIDTH) - 2, (int)((1 - box.y0) * height) - 2);
+    char args[1200], boxes[800];
+    double values[4];
+    snprintf(boxes, sizeof boxes, "%s.boxes", png);
+    manifest m;
+    const box *panel = NULL;
+    if (read_manifest(boxes, &m) == 0)
+        for (size_t i = 0; i < m.count && !panel; i++)
+            panel = strcmp(m.boxes[i].kind, "panel") == 0 ? &m.boxes[i] : NULL;
+    CHECK(panel != NULL, "the recovery figure's panel is in its manifest");
+    box area = panel ? *panel : (box){"", 0, 0, 1, 1, ""};
+    free(m.boxes);
+    double x_data_end = area.x0 + (area.x1 - area.x0) * 99.0 / 150.0;
+    snprintf(args, sizeof args, "png_chroma.py %s %d %d %d %d", png, (int)x_data_end + 4,
+             (int)area.y0 + 2, (int)area.x1 - 2, (int)area.y1 - 2);
     CHECK(check_python(args, values, 4) == 3 && values[2] > 100,
           "extrapolation region drawn (%g coloured pixels)", values[2]);
     slowscan_report_batch_free(batch);

@@ -66,6 +66,27 @@ static void compare_with_summary(const char *summary, const char *name, const sc
     }
 }
 
+/* The null quantiles of a result, the JSON's five and the figures' outer two, against
+ * numpy.quantile of the same null (tests/reference/quantiles_numpy.py). */
+static void null_quantiles_match(const screen_workspace *ws, const screen_result *r, size_t m,
+                                 const char *name)
+{
+    for (size_t j = 0; j < r->ntests; j++) {
+        const double *null = slowscan_screen_workspace_null(ws, j);
+        double want[8];
+        int got = null ? check_python_on("quantiles_numpy.py", null, m, "0.01 0.05 0.25 0.5 0.75 0.95 0.99",
+                                         want, 8)
+                       : -1;
+        const screen_test *t = &r->tests[j];
+        const double have[7] = {t->quantile_tail[0], t->quantile[0], t->quantile[1], t->quantile[2],
+                                t->quantile[3], t->quantile[4], t->quantile_tail[1]};
+        int ok = got == 7;
+        for (int q = 0; ok && q < 7; q++)
+            ok = check_close(have[q], want[q], 1e-12, 1e-15);
+        CHECK(ok, "%s test %zu: null quantiles .01 .. .99 as numpy's (%d values)", name, j, got);
+    }
+}
+
 static void stations(void)
 {
     series_table t;
@@ -93,6 +114,8 @@ static void stations(void)
                   t.names[k], st);
             if (st == SLOWSCAN_OK)
                 compare_with_summary(summary, t.names[k], &r);
+            if (st == SLOWSCAN_OK && threads == 1 && k < 2)
+                null_quantiles_match(ws, &r, cfg.surrogates, t.names[k]);
             CHECK(slowscan_screen_workspace_path(ws, 0) && slowscan_screen_workspace_null(ws, 2) &&
                   slowscan_screen_workspace_prepared(ws)->n == t.n, "%s: paths and null kept", t.names[k]);
         }

@@ -28,7 +28,9 @@ SLOWSCAN_API
 const char *slowscan_report_format_extension(report_format format);
 
 /* Page geometry, in pixels for PNG and points for SVG/PDF: every figure is REPORT_PAGE_WIDTH
- * wide; its height is REPORT_PAGE_TOP + rows x (the row height) + REPORT_PAGE_BOTTOM. */
+ * wide; its height is REPORT_PAGE_TOP + the rows' heights + REPORT_PAGE_BOTTOM. Text sizes
+ * are fixed lengths (not fractions of the page), and where labels go is worked out from
+ * their measured extents when the figure is drawn. */
 enum {
     REPORT_PAGE_WIDTH = 880,
     REPORT_PAGE_TOP = 56,
@@ -44,7 +46,8 @@ typedef struct {
     size_t rows;
     size_t cols[REPORT_MAX_ROWS];
     int row_height;   /* REPORT_ROW_HEIGHT or REPORT_TALL_ROW_HEIGHT */
-    int right_margin; /* extra room on the right (colour bars), page units */
+    int right_margin; /* extra room on the right (keys), page units */
+    int heights[REPORT_MAX_ROWS]; /* a row's own height; 0: row_height */
 } report_layout;
 
 /* A rectangle in normalised page coordinates (0..1, y upwards), as PLplot's plvpor takes. */
@@ -86,6 +89,13 @@ int slowscan_report_batch_open(report_batch **batch, const char *dir, report_for
 SLOWSCAN_API
 int slowscan_report_batch_draw(report_batch *batch, const report_figure_type *type, const void *data,
                       const char *prefix, const char *name, io_error *err);
+/* With `on`, every figure drawn from now on gets a manifest FIGURE.EXT.boxes beside it,
+ * committed with it: a line "page 0 0 W H", then per string and panel drawn its kind ("text"
+ * or "panel"), its box x0 y0 x1 y1 in page units from the top left, and its text (or the
+ * panel's name), tab-separated. Text boxes are measured from the rendered glyphs. The
+ * geometry test reads it; the CLI turns it on when SLOWSCAN_FIGURE_BOXES is set. */
+SLOWSCAN_API
+void slowscan_report_batch_record_boxes(report_batch *batch, int on);
 /* Renames every figure into place; on failure the ones not yet renamed are removed. */
 SLOWSCAN_API
 int slowscan_report_batch_commit(report_batch *batch, io_error *err);
@@ -106,33 +116,39 @@ void slowscan_report_safe_name(const char *name, char *out, size_t size);
 
 /* ---- figure types ---------------------------------------------------------------------- */
 
-/* One test of a series: the indicator path (NULL for a test without one) and the statistic's
- * null distribution as a histogram (counts NULL when there was none). */
+/* One test of a series: its indicator path (NULL for a test without one), its statistic,
+ * and its null distribution summarised by quantiles. */
 typedef struct {
-    const char *label;      /* "variance", "recovery_trend", ... */
+    const char *label;          /* "variance", "recovery_trend", ... */
     const char *statistic_name; /* "tau" or "t(a1)" */
-    const double *path;     /* n values or NULL */
+    const double *path;         /* n values or NULL */
     double statistic, p_value, q_value;
-    size_t nbins;
-    double bin_lo, bin_hi;  /* the histogram's range */
-    const double *counts;   /* nbins */
+    double null_q01, null_q05, null_q50, null_q95, null_q99; /* NaN without a null */
+    size_t surrogates;          /* M behind p (its floor is 1/(M+1)); 0: none */
+    const char *verdict;        /* "rising", "falling", "none", ...; NULL: not shown */
+    int flagged;                /* the verdict is a flag (drawn in the mark colour) */
 } report_series_test;
 
-/* Per-series figure: the series with its trend, the residual, one panel per indicator path
- * (tau, p, q in the title; the first window as a bracket), and a row of null histograms
- * with the observed statistic marked. */
+/* Per-series figure, read from the top: the record with its trend and the first window
+ * shaded on the time axis; every indicator path standardised on one panel, each named at its
+ * right end; then one line per test: its null distribution as two nested intervals (5-95%
+ * and 1-99%) with the median, the observed statistic as a point, and p, q and the verdict
+ * in words. Rolling tests share a Kendall-tau axis, recovery_trend has its own. */
 typedef struct {
     const char *name, *time_name, *source;
     size_t n;
-    const double *time, *value, *trend, *residual;
+    const double *time, *value, *trend;
     size_t window; /* W, samples */
     const report_series_test *tests;
     size_t ntests;
 } report_series_data;
 extern SLOWSCAN_API const report_figure_type slowscan_report_series_figure;
 
-/* Screening overview: per test, every series' statistic against -log10(q); the series with
- * flag set are labelled, at most REPORT_OVERVIEW_LABELS of them (smallest q first). */
+/* Screening overview: per test, every series' statistic against -log10(q). The series with
+ * flag set are named, strongest first (smallest q, then the larger |statistic|), each where
+ * its name touches no other name or flagged point: the first REPORT_OVERVIEW_LABELS may be
+ * moved off their point with a leader line, later ones only beside it, at most 40; the
+ * number left unnamed is given in a box in the emptiest corner. */
 enum { REPORT_OVERVIEW_LABELS = 20 };
 typedef struct {
     const char *series;

@@ -88,9 +88,12 @@ const char *slowscan_screen_test_name(int kind);
 SLOWSCAN_API
 int slowscan_screen_test_rolling(int kind);
 
-/* Quantiles of each test's null distribution. */
-enum { SCREEN_QUANTILES = 5 };
+/* Quantiles of each test's null distribution: the five of the JSON summary, and the two
+ * outer ones the figures draw as the null's wider interval (kept apart so that the JSON,
+ * which lists screen_quantile_levels, stays as it was). */
+enum { SCREEN_QUANTILES = 5, SCREEN_TAIL_QUANTILES = 2 };
 extern const double screen_quantile_levels[SCREEN_QUANTILES]; /* .05 .25 .5 .75 .95 */
+extern const double screen_tail_levels[SCREEN_TAIL_QUANTILES]; /* .01 .99 */
 
 /* Why a test has no statistic or no p-value. */
 typedef enum {
@@ -113,6 +116,7 @@ typedef struct {
     size_t surrogates;      /* surrogates drawn for this test (0: none) */
     size_t null_used;       /* finite null values behind p */
     double quantile[SCREEN_QUANTILES];
+    double quantile_tail[SCREEN_TAIL_QUANTILES];
     screen_reason reason;   /* why statistic (or p) is NaN */
 } screen_test;
 

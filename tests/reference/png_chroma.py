@@ -72,4 +72,5 @@ def main():
     print(" ".join(out))
 
 
-main()
+if __name__ == "__main__":
+    main()
