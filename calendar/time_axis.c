@@ -76,3 +76,29 @@ int slowscan_time_axis_value(const time_axis *axis, const char *text, const char
     return SLOWSCAN_OK;
 }
 
+
+double slowscan_time_axis_decimal_year(const time_axis *axis, double value)
+{
+    switch (axis->unit) {
+    case TIME_AXIS_MONTHS: return value / 12.0; /* month 0 is January of year 0 */
+    case TIME_AXIS_YEARS: return value;
+    case TIME_AXIS_DAYS: {
+        calendar_date d, jan1 = {0, 1, 1, 0, 0, 0.0, 0}, next = {0, 1, 1, 0, 0, 0.0, 0};
+        double start, end;
+        if (slowscan_calendar_from_day_number(axis->calendar, value, &d) != SLOWSCAN_OK)
+            return NAN;
+        jan1.year = d.year;
+        next.year = d.year == -1 && (axis->calendar == CALENDAR_STANDARD ||
+                                     axis->calendar == CALENDAR_JULIAN)
+                        ? 1 : d.year + 1; /* no year 0 in those two */
+        if (slowscan_calendar_day_number(axis->calendar, &jan1, &start) != SLOWSCAN_OK ||
+            slowscan_calendar_day_number(axis->calendar, &next, &end) != SLOWSCAN_OK)
+            return NAN;
+        double year = d.year < 0 && (axis->calendar == CALENDAR_STANDARD ||
+                                     axis->calendar == CALENDAR_JULIAN)
+                          ? (double)d.year + 1 : (double)d.year; /* astronomical */
+        return year + (value - start) / (end - start);
+    }
+    default: return value;
+    }
+}

@@ -183,6 +183,10 @@ void cli_outputs_abort(cli_outputs *outs);
 
 /* Writes a number the way every slowscan CSV does: %.12g, NA for non-finite. */
 void cli_put_number(FILE *fp, double v);
+/* A series' times as a figure's x values: decimal years on a dated axis (in *owned, which
+ * the caller frees; NULL when out of memory), else its own times; label names the axis. */
+const double *cli_figure_times(const prepared_series *ps, double **owned, char *label,
+                               size_t size);
 /* A time of the series' axis: a date on a dated axis, else the number (an age as written). */
 void cli_put_time(FILE *fp, const time_axis *axis, double v);
 /* JSON (RFC 8259): a string with its escapes; a number, or null when not finite. */

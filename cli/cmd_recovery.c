@@ -32,6 +32,14 @@ static double index_time(const prepared_series *ps, double index)
     return ps->time[0] + index * ps->dt;
 }
 
+/* The same as a figure's x value (a decimal year on a dated axis; cli_figure_times). */
+static double index_x(const prepared_series *ps, double index)
+{
+    double t = index_time(ps, index);
+    return ps->axis.unit == TIME_AXIS_NUMBER || !isfinite(t)
+               ? t : slowscan_time_axis_decimal_year(&ps->axis, t);
+}
+
 static const char *status_name(const ar1_projection *pr)
 {
     return pr->draws == 0 ? not_computed : projection_status[pr->kind];
@@ -95,12 +103,12 @@ static report_crossing figure_crossing(const prepared_series *ps, const ar1_drif
         double phi = fit->a0 + fit->a1 * (index / last - 0.5);
         if (!(phi > 0))
             break;
-        ext[m] = index_time(ps, index);
+        ext[m] = index_x(ps, index);
         ext[EXTENSION_POINTS + m++] = fmin(log(phi) / ps->dt, 0.0);
     }
-    report_crossing c = {pr->kind != PROJECTION_NONE, index_time(ps, pr->index),
-                         index_time(ps, pr->index_lo), index_time(ps, pr->index_hi),
-                         pr->kind == PROJECTION_NONE, index_time(ps, 2.0 * last), m, ext,
+    report_crossing c = {pr->kind != PROJECTION_NONE, index_x(ps, pr->index),
+                         index_x(ps, pr->index_lo), index_x(ps, pr->index_hi),
+                         pr->kind == PROJECTION_NONE, index_x(ps, 2.0 * last), m, ext,
                          ext + EXTENSION_POINTS};
     return c;
 }
@@ -157,10 +165,18 @@ static int project_and_draw(recovery_run *run, const prepared_series *ps,
     int drawn = run->projection && r->projection.draws > 0;
     if (drawn)
         crossing = figure_crossing(ps, &r->fit, &r->projection, extension);
-    report_recovery_data data = {ps->name, ps->time_name, ps->n, ps->time, path,
+    double *owned;
+    char label[300];
+    const double *x = cli_figure_times(ps, &owned, label, sizeof label);
+    if (!x)
+        return EXIT_INTERNAL;
+    report_recovery_data data = {ps->name, label, ps->n, x, path,
                                  path + ps->n, path + 2 * ps->n, r->fit.t_a1, r->p_value,
                                  drawn ? &crossing : NULL};
-    return cli_figure_draw(run->figures, &slowscan_report_recovery_figure, &data, "recovery", ps->name);
+    int rc = cli_figure_draw(run->figures, &slowscan_report_recovery_figure, &data, "recovery",
+                             ps->name);
+    free(owned);
+    return rc;
 }
 
 /* The library's analysis of one series, then its rows. */

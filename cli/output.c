@@ -138,6 +138,22 @@ void cli_put_number(FILE *fp, double v)
         fputs("NA", fp);
 }
 
+const double *cli_figure_times(const prepared_series *ps, double **owned, char *label,
+                               size_t size)
+{
+    *owned = NULL;
+    if (ps->axis.unit == TIME_AXIS_NUMBER) {
+        snprintf(label, size, "%s%s", ps->axis.backward ? "-" : "", ps->time_name);
+        return ps->time;
+    }
+    snprintf(label, size, "%s (year)", ps->time_name);
+    if (!(*owned = malloc(ps->n * sizeof **owned)))
+        return NULL;
+    for (size_t i = 0; i < ps->n; i++)
+        (*owned)[i] = slowscan_time_axis_decimal_year(&ps->axis, ps->time[i]);
+    return *owned;
+}
+
 void cli_put_time(FILE *fp, const time_axis *axis, double v)
 {
     char text[64];

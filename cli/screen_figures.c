@@ -57,10 +57,16 @@ static int draw_series(const cli_options *opts, const prepared_series *ps, void 
     report_series_test list[SCREEN_MAX_TESTS];
     for (size_t j = 0; j < tests; j++)
         list[j] = test_of(&run->rows[first + j], j < opts->nindicators ? values[j] : NULL);
-    report_series_data data = {ps->name, ps->time_name, ps->source, ps->n, ps->time, ps->value,
+    double *owned;
+    char label[300];
+    const double *x = cli_figure_times(ps, &owned, label, sizeof label);
+    report_series_data data = {ps->name, label, ps->source, ps->n, x, ps->value,
                                ps->trend, ps->window, list, tests};
+    if (rc == EXIT_OK && !x)
+        rc = EXIT_INTERNAL;
     if (rc == EXIT_OK)
         rc = cli_figure_draw(run->figures, &slowscan_report_series_figure, &data, "screen", ps->name);
+    free(owned);
     if (!ps->constant)
         cli_indicator_values_free(opts, values);
     return rc;

@@ -143,6 +143,11 @@ int slowscan_time_axis_format(const time_axis *axis, double value, char *buffer,
 
 /* Reads `text` as a time of the axis (for --from/--until): a date on a dated axis, a number on
  * a number axis. SLOWSCAN_EINVAL for text that is neither, or a date the calendar lacks. */
+/* A time of a dated axis as a decimal year (the date's year plus the fraction of its
+ * calendar year elapsed), for plotting against a readable axis; a number axis' value as it is. */
+SLOWSCAN_API
+double slowscan_time_axis_decimal_year(const time_axis *axis, double value);
+
 SLOWSCAN_API
 int slowscan_time_axis_value(const time_axis *axis, const char *text, const char *format,
                              double *value);
