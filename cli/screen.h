@@ -5,10 +5,21 @@
 
 #include "cli.h"
 
-#include <gsl/gsl_histogram.h>
+#include "slowscan/screen_store.h"
 
+/* --figures: a test's null distribution, binned (a few hundred bytes, kept with its series in
+ * the run's store, so memory stays bounded for many series). */
+enum { SCREEN_NULL_BINS = 30 };
 typedef struct {
-    char *series;
+    int present; /* 0: no finite null value */
+    double lo, hi;
+    double counts[SCREEN_NULL_BINS];
+} screen_null_bins;
+
+/* One row of the summary: a test of a series, read back from the run's store (series and
+ * bins point into the store until its next read). */
+typedef struct {
+    const char *series;
     size_t n;
     double window, bandwidth, q_value;
     screen_test result; /* kind, tau, p, the null's quantiles */
@@ -16,26 +27,33 @@ typedef struct {
     int harmonics; /* the cycle removed: -1 none, 0 the mean cycle, K harmonics */
     detrend_leakage leakage; /* the series' trend-leakage test (valid when leakage_tested) */
     int leakage_tested;
-    gsl_histogram *null_hist; /* with --figures: the null distribution, binned; else NULL */
+    const screen_null_bins *bins; /* with --figures: the null, binned; else NULL */
 } screen_row;
 
 typedef struct {
     FILE *out, *rolling;
-    screen_row *rows;
-    size_t nrows, cap;
+    screen_store *store; /* every series' record until the q-values are known */
+    int name_width;      /* the longest series name with a row (the table's first column) */
     screen_config cfg;
     FILE *json;
     report_batch *figures; /* --figures DIR */
-    size_t figure_series;  /* series drawn so far (rows of series s start at s x tests) */
+    size_t figure_series;  /* series drawn so far */
 } screen_run;
 
-/* Writes the run as JSON: every parameter needed to reproduce it, then the rows. */
-void cli_screen_json(FILE *fp, const cli_options *opts, const screen_run *run);
+/* The rows of stored series k into rows[SCREEN_MAX_TESTS]; returns how many, or 0 with the
+ * message printed and *rc set. */
+size_t cli_screen_series_rows(screen_run *run, size_t k, screen_row *rows, int *rc);
+/* Calls visit for every row of the run in order (index counts rows); stops at the first exit
+ * code other than EXIT_OK and returns it. */
+typedef int (*screen_row_visitor)(const screen_row *row, size_t index, void *context);
+int cli_screen_each_row(screen_run *run, screen_row_visitor visit, void *context);
 
-/* screen --figures (cli_screen_figures.c): the null of one row, kept binned (a few hundred bytes
- * a row, so memory stays bounded for many series); then, after the q-values, one figure per
- * series and the overview. */
-int cli_screen_keep_null(screen_row *row, const double *null, size_t m);
+/* Writes the run as JSON: every parameter needed to reproduce it, then the rows. */
+int cli_screen_json(FILE *fp, const cli_options *opts, screen_run *run);
+
+/* screen --figures (screen_figures.c): the null of one test, binned; then, after the
+ * q-values, one figure per series and the overview. */
+int cli_screen_bin_null(const double *null, size_t m, screen_null_bins *bins);
 int cli_screen_figures(const cli_options *opts, const cli_inputs *in, void *context);
 
 #endif

@@ -18,5 +18,6 @@
 #include "slowscan/io.h"
 #include "slowscan/screen.h"
 #include "slowscan/screen_batch.h"
+#include "slowscan/screen_store.h"
 
 #endif

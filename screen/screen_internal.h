@@ -46,6 +46,10 @@ int screen_attach_control_with(screen_workspace *ws, const screen_config *cfg,
                                screen_prepared *ps, const screen_input *control,
                                screen_detail *d);
 
+/* The flag of test t whose q-value is q, among `tested` tests with a p-value in the run
+ * (slowscan_screen_decide's rule; q is NaN when t has no p). */
+screen_flag screen_flag_of(const screen_test *t, double q, size_t tested, double fdr);
+
 /* The rolling spec of a prepared series (window, coverage, step, band) and, with per-window
  * indicators, the plan kept in the workspace (made here, before any thread starts). */
 int screen_rolling_ready(screen_workspace *ws, const screen_config *cfg,

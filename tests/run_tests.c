@@ -27,6 +27,7 @@ void suite_library(void);
 void suite_golden(void);
 void suite_screen(void);
 void suite_batch(void);
+void suite_store(void);
 
 static const struct {
     const char *name;
@@ -40,7 +41,7 @@ static const struct {
     {"co2", suite_co2},               {"calibration", suite_calibration},
     {"library", suite_library},
     {"golden", suite_golden},         {"screen", suite_screen},
-    {"batch", suite_batch},
+    {"batch", suite_batch},           {"store", suite_store},
 };
 
 int main(int argc, char **argv)
