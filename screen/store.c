@@ -1,28 +1,37 @@
 /* The screening run's store (screen_store.h): p-values in memory, full records in a record
  * spill store, q-values after the decision.
  *
- * A record is plain data: a header with the sizes, the screen_result, the caller's block
- * (at a 16-byte boundary of the record, which is read into a malloc'd buffer, so the block
- * comes back aligned for any plain type) and the name with its NUL. */
+ * A record is plain data: a header with the sizes; the screen_result without its unused
+ * test slots (a third of its size with the default three tests); the caller's block, at a
+ * 16-byte boundary of the record, which is read into a malloc'd buffer, so the block comes
+ * back aligned for any plain type; and the name with its NUL. */
 #include "screen_internal.h"
 #include "slowscan/screen_store.h"
 #include "slowscan/significance.h"
 #include "slowscan/status.h"
 
 #include <math.h>
+#include <stddef.h>
 #include <stdint.h>
 #include <stdlib.h>
 #include <string.h>
 
 typedef struct {
-    size_t extra_size, name_size;
+    size_t extra_size, name_size, ntests;
 } record_header;
 
 enum { RECORD_ALIGN = 16 };
 
-static size_t extra_at(void)
+/* The result's fields up to its last used test, and from its warnings on. */
+static size_t head_size(size_t ntests)
 {
-    size_t at = sizeof(record_header) + sizeof(screen_result);
+    return offsetof(screen_result, tests) + ntests * sizeof(screen_test);
+}
+static const size_t tail_at = offsetof(screen_result, nwarnings);
+
+static size_t extra_at(size_t ntests)
+{
+    size_t at = sizeof(record_header) + head_size(ntests) + sizeof(screen_result) - tail_at;
     return (at + RECORD_ALIGN - 1) / RECORD_ALIGN * RECORD_ALIGN;
 }
 
@@ -108,16 +117,18 @@ int slowscan_screen_store_add(screen_store *s, const char *name, const screen_re
 {
     if (s->decided || res->ntests > SCREEN_MAX_TESTS)
         return SLOWSCAN_EINVAL;
-    record_header h = {extra_size, strlen(name) + 1};
-    size_t at = extra_at();
+    record_header h = {extra_size, strlen(name) + 1, res->ntests};
+    size_t at = extra_at(res->ntests), head = head_size(res->ntests);
     if (extra_size > SIZE_MAX - at - h.name_size || reserve(s, res, at + extra_size + h.name_size))
         return SLOWSCAN_ENOMEM;
-    memset(s->buffer, 0, at); /* the padding too: a record holds no stray bytes */
-    memcpy(s->buffer, &h, sizeof h);
-    memcpy(s->buffer + sizeof h, res, sizeof *res);
+    unsigned char *b = s->buffer;
+    memset(b, 0, at); /* the padding too: a record holds no stray bytes */
+    memcpy(b, &h, sizeof h);
+    memcpy(b + sizeof h, res, head);
+    memcpy(b + sizeof h + head, (const unsigned char *)res + tail_at, sizeof *res - tail_at);
     if (extra_size)
-        memcpy(s->buffer + at, extra, extra_size);
-    memcpy(s->buffer + at + extra_size, name, h.name_size);
+        memcpy(b + at, extra, extra_size);
+    memcpy(b + at + extra_size, name, h.name_size);
     int st = slowscan_spill_append(s->records, s->buffer, at + extra_size + h.name_size, err);
     if (st != SLOWSCAN_OK)
         return st;
@@ -158,10 +169,14 @@ int slowscan_screen_store_read(screen_store *s, size_t index, screen_stored *out
         return st;
     record_header h;
     memcpy(&h, s->buffer, sizeof h);
-    memcpy(&out->result, s->buffer + sizeof h, sizeof out->result);
-    out->extra = h.extra_size ? s->buffer + extra_at() : NULL;
+    size_t head = head_size(h.ntests), at = extra_at(h.ntests);
+    memset(&out->result, 0, sizeof out->result);
+    memcpy(&out->result, s->buffer + sizeof h, head);
+    memcpy((unsigned char *)&out->result + tail_at, s->buffer + sizeof h + head,
+           sizeof out->result - tail_at);
+    out->extra = h.extra_size ? s->buffer + at : NULL;
     out->extra_size = h.extra_size;
-    out->name = (const char *)s->buffer + extra_at() + h.extra_size;
+    out->name = (const char *)s->buffer + at + h.extra_size;
     for (size_t j = 0; j < out->result.ntests; j++) {
         const screen_test *t = &out->result.tests[j];
         out->q_value[j] = s->decided ? s->p[s->first[index] + j] : NAN;
