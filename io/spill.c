@@ -182,7 +182,8 @@ int slowscan_spill_read(record_spill *s, size_t index, void *out, io_error *err)
         return SLOWSCAN_OK;
     }
     char why[128];
-    if ((s->last == SPILL_LAST_WRITE || s->position != at) && fseeko(s->fp, (off_t)at, SEEK_SET) != 0)
+    if ((s->last == SPILL_LAST_WRITE || s->position != at) &&
+        fseeko(s->fp, (off_t)at, SEEK_SET) != 0)
         return io_fail(err, SLOWSCAN_EIO, "cannot read the temporary file in %s: %s",
                        spill_dir(s), io_strerror(errno, why, sizeof why));
     s->last = SPILL_LAST_READ;

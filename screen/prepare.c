@@ -126,9 +126,10 @@ static int same_detrend(const screen_workspace *ws, const detrend_spec *spec, do
                         size_t n)
 {
     const detrend_spec *kept = &ws->detrend_spec;
+    int bandwidth = !slowscan_detrend_uses_bandwidth(spec->method) ||
+                    kept->bandwidth == spec->bandwidth;
     return ws->detrend && kept->method == spec->method && kept->degree == spec->degree &&
-           (!slowscan_detrend_uses_bandwidth(spec->method) || kept->bandwidth == spec->bandwidth) &&
-           ws->detrend_dt == dt && ws->detrend_n == n;
+           bandwidth && ws->detrend_dt == dt && ws->detrend_n == n;
 }
 
 /* A batch of series on one grid plans FFTW once per worker instead of once per series. */

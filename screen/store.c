@@ -18,6 +18,7 @@
 
 typedef struct {
     size_t extra_size, name_size, ntests;
+    size_t first_test; /* where its tests' p-values (q-values) are in the store's array */
 } record_header;
 
 enum { RECORD_ALIGN = 16 };
@@ -39,8 +40,6 @@ struct screen_store {
     record_spill *records;
     double *p;        /* one per test: the p-values, then (decided) the q-values */
     size_t ntests, p_cap;
-    size_t *first;    /* count + 1: series k's tests are [first[k], first[k + 1]) */
-    size_t first_cap;
     size_t tested;    /* tests with a p-value */
     int decided;
     double fdr;
@@ -53,14 +52,10 @@ screen_store *slowscan_screen_store_alloc(size_t spill_after, const char *dir)
     screen_store *s = calloc(1, sizeof *s);
     if (!s)
         return NULL;
-    s->records = slowscan_spill_alloc(spill_after, dir);
-    s->first = malloc(sizeof *s->first);
-    if (!s->records || !s->first) {
-        slowscan_screen_store_free(s);
+    if (!(s->records = slowscan_spill_alloc(spill_after, dir))) {
+        free(s);
         return NULL;
     }
-    s->first[0] = 0;
-    s->first_cap = 1;
     return s;
 }
 
@@ -70,7 +65,6 @@ void slowscan_screen_store_free(screen_store *s)
         return;
     slowscan_spill_free(s->records);
     free(s->p);
-    free(s->first);
     free(s->buffer);
     free(s);
 }
@@ -98,13 +92,11 @@ static int buffer_fit(screen_store *s, size_t size)
     return SLOWSCAN_OK;
 }
 
-/* Room for the series' p-values and its offset; the record is packed into the buffer. */
+/* Room for the series' p-values; the record is packed into the buffer. */
 static int reserve(screen_store *s, const screen_result *res, size_t record_size)
 {
-    size_t count = slowscan_spill_count(s->records);
-    void *first = s->first, *p = s->p;
-    int st = slowscan_io_reserve(&first, &s->first_cap, count + 1, sizeof *s->first, 64);
-    s->first = first;
+    void *p = s->p;
+    int st = SLOWSCAN_OK;
     for (size_t j = 0; st == SLOWSCAN_OK && j < res->ntests; j++) {
         st = slowscan_io_reserve(&p, &s->p_cap, s->ntests + j, sizeof *s->p, 256);
         s->p = p;
@@ -117,7 +109,7 @@ int slowscan_screen_store_add(screen_store *s, const char *name, const screen_re
 {
     if (s->decided || res->ntests > SCREEN_MAX_TESTS)
         return SLOWSCAN_EINVAL;
-    record_header h = {extra_size, strlen(name) + 1, res->ntests};
+    record_header h = {extra_size, strlen(name) + 1, res->ntests, s->ntests};
     size_t at = extra_at(res->ntests), head = head_size(res->ntests);
     if (extra_size > SIZE_MAX - at - h.name_size || reserve(s, res, at + extra_size + h.name_size))
         return SLOWSCAN_ENOMEM;
@@ -136,13 +128,15 @@ int slowscan_screen_store_add(screen_store *s, const char *name, const screen_re
         s->p[s->ntests++] = res->tests[j].p_value;
         s->tested += !isnan(res->tests[j].p_value);
     }
-    size_t count = slowscan_spill_count(s->records);
-    s->first[count] = s->ntests;
     return SLOWSCAN_OK;
 }
 
 int slowscan_screen_store_decide(screen_store *s, double fdr)
 {
+    if (s->decided) { /* the q-values do not depend on fdr; only the flags do */
+        s->fdr = fdr;
+        return SLOWSCAN_OK;
+    }
     double *q = malloc((s->ntests + 1) * sizeof *q);
     int st = q ? slowscan_significance_bh(s->p, s->ntests, q, NULL) : SLOWSCAN_ENOMEM;
     if (st != SLOWSCAN_OK) {
@@ -179,7 +173,7 @@ int slowscan_screen_store_read(screen_store *s, size_t index, screen_stored *out
     out->name = (const char *)s->buffer + at + h.extra_size;
     for (size_t j = 0; j < out->result.ntests; j++) {
         const screen_test *t = &out->result.tests[j];
-        out->q_value[j] = s->decided ? s->p[s->first[index] + j] : NAN;
+        out->q_value[j] = s->decided ? s->p[h.first_test + j] : NAN;
         out->flag[j] = s->decided ? screen_flag_of(t, out->q_value[j], s->tested, s->fdr)
                                   : SCREEN_FLAG_UNTESTED;
     }

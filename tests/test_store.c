@@ -45,8 +45,8 @@ static int read_matches(record_spill *s, size_t k)
     unsigned char want[301], got[301];
     size_t size = record_of(k, want);
     io_error err;
-    return slowscan_spill_size(s, k) == size && slowscan_spill_read(s, k, got, &err) == SLOWSCAN_OK &&
-           memcmp(got, want, size) == 0;
+    return slowscan_spill_size(s, k) == size &&
+           slowscan_spill_read(s, k, got, &err) == SLOWSCAN_OK && memcmp(got, want, size) == 0;
 }
 
 /* Appends and reads interleaved (a read between two appends, backwards, repeated), in memory
@@ -226,8 +226,8 @@ static void command_spills_identically(const char *dir)
         }
         if (d)
             closedir(d);
-        CHECK(figures == 12 && differ == 0, "screen --figures: %zu figures, %zu differ when spilled",
-              figures, differ);
+        CHECK(figures == 12 && differ == 0,
+              "screen --figures: %zu figures, %zu differ when spilled", figures, differ);
         free(err[0]);
         free(err[1]);
     }

@@ -3,11 +3,11 @@
  *
  * The q-values (Benjamini-Hochberg) and flags need every test's p-value of the whole run, so
  * the rows of a summary can only be written once every series is screened. The store keeps
- * in memory only what the decision needs — one p-value per test and one offset per series —
- * and each series' full record (its name, its screen_result, and a block of the caller's own
- * plain data, such as a figure's binned null) in a record spill store (io.h): in memory for
- * the first `spill_after` series, then in an unnamed temporary file. 10^6 series then need
- * about 40 MB of memory, not 10^6 full records.
+ * in memory only what the decision needs — one p-value per test (and the spill store's
+ * offset per series) — and each series' full record (its name, its screen_result, and a
+ * block of the caller's own plain data, such as a figure's binned null) in a record spill
+ * store (io.h): in memory for the first `spill_after` series, then in an unnamed temporary
+ * file. 10^6 series of three tests then need about 32 MB of memory, not 10^6 full records.
  *
  *     add (series in order) ... -> decide (q, flags) -> read (series k, any order, any times)
  *
@@ -48,7 +48,8 @@ SLOWSCAN_API
 size_t slowscan_screen_store_tests(const screen_store *store);
 
 /* The q-values of every test of the store and, on reading, the flags: exactly what
- * slowscan_screen_decide gives for the same tests in the same order. SLOWSCAN_ENOMEM. */
+ * slowscan_screen_decide gives for the same tests in the same order. Again: new flags for
+ * another fdr. SLOWSCAN_ENOMEM. */
 SLOWSCAN_API
 int slowscan_screen_store_decide(screen_store *store, double fdr);
 
