@@ -113,6 +113,8 @@ static int open_file(record_spill *s, io_error *err)
 
 static int append_to_memory(record_spill *s, const void *record, size_t size)
 {
+    if (size == 0)
+        return SLOWSCAN_OK;
     size_t used = s->offset[s->count];
     if (used + size > s->memory_cap) {
         size_t cap = s->memory_cap ? s->memory_cap : 4096;
