@@ -51,7 +51,7 @@ static int store_failed(int status, const io_error *err)
 static int record_series(const prepared_series *ps, screen_run *run, const screen_result *res,
                          const double *const *nulls)
 {
-    screen_null_bins bins[SCREEN_MAX_TESTS];
+    screen_null_bins bins[SCREEN_MAX_TESTS] = {{0}}; /* no stray bytes in the record */
     for (size_t j = 0; j < res->ntests; j++) {
         const screen_test *t = &res->tests[j];
         /* a constant series was warned about when its paths were made */
@@ -59,7 +59,6 @@ static int record_series(const prepared_series *ps, screen_run *run, const scree
             cli_warning("%s: column '%s', indicator %s: %s; flagged insufficient", ps->source,
                         ps->name, slowscan_screen_test_name(t->kind),
                         cli_screen_reason(t->reason));
-        bins[j].present = 0;
         if (run->figures && t->null_used > 0 && nulls && nulls[j] &&
             cli_screen_bin_null(nulls[j], t->surrogates, &bins[j]) != EXIT_OK)
             return EXIT_INTERNAL;
