@@ -7,10 +7,9 @@
  * deterministic — and only each test's null distribution is kept from the run, binned, with
  * the series' record in the run's store. */
 #include "screen.h"
-
-#include <gsl/gsl_histogram.h>
 #include "slowscan/status.h"
 
+#include <gsl/gsl_histogram.h>
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
