@@ -29,11 +29,11 @@ typedef enum { UNIFORM_ANY, UNIFORM_GSL_MT, UNIFORM_OWN_MT } uniform_source;
 
 static inline double symmetric_uniform(gsl_rng *rng, uniform_source source)
 {
-    if (source == UNIFORM_OWN_MT)
-        return ((double)surrogate_mt_next(rng) - 2147483648.0) * (1.0 / 2147483648.0);
-    if (source == UNIFORM_GSL_MT)
-        return ((double)rng->type->get(rng->state) - 2147483648.0) * (1.0 / 2147483648.0);
-    return 2.0 * gsl_rng_uniform(rng) - 1.0;
+    if (source == UNIFORM_ANY)
+        return 2.0 * gsl_rng_uniform(rng) - 1.0;
+    double k = source == UNIFORM_OWN_MT ? (double)surrogate_mt_next(rng)
+                                        : (double)rng->type->get(rng->state);
+    return (k - 2147483648.0) * (1.0 / 2147483648.0);
 }
 
 void surrogate_random_phases(surrogate_source *s, const double *amp, double dc, double nyquist,
