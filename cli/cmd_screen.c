@@ -1,7 +1,9 @@
-/* slowscan screen: the main job, through the screening library (screen.h). For every series:
- * its paths and tests (slowscan_screen_indicators, slowscan_screen_test_series) on the series prepared by the
- * shared driver; then q-values and flags (slowscan_screen_decide) and the summary, one row per series
- * x test. This file only turns the results into rows, messages and outputs. */
+/* slowscan screen: the main job, through the screening library. The batch driver
+ * (screen_batch.h) screens every series; each result goes into the run's store
+ * (screen_store.h), which keeps only the p-values in memory and spills the records of many
+ * series to a temporary file; then q-values and flags (slowscan_screen_store_decide) and the
+ * summary, JSON and figures, read back series by series, one row per series x test. This
+ * file only turns the results into rows, messages and outputs. */
 #include "cli.h"
 #include "screen.h"
 #include "slowscan/screen_batch.h"
