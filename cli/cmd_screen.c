@@ -1,7 +1,9 @@
-/* slowscan screen: the main job, through the screening library (screen.h). For every series:
- * its paths and tests (slowscan_screen_indicators, slowscan_screen_test_series) on the series prepared by the
- * shared driver; then q-values and flags (slowscan_screen_decide) and the summary, one row per series
- * x test. This file only turns the results into rows, messages and outputs. */
+/* slowscan screen: the main job, through the screening library. The batch driver
+ * (screen_batch.h) screens every series; each result goes into the run's store
+ * (screen_store.h), which keeps only the p-values in memory and spills the records of many
+ * series to a temporary file; then q-values and flags (slowscan_screen_store_decide) and the
+ * summary, JSON and figures, read back series by series, one row per series x test. This
+ * file only turns the results into rows, messages and outputs. */
 #include "cli.h"
 #include "screen.h"
 #include "slowscan/screen_batch.h"
@@ -35,34 +37,63 @@ static double rolling_window(const screen_result *res, size_t j)
     return slowscan_screen_test_rolling(res->tests[j].kind) ? res->window : NAN;
 }
 
-static screen_row *add_row(screen_run *run)
+/* The results of many series wait for the q-values in a temporary file in $TMPDIR. */
+static int store_failed(int status, const io_error *err)
 {
-    void *rows = run->rows;
-    int st = slowscan_io_reserve(&rows, &run->cap, run->nrows, sizeof *run->rows, 64);
-    run->rows = rows;
-    if (st != SLOWSCAN_OK)
-        return NULL;
-    screen_row *row = &run->rows[run->nrows++];
-    memset(row, 0, sizeof *row);
-    return row;
+    if (status != SLOWSCAN_EIO) {
+        cli_error("out of memory");
+        return EXIT_INTERNAL;
+    }
+    cli_error("%s (set TMPDIR to a folder with room for the run's results)", err->message);
+    return EXIT_BAD_INPUT;
 }
 
-/* One row per test, with the warning of each insufficient one (the figures read the
- * null's quantiles from the result). */
+/* One record per series in the run's store (the figures read each test's null from the
+ * quantiles of its result); warns about each insufficient test. */
 static int record_series(const prepared_series *ps, screen_run *run, const screen_result *res)
 {
     for (size_t j = 0; j < res->ntests; j++) {
-        screen_row *row = add_row(run);
-        if (!row || !(row->series = strdup(ps->name))) {
-            cli_error("out of memory");
-            return EXIT_INTERNAL;
-        }
-        *row = (screen_row){row->series, res->n, rolling_window(res, j), res->bandwidth, NAN,
-                            res->tests[j], SCREEN_FLAG_UNTESTED, res->harmonics, res->leakage,
-                            res->leakage_tested};
+        const screen_test *t = &res->tests[j];
         /* a constant series was warned about when its paths were made */
-        if (isnan(row->result.statistic) && !ps->constant)
-            cli_screen_insufficient(ps, &row->result);
+        if (isnan(t->statistic) && !ps->constant)
+            cli_screen_insufficient(ps, t);
+    }
+    if (res->ntests > 0 && (int)strlen(ps->name) > run->name_width)
+        run->name_width = (int)strlen(ps->name);
+    io_error err = {{0}};
+    int st = slowscan_screen_store_add(run->store, ps->name, res, NULL, 0, &err);
+    return st == SLOWSCAN_OK ? EXIT_OK : store_failed(st, &err);
+}
+
+size_t cli_screen_series_rows(screen_run *run, size_t k, screen_row *rows, int *rc)
+{
+    screen_stored s;
+    io_error err = {{0}};
+    int st = slowscan_screen_store_read(run->store, k, &s, &err);
+    if (st != SLOWSCAN_OK) {
+        *rc = store_failed(st, &err);
+        return 0;
+    }
+    const screen_result *res = &s.result;
+    for (size_t j = 0; j < res->ntests; j++)
+        rows[j] = (screen_row){s.name, res->n, rolling_window(res, j), res->bandwidth,
+                               s.q_value[j], res->tests[j], s.flag[j], res->harmonics,
+                               res->leakage, res->leakage_tested};
+    *rc = EXIT_OK;
+    return res->ntests;
+}
+
+int cli_screen_each_row(screen_run *run, screen_row_visitor visit, void *context)
+{
+    size_t series = slowscan_screen_store_count(run->store), index = 0;
+    for (size_t k = 0; k < series; k++) {
+        screen_row rows[SCREEN_MAX_TESTS];
+        int rc;
+        size_t tests = cli_screen_series_rows(run, k, rows, &rc);
+        for (size_t j = 0; rc == EXIT_OK && j < tests; j++)
+            rc = visit(&rows[j], index++, context);
+        if (rc != EXIT_OK)
+            return rc;
     }
     return EXIT_OK;
 }
@@ -156,24 +187,27 @@ static int run_series(const cli_options *opts, const cli_inputs *in, void *conte
     return rc;
 }
 
-static void write_csv(const cli_options *opts, const screen_run *run)
+typedef struct {
+    const cli_options *opts;
+    FILE *out;
+    int width; /* the table's first column */
+} row_writer;
+
+static int write_csv_row(const screen_row *row, size_t index, void *context)
 {
-    fputs("series,indicator,n,window,bandwidth,tau,statistic,p_value,q_value,null,surrogates,flag\n",
-          run->out);
-    for (size_t r = 0; r < run->nrows; r++) {
-        const screen_row *row = &run->rows[r];
-        cli_put_field(run->out, row->series);
-        fprintf(run->out, ",%s,%zu,", slowscan_screen_test_name(row->result.kind), row->n);
-        const double cells[] = {row->window, row->bandwidth, row->result.tau, row->result.statistic,
-                                row->result.p_value, row->q_value};
-        for (size_t c = 0; c < sizeof cells / sizeof cells[0]; c++) {
-            cli_put_number(run->out, cells[c]);
-            fputc(',', run->out);
-        }
-        fprintf(run->out, "%s,%ld,%s\n",
-                opts->surrogates > 0 ? cli_null_name(opts) : "none",
-                opts->surrogates, slowscan_screen_flag_name(row->flag));
+    (void)index;
+    const row_writer *w = context;
+    cli_put_field(w->out, row->series);
+    fprintf(w->out, ",%s,%zu,", slowscan_screen_test_name(row->result.kind), row->n);
+    const double cells[] = {row->window, row->bandwidth, row->result.tau, row->result.statistic,
+                            row->result.p_value, row->q_value};
+    for (size_t c = 0; c < sizeof cells / sizeof cells[0]; c++) {
+        cli_put_number(w->out, cells[c]);
+        fputc(',', w->out);
     }
+    fprintf(w->out, "%s,%ld,%s\n", w->opts->surrogates > 0 ? cli_null_name(w->opts) : "none",
+            w->opts->surrogates, slowscan_screen_flag_name(row->flag));
+    return EXIT_OK;
 }
 
 static const char *fixed(char buf[32], double v, int digits, int sign)
@@ -185,74 +219,67 @@ static const char *fixed(char buf[32], double v, int digits, int sign)
 }
 
 /* A table for people: aligned columns, the series names padded to the longest. */
-static void write_table(const screen_run *run)
+static int write_table_row(const screen_row *row, size_t index, void *context)
 {
-    int width = 6;
-    for (size_t r = 0; r < run->nrows; r++)
-        if ((int)strlen(run->rows[r].series) > width)
-            width = (int)strlen(run->rows[r].series);
-    fprintf(run->out, "%-*s  %-14s %9s %10s %10s  %s\n", width, "series", "indicator", "statistic",
-            "p", "q", "flag");
-    for (size_t r = 0; r < run->nrows; r++) {
-        const screen_row *row = &run->rows[r];
-        char tau[32], p[32], q[32];
-        fprintf(run->out, "%-*s  %-14s %9s %10s %10s  %s\n", width, row->series,
-                slowscan_screen_test_name(row->result.kind),
-                fixed(tau, row->result.statistic, 3, 1), fixed(p, row->result.p_value, 4, 0),
-                fixed(q, row->q_value, 4, 0), slowscan_screen_flag_name(row->flag));
-    }
+    (void)index;
+    const row_writer *w = context;
+    char tau[32], p[32], q[32];
+    fprintf(w->out, "%-*s  %-14s %9s %10s %10s  %s\n", w->width, row->series,
+            slowscan_screen_test_name(row->result.kind), fixed(tau, row->result.statistic, 3, 1),
+            fixed(p, row->result.p_value, 4, 0), fixed(q, row->q_value, 4, 0),
+            slowscan_screen_flag_name(row->flag));
+    return EXIT_OK;
 }
 
-/* q-values over every test of the run (Benjamini-Hochberg), then the flags. */
-static int decide(const cli_options *opts, screen_run *run)
+static int write_summary(const cli_options *opts, screen_run *run)
 {
-    const screen_test **tests = malloc((run->nrows + 1) * sizeof *tests);
-    double *q = malloc((run->nrows + 1) * sizeof *q);
-    screen_flag *flags = malloc((run->nrows + 1) * sizeof *flags);
-    int st = tests && q && flags ? SLOWSCAN_OK : SLOWSCAN_ENOMEM;
-    for (size_t r = 0; st == SLOWSCAN_OK && r < run->nrows; r++)
-        tests[r] = &run->rows[r].result;
-    if (st == SLOWSCAN_OK)
-        st = slowscan_screen_decide(tests, run->nrows, opts->fdr, q, flags);
-    for (size_t r = 0; st == SLOWSCAN_OK && r < run->nrows; r++) {
-        run->rows[r].q_value = q[r];
-        run->rows[r].flag = flags[r];
+    row_writer w = {opts, run->out, run->name_width > 6 ? run->name_width : 6};
+    if (strcmp(opts->format, "table") != 0) {
+        fputs("series,indicator,n,window,bandwidth,tau,statistic,p_value,q_value,null,surrogates,"
+              "flag\n", run->out);
+        return cli_screen_each_row(run, write_csv_row, &w);
     }
-    free(tests);
-    free(q);
-    free(flags);
-    if (st == SLOWSCAN_OK)
-        return EXIT_OK;
-    cli_error("out of memory");
-    return EXIT_INTERNAL;
+    fprintf(run->out, "%-*s  %-14s %9s %10s %10s  %s\n", w.width, "series", "indicator",
+            "statistic", "p", "q", "flag");
+    return cli_screen_each_row(run, write_table_row, &w);
 }
 
+/* q-values over every test of the run (Benjamini-Hochberg) and the flags, then the outputs,
+ * read back series by series from the store. */
 static int finish(const cli_options *opts, void *context)
 {
     screen_run *run = context;
-    int rc = decide(opts, run);
-    if (rc != EXIT_OK)
-        return rc;
-    if (run->json)
-        cli_screen_json(run->json, opts, run);
-    if (strcmp(opts->format, "table") == 0)
-        write_table(run);
-    else
-        write_csv(opts, run);
-    return EXIT_OK;
+    if (slowscan_screen_store_decide(run->store, opts->fdr) != SLOWSCAN_OK) {
+        cli_error("out of memory");
+        return EXIT_INTERNAL;
+    }
+    int rc = run->json ? cli_screen_json(run->json, opts, run) : EXIT_OK;
+    return rc == EXIT_OK ? write_summary(opts, run) : rc;
+}
+
+/* Series kept in memory before the store spills to a temporary file; the suites set
+ * SLOWSCAN_SPILL_AFTER to make small runs spill (not a user setting). */
+static size_t spill_after(void)
+{
+    const char *text = getenv("SLOWSCAN_SPILL_AFTER");
+    char *end;
+    unsigned long v = text ? strtoul(text, &end, 10) : 0;
+    return text && *text && !*end ? (size_t)v : SCREEN_STORE_SPILL_AFTER;
 }
 
 int cmd_screen(const cli_options *opts)
 {
     screen_run run = {0};
     cli_screen_config(opts, &run.cfg);
+    if (!(run.store = slowscan_screen_store_alloc(spill_after(), NULL))) {
+        cli_error("out of memory");
+        return EXIT_INTERNAL;
+    }
     series_command cmd = {open_outputs, NULL, finish, &run, NULL, cli_screen_figures, run_series};
     if (opts->surrogates > 0 && opts->surrogates < 19)
         cli_warning("option --surrogates %ld: with fewer than 19 surrogates no p-value can reach "
                     "0.05 (the smallest is 1/(M+1))", opts->surrogates);
     int rc = cli_run_series_command(opts, &cmd);
-    for (size_t r = 0; r < run.nrows; r++)
-        free(run.rows[r].series);
-    free(run.rows);
+    slowscan_screen_store_free(run.store);
     return rc;
 }

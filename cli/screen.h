@@ -5,8 +5,13 @@
 
 #include "cli.h"
 
+#include "slowscan/screen_store.h"
+
+
+/* One row of the summary: a test of a series, read back from the run's store (series and
+ * bins point into the store until its next read). */
 typedef struct {
-    char *series;
+    const char *series;
     size_t n;
     double window, bandwidth, q_value;
     screen_test result; /* kind, tau, p, the null's quantiles */
@@ -18,16 +23,24 @@ typedef struct {
 
 typedef struct {
     FILE *out, *rolling;
-    screen_row *rows;
-    size_t nrows, cap;
+    screen_store *store; /* every series' record until the q-values are known */
+    int name_width;      /* the longest series name with a row (the table's first column) */
     screen_config cfg;
     FILE *json;
     report_batch *figures; /* --figures DIR */
-    size_t figure_series;  /* series drawn so far (rows of series s start at s x tests) */
+    size_t figure_series;  /* series drawn so far */
 } screen_run;
 
+/* The rows of stored series k into rows[SCREEN_MAX_TESTS]; returns how many, or 0 with the
+ * message printed and *rc set. */
+size_t cli_screen_series_rows(screen_run *run, size_t k, screen_row *rows, int *rc);
+/* Calls visit for every row of the run in order (index counts rows); stops at the first exit
+ * code other than EXIT_OK and returns it. */
+typedef int (*screen_row_visitor)(const screen_row *row, size_t index, void *context);
+int cli_screen_each_row(screen_run *run, screen_row_visitor visit, void *context);
+
 /* Writes the run as JSON: every parameter needed to reproduce it, then the rows. */
-void cli_screen_json(FILE *fp, const cli_options *opts, const screen_run *run);
+int cli_screen_json(FILE *fp, const cli_options *opts, screen_run *run);
 
 /* screen --figures (screen_figures.c): after the q-values, one figure per series (its tests'
  * nulls summarised by the quantiles of the rows, so memory stays bounded for many series)

@@ -4,7 +4,8 @@
  * The figures need the q-values, which exist only once every series is tested. Rather than
  * keep every series' paths until then (memory would grow with the number of series), the
  * series are prepared again after the run — detrending and rolling indicators are cheap and
- * deterministic — and of each test's null only the quantiles of its result are kept. */
+ * deterministic — and of each test's null only the quantiles of its result are kept, with
+ * the series' record in the run's store. */
 #include "screen.h"
 #include "slowscan/status.h"
 
@@ -44,19 +45,24 @@ static report_series_test test_of(const screen_row *row, const double *path)
 static int draw_series(const cli_options *opts, const prepared_series *ps, void *context)
 {
     screen_run *run = context;
-    size_t tests = slowscan_screen_test_count(&run->cfg), first = run->figure_series++ * tests;
-    if (first + tests > run->nrows || strcmp(run->rows[first].series, ps->name) != 0) {
+    screen_row rows[SCREEN_MAX_TESTS];
+    int rc = EXIT_OK;
+    size_t k = run->figure_series++, tests = 0;
+    if (k < slowscan_screen_store_count(run->store))
+        tests = cli_screen_series_rows(run, k, rows, &rc);
+    if (rc != EXIT_OK)
+        return rc;
+    if (tests != slowscan_screen_test_count(&run->cfg) || strcmp(rows[0].series, ps->name) != 0) {
         cli_error("internal error: screen figures out of step with the summary at '%s'", ps->name);
         return EXIT_INTERNAL;
     }
     double *values[INDICATOR_COUNT] = {NULL};
-    int rc = EXIT_OK;
     /* A constant series has no paths (and was warned about in the run). */
     if (!ps->constant)
         rc = cli_indicator_values(opts, ps, values);
     report_series_test list[SCREEN_MAX_TESTS];
     for (size_t j = 0; j < tests; j++)
-        list[j] = test_of(&run->rows[first + j], j < opts->nindicators ? values[j] : NULL);
+        list[j] = test_of(&rows[j], j < opts->nindicators ? values[j] : NULL);
     double *owned;
     char label[300];
     const double *x = cli_figure_times(ps, &owned, label, sizeof label);
@@ -72,28 +78,53 @@ static int draw_series(const cli_options *opts, const prepared_series *ps, void 
     return rc;
 }
 
-static int draw_overview(const cli_options *opts, const screen_run *run)
+/* Every row as a point of the overview, its series name copied out of the store. */
+typedef struct {
+    report_overview_point *points;
+    char **names;
+    size_t tests;
+    const char *labels[SCREEN_MAX_TESTS];
+} overview_points;
+
+static int add_point(const screen_row *row, size_t index, void *context)
 {
-    size_t tests = slowscan_screen_test_count(&run->cfg);
-    const char *labels[SCREEN_MAX_TESTS], *stats[SCREEN_MAX_TESTS];
-    for (size_t j = 0; j < tests; j++) {
-        labels[j] = slowscan_screen_test_name(run->rows[j].result.kind);
-        stats[j] = j < opts->nindicators ? "Kendall tau" : "t(a1)";
-    }
-    report_overview_point *points = malloc((run->nrows + 1) * sizeof *points);
-    if (!points) {
+    overview_points *o = context;
+    size_t j = index % o->tests;
+    if (j == 0 && !(o->names[index / o->tests] = strdup(row->series))) {
         cli_error("out of memory");
         return EXIT_INTERNAL;
     }
-    for (size_t r = 0; r < run->nrows; r++) {
-        const screen_row *row = &run->rows[r];
-        points[r] = (report_overview_point){row->series, r % tests, row->result.statistic,
-                                            row->q_value, row->flag == SCREEN_FLAG_RISING ||
-                                                          row->flag == SCREEN_FLAG_FALLING};
-    }
-    report_overview_data data = {labels, stats, tests, points, run->nrows, opts->fdr};
-    int rc = cli_figure_draw(run->figures, &slowscan_report_overview_figure, &data, "", "screen-overview");
-    free(points);
+    o->labels[j] = slowscan_screen_test_name(row->result.kind);
+    o->points[index] = (report_overview_point){o->names[index / o->tests], j,
+                                               row->result.statistic, row->q_value,
+                                               row->flag == SCREEN_FLAG_RISING ||
+                                                   row->flag == SCREEN_FLAG_FALLING};
+    return EXIT_OK;
+}
+
+static int draw_overview(const cli_options *opts, screen_run *run)
+{
+    size_t tests = slowscan_screen_test_count(&run->cfg);
+    size_t rows = slowscan_screen_store_tests(run->store);
+    size_t series = slowscan_screen_store_count(run->store);
+    const char *stats[SCREEN_MAX_TESTS];
+    for (size_t j = 0; j < tests; j++)
+        stats[j] = j < opts->nindicators ? "Kendall tau" : "t(a1)";
+    overview_points o = {malloc((rows + 1) * sizeof *o.points),
+                         calloc(series + 1, sizeof *o.names), tests, {NULL}};
+    int rc = o.points && o.names ? EXIT_OK : EXIT_INTERNAL;
+    if (rc != EXIT_OK)
+        cli_error("out of memory");
+    if (rc == EXIT_OK)
+        rc = cli_screen_each_row(run, add_point, &o);
+    report_overview_data data = {o.labels, stats, tests, o.points, rows, opts->fdr};
+    if (rc == EXIT_OK)
+        rc = cli_figure_draw(run->figures, &slowscan_report_overview_figure, &data, "",
+                             "screen-overview");
+    for (size_t k = 0; o.names && k < series; k++)
+        free(o.names[k]);
+    free(o.names);
+    free(o.points);
     return rc;
 }
 

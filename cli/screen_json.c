@@ -120,14 +120,26 @@ static void write_row(FILE *fp, const screen_row *row)
     fputs("}}", fp);
 }
 
-void cli_screen_json(FILE *fp, const cli_options *opts, const screen_run *run)
+typedef struct {
+    FILE *fp;
+    size_t rows;
+} json_rows;
+
+static int put_row(const screen_row *row, size_t index, void *context)
+{
+    const json_rows *j = context;
+    write_row(j->fp, row);
+    fputs(index + 1 < j->rows ? ",\n" : "\n", j->fp);
+    return EXIT_OK;
+}
+
+int cli_screen_json(FILE *fp, const cli_options *opts, screen_run *run)
 {
     fputs("{\n", fp);
     write_parameters(fp, opts);
     fputs("  \"results\": [\n", fp);
-    for (size_t r = 0; r < run->nrows; r++) {
-        write_row(fp, &run->rows[r]);
-        fputs(r + 1 < run->nrows ? ",\n" : "\n", fp);
-    }
+    json_rows rows = {fp, slowscan_screen_store_tests(run->store)};
+    int rc = cli_screen_each_row(run, put_row, &rows);
     fputs("  ]\n}\n", fp);
+    return rc;
 }

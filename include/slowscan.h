@@ -24,5 +24,6 @@
 #include "slowscan/robustness.h"
 #include "slowscan/recovery.h"
 #include "slowscan/message.h"
+#include "slowscan/screen_store.h"
 
 #endif

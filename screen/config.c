@@ -75,6 +75,16 @@ static screen_flag flag_before_decision(const screen_test *t)
     return t->surrogates > 0 ? SCREEN_FLAG_INSUFFICIENT : SCREEN_FLAG_UNTESTED;
 }
 
+screen_flag screen_flag_of(const screen_test *t, double q, size_t tested, double fdr)
+{
+    if (isnan(t->p_value))
+        return flag_before_decision(t);
+    double decisive = tested == 1 ? t->p_value : q; /* one test: p decides itself */
+    /* "falling" only arises when a decreasing or two-sided alternative is tested. */
+    return decisive > fdr ? SCREEN_FLAG_NONE
+           : t->statistic > 0 ? SCREEN_FLAG_RISING : SCREEN_FLAG_FALLING;
+}
+
 int slowscan_screen_decide(const screen_test *const *tests, size_t count, double fdr, double *q,
                   screen_flag *flags)
 {
@@ -87,18 +97,8 @@ int slowscan_screen_decide(const screen_test *const *tests, size_t count, double
         tested += !isnan(p[r]);
     }
     int st = slowscan_significance_bh(p, count, q, NULL);
-    for (size_t r = 0; st == SLOWSCAN_OK && r < count; r++) {
-        const screen_test *t = tests[r];
-        if (isnan(t->p_value)) {
-            q[r] = NAN;
-            flags[r] = flag_before_decision(t);
-            continue;
-        }
-        double decisive = tested == 1 ? t->p_value : q[r]; /* one test: p decides itself */
-        /* "falling" only arises when a decreasing or two-sided alternative is tested. */
-        flags[r] = decisive > fdr ? SCREEN_FLAG_NONE
-                   : t->statistic > 0 ? SCREEN_FLAG_RISING : SCREEN_FLAG_FALLING;
-    }
+    for (size_t r = 0; st == SLOWSCAN_OK && r < count; r++)
+        flags[r] = screen_flag_of(tests[r], q[r], tested, fdr);
     free(p);
     return st;
 }

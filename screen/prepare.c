@@ -1,6 +1,6 @@
 /* A series made ready for its indicators: the window rule, deseasoning, detrending, the
  * round-off check and the trend-leakage test. Refusals fill a screen_detail; nothing prints. */
-#include "slowscan/screen.h"
+#include "screen_internal.h"
 #include "slowscan/status.h"
 
 #include <math.h>
@@ -124,10 +124,38 @@ static void test_leakage(const screen_config *cfg, screen_prepared *ps)
                                               &ps->leakage) == SLOWSCAN_OK;
 }
 
-static int detrend_series(const screen_config *cfg, const detrend_spec *spec,
-                          screen_prepared *ps, screen_detail *d)
+static int same_detrend(const screen_workspace *ws, const detrend_spec *spec, double dt,
+                        size_t n)
 {
-    int st = slowscan_detrend_apply(spec, ps->dt, ps->value, ps->n, ps->trend, ps->residual);
+    const detrend_spec *kept = &ws->detrend_spec;
+    int bandwidth = !slowscan_detrend_uses_bandwidth(spec->method) ||
+                    kept->bandwidth == spec->bandwidth;
+    return ws->detrend && kept->method == spec->method && kept->degree == spec->degree &&
+           bandwidth && ws->detrend_dt == dt && ws->detrend_n == n;
+}
+
+/* A batch of series on one grid plans FFTW once per worker instead of once per series. */
+int screen_detrend(screen_workspace *ws, const detrend_spec *spec, double dt, const double *x,
+                   size_t n, double *trend, double *residual)
+{
+    if (ws && !same_detrend(ws, spec, dt, n)) {
+        slowscan_detrend_workspace_free(ws->detrend);
+        ws->detrend = slowscan_detrend_workspace_alloc(spec, dt, n);
+        ws->detrend_spec = *spec;
+        ws->detrend_dt = dt;
+        ws->detrend_n = n;
+    }
+    /* No workspace (or none could be made: a bad spec, no memory): the one-shot call, which
+     * also says which of the two it was. */
+    if (!ws || !ws->detrend)
+        return slowscan_detrend_apply(spec, dt, x, n, trend, residual);
+    return slowscan_detrend_apply_with(ws->detrend, x, n, trend, residual);
+}
+
+static int detrend_series(screen_workspace *ws, const screen_config *cfg,
+                          const detrend_spec *spec, screen_prepared *ps, screen_detail *d)
+{
+    int st = screen_detrend(ws, spec, ps->dt, ps->value, ps->n, ps->trend, ps->residual);
     if (st == SLOWSCAN_ENOMEM)
         return refuse(d, SCREEN_RULE_NO_MEMORY, SCREEN_OPTION_NONE, st);
     if (st != SLOWSCAN_OK) {
@@ -142,8 +170,14 @@ static int detrend_series(const screen_config *cfg, const detrend_spec *spec,
     return SLOWSCAN_OK;
 }
 
-int slowscan_screen_prepare(const screen_config *given, const screen_input *in,
+int slowscan_screen_prepare(const screen_config *cfg, const screen_input *in,
                             screen_prepared *ps, screen_detail *d)
+{
+    return slowscan_screen_prepare_with(NULL, cfg, in, ps, d);
+}
+
+int slowscan_screen_prepare_with(screen_workspace *ws, const screen_config *given,
+                                 const screen_input *in, screen_prepared *ps, screen_detail *d)
 {
     memset(ps, 0, sizeof *ps);
     memset(d, 0, sizeof *d);
@@ -186,7 +220,7 @@ int slowscan_screen_prepare(const screen_config *given, const screen_input *in,
             ps->trend[i] = ps->residual[i] = NAN;
         return SLOWSCAN_OK;
     }
-    return detrend_series(cfg, &spec, ps, d);
+    return detrend_series(ws, cfg, &spec, ps, d);
 }
 
 void slowscan_screen_prepared_free(screen_prepared *ps)

@@ -23,11 +23,32 @@ struct screen_workspace {
     ar1_drift_workspace *drift;
     size_t drift_n;
     rolling_plan *rolling_plan; /* the per-window indicators' plan, kept while W and dt stay */
+    /* The detrend plans, kept while the spec (method, bandwidth, degree), dt and n stay:
+     * slowscan_detrend_apply_with gives slowscan_detrend_apply's bits only at the length it
+     * was made for, so any other length remakes it (screen_detrend). */
+    detrend_workspace *detrend;
+    detrend_spec detrend_spec;
+    double detrend_dt;
+    size_t detrend_n;
     /* slowscan_screen_series: the last series and its paths */
     screen_prepared prepared;
     double *paths;  /* nindicators x n */
     size_t paths_cap;
 };
+
+/* slowscan_detrend_apply through ws's detrend workspace (remade when spec, dt or n change);
+ * ws NULL: the one-shot call. Same doubles and statuses as slowscan_detrend_apply. */
+int screen_detrend(screen_workspace *ws, const detrend_spec *spec, double dt, const double *x,
+                   size_t n, double *trend, double *residual);
+
+/* slowscan_screen_attach_control with the control detrended through ws (NULL: none). */
+int screen_attach_control_with(screen_workspace *ws, const screen_config *cfg,
+                               screen_prepared *ps, const screen_input *control,
+                               screen_detail *d);
+
+/* The flag of test t whose q-value is q, among `tested` tests with a p-value in the run
+ * (slowscan_screen_decide's rule; q is NaN when t has no p). */
+screen_flag screen_flag_of(const screen_test *t, double q, size_t tested, double fdr);
 
 /* The rolling spec of a prepared series (window, coverage, step, band) and, with per-window
  * indicators, the plan kept in the workspace (made here, before any thread starts). */

@@ -27,6 +27,7 @@ void slowscan_screen_workspace_free(screen_workspace *ws)
     free(ws->sorted);
     slowscan_ar1_drift_free(ws->drift);
     slowscan_rolling_plan_free(ws->rolling_plan);
+    slowscan_detrend_workspace_free(ws->detrend);
     slowscan_screen_prepared_free(&ws->prepared);
     free(ws->paths);
     free(ws);
@@ -149,6 +150,13 @@ static int check_control(const screen_prepared *ps, const screen_input *c, scree
 int slowscan_screen_attach_control(const screen_config *cfg, screen_prepared *ps,
                           const screen_input *control, screen_detail *d)
 {
+    return screen_attach_control_with(NULL, cfg, ps, control, d);
+}
+
+int screen_attach_control_with(screen_workspace *ws, const screen_config *cfg,
+                               screen_prepared *ps, const screen_input *control,
+                               screen_detail *d)
+{
     int st = check_control(ps, control, d);
     if (st != SLOWSCAN_OK) {
         d->control = 1;
@@ -161,7 +169,7 @@ int slowscan_screen_attach_control(const screen_config *cfg, screen_prepared *ps
     cut.n = ps->n;
     cut.control = NULL;
     screen_prepared cps;
-    st = slowscan_screen_prepare(&same, &cut, &cps, d);
+    st = slowscan_screen_prepare_with(ws, &same, &cut, &cps, d);
     if (st == SLOWSCAN_OK && (cps.constant || cps.finite < 8)) {
         *d = (screen_detail){SCREEN_RULE_CONTROL_FLAT, SCREEN_OPTION_NULL, SLOWSCAN_ECONST, 0, 0, 0,
                              0, 0, 0};
@@ -196,9 +204,9 @@ int slowscan_screen_series(screen_workspace *ws, const screen_config *cfg, const
     memset(out, 0, sizeof *out);
     slowscan_screen_prepared_free(&ws->prepared);
     screen_prepared *ps = &ws->prepared;
-    int st = slowscan_screen_prepare(cfg, in, ps, d);
+    int st = slowscan_screen_prepare_with(ws, cfg, in, ps, d);
     if (st == SLOWSCAN_OK && in->control && !ps->constant)
-        st = slowscan_screen_attach_control(cfg, ps, in->control, d);
+        st = screen_attach_control_with(ws, cfg, ps, in->control, d);
     if (st != SLOWSCAN_OK)
         return st;
     size_t need = cfg->nindicators * in->n;

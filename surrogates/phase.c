@@ -1,6 +1,7 @@
 /* Fourier phase-randomised surrogates (Theiler, Eubank, Longtin, Galdrikian & Farmer 1992,
  * Physica D 58:77): keep every Fourier amplitude, draw the phases of frequencies
  * 1 .. ceil(n/2)-1 uniformly, keep DC and (for even n) Nyquist, transform back. */
+#include "mt_stream.h"
 #include "slowscan/status.h"
 #include "surrogate_internal.h"
 
@@ -22,18 +23,24 @@ int surrogate_phase_prepare(surrogate_source *s)
 
 /* 2 U - 1 for U = gsl_rng_uniform(rng). For mt19937 (every stream of ours) U is k / 2^32 for
  * the next 32-bit output k, so 2U - 1 = (k - 2^31) / 2^31 exactly, in both forms; taking k
- * straight from the generator skips a division and a call per coordinate, the same numbers. */
-static inline double symmetric_uniform(gsl_rng *rng, int mt19937)
+ * straight from the generator skips a division and a call per coordinate, the same numbers
+ * (inline for our own, mt_stream.h; through its pointer for GSL's). */
+typedef enum { UNIFORM_ANY, UNIFORM_GSL_MT, UNIFORM_OWN_MT } uniform_source;
+
+static inline double symmetric_uniform(gsl_rng *rng, uniform_source source)
 {
-    if (mt19937)
-        return ((double)rng->type->get(rng->state) - 2147483648.0) * (1.0 / 2147483648.0);
-    return 2.0 * gsl_rng_uniform(rng) - 1.0;
+    if (source == UNIFORM_ANY)
+        return 2.0 * gsl_rng_uniform(rng) - 1.0;
+    double k = source == UNIFORM_OWN_MT ? (double)surrogate_mt_next(rng)
+                                        : (double)rng->type->get(rng->state);
+    return (k - 2147483648.0) * (1.0 / 2147483648.0);
 }
 
 void surrogate_random_phases(surrogate_source *s, const double *amp, double dc, double nyquist,
                              gsl_rng *rng)
 {
-    int mt19937 = rng->type == gsl_rng_mt19937;
+    uniform_source source = rng->type == surrogate_mt19937 ? UNIFORM_OWN_MT
+                            : rng->type == gsl_rng_mt19937 ? UNIFORM_GSL_MT : UNIFORM_ANY;
     size_t n = s->n, top = (n + 1) / 2; /* frequencies 1 .. ceil(n/2)-1 get random phases */
     s->spectrum[0][0] = dc;
     s->spectrum[0][1] = 0;
@@ -42,8 +49,8 @@ void surrogate_random_phases(surrogate_source *s, const double *amp, double dc, 
          * direction: exactly uniform phases without a sine and cosine per frequency. */
         double u, v, r2;
         do {
-            u = symmetric_uniform(rng, mt19937);
-            v = symmetric_uniform(rng, mt19937);
+            u = symmetric_uniform(rng, source);
+            v = symmetric_uniform(rng, source);
             r2 = u * u + v * v;
         } while (r2 > 1.0 || r2 < 1e-12);
         double scale = amp[k] / sqrt(r2);

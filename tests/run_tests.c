@@ -34,6 +34,7 @@ void suite_calendar(void);
 void suite_time_column(void);
 void suite_netcdf(void);
 void suite_dated_cli(void);
+void suite_store(void);
 
 static const struct {
     const char *name;
@@ -49,6 +50,7 @@ static const struct {
     {"library", suite_library},
     {"golden", suite_golden},         {"screen", suite_screen},
     {"batch", suite_batch},           {"messages", suite_messages},
+    {"store", suite_store},
     {"series_calls", suite_series_calls},
     {"calendar", suite_calendar},
     {"time_column", suite_time_column}, {"netcdf", suite_netcdf},

@@ -229,8 +229,60 @@ static void decide(void)
           "one test: p decides");
 }
 
+/* 1 when two prepared series hold the same bits (value, trend, residual) and record. */
+static int same_prepared(const screen_prepared *a, const screen_prepared *b)
+{
+    return a->n == b->n && a->window == b->window && a->constant == b->constant &&
+           a->leakage_tested == b->leakage_tested &&
+           memcmp(a->value, b->value, 3 * a->n * sizeof *a->value) == 0 &&
+           (!a->leakage_tested || memcmp(&a->leakage, &b->leakage, sizeof a->leakage) == 0);
+}
+
+/* slowscan_screen_prepare_with through one workspace gives slowscan_screen_prepare's bits
+ * while the length, the step and the method change from one series to the next (the kept
+ * detrend plans must be remade, not reused, when any of them changes). A check of the
+ * project against itself: the detrend is compared with outside references in the detrend
+ * suites. */
+static void prepare_with_workspace(void)
+{
+    static const struct { size_t n; double dt; const char *method; } cases[] = {
+        {300, 1, "gaussian-linear"}, {300, 1, "gaussian-linear"}, {2000, 1, "gaussian-linear"},
+        {300, 1, "gaussian-linear"}, {300, 0.25, "gaussian-linear"}, {300, 0.25, "gaussian"},
+        {300, 0.25, "loess"},        {300, 0.25, "poly:3"},          {300, 0.25, "gaussian"}};
+    enum { CASES = sizeof cases / sizeof cases[0], NMAX = 2000 };
+    check_rng *rng = check_rng_alloc(11);
+    screen_workspace *ws = slowscan_screen_workspace_alloc(1);
+    double t[NMAX], x[NMAX];
+    size_t same = 0;
+    for (size_t c = 0; c < CASES && ws && rng; c++) {
+        screen_config cfg = slowscan_screen_config_default();
+        cfg.bandwidth = (screen_length){.amount = 60, .percent = 0}; /* time units: kept as n changes; long: by FFT */
+        slowscan_detrend_parse_method(cases[c].method, &cfg.detrend);
+        for (size_t i = 0; i < cases[c].n; i++) {
+            t[i] = (double)i * cases[c].dt;
+            x[i] = 0.01 * (double)(i * c) + check_rng_gaussian(rng);
+        }
+        if (c % 2 == 1)
+            x[cases[c].n / 3] = NAN; /* gap-free and gapped series in turn */
+        screen_input in = {.name = "y", .source = "test", .time_name = "time", .time = t,
+                           .values = x, .n = cases[c].n, .control = NULL};
+        screen_prepared a, b;
+        screen_detail d;
+        int sa = slowscan_screen_prepare(&cfg, &in, &a, &d);
+        int sb = slowscan_screen_prepare_with(ws, &cfg, &in, &b, &d);
+        same += sa == SLOWSCAN_OK && sb == SLOWSCAN_OK && same_prepared(&a, &b);
+        slowscan_screen_prepared_free(&a);
+        slowscan_screen_prepared_free(&b);
+    }
+    CHECK(same == CASES, "prepare_with equals prepare bit for bit in %zu of %d cases", same,
+          (int)CASES);
+    slowscan_screen_workspace_free(ws);
+    check_rng_free(rng);
+}
+
 void suite_screen(void)
 {
+    prepare_with_workspace();
     defaults();
     stations();
     control();

@@ -1,4 +1,5 @@
 /* Tests of surrogates/: p-values, Benjamini-Hochberg q-values, stream seeds, phase surrogates. */
+#include "../surrogates/mt_stream.h" /* module internal: the generator the null draws use */
 #include "check.h"
 #include "slowscan/significance.h"
 #include "slowscan/status.h"
@@ -6,6 +7,7 @@
 
 #include <fftw3.h>
 #include <gsl/gsl_fit.h>
+#include <gsl/gsl_randist.h>
 #include <gsl/gsl_rng.h>
 #include <gsl/gsl_statistics_double.h>
 #include <math.h>
@@ -279,8 +281,37 @@ static void test_block_null(void)
     slowscan_surrogate_plan_free(plan);
 }
 
+/* The null draws' generator against GSL's gsl_rng_mt19937 (the reference: the same MT19937
+ * with the 2002 seeding): the same words over several blocks of 624 for seeds that include
+ * 0 (GSL's 4357), one whose low 32 bits are zero, and the largest; and the same uniforms and
+ * Gaussians (GSL's own draws on top of it), interleaved with inline words. */
+static void test_generator_matches_gsl(void)
+{
+    static const unsigned long seeds[] = {0, 1, 4357, 5489, 123456789, 4294967295UL,
+                                          (unsigned long)-1, (unsigned long)-1 - 0xffffffffUL};
+    gsl_rng *mine = gsl_rng_alloc(surrogate_mt19937), *gsl = gsl_rng_alloc(gsl_rng_mt19937);
+    size_t bad = 0;
+    for (size_t k = 0; mine && gsl && k < sizeof seeds / sizeof seeds[0]; k++) {
+        gsl_rng_set(mine, seeds[k]);
+        gsl_rng_set(gsl, seeds[k]);
+        for (size_t i = 0; i < 2000; i++)
+            bad += gsl_rng_get(mine) != gsl_rng_get(gsl);
+        for (size_t i = 0; i < 700; i++) {
+            bad += surrogate_mt_next(mine) != gsl_rng_get(gsl);
+            bad += gsl_rng_uniform(mine) != gsl_rng_uniform(gsl);
+            bad += gsl_ran_gaussian(mine, 2.0) != gsl_ran_gaussian(gsl, 2.0);
+        }
+    }
+    CHECK(mine && gsl && bad == 0, "surrogate_mt19937 gives gsl_rng_mt19937's stream (%zu differ)",
+          bad);
+    CHECK(gsl_rng_max(mine) == gsl_rng_max(gsl) && gsl_rng_min(mine) == 0, "its range");
+    gsl_rng_free(mine);
+    gsl_rng_free(gsl);
+}
+
 void suite_surrogates(void)
 {
+    test_generator_matches_gsl();
     test_amplitude_adjusted();
     test_ar1_null();
     test_block_null();

@@ -1,5 +1,6 @@
 /* slowscan — input and output: the series table, CSV reading (libcsv), grid checks,
- * resampling, and atomic output files (module prefixes: series_table_, csv_, table_, atomic_).
+ * resampling, atomic output files and the record spill store (module prefixes: series_table_,
+ * csv_, table_, atomic_, spill_).
  *
  * Unlike the numerical core, io/ deals with files, but it still never prints or exits: errors
  * come back as a status code plus a message in an io_error that names the file, the row
@@ -150,6 +151,32 @@ char *slowscan_atomic_temp_beside(const char *path);
  * (first: `first` elements) and reallocates *array. SLOWSCAN_ENOMEM leaves it unchanged. */
 SLOWSCAN_API
 int slowscan_io_reserve(void **array, size_t *cap, size_t count, size_t size, size_t first);
+
+/* A record spill store (module prefix: spill_): records of plain data (no pointers; any
+ * size, 0 included) appended in order and read back by index, any number of times, in any
+ * order. The first `spill_after` records are kept in memory; the next append moves them to a
+ * temporary file in `dir` (NULL: $TMPDIR, else /tmp), where every later record goes too, so
+ * memory holds only an offset per record. The file is removed as soon as it is made (it has
+ * no name; the system frees it when the store is freed or the process ends, however it
+ * ends). SLOWSCAN_EIO with a message naming the folder when the file cannot be made,
+ * written or read; SLOWSCAN_ENOMEM. One thread at a time. */
+typedef struct record_spill record_spill;
+SLOWSCAN_API
+record_spill *slowscan_spill_alloc(size_t spill_after, const char *dir);
+SLOWSCAN_API
+void slowscan_spill_free(record_spill *store);
+SLOWSCAN_API
+int slowscan_spill_append(record_spill *store, const void *record, size_t size, io_error *err);
+SLOWSCAN_API
+size_t slowscan_spill_count(const record_spill *store);
+/* The size of record `index` (0 past the end); read it into out[size]. */
+SLOWSCAN_API
+size_t slowscan_spill_size(const record_spill *store, size_t index);
+SLOWSCAN_API
+int slowscan_spill_read(record_spill *store, size_t index, void *out, io_error *err);
+/* 1 once the records are in the file. */
+SLOWSCAN_API
+int slowscan_spill_spilled(const record_spill *store);
 
 /* 1 if the two paths name the same existing file (same device and inode), else 0. */
 SLOWSCAN_API

@@ -254,9 +254,9 @@ typedef struct {
     int control;           /* 1: the rule refused the control run's series (--null control) */
 } screen_detail;
 
-/* Everything sized by series length and thread count: the rolling plan, Kendall workspace,
- * surrogate plan, one null workspace per thread, the drift fit, the paths of the last series.
- * Remade when the length changes, reused while it stays. NULL on failure. */
+/* Everything sized by series length and thread count: the detrend plans, the rolling plan,
+ * Kendall workspace, surrogate plan, one null workspace per thread, the drift fit, the paths
+ * of the last series. Remade when the length changes, reused while it stays. NULL on failure. */
 typedef struct screen_workspace screen_workspace;
 SLOWSCAN_API
 screen_workspace *slowscan_screen_workspace_alloc(size_t threads);
@@ -268,6 +268,13 @@ void slowscan_screen_workspace_free(screen_workspace *ws);
 SLOWSCAN_API
 int slowscan_screen_prepare(const screen_config *cfg, const screen_input *in, screen_prepared *out,
                    screen_detail *detail);
+/* The same, detrending through ws's detrend workspace, which is kept while the method,
+ * bandwidth, time step and length stay (a batch on one grid plans once, not per series); the
+ * numbers are slowscan_screen_prepare's, bit for bit. ws NULL: slowscan_screen_prepare. */
+SLOWSCAN_API
+int slowscan_screen_prepare_with(screen_workspace *ws, const screen_config *cfg,
+                                 const screen_input *in, screen_prepared *out,
+                                 screen_detail *detail);
 SLOWSCAN_API
 void slowscan_screen_prepared_free(screen_prepared *ps);
 /* Makes ps->null_source the residual of the control run's first ps->n samples, deseasoned
