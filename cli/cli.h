@@ -5,6 +5,7 @@
 #include "slowscan/detrend.h"
 #include "slowscan/indicators.h"
 #include "slowscan/io.h"
+#include "slowscan/netcdf_input.h"
 #include "slowscan/null_trend.h"
 #include "slowscan/report.h"
 #include "slowscan/screen.h"
@@ -36,6 +37,7 @@ typedef struct {
     const char *command;
     /* input */
     const char *time_column, *vars;
+    const char *select; /* --select DIM=A:B,... for NetCDF inputs */
     double from, until, resample; /* NaN: not given (from/until: or given as a date) */
     const char *from_text, *until_text; /* --from/--until as written (dates, ages) */
     double max_gap;          /* --max-gap: steps --resample may bridge; NaN: 2 original steps */
@@ -134,10 +136,13 @@ void cli_screen_insufficient(const prepared_series *ps, const screen_test *test)
  * residual), if it is one. */
 void cli_screen_detrended(const prepared_series *ps);
 
-/* The inputs of a run: every table read and made ready (span, grid, log). */
+/* The inputs of a run: every CSV table read and made ready (span, grid, log); a NetCDF grid
+ * is only checked here (its cells are read a table at a time by a cli_cursor). */
 typedef struct {
-    series_table *tables;
-    size_t ntables;
+    series_table *tables; /* one per input; zeroed for a grid */
+    size_t ntables;       /* inputs */
+    size_t *grid_cells;   /* per input: the cells of a NetCDF grid (an upper bound on its
+                             series: all-missing cells are skipped), 0 for a CSV table */
     series_table control; /* --control FILE: read like the inputs, but never cut in time */
     int has_control;
 } cli_inputs;
@@ -270,12 +275,37 @@ int cmd_surrogates(const cli_options *opts);
 int cmd_robustness(const cli_options *opts);
 int cmd_recovery(const cli_options *opts);
 
+/* inputs.c: a walk over every series of the inputs in order — CSV tables as read, NetCDF
+ * grids a table of cells at a time, each made ready like a CSV table (cli_ready_table). */
+typedef struct {
+    const cli_options *opts;
+    const cli_inputs *in;
+    size_t input;               /* the next input to open */
+    const series_table *table;  /* the table being walked (an input's, or chunk) */
+    size_t next;                /* its next series */
+    series_table chunk;         /* cells of the grid being read */
+    struct netcdf_reader *reader;
+    size_t all_missing, chunks; /* of the grid being read */
+} cli_cursor;
+enum { CLI_CURSOR_END = -1 };
+void cli_cursor_start(cli_cursor *c, const cli_options *opts, const cli_inputs *in);
+/* The next series as (table, index): EXIT_OK, CLI_CURSOR_END, or an exit code (printed). The
+ * table stays valid until the next call. */
+int cli_cursor_next(cli_cursor *c, const series_table **t, size_t *k);
+void cli_cursor_end(cli_cursor *c);
+/* 1 when the file starts like a NetCDF file (classic, 64-bit offset, CDF-5 or HDF5). */
+int cli_is_netcdf(const char *path);
+/* The NetCDF reading options of the command's. */
+netcdf_read_options cli_netcdf_options(const cli_options *o);
+/* Cut to --from/--until, the grid, logs; `first` says whether notices (gaps) are due. */
+int cli_ready_table(const cli_options *opts, series_table *t, int first);
+
 /* input_checks.c: reading options from the command's (CF units parsed on the calendar), the
  * --from/--until span on a table's axis, the grid (gaps or --resample), notices on what the
  * reader left out or suspects. Each returns an exit code (the message printed). */
 int cli_read_options(const cli_options *o, time_units *units, csv_read_options *ro);
 int cli_span_on_axis(const cli_options *o, const series_table *t, double *from, double *until);
-int cli_grid(const cli_options *o, series_table *t, io_error *err);
+int cli_grid(const cli_options *o, series_table *t, int announce, io_error *err);
 void cli_input_notices(const cli_options *o, const series_table *t);
 
 #endif

@@ -98,28 +98,70 @@ int cli_screen_each_row(screen_run *run, screen_row_visitor visit, void *context
     return EXIT_OK;
 }
 
-/* The series of the inputs in order, as the batch driver takes them. */
+/* The series of the inputs in order, as the batch driver takes them. A grid's cells come a
+ * table at a time, and a table is gone when the next is read, so each of its series is
+ * copied for the workers until the driver releases it. */
 typedef struct {
-    const cli_inputs *in;
-    size_t table, series;
+    char *name;
+    double *time, *values;
+} series_copy;
+
+typedef struct {
+    cli_cursor cursor;
     screen_input *controls; /* one per series with --null control (borrowed arrays) */
+    series_copy *copies;    /* one per series of a grid, freed on release */
+    int rc;                 /* the cursor's own failure (its message printed) */
 } input_source;
+
+static int copy_series(series_copy *c, const series_table *t, size_t k)
+{
+    c->name = strdup(t->names[k]);
+    c->time = malloc(t->n * sizeof *c->time);
+    c->values = malloc(t->n * sizeof *c->values);
+    if (!c->name || !c->time || !c->values)
+        return SLOWSCAN_ENOMEM;
+    memcpy(c->time, t->time, t->n * sizeof *c->time);
+    memcpy(c->values, t->values[k], t->n * sizeof *c->values);
+    return SLOWSCAN_OK;
+}
+
+static void release_series(void *state, size_t index)
+{
+    input_source *src = state;
+    if (!src->copies)
+        return;
+    series_copy *c = &src->copies[index];
+    free(c->name), free(c->time), free(c->values);
+    memset(c, 0, sizeof *c);
+}
 
 static int next_series(void *state, size_t index, screen_input *out, screen_detail *detail)
 {
     (void)detail;
     input_source *src = state;
-    while (src->table < src->in->ntables && src->series == src->in->tables[src->table].nseries) {
-        src->table++;
-        src->series = 0;
-    }
-    if (src->table == src->in->ntables)
+    const series_table *t;
+    size_t k;
+    int rc = cli_cursor_next(&src->cursor, &t, &k);
+    if (rc == CLI_CURSOR_END)
         return SCREEN_BATCH_END;
-    const series_table *t = &src->in->tables[src->table];
-    size_t k = src->series++;
-    *out = (screen_input){.name = t->names[k], .source = cli_source_name(t->source), .time_name = t->time_name, .time = t->time, .values = t->values[k], .n = t->n, .control = NULL, .axis = t->axis};
+    if (rc != EXIT_OK) {
+        src->rc = rc;
+        return SLOWSCAN_EINVAL;
+    }
+    *out = (screen_input){.name = t->names[k], .source = cli_source_name(t->source),
+                          .time_name = t->time_name, .time = t->time, .values = t->values[k],
+                          .n = t->n, .control = NULL, .axis = t->axis};
+    if (t == &src->cursor.chunk) {
+        series_copy *c = &src->copies[index];
+        if (copy_series(c, t, k) != SLOWSCAN_OK) {
+            cli_error("out of memory");
+            src->rc = EXIT_INTERNAL;
+            return SLOWSCAN_ENOMEM;
+        }
+        out->name = c->name, out->time = c->time, out->values = c->values;
+    }
     if (src->controls) {
-        src->controls[index] = cli_control_input(src->in, t->names[k]);
+        src->controls[index] = cli_control_input(src->cursor.in, t->names[k]);
         out->control = &src->controls[index];
     }
     return SLOWSCAN_OK;
@@ -169,21 +211,31 @@ static int run_series(const cli_options *opts, const cli_inputs *in, void *conte
 {
     screen_run *run = context;
     ordered_sink sink = {.opts = opts, .run = run, .total = cli_inputs_series_count(in)};
-    input_source src = {in, 0, 0, NULL};
-    if (in->has_control && !(src.controls = calloc(sink.total + 1, sizeof *src.controls))) {
+    input_source src = {.controls = NULL, .copies = NULL, .rc = EXIT_OK};
+    cli_cursor_start(&src.cursor, opts, in);
+    int grids = 0;
+    for (size_t f = 0; f < in->ntables; f++)
+        grids |= in->grid_cells[f] > 0;
+    if ((in->has_control && !(src.controls = calloc(sink.total + 1, sizeof *src.controls))) ||
+        (grids && !(src.copies = calloc(sink.total + 1, sizeof *src.copies)))) {
+        free(src.controls);
         cli_error("out of memory");
         return EXIT_INTERNAL;
     }
-    screen_source source = {next_series, NULL, sink.total, &src};
+    screen_source source = {next_series, release_series, sink.total, &src};
     /* Only --rolling needs the paths handed on: the figures read the null's quantiles from
      * the results and prepare the series again once the q-values exist. */
     screen_sink ordered = {put_series, &sink, run->rolling != NULL};
     screen_batch_failure failure;
     int st = slowscan_screen_batch_run(&run->cfg, &source, &ordered, &failure);
-    int rc = st == SLOWSCAN_OK ? EXIT_OK : refuse(opts, &failure, &sink);
+    int rc = st == SLOWSCAN_OK ? EXIT_OK : src.rc != EXIT_OK ? src.rc : refuse(opts, &failure, &sink);
     if (rc == EXIT_OK)
         cli_report_leakage(opts, &sink.leakage);
+    for (size_t i = 0; src.copies && i <= sink.total; i++)
+        release_series(&src, i);
+    cli_cursor_end(&src.cursor);
     free(src.controls);
+    free(src.copies);
     return rc;
 }
 

@@ -71,14 +71,14 @@ int cli_span_on_axis(const cli_options *o, const series_table *t, double *from, 
 }
 
 /* The grid: --resample with its guards, or the rows as they are with gaps filled. */
-int cli_grid(const cli_options *o, series_table *t, io_error *err)
+int cli_grid(const cli_options *o, series_table *t, int announce, io_error *err)
 {
     if (!isnan(o->resample))
         return slowscan_table_resample_within(t, o->resample,
                                               isnan(o->max_gap) ? 2.0 : o->max_gap, err);
     size_t gaps = 0;
     int st = slowscan_table_regularize(t, &gaps, err);
-    if (st == SLOWSCAN_OK && gaps > 0) {
+    if (st == SLOWSCAN_OK && gaps > 0 && announce) {
         char step[64];
         cli_warning("%s: %zu row%s missing from the regular grid (step %s) were read as "
                     "missing values", cli_source_name(t->source), gaps, gaps == 1 ? "" : "s",

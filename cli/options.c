@@ -100,6 +100,7 @@ static int parse_length(const char *name, const char *value, cli_length *len)
 
 static int set_time(cli_options *o, const char *n, const char *v) { (void)n; o->time_column = v; return EXIT_OK; }
 static int set_vars(cli_options *o, const char *n, const char *v) { (void)n; o->vars = v; return EXIT_OK; }
+static int set_select(cli_options *o, const char *n, const char *v) { (void)n; o->select = v; return EXIT_OK; }
 /* --from/--until: a number stays a number (as before); anything else (a date) is read
  * against each input's time axis once the input is read. */
 static int set_bound(const char *v, const char **text, double *value)
@@ -480,6 +481,7 @@ static const option_spec options[] = {
     {"--log", 0, C_SERIES, set_log},
     {"--resample", 1, C_SERIES, set_resample},
     {"--max-gap", 1, C_SERIES, set_max_gap},
+    {"--select", 1, C_SERIES, set_select},
     {"--calendar", 1, C_SERIES, set_calendar},
     {"--time-format", 1, C_SERIES, set_time_format},
     {"--time-units", 1, C_SERIES, set_time_units},

@@ -195,14 +195,19 @@ static int for_each_table_series(const cli_options *opts, const cli_inputs *in,
                                  table_visitor visit, void *context)
 {
     size_t total = cli_inputs_series_count(in), done = 0;
-    for (size_t f = 0; f < in->ntables; f++)
-        for (size_t k = 0; k < in->tables[f].nseries; k++) {
-            int rc = visit(opts, in, &in->tables[f], k, context);
-            if (rc != EXIT_OK)
-                return rc;
-            cli_progress(opts, opts->command, ++done, total);
-        }
-    return EXIT_OK;
+    cli_cursor cursor;
+    cli_cursor_start(&cursor, opts, in);
+    const series_table *t;
+    size_t k;
+    int rc;
+    while ((rc = cli_cursor_next(&cursor, &t, &k)) == EXIT_OK) {
+        rc = visit(opts, in, t, k, context);
+        if (rc != EXIT_OK)
+            break;
+        cli_progress(opts, opts->command, ++done, total);
+    }
+    cli_cursor_end(&cursor);
+    return rc == CLI_CURSOR_END ? EXIT_OK : rc;
 }
 
 void cli_tally_leakage(cli_leakage_tally *tally, const char *source, const char *name,

@@ -23,7 +23,7 @@ static int io_fail(int status, const io_error *err)
 /* Rows of a table below which nothing can be said (fewer than 8 samples). */
 enum { MIN_ROWS = 8 };
 
-static int ready_table(const cli_options *opts, series_table *t)
+int cli_ready_table(const cli_options *opts, series_table *t, int first)
 {
     io_error err = {{0}};
     int st;
@@ -33,7 +33,7 @@ static int ready_table(const cli_options *opts, series_table *t)
     if (!isnan(from) || !isnan(until))
         if ((st = slowscan_table_select_span(t, from, until, &err)) != SLOWSCAN_OK)
             return io_fail(st, &err);
-    if ((st = cli_grid(opts, t, &err)) != SLOWSCAN_OK)
+    if ((st = cli_grid(opts, t, first, &err)) != SLOWSCAN_OK)
         return io_fail(st, &err);
     if (opts->log_values && (st = slowscan_table_log(t, &err)) != SLOWSCAN_OK)
         return io_fail(st, &err);
@@ -69,14 +69,39 @@ static int load_control(const cli_options *opts, cli_inputs *in)
     cli_options whole = *opts;
     whole.from = whole.until = NAN;
     whole.from_text = whole.until_text = NULL;
-    return ready_table(&whole, &in->control);
+    return cli_ready_table(&whole, &in->control, 1);
+}
+
+/* A NetCDF input is opened once here, so that a bad file, variable or --select fails before
+ * any work, and its cells counted; its cells are read later, a table at a time. */
+static int check_grid(const cli_options *opts, size_t f, size_t *cells)
+{
+    if (opts->control_file) {
+        cli_error("option --control: %s is a NetCDF grid; a control run is read for CSV inputs "
+                  "only", opts->files[f]);
+        return EXIT_BAD_INPUT;
+    }
+    netcdf_read_options o = cli_netcdf_options(opts);
+    netcdf_reader *r;
+    io_error err = {{0}};
+    int st = slowscan_netcdf_open(opts->files[f], &o, &r, &err);
+    if (st != SLOWSCAN_OK)
+        return io_fail(st, &err);
+    *cells = slowscan_netcdf_series_count(r);
+    slowscan_netcdf_close(r);
+    if (*cells == 0) {
+        cli_error("%s: --select leaves no cell to analyse", opts->files[f]);
+        return EXIT_BAD_INPUT;
+    }
+    return EXIT_OK;
 }
 
 int cli_inputs_load(const cli_options *opts, cli_inputs *in)
 {
     memset(in, 0, sizeof *in);
     in->tables = calloc(opts->nfiles, sizeof *in->tables);
-    if (!in->tables)
+    in->grid_cells = calloc(opts->nfiles, sizeof *in->grid_cells);
+    if (!in->tables || !in->grid_cells)
         return EXIT_INTERNAL;
     csv_read_options ro;
     time_units units;
@@ -87,13 +112,17 @@ int cli_inputs_load(const cli_options *opts, cli_inputs *in)
                 cli_error("%s: the same input is given twice", opts->files[f]);
                 return EXIT_BAD_INPUT;
             }
+        in->ntables = f + 1;
+        if (cli_is_netcdf(opts->files[f])) {
+            rc = check_grid(opts, f, &in->grid_cells[f]);
+            continue;
+        }
         io_error err = {{0}};
         int st = slowscan_csv_read_table(opts->files[f], &ro, &in->tables[f], &err);
-        in->ntables = f + 1;
         if (st != SLOWSCAN_OK)
             return io_fail(st, &err);
         cli_input_notices(opts, &in->tables[f]);
-        rc = ready_table(opts, &in->tables[f]);
+        rc = cli_ready_table(opts, &in->tables[f], 1);
     }
     if (rc != EXIT_OK)
         return rc;
@@ -107,6 +136,7 @@ void cli_inputs_free(cli_inputs *in)
     for (size_t f = 0; f < in->ntables; f++)
         slowscan_series_table_free(&in->tables[f]);
     free(in->tables);
+    free(in->grid_cells);
     memset(in, 0, sizeof *in);
 }
 
@@ -114,7 +144,7 @@ size_t cli_inputs_series_count(const cli_inputs *in)
 {
     size_t total = 0;
     for (size_t f = 0; f < in->ntables; f++)
-        total += in->tables[f].nseries;
+        total += in->tables[f].nseries + (in->grid_cells ? in->grid_cells[f] : 0);
     return total;
 }
 

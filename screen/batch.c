@@ -72,7 +72,7 @@ static int keep(batch *b, screen_workspace *ws, slot *s)
     return SLOWSCAN_OK;
 }
 
-static void compute(batch *b, screen_workspace *ws, slot *s, size_t index)
+static void compute(batch *b, screen_workspace *ws, slot *s)
 {
     s->status = ws ? slowscan_screen_series(ws, &b->series_cfg, &s->input, &s->result, &s->detail)
                    : SLOWSCAN_ENOMEM;
@@ -82,8 +82,6 @@ static void compute(batch *b, screen_workspace *ws, slot *s, size_t index)
         s->status = SLOWSCAN_ENOMEM;
         s->detail = (screen_detail){.rule = SCREEN_RULE_NO_MEMORY, .status = SLOWSCAN_ENOMEM};
     }
-    if (b->source->release)
-        b->source->release(b->source->state, index);
 }
 
 /* Hands the oldest slot to the sink (called with the lock held, returns with it held). */
@@ -103,6 +101,10 @@ static void deliver(batch *b)
         if (st != SLOWSCAN_OK)
             s->detail = (screen_detail){.rule = SCREEN_RULE_NONE, .status = st};
     }
+    /* the sink has seen the input (its name, its arrays): the source may let it go now; a
+     * failing series stays, since the failure still names it */
+    if (st == SLOWSCAN_OK && b->source->release)
+        b->source->release(b->source->state, index);
     pthread_mutex_lock(&b->lock);
     if (st != SLOWSCAN_OK && !b->stop) {
         b->stop = 1;
@@ -153,7 +155,7 @@ static void work(batch *b, screen_workspace *ws)
                 continue;
             slot *s = &b->slots[index % b->cap];
             pthread_mutex_unlock(&b->lock);
-            compute(b, ws, s, index);
+            compute(b, ws, s);
             pthread_mutex_lock(&b->lock);
             s->state = SLOT_DONE;
             pthread_cond_broadcast(&b->changed);

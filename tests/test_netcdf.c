@@ -201,8 +201,37 @@ static void check_tables(void)
         slowscan_netcdf_close(r);
 }
 
+/* The command on the grid and on the same cells as a dated CSV (noleap, written by
+ * python3-netcdf4 from what it reads): the same summary, byte for byte, at 2 threads. */
+static void check_command_matches_csv(void)
+{
+    static double ref[VARS * CELLS * NT];
+    const char *nc = check_tmp_path("cmd.nc"), *csv = check_tmp_path("cmd.csv");
+    char args[1200];
+    snprintf(args, sizeof args, "netcdf_grid.py %s NETCDF4 map_chunks %s", nc, csv);
+    if (check_python(args, ref, VARS * CELLS * NT) != VARS * CELLS * NT) {
+        CHECK(0, "python3-netcdf4 wrote the grid and its CSV");
+        return;
+    }
+    char *grid_out = NULL, *grid_err = NULL, *csv_out = NULL, *csv_err = NULL;
+    snprintf(args, sizeof args, "%s screen --surrogates 19 --seed 3 --threads 2 --window 12 "
+             "--bandwidth 6 '%s'", check_binary(), nc);
+    int a = check_run(args, &grid_out, &grid_err);
+    snprintf(args, sizeof args, "%s screen --surrogates 19 --seed 3 --threads 2 --window 12 "
+             "--bandwidth 6 --calendar noleap '%s'", check_binary(), csv);
+    int b = check_run(args, &csv_out, &csv_err);
+    CHECK(a == 0 && b == 0 && grid_out && csv_out && strcmp(grid_out, csv_out) == 0 &&
+              strstr(grid_out, "\"tas[lat=10,lon=15]\",variance,"),
+          "screen of the grid = screen of its cells as a noleap CSV (%d, %d): %.300s | %.300s",
+          a, b, grid_err ? grid_err : "", csv_err ? csv_err : "");
+    CHECK(grid_err && strstr(grid_err, "1 cell holds no value at all"),
+          "the all-missing cell is counted once: %s", grid_err ? grid_err : "");
+    free(grid_out), free(grid_err), free(csv_out), free(csv_err);
+}
+
 void suite_netcdf(void)
 {
+    check_command_matches_csv();
     check_tables();
     check_layout("NETCDF3_64BIT_OFFSET", "contiguous", 0);
     check_layout("NETCDF3_64BIT_OFFSET", "contiguous", 2 * 2 * NT * sizeof(double));

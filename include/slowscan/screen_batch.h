@@ -34,7 +34,9 @@ typedef struct {
      * run at this index (its detail in *detail, SCREEN_RULE_NONE when the source says it
      * itself). */
     int (*next)(void *state, size_t index, screen_input *in, screen_detail *detail);
-    /* Optional: the series of `index` is no longer needed (may be called from any worker). */
+    /* Optional: the series of `index` is no longer needed — the sink has had it (called from
+     * the thread that delivers; never for the series a run failed at, which the failure
+     * still names: free that one, and any a stopped run never delivered, after the run). */
     void (*release)(void *state, size_t index);
     size_t count; /* series the source will give, 0 when unknown (then threads go over series) */
     void *state;

@@ -1,7 +1,7 @@
 """A small CF grid for suite netcdf, written with Debian's python3-netcdf4, and what
 python3-netcdf4 itself reads back from it (masked and unpacked), as the reference.
 
-usage: netcdf_grid.py PATH FORMAT LAYOUT
+usage: netcdf_grid.py PATH FORMAT LAYOUT [CSV]
   FORMAT: NETCDF3_64BIT_OFFSET or NETCDF4; LAYOUT (NetCDF-4 only; classic files are
   contiguous): map_chunks (one time step x the whole map per chunk, as models write them) or
   series_chunks (all time steps of two cells per chunk)
@@ -11,7 +11,9 @@ add_offset 280, _FillValue -32767, valid_range [-30000, 30000]; cell (lat 0, lon
 fill (land), a few scattered fills and one value beyond valid_range. Also pr(time, lat, lon)
 as plain float with missing_value 1e20, and time_bnds (no data variable).
 Prints, per variable (tas then pr) and cell (row-major lat, lon), the 30 values ("nan" for
-missing)."""
+missing). With CSV, also writes those values as a CSV: a date column (the noleap dates of the
+time axis, YYYY-MM-DD) and a column per cell named as slowscan names it (VAR[lat=..,lon=..]),
+cells with no value at all left out."""
 import sys
 
 import numpy as np
@@ -59,13 +61,23 @@ def main():
         vals = rng.gamma(2.0, 1.5, size=(NT, len(LAT), len(LON))).astype("f4")
         vals[3, 1, 1] = 1e20
         pr[:] = vals
+    columns = []
     with netCDF4.Dataset(path) as ds:
+        dates = netCDF4.num2date(ds["time"][:], ds["time"].units, calendar="noleap")
         for name in ("tas", "pr"):
             data = ds[name][:]
             arr = np.ma.filled(data.astype("f8"), np.nan)
             for i in range(len(LAT)):
                 for j in range(len(LON)):
                     print(" ".join(repr(float(v)) for v in arr[:, i, j]))
+                    if not np.all(np.isnan(arr[:, i, j])):
+                        columns.append(("%s[lat=%g,lon=%g]" % (name, LAT[i], LON[j]), arr[:, i, j]))
+    if len(sys.argv) > 4:
+        with open(sys.argv[4], "w") as f:
+            f.write("date," + ",".join('"%s"' % c for c, _ in columns) + "\n")
+            for k, d in enumerate(dates):
+                cells = ["" if np.isnan(v[k]) else repr(float(v[k])) for _, v in columns]
+                f.write("%04d-%02d-%02d," % (d.year, d.month, d.day) + ",".join(cells) + "\n")
 
 
 if __name__ == "__main__":

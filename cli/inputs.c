@@ -1,0 +1,134 @@
+/* The inputs a command walks: CSV tables, read whole and made ready once, and NetCDF grids,
+ * read a table of cells at a time (slowscan_netcdf_next_table) so that a field of 10^5 cells
+ * never sits in memory at once; each table of cells is made ready like a CSV table. */
+#include "cli.h"
+#include "slowscan/status.h"
+
+#include <stdio.h>
+#include <string.h>
+
+/* Cells per table of a grid: what 32 MiB of values hold, between 1 and 4096. */
+static size_t cells_per_table(size_t n)
+{
+    size_t cells = ((size_t)32 << 20) / (n ? n * sizeof(double) : 1);
+    return cells < 1 ? 1 : cells > 4096 ? 4096 : cells;
+}
+
+int cli_is_netcdf(const char *path)
+{
+    if (!path || strcmp(path, "-") == 0)
+        return 0;
+    FILE *fp = fopen(path, "rb");
+    unsigned char head[8] = {0};
+    size_t got = fp ? fread(head, 1, sizeof head, fp) : 0;
+    if (fp)
+        fclose(fp);
+    int classic = got >= 4 && memcmp(head, "CDF", 3) == 0 &&
+                  (head[3] == 1 || head[3] == 2 || head[3] == 5);
+    int hdf5 = got == 8 && memcmp(head, "\x89HDF\r\n\x1a\n", 8) == 0;
+    return classic || hdf5;
+}
+
+netcdf_read_options cli_netcdf_options(const cli_options *o)
+{
+    netcdf_read_options r = slowscan_netcdf_read_options_default();
+    r.vars = o->vars;
+    r.select = o->select;
+    return r;
+}
+
+void cli_cursor_start(cli_cursor *c, const cli_options *opts, const cli_inputs *in)
+{
+    memset(c, 0, sizeof *c);
+    c->opts = opts;
+    c->in = in;
+}
+
+void cli_cursor_end(cli_cursor *c)
+{
+    slowscan_series_table_free(&c->chunk);
+    slowscan_netcdf_close(c->reader);
+    c->reader = NULL;
+    c->table = NULL;
+}
+
+/* The grid being read is done: say how many cells had no value, close it. */
+static void finish_grid(cli_cursor *c)
+{
+    if (c->all_missing > 0)
+        cli_warning("%s: %zu cell%s no value at all (every time missing) and %s not analysed",
+                    c->opts->files[c->input - 1], c->all_missing,
+                    c->all_missing == 1 ? " holds" : "s hold", c->all_missing == 1 ? "is" : "are");
+    slowscan_netcdf_close(c->reader);
+    c->reader = NULL;
+}
+
+/* The next table of cells of the grid being read (made ready); CLI_CURSOR_END at its end. */
+static int next_chunk(cli_cursor *c)
+{
+    slowscan_series_table_free(&c->chunk);
+    c->table = NULL;
+    size_t n;
+    slowscan_netcdf_times(c->reader, &n, NULL, NULL);
+    io_error err = {{0}};
+    int st = slowscan_netcdf_next_table(c->reader, cells_per_table(n), &c->chunk,
+                                        &c->all_missing, &err);
+    if (st == NETCDF_END) {
+        finish_grid(c);
+        return CLI_CURSOR_END;
+    }
+    if (st != SLOWSCAN_OK) {
+        cli_error("%s", err.message);
+        return st == SLOWSCAN_ENOMEM ? EXIT_INTERNAL : EXIT_BAD_INPUT;
+    }
+    int rc = cli_ready_table(c->opts, &c->chunk, c->chunks++ == 0);
+    if (rc == EXIT_OK) {
+        c->table = &c->chunk;
+        c->next = 0;
+    }
+    return rc;
+}
+
+/* Opens input c->input (a grid's reader, or a CSV table as read). */
+static int open_input(cli_cursor *c)
+{
+    size_t f = c->input++;
+    if (!c->in->grid_cells || c->in->grid_cells[f] == 0) {
+        c->table = &c->in->tables[f];
+        c->next = 0;
+        return EXIT_OK;
+    }
+    netcdf_read_options o = cli_netcdf_options(c->opts);
+    io_error err = {{0}};
+    int st = slowscan_netcdf_open(c->opts->files[f], &o, &c->reader, &err);
+    if (st != SLOWSCAN_OK) {
+        cli_error("%s", err.message);
+        return st == SLOWSCAN_ENOMEM ? EXIT_INTERNAL : EXIT_BAD_INPUT;
+    }
+    c->all_missing = c->chunks = 0;
+    return EXIT_OK;
+}
+
+int cli_cursor_next(cli_cursor *c, const series_table **t, size_t *k)
+{
+    for (;;) {
+        if (c->table && c->next < c->table->nseries) {
+            *t = c->table;
+            *k = c->next++;
+            return EXIT_OK;
+        }
+        int rc = EXIT_OK;
+        if (c->reader) {
+            rc = next_chunk(c);
+            if (rc == CLI_CURSOR_END)
+                continue;
+        } else if (c->input < c->in->ntables) {
+            c->table = NULL;
+            rc = open_input(c);
+        } else {
+            return CLI_CURSOR_END;
+        }
+        if (rc != EXIT_OK)
+            return rc;
+    }
+}
