@@ -187,11 +187,19 @@ int cli_figure_draw(report_batch *figures, const report_figure_type *type, const
 void cli_outputs_abort(cli_outputs *outs);
 
 /* Writes a number the way every slowscan CSV does: %.12g, NA for non-finite. */
+/* With more than one input every output row starts with the file it came from: the header's
+ * "file," and the row's file field (so series of the same name in two files stay apart). */
+int cli_several_inputs(const cli_options *opts);
+void cli_put_header(FILE *fp, const cli_options *opts, const char *columns);
+void cli_put_series(FILE *fp, const cli_options *opts, const char *source, const char *name);
 void cli_put_number(FILE *fp, double v);
 /* A series' times as a figure's x values: decimal years on a dated axis (in *owned, which
  * the caller frees; NULL when out of memory), else its own times; label names the axis. */
 const double *cli_figure_times(const prepared_series *ps, double **owned, char *label,
                                size_t size);
+/* The unit of lengths on a series' axis for outputs: days, months, years, or "" for a time
+ * column of plain numbers (its own unit). */
+const char *cli_time_unit(const time_axis *axis);
 /* A time of the series' axis: a date on a dated axis, else the number (an age as written). */
 void cli_put_time(FILE *fp, const time_axis *axis, double v);
 /* JSON (RFC 8259): a string with its escapes; a number, or null when not finite. */

@@ -10,7 +10,7 @@ static int open_outputs(const cli_options *opts, cli_outputs *outs, void *contex
     detrend_run *run = context;
     int rc = cli_outputs_open(outs, opts, opts->output, "-o", &run->out);
     if (rc == 0)
-        fputs("series,time,value,trend,residual\n", run->out);
+        cli_put_header(run->out, opts, "series,time,value,trend,residual\n");
     return rc;
 }
 
@@ -20,7 +20,7 @@ static int write_series(const cli_options *opts, const prepared_series *ps, void
     detrend_run *run = context;
     cli_screen_detrended(ps);
     for (size_t i = 0; i < ps->n; i++) {
-        cli_put_field(run->out, ps->name);
+        cli_put_series(run->out, opts, ps->source, ps->name);
         fputc(',', run->out);
         cli_put_time(run->out, &ps->axis, ps->time[i]);
         const double cells[] = {ps->value[i], ps->trend[i], ps->residual[i]};

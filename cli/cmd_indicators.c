@@ -12,7 +12,7 @@ static int open_outputs(const cli_options *opts, cli_outputs *outs, void *contex
     indicators_run *run = context;
     int rc = cli_outputs_open(outs, opts, opts->output, "-o", &run->out);
     if (rc == EXIT_OK)
-        fputs(cli_rolling_header, run->out);
+        cli_put_header(run->out, opts, cli_rolling_header);
     return rc;
 }
 

@@ -11,6 +11,7 @@
 #include <stdlib.h>
 
 typedef struct {
+    const cli_options *opts;
     FILE *out, *json, *projection;
     size_t written;
     recovery_workspace *ws; /* made on first use, for --threads threads */
@@ -48,16 +49,17 @@ static const char *status_name(const ar1_projection *pr)
 static int open_outputs(const cli_options *opts, cli_outputs *outs, void *context)
 {
     recovery_run *run = context;
+    run->opts = opts;
     int rc = cli_outputs_open(outs, opts, opts->output, "-o", &run->out);
     if (rc == EXIT_OK)
-        fputs("series,time,lambda,lambda_lo,lambda_hi\n", run->out);
+        cli_put_header(run->out, opts, "series,time,lambda,lambda_lo,lambda_hi\n");
     if (rc == EXIT_OK && opts->json_output)
         rc = cli_outputs_open(outs, opts, opts->json_output, "--json", &run->json);
     if (rc == EXIT_OK && opts->projection_output)
         rc = cli_outputs_open(outs, opts, opts->projection_output, "--project", &run->projection);
     if (rc == EXIT_OK && run->projection) {
-        fputs("series,status,crossing_time,crossing_lo,crossing_hi,interval,share_crossing,draws,"
-              "basis\n", run->projection);
+        cli_put_header(run->projection, opts, "series,status,crossing_time,crossing_lo,"
+                       "crossing_hi,interval,share_crossing,draws,basis\n");
     }
     if (rc == EXIT_OK && run->json)
         fprintf(run->json, "{\n  \"program\": \"slowscan\",\n  \"null\": \"%s\",\n  \"surrogates\": %ld,\n"
@@ -75,7 +77,7 @@ static void write_projection(recovery_run *run, const prepared_series *ps,
     if (r->projection_status != SLOWSCAN_OK)
         cli_warning("%s: column '%s': no projected crossing (%s)", ps->source, ps->name,
                     slowscan_strerror(r->projection_status));
-    cli_put_field(run->projection, ps->name);
+    cli_put_series(run->projection, run->opts, ps->source, ps->name);
     fprintf(run->projection, ",%s,", status_name(pr));
     const double times[] = {r->crossing_time, r->crossing_lo, r->crossing_hi};
     for (int k = 0; k < 3; k++) {
@@ -133,8 +135,17 @@ static void write_json(recovery_run *run, const prepared_series *ps, const recov
 {
     const ar1_drift_fit *f = &r->fit;
     double p = r->p_value;
-    fprintf(run->json, "%s\n    {\"series\": ", run->written++ ? "," : "");
+    fprintf(run->json, "%s\n    {", run->written++ ? "," : "");
+    if (cli_several_inputs(run->opts)) {
+        fputs("\"file\": ", run->json);
+        cli_json_string(run->json, ps->source);
+        fputs(", ", run->json);
+    }
+    fputs("\"series\": ", run->json);
     cli_json_string(run->json, ps->name);
+    fputs(", \"time_unit\": ", run->json); /* of the recovery rate lambda (per unit) */
+    ps->axis.unit != TIME_AXIS_NUMBER ? cli_json_string(run->json, cli_time_unit(&ps->axis))
+                                      : (void)fputs("null", run->json);
     /* se_* are HC3; the model-based error of a1 and its t are kept beside them */
     const double v[] = {f->a0, f->a1, f->c, f->se_a0, f->se_a1, f->t_a1, f->se_a1_model,
                         f->t_a1_model, p};
@@ -224,7 +235,7 @@ static int recovery_series(const cli_options *opts, const prepared_series *ps, v
     }
     const double *path = run->path;
     for (size_t i = 0; i < ps->n; i++) {
-        cli_put_field(run->out, ps->name);
+        cli_put_series(run->out, opts, ps->source, ps->name);
         for (int c = -1; c < 3; c++) {
             fputc(',', run->out);
             if (c < 0)

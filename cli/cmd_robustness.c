@@ -107,12 +107,13 @@ static int open_outputs(const cli_options *opts, cli_outputs *outs, void *contex
     robustness_run *run = context;
     int rc = cli_outputs_open(outs, opts, opts->output, "-o", &run->out);
     if (rc == EXIT_OK)
-        fputs("series,indicator,detrend,window,bandwidth,tau,statistic,p_value\n", run->out);
+        cli_put_header(run->out, opts, "series,indicator,detrend,window,bandwidth,tau,statistic,"
+                       "p_value\n");
     if (rc == EXIT_OK && opts->fractions_output) {
         rc = cli_outputs_open(outs, opts, opts->fractions_output, "--fractions", &run->fractions);
         if (rc == EXIT_OK)
-            fputs("series,indicator,detrend,cells,share_statistic_positive,share_p_at_most_0.05\n",
-                  run->fractions);
+            cli_put_header(run->fractions, opts, "series,indicator,detrend,cells,"
+                           "share_statistic_positive,share_p_at_most_0.05\n");
     }
     if (rc == EXIT_OK)
         rc = cli_figures_open(outs, opts, &run->figures);
@@ -123,7 +124,7 @@ static int open_outputs(const cli_options *opts, cli_outputs *outs, void *contex
 static void put_row(const series_pass *pass, const robustness_record *r)
 {
     FILE *out = pass->run->out;
-    cli_put_field(out, pass->named->name);
+    cli_put_series(out, pass->opts, pass->named->source, pass->named->name);
     fprintf(out, ",%s,", slowscan_screen_test_name(r->kind));
     cli_put_field(out, pass->methods->label[r->method]);
     const double cells[] = {r->window, r->bandwidth, r->tau, r->statistic, r->p_value};
@@ -205,12 +206,12 @@ static void grid_of(const cli_options *opts, const method_list *m, robustness_gr
     g->nmethods = m->count;
 }
 
-static void put_fraction(FILE *fp, const char *series, const char *test, const char *method,
-                         const robustness_counts *c)
+static void put_fraction(FILE *fp, const series_pass *pass, const char *test,
+                         const char *method, const robustness_counts *c)
 {
     double positive, significant;
     slowscan_robustness_shares(c, &positive, &significant);
-    cli_put_field(fp, series);
+    cli_put_series(fp, pass->opts, pass->named->source, pass->named->name);
     fprintf(fp, ",%s,", test);
     cli_put_field(fp, method);
     fprintf(fp, ",%zu,", c->cells);
@@ -230,12 +231,12 @@ static void write_fractions(const series_pass *pass)
     for (size_t j = 0; j < slowscan_screen_test_count(&cfg); j++) {
         const char *test = slowscan_screen_test_name(slowscan_screen_test_of(&cfg, j));
         for (size_t i = 0; i < m->count; i++)
-            put_fraction(pass->run->fractions, pass->named->name, test, m->label[i],
+            put_fraction(pass->run->fractions, pass, test, m->label[i],
                          &pass->counts[i * SCREEN_MAX_TESTS + j]);
         robustness_counts all = slowscan_robustness_total(pass->counts, m->count,
                                                           SCREEN_MAX_TESTS, j);
         if (m->count > 1)
-            put_fraction(pass->run->fractions, pass->named->name, test, "all", &all);
+            put_fraction(pass->run->fractions, pass, test, "all", &all);
     }
 }
 

@@ -22,7 +22,7 @@ static int open_outputs(const cli_options *opts, cli_outputs *outs, void *contex
     if (rc == EXIT_OK && opts->rolling_output) {
         rc = cli_outputs_open(outs, opts, opts->rolling_output, "--rolling", &run->rolling);
         if (rc == EXIT_OK)
-            fputs(cli_rolling_header, run->rolling);
+            cli_put_header(run->rolling, opts, cli_rolling_header);
     }
     if (rc == EXIT_OK && opts->json_output)
         rc = cli_outputs_open(outs, opts, opts->json_output, "--json", &run->json);
@@ -58,10 +58,17 @@ static int record_series(const prepared_series *ps, screen_run *run, const scree
         if (isnan(t->statistic) && !ps->constant)
             cli_screen_insufficient(ps, t);
     }
-    if (res->ntests > 0 && (int)strlen(ps->name) > run->name_width)
-        run->name_width = (int)strlen(ps->name);
+    /* the table's first column: FILE:SERIES when there are several inputs */
+    int width = (int)strlen(ps->name) + (run->several ? (int)strlen(ps->source) + 1 : 0);
+    if (res->ntests > 0 && width > run->name_width)
+        run->name_width = width;
     io_error err = {{0}};
-    int st = slowscan_screen_store_add(run->store, ps->name, res, NULL, 0, &err);
+    /* kept with the record: the time unit of its window and bandwidth, then its file */
+    char extra[1024];
+    size_t len = (size_t)snprintf(extra, sizeof extra, "%s%c%s", cli_time_unit(&ps->axis), 0,
+                                  ps->source);
+    int st = slowscan_screen_store_add(run->store, ps->name, res, extra,
+                                       (len < sizeof extra ? len : sizeof extra - 1) + 1, &err);
     return st == SLOWSCAN_OK ? EXIT_OK : store_failed(st, &err);
 }
 
@@ -78,7 +85,9 @@ size_t cli_screen_series_rows(screen_run *run, size_t k, screen_row *rows, int *
     for (size_t j = 0; j < res->ntests; j++)
         rows[j] = (screen_row){s.name, res->n, rolling_window(res, j), res->bandwidth,
                                s.q_value[j], res->tests[j], s.flag[j], res->harmonics,
-                               res->leakage, res->leakage_tested};
+                               res->leakage, res->leakage_tested,
+                               s.extra ? (const char *)s.extra + strlen(s.extra) + 1 : "",
+                               s.extra ? (const char *)s.extra : ""};
     *rc = EXIT_OK;
     return res->ntests;
 }
@@ -249,7 +258,7 @@ static int write_csv_row(const screen_row *row, size_t index, void *context)
 {
     (void)index;
     const row_writer *w = context;
-    cli_put_field(w->out, row->series);
+    cli_put_series(w->out, w->opts, row->file, row->series);
     fprintf(w->out, ",%s,%zu,", slowscan_screen_test_name(row->result.kind), row->n);
     const double cells[] = {row->window, row->bandwidth, row->result.tau, row->result.statistic,
                             row->result.p_value, row->q_value};
@@ -275,8 +284,10 @@ static int write_table_row(const screen_row *row, size_t index, void *context)
 {
     (void)index;
     const row_writer *w = context;
-    char tau[32], p[32], q[32];
-    fprintf(w->out, "%-*s  %-14s %9s %10s %10s  %s\n", w->width, row->series,
+    char tau[32], p[32], q[32], name[1024];
+    snprintf(name, sizeof name, "%s%s%s", cli_several_inputs(w->opts) ? row->file : "",
+             cli_several_inputs(w->opts) ? ":" : "", row->series);
+    fprintf(w->out, "%-*s  %-14s %9s %10s %10s  %s\n", w->width, name,
             slowscan_screen_test_name(row->result.kind), fixed(tau, row->result.statistic, 3, 1),
             fixed(p, row->result.p_value, 4, 0), fixed(q, row->q_value, 4, 0),
             slowscan_screen_flag_name(row->flag));
@@ -287,8 +298,8 @@ static int write_summary(const cli_options *opts, screen_run *run)
 {
     row_writer w = {opts, run->out, run->name_width > 6 ? run->name_width : 6};
     if (strcmp(opts->format, "table") != 0) {
-        fputs("series,indicator,n,window,bandwidth,tau,statistic,p_value,q_value,null,surrogates,"
-              "flag\n", run->out);
+        cli_put_header(run->out, opts, "series,indicator,n,window,bandwidth,tau,statistic,p_value,"
+                       "q_value,null,surrogates,flag\n");
         return cli_screen_each_row(run, write_csv_row, &w);
     }
     fprintf(run->out, "%-*s  %-14s %9s %10s %10s  %s\n", w.width, "series", "indicator",
@@ -322,6 +333,7 @@ static size_t spill_after(void)
 int cmd_screen(const cli_options *opts)
 {
     screen_run run = {0};
+    run.several = cli_several_inputs(opts);
     cli_screen_config(opts, &run.cfg);
     if (!(run.store = slowscan_screen_store_alloc(spill_after(), NULL))) {
         cli_error("out of memory");

@@ -17,7 +17,7 @@ static int open_outputs(const cli_options *opts, cli_outputs *outs, void *contex
     surrogates_run *run = context;
     int rc = cli_outputs_open(outs, opts, opts->output, "-o", &run->out);
     if (rc == EXIT_OK)
-        fputs("series,replicate,time,value\n", run->out);
+        cli_put_header(run->out, opts, "series,replicate,time,value\n");
     return rc;
 }
 
@@ -29,7 +29,7 @@ static int write_replicates(const cli_options *opts, const prepared_series *ps,
         if (st != SLOWSCAN_OK)
             return st;
         for (size_t i = 0; i < ps->n; i++) {
-            cli_put_field(run->out, ps->name);
+            cli_put_series(run->out, opts, ps->source, ps->name);
             fprintf(run->out, ",%ld,", j + 1);
             cli_put_time(run->out, &ps->axis, ps->time[i]);
             fputc(',', run->out);

@@ -130,6 +130,27 @@ int cli_figure_draw(report_batch *figures, const report_figure_type *type, const
     return st == SLOWSCAN_EIO ? EXIT_BAD_INPUT : EXIT_INTERNAL;
 }
 
+int cli_several_inputs(const cli_options *opts)
+{
+    return opts->nfiles > 1;
+}
+
+void cli_put_header(FILE *fp, const cli_options *opts, const char *columns)
+{
+    if (cli_several_inputs(opts))
+        fputs("file,", fp);
+    fputs(columns, fp);
+}
+
+void cli_put_series(FILE *fp, const cli_options *opts, const char *source, const char *name)
+{
+    if (cli_several_inputs(opts)) {
+        cli_put_field(fp, source);
+        fputc(',', fp);
+    }
+    cli_put_field(fp, name);
+}
+
 void cli_put_number(FILE *fp, double v)
 {
     if (isfinite(v))
@@ -152,6 +173,12 @@ const double *cli_figure_times(const prepared_series *ps, double **owned, char *
     for (size_t i = 0; i < ps->n; i++)
         (*owned)[i] = slowscan_time_axis_decimal_year(&ps->axis, ps->time[i]);
     return *owned;
+}
+
+const char *cli_time_unit(const time_axis *axis)
+{
+    const char *name = slowscan_time_axis_unit_name(axis->unit);
+    return name ? name : "";
 }
 
 void cli_put_time(FILE *fp, const time_axis *axis, double v)
@@ -312,7 +339,7 @@ void cli_write_rolling(FILE *fp, const cli_options *opts, const prepared_series 
         for (size_t i = ps->window - 1; i < ps->n; i++) {
             if (!rolling_evaluated(step, ps->n, i))
                 continue;
-            cli_put_field(fp, ps->name);
+            cli_put_series(fp, opts, ps->source, ps->name);
             fputc(',', fp);
             cli_put_time(fp, &ps->axis, ps->time[i]);
             fprintf(fp, ",%s,", name);

@@ -19,12 +19,16 @@ typedef struct {
     int harmonics; /* the cycle removed: -1 none, 0 the mean cycle, K harmonics */
     detrend_leakage leakage; /* the series' trend-leakage test (valid when leakage_tested) */
     int leakage_tested;
+    const char *file;      /* the input it came from (as the store holds it) */
+    const char *time_unit; /* of window and bandwidth: days, months, years, or "" (the time
+                              column's own numbers) */
 } screen_row;
 
 typedef struct {
     FILE *out, *rolling;
     screen_store *store; /* every series' record until the q-values are known */
     int name_width;      /* the longest series name with a row (the table's first column) */
+    int several;         /* more than one input: rows name their file */
     screen_config cfg;
     FILE *json;
     report_batch *figures; /* --figures DIR */

@@ -91,10 +91,18 @@ static void write_leakage(FILE *fp, const screen_row *row)
     fputc('}', fp);
 }
 
-static void write_row(FILE *fp, const screen_row *row)
+static void write_row(FILE *fp, const screen_row *row, int several)
 {
-    fputs("    {\"series\": ", fp);
+    fputs("    {", fp);
+    if (row->file && several) {
+        fputs("\"file\": ", fp);
+        cli_json_string(fp, row->file);
+        fputs(", ", fp);
+    }
+    fputs("\"series\": ", fp);
     cli_json_string(fp, row->series);
+    fputs(", \"time_unit\": ", fp);
+    row->time_unit[0] ? cli_json_string(fp, row->time_unit) : (void)fputs("null", fp);
     fprintf(fp, ", \"indicator\": \"%s\", \"n\": %zu", slowscan_screen_test_name(row->result.kind), row->n);
     const struct { const char *key; double v; } cells[] = {
         {"window", row->window}, {"bandwidth", row->bandwidth}, {"tau", row->result.tau},
@@ -123,12 +131,13 @@ static void write_row(FILE *fp, const screen_row *row)
 typedef struct {
     FILE *fp;
     size_t rows;
+    int several; /* more than one input: each row names its file */
 } json_rows;
 
 static int put_row(const screen_row *row, size_t index, void *context)
 {
     const json_rows *j = context;
-    write_row(j->fp, row);
+    write_row(j->fp, row, j->several);
     fputs(index + 1 < j->rows ? ",\n" : "\n", j->fp);
     return EXIT_OK;
 }
@@ -138,7 +147,7 @@ int cli_screen_json(FILE *fp, const cli_options *opts, screen_run *run)
     fputs("{\n", fp);
     write_parameters(fp, opts);
     fputs("  \"results\": [\n", fp);
-    json_rows rows = {fp, slowscan_screen_store_tests(run->store)};
+    json_rows rows = {fp, slowscan_screen_store_tests(run->store), cli_several_inputs(opts)};
     int rc = cli_screen_each_row(run, put_row, &rows);
     fputs("  ]\n}\n", fp);
     return rc;

@@ -203,11 +203,46 @@ static void check_length_units(void)
           "days on a monthly record refused: %s", err ? err : "");
 }
 
+/* Two inputs with the same column names stay apart: a leading file column in every CSV
+ * (DESIGN §4), "file" in the JSON rows; the JSON says the unit of window and bandwidth. */
+static void check_several_inputs(void)
+{
+    const char *a = check_tmp_path("dated.csv"), *b = check_tmp_path("dated_copy.csv");
+    char *text = check_read_file(a);
+    if (!text || check_write_file(b, text) != 0) {
+        CHECK(0, "copy of the dated input");
+        free(text);
+        return;
+    }
+    free(text);
+    const char *json = check_tmp_path("two.json"), *rolling = check_tmp_path("two_rolling.csv");
+    char args[1500];
+    snprintf(args, sizeof args, "screen --surrogates 0 --calendar noleap --json %s --rolling %s "
+             "%s %s", json, rolling, a, b);
+    int rc = run(args);
+    char *j = check_read_file(json), *r = check_read_file(rolling);
+    char want_a[600], want_b[600];
+    snprintf(want_a, sizeof want_a, "\n%s,x,variance,", a);
+    snprintf(want_b, sizeof want_b, "\n%s,x,variance,", b);
+    CHECK(rc == 0 && out && strncmp(out, "file,series,indicator,", 22) == 0 &&
+              strstr(out, want_a) && strstr(out, want_b),
+          "summary: a leading file column names both inputs: %.200s", out ? out : "");
+    CHECK(r && strncmp(r, "file,series,time,indicator,value\n", 33) == 0,
+          "--rolling: a leading file column");
+    CHECK(j && strstr(j, "{\"file\": ") && strstr(j, "\"time_unit\": \"months\""),
+          "JSON rows name their file and the unit of window and bandwidth (months)");
+    free(j), free(r);
+    snprintf(args, sizeof args, "detrend --calendar noleap %s", a);
+    CHECK(run(args) == 0 && out && strncmp(out, "series,time,", 12) == 0,
+          "one input: no file column");
+}
+
 void suite_dated_cli(void)
 {
     check_same_numbers();
     check_ages();
     check_codes();
     check_length_units();
+    check_several_inputs();
     free(out), free(err);
 }
