@@ -111,7 +111,7 @@ int cli_screen_each_row(screen_run *run, screen_row_visitor visit, void *context
  * table at a time, and a table is gone when the next is read, so each of its series is
  * copied for the workers until the driver releases it. */
 typedef struct {
-    char *name;
+    char *name, *source, *time_name;
     double *time, *values;
 } series_copy;
 
@@ -125,9 +125,11 @@ typedef struct {
 static int copy_series(series_copy *c, const series_table *t, size_t k)
 {
     c->name = strdup(t->names[k]);
+    c->source = strdup(cli_source_name(t->source));
+    c->time_name = strdup(t->time_name);
     c->time = malloc(t->n * sizeof *c->time);
     c->values = malloc(t->n * sizeof *c->values);
-    if (!c->name || !c->time || !c->values)
+    if (!c->name || !c->source || !c->time_name || !c->time || !c->values)
         return SLOWSCAN_ENOMEM;
     memcpy(c->time, t->time, t->n * sizeof *c->time);
     memcpy(c->values, t->values[k], t->n * sizeof *c->values);
@@ -140,7 +142,7 @@ static void release_series(void *state, size_t index)
     if (!src->copies)
         return;
     series_copy *c = &src->copies[index];
-    free(c->name), free(c->time), free(c->values);
+    free(c->name), free(c->source), free(c->time_name), free(c->time), free(c->values);
     memset(c, 0, sizeof *c);
 }
 
@@ -167,7 +169,8 @@ static int next_series(void *state, size_t index, screen_input *out, screen_deta
             src->rc = EXIT_INTERNAL;
             return SLOWSCAN_ENOMEM;
         }
-        out->name = c->name, out->time = c->time, out->values = c->values;
+        out->name = c->name, out->source = c->source, out->time_name = c->time_name;
+        out->time = c->time, out->values = c->values;
     }
     if (src->controls) {
         src->controls[index] = cli_control_input(src->cursor.in, t->names[k]);
