@@ -326,6 +326,10 @@ int cli_set_age(cli_options *o, const char *n, const char *v);
 int cli_set_calendar(cli_options *o, const char *n, const char *v);
 int cli_set_missing(cli_options *o, const char *n, const char *v);
 
+/* signals.c: SIGTERM, SIGINT and SIGHUP remove every temporary output and exit with
+ * 128 + the signal number. */
+void cli_handle_stops(void);
+
 /* input_checks.c: reading options from the command's (CF units parsed on the calendar), the
  * --from/--until span on a table's axis, the grid (gaps or --resample), notices on what the
  * reader left out or suspects. Each returns an exit code (the message printed). */

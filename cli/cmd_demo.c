@@ -35,8 +35,10 @@ static int write_grid(const cli_options *opts, const char *dir)
     int st = slowscan_demo_grid_write(opts->seed, temp);
     if (st == SLOWSCAN_OK && rename(temp, path) != 0)
         st = SLOWSCAN_EIO;
-    if (st != SLOWSCAN_OK) {
+    if (st != SLOWSCAN_OK)
         remove(temp);
+    slowscan_atomic_temp_done(temp);
+    if (st != SLOWSCAN_OK) {
         cli_error("demo: %s could not be written (%s)", path, slowscan_strerror(st));
     } else {
         fprintf(stderr, "slowscan: wrote %s (%d x %d cells, %d monthly samples)\n", path,

@@ -37,6 +37,7 @@ int main(int argc, char **argv)
     fftw_make_planner_thread_safe();
     /* GSL must report errors as status codes, not abort the process. */
     gsl_set_error_handler_off();
+    cli_handle_stops();
     for (size_t c = 0; c < sizeof commands / sizeof commands[0]; c++) {
         if (strcmp(name, commands[c].name) != 0)
             continue;

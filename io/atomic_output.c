@@ -48,6 +48,7 @@ char *slowscan_atomic_temp_beside(const char *path)
     }
     set_mode(fd, path);
     close(fd);
+    io_temp_register(temp);
     return temp;
 }
 
@@ -98,6 +99,7 @@ int slowscan_atomic_open(atomic_file *f, const char *path, io_error *err)
         return io_fail(err, SLOWSCAN_EIO, "cannot write %s: %s", path, io_strerror(e, why, sizeof why));
     }
     set_mode(fd, path);
+    io_temp_register(f->temp_path);
     if (!(f->fp = fdopen(fd, "w"))) {
         int e = errno;
         close(fd);
@@ -149,6 +151,7 @@ int slowscan_atomic_commit(atomic_file *f, io_error *err)
         slowscan_atomic_abort(f); /* removes the temporary file */
         return SLOWSCAN_EIO;
     }
+    slowscan_atomic_temp_done(f->temp_path);
     free(f->temp_path);
     free(f->path);
     f->temp_path = f->path = NULL;
@@ -160,8 +163,10 @@ void slowscan_atomic_abort(atomic_file *f)
     if (f->fp) /* a file of ours, or the spool of standard output (deleted on close) */
         fclose(f->fp);
     f->fp = NULL;
-    if (f->temp_path)
+    if (f->temp_path) {
         unlink(f->temp_path);
+        slowscan_atomic_temp_done(f->temp_path);
+    }
     free(f->temp_path);
     free(f->path);
     f->temp_path = f->path = NULL;

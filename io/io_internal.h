@@ -12,6 +12,9 @@
 /* Formats the message into err (which may be NULL) and returns status. */
 int io_fail(io_error *err, int status, const char *fmt, ...) __attribute__((format(printf, 3, 4)));
 char *io_strdup(const char *s);
+/* Records a temporary output file just made, so a signal's handler can remove it
+ * (temporaries.c); slowscan_atomic_temp_done forgets it once it is renamed or removed. */
+void io_temp_register(const char *path);
 
 /* The name used in messages: "standard input" for "-" (or NULL), else the path as given. */
 const char *io_display_name(const char *source);

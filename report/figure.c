@@ -378,8 +378,10 @@ int slowscan_report_batch_draw(report_batch *b, const report_figure_type *type, 
     char *temp = final ? slowscan_atomic_temp_beside(final) : NULL;
     if (!temp || add_entry(b, final, temp) != SLOWSCAN_OK) {
         int e = errno;
-        if (temp)
+        if (temp) {
             unlink(temp);
+            slowscan_atomic_temp_done(temp);
+        }
         int st = fail(err, SLOWSCAN_EIO, "cannot write figure %s: %s", final ? final : name,
                       final && temp ? "out of memory" : strerror(e));
         free(final);
@@ -417,6 +419,8 @@ int slowscan_report_batch_commit(report_batch *b, io_error *err)
         if (rename(e->temp, e->final) != 0 ||
             (e->boxes_temp && rename(e->boxes_temp, e->boxes_final) != 0))
             return fail(err, SLOWSCAN_EIO, "cannot write figure %s: %s", e->final, strerror(errno));
+        slowscan_atomic_temp_done(e->temp);
+        slowscan_atomic_temp_done(e->boxes_temp);
         free(e->temp);
         free(e->boxes_temp);
         e->temp = e->boxes_temp = NULL;
@@ -431,6 +435,8 @@ static void remove_uncommitted(report_batch *b)
             unlink(b->entries[i].temp);
         if (b->entries[i].boxes_temp)
             unlink(b->entries[i].boxes_temp);
+        slowscan_atomic_temp_done(b->entries[i].temp);
+        slowscan_atomic_temp_done(b->entries[i].boxes_temp);
     }
 }
 

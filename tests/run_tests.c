@@ -34,6 +34,7 @@ void suite_calendar(void);
 void suite_time_column(void);
 void suite_netcdf(void);
 void suite_dated_cli(void);
+void suite_interrupt(void);
 void suite_store(void);
 
 static const struct {
@@ -54,7 +55,7 @@ static const struct {
     {"series_calls", suite_series_calls},
     {"calendar", suite_calendar},
     {"time_column", suite_time_column}, {"netcdf", suite_netcdf},
-    {"dated_cli", suite_dated_cli},
+    {"dated_cli", suite_dated_cli},   {"interrupt", suite_interrupt},
 };
 
 int main(int argc, char **argv)

@@ -141,6 +141,16 @@ int slowscan_atomic_commit(atomic_file *file, io_error *err);
 SLOWSCAN_API
 void slowscan_atomic_abort(atomic_file *file);
 
+/* Every temporary file made by slowscan_atomic_open and slowscan_atomic_temp_beside is
+ * recorded until it is committed or removed, so that a program stopped by a signal can call
+ * slowscan_atomic_remove_temporaries from its handler: it only unlinks, takes no lock and
+ * allocates nothing (async-signal-safe). A caller of slowscan_atomic_temp_beside says
+ * slowscan_atomic_temp_done once it has renamed or removed the file. */
+SLOWSCAN_API
+void slowscan_atomic_remove_temporaries(void);
+SLOWSCAN_API
+void slowscan_atomic_temp_done(const char *temp);
+
 /* Creates an empty temporary file beside `path` (same directory, so a rename into place is
  * atomic), with the permissions a plain fopen of `path` would give; returns its malloc'd
  * name, or NULL with errno set. For writers that open files by name (the figure drivers). */
