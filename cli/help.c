@@ -178,6 +178,11 @@ static void help_screen(FILE *out)
           "  --rolling FILE       also write the rolling indicators (as 'indicators' does)\n"
           "  --json FILE          also write the summary as JSON, with the quantiles of each\n"
           "                       null distribution and every parameter of the run\n"
+          "  --maps FILE.nc       for a NetCDF grid (exactly one among the inputs): per\n"
+          "                       variable and test, maps of the statistic (tau; t for\n"
+          "                       recovery_trend), p, q and the flag on the grid's other\n"
+          "                       dimensions, coordinates copied, CF attributes; cells not\n"
+          "                       analysed (all missing) are _FillValue\n"
           "  --format csv|table   summary as CSV (default) or as an aligned table\n", out);
     fputs(figure_options, out);
     fputs("                       screen-SERIES: the record and its trend (first window\n"
