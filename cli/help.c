@@ -191,7 +191,10 @@ static void help_screen(FILE *out)
           "                       intervals, the observed statistic as a dot, p, q, verdict;\n"
           "                       screen-overview (two or more series): statistic against\n"
           "                       -log10(q) per test, flagged series named where they fit\n"
-          "                       (the strongest 20 first), the rest counted\n\n", out);
+          "                       (the strongest 20 first), the rest counted;\n"
+          "                       map-VAR (with --maps): per test the statistic of each\n"
+          "                       grid cell over the two horizontal dimensions, flagged\n"
+          "                       cells framed\n\n", out);
     fputs(cautions, out);
 }
 

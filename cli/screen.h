@@ -67,5 +67,7 @@ int cli_screen_figures(const cli_options *opts, const cli_inputs *in, void *cont
  * known, committed with the other outputs. */
 int cli_screen_maps_open(const cli_options *opts, cli_outputs *outs, screen_run *run);
 int cli_screen_maps_fill(screen_run *run);
+/* With --figures too: a map figure per variable with two horizontal dimensions. */
+int cli_screen_maps_figures(screen_run *run);
 
 #endif

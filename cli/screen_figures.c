@@ -137,5 +137,7 @@ int cli_screen_figures(const cli_options *opts, const cli_inputs *in, void *cont
     int rc = cli_for_each_series(&quiet, in, draw_series, run);
     if (rc == EXIT_OK && cli_inputs_series_count(in) > 1)
         rc = draw_overview(opts, run);
+    if (rc == EXIT_OK && run->maps)
+        rc = cli_screen_maps_figures(run);
     return rc;
 }

@@ -5,6 +5,7 @@
 #include "screen.h"
 #include "slowscan/status.h"
 
+#include <math.h>
 #include <stdlib.h>
 #include <string.h>
 
@@ -112,4 +113,94 @@ static int put_row(const screen_row *row, size_t index, void *context)
 int cli_screen_maps_fill(screen_run *run)
 {
     return cli_screen_each_row(run, put_row, run);
+}
+
+/* The two horizontal dimensions of a view: the two longer than one (the others, a level
+ * chosen with --select, are single); 0 when there are not exactly two. */
+static int horizontal_dims(const netcdf_maps_view *v, size_t *y, size_t *x)
+{
+    size_t found = 0, dims[2] = {0, 0};
+    for (size_t k = 0; k < v->ndims; k++)
+        if (v->dim_length[k] > 1 || v->ndims == 2) {
+            if (found < 2)
+                dims[found] = k;
+            found++;
+        }
+    *y = dims[0], *x = dims[1];
+    return found == 2;
+}
+
+/* A map figure's arrays for one variable: per test its statistic (NaN for fill) and flags. */
+typedef struct {
+    report_map_test tests[SCREEN_MAX_TESTS];
+    double *statistic, *x, *y;
+    unsigned char *flagged;
+} map_arrays;
+
+static const double *coordinates(const netcdf_maps_view *v, size_t k, double *indices)
+{
+    if (v->dim_value[k])
+        return v->dim_value[k];
+    for (size_t i = 0; i < v->dim_length[k]; i++)
+        indices[i] = (double)i;
+    return indices;
+}
+
+static int fill_arrays(screen_run *run, size_t variable, size_t cells, map_arrays *a)
+{
+    size_t ntests = slowscan_screen_test_count(&run->cfg);
+    a->statistic = malloc(ntests * cells * sizeof *a->statistic);
+    a->flagged = malloc(ntests * cells * sizeof *a->flagged);
+    if (!a->statistic || !a->flagged)
+        return EXIT_INTERNAL;
+    for (size_t j = 0; j < ntests; j++) {
+        int kind = slowscan_screen_test_of(&run->cfg, j);
+        netcdf_maps_view v;
+        slowscan_netcdf_maps_view(run->maps, variable, kind, &v);
+        double *stat = a->statistic + j * cells;
+        unsigned char *flagged = a->flagged + j * cells;
+        for (size_t i = 0; i < cells; i++) {
+            stat[i] = v.statistic[i] == v.fill ? NAN : (double)v.statistic[i];
+            flagged[i] = v.flag[i] == SCREEN_FLAG_RISING || v.flag[i] == SCREEN_FLAG_FALLING;
+        }
+        a->tests[j] = (report_map_test){slowscan_screen_test_name(kind),
+                                        slowscan_screen_test_rolling(kind), stat, flagged};
+    }
+    return EXIT_OK;
+}
+
+static int draw_variable(screen_run *run, size_t variable)
+{
+    netcdf_maps_view v;
+    slowscan_netcdf_maps_view(run->maps, variable, slowscan_screen_test_of(&run->cfg, 0), &v);
+    size_t iy, ix;
+    if (!horizontal_dims(&v, &iy, &ix)) {
+        cli_warning("option --figures: no map of %s: it has %zu dimensions besides time with "
+                    "more than one value (a map needs two; choose the others with --select)",
+                    v.variable, v.ndims);
+        return EXIT_OK;
+    }
+    size_t ny = v.dim_length[iy], nx = v.dim_length[ix];
+    map_arrays a = {0};
+    a.x = malloc(nx * sizeof *a.x);
+    a.y = malloc(ny * sizeof *a.y);
+    int rc = a.x && a.y ? fill_arrays(run, variable, nx * ny, &a) : EXIT_INTERNAL;
+    if (rc == EXIT_OK) {
+        report_map_data data = {v.variable, v.dim_name[ix], v.dim_name[iy], nx, ny,
+                                coordinates(&v, ix, a.x), coordinates(&v, iy, a.y), a.tests,
+                                slowscan_screen_test_count(&run->cfg)};
+        rc = cli_figure_draw(run->figures, &slowscan_report_map_figure, &data, "map", v.variable);
+    } else {
+        cli_error("out of memory");
+    }
+    free(a.statistic), free(a.flagged), free(a.x), free(a.y);
+    return rc;
+}
+
+int cli_screen_maps_figures(screen_run *run)
+{
+    int rc = EXIT_OK;
+    for (size_t k = 0; rc == EXIT_OK && k < slowscan_netcdf_maps_variables(run->maps); k++)
+        rc = draw_variable(run, k);
+    return rc;
 }

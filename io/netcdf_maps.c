@@ -138,6 +138,36 @@ int slowscan_netcdf_maps_put(netcdf_maps *m, size_t variable, size_t cell, int t
     return SLOWSCAN_OK;
 }
 
+size_t slowscan_netcdf_maps_variables(const netcdf_maps *m)
+{
+    return m->reader->nvars;
+}
+
+int slowscan_netcdf_maps_view(const netcdf_maps *m, size_t variable, int test,
+                              netcdf_maps_view *view)
+{
+    size_t j = 0;
+    while (j < m->ntests && m->tests[j] != test)
+        j++;
+    if (variable >= m->reader->nvars || j == m->ntests)
+        return SLOWSCAN_EINVAL;
+    const netcdf_variable *v = &m->reader->vars[variable];
+    memset(view, 0, sizeof *view);
+    view->variable = v->name;
+    view->ndims = (size_t)v->ncoords;
+    for (int k = 0; k < v->ncoords; k++) {
+        const netcdf_dim *d = &v->dims[k];
+        view->dim_name[k] = d->name;
+        view->dim_length[k] = d->count;
+        view->dim_value[k] = d->coord ? d->coord + d->start : NULL;
+    }
+    const test_maps *t = &m->maps[variable * m->ntests + j];
+    view->statistic = t->statistic;
+    view->flag = t->flag;
+    view->fill = MAP_FILL;
+    return SLOWSCAN_OK;
+}
+
 /* The file format of the output: the input's family. */
 static int output_mode(int in_ncid)
 {

@@ -60,6 +60,28 @@ int slowscan_netcdf_maps_put(netcdf_maps *maps, size_t variable, size_t cell, in
                              double statistic, double p_value, double q_value,
                              screen_flag flag);
 
+/* One variable x test of the maps as put so far, for a figure: the variable's non-time
+ * dimensions as selected (name, length, coordinate values — NULL where the dimension has no
+ * coordinate variable: indices from 0) and the statistic and flag of each cell, row-major
+ * over the dimensions, `fill` where nothing was put. Borrowed until the maps are freed. */
+typedef struct {
+    const char *variable;
+    size_t ndims;
+    const char *dim_name[NETCDF_MAX_DIMS];
+    size_t dim_length[NETCDF_MAX_DIMS];
+    const double *dim_value[NETCDF_MAX_DIMS];
+    const float *statistic;
+    const signed char *flag;
+    float fill;
+} netcdf_maps_view;
+/* The variables of the maps (the reader's, in order). */
+SLOWSCAN_API
+size_t slowscan_netcdf_maps_variables(const netcdf_maps *maps);
+/* SLOWSCAN_EINVAL for a variable or test outside the maps. */
+SLOWSCAN_API
+int slowscan_netcdf_maps_view(const netcdf_maps *maps, size_t variable, int test,
+                              netcdf_maps_view *view);
+
 /* Writes the whole file into the temporary file (done once; commit does it when it has not
  * been done), so that a caller committing several outputs can fail before renaming any.
  * SLOWSCAN_EIO with a message naming the path; the temporary file is then removed. */
