@@ -116,6 +116,15 @@ int slowscan_netcdf_maps_open(const char *path, const netcdf_maps_spec *spec,
     return SLOWSCAN_OK;
 }
 
+/* Which of the maps' tests `test` is; ntests when it is none. */
+static size_t test_slot(const netcdf_maps *m, int test)
+{
+    size_t j = 0;
+    while (j < m->ntests && m->tests[j] != test)
+        j++;
+    return j;
+}
+
 static float map_value(double v)
 {
     return isfinite(v) ? (float)v : MAP_FILL;
@@ -124,9 +133,7 @@ static float map_value(double v)
 int slowscan_netcdf_maps_put(netcdf_maps *m, size_t variable, size_t cell, int test,
                              double statistic, double p_value, double q_value, screen_flag flag)
 {
-    size_t j = 0;
-    while (j < m->ntests && m->tests[j] != test)
-        j++;
+    size_t j = test_slot(m, test);
     if (variable >= m->reader->nvars || j == m->ntests ||
         cell >= (m->reader->vars[variable].ncells ? m->reader->vars[variable].ncells : 1))
         return SLOWSCAN_EINVAL;
@@ -146,9 +153,7 @@ size_t slowscan_netcdf_maps_variables(const netcdf_maps *m)
 int slowscan_netcdf_maps_view(const netcdf_maps *m, size_t variable, int test,
                               netcdf_maps_view *view)
 {
-    size_t j = 0;
-    while (j < m->ntests && m->tests[j] != test)
-        j++;
+    size_t j = test_slot(m, test);
     if (variable >= m->reader->nvars || j == m->ntests)
         return SLOWSCAN_EINVAL;
     const netcdf_variable *v = &m->reader->vars[variable];
