@@ -181,8 +181,10 @@ static int next_series(void *state, size_t index, screen_input *out, screen_deta
         out->name = c->name, out->source = c->source, out->time_name = c->time_name;
         out->time = c->time, out->values = c->values;
     }
-    src->origins[index] = (screen_origin){.input = src->cursor.input - 1, .gridded = t->grid != NULL,
-                                          .position = t->grid ? t->grid[k] : (grid_position){0, 0}};
+    screen_origin *origin = &src->origins[index];
+    *origin = (screen_origin){.input = src->cursor.input - 1, .gridded = t->grid != NULL};
+    if (t->grid)
+        origin->position = t->grid[k];
     if (src->controls) {
         src->controls[index] = cli_control_input(src->cursor.in, t->names[k]);
         out->control = &src->controls[index];

@@ -81,8 +81,9 @@ int cli_screen_maps_open(const cli_options *opts, cli_outputs *outs, screen_run 
         cli_error("out of memory");
         return EXIT_INTERNAL;
     }
-    netcdf_maps_spec spec = {opts->files[run->maps_input], cli_netcdf_options(opts), tests,
-                             ntests, history};
+    netcdf_maps_spec spec = {.input = opts->files[run->maps_input],
+                             .read = cli_netcdf_options(opts), .tests = tests,
+                             .ntests = ntests, .history = history};
     io_error err = {{0}};
     int st = slowscan_netcdf_maps_open(opts->maps_output, &spec, &outs->maps, &err);
     free(history);
@@ -163,8 +164,9 @@ static int fill_arrays(screen_run *run, size_t variable, size_t cells, map_array
             stat[i] = v.statistic[i] == v.fill ? NAN : (double)v.statistic[i];
             flagged[i] = v.flag[i] == SCREEN_FLAG_RISING || v.flag[i] == SCREEN_FLAG_FALLING;
         }
-        a->tests[j] = (report_map_test){slowscan_screen_test_name(kind),
-                                        slowscan_screen_test_rolling(kind), stat, flagged};
+        a->tests[j] = (report_map_test){.label = slowscan_screen_test_name(kind),
+                                        .rolling = slowscan_screen_test_rolling(kind),
+                                        .statistic = stat, .flagged = flagged};
     }
     return EXIT_OK;
 }
@@ -186,9 +188,11 @@ static int draw_variable(screen_run *run, size_t variable)
     a.y = malloc(ny * sizeof *a.y);
     int rc = a.x && a.y ? fill_arrays(run, variable, nx * ny, &a) : EXIT_INTERNAL;
     if (rc == EXIT_OK) {
-        report_map_data data = {v.variable, v.dim_name[ix], v.dim_name[iy], nx, ny,
-                                coordinates(&v, ix, a.x), coordinates(&v, iy, a.y), a.tests,
-                                slowscan_screen_test_count(&run->cfg)};
+        report_map_data data = {.name = v.variable, .x_name = v.dim_name[ix],
+                                .y_name = v.dim_name[iy], .nx = nx, .ny = ny,
+                                .x = coordinates(&v, ix, a.x), .y = coordinates(&v, iy, a.y),
+                                .tests = a.tests,
+                                .ntests = slowscan_screen_test_count(&run->cfg)};
         rc = cli_figure_draw(run->figures, &slowscan_report_map_figure, &data, "map", v.variable);
     } else {
         cli_error("out of memory");

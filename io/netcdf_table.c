@@ -31,7 +31,7 @@ static int add_series(netcdf_reader *r, series_table *t, const netcdf_series *s,
     size_t k = t->nseries;
     t->names[k] = io_strdup(s->name);
     t->values[k] = malloc(s->n * sizeof **t->values);
-    t->grid[k] = (grid_position){s->variable_index, s->cell};
+    t->grid[k] = (grid_position){.variable = s->variable_index, .cell = s->cell};
     t->nseries++; /* counted at once, so that the table's release frees what was made */
     if (!t->names[k] || !t->values[k])
         return netcdf_fail(r, err, SLOWSCAN_ENOMEM, "out of memory");

@@ -382,9 +382,11 @@ static void test_map_geometry(void)
             stat[k][i] = i % 11 == 3 ? NAN : v;
             flagged[k][i] = fabs(v) > (k == 3 ? 3.5 : 0.8) && i % 11 != 3;
         }
-        tests[k] = (report_map_test){labels[k], k < 3, stat[k], flagged[k]};
+        tests[k] = (report_map_test){.label = labels[k], .rolling = k < 3,
+                                     .statistic = stat[k], .flagged = flagged[k]};
     }
-    report_map_data d = {"a field", "longitude", "latitude", NX, NY, lon, lat, tests, TESTS};
+    report_map_data d = {.name = "a field", .x_name = "longitude", .y_name = "latitude",
+                         .nx = NX, .ny = NY, .x = lon, .y = lat, .tests = tests, .ntests = TESTS};
     char dir[512], png[800];
     io_error err = {{0}};
     report_batch *batch = open_batch("geometry-map", REPORT_PNG, dir, sizeof dir);
