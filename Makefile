@@ -142,6 +142,8 @@ demo: deps
 	$(B)/slowscan recovery --deseason 364 --surrogates 99 --vars reed_inlet \
 	  --project $(DEMO_OUT)/crossing.csv --figures $(DEMO_OUT) -o $(DEMO_OUT)/recovery.csv \
 	  data/stations.csv
+	$(B)/slowscan screen --deseason 12 --surrogates 999 --threads 2 \
+	  -o $(DEMO_OUT)/shelf-summary.csv data/shelf.nc
 	@cp $(DEMO_OUT)/screen-reed_inlet.png doc/demo-figure.png
 	@$(B)/slowscan screen $(DEMO_ARGS) --format table data/stations.csv
 

@@ -319,6 +319,24 @@ netcdf_read_options cli_netcdf_options(const cli_options *o);
 /* Cut to --from/--until, the grid, logs; `first` says whether notices (gaps) are due. */
 int cli_ready_table(const cli_options *opts, series_table *t, int first);
 
+/* option_values.c: numbers and lengths of option values (a message naming the option on
+ * refusal; exit codes). */
+int cli_parse_number(const char *name, const char *value, double *out);
+int cli_parse_positive(const char *name, const char *value, double *out);
+int cli_parse_length(const char *name, const char *value, cli_length *len);
+int cli_parse_grid(const char *name, const char *v, cli_length *items, char (*texts)[32],
+                   size_t *count);
+
+/* time_options.c: setters of the options about time and missing values (options.c's table). */
+int cli_set_from(cli_options *o, const char *n, const char *v);
+int cli_set_until(cli_options *o, const char *n, const char *v);
+int cli_set_max_gap(cli_options *o, const char *n, const char *v);
+int cli_set_time_format(cli_options *o, const char *n, const char *v);
+int cli_set_time_units(cli_options *o, const char *n, const char *v);
+int cli_set_age(cli_options *o, const char *n, const char *v);
+int cli_set_calendar(cli_options *o, const char *n, const char *v);
+int cli_set_missing(cli_options *o, const char *n, const char *v);
+
 /* input_checks.c: reading options from the command's (CF units parsed on the calendar), the
  * --from/--until span on a table's axis, the grid (gaps or --resample), notices on what the
  * reader left out or suspects. Each returns an exit code (the message printed). */

@@ -3,6 +3,7 @@
 #include "slowscan/demo.h"
 #include "slowscan/status.h"
 
+#include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 
@@ -19,6 +20,30 @@ static int write_demo(FILE *fp, const double *time, double *const *values, size_
         fputc('\n', fp);
     }
     return EXIT_OK;
+}
+
+/* The gridded demo, written beside its target and renamed into place. */
+static int write_grid(const cli_options *opts, const char *dir)
+{
+    char path[4096];
+    snprintf(path, sizeof path, "%s/shelf.nc", dir);
+    char *temp = slowscan_atomic_temp_beside(path);
+    if (!temp) {
+        cli_error("option --out: cannot write in %s", dir);
+        return EXIT_BAD_INPUT;
+    }
+    int st = slowscan_demo_grid_write(opts->seed, temp);
+    if (st == SLOWSCAN_OK && rename(temp, path) != 0)
+        st = SLOWSCAN_EIO;
+    if (st != SLOWSCAN_OK) {
+        remove(temp);
+        cli_error("demo: %s could not be written (%s)", path, slowscan_strerror(st));
+    } else {
+        fprintf(stderr, "slowscan: wrote %s (%d x %d cells, %d monthly samples)\n", path,
+                DEMO_GRID_LAT, DEMO_GRID_LON, DEMO_GRID_MONTHS);
+    }
+    free(temp);
+    return st == SLOWSCAN_OK ? EXIT_OK : st == SLOWSCAN_ENUMERIC ? EXIT_INTERNAL : EXIT_BAD_INPUT;
 }
 
 int cmd_demo(const cli_options *opts)
@@ -59,5 +84,5 @@ int cmd_demo(const cli_options *opts)
                 DEMO_SAMPLES);
     free(time);
     free(store);
-    return rc;
+    return rc == EXIT_OK ? write_grid(opts, dir) : rc;
 }

@@ -7,10 +7,10 @@
 #include <stdio.h>
 #include <string.h>
 
-/* Cells per table of a grid: what 32 MiB of values hold, between 1 and 4096. */
+/* Cells per table of a grid: what 8 MiB of values hold, between 1 and 4096. */
 static size_t cells_per_table(size_t n)
 {
-    size_t cells = ((size_t)32 << 20) / (n ? n * sizeof(double) : 1);
+    size_t cells = ((size_t)8 << 20) / (n ? n * sizeof(double) : 1);
     return cells < 1 ? 1 : cells > 4096 ? 4096 : cells;
 }
 
@@ -34,6 +34,9 @@ netcdf_read_options cli_netcdf_options(const cli_options *o)
     netcdf_read_options r = slowscan_netcdf_read_options_default();
     r.vars = o->vars;
     r.select = o->select;
+    /* the reader's blocks (and its slabs of a map-chunked variable) within 32 MiB: with the
+     * tables of cells above, a grid of any size runs in tens of megabytes */
+    r.memory_budget = (size_t)32 << 20;
     return r;
 }
 

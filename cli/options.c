@@ -27,210 +27,23 @@ typedef struct {
     option_setter set;
 } option_spec;
 
-static int parse_number(const char *name, const char *value, double *out)
-{
-    char *end;
-    double v = strtod(value, &end);
-    if (end == value || *end != '\0' || !isfinite(v)) {
-        cli_error("option %s: '%s' is not a finite number", name, value);
-        return EXIT_BAD_INPUT;
-    }
-    *out = v;
-    return EXIT_OK;
-}
-
-static int parse_positive(const char *name, const char *value, double *out)
-{
-    int rc = parse_number(name, value, out);
-    if (rc == EXIT_OK && !(*out > 0)) {
-        cli_error("option %s: %s must be positive", name, value);
-        return EXIT_BAD_INPUT;
-    }
-    return rc;
-}
-
-/* Calendar units a length may carry, longest suffix first. */
-static const struct {
-    const char *suffix;
-    length_unit unit;
-} length_units[] = {{"mon", LENGTH_MONTHS}, {"y", LENGTH_YEARS}, {"d", LENGTH_DAYS}};
-
-const char *cli_length_suffix(int percent, length_unit unit)
-{
-    if (percent)
-        return "%";
-    for (size_t k = 0; k < sizeof length_units / sizeof length_units[0]; k++)
-        if (length_units[k].unit == unit)
-            return length_units[k].suffix;
-    return "";
-}
-
-/* "N%", "N" in time units, or N with a calendar unit (30y, 6mon, 10d: a dated time column
- * is needed, checked per input); must be positive (the span check comes later). */
-static int parse_length(const char *name, const char *value, cli_length *len)
-{
-    size_t n = strlen(value);
-    char buf[64];
-    len->text = value;
-    len->percent = n > 0 && value[n - 1] == '%';
-    len->unit = LENGTH_AXIS;
-    if (n == 0 || n >= sizeof buf) {
-        cli_error("option %s: '%s' is not a length (write N%% of the span, a number of time "
-                  "units, or N with y, mon or d)", name, value);
-        return EXIT_BAD_INPUT;
-    }
-    memcpy(buf, value, n + 1);
-    if (len->percent)
-        buf[n - 1] = '\0';
-    for (size_t k = 0; !len->percent && k < sizeof length_units / sizeof length_units[0]; k++) {
-        size_t m = strlen(length_units[k].suffix);
-        if (n > m && strcmp(buf + n - m, length_units[k].suffix) == 0) {
-            buf[n - m] = '\0';
-            len->unit = length_units[k].unit;
-            break;
-        }
-    }
-    int rc = parse_positive(name, buf, &len->amount);
-    if (rc == EXIT_OK && len->percent && len->amount > 100) {
-        cli_error("option %s: %s is more than 100%% of the span", name, value);
-        return EXIT_BAD_INPUT;
-    }
-    return rc;
-}
-
 static int set_time(cli_options *o, const char *n, const char *v) { (void)n; o->time_column = v; return EXIT_OK; }
 static int set_vars(cli_options *o, const char *n, const char *v) { (void)n; o->vars = v; return EXIT_OK; }
 static int set_select(cli_options *o, const char *n, const char *v) { (void)n; o->select = v; return EXIT_OK; }
-/* --from/--until: a number stays a number (as before); anything else (a date) is read
- * against each input's time axis once the input is read. */
-static int set_bound(const char *v, const char **text, double *value)
-{
-    char *end;
-    double x = strtod(v, &end);
-    *text = v;
-    *value = end != v && *end == '\0' && isfinite(x) ? x : NAN;
-    return EXIT_OK;
-}
-static int set_from(cli_options *o, const char *n, const char *v) { (void)n; return set_bound(v, &o->from_text, &o->from); }
-static int set_until(cli_options *o, const char *n, const char *v) { (void)n; return set_bound(v, &o->until_text, &o->until); }
-static int set_max_gap(cli_options *o, const char *n, const char *v) { return parse_positive(n, v, &o->max_gap); }
-static int set_time_format(cli_options *o, const char *n, const char *v)
-{
-    if (!strstr(v, "%Y") || !strstr(v, "%m")) {
-        cli_error("option %s: '%s' needs at least %%Y and %%m (e.g. %%Y%%m%%d)", n, v);
-        return EXIT_BAD_INPUT;
-    }
-    o->time_format = v;
-    return EXIT_OK;
-}
-static int set_time_units(cli_options *o, const char *n, const char *v) { (void)n; o->time_units = v; return EXIT_OK; }
-static int set_age(cli_options *o, const char *n, const char *v) { (void)n; (void)v; o->age = 1; return EXIT_OK; }
-static int set_calendar(cli_options *o, const char *n, const char *v)
-{
-    if (slowscan_calendar_lookup(v, &o->calendar) != SLOWSCAN_OK) {
-        cli_error("option %s: '%s' is not a CF calendar (standard, gregorian, "
-                  "proleptic_gregorian, noleap, 365_day, all_leap, 366_day, 360_day, julian)", n, v);
-        return EXIT_BAD_INPUT;
-    }
-    o->calendar_given = 1;
-    return EXIT_OK;
-}
-/* --missing V1,V2,...: numbers that stand for a missing value. */
-static int set_missing(cli_options *o, const char *n, const char *v)
-{
-    const size_t max = sizeof o->missing / sizeof o->missing[0];
-    o->nmissing = 0;
-    for (const char *p = v;;) {
-        const char *comma = strchr(p, ',');
-        size_t len = comma ? (size_t)(comma - p) : strlen(p);
-        char item[64];
-        if (len == 0 || len >= sizeof item || o->nmissing == max) {
-            cli_error("option %s: '%s' is not a list of at most %zu numbers", n, v, max);
-            return EXIT_BAD_INPUT;
-        }
-        memcpy(item, p, len);
-        item[len] = '\0';
-        if (parse_number(n, item, &o->missing[o->nmissing++]) != EXIT_OK)
-            return EXIT_BAD_INPUT;
-        if (!comma)
-            return EXIT_OK;
-        p = comma + 1;
-    }
-}
-static int set_resample(cli_options *o, const char *n, const char *v) { return parse_positive(n, v, &o->resample); }
-static int set_deseason(cli_options *o, const char *n, const char *v) { return parse_positive(n, v, &o->deseason); }
-static int set_deseason_window(cli_options *o, const char *n, const char *v) { return parse_length(n, v, &o->deseason_window); }
-static int set_bandwidth(cli_options *o, const char *n, const char *v) { return parse_length(n, v, &o->bandwidth); }
-static int set_window(cli_options *o, const char *n, const char *v) { return parse_length(n, v, &o->window); }
+static int set_resample(cli_options *o, const char *n, const char *v) { return cli_parse_positive(n, v, &o->resample); }
+static int set_deseason(cli_options *o, const char *n, const char *v) { return cli_parse_positive(n, v, &o->deseason); }
+static int set_deseason_window(cli_options *o, const char *n, const char *v) { return cli_parse_length(n, v, &o->deseason_window); }
+static int set_bandwidth(cli_options *o, const char *n, const char *v) { return cli_parse_length(n, v, &o->bandwidth); }
+static int set_window(cli_options *o, const char *n, const char *v) { return cli_parse_length(n, v, &o->window); }
 static int set_output(cli_options *o, const char *n, const char *v) { (void)n; o->output = v; return EXIT_OK; }
-/* "A:B:STEP" (inclusive of B within rounding) or "A,B,C"; every entry a positive length,
- * all in % or all in time units. */
-static int parse_grid(const char *name, const char *v, cli_length *items, char (*texts)[32],
-                      size_t *count)
-{
-    char buf[512];
-    if (strlen(v) >= sizeof buf) {
-        cli_error("option %s: list too long", name);
-        return EXIT_BAD_INPUT;
-    }
-    strcpy(buf, v);
-    *count = 0;
-    char *colon = strchr(buf, ':');
-    if (colon) {
-        cli_length lo, hi, step;
-        char *second = colon + 1, *third = strchr(second, ':');
-        if (!third) {
-            cli_error("option %s: '%s' is not A:B:STEP", name, v);
-            return EXIT_BAD_INPUT;
-        }
-        *colon = *third = '\0';
-        if (parse_length(name, buf, &lo) || parse_length(name, second, &hi) ||
-            parse_length(name, third + 1, &step))
-            return EXIT_BAD_INPUT;
-        if (lo.percent != hi.percent || lo.percent != step.percent || lo.unit != hi.unit ||
-            lo.unit != step.unit || hi.amount < lo.amount) {
-            cli_error("option %s: '%s' mixes units or runs backwards", name, v);
-            return EXIT_BAD_INPUT;
-        }
-        for (double a = lo.amount; a <= hi.amount * (1 + 1e-9); a = lo.amount + (double)*count * step.amount) {
-            if (*count == CLI_MAX_GRID) {
-                cli_error("option %s: more than %d values", name, CLI_MAX_GRID);
-                return EXIT_BAD_INPUT;
-            }
-            snprintf(texts[*count], 32, "%g%s", a, cli_length_suffix(lo.percent, lo.unit));
-            items[*count] = (cli_length){a, lo.percent, texts[*count], lo.unit};
-            (*count)++;
-        }
-        return EXIT_OK;
-    }
-    for (char *save = NULL, *tok = strtok_r(buf, ",", &save); tok; tok = strtok_r(NULL, ",", &save)) {
-        if (*count == CLI_MAX_GRID) {
-            cli_error("option %s: more than %d values", name, CLI_MAX_GRID);
-            return EXIT_BAD_INPUT;
-        }
-        if (strlen(tok) >= 32) {
-            cli_error("option %s: '%s' is too long for a length", name, tok);
-            return EXIT_BAD_INPUT;
-        }
-        snprintf(texts[*count], 32, "%s", tok);
-        if (parse_length(name, texts[*count], &items[*count]))
-            return EXIT_BAD_INPUT;
-        (*count)++;
-    }
-    if (*count == 0) {
-        cli_error("option %s: no value given", name);
-        return EXIT_BAD_INPUT;
-    }
-    return EXIT_OK;
-}
 
 static int set_windows(cli_options *o, const char *n, const char *v)
 {
-    return parse_grid(n, v, o->windows, o->grid_text[0], &o->nwindows);
+    return cli_parse_grid(n, v, o->windows, o->grid_text[0], &o->nwindows);
 }
 static int set_bandwidths(cli_options *o, const char *n, const char *v)
 {
-    return parse_grid(n, v, o->bandwidths, o->grid_text[1], &o->nbandwidths);
+    return cli_parse_grid(n, v, o->bandwidths, o->grid_text[1], &o->nbandwidths);
 }
 static int set_fractions(cli_options *o, const char *n, const char *v) { (void)n; o->fractions_output = v; return EXIT_OK; }
 static int set_noise_trend(cli_options *o, const char *n, const char *v) { (void)n; (void)v; o->noise_trend = 1; return EXIT_OK; }
@@ -298,7 +111,7 @@ static int set_indicators(cli_options *o, const char *n, const char *v)
 
 static int set_min_coverage(cli_options *o, const char *n, const char *v)
 {
-    int rc = parse_number(n, v, &o->min_coverage);
+    int rc = cli_parse_number(n, v, &o->min_coverage);
     if (rc == EXIT_OK && !(o->min_coverage > 0 && o->min_coverage <= 1)) {
         cli_error("option %s: %s is outside (0, 1]", n, v);
         return EXIT_BAD_INPUT;
@@ -354,7 +167,7 @@ static int set_band(cli_options *o, const char *n, const char *v)
     }
     memcpy(buf, v, (size_t)(colon - v));
     buf[colon - v] = '\0';
-    if (parse_number(n, buf, &o->band_lo) || parse_number(n, colon + 1, &o->band_hi))
+    if (cli_parse_number(n, buf, &o->band_lo) || cli_parse_number(n, colon + 1, &o->band_hi))
         return EXIT_BAD_INPUT;
     if (!(o->band_lo > 0 && o->band_lo < o->band_hi)) {
         cli_error("option %s: %s must satisfy 0 < LO < HI", n, v);
@@ -397,7 +210,7 @@ static int set_null(cli_options *o, const char *n, const char *v)
 
 static int set_iaaft_tol(cli_options *o, const char *n, const char *v)
 {
-    return parse_positive(n, v, &o->null_options.iaaft_tolerance);
+    return cli_parse_positive(n, v, &o->null_options.iaaft_tolerance);
 }
 
 static int set_iaaft_iterations(cli_options *o, const char *n, const char *v)
@@ -418,7 +231,7 @@ static int set_block_length(cli_options *o, const char *n, const char *v)
 
 static int set_fdr(cli_options *o, const char *n, const char *v)
 {
-    int rc = parse_number(n, v, &o->fdr);
+    int rc = cli_parse_number(n, v, &o->fdr);
     if (rc == EXIT_OK && !(o->fdr > 0 && o->fdr < 1)) {
         cli_error("option %s: %s is outside (0, 1)", n, v);
         return EXIT_BAD_INPUT;
@@ -477,17 +290,17 @@ static int set_format(cli_options *o, const char *n, const char *v)
 static const option_spec options[] = {
     {"--time", 1, C_SERIES, set_time},
     {"--vars", 1, C_SERIES, set_vars},
-    {"--from", 1, C_SERIES, set_from},
-    {"--until", 1, C_SERIES, set_until},
+    {"--from", 1, C_SERIES, cli_set_from},
+    {"--until", 1, C_SERIES, cli_set_until},
     {"--log", 0, C_SERIES, set_log},
     {"--resample", 1, C_SERIES, set_resample},
-    {"--max-gap", 1, C_SERIES, set_max_gap},
+    {"--max-gap", 1, C_SERIES, cli_set_max_gap},
     {"--select", 1, C_SERIES, set_select},
-    {"--calendar", 1, C_SERIES, set_calendar},
-    {"--time-format", 1, C_SERIES, set_time_format},
-    {"--time-units", 1, C_SERIES, set_time_units},
-    {"--age", 0, C_SERIES, set_age},
-    {"--missing", 1, C_SERIES, set_missing},
+    {"--calendar", 1, C_SERIES, cli_set_calendar},
+    {"--time-format", 1, C_SERIES, cli_set_time_format},
+    {"--time-units", 1, C_SERIES, cli_set_time_units},
+    {"--age", 0, C_SERIES, cli_set_age},
+    {"--missing", 1, C_SERIES, cli_set_missing},
     {"--detrend", 1, C_SERIES, set_detrend},
     {"--bandwidth", 1, C_SERIES, set_bandwidth},
     {"--deseason", 1, C_SERIES, set_deseason},
@@ -549,8 +362,8 @@ static void set_defaults(const char *command, cli_options *o)
     o->progress = -1;
     /* The default grid is centred on screen's own choice (50%, 10%): windows in even steps
      * from 30% to 70%, bandwidths in equal ratios (about sqrt 2) from half to twice 10%. */
-    parse_grid("--windows", "30%:70%:10%", o->windows, o->grid_text[0], &o->nwindows);
-    parse_grid("--bandwidths", "5%,7%,10%,14%,20%", o->bandwidths, o->grid_text[1], &o->nbandwidths);
+    cli_parse_grid("--windows", "30%:70%:10%", o->windows, o->grid_text[0], &o->nwindows);
+    cli_parse_grid("--bandwidths", "5%,7%,10%,14%,20%", o->bandwidths, o->grid_text[1], &o->nbandwidths);
     long cores = sysconf(_SC_NPROCESSORS_ONLN);
     o->threads = cores < 1 ? 1 : cores > CLI_MAX_THREADS ? CLI_MAX_THREADS : cores;
 }

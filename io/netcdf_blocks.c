@@ -19,7 +19,7 @@
 #include <string.h>
 #include <unistd.h>
 
-static const size_t DEFAULT_BUDGET = (size_t)256 << 20;
+static const size_t DEFAULT_BUDGET = (size_t)64 << 20;
 
 void netcdf_unpack(const netcdf_packing *p, double *x, size_t n)
 {

@@ -6,6 +6,11 @@
 #include "check.h"
 #include "slowscan/version.h"
 
+/* The soname's number, from the version header (bumped with the major). */
+#define TEXT_OF(x) #x
+#define TEXT(x) TEXT_OF(x)
+#define SOMAJOR TEXT(SLOWSCAN_VERSION_MAJOR)
+
 #include <dirent.h>
 #include <math.h>
 #include <stdio.h>
@@ -51,9 +56,9 @@ static void install_into_prefix(void)
     free(run(cmd, &rc));
     CHECK(rc == 0, "make install PREFIX=%s exits 0 (got %d)", prefix, rc);
     static const char *const files[] = {
-        "bin/slowscan", "lib/libslowscan.a", "lib/libslowscan.so", "lib/libslowscan.so.0",
+        "bin/slowscan", "lib/libslowscan.a", "lib/libslowscan.so", "lib/libslowscan.so." SOMAJOR,
         "lib/libslowscan.so." SLOWSCAN_VERSION_STRING, "lib/libslowscan-report.a",
-        "lib/libslowscan-report.so.0", "lib/pkgconfig/slowscan.pc", "include/slowscan.h",
+        "lib/libslowscan-report.so." SOMAJOR, "lib/pkgconfig/slowscan.pc", "include/slowscan.h",
         "include/slowscan/version.h", "include/slowscan/export.h", "include/slowscan/report.h",
         "share/man/man1/slowscan.1"};
     for (size_t i = 0; i < sizeof files / sizeof files[0]; i++)
@@ -280,8 +285,8 @@ static void check_dependencies(void)
     char *report = run(cmd, NULL);
     CHECK(strstr(core, "libgsl") && !strstr(core, "plplot"),
           "libslowscan.so needs GSL and no PLplot:\n%s", core);
-    CHECK(strstr(report, "plplot") && strstr(report, "libslowscan.so.0"),
-          "libslowscan-report.so needs PLplot and libslowscan.so.0:\n%s", report);
+    CHECK(strstr(report, "plplot") && strstr(report, "libslowscan.so." SOMAJOR),
+          "libslowscan-report.so needs PLplot and libslowscan.so." SOMAJOR ":\n%s", report);
     free(core);
     free(report);
 }

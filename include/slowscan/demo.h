@@ -35,4 +35,18 @@ const demo_station *slowscan_demo_station_get(size_t k);
 SLOWSCAN_API
 int slowscan_demo_generate(unsigned long seed, size_t n, double *time, double **values);
 
+/* The gridded demo (data/README.md): monthly Secchi depth on an invented coastal shelf of
+ * DEMO_GRID_LAT x DEMO_GRID_LON cells for 50 years, a bay drifting toward a fold amid a
+ * stationary open shelf and a strip of land with no data. */
+#define DEMO_GRID_MONTHS 600
+#define DEMO_GRID_LAT 8
+#define DEMO_GRID_LON 10
+
+/* Writes it to `path` as a CF NetCDF file (64-bit offset format, values packed as shorts with
+ * a fill value, mid-month times in "days since 1981-01-01" on the noleap calendar); the same
+ * bytes for the same seed. SLOWSCAN_EIO when the file cannot be written, SLOWSCAN_ENUMERIC if
+ * a cell left its basin (not with the shipped parameters). */
+SLOWSCAN_API
+int slowscan_demo_grid_write(unsigned long seed, const char *path);
+
 #endif

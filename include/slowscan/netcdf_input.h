@@ -34,7 +34,7 @@ typedef struct {
                              dimension that is not a coordinate or bounds variable */
     const char *select;   /* "lat=-30:30,lon=0:90,lev=850": ranges of coordinate values
                              (inclusive, either order) or one value; NULL: everything */
-    size_t memory_budget; /* bytes for one block of cells x all times; 0: 256 MiB */
+    size_t memory_budget; /* bytes for one block of cells x all times; 0: 64 MiB */
     const char *temp_dir; /* where the transposed copy goes; NULL: $TMPDIR or /tmp */
 } netcdf_read_options;
 

@@ -1,0 +1,140 @@
+/* Parsing option values that are numbers and lengths: finite and positive numbers, a length
+ * (N%, a number of time units, or N with a calendar unit) and a list of lengths for
+ * robustness grids. Every refusal is one message naming the option. */
+#include "cli.h"
+
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+
+int cli_parse_number(const char *name, const char *value, double *out)
+{
+    char *end;
+    double v = strtod(value, &end);
+    if (end == value || *end != '\0' || !isfinite(v)) {
+        cli_error("option %s: '%s' is not a finite number", name, value);
+        return EXIT_BAD_INPUT;
+    }
+    *out = v;
+    return EXIT_OK;
+}
+
+int cli_parse_positive(const char *name, const char *value, double *out)
+{
+    int rc = cli_parse_number(name, value, out);
+    if (rc == EXIT_OK && !(*out > 0)) {
+        cli_error("option %s: %s must be positive", name, value);
+        return EXIT_BAD_INPUT;
+    }
+    return rc;
+}
+
+/* Calendar units a length may carry, longest suffix first. */
+static const struct {
+    const char *suffix;
+    length_unit unit;
+} length_units[] = {{"mon", LENGTH_MONTHS}, {"y", LENGTH_YEARS}, {"d", LENGTH_DAYS}};
+
+const char *cli_length_suffix(int percent, length_unit unit)
+{
+    if (percent)
+        return "%";
+    for (size_t k = 0; k < sizeof length_units / sizeof length_units[0]; k++)
+        if (length_units[k].unit == unit)
+            return length_units[k].suffix;
+    return "";
+}
+
+/* "N%", "N" in time units, or N with a calendar unit (30y, 6mon, 10d: a dated time column
+ * is needed, checked per input); must be positive (the span check comes later). */
+int cli_parse_length(const char *name, const char *value, cli_length *len)
+{
+    size_t n = strlen(value);
+    char buf[64];
+    len->text = value;
+    len->percent = n > 0 && value[n - 1] == '%';
+    len->unit = LENGTH_AXIS;
+    if (n == 0 || n >= sizeof buf) {
+        cli_error("option %s: '%s' is not a length (write N%% of the span, a number of time "
+                  "units, or N with y, mon or d)", name, value);
+        return EXIT_BAD_INPUT;
+    }
+    memcpy(buf, value, n + 1);
+    if (len->percent)
+        buf[n - 1] = '\0';
+    for (size_t k = 0; !len->percent && k < sizeof length_units / sizeof length_units[0]; k++) {
+        size_t m = strlen(length_units[k].suffix);
+        if (n > m && strcmp(buf + n - m, length_units[k].suffix) == 0) {
+            buf[n - m] = '\0';
+            len->unit = length_units[k].unit;
+            break;
+        }
+    }
+    int rc = cli_parse_positive(name, buf, &len->amount);
+    if (rc == EXIT_OK && len->percent && len->amount > 100) {
+        cli_error("option %s: %s is more than 100%% of the span", name, value);
+        return EXIT_BAD_INPUT;
+    }
+    return rc;
+}
+
+/* "A:B:STEP" (inclusive of B within rounding) or "A,B,C"; every entry a positive length,
+ * all in % or all in time units. */
+int cli_parse_grid(const char *name, const char *v, cli_length *items, char (*texts)[32],
+                      size_t *count)
+{
+    char buf[512];
+    if (strlen(v) >= sizeof buf) {
+        cli_error("option %s: list too long", name);
+        return EXIT_BAD_INPUT;
+    }
+    strcpy(buf, v);
+    *count = 0;
+    char *colon = strchr(buf, ':');
+    if (colon) {
+        cli_length lo, hi, step;
+        char *second = colon + 1, *third = strchr(second, ':');
+        if (!third) {
+            cli_error("option %s: '%s' is not A:B:STEP", name, v);
+            return EXIT_BAD_INPUT;
+        }
+        *colon = *third = '\0';
+        if (cli_parse_length(name, buf, &lo) || cli_parse_length(name, second, &hi) ||
+            cli_parse_length(name, third + 1, &step))
+            return EXIT_BAD_INPUT;
+        if (lo.percent != hi.percent || lo.percent != step.percent || lo.unit != hi.unit ||
+            lo.unit != step.unit || hi.amount < lo.amount) {
+            cli_error("option %s: '%s' mixes units or runs backwards", name, v);
+            return EXIT_BAD_INPUT;
+        }
+        for (double a = lo.amount; a <= hi.amount * (1 + 1e-9); a = lo.amount + (double)*count * step.amount) {
+            if (*count == CLI_MAX_GRID) {
+                cli_error("option %s: more than %d values", name, CLI_MAX_GRID);
+                return EXIT_BAD_INPUT;
+            }
+            snprintf(texts[*count], 32, "%g%s", a, cli_length_suffix(lo.percent, lo.unit));
+            items[*count] = (cli_length){a, lo.percent, texts[*count], lo.unit};
+            (*count)++;
+        }
+        return EXIT_OK;
+    }
+    for (char *save = NULL, *tok = strtok_r(buf, ",", &save); tok; tok = strtok_r(NULL, ",", &save)) {
+        if (*count == CLI_MAX_GRID) {
+            cli_error("option %s: more than %d values", name, CLI_MAX_GRID);
+            return EXIT_BAD_INPUT;
+        }
+        if (strlen(tok) >= 32) {
+            cli_error("option %s: '%s' is too long for a length", name, tok);
+            return EXIT_BAD_INPUT;
+        }
+        snprintf(texts[*count], 32, "%s", tok);
+        if (cli_parse_length(name, texts[*count], &items[*count]))
+            return EXIT_BAD_INPUT;
+        (*count)++;
+    }
+    if (*count == 0) {
+        cli_error("option %s: no value given", name);
+        return EXIT_BAD_INPUT;
+    }
+    return EXIT_OK;
+}
