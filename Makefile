@@ -143,7 +143,7 @@ demo: deps
 	  --project $(DEMO_OUT)/crossing.csv --figures $(DEMO_OUT) -o $(DEMO_OUT)/recovery.csv \
 	  data/stations.csv
 	$(B)/slowscan screen --deseason 12 --surrogates 999 --threads 2 \
-	  -o $(DEMO_OUT)/shelf-summary.csv data/shelf.nc
+	  --maps $(DEMO_OUT)/shelf-maps.nc -o $(DEMO_OUT)/shelf-summary.csv data/shelf.nc
 	@cp $(DEMO_OUT)/screen-reed_inlet.png doc/demo-figure.png
 	@$(B)/slowscan screen $(DEMO_ARGS) --format table data/stations.csv
 

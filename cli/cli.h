@@ -6,6 +6,7 @@
 #include "slowscan/indicators.h"
 #include "slowscan/io.h"
 #include "slowscan/netcdf_input.h"
+#include "slowscan/netcdf_maps.h"
 #include "slowscan/null_trend.h"
 #include "slowscan/report.h"
 #include "slowscan/screen.h"
@@ -80,6 +81,7 @@ typedef struct {
     int alternative; /* significance_alternative, -1: the indicator's own direction */
     /* outputs */
     const char *output, *rolling_output, *json_output, *fractions_output;
+    const char *maps_output; /* screen --maps FILE.nc */
     /* robustness grid */
     cli_length windows[CLI_MAX_GRID], bandwidths[CLI_MAX_GRID];
     size_t nwindows, nbandwidths;
@@ -93,11 +95,15 @@ typedef struct {
     const char *format; /* "csv" or "table" */
     int progress;       /* -1: auto (stderr is a TTY) */
     const char *out_dir; /* demo */
+    int repeat_walk;     /* a second walk over the inputs (figures): its notices were given */
     unsigned long seed;
     long threads;
     /* positional */
     const char **files;
     size_t nfiles;
+    /* the command line as given (the history of NetCDF outputs) */
+    int argc;
+    char **argv;
 } cli_options;
 
 /* The null model's name in outputs and random streams ("control" with --null control). */
@@ -172,8 +178,14 @@ typedef struct {
     size_t count;
     const char *stdout_user; /* the option writing to standard output, if any */
     report_batch *figures;   /* --figures DIR, committed after the files */
+    netcdf_maps *maps;       /* screen --maps FILE: written with the files' flush, renamed
+                                after the figures */
 } cli_outputs;
 
+/* 1 (message printed) when `path` is an input, the control run, another output of the run,
+ * or standard output taken twice. */
+int cli_output_clashes(const cli_outputs *outs, const cli_options *opts, const char *path,
+                       const char *option);
 /* Opens `path` (NULL or "-" = stdout) after checking it is not one of the inputs. */
 int cli_outputs_open(cli_outputs *outs, const cli_options *opts, const char *path,
                      const char *option, FILE **fp);

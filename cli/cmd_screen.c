@@ -28,6 +28,8 @@ static int open_outputs(const cli_options *opts, cli_outputs *outs, void *contex
         rc = cli_outputs_open(outs, opts, opts->json_output, "--json", &run->json);
     if (rc == EXIT_OK)
         rc = cli_figures_open(outs, opts, &run->figures);
+    if (rc == EXIT_OK && opts->maps_output)
+        rc = cli_screen_maps_open(opts, outs, run);
     return rc;
 }
 
@@ -50,7 +52,8 @@ static int store_failed(int status, const io_error *err)
 
 /* One record per series in the run's store (the figures read each test's null from the
  * quantiles of its result); warns about each insufficient test. */
-static int record_series(const prepared_series *ps, screen_run *run, const screen_result *res)
+static int record_series(const prepared_series *ps, screen_run *run, const screen_result *res,
+                         const screen_origin *origin)
 {
     for (size_t j = 0; j < res->ntests; j++) {
         const screen_test *t = &res->tests[j];
@@ -63,12 +66,15 @@ static int record_series(const prepared_series *ps, screen_run *run, const scree
     if (res->ntests > 0 && width > run->name_width)
         run->name_width = width;
     io_error err = {{0}};
-    /* kept with the record: the time unit of its window and bandwidth, then its file */
+    /* kept with the record: where the series came from, then the time unit of its window
+     * and bandwidth and its file */
     char extra[1024];
-    size_t len = (size_t)snprintf(extra, sizeof extra, "%s%c%s", cli_time_unit(&ps->axis), 0,
-                                  ps->source);
+    memcpy(extra, origin, sizeof *origin);
+    char *text = extra + sizeof *origin;
+    size_t room = sizeof extra - sizeof *origin;
+    size_t len = (size_t)snprintf(text, room, "%s%c%s", cli_time_unit(&ps->axis), 0, ps->source);
     int st = slowscan_screen_store_add(run->store, ps->name, res, extra,
-                                       (len < sizeof extra ? len : sizeof extra - 1) + 1, &err);
+                                       sizeof *origin + (len < room ? len : room - 1) + 1, &err);
     return st == SLOWSCAN_OK ? EXIT_OK : store_failed(st, &err);
 }
 
@@ -82,12 +88,14 @@ size_t cli_screen_series_rows(screen_run *run, size_t k, screen_row *rows, int *
         return 0;
     }
     const screen_result *res = &s.result;
+    screen_origin origin;
+    memcpy(&origin, s.extra, sizeof origin);
+    const char *unit = (const char *)s.extra + sizeof origin;
     for (size_t j = 0; j < res->ntests; j++)
         rows[j] = (screen_row){s.name, res->n, rolling_window(res, j), res->bandwidth,
                                s.q_value[j], res->tests[j], s.flag[j], res->harmonics,
-                               res->leakage, res->leakage_tested,
-                               s.extra ? (const char *)s.extra + strlen(s.extra) + 1 : "",
-                               s.extra ? (const char *)s.extra : ""};
+                               res->leakage, res->leakage_tested, unit + strlen(unit) + 1, unit,
+                               origin};
     *rc = EXIT_OK;
     return res->ntests;
 }
@@ -119,6 +127,7 @@ typedef struct {
     cli_cursor cursor;
     screen_input *controls; /* one per series with --null control (borrowed arrays) */
     series_copy *copies;    /* one per series of a grid, freed on release */
+    screen_origin *origins; /* one per series: where it came from */
     int rc;                 /* the cursor's own failure (its message printed) */
 } input_source;
 
@@ -172,6 +181,10 @@ static int next_series(void *state, size_t index, screen_input *out, screen_deta
         out->name = c->name, out->source = c->source, out->time_name = c->time_name;
         out->time = c->time, out->values = c->values;
     }
+    screen_origin *origin = &src->origins[index];
+    *origin = (screen_origin){.input = src->cursor.input - 1, .gridded = t->grid != NULL};
+    if (t->grid)
+        origin->position = t->grid[k];
     if (src->controls) {
         src->controls[index] = cli_control_input(src->cursor.in, t->names[k]);
         out->control = &src->controls[index];
@@ -183,6 +196,7 @@ static int next_series(void *state, size_t index, screen_input *out, screen_deta
 typedef struct {
     const cli_options *opts;
     screen_run *run;
+    const screen_origin *origins; /* the source's, by series index */
     cli_leakage_tally leakage;
     size_t done, total;
     int rc; /* the exit code of a failed sink */
@@ -197,7 +211,7 @@ static int put_series(void *state, const screen_batch_item *item)
         cli_screen_warn(sink->opts, ps, &res->warnings[w]);
     if (sink->run->rolling)
         cli_write_rolling(sink->run->rolling, sink->opts, ps, (double *const *)item->paths);
-    sink->rc = record_series(ps, sink->run, res);
+    sink->rc = record_series(ps, sink->run, res, &sink->origins[item->index]);
     if (sink->rc != EXIT_OK)
         return SLOWSCAN_ENOMEM;
     cli_tally_leakage(&sink->leakage, ps->source, ps->name, &res->leakage, res->leakage_tested);
@@ -228,8 +242,11 @@ static int run_series(const cli_options *opts, const cli_inputs *in, void *conte
     int grids = 0;
     for (size_t f = 0; f < in->ntables; f++)
         grids |= in->grid_cells[f] > 0;
-    if ((in->has_control && !(src.controls = calloc(sink.total + 1, sizeof *src.controls))) ||
+    sink.origins = src.origins = calloc(sink.total + 1, sizeof *src.origins);
+    if (!src.origins ||
+        (in->has_control && !(src.controls = calloc(sink.total + 1, sizeof *src.controls))) ||
         (grids && !(src.copies = calloc(sink.total + 1, sizeof *src.copies)))) {
+        free(src.origins);
         free(src.controls);
         cli_error("out of memory");
         return EXIT_INTERNAL;
@@ -246,6 +263,7 @@ static int run_series(const cli_options *opts, const cli_inputs *in, void *conte
     for (size_t i = 0; src.copies && i <= sink.total; i++)
         release_series(&src, i);
     cli_cursor_end(&src.cursor);
+    free(src.origins);
     free(src.controls);
     free(src.copies);
     return rc;
@@ -320,6 +338,8 @@ static int finish(const cli_options *opts, void *context)
         return EXIT_INTERNAL;
     }
     int rc = run->json ? cli_screen_json(run->json, opts, run) : EXIT_OK;
+    if (rc == EXIT_OK && run->maps)
+        rc = cli_screen_maps_fill(run);
     return rc == EXIT_OK ? write_summary(opts, run) : rc;
 }
 

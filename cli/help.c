@@ -178,6 +178,11 @@ static void help_screen(FILE *out)
           "  --rolling FILE       also write the rolling indicators (as 'indicators' does)\n"
           "  --json FILE          also write the summary as JSON, with the quantiles of each\n"
           "                       null distribution and every parameter of the run\n"
+          "  --maps FILE.nc       for a NetCDF grid (exactly one among the inputs): per\n"
+          "                       variable and test, maps of the statistic (tau; t for\n"
+          "                       recovery_trend), p, q and the flag on the grid's other\n"
+          "                       dimensions, coordinates copied, CF attributes; cells not\n"
+          "                       analysed (all missing) are _FillValue\n"
           "  --format csv|table   summary as CSV (default) or as an aligned table\n", out);
     fputs(figure_options, out);
     fputs("                       screen-SERIES: the record and its trend (first window\n"
@@ -186,7 +191,10 @@ static void help_screen(FILE *out)
           "                       intervals, the observed statistic as a dot, p, q, verdict;\n"
           "                       screen-overview (two or more series): statistic against\n"
           "                       -log10(q) per test, flagged series named where they fit\n"
-          "                       (the strongest 20 first), the rest counted\n\n", out);
+          "                       (the strongest 20 first), the rest counted;\n"
+          "                       map-VAR (with --maps): per test the statistic of each\n"
+          "                       grid cell over the two horizontal dimensions, flagged\n"
+          "                       cells framed\n\n", out);
     fputs(cautions, out);
 }
 

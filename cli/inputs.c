@@ -58,7 +58,7 @@ void cli_cursor_end(cli_cursor *c)
 /* The grid being read is done: say how many cells had no value, close it. */
 static void finish_grid(cli_cursor *c)
 {
-    if (c->all_missing > 0)
+    if (c->all_missing > 0 && !c->opts->repeat_walk)
         cli_warning("%s: %zu cell%s no value at all (every time missing) and %s not analysed",
                     c->opts->files[c->input - 1], c->all_missing,
                     c->all_missing == 1 ? " holds" : "s hold", c->all_missing == 1 ? "is" : "are");
@@ -84,7 +84,7 @@ static int next_chunk(cli_cursor *c)
         cli_error("%s", err.message);
         return st == SLOWSCAN_ENOMEM ? EXIT_INTERNAL : EXIT_BAD_INPUT;
     }
-    int rc = cli_ready_table(c->opts, &c->chunk, c->chunks++ == 0);
+    int rc = cli_ready_table(c->opts, &c->chunk, c->chunks++ == 0 && !c->opts->repeat_walk);
     if (rc == EXIT_OK) {
         c->table = &c->chunk;
         c->next = 0;

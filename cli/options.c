@@ -265,6 +265,7 @@ static int set_seed(cli_options *o, const char *n, const char *v)
 }
 
 static int set_figures(cli_options *o, const char *n, const char *v) { (void)n; o->figures_dir = v; return EXIT_OK; }
+static int set_maps(cli_options *o, const char *n, const char *v) { (void)n; o->maps_output = v; return EXIT_OK; }
 
 static int set_figure_format(cli_options *o, const char *n, const char *v)
 {
@@ -320,6 +321,7 @@ static const option_spec options[] = {
     {"--alternative", 1, C_TESTING, set_alternative},
     {"--rolling", 1, C_SCREEN, set_rolling},
     {"--json", 1, C_SCREEN | C_RECOVERY, set_json},
+    {"--maps", 1, C_SCREEN, set_maps},
     {"--control", 1, C_TESTING | C_SURROGATES, set_control},
     {"--noise-trend", 0, C_TESTING, set_noise_trend},
     {"--project", 1, C_RECOVERY, set_projection},
@@ -408,6 +410,8 @@ static int parse_one(cli_options *o, int bit, int argc, char **argv, int *i)
 int cli_parse(const char *command, int argc, char **argv, int first, cli_options *o)
 {
     set_defaults(command, o);
+    o->argc = argc;
+    o->argv = argv;
     int bit = command_bit(command);
     o->files = calloc((size_t)argc, sizeof *o->files);
     if (!o->files)

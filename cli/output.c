@@ -10,8 +10,8 @@
 
 /* An output must not be an input (or the control run), another output of the same run, or
  * a second user of standard output. */
-static int output_clashes(const cli_outputs *outs, const cli_options *opts, const char *path,
-                          const char *option)
+int cli_output_clashes(const cli_outputs *outs, const cli_options *opts, const char *path,
+                       const char *option)
 {
     int to_stdout = !path || strcmp(path, "-") == 0;
     if (to_stdout) {
@@ -42,7 +42,7 @@ static int output_clashes(const cli_outputs *outs, const cli_options *opts, cons
 int cli_outputs_open(cli_outputs *outs, const cli_options *opts, const char *path,
                      const char *option, FILE **fp)
 {
-    if (output_clashes(outs, opts, path, option))
+    if (cli_output_clashes(outs, opts, path, option))
         return EXIT_BAD_INPUT;
     if (outs->count == sizeof outs->files / sizeof outs->files[0])
         return EXIT_INTERNAL;
@@ -71,10 +71,19 @@ int cli_outputs_commit(cli_outputs *outs)
                       strerror(errno ? errno : EIO));
             rc = EXIT_BAD_INPUT;
         }
-    /* Figures first: a figure that cannot be put in place then still aborts every table. */
+    /* The maps are written whole before anything is renamed; then figures, maps, tables: a
+     * figure that cannot be put in place then still aborts every other output. */
     io_error err = {{0}};
+    if (rc == EXIT_OK && outs->maps && slowscan_netcdf_maps_write(outs->maps, &err) != SLOWSCAN_OK) {
+        cli_error("option --maps: %s", err.message);
+        rc = EXIT_BAD_INPUT;
+    }
     if (rc == EXIT_OK && outs->figures && slowscan_report_batch_commit(outs->figures, &err) != SLOWSCAN_OK) {
         cli_error("option --figures: %s", err.message);
+        rc = EXIT_BAD_INPUT;
+    }
+    if (rc == EXIT_OK && outs->maps && slowscan_netcdf_maps_commit(outs->maps, &err) != SLOWSCAN_OK) {
+        cli_error("option --maps: %s", err.message);
         rc = EXIT_BAD_INPUT;
     }
     for (size_t j = 0; j < outs->count; j++) {
@@ -89,6 +98,8 @@ int cli_outputs_commit(cli_outputs *outs)
     outs->count = 0;
     slowscan_report_batch_free(outs->figures);
     outs->figures = NULL;
+    slowscan_netcdf_maps_free(outs->maps); /* removes the temporary file if not renamed */
+    outs->maps = NULL;
     return rc;
 }
 
@@ -99,6 +110,8 @@ void cli_outputs_abort(cli_outputs *outs)
     outs->count = 0;
     slowscan_report_batch_free(outs->figures); /* removes every figure drawn so far */
     outs->figures = NULL;
+    slowscan_netcdf_maps_free(outs->maps);
+    outs->maps = NULL;
 }
 
 int cli_figures_open(cli_outputs *outs, const cli_options *opts, report_batch **figures)

@@ -5,8 +5,16 @@
 
 #include "cli.h"
 
+#include "slowscan/netcdf_maps.h"
 #include "slowscan/screen_store.h"
 
+
+/* Where a series came from: its input and, in a NetCDF grid, its place (grid_position). */
+typedef struct {
+    size_t input;      /* index of its input file */
+    int gridded;       /* 0: a CSV column (position unused) */
+    grid_position position;
+} screen_origin;
 
 /* One row of the summary: a test of a series, read back from the run's store (series and
  * bins point into the store until its next read). */
@@ -22,6 +30,7 @@ typedef struct {
     const char *file;      /* the input it came from (as the store holds it) */
     const char *time_unit; /* of window and bandwidth: days, months, years, or "" (the time
                               column's own numbers) */
+    screen_origin origin;
 } screen_row;
 
 typedef struct {
@@ -32,6 +41,8 @@ typedef struct {
     screen_config cfg;
     FILE *json;
     report_batch *figures; /* --figures DIR */
+    netcdf_maps *maps;     /* --maps FILE (owned by the run's outputs) */
+    size_t maps_input;     /* the input the maps are of */
     size_t figure_series;  /* series drawn so far */
 } screen_run;
 
@@ -50,5 +61,13 @@ int cli_screen_json(FILE *fp, const cli_options *opts, screen_run *run);
  * nulls summarised by the quantiles of the rows, so memory stays bounded for many series)
  * and the overview. */
 int cli_screen_figures(const cli_options *opts, const cli_inputs *in, void *context);
+
+/* screen --maps FILE (screen_maps.c): checked and opened with the other outputs (the inputs
+ * must hold exactly one NetCDF grid), filled from the stored records once the q-values are
+ * known, committed with the other outputs. */
+int cli_screen_maps_open(const cli_options *opts, cli_outputs *outs, screen_run *run);
+int cli_screen_maps_fill(screen_run *run);
+/* With --figures too: a map figure per variable with two horizontal dimensions. */
+int cli_screen_maps_figures(screen_run *run);
 
 #endif

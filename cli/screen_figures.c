@@ -133,9 +133,12 @@ int cli_screen_figures(const cli_options *opts, const cli_inputs *in, void *cont
     screen_run *run = context;
     cli_options quiet = *opts;
     quiet.progress = 0; /* the run's progress line has already reached its end */
+    quiet.repeat_walk = 1; /* nor are the inputs' notices said twice */
     run->figure_series = 0;
     int rc = cli_for_each_series(&quiet, in, draw_series, run);
     if (rc == EXIT_OK && cli_inputs_series_count(in) > 1)
         rc = draw_overview(opts, run);
+    if (rc == EXIT_OK && run->maps)
+        rc = cli_screen_maps_figures(run);
     return rc;
 }

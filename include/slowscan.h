@@ -25,5 +25,6 @@
 #include "slowscan/recovery.h"
 #include "slowscan/message.h"
 #include "slowscan/screen_store.h"
+#include "slowscan/netcdf_maps.h"
 
 #endif

@@ -69,6 +69,9 @@ int netcdf_fail(const netcdf_reader *r, io_error *err, int status, const char *f
 /* A netCDF library error as a message naming the call's purpose. */
 int netcdf_library_fail(const netcdf_reader *r, io_error *err, int nc_status, const char *doing);
 
+/* 1 with *varid when dimension dimid has a coordinate variable: a numeric variable of the
+ * same name on that dimension alone (netcdf_open.c). */
+int netcdf_coordinate_variable(int ncid, int dimid, int *varid);
 /* --select applied to every variable's dimensions; the cell counts (netcdf_select.c). */
 int netcdf_apply_selection(netcdf_reader *r, io_error *err);
 /* Closes and removes the transposed copy, if any (netcdf_blocks.c). */

@@ -57,8 +57,7 @@ static size_t number_attribute(int ncid, int varid, const char *name, double *va
     return nc_get_att_double(ncid, varid, name, values) == NC_NOERR ? len : 0;
 }
 
-/* The coordinate variable of a dimension: a variable of the same name on that dimension. */
-static int coordinate_variable(int ncid, int dimid, int *varid)
+int netcdf_coordinate_variable(int ncid, int dimid, int *varid)
 {
     char name[NC_MAX_NAME + 1];
     int ndims, dims[NC_MAX_VAR_DIMS];
@@ -120,7 +119,7 @@ static int find_time(netcdf_reader *r, io_error *err)
     nc_inq_ndims(r->ncid, &ndims);
     for (int d = 0; d < ndims; d++) {
         int varid;
-        if (coordinate_variable(r->ncid, d, &varid) && says_time(r->ncid, varid)) {
+        if (netcdf_coordinate_variable(r->ncid, d, &varid) && says_time(r->ncid, varid)) {
             r->time_dimid = d;
             nc_inq_dim(r->ncid, d, r->time_name, &r->nt);
             if (r->nt < 2)
@@ -150,7 +149,7 @@ static int describe_dims(netcdf_reader *r, netcdf_variable *v, const int *dimids
         snprintf(d->name, sizeof d->name, "%s", name);
         d->start = 0, d->count = d->length;
         int cv;
-        if (d->length > 0 && coordinate_variable(r->ncid, d->dimid, &cv)) {
+        if (d->length > 0 && netcdf_coordinate_variable(r->ncid, d->dimid, &cv)) {
             if (!(d->coord = malloc(d->length * sizeof *d->coord)))
                 return netcdf_fail(r, err, SLOWSCAN_ENOMEM, "out of memory");
             if (nc_get_var_double(r->ncid, cv, d->coord) != NC_NOERR) {

@@ -17,7 +17,8 @@ static int start_table(netcdf_reader *r, size_t max, series_table *t, io_error *
     t->time = malloc(r->nt * sizeof *t->time);
     t->names = calloc(max, sizeof *t->names);
     t->values = calloc(max, sizeof *t->values);
-    if (!t->source || !t->time_name || !t->time || !t->names || !t->values) {
+    t->grid = calloc(max, sizeof *t->grid);
+    if (!t->source || !t->time_name || !t->time || !t->names || !t->values || !t->grid) {
         slowscan_series_table_free(t);
         return netcdf_fail(r, err, SLOWSCAN_ENOMEM, "out of memory");
     }
@@ -30,6 +31,7 @@ static int add_series(netcdf_reader *r, series_table *t, const netcdf_series *s,
     size_t k = t->nseries;
     t->names[k] = io_strdup(s->name);
     t->values[k] = malloc(s->n * sizeof **t->values);
+    t->grid[k] = (grid_position){.variable = s->variable_index, .cell = s->cell};
     t->nseries++; /* counted at once, so that the table's release frees what was made */
     if (!t->names[k] || !t->values[k])
         return netcdf_fail(r, err, SLOWSCAN_ENOMEM, "out of memory");

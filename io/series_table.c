@@ -21,6 +21,7 @@ void slowscan_series_table_free(series_table *t)
         free(t->skipped[k]);
     free(t->skipped);
     free(t->values);
+    free(t->grid);
     free(t->time);
     free(t->rows);
     free(t->source);

@@ -33,6 +33,7 @@ void suite_series_calls(void);
 void suite_calendar(void);
 void suite_time_column(void);
 void suite_netcdf(void);
+void suite_maps(void);
 void suite_dated_cli(void);
 void suite_interrupt(void);
 void suite_store(void);
@@ -55,6 +56,7 @@ static const struct {
     {"series_calls", suite_series_calls},
     {"calendar", suite_calendar},
     {"time_column", suite_time_column}, {"netcdf", suite_netcdf},
+    {"maps", suite_maps},
     {"dated_cli", suite_dated_cli},   {"interrupt", suite_interrupt},
 };
 

@@ -341,6 +341,77 @@ static void test_grid_and_recovery_geometry(void)
     }
 }
 
+/* ---- maps of a grid from invented data ---------------------------------------------------- */
+
+/* Clearly coloured pixels inside the panel named `name` of a drawn PNG (png_chroma.py). */
+static double panel_chroma(const char *png, const manifest *m, const char *name)
+{
+    for (size_t i = 0; i < m->count; i++) {
+        const box *b = &m->boxes[i];
+        if (strcmp(b->kind, "panel") != 0 || strcmp(b->text, name) != 0)
+            continue;
+        char args[1400];
+        double said[3];
+        snprintf(args, sizeof args, "png_chroma.py %s %d %d %d %d", png, (int)b->x0 + 2,
+                 (int)b->y0 + 2, (int)b->x1 - 2, (int)b->y1 - 2);
+        return check_python(args, said, 3) == 3 ? said[2] : -1;
+    }
+    return -1;
+}
+
+/* Four tests (three tau, recovery_trend with |t| up to 4.2) on 18 longitudes x 9 latitudes
+ * running north to south, some cells without a value and some flagged; the geometry rules,
+ * and the flagged cells' near-black frames: the same map without flags has more coloured
+ * pixels in its panel. */
+static void test_map_geometry(void)
+{
+    enum { NX = 18, NY = 9, TESTS = 4 };
+    static double stat[TESTS][NX * NY];
+    static unsigned char flagged[TESTS][NX * NY];
+    double lon[NX], lat[NY];
+    for (int i = 0; i < NX; i++)
+        lon[i] = -170.0 + 20.0 * i;
+    for (int j = 0; j < NY; j++)
+        lat[j] = 80.0 - 20.0 * j;
+    static const char *const labels[TESTS] = {"variance", "lag1", "spectral_exponent",
+                                              "recovery_trend"};
+    report_map_test tests[TESTS];
+    for (int k = 0; k < TESTS; k++) {
+        for (int i = 0; i < NX * NY; i++) {
+            double v = sin(0.3 * i + k) * (k == 3 ? 4.2 : 0.95);
+            stat[k][i] = i % 11 == 3 ? NAN : v;
+            flagged[k][i] = fabs(v) > (k == 3 ? 3.5 : 0.8) && i % 11 != 3;
+        }
+        tests[k] = (report_map_test){.label = labels[k], .rolling = k < 3,
+                                     .statistic = stat[k], .flagged = flagged[k]};
+    }
+    report_map_data d = {.name = "a field", .x_name = "longitude", .y_name = "latitude",
+                         .nx = NX, .ny = NY, .x = lon, .y = lat, .tests = tests, .ntests = TESTS};
+    char dir[512], png[800];
+    io_error err = {{0}};
+    report_batch *batch = open_batch("geometry-map", REPORT_PNG, dir, sizeof dir);
+    int ok = batch && slowscan_report_batch_draw(batch, &slowscan_report_map_figure, &d, "map",
+                                                 "field", &err) == SLOWSCAN_OK;
+    tests[0].flagged = NULL;
+    ok = ok && slowscan_report_batch_draw(batch, &slowscan_report_map_figure, &d, "map",
+                                          "unflagged", &err) == SLOWSCAN_OK;
+    ok = ok && slowscan_report_batch_commit(batch, &err) == SLOWSCAN_OK;
+    CHECK(ok, "map figure drawn: %s", err.message);
+    slowscan_report_batch_free(batch);
+    if (!ok)
+        return;
+    char plain[800];
+    snprintf(png, sizeof png, "%s/map-field.png", dir);
+    snprintf(plain, sizeof plain, "%s/map-unflagged.png", dir);
+    manifest m, n;
+    check_figure(png, "map of a field", &m);
+    check_figure(plain, "map without flags", &n);
+    double framed = panel_chroma(png, &m, "variance"), bare = panel_chroma(plain, &n, "variance");
+    CHECK(framed > 0 && bare > framed, "flagged cells are framed: %g coloured pixels in the "
+          "panel with frames, %g without", framed, bare);
+    free(m.boxes), free(n.boxes);
+}
+
 /* ---- the figures of the binary ---------------------------------------------------------- */
 
 static void test_binary_figures(void)
@@ -368,6 +439,33 @@ static void test_binary_figures(void)
     }
 }
 
+/* screen --maps --figures on the python3-netcdf4 test grid: a map figure per variable. */
+static void test_binary_map(void)
+{
+    char dir[512], grid[512], cmd[2400], png[800];
+    snprintf(dir, sizeof dir, "%s", check_tmp_path("geometry-map-cli"));
+    snprintf(grid, sizeof grid, "%s", check_tmp_path("map-grid.nc"));
+    static double ref[2 * 12 * 30];
+    snprintf(cmd, sizeof cmd, "netcdf_grid.py %s NETCDF4 map_chunks", grid);
+    if (check_python(cmd, ref, 2 * 12 * 30) != 2 * 12 * 30) {
+        CHECK(0, "python3-netcdf4 wrote the grid");
+        return;
+    }
+    snprintf(cmd, sizeof cmd, "SLOWSCAN_FIGURE_BOXES=1 %s screen --surrogates 19 --window 12 "
+             "--bandwidth 6 --maps %s/maps.nc --figures %s -o /dev/null %s", check_binary(), dir,
+             dir, grid);
+    char *err = NULL;
+    CHECK(check_run(cmd, NULL, &err) == 0, "screen --maps --figures: %s", err ? err : "");
+    free(err);
+    static const char *const figures[] = {"map-tas", "map-pr"};
+    for (size_t k = 0; k < 2; k++) {
+        snprintf(png, sizeof png, "%s/%s.png", dir, figures[k]);
+        manifest m;
+        check_figure(png, figures[k], &m);
+        free(m.boxes);
+    }
+}
+
 void suite_figure_layout(void)
 {
     test_series_geometry();
@@ -375,4 +473,6 @@ void suite_figure_layout(void)
     test_overview_labels();
     test_grid_and_recovery_geometry();
     test_binary_figures();
+    test_map_geometry();
+    test_binary_map();
 }

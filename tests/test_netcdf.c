@@ -170,7 +170,8 @@ static void check_bad_files(void)
     }
 }
 
-/* The same cells as tables of at most five series, the all-missing one left out. */
+/* The same cells as tables of at most five series, the all-missing one left out, each with
+ * its grid position. */
 static void check_tables(void)
 {
     static double ref[VARS * CELLS * NT];
@@ -189,6 +190,8 @@ static void check_tables(void)
             if (cell == 7)
                 cell++; /* tas[lat=0,lon=15], all missing */
             bad += check_max_diff(t.values[k], ref + cell * NT, NT) > 1e-9 * 300;
+            /* each series' place: variable (tas, pr) and cell row-major over lat x lon */
+            bad += !t.grid || t.grid[k].variable != cell / CELLS || t.grid[k].cell != cell % CELLS;
         }
         series += t.nseries;
         bad += t.n != NT || t.axis.unit != TIME_AXIS_MONTHS || t.rows != NULL;

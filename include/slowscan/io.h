@@ -21,6 +21,13 @@ typedef struct {
     char message[1024];
 } io_error;
 
+/* Where a series of a NetCDF grid lies (netcdf_input.h): which of the variables read, and
+ * its cell within that variable (row-major over the selected non-time indices). */
+typedef struct {
+    size_t variable;
+    size_t cell;
+} grid_position;
+
 /* A set of series sharing one time column. values[k][i] is series k at time[i]; NaN is
  * missing. Rows are strictly increasing in time once read. */
 typedef struct {
@@ -36,6 +43,7 @@ typedef struct {
     char **skipped;   /* nskipped columns left out because their first value is text */
     size_t nskipped;
     size_t coded_missing; /* cells read as missing because they held a csv_read_options code */
+    grid_position *grid; /* nseries: each series' place in its NetCDF grid; NULL for CSV */
 } series_table;
 
 SLOWSCAN_API

@@ -87,8 +87,9 @@ int slowscan_netcdf_next(netcdf_reader *reader, netcdf_series *series, io_error 
 
 /* The next cells as a series table (io.h) of at most max_series series with data: the
  * file's time axis (copied), one series per cell (names as slowscan_netcdf_next gives them,
- * values copied), rows NULL. Cells with no value at all (land in an ocean field) are not
- * tables' series: *all_missing (may be NULL) counts them. SLOWSCAN_OK with a table,
+ * values copied, grid[k] its variable index and cell), rows NULL. Cells with no value at
+ * all (land in an ocean field) are not tables' series: *all_missing (may be NULL) counts
+ * them. SLOWSCAN_OK with a table,
  * NETCDF_END when no cell is left (table zeroed), or a status with err filled. */
 SLOWSCAN_API
 int slowscan_netcdf_next_table(netcdf_reader *reader, size_t max_series, series_table *table,

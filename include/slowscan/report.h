@@ -210,4 +210,27 @@ typedef struct {
 } report_recovery_data;
 extern SLOWSCAN_API const report_figure_type slowscan_report_recovery_figure;
 
+/* Maps of one variable of a NetCDF grid (screen --maps with --figures): one panel per test,
+ * each grid cell's statistic as a plain raster over the two horizontal dimensions (x across,
+ * y up; a cell reaches halfway to its neighbours' coordinates), on a diverging colour scale
+ * of our own (deep teal below zero through pale stone to ochre and brick above), cells with
+ * no value in grey, flagged cells framed in near-black. The rolling tests share one tau
+ * scale, -1 to 1; recovery_trend has its own, symmetric in t. Each scale's bar is in the
+ * right margin. */
+typedef struct {
+    const char *label;            /* "variance", "recovery_trend", ... */
+    int rolling;                  /* a Kendall tau (else a t-value) */
+    const double *statistic;      /* ny * nx, row-major [y][x]; NaN: no value */
+    const unsigned char *flagged; /* ny * nx, non-zero: flagged */
+} report_map_test;
+typedef struct {
+    const char *name;             /* the variable */
+    const char *x_name, *y_name;  /* the dimensions */
+    size_t nx, ny;
+    const double *x, *y;          /* coordinate values (monotone, either way) */
+    const report_map_test *tests;
+    size_t ntests;
+} report_map_data;
+extern SLOWSCAN_API const report_figure_type slowscan_report_map_figure;
+
 #endif
