@@ -149,6 +149,8 @@ typedef struct {
     size_t ntables;       /* inputs */
     size_t *grid_cells;   /* per input: the cells of a NetCDF grid (an upper bound on its
                              series: all-missing cells are skipped), 0 for a CSV table */
+    csv_column_store **columns; /* per input: a CSV too large to hold, read a table of
+                                   series at a time (NULL: held whole in tables[f]) */
     series_table control; /* --control FILE: read like the inputs, but never cut in time */
     int has_control;
 } cli_inputs;
@@ -305,6 +307,8 @@ typedef struct {
     size_t next;                /* its next series */
     series_table chunk;         /* cells of the grid being read */
     struct netcdf_reader *reader;
+    csv_column_store *columns;  /* the streamed CSV being read */
+    size_t column_first;        /* its next series */
     size_t all_missing, chunks; /* of the grid being read */
 } cli_cursor;
 enum { CLI_CURSOR_END = -1 };
@@ -313,6 +317,8 @@ void cli_cursor_start(cli_cursor *c, const cli_options *opts, const cli_inputs *
  * table stays valid until the next call. */
 int cli_cursor_next(cli_cursor *c, const series_table **t, size_t *k);
 void cli_cursor_end(cli_cursor *c);
+/* 1 when a CSV input is large enough to be read a table of series at a time. */
+int cli_too_wide(const char *path);
 /* 1 when the file starts like a NetCDF file (classic, 64-bit offset, CDF-5 or HDF5). */
 int cli_is_netcdf(const char *path);
 /* The NetCDF reading options of the command's. */
@@ -349,5 +355,7 @@ int cli_read_options(const cli_options *o, time_units *units, csv_read_options *
 int cli_span_on_axis(const cli_options *o, const series_table *t, double *from, double *until);
 int cli_grid(const cli_options *o, series_table *t, int announce, io_error *err);
 void cli_input_notices(const cli_options *o, const series_table *t);
+/* The values that look like missing-value codes, per series of a table. */
+void cli_series_notices(const series_table *t);
 
 #endif

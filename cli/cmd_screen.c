@@ -240,8 +240,8 @@ static int run_series(const cli_options *opts, const cli_inputs *in, void *conte
     input_source src = {.controls = NULL, .copies = NULL, .rc = EXIT_OK};
     cli_cursor_start(&src.cursor, opts, in);
     int grids = 0;
-    for (size_t f = 0; f < in->ntables; f++)
-        grids |= in->grid_cells[f] > 0;
+    for (size_t f = 0; f < in->ntables; f++) /* inputs read a table at a time */
+        grids |= in->grid_cells[f] > 0 || in->columns[f] != NULL;
     sink.origins = src.origins = calloc(sink.total + 1, sizeof *src.origins);
     if (!src.origins ||
         (in->has_control && !(src.controls = calloc(sink.total + 1, sizeof *src.controls))) ||

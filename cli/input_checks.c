@@ -90,16 +90,9 @@ int cli_grid(const cli_options *o, series_table *t, int announce, io_error *err)
     return st;
 }
 
-void cli_input_notices(const cli_options *o, const series_table *t)
+void cli_series_notices(const series_table *t)
 {
     const char *name = cli_source_name(t->source);
-    for (size_t k = 0; k < t->nskipped; k++)
-        cli_warning("%s: column '%s' holds text, not numbers, and is left out (--vars names "
-                    "the series to read)", name, t->skipped[k]);
-    if (t->coded_missing > 0)
-        cli_warning("%s: %zu value%s given by --missing %s read as missing", name,
-                    t->coded_missing, t->coded_missing == 1 ? "" : "s",
-                    t->coded_missing == 1 ? "was" : "were");
     for (size_t k = 0; k < t->nseries; k++) {
         suspect_code code;
         if (!slowscan_table_suspect_code(t, k, &code))
@@ -112,5 +105,19 @@ void cli_input_notices(const cli_options *o, const series_table *t)
                     "%.15g", name, t->names[k], code.value, code.count,
                     code.count == 1 ? "" : "s", where, code.value);
     }
+}
+
+void cli_input_notices(const cli_options *o, const series_table *t)
+{
+    const char *name = cli_source_name(t->source);
+    for (size_t k = 0; k < t->nskipped; k++)
+        cli_warning("%s: column '%s' holds text, not numbers, and is left out (--vars names "
+                    "the series to read)", name, t->skipped[k]);
+    if (t->coded_missing > 0)
+        cli_warning("%s: %zu value%s given by --missing %s read as missing", name,
+                    t->coded_missing, t->coded_missing == 1 ? "" : "s",
+                    t->coded_missing == 1 ? "was" : "were");
+    if (t->nseries && t->values && t->values[0]) /* a streamed table's come a table at a time */
+        cli_series_notices(t);
     (void)o;
 }

@@ -5,13 +5,30 @@
 #include "slowscan/status.h"
 
 #include <stdio.h>
+#include <stdlib.h>
 #include <string.h>
+#include <sys/stat.h>
 
 /* Cells per table of a grid: what 8 MiB of values hold, between 1 and 4096. */
 static size_t cells_per_table(size_t n)
 {
     size_t cells = ((size_t)8 << 20) / (n ? n * sizeof(double) : 1);
     return cells < 1 ? 1 : cells > 4096 ? 4096 : cells;
+}
+
+/* A CSV input is read a table of series at a time when its file is larger than this
+ * (SLOWSCAN_STREAM_AFTER bytes, for the test suite; not a user setting). */
+static long long stream_after(void)
+{
+    const char *text = getenv("SLOWSCAN_STREAM_AFTER");
+    return text && *text ? atoll(text) : (long long)64 << 20;
+}
+
+int cli_too_wide(const char *path)
+{
+    struct stat st;
+    return path && strcmp(path, "-") != 0 && stat(path, &st) == 0 && S_ISREG(st.st_mode) &&
+           (long long)st.st_size > stream_after();
 }
 
 int cli_is_netcdf(const char *path)
@@ -66,9 +83,41 @@ static void finish_grid(cli_cursor *c)
     c->reader = NULL;
 }
 
+/* The next table of series of the streamed CSV being read (made ready); CLI_CURSOR_END at its
+ * end. */
+static int next_columns(cli_cursor *c)
+{
+    slowscan_series_table_free(&c->chunk);
+    c->table = NULL;
+    const series_table *h = slowscan_csv_columns_header(c->columns);
+    if (c->column_first >= h->nseries) {
+        c->columns = NULL;
+        return CLI_CURSOR_END;
+    }
+    io_error err = {{0}};
+    int st = slowscan_csv_columns_table(c->columns, c->column_first, cells_per_table(h->n),
+                                        &c->chunk, &err);
+    if (st != SLOWSCAN_OK) {
+        cli_error("%s", err.message);
+        return st == SLOWSCAN_ENOMEM ? EXIT_INTERNAL : EXIT_BAD_INPUT;
+    }
+    c->column_first += c->chunk.nseries;
+    int first = c->chunks++ == 0 && !c->opts->repeat_walk;
+    if (!c->opts->repeat_walk)
+        cli_series_notices(&c->chunk);
+    int rc = cli_ready_table(c->opts, &c->chunk, first);
+    if (rc == EXIT_OK) {
+        c->table = &c->chunk;
+        c->next = 0;
+    }
+    return rc;
+}
+
 /* The next table of cells of the grid being read (made ready); CLI_CURSOR_END at its end. */
 static int next_chunk(cli_cursor *c)
 {
+    if (c->columns)
+        return next_columns(c);
     slowscan_series_table_free(&c->chunk);
     c->table = NULL;
     size_t n;
@@ -96,6 +145,11 @@ static int next_chunk(cli_cursor *c)
 static int open_input(cli_cursor *c)
 {
     size_t f = c->input++;
+    if (c->in->columns && c->in->columns[f]) {
+        c->columns = c->in->columns[f];
+        c->column_first = c->chunks = 0;
+        return EXIT_OK;
+    }
     if (!c->in->grid_cells || c->in->grid_cells[f] == 0) {
         c->table = &c->in->tables[f];
         c->next = 0;
@@ -121,7 +175,7 @@ int cli_cursor_next(cli_cursor *c, const series_table **t, size_t *k)
             return EXIT_OK;
         }
         int rc = EXIT_OK;
-        if (c->reader) {
+        if (c->reader || c->columns) {
             rc = next_chunk(c);
             if (rc == CLI_CURSOR_END)
                 continue;

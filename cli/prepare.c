@@ -96,12 +96,26 @@ static int check_grid(const cli_options *opts, size_t f, size_t *cells)
     return EXIT_OK;
 }
 
+/* A CSV too large to hold is read once into a temporary copy and walked a table of series
+ * at a time (cli/inputs.c); its header's notices are given now. */
+static int open_columns(const cli_options *opts, const csv_read_options *ro, size_t f,
+                        cli_inputs *in)
+{
+    io_error err = {{0}};
+    int st = slowscan_csv_open_columns(opts->files[f], ro, NULL, &in->columns[f], &err);
+    if (st != SLOWSCAN_OK)
+        return io_fail(st, &err);
+    cli_input_notices(opts, slowscan_csv_columns_header(in->columns[f]));
+    return EXIT_OK;
+}
+
 int cli_inputs_load(const cli_options *opts, cli_inputs *in)
 {
     memset(in, 0, sizeof *in);
     in->tables = calloc(opts->nfiles, sizeof *in->tables);
     in->grid_cells = calloc(opts->nfiles, sizeof *in->grid_cells);
-    if (!in->tables || !in->grid_cells)
+    in->columns = calloc(opts->nfiles, sizeof *in->columns);
+    if (!in->tables || !in->grid_cells || !in->columns)
         return EXIT_INTERNAL;
     csv_read_options ro;
     time_units units;
@@ -115,6 +129,10 @@ int cli_inputs_load(const cli_options *opts, cli_inputs *in)
         in->ntables = f + 1;
         if (cli_is_netcdf(opts->files[f])) {
             rc = check_grid(opts, f, &in->grid_cells[f]);
+            continue;
+        }
+        if (cli_too_wide(opts->files[f])) {
+            rc = open_columns(opts, &ro, f, in);
             continue;
         }
         io_error err = {{0}};
@@ -135,6 +153,9 @@ void cli_inputs_free(cli_inputs *in)
         slowscan_series_table_free(&in->control);
     for (size_t f = 0; f < in->ntables; f++)
         slowscan_series_table_free(&in->tables[f]);
+    for (size_t f = 0; in->columns && f < in->ntables; f++)
+        slowscan_csv_columns_close(in->columns[f]);
+    free(in->columns);
     free(in->tables);
     free(in->grid_cells);
     memset(in, 0, sizeof *in);
@@ -144,7 +165,9 @@ size_t cli_inputs_series_count(const cli_inputs *in)
 {
     size_t total = 0;
     for (size_t f = 0; f < in->ntables; f++)
-        total += in->tables[f].nseries + (in->grid_cells ? in->grid_cells[f] : 0);
+        total += in->tables[f].nseries + (in->grid_cells ? in->grid_cells[f] : 0) +
+                 (in->columns && in->columns[f]
+                      ? slowscan_csv_columns_header(in->columns[f])->nseries : 0);
     return total;
 }
 

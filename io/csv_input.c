@@ -147,7 +147,7 @@ static int grow_data(csv_reader *r)
     if (rows)
         t->rows = rows;
     int bad = !time || !rows;
-    for (size_t k = 0; k < t->nseries && !bad; k++) {
+    for (size_t k = 0; k < t->nseries && !bad && !r->rows_out; k++) {
         double *v = realloc(t->values[k], cap * sizeof *v);
         if (v)
             t->values[k] = v;
@@ -198,8 +198,17 @@ static void store_row(csv_reader *r)
         return;
     t->time[t->n] = time;
     t->rows[t->n] = r->line;
-    for (size_t k = 0; k < t->nseries; k++)
-        t->values[k][t->n] = r->row_values[k + 1];
+    if (r->rows_out) {
+        if (fwrite(r->row_values + 1, sizeof(double), t->nseries, r->rows_out) != t->nseries) {
+            char why[128];
+            csv_failf(r, SLOWSCAN_EIO, "row %zu: cannot write the temporary copy of the table: "
+                      "%s", r->line, io_strerror(errno, why, sizeof why));
+            return;
+        }
+    } else {
+        for (size_t k = 0; k < t->nseries; k++)
+            t->values[k][t->n] = r->row_values[k + 1];
+    }
     t->n++;
 }
 
@@ -365,19 +374,20 @@ static int parse_stream(csv_reader *r, FILE *fp)
     return r->status;
 }
 
-/* Takes the text columns out of the series (their names move to table->skipped). */
+/* Takes the text columns out of the series (their names move to table->skipped) and notes
+ * the file column of each series kept. */
 static int drop_text_series(csv_reader *r)
 {
     series_table *t = r->t;
     size_t kept = 0, ntext = 0;
+    if (!(r->file_column = malloc((t->nseries ? t->nseries : 1) * sizeof *r->file_column)))
+        return csv_failf(r, SLOWSCAN_ENOMEM, "out of memory");
     for (size_t k = 0; k < t->nseries; k++)
         ntext += r->series_state[k] == SERIES_TEXT;
-    if (ntext == 0)
-        return SLOWSCAN_OK;
-    if (ntext == t->nseries)
+    if (ntext == t->nseries && ntext > 0)
         return csv_failf(r, SLOWSCAN_EINVAL, "%s (no column besides the time column '%s' "
                          "holds numbers)", r->first_text, t->time_name);
-    if (!(t->skipped = calloc(ntext, sizeof *t->skipped)))
+    if (ntext > 0 && !(t->skipped = calloc(ntext, sizeof *t->skipped)))
         return csv_failf(r, SLOWSCAN_ENOMEM, "out of memory");
     for (size_t k = 0; k < t->nseries; k++) {
         if (r->series_state[k] == SERIES_TEXT) {
@@ -385,6 +395,7 @@ static int drop_text_series(csv_reader *r)
             free(t->values[k]);
             continue;
         }
+        r->file_column[kept] = k;
         t->names[kept] = t->names[k];
         t->values[kept++] = t->values[k];
     }
@@ -400,7 +411,7 @@ static void reverse_rows(series_table *t)
         t->time[i] = t->time[j], t->time[j] = tt;
         size_t rr = t->rows[i];
         t->rows[i] = t->rows[j], t->rows[j] = rr;
-        for (size_t k = 0; k < t->nseries; k++) {
+        for (size_t k = 0; k < t->nseries && t->values[k]; k++) {
             double v = t->values[k][i];
             t->values[k][i] = t->values[k][j], t->values[k][j] = v;
         }
@@ -416,7 +427,7 @@ static void shrink_data(series_table *t)
     size_t *rows = realloc(t->rows, t->n * sizeof *rows);
     if (rows)
         t->rows = rows;
-    for (size_t k = 0; k < t->nseries; k++) {
+    for (size_t k = 0; k < t->nseries && t->values[k]; k++) {
         double *v = realloc(t->values[k], t->n * sizeof *v);
         if (v)
             t->values[k] = v;
@@ -440,8 +451,8 @@ csv_read_options slowscan_csv_read_options_default(void)
     return o;
 }
 
-int slowscan_csv_read_table(const char *path, const csv_read_options *options, series_table *t,
-                   io_error *err)
+int csv_read(const char *path, const csv_read_options *options, series_table *t, FILE *rows_out,
+             size_t **file_column, int *backward, io_error *err)
 {
     const csv_read_options defaults = slowscan_csv_read_options_default();
     if (err)
@@ -452,7 +463,7 @@ int slowscan_csv_read_table(const char *path, const csv_read_options *options, s
     int is_stdin = strcmp(path, "-") == 0;
     csv_reader r = {.name = io_display_name(path), .err = err, .options = options ? options : &defaults,
                     .t = t, .in_header = 1, .line = 1, .filter = {.line_start = 1},
-                    .direction = 1};
+                    .direction = 1, .rows_out = rows_out};
     FILE *fp = is_stdin ? stdin : fopen(path, "rb");
     if (!fp) {
         char why[128];
@@ -480,5 +491,17 @@ int slowscan_csv_read_table(const char *path, const csv_read_options *options, s
     free(r.series_state);
     if (r.status != SLOWSCAN_OK)
         slowscan_series_table_free(t);
+    if (backward)
+        *backward = r.direction < 0;
+    if (file_column && r.status == SLOWSCAN_OK)
+        *file_column = r.file_column;
+    else
+        free(r.file_column);
     return r.status;
+}
+
+int slowscan_csv_read_table(const char *path, const csv_read_options *options, series_table *t,
+                            io_error *err)
+{
+    return csv_read(path, options, t, NULL, NULL, NULL, err);
 }

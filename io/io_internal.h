@@ -72,11 +72,23 @@ typedef struct {
     time_reader time;       /* the time column's cells */
     unsigned char *series_state; /* per series: nothing read yet, numbers seen, or text */
     char first_text[300];   /* the first text cell of a column left out, for messages */
+    FILE *rows_out;         /* streaming: each record's series values appended here, row-major,
+                               instead of kept in the table (csv_columns.c) */
+    size_t *file_column;    /* after reading: the file column (series index at the header) of
+                               each series kept (text columns left out) */
     int direction;          /* +1: times must rise; -1: (ages) they fall, rows turned at the end */
     struct {
         int quoted, line_start, comment;
     } filter;               /* comment lines, across chunks */
 } csv_reader;
+
+/* Reads a CSV as slowscan_csv_read_table does; with rows_out, the series' values go there
+ * (row-major, in file order, one double per series of the header) and the table's values
+ * stay NULL; *file_column (may be NULL) gets the file column of each series kept and
+ * *backward whether the rows run backward in the file (ages youngest first, turned round
+ * in the table). */
+int csv_read(const char *path, const csv_read_options *options, series_table *t, FILE *rows_out,
+             size_t **file_column, int *backward, io_error *err);
 
 /* Sets the reader's error once ("NAME: " is prepended); returns the reader's status. */
 int csv_failf(csv_reader *r, int status, const char *fmt, ...) __attribute__((format(printf, 3, 4)));

@@ -119,7 +119,7 @@ static int find_code(const double *x, size_t n, double jump, double *scratch, su
 int slowscan_table_suspect_code(const series_table *t, size_t k, suspect_code *found)
 {
     memset(found, 0, sizeof *found);
-    if (k >= t->nseries || t->n < 8)
+    if (k >= t->nseries || t->n < 8 || !t->values || !t->values[k])
         return 0;
     double *scratch = malloc(t->n * sizeof *scratch);
     if (!scratch)

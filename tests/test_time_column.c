@@ -298,8 +298,69 @@ static void check_missing_codes(void)
         slowscan_series_table_free(&t);
 }
 
+/* A table read through the column store equals the same table read whole, series by series
+ * and bit for bit, with text columns left out and ages turned round; its temporary file has
+ * no name (common practice, no source). */
+static void check_column_store(void)
+{
+    enum { ROWS = 300, COLS = 11 };
+    static char text[ROWS * COLS * 16];
+    size_t len = (size_t)snprintf(text, sizeof text, "age");
+    for (size_t c = 0; c < COLS; c++)
+        len += (size_t)snprintf(text + len, sizeof text - len, c == 4 ? ",station" : ",s%zu", c);
+    check_rng *rng = check_rng_alloc(9);
+    for (size_t i = 0; i < ROWS; i++) { /* youngest first: turned round when read */
+        len += (size_t)snprintf(text + len, sizeof text - len, "\n%zu", 100 + 10 * i);
+        for (size_t c = 0; c < COLS; c++)
+            len += c == 4 ? (size_t)snprintf(text + len, sizeof text - len, ",lake%zu", i % 3)
+                          : (size_t)snprintf(text + len, sizeof text - len, ",%.5f",
+                                             check_rng_gaussian(rng));
+    }
+    check_rng_free(rng);
+    snprintf(text + len, sizeof text - len, "\n");
+    const char *path = check_tmp_path("wide.csv");
+    check_write_file(path, text);
+    char dir[600];
+    snprintf(dir, sizeof dir, "%s", check_tmp_path("columns"));
+    char cmd[700];
+    snprintf(cmd, sizeof cmd, "mkdir -p '%s'", dir);
+    check_run(cmd, NULL, NULL);
+    csv_read_options o = slowscan_csv_read_options_default();
+    o.age = 1;
+    series_table whole = {0};
+    io_error err;
+    csv_column_store *store = NULL;
+    int a = slowscan_csv_read_table(path, &o, &whole, &err);
+    int b = slowscan_csv_open_columns(path, &o, dir, &store, &err);
+    size_t bad = 0, seen = 0;
+    for (size_t first = 0; a == 0 && b == 0 && first < whole.nseries; first += 3) {
+        series_table part;
+        if (slowscan_csv_columns_table(store, first, 3, &part, &err) != SLOWSCAN_OK) {
+            bad++;
+            break;
+        }
+        for (size_t k = 0; k < part.nseries; k++, seen++)
+            bad += strcmp(part.names[k], whole.names[first + k]) != 0 ||
+                   check_max_diff(part.values[k], whole.values[first + k], whole.n) != 0.0 ||
+                   check_max_diff(part.time, whole.time, whole.n) != 0.0 ||
+                   part.rows[k] != whole.rows[k];
+        slowscan_series_table_free(&part);
+    }
+    snprintf(cmd, sizeof cmd, "ls -A '%s' | wc -l", dir);
+    char *listed = NULL;
+    check_run(cmd, &listed, NULL);
+    CHECK(a == 0 && b == 0 && whole.nseries == COLS - 1 && seen == whole.nseries && bad == 0 &&
+              slowscan_csv_columns_header(store)->nskipped == 1 && listed && atoi(listed) == 0,
+          "column store = whole table (%zu series, %zu differ), its file unnamed (%s): %s", seen,
+          bad, listed ? listed : "", err.message);
+    free(listed);
+    slowscan_csv_columns_close(store);
+    slowscan_series_table_free(&whole);
+}
+
 void suite_time_column(void)
 {
+    check_column_store();
     check_dated_days();
     check_monthly_yearly();
     check_units_column();

@@ -77,6 +77,24 @@ SLOWSCAN_API
 int slowscan_csv_read_table(const char *path, const csv_read_options *options, series_table *table,
                    io_error *err);
 
+/* A CSV read once into an unnamed temporary file (in temp_dir, or $TMPDIR, or /tmp) and
+ * handed out a few series at a time, for tables too wide to hold: memory keeps the time
+ * column and the names. The same checks and messages as slowscan_csv_read_table; the header
+ * table (values NULL) says what was read; slowscan_csv_columns_table gives series first ..
+ * first+count-1 as a table of their own (fewer at the end), identical to the same series
+ * of slowscan_csv_read_table. */
+typedef struct csv_column_store csv_column_store;
+SLOWSCAN_API
+int slowscan_csv_open_columns(const char *path, const csv_read_options *options,
+                              const char *temp_dir, csv_column_store **store, io_error *err);
+SLOWSCAN_API
+const series_table *slowscan_csv_columns_header(const csv_column_store *store);
+SLOWSCAN_API
+int slowscan_csv_columns_table(csv_column_store *store, size_t first, size_t count,
+                               series_table *table, io_error *err);
+SLOWSCAN_API
+void slowscan_csv_columns_close(csv_column_store *store);
+
 /* Keeps the rows with from <= time <= until (NaN: no limit). SLOWSCAN_ESHORT with a message
  * when fewer than 2 rows remain. */
 SLOWSCAN_API
