@@ -122,7 +122,7 @@ check: deps
 # The calibration battery of `make check` with more series and every memory-keeping null.
 VALIDATE_OBJ := $(B)/obj/tests/validate/validate.o $(B)/obj/tests/check.o \
                 $(B)/obj/tests/calibration_cases.o $(B)/obj/tests/test_calibration.o
-$(B)/validate: $(VALIDATE_OBJ)
+$(B)/validate: $(VALIDATE_OBJ) $(STATIC_LIBS)
 	$(CC) $(CFLAGS) -o $@ $^ $(LIBS)
 
 validate: deps
