@@ -96,7 +96,7 @@ void suite_batch(void)
         screen_source source = {next_series, release_series, t.nseries, &src};
         e.seen = e.bad_order = 0;
         e.paths_differ = 0;
-        screen_sink sink = {put, &e, r == 1};
+        screen_sink sink = {.put = put, .state = &e, .keep_series = r == 1};
         screen_batch_failure f;
         CHECK(slowscan_screen_batch_run(&cfg, &source, &sink, &f) == SLOWSCAN_OK, "batch, %zu threads",
               threads[r]);
@@ -109,7 +109,7 @@ void suite_batch(void)
     table_source src = {&t, 5, 0, 0};
     screen_source source = {next_series, NULL, 0, &src};
     e.seen = e.bad_order = 0;
-    screen_sink sink = {put, &e, 0};
+    screen_sink sink = {.put = put, .state = &e};
     screen_batch_failure f;
     int st = slowscan_screen_batch_run(&cfg, &source, &sink, &f);
     CHECK(st == SLOWSCAN_EINVAL && f.index == 5 && e.seen == 5 && e.bad_order == 0,
