@@ -222,7 +222,7 @@ void cli_json_number(FILE *fp, double v);
 void cli_put_field(FILE *fp, const char *s);
 
 /* progress.c: the progress line on stderr ("screen: series 12/40, 3.1 series/s, ETA 9 s",
- * with ", surrogates 384/1000 of NAME" while a series is drawing its null), when enabled: on a
+ * then ", surrogates 384/1000 of NAME" while a series is drawing its null), when enabled: on a
  * terminal rewritten in place, elsewhere one line per update every few seconds. */
 typedef struct {
     int enabled, terminal;
@@ -233,6 +233,7 @@ typedef struct {
     char series[48];
     size_t surrogates_index, surrogates_done, surrogates_total;
     double every;     /* seconds between updates */
+    size_t columns;   /* the terminal's width less one (0: not known, or not a terminal) */
 } cli_progress;
 void cli_progress_start(cli_progress *p, const cli_options *opts, size_t total);
 void cli_progress_series_done(cli_progress *p);

@@ -9,6 +9,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/ioctl.h>
 #include <time.h>
 #include <unistd.h>
 
@@ -44,6 +45,12 @@ void cli_progress_start(cli_progress *p, const cli_options *opts, size_t total)
     p->total = total;
     p->start = p->last_shown = monotonic_seconds();
     p->every = p->terminal ? PROGRESS_TERMINAL_EVERY : PROGRESS_LOG_EVERY;
+    /* A line wider than the terminal wraps, and a carriage return then goes back to the
+     * start of its last row only: the line is cut to the width instead. */
+    struct winsize size;
+    p->columns = p->terminal && ioctl(STDERR_FILENO, TIOCGWINSZ, &size) == 0 && size.ws_col > 1
+                     ? (size_t)size.ws_col - 1
+                     : 0;
     /* The suites set SLOWSCAN_PROGRESS_EVERY (seconds) to see every update of a short run
      * (a test hook, not a user setting). */
     const char *every = getenv("SLOWSCAN_PROGRESS_EVERY");
@@ -88,9 +95,12 @@ static void show(cli_progress *p, double now)
         put_duration(eta, sizeof eta, ", took", elapsed);
     else if (share > 0)
         put_duration(eta, sizeof eta, ", ETA", elapsed * (1 - share) / share);
+    /* the surrogates last: a line cut to the terminal keeps the rate and the time left */
     int width = snprintf(line, sizeof line, "%s: series %zu/%zu%s%s%s", p->what, p->done,
-                         p->total, inside, rate, eta);
+                         p->total, rate, eta, inside);
     size_t w = width < 0 ? 0 : (size_t)width < sizeof line ? (size_t)width : sizeof line - 1;
+    if (p->columns && w > p->columns)
+        line[w = p->columns] = 0;
     if (!p->terminal) {
         fprintf(stderr, "%s\n", line);
     } else {

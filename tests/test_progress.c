@@ -269,6 +269,28 @@ static void command_line(void)
     free(want);
 }
 
+/* On a terminal (a pseudo-terminal from util-linux's script(1), when installed): one line
+ * rewritten in place, carriage returns between updates and a single newline at the end. */
+static void terminal(void)
+{
+    if (check_run("command -v script >/dev/null", NULL, NULL) != 0) {
+        printf("  (no script(1): the terminal line is not checked)\n");
+        return;
+    }
+    char cmd[2048];
+    snprintf(cmd, sizeof cmd, "script -qec 'SLOWSCAN_PROGRESS_EVERY=0 %s screen --threads 2 "
+             "--surrogates 199 --deseason 364 -o /dev/null data/stations.csv' /dev/null",
+             check_binary());
+    free(run_out);
+    free(run_err);
+    int rc = check_run(cmd, &run_out, &run_err);
+    /* the terminal turns the final newline into CR LF */
+    CHECK(rc == 0 && run_out && count_char(run_out, '\n') == 1 &&
+              count_char(run_out, '\r') > 8 && strstr(run_out, "\rscreen: series 8/8") &&
+              strstr(run_out, "took"),
+          "a terminal gets one line rewritten in place: %s", run_out ? run_out : "");
+}
+
 /* --quiet: a warning at the options (--surrogates below 19) and one of a series (a constant
  * column) are dropped; an error is still printed with its exit code. */
 static void quiet(void)
@@ -318,6 +340,7 @@ void suite_progress(void)
     batch_run(&t);
     slowscan_series_table_free(&t);
     command_line();
+    terminal();
     quiet();
     free(run_out);
     free(run_err);
