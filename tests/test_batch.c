@@ -4,6 +4,7 @@
  * order ends the run after every result before it. A check of the project against itself:
  * slowscan_screen_series is checked against the command's output in suite screen. */
 #include "check.h"
+#include "stations_check.h"
 #include "slowscan/io.h"
 #include "slowscan/screen_batch.h"
 #include "slowscan/status.h"
@@ -69,12 +70,8 @@ static int put(void *state, const screen_batch_item *item)
 void suite_batch(void)
 {
     series_table t;
-    io_error err;
-    csv_read_options ro = slowscan_csv_read_options_default();
-    if (slowscan_csv_read_table("data/stations.csv", &ro, &t, &err) != SLOWSCAN_OK) {
-        CHECK(0, "data/stations.csv: %s", err.message);
+    if (!check_read_stations(&t))
         return;
-    }
     screen_config cfg = slowscan_screen_config_default();
     cfg.deseason = 364;
     cfg.surrogates = 99;

@@ -6,6 +6,7 @@
  * itself and against its own stated behaviour (issue 14, item 5); the numbers themselves are
  * checked against the committed outputs in suites screen and golden. */
 #include "check.h"
+#include "stations_check.h"
 #include "slowscan/io.h"
 #include "slowscan/null_trend.h"
 #include "slowscan/screen_batch.h"
@@ -330,12 +331,8 @@ static void quiet(void)
 void suite_progress(void)
 {
     series_table t;
-    io_error err;
-    csv_read_options ro = slowscan_csv_read_options_default();
-    if (slowscan_csv_read_table("data/stations.csv", &ro, &t, &err) != SLOWSCAN_OK) {
-        CHECK(0, "data/stations.csv: %s", err.message);
+    if (!check_read_stations(&t))
         return;
-    }
     one_series(&t);
     batch_run(&t);
     slowscan_series_table_free(&t);
