@@ -238,9 +238,13 @@ typedef struct {
 void cli_progress_start(cli_progress *p, const cli_options *opts, size_t total);
 void cli_progress_series_done(cli_progress *p);
 void cli_progress_surrogates(cli_progress *p, const screen_progress *s);
-/* Clears a progress line standing on the terminal, so a message starts on a clean line
- * (cli_error and cli_warning call it; the next update draws the line again). */
-void cli_progress_clear_line(void);
+/* Around every message on stderr (cli_error, cli_warning): clears a progress line standing
+ * on the terminal, so the message starts on a clean line (the next update draws it again),
+ * and keeps the line from being drawn, from any thread, until the message is out. */
+void cli_progress_message_begin(void);
+void cli_progress_message_end(void);
+/* 1 while a progress line stands on the terminal unfinished (async-signal-safe). */
+int cli_progress_line_standing(void);
 
 /* Called once per prepared series, in input order. */
 typedef int (*series_visitor)(const cli_options *opts, const prepared_series *ps, void *context);

@@ -489,10 +489,11 @@ void cli_options_free(cli_options *o)
 
 static void vreport(const char *kind, const char *fmt, va_list ap)
 {
-    cli_progress_clear_line();
+    cli_progress_message_begin();
     fprintf(stderr, "slowscan: %s", kind);
     vfprintf(stderr, fmt, ap);
     fputc('\n', stderr);
+    cli_progress_message_end();
 }
 
 void cli_error(const char *fmt, ...)

@@ -6,6 +6,8 @@
  * rate negative. */
 #include "cli.h"
 
+#include <pthread.h>
+#include <signal.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -18,8 +20,23 @@
 #define PROGRESS_LOG_EVERY 2.0
 
 /* Characters of the line now standing on the terminal without its newline (0: none): the
- * next message must clear it first. One stderr per process, so one value. */
+ * next message must clear it first. One stderr per process, so one value, and one lock: a
+ * message may come from the thread reading the inputs while a worker shows the line. */
 static size_t standing_width;
+static pthread_mutex_t stderr_lock = PTHREAD_MUTEX_INITIALIZER;
+/* standing_width != 0, as a stop's signal handler may read it */
+static volatile sig_atomic_t line_standing;
+
+static void set_standing(size_t width)
+{
+    standing_width = width;
+    line_standing = width != 0;
+}
+
+int cli_progress_line_standing(void)
+{
+    return line_standing;
+}
 
 static double monotonic_seconds(void)
 {
@@ -28,12 +45,17 @@ static double monotonic_seconds(void)
     return (double)ts.tv_sec + 1e-9 * (double)ts.tv_nsec;
 }
 
-void cli_progress_clear_line(void)
+void cli_progress_message_begin(void)
 {
-    if (!standing_width)
-        return;
-    fprintf(stderr, "\r%*s\r", (int)standing_width, "");
-    standing_width = 0;
+    pthread_mutex_lock(&stderr_lock);
+    if (standing_width)
+        fprintf(stderr, "\r%*s\r", (int)standing_width, "");
+    set_standing(0);
+}
+
+void cli_progress_message_end(void)
+{
+    pthread_mutex_unlock(&stderr_lock);
 }
 
 void cli_progress_start(cli_progress *p, const cli_options *opts, size_t total)
@@ -106,10 +128,10 @@ static void show(cli_progress *p, double now)
     } else {
         /* pad over what is left of a longer line before */
         fprintf(stderr, "\r%s%*s", line, standing_width > w ? (int)(standing_width - w) : 0, "");
-        standing_width = w;
+        set_standing(w);
         if (finished) {
             fputc('\n', stderr);
-            standing_width = 0;
+            set_standing(0);
         }
     }
     fflush(stderr);
@@ -122,8 +144,11 @@ static void maybe_show(cli_progress *p)
     if (!p->enabled)
         return;
     double now = monotonic_seconds();
-    if (p->done >= p->total || now - p->last_shown >= p->every)
-        show(p, now);
+    if (p->done < p->total && now - p->last_shown < p->every)
+        return;
+    pthread_mutex_lock(&stderr_lock);
+    show(p, now);
+    pthread_mutex_unlock(&stderr_lock);
 }
 
 void cli_progress_series_done(cli_progress *p)
