@@ -94,6 +94,7 @@ typedef struct {
     report_format figure_format;      /* png unless --figure-format says otherwise */
     const char *format; /* "csv" or "table" */
     int progress;       /* -1: auto (stderr is a TTY) */
+    int quiet;          /* --quiet: no warnings (errors still) */
     const char *out_dir; /* demo */
     int repeat_walk;     /* a second walk over the inputs (figures): its notices were given */
     unsigned long seed;
@@ -222,8 +223,30 @@ void cli_json_number(FILE *fp, double v);
 /* Writes a CSV field, quoted when it holds a delimiter, quote or line break (RFC 4180). */
 void cli_put_field(FILE *fp, const char *s);
 
-/* Progress line on stderr ("screen: 12/40 series"), when enabled. */
-void cli_progress(const cli_options *opts, const char *what, size_t done, size_t total);
+/* progress.c: the progress line on stderr ("screen: series 12/40, 3.1 series/s, ETA 9 s",
+ * then ", surrogates 384/1000 of NAME" while a series is drawing its null), when enabled: on a
+ * terminal rewritten in place, elsewhere one line per update every few seconds. */
+typedef struct {
+    int enabled, terminal;
+    const char *what; /* the command */
+    size_t done, total;
+    double start, last_shown; /* monotonic seconds */
+    /* the latest surrogate count of a series not yet done (the library's screen_progress) */
+    char series[48];
+    size_t surrogates_index, surrogates_done, surrogates_total;
+    double every;     /* seconds between updates */
+    size_t columns;   /* the terminal's width less one (0: not known, or not a terminal) */
+} cli_progress;
+void cli_progress_start(cli_progress *p, const cli_options *opts, size_t total);
+void cli_progress_series_done(cli_progress *p);
+void cli_progress_surrogates(cli_progress *p, const screen_progress *s);
+/* Around every message on stderr (cli_error, cli_warning): clears a progress line standing
+ * on the terminal, so the message starts on a clean line (the next update draws it again),
+ * and keeps the line from being drawn, from any thread, until the message is out. */
+void cli_progress_message_begin(void);
+void cli_progress_message_end(void);
+/* 1 while a progress line stands on the terminal unfinished (async-signal-safe). */
+int cli_progress_line_standing(void);
 
 /* Called once per prepared series, in input order. */
 typedef int (*series_visitor)(const cli_options *opts, const prepared_series *ps, void *context);

@@ -198,7 +198,8 @@ typedef struct {
     screen_run *run;
     const screen_origin *origins; /* the source's, by series index */
     cli_leakage_tally leakage;
-    size_t done, total;
+    size_t total;
+    cli_progress progress;
     int rc; /* the exit code of a failed sink */
 } ordered_sink;
 
@@ -215,8 +216,15 @@ static int put_series(void *state, const screen_batch_item *item)
     if (sink->rc != EXIT_OK)
         return SLOWSCAN_ENOMEM;
     cli_tally_leakage(&sink->leakage, ps->source, ps->name, &res->leakage, res->leakage_tested);
-    cli_progress(sink->opts, sink->opts->command, ++sink->done, sink->total);
+    cli_progress_series_done(&sink->progress);
     return SLOWSCAN_OK;
+}
+
+/* Surrogates drawn inside a series still running (the batch driver calls this one at a time). */
+static void series_progress(void *state, const screen_progress *progress)
+{
+    ordered_sink *sink = state;
+    cli_progress_surrogates(&sink->progress, progress);
 }
 
 /* The failure that ended a run, in the words of the per-series commands. */
@@ -254,7 +262,9 @@ static int run_series(const cli_options *opts, const cli_inputs *in, void *conte
     screen_source source = {next_series, release_series, sink.total, &src};
     /* Only --rolling needs the paths handed on: the figures read the null's quantiles from
      * the results and prepare the series again once the q-values exist. */
-    screen_sink ordered = {put_series, &sink, run->rolling != NULL};
+    screen_sink ordered = {.put = put_series, .state = &sink, .keep_series = run->rolling != NULL,
+                           .progress = opts->progress > 0 ? series_progress : NULL};
+    cli_progress_start(&sink.progress, opts, sink.total);
     screen_batch_failure failure;
     int st = slowscan_screen_batch_run(&run->cfg, &source, &ordered, &failure);
     int rc = st == SLOWSCAN_OK ? EXIT_OK : src.rc != EXIT_OK ? src.rc : refuse(opts, &failure, &sink);

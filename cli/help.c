@@ -56,7 +56,11 @@ static const char input_options[] =
     "                       whose amplitude changes is followed (default: the whole record)\n"
     "output:\n"
     "  -o FILE              output file (default: standard output); written atomically\n"
-    "  --progress, --no-progress   progress on stderr (default: on when stderr is a terminal)\n"
+    "  --progress, --no-progress   progress on stderr: series done/total, series per second,\n"
+    "                       time left, and the surrogates drawn of a series still running;\n"
+    "                       one line rewritten in place on a terminal, else a line every 2 s\n"
+    "                       (default: on when stderr is a terminal)\n"
+    "  --quiet              no warnings on stderr (errors are still printed)\n"
     "\n"
     "LEN is N% of the analysed span, a number of time units, or for dated times a length\n"
     "in calendar units: 30y, 6mon, 10d (the calendar's mean year; a month is a twelfth).\n";

@@ -53,6 +53,17 @@ static int set_json(cli_options *o, const char *n, const char *v) { (void)n; o->
 static int set_rolling(cli_options *o, const char *n, const char *v) { (void)n; o->rolling_output = v; return EXIT_OK; }
 static int set_out_dir(cli_options *o, const char *n, const char *v) { (void)n; o->out_dir = v; return EXIT_OK; }
 static int set_progress(cli_options *o, const char *n, const char *v) { (void)v; o->progress = strcmp(n, "--progress") == 0; return EXIT_OK; }
+
+/* Warnings are printed by cli_warning, which has no options to read: --quiet sets this as it
+ * is parsed, before any warning of the run (those of the options come after the parse). */
+static int warnings_silenced;
+
+static int set_quiet(cli_options *o, const char *n, const char *v)
+{
+    (void)n, (void)v;
+    o->quiet = warnings_silenced = 1;
+    return EXIT_OK;
+}
 static int set_log(cli_options *o, const char *n, const char *v) { (void)n; (void)v; o->log_values = 1; return EXIT_OK; }
 
 static int set_detrend(cli_options *o, const char *n, const char *v)
@@ -337,6 +348,7 @@ static const option_spec options[] = {
     {"--output", 1, C_SERIES, set_output},
     {"--progress", 0, C_SERIES, set_progress},
     {"--no-progress", 0, C_SERIES, set_progress},
+    {"--quiet", 0, C_SERIES, set_quiet},
     {"--out", 1, C_DEMO, set_out_dir},
     {"--seed", 1, C_DEMO | C_TESTING | C_SURROGATES, set_seed},
     {"--threads", 1, C_TESTING, set_threads},
@@ -477,9 +489,11 @@ void cli_options_free(cli_options *o)
 
 static void vreport(const char *kind, const char *fmt, va_list ap)
 {
+    cli_progress_message_begin();
     fprintf(stderr, "slowscan: %s", kind);
     vfprintf(stderr, fmt, ap);
     fputc('\n', stderr);
+    cli_progress_message_end();
 }
 
 void cli_error(const char *fmt, ...)
@@ -492,6 +506,8 @@ void cli_error(const char *fmt, ...)
 
 void cli_warning(const char *fmt, ...)
 {
+    if (warnings_silenced)
+        return;
     va_list ap;
     va_start(ap, fmt);
     vreport("warning: ", fmt, ap);

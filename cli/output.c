@@ -1,5 +1,5 @@
-/* Output plumbing shared by the commands: atomic output files, number formatting, progress,
- * and the per-series driver every series command runs through. */
+/* Output plumbing shared by the commands: atomic output files, number formatting, and the
+ * per-series driver (with its progress line) every series command runs through. */
 #include "cli.h"
 #include "slowscan/status.h"
 
@@ -220,21 +220,12 @@ void cli_put_field(FILE *fp, const char *s)
     fputc('"', fp);
 }
 
-void cli_progress(const cli_options *opts, const char *what, size_t done, size_t total)
-{
-    if (!opts->progress)
-        return;
-    fprintf(stderr, "\r%s: %zu/%zu series", what, done, total);
-    if (done == total)
-        fputc('\n', stderr);
-    fflush(stderr);
-}
-
 /* The one loop over the series of a run, in input order, with progress. */
 static int for_each_table_series(const cli_options *opts, const cli_inputs *in,
                                  table_visitor visit, void *context)
 {
-    size_t total = cli_inputs_series_count(in), done = 0;
+    cli_progress progress;
+    cli_progress_start(&progress, opts, cli_inputs_series_count(in));
     cli_cursor cursor;
     cli_cursor_start(&cursor, opts, in);
     const series_table *t;
@@ -244,7 +235,7 @@ static int for_each_table_series(const cli_options *opts, const cli_inputs *in,
         rc = visit(opts, in, t, k, context);
         if (rc != EXIT_OK)
             break;
-        cli_progress(opts, opts->command, ++done, total);
+        cli_progress_series_done(&progress);
     }
     cli_cursor_end(&cursor);
     return rc == CLI_CURSOR_END ? EXIT_OK : rc;

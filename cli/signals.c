@@ -18,6 +18,8 @@ static void say(const char *text)
 static void on_stop(int sig)
 {
     slowscan_atomic_remove_temporaries();
+    if (cli_progress_line_standing())
+        say("\n"); /* below the progress line, not on it */
     say(sig == SIGTERM  ? "slowscan: stopped by SIGTERM"
         : sig == SIGINT ? "slowscan: stopped by SIGINT"
                         : "slowscan: stopped by SIGHUP");

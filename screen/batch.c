@@ -31,6 +31,7 @@ typedef struct {
     screen_sink *sink;
     pthread_mutex_t lock;
     pthread_cond_t changed;
+    pthread_mutex_t sink_lock; /* one of put and progress at a time */
     slot *slots;
     size_t cap, next, delivered;
     int source_done, delivering, stop, status;
@@ -97,7 +98,9 @@ static void deliver(batch *b)
         screen_batch_item item = {index, &s->input, &s->result, &s->prepared,
                                   kept ? (const double *const *)s->paths : NULL,
                                   kept ? (const double *const *)s->nulls : NULL};
+        pthread_mutex_lock(&b->sink_lock);
         st = b->sink->put(b->sink->state, &item);
+        pthread_mutex_unlock(&b->sink_lock);
         if (st != SLOWSCAN_OK)
             s->detail = (screen_detail){.rule = SCREEN_RULE_NONE, .status = st};
     }
@@ -142,8 +145,26 @@ static int take(batch *b, size_t *index)
     return st == SLOWSCAN_OK;
 }
 
-static void work(batch *b, screen_workspace *ws)
+typedef struct {
+    batch *b;
+    screen_workspace *ws;
+    size_t index; /* the series this worker screens, for its progress reports */
+} worker_arg;
+
+/* A worker's surrogate progress, passed on to the sink with the series' index. */
+static void relay_progress(void *context, const screen_progress *progress)
 {
+    worker_arg *arg = context;
+    screen_progress p = *progress;
+    p.index = arg->index;
+    pthread_mutex_lock(&arg->b->sink_lock);
+    arg->b->sink->progress(arg->b->sink->state, &p);
+    pthread_mutex_unlock(&arg->b->sink_lock);
+}
+
+static void work(worker_arg *arg)
+{
+    batch *b = arg->b;
     pthread_mutex_lock(&b->lock);
     while (!b->stop) {
         size_t index;
@@ -154,8 +175,9 @@ static void work(batch *b, screen_workspace *ws)
             if (!take(b, &index))
                 continue;
             slot *s = &b->slots[index % b->cap];
+            arg->index = index;
             pthread_mutex_unlock(&b->lock);
-            compute(b, ws, s);
+            compute(b, arg->ws, s);
             pthread_mutex_lock(&b->lock);
             s->state = SLOT_DONE;
             pthread_cond_broadcast(&b->changed);
@@ -169,15 +191,9 @@ static void work(batch *b, screen_workspace *ws)
     pthread_mutex_unlock(&b->lock);
 }
 
-typedef struct {
-    batch *b;
-    screen_workspace *ws;
-} worker_arg;
-
 static void *worker(void *p)
 {
-    worker_arg *arg = p;
-    work(arg->b, arg->ws);
+    work(p);
     return NULL;
 }
 
@@ -210,9 +226,11 @@ int slowscan_screen_batch_run(const screen_config *cfg, screen_source *source, s
     int *running = calloc(workers, sizeof *running);
     int st = b.slots && args && ids && running ? SLOWSCAN_OK : SLOWSCAN_ENOMEM;
     for (size_t k = 0; st == SLOWSCAN_OK && k < workers; k++) {
-        args[k] = (worker_arg){&b, slowscan_screen_workspace_alloc(b.series_cfg.threads)};
+        args[k] = (worker_arg){&b, slowscan_screen_workspace_alloc(b.series_cfg.threads), 0};
         if (!args[k].ws)
             st = SLOWSCAN_ENOMEM;
+        else if (sink->progress)
+            slowscan_screen_workspace_set_progress(args[k].ws, relay_progress, &args[k]);
     }
     if (st == SLOWSCAN_OK) {
         /* Workers detrend and plan (kernel sums, window and surrogate plans) at the same
@@ -222,16 +240,18 @@ int slowscan_screen_batch_run(const screen_config *cfg, screen_source *source, s
         if (workers > 1)
             fftw_make_planner_thread_safe();
         pthread_mutex_init(&b.lock, NULL);
+        pthread_mutex_init(&b.sink_lock, NULL);
         pthread_cond_init(&b.changed, NULL);
         /* If a thread cannot start, the others simply take its series. */
         for (size_t k = 1; k < workers; k++)
             running[k] = pthread_create(&ids[k], NULL, worker, &args[k]) == 0;
-        work(&b, args[0].ws);
+        work(&args[0]);
         for (size_t k = 1; k < workers; k++)
             if (running[k])
                 pthread_join(ids[k], NULL);
         pthread_cond_destroy(&b.changed);
         pthread_mutex_destroy(&b.lock);
+        pthread_mutex_destroy(&b.sink_lock);
         st = b.status;
     }
     for (size_t k = 0; args && k < workers; k++)

@@ -12,6 +12,7 @@ typedef struct {
     pthread_mutex_t lock;
     size_t next_block, nblocks;
     int status;
+    size_t drawn; /* replicates drawn so far, for the progress callback */
 } shared_state;
 
 typedef struct {
@@ -29,6 +30,20 @@ static int take_block(shared_state *s, size_t *block)
     return ok;
 }
 
+/* Counts a finished block and tells the caller's progress callback, under the lock: one call
+ * at a time, and the count it sees only rises. */
+static void block_drawn(shared_state *s, size_t count)
+{
+    screen_null_task *t = s->task;
+    if (!t->progress)
+        return;
+    pthread_mutex_lock(&s->lock);
+    s->drawn += count;
+    screen_progress p = {.series = t->series, .done = s->drawn, .total = t->m};
+    t->progress(t->progress_context, &p);
+    pthread_mutex_unlock(&s->lock);
+}
+
 static void *worker(void *p)
 {
     worker_arg *arg = p;
@@ -43,6 +58,8 @@ static void *worker(void *p)
         if (count > NULL_TREND_BLOCK)
             count = NULL_TREND_BLOCK;
         st = slowscan_null_trend_draw(arg->ws, src, t->job, first, count, t->null, t->m);
+        if (st == SLOWSCAN_OK)
+            block_drawn(s, count);
     }
     size_t unconverged = 0;
     if (src)
@@ -60,7 +77,7 @@ int screen_null_parallel(screen_null_task *task, null_trend_workspace *const *ws
 {
     task->unconverged = 0;
     shared_state s = {task, PTHREAD_MUTEX_INITIALIZER, 0,
-                      (task->m + NULL_TREND_BLOCK - 1) / NULL_TREND_BLOCK, SLOWSCAN_OK};
+                      (task->m + NULL_TREND_BLOCK - 1) / NULL_TREND_BLOCK, SLOWSCAN_OK, 0};
     if (threads > s.nblocks)
         threads = s.nblocks ? s.nblocks : 1;
     if (threads > SCREEN_MAX_THREADS)

@@ -34,6 +34,8 @@ struct screen_workspace {
     screen_prepared prepared;
     double *paths;  /* nindicators x n */
     size_t paths_cap;
+    screen_progress_fn progress; /* slowscan_screen_workspace_set_progress */
+    void *progress_context;
 };
 
 /* slowscan_detrend_apply through ws's detrend workspace (remade when spec, dt or n change);
@@ -72,6 +74,9 @@ typedef struct {
     size_t m;     /* replicates */
     double *null; /* nkinds x m */
     size_t unconverged; /* out: iaaft draws that hit the iteration limit */
+    screen_progress_fn progress; /* NULL, or told after each block (under the blocks' lock) */
+    void *progress_context;
+    const char *series;          /* the name progress reports */
 } screen_null_task;
 int screen_null_parallel(screen_null_task *task, null_trend_workspace *const *ws, size_t threads);
 

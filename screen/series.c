@@ -15,6 +15,13 @@ screen_workspace *slowscan_screen_workspace_alloc(size_t threads)
     return ws;
 }
 
+void slowscan_screen_workspace_set_progress(screen_workspace *ws, screen_progress_fn fn,
+                                            void *context)
+{
+    ws->progress = fn;
+    ws->progress_context = context;
+}
+
 void slowscan_screen_workspace_free(screen_workspace *ws)
 {
     if (!ws)

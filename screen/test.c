@@ -146,8 +146,10 @@ static int draw_null(screen_workspace *ws, const screen_config *cfg, const scree
                           cfg->null_name ? cfg->null_name : slowscan_surrogate_name(cfg->null_kind),
                           cfg->drift_test ? 1 + cfg->noise_trend : 0};
     size_t m = cfg->surrogates;
-    screen_null_task task = {ws->plan, cfg->null_kind, &cfg->null_options, ps->null_source,
-                             &job, m, ws->null, 0};
+    screen_null_task task = {.plan = ws->plan, .kind = cfg->null_kind,
+                             .options = &cfg->null_options, .residual = ps->null_source,
+                             .job = &job, .m = m, .null = ws->null, .progress = ws->progress,
+                             .progress_context = ws->progress_context, .series = ps->name};
     size_t threads = cfg->threads < ws->threads ? cfg->threads : ws->threads;
     if (st == SLOWSCAN_OK)
         st = screen_null_parallel(&task, ws->null_ws, threads ? threads : 1);

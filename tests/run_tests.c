@@ -37,6 +37,7 @@ void suite_maps(void);
 void suite_dated_cli(void);
 void suite_interrupt(void);
 void suite_store(void);
+void suite_progress(void);
 
 static const struct {
     const char *name;
@@ -52,7 +53,7 @@ static const struct {
     {"library", suite_library},
     {"golden", suite_golden},         {"screen", suite_screen},
     {"batch", suite_batch},           {"messages", suite_messages},
-    {"store", suite_store},
+    {"store", suite_store},           {"progress", suite_progress},
     {"series_calls", suite_series_calls},
     {"calendar", suite_calendar},
     {"time_column", suite_time_column}, {"netcdf", suite_netcdf},

@@ -4,6 +4,7 @@
  * order ends the run after every result before it. A check of the project against itself:
  * slowscan_screen_series is checked against the command's output in suite screen. */
 #include "check.h"
+#include "stations_check.h"
 #include "slowscan/io.h"
 #include "slowscan/screen_batch.h"
 #include "slowscan/status.h"
@@ -69,12 +70,8 @@ static int put(void *state, const screen_batch_item *item)
 void suite_batch(void)
 {
     series_table t;
-    io_error err;
-    csv_read_options ro = slowscan_csv_read_options_default();
-    if (slowscan_csv_read_table("data/stations.csv", &ro, &t, &err) != SLOWSCAN_OK) {
-        CHECK(0, "data/stations.csv: %s", err.message);
+    if (!check_read_stations(&t))
         return;
-    }
     screen_config cfg = slowscan_screen_config_default();
     cfg.deseason = 364;
     cfg.surrogates = 99;
@@ -96,7 +93,7 @@ void suite_batch(void)
         screen_source source = {next_series, release_series, t.nseries, &src};
         e.seen = e.bad_order = 0;
         e.paths_differ = 0;
-        screen_sink sink = {put, &e, r == 1};
+        screen_sink sink = {.put = put, .state = &e, .keep_series = r == 1};
         screen_batch_failure f;
         CHECK(slowscan_screen_batch_run(&cfg, &source, &sink, &f) == SLOWSCAN_OK, "batch, %zu threads",
               threads[r]);
@@ -109,7 +106,7 @@ void suite_batch(void)
     table_source src = {&t, 5, 0, 0};
     screen_source source = {next_series, NULL, 0, &src};
     e.seen = e.bad_order = 0;
-    screen_sink sink = {put, &e, 0};
+    screen_sink sink = {.put = put, .state = &e};
     screen_batch_failure f;
     int st = slowscan_screen_batch_run(&cfg, &source, &sink, &f);
     CHECK(st == SLOWSCAN_EINVAL && f.index == 5 && e.seen == 5 && e.bad_order == 0,

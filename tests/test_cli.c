@@ -83,7 +83,7 @@ static void test_help_and_version(void)
         "--detrend", "--bandwidth", "--deseason", "--deseason-window", "--harmonics", "--window", "--indicators", "--min-coverage",
         "--recovery", "--surrogates", "--null", "--iaaft-tol", "--iaaft-iterations",
         "--block-length", "--alternative", "--fdr", "--seed", "--threads", "--rolling", "--json",
-        "--format", "--windows", "--bandwidths", "--fractions", "--control", "--progress", "-o",
+        "--format", "--windows", "--bandwidths", "--fractions", "--control", "--progress", "--quiet", "-o",
         "--noise-trend", "--figures", "--figure-format", "--detrends"};
     char *man = check_read_file("doc/slowscan.1");
     char *helps = NULL;

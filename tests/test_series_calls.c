@@ -4,6 +4,7 @@
  * (tests/golden/, the command's committed output) and screen's recovery_trend p; surrogate
  * replicates (slowscan_screen_replicate) are the `surrogates` command's rows. */
 #include "check.h"
+#include "stations_check.h"
 #include "slowscan/io.h"
 #include "slowscan/recovery.h"
 #include "slowscan/robustness.h"
@@ -26,15 +27,6 @@ static void csv_cell(char *buf, double v)
 static int same(double a, double b)
 {
     return (isnan(a) && isnan(b)) || a == b;
-}
-
-static int read_stations(series_table *t)
-{
-    io_error err;
-    csv_read_options ro = slowscan_csv_read_options_default();
-    int st = slowscan_csv_read_table("data/stations.csv", &ro, t, &err);
-    CHECK(st == SLOWSCAN_OK, "data/stations.csv: %s", err.message);
-    return st == SLOWSCAN_OK;
 }
 
 static screen_input station(const series_table *t, size_t k)
@@ -113,7 +105,7 @@ static int check_cell(void *context, const robustness_cell *cell)
 static void grid_equals_screen(void)
 {
     series_table t;
-    if (!read_stations(&t))
+    if (!check_read_stations(&t))
         return;
     screen_config cfg = slowscan_screen_config_default();
     cfg.deseason = 364;
@@ -177,7 +169,7 @@ static int count_cells(void *context, const robustness_cell *cell)
 static void refusal_and_own_cell(void)
 {
     series_table t;
-    if (!read_stations(&t))
+    if (!check_read_stations(&t))
         return;
     screen_config cfg = slowscan_screen_config_default();
     cfg.surrogates = 0;
@@ -236,7 +228,7 @@ static void recovery_equals_command(void)
     char *json = check_read_file("tests/golden/recovery.json");
     char *project = check_read_file("tests/golden/recovery.project.csv");
     CHECK(json && project, "tests/golden/recovery.json, recovery.project.csv");
-    if (!json || !project || !read_stations(&t)) {
+    if (!json || !project || !check_read_stations(&t)) {
         free(json);
         free(project);
         return;
@@ -318,7 +310,7 @@ static void replicates_equal_command(void)
     series_table t;
     char *rows = check_read_file("tests/golden/surrogates.out");
     CHECK(rows != NULL, "tests/golden/surrogates.out");
-    if (!rows || !read_stations(&t)) {
+    if (!rows || !check_read_stations(&t)) {
         free(rows);
         return;
     }

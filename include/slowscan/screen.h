@@ -263,6 +263,23 @@ screen_workspace *slowscan_screen_workspace_alloc(size_t threads);
 SLOWSCAN_API
 void slowscan_screen_workspace_free(screen_workspace *ws);
 
+/* How far one series' surrogate null has got: `done` of `total` replicates drawn. */
+typedef struct {
+    const char *series; /* the series' name (borrowed for the call) */
+    size_t index;       /* the batch driver's series index (screen_batch.h); 0 otherwise */
+    size_t done, total; /* done rises in whole blocks of NULL_TREND_BLOCK to total */
+} screen_progress;
+/* Told of surrogates drawn, for a caller's progress display; it must not call back into the
+ * library with the same workspace. It only watches: the numbers are the same with or without. */
+typedef void (*screen_progress_fn)(void *context, const screen_progress *progress);
+/* Every later slowscan_screen_series / slowscan_screen_test_series with ws calls fn after
+ * each block of surrogates. With ws made for several threads the call may come from any of
+ * them, but never from two at once (the blocks' own lock is held), and done only rises.
+ * fn NULL: no calls. */
+SLOWSCAN_API
+void slowscan_screen_workspace_set_progress(screen_workspace *ws, screen_progress_fn fn,
+                                            void *context);
+
 /* Deseasons and detrends one series into *out (free with slowscan_screen_prepared_free, also after a
  * failure). Refusals: SLOWSCAN_EINVAL / ESHORT with *detail filled; SLOWSCAN_ENOMEM. */
 SLOWSCAN_API

@@ -60,6 +60,10 @@ typedef struct {
     int (*put)(void *state, const screen_batch_item *item);
     void *state;
     int keep_series; /* also hand on the prepared arrays and paths (costs their copy) */
+    /* Optional: surrogates drawn within a series not yet handed on (progress->index says
+     * which), after each block. Called from worker threads, but never from two at once nor
+     * during `put`, so it shares put's state without locking; it only watches. */
+    screen_progress_fn progress;
 } screen_sink;
 
 /* Why a run ended early: the series (by index and input) and the rule. */
