@@ -319,6 +319,7 @@ int cmd_demo(const cli_options *opts);
 int cmd_surrogates(const cli_options *opts);
 int cmd_robustness(const cli_options *opts);
 int cmd_recovery(const cli_options *opts);
+int cmd_merge(const cli_options *opts);
 
 /* inputs.c: a walk over every series of the inputs in order — CSV tables as read, NetCDF
  * grids a table of cells at a time, each made ready like a CSV table (cli_ready_table). */

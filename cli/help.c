@@ -15,7 +15,8 @@ static const char overview[] =
     "  robustness  the trend test over a grid of detrending x windows x bandwidths\n"
     "  recovery    recovery-rate path of an AR(1) with a drifting coefficient\n"
     "  surrogates  null-model replicates of each residual (series,replicate,time,value)\n"
-    "  demo        write the invented demo data set (lake stations) to data/ or --out DIR\n"
+    "  merge       one run's summary from the summaries of its parts (q-values over all)\n"
+    "  demo        write the invented demo data sets (lake stations, a coastal shelf grid)\n"
     "  help        this text, or 'slowscan help COMMAND'\n"
     "\n"
     "FILE is a CSV with a header row (comma, semicolon or tab; '#' lines are comments), or\n"
@@ -301,7 +302,21 @@ static void help_demo(FILE *out)
 {
     fputs("usage: slowscan demo [--out DIR] [--seed S]\n\n"
           "Writes DIR/stations.csv (default DIR: data): weekly turbidity at eight invented lake\n"
-          "stations, four of which drift toward a fold; see data/README.md.\n", out);
+          "stations, four of which drift toward a fold, and DIR/shelf.nc: 50 years of monthly\n"
+          "water clarity on an invented 8 x 10 coastal shelf grid (CF NetCDF, noleap, packed),\n"
+          "a bay of which drifts toward a fold; see data/README.md.\n", out);
+}
+
+static void help_merge(FILE *out)
+{
+    fputs("usage: slowscan merge [--fdr Q] [-o FILE] SUMMARY...\n\n"
+          "A field screened in parts (several jobs, each a share of the series, all with the\n"
+          "same options) as one run: the rows of the parts' summaries in the order given, the\n"
+          "q-values recomputed by Benjamini-Hochberg over every test of all parts and the\n"
+          "flags decided again with --fdr (default 0.05). A part's own q-values are not the\n"
+          "run's: the false discovery rate holds over all the tests only after the merge.\n"
+          "The parts must have the same columns (a file column when a part had several\n"
+          "inputs); every other field is kept as written.\n", out);
 }
 
 int cli_help(const char *topic, FILE *out)
@@ -315,7 +330,8 @@ int cli_help(const char *topic, FILE *out)
                   {"surrogates", help_surrogates},
                   {"robustness", help_robustness},
                   {"recovery", help_recovery},
-                  {"demo", help_demo}};
+                  {"demo", help_demo},
+                  {"merge", help_merge}};
     if (!topic) {
         fputs(overview, out);
         fputc('\n', out);

@@ -18,6 +18,7 @@ static const struct {
     {"recovery", cmd_recovery},
     {"surrogates", cmd_surrogates},
     {"demo", cmd_demo},
+    {"merge", cmd_merge},
 };
 
 int main(int argc, char **argv)

@@ -13,7 +13,7 @@
 #include <unistd.h>
 
 enum { C_DETREND = 1, C_INDICATORS = 2, C_SCREEN = 4, C_DEMO = 8, C_SURROGATES = 16, C_ROBUST = 32,
-       C_RECOVERY = 64 };
+       C_RECOVERY = 64, C_MERGE = 128 };
 #define C_SERIES (C_DETREND | C_INDICATORS | C_SCREEN | C_SURROGATES | C_ROBUST | C_RECOVERY)
 #define C_ROLLING (C_INDICATORS | C_SCREEN | C_ROBUST)
 #define C_TESTING (C_SCREEN | C_ROBUST | C_RECOVERY)
@@ -328,7 +328,7 @@ static const option_spec options[] = {
     {"--iaaft-tol", 1, C_TESTING | C_SURROGATES, set_iaaft_tol},
     {"--iaaft-iterations", 1, C_TESTING | C_SURROGATES, set_iaaft_iterations},
     {"--block-length", 1, C_TESTING | C_SURROGATES, set_block_length},
-    {"--fdr", 1, C_TESTING, set_fdr},
+    {"--fdr", 1, C_TESTING | C_MERGE, set_fdr},
     {"--alternative", 1, C_TESTING, set_alternative},
     {"--rolling", 1, C_SCREEN, set_rolling},
     {"--json", 1, C_SCREEN | C_RECOVERY, set_json},
@@ -344,7 +344,7 @@ static const option_spec options[] = {
     {"--format", 1, C_SCREEN, set_format},
     {"--figures", 1, C_TESTING, set_figures},
     {"--figure-format", 1, C_TESTING, set_figure_format},
-    {"-o", 1, C_SERIES, set_output},
+    {"-o", 1, C_SERIES | C_MERGE, set_output},
     {"--output", 1, C_SERIES, set_output},
     {"--progress", 0, C_SERIES, set_progress},
     {"--no-progress", 0, C_SERIES, set_progress},
@@ -357,8 +357,8 @@ static const option_spec options[] = {
 static int command_bit(const char *command)
 {
     static const char *names[] = {"detrend", "indicators", "screen", "demo", "surrogates",
-                                  "robustness", "recovery"};
-    for (int i = 0; i < 7; i++)
+                                  "robustness", "recovery", "merge"};
+    for (int i = 0; i < 8; i++)
         if (strcmp(command, names[i]) == 0)
             return 1 << i;
     return 0;

@@ -36,6 +36,7 @@ void suite_netcdf(void);
 void suite_maps(void);
 void suite_dated_cli(void);
 void suite_interrupt(void);
+void suite_merge(void);
 void suite_store(void);
 void suite_progress(void);
 
@@ -59,6 +60,7 @@ static const struct {
     {"time_column", suite_time_column}, {"netcdf", suite_netcdf},
     {"maps", suite_maps},
     {"dated_cli", suite_dated_cli},   {"interrupt", suite_interrupt},
+    {"merge", suite_merge},
 };
 
 int main(int argc, char **argv)
