@@ -97,6 +97,7 @@ typedef struct {
     int quiet;          /* --quiet: no warnings (errors still) */
     const char *out_dir; /* demo */
     int repeat_walk;     /* a second walk over the inputs (figures): its notices were given */
+    int resume;          /* screen --resume: journal finished series, take them back on rerun */
     unsigned long seed;
     long threads;
     /* positional */
@@ -371,6 +372,23 @@ int cli_set_missing(cli_options *o, const char *n, const char *v);
 /* signals.c: SIGTERM, SIGINT and SIGHUP remove every temporary output and exit with
  * 128 + the signal number. */
 void cli_handle_stops(void);
+/* What the stop's message ends with (a static text, e.g. that a journal is kept); NULL: the
+ * plain ending. */
+void cli_stop_note(const char *note);
+
+/* resume.c: screen --resume's journal beside the summary (FILE.journal). */
+typedef struct {
+    struct journal *journal; /* NULL without --resume */
+    char path[4200];
+    size_t replayed;         /* series the journal gave back */
+} cli_resume;
+int cli_resume_open(const cli_options *o,
+                    int (*replay)(void *context, const void *record, size_t size),
+                    void *context, cli_resume *r);
+int cli_resume_record(cli_resume *r, const void *record, size_t size);
+void cli_resume_close(cli_resume *r, int finished);
+/* Removes the temporaries a killed run left beside the outputs (before they are opened). */
+void cli_resume_clean(const cli_options *o);
 
 /* input_checks.c: reading options from the command's (CF units parsed on the calendar), the
  * --from/--until span on a table's axis, the grid (gaps or --resample), notices on what the

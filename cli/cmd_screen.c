@@ -52,8 +52,32 @@ static int store_failed(int status, const io_error *err)
 
 /* One record per series in the run's store (the figures read each test's null from the
  * quantiles of its result); warns about each insufficient test. */
-static int record_series(const prepared_series *ps, screen_run *run, const screen_result *res,
-                         const screen_origin *origin)
+/* Kept with a record: where the series came from, then the time unit of its window and
+ * bandwidth and its file. Returns the bytes used of extra[SCREEN_EXTRA]. */
+size_t cli_screen_extra(const prepared_series *ps, const screen_origin *origin, char *extra)
+{
+    memcpy(extra, origin, sizeof *origin);
+    char *text = extra + sizeof *origin;
+    size_t room = SCREEN_EXTRA - sizeof *origin;
+    size_t len = (size_t)snprintf(text, room, "%s%c%s", cli_time_unit(&ps->axis), 0, ps->source);
+    return sizeof *origin + (len < room ? len : room - 1) + 1;
+}
+
+int cli_screen_keep(screen_run *run, const char *name, const screen_result *res,
+                    const char *extra, size_t size)
+{
+    /* the table's first column: FILE:SERIES when there are several inputs */
+    const char *source = extra + sizeof(screen_origin);
+    source += strlen(source) + 1;
+    int width = (int)strlen(name) + (run->several ? (int)strlen(source) + 1 : 0);
+    if (res->ntests > 0 && width > run->name_width)
+        run->name_width = width;
+    io_error err = {{0}};
+    int st = slowscan_screen_store_add(run->store, name, res, extra, size, &err);
+    return st == SLOWSCAN_OK ? EXIT_OK : store_failed(st, &err);
+}
+
+static void warn_insufficient(const prepared_series *ps, const screen_result *res)
 {
     for (size_t j = 0; j < res->ntests; j++) {
         const screen_test *t = &res->tests[j];
@@ -61,21 +85,6 @@ static int record_series(const prepared_series *ps, screen_run *run, const scree
         if (isnan(t->statistic) && !ps->constant)
             cli_screen_insufficient(ps, t);
     }
-    /* the table's first column: FILE:SERIES when there are several inputs */
-    int width = (int)strlen(ps->name) + (run->several ? (int)strlen(ps->source) + 1 : 0);
-    if (res->ntests > 0 && width > run->name_width)
-        run->name_width = width;
-    io_error err = {{0}};
-    /* kept with the record: where the series came from, then the time unit of its window
-     * and bandwidth and its file */
-    char extra[1024];
-    memcpy(extra, origin, sizeof *origin);
-    char *text = extra + sizeof *origin;
-    size_t room = sizeof extra - sizeof *origin;
-    size_t len = (size_t)snprintf(text, room, "%s%c%s", cli_time_unit(&ps->axis), 0, ps->source);
-    int st = slowscan_screen_store_add(run->store, ps->name, res, extra,
-                                       sizeof *origin + (len < room ? len : room - 1) + 1, &err);
-    return st == SLOWSCAN_OK ? EXIT_OK : store_failed(st, &err);
 }
 
 size_t cli_screen_series_rows(screen_run *run, size_t k, screen_row *rows, int *rc)
@@ -128,6 +137,7 @@ typedef struct {
     screen_input *controls; /* one per series with --null control (borrowed arrays) */
     series_copy *copies;    /* one per series of a grid, freed on release */
     screen_origin *origins; /* one per series: where it came from */
+    size_t skip;            /* series the journal gave back: skipped */
     int rc;                 /* the cursor's own failure (its message printed) */
 } input_source;
 
@@ -162,6 +172,8 @@ static int next_series(void *state, size_t index, screen_input *out, screen_deta
     const series_table *t;
     size_t k;
     int rc = cli_cursor_next(&src->cursor, &t, &k);
+    for (; rc == EXIT_OK && src->skip > 0; src->skip--)
+        rc = cli_cursor_next(&src->cursor, &t, &k);
     if (rc == CLI_CURSOR_END)
         return SCREEN_BATCH_END;
     if (rc != EXIT_OK) {
@@ -210,9 +222,25 @@ static int put_series(void *state, const screen_batch_item *item)
     const screen_result *res = item->result;
     for (size_t w = 0; w < res->nwarnings; w++)
         cli_screen_warn(sink->opts, ps, &res->warnings[w]);
-    if (sink->run->rolling)
-        cli_write_rolling(sink->run->rolling, sink->opts, ps, (double *const *)item->paths);
-    sink->rc = record_series(ps, sink->run, res, &sink->origins[item->index]);
+    warn_insufficient(ps, res);
+    /* with --resume the rolling rows are journaled too: written to memory first */
+    char *rows = NULL;
+    size_t nrows = 0;
+    FILE *rolling = sink->run->rolling;
+    if (rolling && sink->run->resume.journal && !(rolling = open_memstream(&rows, &nrows)))
+        return SLOWSCAN_ENOMEM;
+    if (rolling)
+        cli_write_rolling(rolling, sink->opts, ps, (double *const *)item->paths);
+    if (rolling && rolling != sink->run->rolling) {
+        fclose(rolling);
+        fwrite(rows, 1, nrows, sink->run->rolling);
+    }
+    char extra[SCREEN_EXTRA];
+    size_t size = cli_screen_extra(ps, &sink->origins[item->index], extra);
+    sink->rc = cli_screen_keep(sink->run, ps->name, res, extra, size);
+    if (sink->rc == EXIT_OK)
+        sink->rc = cli_screen_journal(sink->run, ps->name, res, extra, size, rows, nrows);
+    free(rows);
     if (sink->rc != EXIT_OK)
         return SLOWSCAN_ENOMEM;
     cli_tally_leakage(&sink->leakage, ps->source, ps->name, &res->leakage, res->leakage_tested);
@@ -241,6 +269,25 @@ static int refuse(const cli_options *opts, const screen_batch_failure *f, const 
 
 /* Every series through the library's batch driver: threads over whole series, or over one
  * series' surrogates when series are fewer than threads; results in input order. */
+/* A series taken from the journal (--resume): to the outputs as if just computed. */
+static int replay_series(void *state, const void *record, size_t size)
+{
+    ordered_sink *sink = state;
+    journaled j;
+    if (cli_screen_unjournal(record, size, &j) != EXIT_OK)
+        return SLOWSCAN_EINVAL;
+    if (cli_screen_keep(sink->run, j.name, &j.result, j.extra, j.extra_size) != EXIT_OK)
+        return SLOWSCAN_ENOMEM;
+    if (sink->run->rolling)
+        fwrite(j.rows, 1, j.rows_size, sink->run->rolling);
+    const char *source = j.extra + sizeof(screen_origin);
+    source += strlen(source) + 1;
+    cli_tally_leakage(&sink->leakage, source, j.name, &j.result.leakage,
+                      j.result.leakage_tested);
+    cli_progress_series_done(&sink->progress);
+    return SLOWSCAN_OK;
+}
+
 static int run_series(const cli_options *opts, const cli_inputs *in, void *context)
 {
     screen_run *run = context;
@@ -259,12 +306,18 @@ static int run_series(const cli_options *opts, const cli_inputs *in, void *conte
         cli_error("out of memory");
         return EXIT_INTERNAL;
     }
-    screen_source source = {next_series, release_series, sink.total, &src};
+    cli_progress_start(&sink.progress, opts, sink.total);
+    int resumed = cli_resume_open(opts, replay_series, &sink, &run->resume);
+    if (resumed != EXIT_OK) {
+        free(src.origins), free(src.controls), free(src.copies);
+        return resumed;
+    }
+    src.skip = run->resume.replayed; /* the journal's series come first, in order */
+    screen_source source = {next_series, release_series, sink.total - src.skip, &src};
     /* Only --rolling needs the paths handed on: the figures read the null's quantiles from
      * the results and prepare the series again once the q-values exist. */
     screen_sink ordered = {.put = put_series, .state = &sink, .keep_series = run->rolling != NULL,
                            .progress = opts->progress > 0 ? series_progress : NULL};
-    cli_progress_start(&sink.progress, opts, sink.total);
     screen_batch_failure failure;
     int st = slowscan_screen_batch_run(&run->cfg, &source, &ordered, &failure);
     int rc = st == SLOWSCAN_OK ? EXIT_OK : src.rc != EXIT_OK ? src.rc : refuse(opts, &failure, &sink);
@@ -276,6 +329,21 @@ static int run_series(const cli_options *opts, const cli_inputs *in, void *conte
     free(src.origins);
     free(src.controls);
     free(src.copies);
+    return rc;
+}
+
+int cli_screen_journal(screen_run *run, const char *name, const screen_result *res,
+                       const char *extra, size_t extra_size, const char *rows, size_t rows_size)
+{
+    if (!run->resume.journal)
+        return EXIT_OK;
+    void *record;
+    size_t size;
+    if (cli_screen_encode(name, res, extra, extra_size, rows, rows_size, &record, &size) !=
+        EXIT_OK)
+        return EXIT_INTERNAL;
+    int rc = cli_resume_record(&run->resume, record, size);
+    free(record);
     return rc;
 }
 
@@ -376,7 +444,10 @@ int cmd_screen(const cli_options *opts)
     if (opts->surrogates > 0 && opts->surrogates < 19)
         cli_warning("option --surrogates %ld: with fewer than 19 surrogates no p-value can reach "
                     "0.05 (the smallest is 1/(M+1))", opts->surrogates);
+    cli_resume_clean(opts);
     int rc = cli_run_series_command(opts, &cmd);
+    /* the journal goes once the outputs are in place; a failed run keeps it */
+    cli_resume_close(&run.resume, rc == EXIT_OK);
     slowscan_screen_store_free(run.store);
     return rc;
 }

@@ -188,7 +188,12 @@ static void help_screen(FILE *out)
           "                       recovery_trend), p, q and the flag on the grid's other\n"
           "                       dimensions, coordinates copied, CF attributes; cells not\n"
           "                       analysed (all missing) are _FillValue\n"
-          "  --format csv|table   summary as CSV (default) or as an aligned table\n", out);
+          "  --format csv|table   summary as CSV (default) or as an aligned table\n"
+          "  --resume             journal each finished series beside the summary\n"
+          "                       (-o FILE gives FILE.journal); run the same command again\n"
+          "                       after a kill and the journaled series are taken back, the\n"
+          "                       rest computed: the outputs of an uninterrupted run. The\n"
+          "                       journal is removed once the outputs are in place\n", out);
     fputs(figure_options, out);
     fputs("                       screen-SERIES: the record and its trend (first window\n"
           "                       shaded), the indicators standardised on one panel, and a\n"

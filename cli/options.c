@@ -29,6 +29,7 @@ typedef struct {
 
 static int set_time(cli_options *o, const char *n, const char *v) { (void)n; o->time_column = v; return EXIT_OK; }
 static int set_vars(cli_options *o, const char *n, const char *v) { (void)n; o->vars = v; return EXIT_OK; }
+static int set_resume(cli_options *o, const char *n, const char *v) { (void)n; (void)v; o->resume = 1; return EXIT_OK; }
 static int set_select(cli_options *o, const char *n, const char *v) { (void)n; o->select = v; return EXIT_OK; }
 static int set_resample(cli_options *o, const char *n, const char *v) { return cli_parse_positive(n, v, &o->resample); }
 static int set_deseason(cli_options *o, const char *n, const char *v) { return cli_parse_positive(n, v, &o->deseason); }
@@ -307,6 +308,7 @@ static const option_spec options[] = {
     {"--resample", 1, C_SERIES, set_resample},
     {"--max-gap", 1, C_SERIES, cli_set_max_gap},
     {"--select", 1, C_SERIES, set_select},
+    {"--resume", 0, C_SCREEN, set_resume},
     {"--calendar", 1, C_SERIES, cli_set_calendar},
     {"--time-format", 1, C_SERIES, cli_set_time_format},
     {"--time-units", 1, C_SERIES, cli_set_time_units},

@@ -15,6 +15,13 @@ static void say(const char *text)
     (void)ignored;
 }
 
+static const char *volatile stop_note;
+
+void cli_stop_note(const char *note)
+{
+    stop_note = note;
+}
+
 static void on_stop(int sig)
 {
     slowscan_atomic_remove_temporaries();
@@ -23,7 +30,9 @@ static void on_stop(int sig)
     say(sig == SIGTERM  ? "slowscan: stopped by SIGTERM"
         : sig == SIGINT ? "slowscan: stopped by SIGINT"
                         : "slowscan: stopped by SIGHUP");
-    say("; no output was written and its temporary files are removed\n");
+    say("; no output was written and its temporary files are removed");
+    const char *note = stop_note;
+    say(note ? note : "\n");
     _exit(128 + sig);
 }
 

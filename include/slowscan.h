@@ -19,6 +19,7 @@
 #include "slowscan/time_units.h"
 #include "slowscan/io.h"
 #include "slowscan/netcdf_input.h"
+#include "slowscan/journal.h"
 #include "slowscan/screen.h"
 #include "slowscan/screen_batch.h"
 #include "slowscan/robustness.h"

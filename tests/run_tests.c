@@ -37,6 +37,7 @@ void suite_maps(void);
 void suite_dated_cli(void);
 void suite_interrupt(void);
 void suite_merge(void);
+void suite_resume(void);
 void suite_store(void);
 void suite_progress(void);
 
@@ -60,7 +61,7 @@ static const struct {
     {"time_column", suite_time_column}, {"netcdf", suite_netcdf},
     {"maps", suite_maps},
     {"dated_cli", suite_dated_cli},   {"interrupt", suite_interrupt},
-    {"merge", suite_merge},
+    {"merge", suite_merge},           {"resume", suite_resume},
 };
 
 int main(int argc, char **argv)
