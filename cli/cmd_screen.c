@@ -6,6 +6,7 @@
  * file only turns the results into rows, messages and outputs. */
 #include "cli.h"
 #include "screen.h"
+#include "share.h"
 #include "slowscan/screen_batch.h"
 #include "slowscan/significance.h"
 #include "slowscan/status.h"
@@ -39,6 +40,16 @@ static double rolling_window(const screen_result *res, size_t j)
     return slowscan_screen_test_rolling(res->tests[j].kind) ? res->window : NAN;
 }
 
+/* Series kept in memory before the store spills to a temporary file; the suites set
+ * SLOWSCAN_SPILL_AFTER to make small runs spill (not a user setting). */
+static size_t spill_after(void)
+{
+    const char *text = getenv("SLOWSCAN_SPILL_AFTER");
+    char *end;
+    unsigned long v = text ? strtoul(text, &end, 10) : 0;
+    return text && *text && !*end ? (size_t)v : SCREEN_STORE_SPILL_AFTER;
+}
+
 /* The results of many series wait for the q-values in a temporary file in $TMPDIR. */
 static int store_failed(int status, const io_error *err)
 {
@@ -50,32 +61,85 @@ static int store_failed(int status, const io_error *err)
     return EXIT_BAD_INPUT;
 }
 
-/* One record per series in the run's store (the figures read each test's null from the
- * quantiles of its result); warns about each insufficient test. */
-static int record_series(const prepared_series *ps, screen_run *run, const screen_result *res,
-                         const screen_origin *origin)
+/* One screened series as plain data: what the store and the messages need of it, accepted at
+ * once by a lone process, or first sent to process 0 of a shared run (share.h). The name (with
+ * its NUL) and the store's extra block follow the head. */
+typedef struct {
+    screen_result result;
+    screen_variation constant;
+    size_t name_size, extra_size;
+} series_record;
+
+/* The record of a series into *buf (grown as needed); its size, or 0 when out of memory. The
+ * store's extra block: where the series came from, then the time unit of its window and
+ * bandwidth and its file. */
+static size_t make_record(const prepared_series *ps, const screen_result *res,
+                          const screen_origin *origin, void **buf, size_t *cap)
 {
-    for (size_t j = 0; j < res->ntests; j++) {
-        const screen_test *t = &res->tests[j];
-        /* a constant series was warned about when its paths were made */
-        if (isnan(t->statistic) && !ps->constant)
-            cli_screen_insufficient(ps, t);
-    }
-    /* the table's first column: FILE:SERIES when there are several inputs */
-    int width = (int)strlen(ps->name) + (run->several ? (int)strlen(ps->source) + 1 : 0);
-    if (res->ntests > 0 && width > run->name_width)
-        run->name_width = width;
-    io_error err = {{0}};
-    /* kept with the record: where the series came from, then the time unit of its window
-     * and bandwidth and its file */
     char extra[1024];
     memcpy(extra, origin, sizeof *origin);
     char *text = extra + sizeof *origin;
     size_t room = sizeof extra - sizeof *origin;
     size_t len = (size_t)snprintf(text, room, "%s%c%s", cli_time_unit(&ps->axis), 0, ps->source);
-    int st = slowscan_screen_store_add(run->store, ps->name, res, extra,
-                                       sizeof *origin + (len < room ? len : room - 1) + 1, &err);
-    return st == SLOWSCAN_OK ? EXIT_OK : store_failed(st, &err);
+    series_record head = {.result = *res, .constant = ps->constant,
+                          .name_size = strlen(ps->name) + 1,
+                          .extra_size = sizeof *origin + (len < room ? len : room - 1) + 1};
+    size_t size = sizeof head + head.name_size + head.extra_size;
+    if (cli_share_room(buf, cap, size) != EXIT_OK)
+        return 0;
+    char *out = *buf;
+    memcpy(out, &head, sizeof head);
+    memcpy(out + sizeof head, ps->name, head.name_size);
+    memcpy(out + sizeof head + head.name_size, extra, head.extra_size);
+    return size;
+}
+
+/* Each series in input order: its warnings, rows, leakage and progress. */
+typedef struct {
+    const cli_options *opts;
+    screen_run *run;
+    const screen_origin *origins; /* the source's, by series index */
+    cli_leakage_tally leakage;
+    size_t done, total;
+    record_spill *shared; /* a shared run: this process's records, gathered after its share */
+    void *record;         /* the record being made */
+    size_t record_cap;
+    int rc; /* the exit code of a failed sink */
+} ordered_sink;
+
+/* A record into the run's store (the figures read each test's null from the quantiles of its
+ * result), with the series' warnings and each insufficient test's. */
+static int accept_record(const void *data, size_t size, void *context)
+{
+    (void)size;
+    ordered_sink *sink = context;
+    screen_run *run = sink->run;
+    series_record head;
+    memcpy(&head, data, sizeof head);
+    const screen_result *res = &head.result;
+    const char *name = (const char *)data + sizeof head;
+    const char *extra = name + head.name_size, *unit = extra + sizeof(screen_origin);
+    prepared_series ps = {.name = name, .source = unit + strlen(unit) + 1,
+                          .constant = head.constant};
+    for (size_t w = 0; w < res->nwarnings; w++)
+        cli_screen_warn(sink->opts, &ps, &res->warnings[w]);
+    for (size_t j = 0; j < res->ntests; j++) {
+        const screen_test *t = &res->tests[j];
+        /* a constant series was warned about when its paths were made */
+        if (isnan(t->statistic) && !ps.constant)
+            cli_screen_insufficient(&ps, t);
+    }
+    /* the table's first column: FILE:SERIES when there are several inputs */
+    int width = (int)strlen(ps.name) + (run->several ? (int)strlen(ps.source) + 1 : 0);
+    if (res->ntests > 0 && width > run->name_width)
+        run->name_width = width;
+    io_error err = {{0}};
+    int st = slowscan_screen_store_add(run->store, name, res, extra, head.extra_size, &err);
+    if (st != SLOWSCAN_OK)
+        return store_failed(st, &err);
+    cli_tally_leakage(&sink->leakage, ps.source, ps.name, &res->leakage, res->leakage_tested);
+    cli_progress(sink->opts, sink->opts->command, ++sink->done, sink->total);
+    return EXIT_OK;
 }
 
 size_t cli_screen_series_rows(screen_run *run, size_t k, screen_row *rows, int *rc)
@@ -128,6 +192,8 @@ typedef struct {
     screen_input *controls; /* one per series with --null control (borrowed arrays) */
     series_copy *copies;    /* one per series of a grid, freed on release */
     screen_origin *origins; /* one per series: where it came from */
+    size_t rank, ranks;     /* a shared run: this process takes series i with i mod ranks = rank */
+    size_t walked;          /* series of the inputs walked so far */
     int rc;                 /* the cursor's own failure (its message printed) */
 } input_source;
 
@@ -161,7 +227,10 @@ static int next_series(void *state, size_t index, screen_input *out, screen_deta
     input_source *src = state;
     const series_table *t;
     size_t k;
-    int rc = cli_cursor_next(&src->cursor, &t, &k);
+    int rc;
+    do /* the series of other processes are skipped, unread by the workers */
+        rc = cli_cursor_next(&src->cursor, &t, &k);
+    while (rc == EXIT_OK && src->walked++ % src->ranks != src->rank);
     if (rc == CLI_CURSOR_END)
         return SCREEN_BATCH_END;
     if (rc != EXIT_OK) {
@@ -192,31 +261,25 @@ static int next_series(void *state, size_t index, screen_input *out, screen_deta
     return SLOWSCAN_OK;
 }
 
-/* Each series in input order: its warnings, rolling paths, rows, leakage and progress. */
-typedef struct {
-    const cli_options *opts;
-    screen_run *run;
-    const screen_origin *origins; /* the source's, by series index */
-    cli_leakage_tally leakage;
-    size_t done, total;
-    int rc; /* the exit code of a failed sink */
-} ordered_sink;
-
 static int put_series(void *state, const screen_batch_item *item)
 {
     ordered_sink *sink = state;
     const prepared_series *ps = item->prepared;
-    const screen_result *res = item->result;
-    for (size_t w = 0; w < res->nwarnings; w++)
-        cli_screen_warn(sink->opts, ps, &res->warnings[w]);
     if (sink->run->rolling)
         cli_write_rolling(sink->run->rolling, sink->opts, ps, (double *const *)item->paths);
-    sink->rc = record_series(ps, sink->run, res, &sink->origins[item->index]);
-    if (sink->rc != EXIT_OK)
-        return SLOWSCAN_ENOMEM;
-    cli_tally_leakage(&sink->leakage, ps->source, ps->name, &res->leakage, res->leakage_tested);
-    cli_progress(sink->opts, sink->opts->command, ++sink->done, sink->total);
-    return SLOWSCAN_OK;
+    size_t size = make_record(ps, item->result, &sink->origins[item->index], &sink->record,
+                              &sink->record_cap);
+    io_error err = {{0}};
+    if (size == 0) {
+        cli_error("out of memory");
+        sink->rc = EXIT_INTERNAL;
+    } else if (sink->shared) {
+        int st = slowscan_spill_append(sink->shared, sink->record, size, &err);
+        sink->rc = st == SLOWSCAN_OK ? EXIT_OK : store_failed(st, &err);
+    } else {
+        sink->rc = accept_record(sink->record, size, sink);
+    }
+    return sink->rc == EXIT_OK ? SLOWSCAN_OK : SLOWSCAN_ENOMEM;
 }
 
 /* The failure that ended a run, in the words of the per-series commands. */
@@ -231,34 +294,72 @@ static int refuse(const cli_options *opts, const screen_batch_failure *f, const 
     return cli_screen_refuse(opts, &f->prepared, &f->detail);
 }
 
-/* Every series through the library's batch driver: threads over whole series, or over one
- * series' surrogates when series are fewer than threads; results in input order. */
+/* Every series of this process through the library's batch driver: threads over whole
+ * series, or over one series' surrogates when series are fewer than threads; results in
+ * input order. */
+static int screen_share(const cli_options *opts, const cli_inputs *in, ordered_sink *sink,
+                        input_source *src)
+{
+    int grids = 0;
+    for (size_t f = 0; f < in->ntables; f++)
+        grids |= in->grid_cells[f] > 0;
+    size_t all = sink->total;
+    sink->origins = src->origins = calloc(all + 1, sizeof *src->origins);
+    if (!src->origins ||
+        (in->has_control && !(src->controls = calloc(all + 1, sizeof *src->controls))) ||
+        (grids && !(src->copies = calloc(all + 1, sizeof *src->copies)))) {
+        cli_error("out of memory");
+        return EXIT_INTERNAL;
+    }
+    /* this process's series: every ranks-th from its own rank */
+    size_t mine = all / src->ranks + (src->rank < all % src->ranks);
+    screen_source source = {next_series, release_series, mine, src};
+    /* Only --rolling needs the paths handed on: the figures read the null's quantiles from
+     * the results and prepare the series again once the q-values exist. */
+    screen_sink ordered = {put_series, sink, sink->run->rolling != NULL};
+    screen_batch_failure failure;
+    int st = slowscan_screen_batch_run(&sink->run->cfg, &source, &ordered, &failure);
+    return st == SLOWSCAN_OK ? EXIT_OK : src->rc != EXIT_OK ? src->rc : refuse(opts, &failure, sink);
+}
+
+/* A run shared by several processes: each screens its share, its messages held back; then
+ * process 0 takes every record in input order (the others send theirs). */
+static int screen_shared(const cli_options *opts, const cli_inputs *in, ordered_sink *sink,
+                         input_source *src, const cli_share *share)
+{
+    io_error err = {{0}};
+    if (!(sink->shared = slowscan_spill_alloc(spill_after(), NULL)))
+        return store_failed(SLOWSCAN_ENOMEM, &err);
+    src->rank = share->rank, src->ranks = share->ranks;
+    char *text = NULL;
+    size_t len = 0;
+    FILE *held = open_memstream(&text, &len);
+    FILE *before = held ? cli_messages_to(held) : NULL;
+    int rc = screen_share(opts, in, sink, src);
+    if (held) {
+        cli_messages_to(before);
+        fclose(held);
+    }
+    /* what process 0 said of the inputs while it walked them (a grid's notices) comes first;
+     * a failure's words wait for their place in input order */
+    if (rc == EXIT_OK && share->rank == 0 && text)
+        fputs(text, stderr);
+    share_outcome mine = {slowscan_spill_count(sink->shared), rc, text};
+    rc = cli_share_gather(share, sink->shared, &mine, accept_record, sink);
+    free(text);
+    slowscan_spill_free(sink->shared);
+    return rc;
+}
+
 static int run_series(const cli_options *opts, const cli_inputs *in, void *context)
 {
     screen_run *run = context;
     ordered_sink sink = {.opts = opts, .run = run, .total = cli_inputs_series_count(in)};
-    input_source src = {.controls = NULL, .copies = NULL, .rc = EXIT_OK};
+    input_source src = {.ranks = 1, .rc = EXIT_OK};
     cli_cursor_start(&src.cursor, opts, in);
-    int grids = 0;
-    for (size_t f = 0; f < in->ntables; f++)
-        grids |= in->grid_cells[f] > 0;
-    sink.origins = src.origins = calloc(sink.total + 1, sizeof *src.origins);
-    if (!src.origins ||
-        (in->has_control && !(src.controls = calloc(sink.total + 1, sizeof *src.controls))) ||
-        (grids && !(src.copies = calloc(sink.total + 1, sizeof *src.copies)))) {
-        free(src.origins);
-        free(src.controls);
-        cli_error("out of memory");
-        return EXIT_INTERNAL;
-    }
-    screen_source source = {next_series, release_series, sink.total, &src};
-    /* Only --rolling needs the paths handed on: the figures read the null's quantiles from
-     * the results and prepare the series again once the q-values exist. */
-    screen_sink ordered = {put_series, &sink, run->rolling != NULL};
-    screen_batch_failure failure;
-    int st = slowscan_screen_batch_run(&run->cfg, &source, &ordered, &failure);
-    int rc = st == SLOWSCAN_OK ? EXIT_OK : src.rc != EXIT_OK ? src.rc : refuse(opts, &failure, &sink);
-    if (rc == EXIT_OK)
+    const cli_share *share = cli_share_get();
+    int rc = share ? screen_shared(opts, in, &sink, &src, share) : screen_share(opts, in, &sink, &src);
+    if (rc == EXIT_OK && (!share || share->rank == 0))
         cli_report_leakage(opts, &sink.leakage);
     for (size_t i = 0; src.copies && i <= sink.total; i++)
         release_series(&src, i);
@@ -266,6 +367,7 @@ static int run_series(const cli_options *opts, const cli_inputs *in, void *conte
     free(src.origins);
     free(src.controls);
     free(src.copies);
+    free(sink.record);
     return rc;
 }
 
@@ -343,18 +445,13 @@ static int finish(const cli_options *opts, void *context)
     return rc == EXIT_OK ? write_summary(opts, run) : rc;
 }
 
-/* Series kept in memory before the store spills to a temporary file; the suites set
- * SLOWSCAN_SPILL_AFTER to make small runs spill (not a user setting). */
-static size_t spill_after(void)
-{
-    const char *text = getenv("SLOWSCAN_SPILL_AFTER");
-    char *end;
-    unsigned long v = text ? strtoul(text, &end, 10) : 0;
-    return text && *text && !*end ? (size_t)v : SCREEN_STORE_SPILL_AFTER;
-}
-
 int cmd_screen(const cli_options *opts)
 {
+    if (cli_share_get() && opts->rolling_output) {
+        cli_error("option --rolling: not available when the run is shared by several processes "
+                  "(mpirun -np K with K > 1); write the rolling paths with one process");
+        return EXIT_BAD_INPUT;
+    }
     screen_run run = {0};
     run.several = cli_several_inputs(opts);
     cli_screen_config(opts, &run.cfg);

@@ -1,6 +1,7 @@
 /* Option parsing: one table names every option, the commands that take it and the function
  * that stores its value, so each command accepts exactly its own options. */
 #include "cli.h"
+#include "share.h"
 #include "slowscan/status.h"
 #include "slowscan/surrogates.h"
 
@@ -475,11 +476,22 @@ void cli_options_free(cli_options *o)
     o->files = NULL;
 }
 
+/* Where messages go: stderr, unless a process of a shared run holds them back (share.h). */
+static FILE *message_target;
+
+FILE *cli_messages_to(FILE *fp)
+{
+    FILE *previous = message_target;
+    message_target = fp;
+    return previous;
+}
+
 static void vreport(const char *kind, const char *fmt, va_list ap)
 {
-    fprintf(stderr, "slowscan: %s", kind);
-    vfprintf(stderr, fmt, ap);
-    fputc('\n', stderr);
+    FILE *fp = message_target ? message_target : stderr;
+    fprintf(fp, "slowscan: %s", kind);
+    vfprintf(fp, fmt, ap);
+    fputc('\n', fp);
 }
 
 void cli_error(const char *fmt, ...)
