@@ -37,6 +37,7 @@ void suite_maps(void);
 void suite_dated_cli(void);
 void suite_interrupt(void);
 void suite_store(void);
+void suite_mpi(void);
 
 static const struct {
     const char *name;
@@ -58,6 +59,7 @@ static const struct {
     {"time_column", suite_time_column}, {"netcdf", suite_netcdf},
     {"maps", suite_maps},
     {"dated_cli", suite_dated_cli},   {"interrupt", suite_interrupt},
+    {"mpi", suite_mpi},
 };
 
 int main(int argc, char **argv)
