@@ -347,6 +347,8 @@ int cli_set_missing(cli_options *o, const char *n, const char *v);
 /* signals.c: SIGTERM, SIGINT and SIGHUP remove every temporary output and exit with
  * 128 + the signal number. */
 void cli_handle_stops(void);
+/* The stop says nothing (the processes of a shared run other than process 0). */
+void cli_stops_quiet(void);
 
 /* input_checks.c: reading options from the command's (CF units parsed on the calendar), the
  * --from/--until span on a table's axis, the grid (gaps or --resample), notices on what the

@@ -62,6 +62,7 @@ static void silence(void)
     nowhere = fopen("/dev/null", "w");
     if (nowhere)
         cli_messages_to(nowhere);
+    cli_stops_quiet();
     if (!freopen("/dev/null", "w", stdout))
         fclose(stdout);
 }
