@@ -64,14 +64,15 @@ STATIC_LIBS := $(B)/libslowscan-report.a $(B)/libslowscan.a
 SHARED_LIBS := $(B)/libslowscan.so $(B)/libslowscan-report.so
 all: $(B)/slowscan $(STATIC_LIBS) $(SHARED_LIBS)
 
-# MPI: with MPI=1 `make` builds slowscan-mpi too; `make check` builds it whenever mpicc exists.
+# MPI: with MPI=1 `make` builds slowscan-mpi too; `make check` builds it whenever mpicc exists
+# (looked up when its recipe runs, after deps may have installed it).
 MPICC ?= mpicc
 MPI_OBJ := $(MPI_CLI_SRC:%.c=$(B)/mpi/%.o) $(filter-out $(B)/obj/cli/entry.o,$(CLI_OBJ))
-HAVE_MPICC := $(shell command -v $(MPICC) >/dev/null 2>&1 && echo yes)
+HAVE_MPICC = $(shell command -v $(MPICC) >/dev/null 2>&1 && echo yes)
 ifeq ($(MPI),1)
 all: $(B)/slowscan-mpi
 endif
-CHECK_MPI := $(if $(HAVE_MPICC),$(B)/slowscan-mpi)
+CHECK_MPI = $(if $(HAVE_MPICC),$(B)/slowscan-mpi)
 
 $(B)/mpi/%.o: %.c
 	@mkdir -p $(dir $@)

@@ -327,15 +327,16 @@ static int screen_share(const cli_options *opts, const cli_inputs *in, ordered_s
 static int screen_shared(const cli_options *opts, const cli_inputs *in, ordered_sink *sink,
                          input_source *src, const cli_share *share)
 {
-    io_error err = {{0}};
-    if (!(sink->shared = slowscan_spill_alloc(spill_after(), NULL)))
-        return store_failed(SLOWSCAN_ENOMEM, &err);
     src->rank = share->rank, src->ranks = share->ranks;
     char *text = NULL;
     size_t len = 0;
     FILE *held = open_memstream(&text, &len);
     FILE *before = held ? cli_messages_to(held) : NULL;
-    int rc = screen_share(opts, in, sink, src);
+    io_error err = {{0}};
+    /* even a process that cannot start ends its stream, so that process 0 waits for nothing */
+    int rc = (sink->shared = slowscan_spill_alloc(spill_after(), NULL))
+                 ? screen_share(opts, in, sink, src)
+                 : store_failed(SLOWSCAN_ENOMEM, &err);
     if (held) {
         cli_messages_to(before);
         fclose(held);
@@ -344,7 +345,7 @@ static int screen_shared(const cli_options *opts, const cli_inputs *in, ordered_
      * a failure's words wait for their place in input order */
     if (rc == EXIT_OK && share->rank == 0 && text)
         fputs(text, stderr);
-    share_outcome mine = {slowscan_spill_count(sink->shared), rc, text};
+    share_outcome mine = {sink->shared ? slowscan_spill_count(sink->shared) : 0, rc, text};
     rc = cli_share_gather(share, sink->shared, &mine, accept_record, sink);
     free(text);
     slowscan_spill_free(sink->shared);
