@@ -111,11 +111,16 @@ typedef struct {
  * result), with the series' warnings and each insufficient test's. */
 static int accept_record(const void *data, size_t size, void *context)
 {
-    (void)size;
     ordered_sink *sink = context;
     screen_run *run = sink->run;
     series_record head;
-    memcpy(&head, data, sizeof head);
+    if (size >= sizeof head)
+        memcpy(&head, data, sizeof head);
+    if (size < sizeof head || size != sizeof head + head.name_size + head.extra_size ||
+        head.extra_size <= sizeof(screen_origin)) { /* every process runs the same binary */
+        cli_error("a series' record arrived damaged (%zu bytes)", size);
+        return EXIT_INTERNAL;
+    }
     const screen_result *res = &head.result;
     const char *name = (const char *)data + sizeof head;
     const char *extra = name + head.name_size, *unit = extra + sizeof(screen_origin);
