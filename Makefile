@@ -1,6 +1,8 @@
 # slowscan — build, test, demo, bench, install.
 #   make            build/slowscan, the core library (build/libslowscan.a, .so) and the
 #                   figure/demo library (build/libslowscan-report.a, .so)
+#   make MPI=1      also build/slowscan-mpi, screen shared by the processes of mpirun
+#                   (OpenMPI's mpicc; nothing else needs MPI)
 #   make check      the test suite, plain and under AddressSanitizer + UBSan
 #   make demo       screen the bundled demo data, draw its figures (demo-output/), print the table
 #   make bench      speed ratios, measured in one run
@@ -33,7 +35,9 @@ REPORT_DIRS := report data
 CORE_SRC  := $(foreach d,$(CORE_DIRS),$(wildcard $(d)/*.c))
 REPORT_SRC := $(foreach d,$(REPORT_DIRS),$(wildcard $(d)/*.c))
 LIB_SRC   := $(CORE_SRC) $(REPORT_SRC)
-CLI_SRC   := $(wildcard cli/*.c)
+# cli/mpi_*.c are slowscan-mpi's alone (compiled with mpicc); cli/entry.c is the plain main.
+MPI_CLI_SRC := $(wildcard cli/mpi_*.c)
+CLI_SRC   := $(filter-out $(MPI_CLI_SRC),$(wildcard cli/*.c))
 TEST_SRC  := $(wildcard tests/*.c)
 BENCH_SRC := $(wildcard bench/*.c)
 # Sources shared by benchmark programs (each bench/*.c is its own program).
@@ -59,6 +63,23 @@ BENCH_BIN := $(BENCH_SRC:bench/%.c=$(B)/bench/%)
 STATIC_LIBS := $(B)/libslowscan-report.a $(B)/libslowscan.a
 SHARED_LIBS := $(B)/libslowscan.so $(B)/libslowscan-report.so
 all: $(B)/slowscan $(STATIC_LIBS) $(SHARED_LIBS)
+
+# MPI: with MPI=1 `make` builds slowscan-mpi too; `make check` builds it whenever mpicc exists
+# (looked up when its recipe runs, after deps may have installed it).
+MPICC ?= mpicc
+MPI_OBJ := $(MPI_CLI_SRC:%.c=$(B)/mpi/%.o) $(filter-out $(B)/obj/cli/entry.o,$(CLI_OBJ))
+HAVE_MPICC = $(shell command -v $(MPICC) >/dev/null 2>&1 && echo yes)
+ifeq ($(MPI),1)
+all: $(B)/slowscan-mpi
+endif
+CHECK_MPI = $(if $(HAVE_MPICC),$(B)/slowscan-mpi)
+
+$(B)/mpi/%.o: %.c
+	@mkdir -p $(dir $@)
+	@echo "MPICC $<"; $(MPICC) $(CFLAGS) $(WARN) $(INCS) -MMD -MP -c $< -o $@
+
+$(B)/slowscan-mpi: $(MPI_OBJ) $(STATIC_LIBS)
+	$(MPICC) $(CFLAGS) -o $@ $(MPI_OBJ) $(STATIC_LIBS) $(LIBS)
 
 deps:
 	@sh scripts/install-deps.sh
@@ -113,7 +134,7 @@ $(B)/bench/%: bench/%.c $(BENCH_LIB) $(wildcard bench/common/*.h) $(STATIC_LIBS)
 # The sanitized run goes ahead when the plain one fails (the calibration battery fails there
 # until the fixes it measures land); check fails if either did.
 check: deps
-	@$(MAKE) --no-print-directory all $(B)/run_tests $(B)/asan/slowscan $(B)/asan/run_tests
+	@$(MAKE) --no-print-directory all $(B)/run_tests $(B)/asan/slowscan $(B)/asan/run_tests $(CHECK_MPI)
 	plain=0; SLOWSCAN_BIN=$(B)/slowscan SLOWSCAN_LABEL=plain $(B)/run_tests || plain=1; \
 	ASAN_OPTIONS=detect_leaks=1:abort_on_error=0 UBSAN_OPTIONS=print_stacktrace=1 \
 	  LSAN_OPTIONS=suppressions=$(CURDIR)/tests/lsan.supp:print_suppressions=0 \

@@ -272,8 +272,11 @@ int cli_control_refuse(const cli_options *opts, const screen_input *control,
 enum { CLI_LEAKAGE_NAMED = 3 };
 typedef struct {
     size_t count, tested;
-    const char *source[CLI_LEAKAGE_NAMED], *name[CLI_LEAKAGE_NAMED];
+    const char *source[CLI_LEAKAGE_NAMED], *name[CLI_LEAKAGE_NAMED]; /* into text */
     detrend_leakage first[CLI_LEAKAGE_NAMED];
+    /* copies of the names: a series' own strings may be gone (a grid's table, a record
+     * read back) when the tally is reported */
+    char text[CLI_LEAKAGE_NAMED][2][512];
 } cli_leakage_tally;
 void cli_tally_leakage(cli_leakage_tally *tally, const char *source, const char *name,
                        const detrend_leakage *leakage, int tested);
@@ -311,6 +314,9 @@ enum { CLI_MAX_THREADS = 256 };
 
 /* --detrends LIST (cmd_robustness.c): comma-separated methods as --detrend takes them. */
 int cli_set_detrends(cli_options *opts, const char *name, const char *value);
+
+/* The command line run (main.c): what `slowscan ARGS` does, its exit code. */
+int cli_main(int argc, char **argv);
 
 /* Commands. */
 int cmd_detrend(const cli_options *opts);
@@ -389,6 +395,8 @@ int cli_resume_record(cli_resume *r, const void *record, size_t size);
 void cli_resume_close(cli_resume *r, int finished);
 /* Removes the temporaries a killed run left beside the outputs (before they are opened). */
 void cli_resume_clean(const cli_options *o);
+/* The stop says nothing (the processes of a shared run other than process 0). */
+void cli_stops_quiet(void);
 
 /* input_checks.c: reading options from the command's (CF units parsed on the calendar), the
  * --from/--until span on a table's axis, the grid (gaps or --resample), notices on what the

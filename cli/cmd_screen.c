@@ -6,6 +6,7 @@
  * file only turns the results into rows, messages and outputs. */
 #include "cli.h"
 #include "screen.h"
+#include "share.h"
 #include "slowscan/screen_batch.h"
 #include "slowscan/significance.h"
 #include "slowscan/status.h"
@@ -39,6 +40,16 @@ static double rolling_window(const screen_result *res, size_t j)
     return slowscan_screen_test_rolling(res->tests[j].kind) ? res->window : NAN;
 }
 
+/* Series kept in memory before the store spills to a temporary file; the suites set
+ * SLOWSCAN_SPILL_AFTER to make small runs spill (not a user setting). */
+static size_t spill_after(void)
+{
+    const char *text = getenv("SLOWSCAN_SPILL_AFTER");
+    char *end;
+    unsigned long v = text ? strtoul(text, &end, 10) : 0;
+    return text && *text && !*end ? (size_t)v : SCREEN_STORE_SPILL_AFTER;
+}
+
 /* The results of many series wait for the q-values in a temporary file in $TMPDIR. */
 static int store_failed(int status, const io_error *err)
 {
@@ -50,41 +61,91 @@ static int store_failed(int status, const io_error *err)
     return EXIT_BAD_INPUT;
 }
 
-/* One record per series in the run's store (the figures read each test's null from the
- * quantiles of its result); warns about each insufficient test. */
-/* Kept with a record: where the series came from, then the time unit of its window and
- * bandwidth and its file. Returns the bytes used of extra[SCREEN_EXTRA]. */
-size_t cli_screen_extra(const prepared_series *ps, const screen_origin *origin, char *extra)
+/* One screened series as plain data: what the store and the messages need of it, accepted at
+ * once by a lone process, or first sent to process 0 of a shared run (share.h). The name (with
+ * its NUL) and the store's extra block follow the head. */
+typedef struct {
+    screen_result result;
+    screen_variation constant;
+    size_t name_size, extra_size;
+} series_record;
+
+/* The record of a series into *buf (grown as needed); its size, or 0 when out of memory. The
+ * store's extra block: where the series came from, then the time unit of its window and
+ * bandwidth and its file. */
+static size_t make_record(const prepared_series *ps, const screen_result *res,
+                          const screen_origin *origin, void **buf, size_t *cap)
 {
+    char extra[1024];
     memcpy(extra, origin, sizeof *origin);
     char *text = extra + sizeof *origin;
-    size_t room = SCREEN_EXTRA - sizeof *origin;
+    size_t room = sizeof extra - sizeof *origin;
     size_t len = (size_t)snprintf(text, room, "%s%c%s", cli_time_unit(&ps->axis), 0, ps->source);
-    return sizeof *origin + (len < room ? len : room - 1) + 1;
+    series_record head = {.result = *res, .constant = ps->constant,
+                          .name_size = strlen(ps->name) + 1,
+                          .extra_size = sizeof *origin + (len < room ? len : room - 1) + 1};
+    size_t size = sizeof head + head.name_size + head.extra_size;
+    if (cli_share_room(buf, cap, size) != EXIT_OK)
+        return 0;
+    char *out = *buf;
+    memcpy(out, &head, sizeof head);
+    memcpy(out + sizeof head, ps->name, head.name_size);
+    memcpy(out + sizeof head + head.name_size, extra, head.extra_size);
+    return size;
 }
 
-int cli_screen_keep(screen_run *run, const char *name, const screen_result *res,
-                    const char *extra, size_t size)
-{
-    /* the table's first column: FILE:SERIES when there are several inputs */
-    const char *source = extra + sizeof(screen_origin);
-    source += strlen(source) + 1;
-    int width = (int)strlen(name) + (run->several ? (int)strlen(source) + 1 : 0);
-    if (res->ntests > 0 && width > run->name_width)
-        run->name_width = width;
-    io_error err = {{0}};
-    int st = slowscan_screen_store_add(run->store, name, res, extra, size, &err);
-    return st == SLOWSCAN_OK ? EXIT_OK : store_failed(st, &err);
-}
+/* Each series in input order: its warnings, rows, leakage and progress. */
+typedef struct {
+    const cli_options *opts;
+    screen_run *run;
+    const screen_origin *origins; /* the source's, by series index */
+    cli_leakage_tally leakage;
+    size_t total;
+    cli_progress progress;
+    record_spill *shared; /* a shared run: this process's records, gathered after its share */
+    void *record;         /* the record being made */
+    size_t record_cap;
+    int rc; /* the exit code of a failed sink */
+} ordered_sink;
 
-static void warn_insufficient(const prepared_series *ps, const screen_result *res)
+/* A record into the run's store (the figures read each test's null from the quantiles of its
+ * result), with the series' warnings and each insufficient test's. */
+static int accept_record(const void *data, size_t size, void *context)
 {
+    ordered_sink *sink = context;
+    screen_run *run = sink->run;
+    series_record head;
+    if (size >= sizeof head)
+        memcpy(&head, data, sizeof head);
+    if (size < sizeof head || size != sizeof head + head.name_size + head.extra_size ||
+        head.extra_size <= sizeof(screen_origin)) { /* every process runs the same binary */
+        cli_error("a series' record arrived damaged (%zu bytes)", size);
+        return EXIT_INTERNAL;
+    }
+    const screen_result *res = &head.result;
+    const char *name = (const char *)data + sizeof head;
+    const char *extra = name + head.name_size, *unit = extra + sizeof(screen_origin);
+    prepared_series ps = {.name = name, .source = unit + strlen(unit) + 1,
+                          .constant = head.constant};
+    for (size_t w = 0; w < res->nwarnings; w++)
+        cli_screen_warn(sink->opts, &ps, &res->warnings[w]);
     for (size_t j = 0; j < res->ntests; j++) {
         const screen_test *t = &res->tests[j];
         /* a constant series was warned about when its paths were made */
-        if (isnan(t->statistic) && !ps->constant)
-            cli_screen_insufficient(ps, t);
+        if (isnan(t->statistic) && !ps.constant)
+            cli_screen_insufficient(&ps, t);
     }
+    /* the table's first column: FILE:SERIES when there are several inputs */
+    int width = (int)strlen(ps.name) + (run->several ? (int)strlen(ps.source) + 1 : 0);
+    if (res->ntests > 0 && width > run->name_width)
+        run->name_width = width;
+    io_error err = {{0}};
+    int st = slowscan_screen_store_add(run->store, name, res, extra, head.extra_size, &err);
+    if (st != SLOWSCAN_OK)
+        return store_failed(st, &err);
+    cli_tally_leakage(&sink->leakage, ps.source, ps.name, &res->leakage, res->leakage_tested);
+    cli_progress_series_done(&sink->progress);
+    return EXIT_OK;
 }
 
 size_t cli_screen_series_rows(screen_run *run, size_t k, screen_row *rows, int *rc)
@@ -137,7 +198,9 @@ typedef struct {
     screen_input *controls; /* one per series with --null control (borrowed arrays) */
     series_copy *copies;    /* one per series of a grid, freed on release */
     screen_origin *origins; /* one per series: where it came from */
-    size_t skip;            /* series the journal gave back: skipped */
+    size_t rank, ranks;     /* a shared run: this process takes series i with i mod ranks = rank */
+    size_t walked;          /* series of the inputs walked so far */
+    size_t skip;            /* series the journal gave back (--resume): skipped */
     int rc;                 /* the cursor's own failure (its message printed) */
 } input_source;
 
@@ -171,9 +234,11 @@ static int next_series(void *state, size_t index, screen_input *out, screen_deta
     input_source *src = state;
     const series_table *t;
     size_t k;
-    int rc = cli_cursor_next(&src->cursor, &t, &k);
-    for (; rc == EXIT_OK && src->skip > 0; src->skip--)
+    int rc;
+    do /* the journal's series and those of other processes are skipped, unread */
         rc = cli_cursor_next(&src->cursor, &t, &k);
+    while (rc == EXIT_OK && (src->skip > 0 ? (src->skip--, 1)
+                                           : src->walked++ % src->ranks != src->rank));
     if (rc == CLI_CURSOR_END)
         return SCREEN_BATCH_END;
     if (rc != EXIT_OK) {
@@ -204,25 +269,10 @@ static int next_series(void *state, size_t index, screen_input *out, screen_deta
     return SLOWSCAN_OK;
 }
 
-/* Each series in input order: its warnings, rolling paths, rows, leakage and progress. */
-typedef struct {
-    const cli_options *opts;
-    screen_run *run;
-    const screen_origin *origins; /* the source's, by series index */
-    cli_leakage_tally leakage;
-    size_t total;
-    cli_progress progress;
-    int rc; /* the exit code of a failed sink */
-} ordered_sink;
-
 static int put_series(void *state, const screen_batch_item *item)
 {
     ordered_sink *sink = state;
     const prepared_series *ps = item->prepared;
-    const screen_result *res = item->result;
-    for (size_t w = 0; w < res->nwarnings; w++)
-        cli_screen_warn(sink->opts, ps, &res->warnings[w]);
-    warn_insufficient(ps, res);
     /* with --resume the rolling rows are journaled too: written to memory first */
     char *rows = NULL;
     size_t nrows = 0;
@@ -235,24 +285,24 @@ static int put_series(void *state, const screen_batch_item *item)
         fclose(rolling);
         fwrite(rows, 1, nrows, sink->run->rolling);
     }
-    char extra[SCREEN_EXTRA];
-    size_t size = cli_screen_extra(ps, &sink->origins[item->index], extra);
-    sink->rc = cli_screen_keep(sink->run, ps->name, res, extra, size);
-    if (sink->rc == EXIT_OK)
-        sink->rc = cli_screen_journal(sink->run, ps->name, res, extra, size, rows, nrows);
+    size_t size = make_record(ps, item->result, &sink->origins[item->index], &sink->record,
+                              &sink->record_cap);
+    io_error err = {{0}};
+    if (size > 0 && cli_screen_journal(sink->run, sink->record, size, rows, nrows) != EXIT_OK)
+        size = 0, sink->rc = EXIT_BAD_INPUT; /* the journal's message is printed */
     free(rows);
-    if (sink->rc != EXIT_OK)
-        return SLOWSCAN_ENOMEM;
-    cli_tally_leakage(&sink->leakage, ps->source, ps->name, &res->leakage, res->leakage_tested);
-    cli_progress_series_done(&sink->progress);
-    return SLOWSCAN_OK;
-}
-
-/* Surrogates drawn inside a series still running (the batch driver calls this one at a time). */
-static void series_progress(void *state, const screen_progress *progress)
-{
-    ordered_sink *sink = state;
-    cli_progress_surrogates(&sink->progress, progress);
+    if (size == 0 && sink->rc != EXIT_OK) {
+        /* nothing more to say */
+    } else if (size == 0) {
+        cli_error("out of memory");
+        sink->rc = EXIT_INTERNAL;
+    } else if (sink->shared) {
+        int st = slowscan_spill_append(sink->shared, sink->record, size, &err);
+        sink->rc = st == SLOWSCAN_OK ? EXIT_OK : store_failed(st, &err);
+    } else {
+        sink->rc = accept_record(sink->record, size, sink);
+    }
+    return sink->rc == EXIT_OK ? SLOWSCAN_OK : SLOWSCAN_ENOMEM;
 }
 
 /* The failure that ended a run, in the words of the per-series commands. */
@@ -267,61 +317,109 @@ static int refuse(const cli_options *opts, const screen_batch_failure *f, const 
     return cli_screen_refuse(opts, &f->prepared, &f->detail);
 }
 
-/* Every series through the library's batch driver: threads over whole series, or over one
- * series' surrogates when series are fewer than threads; results in input order. */
+/* Surrogates drawn inside a series still running (the batch driver calls this one at a time). */
+static void series_progress(void *state, const screen_progress *progress)
+{
+    ordered_sink *sink = state;
+    cli_progress_surrogates(&sink->progress, progress);
+}
+
+/* Every series of this process through the library's batch driver: threads over whole
+ * series, or over one series' surrogates when series are fewer than threads; results in
+ * input order. */
+static int screen_share(const cli_options *opts, const cli_inputs *in, ordered_sink *sink,
+                        input_source *src)
+{
+    int grids = 0;
+    for (size_t f = 0; f < in->ntables; f++) /* inputs read a table at a time */
+        grids |= in->grid_cells[f] > 0 || in->columns[f] != NULL;
+    size_t all = sink->total;
+    sink->origins = src->origins = calloc(all + 1, sizeof *src->origins);
+    if (!src->origins ||
+        (in->has_control && !(src->controls = calloc(all + 1, sizeof *src->controls))) ||
+        (grids && !(src->copies = calloc(all + 1, sizeof *src->copies)))) {
+        cli_error("out of memory");
+        return EXIT_INTERNAL;
+    }
+    /* this process's series: every ranks-th from its own rank, after the journal's */
+    size_t left = all - src->skip;
+    size_t mine = left / src->ranks + (src->rank < left % src->ranks);
+    screen_source source = {next_series, release_series, mine, src};
+    /* Only --rolling needs the paths handed on: the figures read the null's quantiles from
+     * the results and prepare the series again once the q-values exist. */
+    screen_sink ordered = {.put = put_series, .state = sink,
+                           .keep_series = sink->run->rolling != NULL,
+                           .progress = opts->progress > 0 ? series_progress : NULL};
+    screen_batch_failure failure;
+    int st = slowscan_screen_batch_run(&sink->run->cfg, &source, &ordered, &failure);
+    return st == SLOWSCAN_OK ? EXIT_OK : src->rc != EXIT_OK ? src->rc : refuse(opts, &failure, sink);
+}
+
+/* A run shared by several processes: each screens its share, its messages held back; then
+ * process 0 takes every record in input order (the others send theirs). */
+static int screen_shared(const cli_options *opts, const cli_inputs *in, ordered_sink *sink,
+                         input_source *src, const cli_share *share)
+{
+    src->rank = share->rank, src->ranks = share->ranks;
+    char *text = NULL;
+    size_t len = 0;
+    FILE *held = open_memstream(&text, &len);
+    FILE *before = held ? cli_messages_to(held) : NULL;
+    io_error err = {{0}};
+    /* even a process that cannot start ends its stream, so that process 0 waits for nothing */
+    int rc = (sink->shared = slowscan_spill_alloc(spill_after(), NULL))
+                 ? screen_share(opts, in, sink, src)
+                 : store_failed(SLOWSCAN_ENOMEM, &err);
+    if (held) {
+        cli_messages_to(before);
+        fclose(held);
+    }
+    /* what process 0 said of the inputs while it walked them (a grid's notices) comes first;
+     * a failure's words wait for their place in input order */
+    if (rc == EXIT_OK && share->rank == 0 && text)
+        fputs(text, stderr);
+    share_outcome mine = {sink->shared ? slowscan_spill_count(sink->shared) : 0, rc, text};
+    rc = cli_share_gather(share, sink->shared, &mine, accept_record, sink);
+    free(text);
+    slowscan_spill_free(sink->shared);
+    return rc;
+}
+
 /* A series taken from the journal (--resume): to the outputs as if just computed. */
 static int replay_series(void *state, const void *record, size_t size)
 {
     ordered_sink *sink = state;
-    journaled j;
-    if (cli_screen_unjournal(record, size, &j) != EXIT_OK)
+    const void *series;
+    size_t series_size;
+    const char *rows;
+    size_t rows_size;
+    if (cli_screen_unjournal(record, size, &series, &series_size, &rows, &rows_size) != EXIT_OK)
         return SLOWSCAN_EINVAL;
-    if (cli_screen_keep(sink->run, j.name, &j.result, j.extra, j.extra_size) != EXIT_OK)
-        return SLOWSCAN_ENOMEM;
     if (sink->run->rolling)
-        fwrite(j.rows, 1, j.rows_size, sink->run->rolling);
-    const char *source = j.extra + sizeof(screen_origin);
-    source += strlen(source) + 1;
-    cli_tally_leakage(&sink->leakage, source, j.name, &j.result.leakage,
-                      j.result.leakage_tested);
-    cli_progress_series_done(&sink->progress);
-    return SLOWSCAN_OK;
+        fwrite(rows, 1, rows_size, sink->run->rolling);
+    return accept_record(series, series_size, sink) == EXIT_OK ? SLOWSCAN_OK : SLOWSCAN_EINVAL;
 }
 
 static int run_series(const cli_options *opts, const cli_inputs *in, void *context)
 {
     screen_run *run = context;
     ordered_sink sink = {.opts = opts, .run = run, .total = cli_inputs_series_count(in)};
-    input_source src = {.controls = NULL, .copies = NULL, .rc = EXIT_OK};
+    input_source src = {.ranks = 1, .rc = EXIT_OK};
     cli_cursor_start(&src.cursor, opts, in);
-    int grids = 0;
-    for (size_t f = 0; f < in->ntables; f++) /* inputs read a table at a time */
-        grids |= in->grid_cells[f] > 0 || in->columns[f] != NULL;
-    sink.origins = src.origins = calloc(sink.total + 1, sizeof *src.origins);
-    if (!src.origins ||
-        (in->has_control && !(src.controls = calloc(sink.total + 1, sizeof *src.controls))) ||
-        (grids && !(src.copies = calloc(sink.total + 1, sizeof *src.copies)))) {
-        free(src.origins);
-        free(src.controls);
-        cli_error("out of memory");
-        return EXIT_INTERNAL;
-    }
+    const cli_share *share = cli_share_get();
     cli_progress_start(&sink.progress, opts, sink.total);
-    int resumed = cli_resume_open(opts, replay_series, &sink, &run->resume);
-    if (resumed != EXIT_OK) {
-        free(src.origins), free(src.controls), free(src.copies);
-        return resumed;
+    if (share && opts->resume) {
+        cli_error("option --resume: not in a run shared by several processes (journal each "
+                  "job of a split field instead, and merge their summaries)");
+        cli_cursor_end(&src.cursor);
+        return EXIT_BAD_INPUT;
     }
+    int rc = cli_resume_open(opts, replay_series, &sink, &run->resume);
     src.skip = run->resume.replayed; /* the journal's series come first, in order */
-    screen_source source = {next_series, release_series, sink.total - src.skip, &src};
-    /* Only --rolling needs the paths handed on: the figures read the null's quantiles from
-     * the results and prepare the series again once the q-values exist. */
-    screen_sink ordered = {.put = put_series, .state = &sink, .keep_series = run->rolling != NULL,
-                           .progress = opts->progress > 0 ? series_progress : NULL};
-    screen_batch_failure failure;
-    int st = slowscan_screen_batch_run(&run->cfg, &source, &ordered, &failure);
-    int rc = st == SLOWSCAN_OK ? EXIT_OK : src.rc != EXIT_OK ? src.rc : refuse(opts, &failure, &sink);
     if (rc == EXIT_OK)
+        rc = share ? screen_shared(opts, in, &sink, &src, share)
+                   : screen_share(opts, in, &sink, &src);
+    if (rc == EXIT_OK && (!share || share->rank == 0))
         cli_report_leakage(opts, &sink.leakage);
     for (size_t i = 0; src.copies && i <= sink.total; i++)
         release_series(&src, i);
@@ -329,19 +427,21 @@ static int run_series(const cli_options *opts, const cli_inputs *in, void *conte
     free(src.origins);
     free(src.controls);
     free(src.copies);
+    free(sink.record);
     return rc;
 }
 
-int cli_screen_journal(screen_run *run, const char *name, const screen_result *res,
-                       const char *extra, size_t extra_size, const char *rows, size_t rows_size)
+int cli_screen_journal(screen_run *run, const void *series, size_t series_size, const char *rows,
+                       size_t rows_size)
 {
     if (!run->resume.journal)
         return EXIT_OK;
     void *record;
     size_t size;
-    if (cli_screen_encode(name, res, extra, extra_size, rows, rows_size, &record, &size) !=
-        EXIT_OK)
+    if (cli_screen_encode(series, series_size, rows, rows_size, &record, &size) != EXIT_OK) {
+        cli_error("out of memory");
         return EXIT_INTERNAL;
+    }
     int rc = cli_resume_record(&run->resume, record, size);
     free(record);
     return rc;
@@ -421,18 +521,13 @@ static int finish(const cli_options *opts, void *context)
     return rc == EXIT_OK ? write_summary(opts, run) : rc;
 }
 
-/* Series kept in memory before the store spills to a temporary file; the suites set
- * SLOWSCAN_SPILL_AFTER to make small runs spill (not a user setting). */
-static size_t spill_after(void)
-{
-    const char *text = getenv("SLOWSCAN_SPILL_AFTER");
-    char *end;
-    unsigned long v = text ? strtoul(text, &end, 10) : 0;
-    return text && *text && !*end ? (size_t)v : SCREEN_STORE_SPILL_AFTER;
-}
-
 int cmd_screen(const cli_options *opts)
 {
+    if (cli_share_get() && opts->rolling_output) {
+        cli_error("option --rolling: not available when the run is shared by several processes "
+                  "(mpirun -np K with K > 1); write the rolling paths with one process");
+        return EXIT_BAD_INPUT;
+    }
     screen_run run = {0};
     run.several = cli_several_inputs(opts);
     cli_screen_config(opts, &run.cfg);

@@ -112,8 +112,8 @@ static const char testing_options[] =
     "                       Hall, Horowitz & Jing 1995 give for variance-type statistics)\n"
     "  --alternative increasing|decreasing|two-sided  override each indicator's default\n"
     "  --seed S             random seed (default 1); same seed, same numbers\n"
-    "  --threads N          threads for the surrogates (default: all cores); the output\n"
-    "                       is identical for any N\n";
+    "  --threads N          threads for the surrogates (default: the cores it may use); the\n"
+    "                       output is identical for any N\n";
 
 static const char figure_options[] =
     "figures:\n"

@@ -1,4 +1,5 @@
-/* slowscan: command dispatch. */
+/* slowscan: command dispatch (cli_main), called by the program's main: cli/entry.c for the
+ * plain binary, cli/mpi_main.c for slowscan-mpi. */
 #include "cli.h"
 #include "slowscan/version.h"
 
@@ -21,7 +22,7 @@ static const struct {
     {"merge", cmd_merge},
 };
 
-int main(int argc, char **argv)
+int cli_main(int argc, char **argv)
 {
     if (argc < 2) {
         cli_help(NULL, stderr);

@@ -1,6 +1,8 @@
 /* Option parsing: one table names every option, the commands that take it and the function
  * that stores its value, so each command accepts exactly its own options. */
+#define _GNU_SOURCE /* sched_getaffinity: the cores this process may run on */
 #include "cli.h"
+#include "share.h"
 #include "slowscan/status.h"
 #include "slowscan/surrogates.h"
 
@@ -10,6 +12,7 @@
 #include <stdarg.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sched.h>
 #include <unistd.h>
 
 enum { C_DETREND = 1, C_INDICATORS = 2, C_SCREEN = 4, C_DEMO = 8, C_SURROGATES = 16, C_ROBUST = 32,
@@ -378,7 +381,12 @@ static void set_defaults(const char *command, cli_options *o)
      * from 30% to 70%, bandwidths in equal ratios (about sqrt 2) from half to twice 10%. */
     cli_parse_grid("--windows", "30%:70%:10%", o->windows, o->grid_text[0], &o->nwindows);
     cli_parse_grid("--bandwidths", "5%,7%,10%,14%,20%", o->bandwidths, o->grid_text[1], &o->nbandwidths);
+    /* the cores this process may use: under mpirun (which binds each process to its cores)
+     * or taskset that is fewer than the machine's */
     long cores = sysconf(_SC_NPROCESSORS_ONLN);
+    cpu_set_t mask;
+    if (sched_getaffinity(0, sizeof mask, &mask) == 0 && CPU_COUNT(&mask) < cores)
+        cores = CPU_COUNT(&mask);
     o->threads = cores < 1 ? 1 : cores > CLI_MAX_THREADS ? CLI_MAX_THREADS : cores;
 }
 
@@ -489,12 +497,23 @@ void cli_options_free(cli_options *o)
     o->files = NULL;
 }
 
+/* Where messages go: stderr, unless a process of a shared run holds them back (share.h). */
+static FILE *message_target;
+
+FILE *cli_messages_to(FILE *fp)
+{
+    FILE *previous = message_target;
+    message_target = fp;
+    return previous;
+}
+
 static void vreport(const char *kind, const char *fmt, va_list ap)
 {
+    FILE *fp = message_target ? message_target : stderr;
     cli_progress_message_begin();
-    fprintf(stderr, "slowscan: %s", kind);
-    vfprintf(stderr, fmt, ap);
-    fputc('\n', stderr);
+    fprintf(fp, "slowscan: %s", kind);
+    vfprintf(fp, fmt, ap);
+    fputc('\n', fp);
     cli_progress_message_end();
 }
 

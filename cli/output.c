@@ -1,6 +1,7 @@
 /* Output plumbing shared by the commands: atomic output files, number formatting, and the
  * per-series driver (with its progress line) every series command runs through. */
 #include "cli.h"
+#include "share.h"
 #include "slowscan/status.h"
 
 #include <errno.h>
@@ -248,8 +249,11 @@ void cli_tally_leakage(cli_leakage_tally *tally, const char *source, const char 
     if (!tested || !leakage->leaking)
         return;
     if (tally->count < CLI_LEAKAGE_NAMED) {
-        tally->source[tally->count] = source;
-        tally->name[tally->count] = name;
+        char (*text)[512] = tally->text[tally->count];
+        snprintf(text[0], sizeof text[0], "%s", source ? source : "");
+        snprintf(text[1], sizeof text[1], "%s", name ? name : "");
+        tally->source[tally->count] = source ? text[0] : NULL;
+        tally->name[tally->count] = text[1];
         tally->first[tally->count] = *leakage;
     }
     tally->count++;
@@ -306,25 +310,30 @@ int cli_run_series_command(const cli_options *opts, const series_command *cmd)
     if (!registered)
         registered = atexit(abort_live_outputs) == 0;
     live_outputs = &outs;
+    /* in a run shared by several processes (share.h) only process 0 writes outputs */
+    const cli_share *share = cli_share_get();
+    int writer = !share || share->rank == 0;
     int rc = cli_inputs_load(opts, &in);
-    if (rc == EXIT_OK && cmd->open)
+    if (rc == EXIT_OK && cmd->open && writer)
         rc = cmd->open(opts, &outs, cmd->context);
+    if (share) /* no process starts work another cannot do */
+        rc = share->agree(share, rc);
     if (rc == EXIT_OK && cmd->run)
         rc = cmd->run(opts, &in, cmd->context);
     else if (rc == EXIT_OK)
         rc = cmd->visit_table ? for_each_table_series(opts, &in, cmd->visit_table, cmd->context)
                               : cli_for_each_series(opts, &in, cmd->visit, cmd->context);
-    if (rc == EXIT_OK && cmd->finish)
+    if (rc == EXIT_OK && cmd->finish && writer)
         rc = cmd->finish(opts, cmd->context);
     if (rc == EXIT_OK && cmd->figures && outs.figures)
         rc = cmd->figures(opts, &in, cmd->context);
-    if (rc == EXIT_OK)
+    if (rc == EXIT_OK && writer)
         rc = cli_outputs_commit(&outs);
     else
         cli_outputs_abort(&outs);
     live_outputs = NULL;
     cli_inputs_free(&in);
-    return rc;
+    return share ? share->agree(share, rc) : rc; /* every process ends as process 0 does */
 }
 
 const char cli_rolling_header[] = "series,time,indicator,value\n";

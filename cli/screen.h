@@ -33,18 +33,6 @@ typedef struct {
     screen_origin origin;
 } screen_row;
 
-/* The extra block a record keeps (cli_screen_extra): at most this many bytes. */
-enum { SCREEN_EXTRA = 1024 };
-
-/* A series read back from the journal (--resume); pointers into the record. */
-typedef struct {
-    const char *name;
-    screen_result result;
-    const char *extra;
-    size_t extra_size;
-    const char *rows; /* its --rolling rows, as written */
-    size_t rows_size;
-} journaled;
 
 typedef struct {
     FILE *out, *rolling;
@@ -84,16 +72,13 @@ int cli_screen_maps_fill(screen_run *run);
 /* With --figures too: a map figure per variable with two horizontal dimensions. */
 int cli_screen_maps_figures(screen_run *run);
 
-/* The record of a series: its extra block, and keeping it (table width, the store). */
-size_t cli_screen_extra(const prepared_series *ps, const screen_origin *origin, char *extra);
-int cli_screen_keep(screen_run *run, const char *name, const screen_result *res,
-                    const char *extra, size_t size);
-/* --resume (screen_journal.c): a series as a journal record and back; journaling it. */
-int cli_screen_encode(const char *name, const screen_result *res, const char *extra,
-                      size_t extra_size, const char *rows, size_t rows_size, void **record,
-                      size_t *size);
-int cli_screen_unjournal(const void *record, size_t size, journaled *j);
-int cli_screen_journal(screen_run *run, const char *name, const screen_result *res,
-                       const char *extra, size_t extra_size, const char *rows, size_t rows_size);
+/* --resume (screen_journal.c): a series' record (its plain record, then its --rolling rows)
+ * as one journal record and back; journaling it (cmd_screen.c). */
+int cli_screen_encode(const void *series, size_t series_size, const char *rows,
+                      size_t rows_size, void **record, size_t *size);
+int cli_screen_unjournal(const void *record, size_t size, const void **series,
+                         size_t *series_size, const char **rows, size_t *rows_size);
+int cli_screen_journal(screen_run *run, const void *series, size_t series_size,
+                       const char *rows, size_t rows_size);
 
 #endif

@@ -1,7 +1,7 @@
-/* screen --resume: a finished series as one journal record and back — its name, its result
- * (plain data), the record's extra block (origin, time unit, file) and its --rolling rows.
- * Layout: four lengths (name, result, extra, rows; 8 bytes each) then the four parts. The
- * result is copied as bytes: the journal's identity includes the version, so only the same
+/* screen --resume: a finished series as one journal record and back — the plain record that
+ * the store (and a shared run's gathering) takes (cmd_screen.c's series_record), then its
+ * --rolling rows. Layout: the record's length (8 bytes), the record, the rows. The record
+ * holds the result as bytes: the journal's identity includes the version, so only the same
  * build reads it back. */
 #include "screen.h"
 
@@ -9,47 +9,33 @@
 #include <stdlib.h>
 #include <string.h>
 
-int cli_screen_encode(const char *name, const screen_result *res, const char *extra,
-                      size_t extra_size, const char *rows, size_t rows_size, void **record,
-                      size_t *size)
+int cli_screen_encode(const void *series, size_t series_size, const char *rows,
+                      size_t rows_size, void **record, size_t *size)
 {
-    uint64_t len[4] = {strlen(name) + 1, sizeof *res, extra_size, rows_size};
-    const void *part[4] = {name, res, extra, rows};
-    *size = sizeof len + len[0] + len[1] + len[2] + len[3];
+    uint64_t length = series_size;
+    *size = sizeof length + series_size + rows_size;
     unsigned char *out = malloc(*size);
     if (!(*record = out))
         return EXIT_INTERNAL;
-    memcpy(out, len, sizeof len);
-    out += sizeof len;
-    for (int k = 0; k < 4; k++) {
-        if (len[k])
-            memcpy(out, part[k], len[k]);
-        out += len[k];
-    }
+    memcpy(out, &length, sizeof length);
+    memcpy(out + sizeof length, series, series_size);
+    if (rows_size)
+        memcpy(out + sizeof length + series_size, rows, rows_size);
     return EXIT_OK;
 }
 
-int cli_screen_unjournal(const void *record, size_t size, journaled *j)
+int cli_screen_unjournal(const void *record, size_t size, const void **series,
+                         size_t *series_size, const char **rows, size_t *rows_size)
 {
-    uint64_t len[4];
-    if (size < sizeof len)
+    uint64_t length;
+    if (size < sizeof length)
         return EXIT_BAD_INPUT;
-    memcpy(len, record, sizeof len);
-    const char *at = (const char *)record + sizeof len;
-    uint64_t total = sizeof len;
-    for (int k = 0; k < 4; k++) {
-        if (len[k] > size || total + len[k] > size)
-            return EXIT_BAD_INPUT;
-        total += len[k];
-    }
-    if (total != size || len[0] == 0 || at[len[0] - 1] != '\0' || len[1] != sizeof j->result ||
-        len[2] < sizeof(screen_origin) + 2 || len[2] > SCREEN_EXTRA)
+    memcpy(&length, record, sizeof length);
+    if (length > size - sizeof length)
         return EXIT_BAD_INPUT;
-    j->name = at;
-    memcpy(&j->result, at + len[0], sizeof j->result);
-    j->extra = at + len[0] + len[1];
-    j->extra_size = len[2];
-    j->rows = at + len[0] + len[1] + len[2];
-    j->rows_size = len[3];
+    *series = (const char *)record + sizeof length;
+    *series_size = (size_t)length;
+    *rows = (const char *)record + sizeof length + length;
+    *rows_size = size - sizeof length - (size_t)length;
     return EXIT_OK;
 }

@@ -9,8 +9,18 @@
 #include <string.h>
 #include <unistd.h>
 
+/* A process of a shared run other than process 0 stops without a word (share.h). */
+static volatile sig_atomic_t quiet;
+
+void cli_stops_quiet(void)
+{
+    quiet = 1;
+}
+
 static void say(const char *text)
 {
+    if (quiet)
+        return;
     ssize_t ignored = write(STDERR_FILENO, text, strlen(text));
     (void)ignored;
 }

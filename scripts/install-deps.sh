@@ -2,7 +2,7 @@
 # Installs what slowscan needs to build, test and draw, if it is missing.
 # On Debian (or a derivative) as root it runs apt-get; elsewhere it prints the list.
 set -e
-PKGS="gcc make pkg-config libfftw3-dev libgsl-dev libcsv-dev libnetcdf-dev libudunits2-dev libplplot-dev
+PKGS="gcc make pkg-config libopenmpi-dev openmpi-bin libfftw3-dev libgsl-dev libcsv-dev libnetcdf-dev libudunits2-dev libplplot-dev
 plplot-driver-cairo python3-numpy python3-scipy python3-pandas python3-statsmodels python3-cftime python3-netcdf4 netcdf-bin"
 missing=""
 if command -v dpkg-query >/dev/null 2>&1; then

@@ -40,6 +40,7 @@ void suite_merge(void);
 void suite_resume(void);
 void suite_store(void);
 void suite_progress(void);
+void suite_mpi(void);
 
 static const struct {
     const char *name;
@@ -62,6 +63,7 @@ static const struct {
     {"maps", suite_maps},
     {"dated_cli", suite_dated_cli},   {"interrupt", suite_interrupt},
     {"merge", suite_merge},           {"resume", suite_resume},
+    {"mpi", suite_mpi},
 };
 
 int main(int argc, char **argv)
