@@ -4,6 +4,7 @@
  *    --threads 1 and --threads 2 (alternating, best of 2 each); prints the speed-up (target
  *    >= 1.7x on two cores) and fails when the two outputs are not byte-identical (the same
  *    seed gives the same numbers whatever the thread count).
+ * 3. Processes (below peak memory in the file): mpirun -np 1 vs 2 of build/slowscan-mpi.
  * 2. Peak memory: the children's peak resident set (wait4's rusage, ru_maxrss) of
  *    `screen --surrogates 0 --threads 1` on 10^3 and on 10^4 series of 1000 samples, side by
  *    side (target: within 20% of each other, under 150 MB). The batch driver holds only a
@@ -144,6 +145,9 @@ typedef struct {
 /* Runs `bin screen ARGS... -o out input` with stderr into the scratch folder (the screen's
  * leakage notes would drown the report); wall time and the child's own peak RSS from wait4.
  * On failure prints the child's messages and returns -1. */
+static int run_argv(const char *const *argv, const char *input, child_cost *cost);
+
+/* `bin screen --no-progress ARGS... -o out input`, as run_argv. */
 static int run_screen(const char *bin, const char *const *args, const char *input,
                       const char *out, child_cost *cost)
 {
@@ -155,6 +159,12 @@ static int run_screen(const char *bin, const char *const *args, const char *inpu
     argv[argc++] = out;
     argv[argc++] = input;
     argv[argc] = NULL;
+    return run_argv(argv, input, cost);
+}
+
+static int run_argv(const char *const *argv, const char *input, child_cost *cost)
+{
+    const char *bin = argv[0];
     const char *err = scratch_file("stderr.txt");
     if (!err)
         return -1;
@@ -179,7 +189,7 @@ static int run_screen(const char *bin, const char *const *args, const char *inpu
     stop_if_interrupted();
     if (waited != pid || !WIFEXITED(status)
         || WEXITSTATUS(status) != 0) {
-        fprintf(stderr, "bench_batch: %s screen failed on %s (set SLOWSCAN_BIN); it said:\n", bin,
+        fprintf(stderr, "bench_batch: %s failed on %s (set SLOWSCAN_BIN); it said:\n", bin,
                 input);
         FILE *f = fopen(err, "r");
         char line[512];
@@ -264,6 +274,50 @@ static int thread_scaling(const char *bin)
     return identical ? 0 : -1;
 }
 
+/* Part 3: processes. `mpirun -np 1` vs `-np 2` of build/slowscan-mpi (made by make MPI=1) on
+ * the same series, one thread each: the speed-up (target >= 1.7x on two cores) and the
+ * outputs byte-identical to the serial binary's. Skipped, saying why, without mpirun or the
+ * binary. */
+static int process_scaling(const char *bin)
+{
+    const char *mpi = "build/slowscan-mpi";
+    if (access(mpi, X_OK) != 0 || system("command -v mpirun >/dev/null 2>&1") != 0) {
+        printf("processes: skipped (%s)\n", access(mpi, X_OK) != 0
+                   ? "no build/slowscan-mpi: make MPI=1 builds it" : "no mpirun");
+        return 0;
+    }
+    if (geteuid() == 0) { /* OpenMPI refuses root unless told */
+        setenv("OMPI_ALLOW_RUN_AS_ROOT", "1", 1);
+        setenv("OMPI_ALLOW_RUN_AS_ROOT_CONFIRM", "1", 1);
+    }
+    const char *input = scratch_file("scaling.csv"); /* written by thread_scaling */
+    const char *serial = scratch_file("serial.csv");
+    const char *out[2] = {scratch_file("ranks1.csv"), scratch_file("ranks2.csv")};
+    const char *args[] = {"--surrogates", "19", "--threads", "1", NULL};
+    child_cost c, best[2] = {{INFINITY, 0, 0}, {INFINITY, 0, 0}};
+    if (!input || !serial || !out[0] || !out[1] || run_screen(bin, args, input, serial, &c) != 0)
+        return -1;
+    static const char *const ranks[2] = {"1", "2"};
+    for (int round = 0; round < 2; round++)
+        for (int r = 0; r < 2; r++) {
+            const char *argv[] = {"mpirun", "--oversubscribe", "-np", ranks[r], mpi, "screen",
+                                  "--no-progress", "--surrogates", "19", "--threads", "1",
+                                  "-o", out[r], input, NULL};
+            if (run_argv(argv, input, &c) != 0)
+                return -1;
+            if (c.seconds < best[r].seconds)
+                best[r] = c;
+        }
+    int identical = same_bytes(serial, out[0]) && same_bytes(serial, out[1]);
+    printf("processes: mpirun -np 1 %.2f s, -np 2 %.2f s, speed-up %.2fx (target >= 1.7x on two "
+           "cores); outputs %s", best[0].seconds, best[1].seconds,
+           best[0].seconds / best[1].seconds,
+           identical ? "byte-identical to the serial binary's" : "FAIL: they differ");
+    print_load();
+    putchar('\n');
+    return identical ? 0 : -1;
+}
+
 /* Part 2: peak RSS of a no-surrogate screen on 10^3 and on 10^4 series. */
 static int peak_memory(const char *bin)
 {
@@ -327,6 +381,8 @@ int main(void)
     sigaction(SIGTERM, &sa, NULL);
     sigaction(SIGHUP, &sa, NULL);
     int rc = thread_scaling(bin) == 0 ? 0 : 1;
+    if (process_scaling(bin) != 0)
+        rc = 1;
     if (peak_memory(bin) != 0)
         rc = 1;
     return rc;
