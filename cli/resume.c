@@ -69,13 +69,9 @@ static int run_identity(const cli_options *o, uint64_t *identity)
     return ok;
 }
 
-/* Temporaries a killed run left beside the outputs: PATH.tmp.XXXXXX (io/atomic_output.c). */
-static void remove_stale(const char *path)
+/* Removes the files matching `pattern` (glob(3)). */
+static void remove_matching(const char *pattern)
 {
-    if (!path || strcmp(path, "-") == 0)
-        return;
-    char pattern[4200];
-    snprintf(pattern, sizeof pattern, "%s.tmp.??????", path);
     glob_t g;
     if (glob(pattern, 0, NULL, &g) == 0)
         for (size_t k = 0; k < g.gl_pathc; k++)
@@ -83,17 +79,15 @@ static void remove_stale(const char *path)
     globfree(&g);
 }
 
-static void remove_stale_figures(const char *dir)
+/* Temporaries a killed run left beside an output (PATH.tmp.XXXXXX, io/atomic_output.c) or,
+ * for the figures' folder, in it. */
+static void remove_stale(const char *path, int folder)
 {
-    if (!dir)
+    if (!path || strcmp(path, "-") == 0)
         return;
     char pattern[4200];
-    snprintf(pattern, sizeof pattern, "%s/*.tmp.??????", dir);
-    glob_t g;
-    if (glob(pattern, 0, NULL, &g) == 0)
-        for (size_t k = 0; k < g.gl_pathc; k++)
-            unlink(g.gl_pathv[k]);
-    globfree(&g);
+    snprintf(pattern, sizeof pattern, folder ? "%s/*.tmp.??????" : "%s.tmp.??????", path);
+    remove_matching(pattern);
 }
 
 void cli_resume_clean(const cli_options *o)
@@ -102,8 +96,8 @@ void cli_resume_clean(const cli_options *o)
         return;
     const char *outputs[] = {o->output, o->rolling_output, o->json_output, o->maps_output};
     for (size_t k = 0; k < sizeof outputs / sizeof outputs[0]; k++)
-        remove_stale(outputs[k]);
-    remove_stale_figures(o->figures_dir);
+        remove_stale(outputs[k], 0);
+    remove_stale(o->figures_dir, 1);
 }
 
 int cli_resume_open(const cli_options *o, journal_replay replay, void *context,
