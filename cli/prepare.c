@@ -144,6 +144,14 @@ int cli_inputs_load(const cli_options *opts, cli_inputs *in)
     }
     if (rc != EXIT_OK)
         return rc;
+    int grids = 0;
+    for (size_t f = 0; f < in->ntables; f++)
+        grids |= in->grid_cells[f] > 0;
+    if (opts->select && !grids) {
+        cli_error("option --select %s: it chooses cells of a NetCDF grid, and no input is one "
+                  "(for CSV columns use --vars)", opts->select);
+        return EXIT_BAD_INPUT;
+    }
     return opts->control_file ? load_control(opts, in) : EXIT_OK;
 }
 

@@ -94,6 +94,9 @@ static void check_same_numbers(void)
     snprintf(args, sizeof args, "detrend --from 1860-13-01 %s", dp);
     CHECK(run(args) == 1 && err && strstr(err, "option --from: '1860-13-01' is not a date"),
           "a bad date in --from refused: %s", err ? err : "");
+    snprintf(args, sizeof args, "detrend --select lat=1 %s", dp);
+    CHECK(run(args) == 1 && err && strstr(err, "option --select lat=1: it chooses cells of a "
+          "NetCDF grid"), "--select on CSV inputs refused: %s", err ? err : "");
     snprintf(args, sizeof args, "detrend --calendar lunar %s", dp);
     CHECK(run(args) == 1 && err && strstr(err, "option --calendar: 'lunar' is not a CF calendar"),
           "an unknown calendar refused: %s", err ? err : "");
