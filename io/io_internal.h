@@ -12,6 +12,10 @@
 /* Formats the message into err (which may be NULL) and returns status. */
 int io_fail(io_error *err, int status, const char *fmt, ...) __attribute__((format(printf, 3, 4)));
 char *io_strdup(const char *s);
+/* qsort's order of doubles (ascending). */
+int io_compare_doubles(const void *a, const void *b);
+/* The median of the n-1 steps of time[n] (n >= 2); NaN when out of memory. */
+double io_median_step(const double *time, size_t n);
 /* Records a temporary output file just made, so a signal's handler can remove it
  * (temporaries.c); slowscan_atomic_temp_done forgets it once it is renamed or removed. */
 void io_temp_register(const char *path);

@@ -24,12 +24,6 @@ static double position_tolerance(const series_table *t, double step)
     return fmax(written, RELATIVE_TOLERANCE * step);
 }
 
-static int compare_doubles(const void *a, const void *b)
-{
-    double x = *(const double *)a, y = *(const double *)b;
-    return (x > y) - (x < y);
-}
-
 /* The most common step: steps sorted, grouped while within `tol` of the group's first, the
  * largest group wins (the smaller step on a tie); its median. */
 static double most_common_step(const double *sorted, size_t m, const series_table *t)
@@ -55,7 +49,7 @@ static double base_step(const series_table *t)
         return NAN;
     for (size_t i = 0; i < m; i++)
         steps[i] = t->time[i + 1] - t->time[i];
-    qsort(steps, m, sizeof *steps, compare_doubles);
+    qsort(steps, m, sizeof *steps, io_compare_doubles);
     double step = most_common_step(steps, m, t);
     free(steps);
     return step;

@@ -2,6 +2,7 @@
  * strings). */
 #include "io_internal.h"
 
+#include <math.h>
 #include <stdarg.h>
 #include <stdlib.h>
 #include <string.h>
@@ -68,4 +69,23 @@ void io_sample_where(const series_table *t, size_t i, char *buf, size_t size)
         snprintf(buf, size, "row %zu", t->rows[i]);
     else
         snprintf(buf, size, "time %.15g", t->time[i]);
+}
+
+int io_compare_doubles(const void *a, const void *b)
+{
+    double x = *(const double *)a, y = *(const double *)b;
+    return (x > y) - (x < y);
+}
+
+double io_median_step(const double *time, size_t n)
+{
+    double *steps = n >= 2 ? malloc((n - 1) * sizeof *steps) : NULL;
+    if (!steps)
+        return NAN;
+    for (size_t i = 1; i < n; i++)
+        steps[i - 1] = time[i] - time[i - 1];
+    qsort(steps, n - 1, sizeof *steps, io_compare_doubles);
+    double median = steps[(n - 1) / 2];
+    free(steps);
+    return median;
 }

@@ -22,12 +22,6 @@ static const double SPIKE_SPREADS = 12.0;
  * missing value). */
 static const double USUAL_CODES[] = {-999.0, -9999.0, -99999.0, 9.96921e36, 1e20};
 
-static int compare_doubles(const void *a, const void *b)
-{
-    double x = *(const double *)a, y = *(const double *)b;
-    return (x > y) - (x < y);
-}
-
 /* 1.4826 x the median absolute deviation of the differences between consecutive finite
  * values; NaN when there are fewer than 8 of them. `scratch` holds n doubles. */
 static double difference_spread(const double *x, size_t n, double *scratch)
@@ -38,11 +32,11 @@ static double difference_spread(const double *x, size_t n, double *scratch)
             scratch[m++] = x[i] - x[i - 1];
     if (m < 8)
         return NAN;
-    qsort(scratch, m, sizeof *scratch, compare_doubles);
+    qsort(scratch, m, sizeof *scratch, io_compare_doubles);
     double median = scratch[m / 2];
     for (size_t i = 0; i < m; i++)
         scratch[i] = fabs(scratch[i] - median);
-    qsort(scratch, m, sizeof *scratch, compare_doubles);
+    qsort(scratch, m, sizeof *scratch, io_compare_doubles);
     return 1.4826 * scratch[m / 2];
 }
 
@@ -98,7 +92,7 @@ static int find_code(const double *x, size_t n, double jump, double *scratch, su
             scratch[m++] = x[i];
         i = end;
     }
-    qsort(scratch, m, sizeof *scratch, compare_doubles);
+    qsort(scratch, m, sizeof *scratch, io_compare_doubles);
     for (size_t i = 0, tried = 0; i < m && tried < MAX_CANDIDATES; tried++) {
         size_t j = i;
         while (j < m && scratch[j] == scratch[i])

@@ -110,12 +110,6 @@ static long year_of_month(long month)
     return month >= 0 ? month / 12 : -((11 - month) / 12);
 }
 
-static int compare_doubles(const void *a, const void *b)
-{
-    double x = *(const double *)a, y = *(const double *)b;
-    return (x > y) - (x < y);
-}
-
 /* Whether every step of the dated rows moves on by k whole periods (months when per_year is
  * 12, years when 1) of `low`..`high` days each, k >= 1. */
 static int steps_by_period(const double *time, size_t n, calendar_kind cal, int per_year,
@@ -137,20 +131,6 @@ static int steps_by_period(const double *time, size_t n, calendar_kind cal, int 
     return 1;
 }
 
-/* The median step in days (n >= 2). */
-static double median_step(const double *time, size_t n)
-{
-    double *steps = malloc((n - 1) * sizeof *steps);
-    if (!steps)
-        return NAN;
-    for (size_t i = 1; i < n; i++)
-        steps[i - 1] = time[i] - time[i - 1];
-    qsort(steps, n - 1, sizeof *steps, compare_doubles);
-    double m = steps[(n - 1) / 2];
-    free(steps);
-    return m;
-}
-
 /* Monthly or yearly records go on a month or year index (see io.h); anything else stays on
  * day numbers. Year steps are tried first: twelve months of steps pass the month rule too. */
 static time_axis_unit dated_unit(const double *time, size_t n, const time_reader *tr)
@@ -163,7 +143,7 @@ static time_axis_unit dated_unit(const double *time, size_t n, const time_reader
         return TIME_AXIS_MONTHS;
     if (n < 2)
         return TIME_AXIS_DAYS;
-    double median = median_step(time, n);
+    double median = io_median_step(time, n);
     if (median >= 359.0 && median <= 367.0 && steps_by_period(time, n, cal, 1, 359.0, 367.0))
         return TIME_AXIS_YEARS;
     if (median >= 27.0 && median <= 32.0 && steps_by_period(time, n, cal, 12, 27.0, 32.0))

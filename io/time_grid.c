@@ -115,31 +115,11 @@ static void free_columns(double **values, size_t nseries, double *grid)
 
 static int resample_onto(series_table *t, double step, double max_span, io_error *err);
 
-static int compare_steps(const void *a, const void *b)
-{
-    double x = *(const double *)a, y = *(const double *)b;
-    return (x > y) - (x < y);
-}
-
-/* The median of the time steps (n >= 2); NaN when out of memory. */
-static double median_time_step(const series_table *t)
-{
-    double *steps = malloc((t->n - 1) * sizeof *steps);
-    if (!steps)
-        return NAN;
-    for (size_t i = 1; i < t->n; i++)
-        steps[i - 1] = t->time[i] - t->time[i - 1];
-    qsort(steps, t->n - 1, sizeof *steps, compare_steps);
-    double median = steps[(t->n - 1) / 2];
-    free(steps);
-    return median;
-}
-
 int slowscan_table_resample_within(series_table *t, double step, double max_gap, io_error *err)
 {
     const char *name = io_display_name(t->source);
     if (t->n >= 2 && isfinite(max_gap)) {
-        double median = median_time_step(t);
+        double median = io_median_step(t->time, t->n);
         if (isnan(median))
             return io_fail(err, SLOWSCAN_ENOMEM, "%s: out of memory resampling", name);
         if (step < median * (1.0 - 1e-9))
