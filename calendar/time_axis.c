@@ -17,12 +17,6 @@ static int read_number(const char *s, double *v)
     return end != s && *end == '\0' && isfinite(*v) ? 0 : -1;
 }
 
-/* The astronomical year of a month index (floor division: month -1 is in year -1). */
-static long year_of_month(long month)
-{
-    return month >= 0 ? month / 12 : -((11 - month) / 12);
-}
-
 const char *slowscan_time_axis_unit_name(time_axis_unit unit)
 {
     switch (unit) {
@@ -72,7 +66,7 @@ int slowscan_time_axis_value(const time_axis *axis, const char *text, const char
     if (axis->unit == TIME_AXIS_DAYS)
         *value = days;
     else
-        *value = (double)(axis->unit == TIME_AXIS_MONTHS ? month : year_of_month(month));
+        *value = axis->unit == TIME_AXIS_MONTHS ? (double)month : floor((double)month / 12.0);
     return SLOWSCAN_OK;
 }
 

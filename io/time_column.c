@@ -104,12 +104,6 @@ int time_reader_cell(time_reader *tr, const char *cell, double *value, char *why
     return SLOWSCAN_OK;
 }
 
-/* The astronomical year of a month index (floor division: month -1 is in year -1). */
-static long year_of_month(long month)
-{
-    return month >= 0 ? month / 12 : -((11 - month) / 12);
-}
-
 /* Whether every step of the dated rows moves on by k whole periods (months when per_year is
  * 12, years when 1) of `low`..`high` days each, k >= 1. */
 static int steps_by_period(const double *time, size_t n, calendar_kind cal, int per_year,
@@ -121,7 +115,8 @@ static int steps_by_period(const double *time, size_t n, calendar_kind cal, int 
         if (slowscan_calendar_from_day_number(cal, time[i], &d) != SLOWSCAN_OK)
             return 0;
         long month = slowscan_calendar_month_index(cal, &d);
-        long index = per_year == 12 ? month : year_of_month(month);
+        /* the year of month index m is floor(m / 12): month -1 is in year -1 */
+        long index = per_year == 12 ? month : (long)floor((double)month / 12.0);
         long k = index - previous;
         double days = i ? time[i] - time[i - 1] : 0.0;
         if (i && (k < 1 || days < low * (double)k || days > high * (double)k))
@@ -187,7 +182,7 @@ void time_reader_settle(const time_reader *tr, double *time, size_t n, time_axis
         calendar_date d;
         slowscan_calendar_from_day_number(axis.calendar, time[i], &d);
         long month = slowscan_calendar_month_index(axis.calendar, &d);
-        time[i] = (double)(axis.unit == TIME_AXIS_MONTHS ? month : year_of_month(month));
+        time[i] = axis.unit == TIME_AXIS_MONTHS ? (double)month : floor((double)month / 12.0);
     }
     if (axis.unit == TIME_AXIS_MONTHS)
         axis.precision = DATE_MONTH;
