@@ -17,28 +17,6 @@ struct csv_column_store {
     int backward;        /* the table's row i is the file's row n-1-i (ages, youngest first) */
 };
 
-/* An unnamed temporary file in `dir` (or $TMPDIR, or /tmp). */
-static FILE *unnamed_temporary(const char *dir, io_error *err)
-{
-    const char *where = dir && *dir ? dir : getenv("TMPDIR");
-    if (!where || !*where)
-        where = "/tmp";
-    char path[4096];
-    snprintf(path, sizeof path, "%s/slowscan-columns-XXXXXX", where);
-    int fd = mkstemp(path);
-    FILE *fp = fd >= 0 ? fdopen(fd, "w+b") : NULL;
-    if (fd >= 0)
-        unlink(path); /* no name: gone when closed, however the run ends */
-    if (!fp) {
-        char why[128];
-        io_fail(err, SLOWSCAN_EIO, "cannot make a temporary file in %s: %s", where,
-                io_strerror(errno, why, sizeof why));
-        if (fd >= 0)
-            close(fd);
-    }
-    return fp;
-}
-
 int slowscan_csv_open_columns(const char *path, const csv_read_options *options,
                               const char *temp_dir, csv_column_store **out, io_error *err)
 {
@@ -46,9 +24,10 @@ int slowscan_csv_open_columns(const char *path, const csv_read_options *options,
     csv_column_store *s = calloc(1, sizeof *s);
     if (!s)
         return io_fail(err, SLOWSCAN_ENOMEM, "%s: out of memory", path);
-    if (!(s->rows = unnamed_temporary(temp_dir, err))) {
+    int made = io_unnamed_temporary(temp_dir, "slowscan-columns", &s->rows, err);
+    if (made != SLOWSCAN_OK) {
         free(s);
-        return SLOWSCAN_EIO;
+        return made;
     }
     int st = csv_read(path, options, &s->header, s->rows, &s->column, &s->backward, err);
     if (st == SLOWSCAN_OK && fflush(s->rows) != 0)

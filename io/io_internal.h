@@ -19,6 +19,10 @@ double io_median_step(const double *time, size_t n);
 /* Records a temporary output file just made, so a signal's handler can remove it
  * (temporaries.c); slowscan_atomic_temp_done forgets it once it is renamed or removed. */
 void io_temp_register(const char *path);
+/* A scratch file with no name, in dir (NULL: $TMPDIR, else /tmp), opened "w+b": unlinked as
+ * soon as it is made, so no run — failed, killed or crashed — leaves it behind. `stem` names
+ * it while it is being made. SLOWSCAN_EIO naming the folder, or SLOWSCAN_ENOMEM. */
+int io_unnamed_temporary(const char *dir, const char *stem, FILE **fp, io_error *err);
 
 /* The name used in messages: "standard input" for "-" (or NULL), else the path as given. */
 const char *io_display_name(const char *source);

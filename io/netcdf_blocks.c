@@ -184,19 +184,9 @@ static int spill_slab(netcdf_reader *r, const netcdf_variable *v, size_t t0, siz
 static int make_spill(netcdf_reader *r, const netcdf_variable *v, io_error *err)
 {
     netcdf_drop_spill(r);
-    const char *dir = r->options.temp_dir ? r->options.temp_dir : getenv("TMPDIR");
-    char path[4096];
-    snprintf(path, sizeof path, "%s/slowscan-netcdf-XXXXXX", dir && *dir ? dir : "/tmp");
-    int fd = mkstemp(path);
-    if (fd < 0 || !(r->spill = fdopen(fd, "w+b"))) {
-        char why[128];
-        io_strerror(errno, why, sizeof why);
-        if (fd >= 0)
-            close(fd), unlink(path);
-        return netcdf_fail(r, err, SLOWSCAN_EIO, "cannot make a temporary file in %s: %s",
-                           dir && *dir ? dir : "/tmp", why);
-    }
-    unlink(path); /* gone from the directory now; the space is freed when it is closed */
+    int made = io_unnamed_temporary(r->options.temp_dir, "slowscan-netcdf", &r->spill, err);
+    if (made != SLOWSCAN_OK)
+        return made;
     /* slabs of as many steps as the budget holds for every cell, at least one */
     size_t budget = r->block_capacity * r->nt; /* doubles in r->raw */
     size_t steps = budget / v->ncells ? budget / v->ncells : 1;

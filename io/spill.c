@@ -81,25 +81,9 @@ static int write_failed(const record_spill *s, int errnum, io_error *err)
 /* Moves the records kept in memory to a new unnamed temporary file. */
 static int open_file(record_spill *s, io_error *err)
 {
-    const char *dir = spill_dir(s);
-    size_t len = strlen(dir) + sizeof "/slowscan-spill-XXXXXX";
-    char *name = malloc(len), why[128];
-    if (!name)
-        return io_fail(err, SLOWSCAN_ENOMEM, "out of memory");
-    snprintf(name, len, "%s/slowscan-spill-XXXXXX", dir);
-    int fd = mkstemp(name);
-    int e = errno;
-    if (fd >= 0)
-        unlink(name);
-    free(name);
-    if (fd < 0)
-        return io_fail(err, SLOWSCAN_EIO, "cannot create a temporary file in %s: %s", dir,
-                       io_strerror(e, why, sizeof why));
-    if (!(s->fp = fdopen(fd, "w+b"))) {
-        e = errno;
-        close(fd);
-        return write_failed(s, e, err);
-    }
+    int made = io_unnamed_temporary(s->dir, "slowscan-spill", &s->fp, err);
+    if (made != SLOWSCAN_OK)
+        return made;
     size_t bytes = s->offset[s->count];
     if (bytes && fwrite(s->memory, 1, bytes, s->fp) != bytes)
         return write_failed(s, errno, err);

@@ -10,6 +10,7 @@
  * holds stays reachable from it, so nothing here is a leak. */
 #include "io_internal.h"
 
+#include <errno.h>
 #include <pthread.h>
 #include <signal.h>
 #include <stdlib.h>
@@ -90,4 +91,28 @@ void slowscan_atomic_remove_temporaries(void)
         for (size_t k = 0; k < SLOTS_PER_CHUNK; k++)
             if (c->slots[k].live && c->slots[k].path)
                 unlink(c->slots[k].path);
+}
+
+int io_unnamed_temporary(const char *dir, const char *stem, FILE **fp, io_error *err)
+{
+    *fp = NULL;
+    const char *tmp = getenv("TMPDIR");
+    const char *where = dir && *dir ? dir : tmp && *tmp ? tmp : "/tmp";
+    size_t len = strlen(where) + strlen(stem) + sizeof "/-XXXXXX";
+    char *path = malloc(len), why[128];
+    if (!path)
+        return io_fail(err, SLOWSCAN_ENOMEM, "out of memory");
+    snprintf(path, len, "%s/%s-XXXXXX", where, stem);
+    int fd = mkstemp(path), e = errno;
+    if (fd >= 0) {
+        unlink(path); /* no name from now on: gone when closed, however the run ends */
+        if (!(*fp = fdopen(fd, "w+b"))) {
+            e = errno;
+            close(fd);
+        }
+    }
+    free(path);
+    return *fp ? SLOWSCAN_OK
+               : io_fail(err, SLOWSCAN_EIO, "cannot create a temporary file in %s: %s", where,
+                         io_strerror(e, why, sizeof why));
 }
