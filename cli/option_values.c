@@ -29,20 +29,13 @@ int cli_parse_positive(const char *name, const char *value, double *out)
     return rc;
 }
 
-/* Calendar units a length may carry, longest suffix first. */
-static const struct {
-    const char *suffix;
-    length_unit unit;
-} length_units[] = {{"mon", LENGTH_MONTHS}, {"y", LENGTH_YEARS}, {"d", LENGTH_DAYS}};
+/* Calendar units a length may carry, the longest suffix ("mon") tried first; their spelling
+ * is the library's (slowscan_screen_length_suffix). */
+static const length_unit length_units[] = {LENGTH_MONTHS, LENGTH_YEARS, LENGTH_DAYS};
 
 const char *cli_length_suffix(int percent, length_unit unit)
 {
-    if (percent)
-        return "%";
-    for (size_t k = 0; k < sizeof length_units / sizeof length_units[0]; k++)
-        if (length_units[k].unit == unit)
-            return length_units[k].suffix;
-    return "";
+    return percent ? "%" : slowscan_screen_length_suffix(unit);
 }
 
 /* "N%", "N" in time units, or N with a calendar unit (30y, 6mon, 10d: a dated time column
@@ -63,10 +56,11 @@ int cli_parse_length(const char *name, const char *value, cli_length *len)
     if (len->percent)
         buf[n - 1] = '\0';
     for (size_t k = 0; !len->percent && k < sizeof length_units / sizeof length_units[0]; k++) {
-        size_t m = strlen(length_units[k].suffix);
-        if (n > m && strcmp(buf + n - m, length_units[k].suffix) == 0) {
+        const char *suffix = slowscan_screen_length_suffix(length_units[k]);
+        size_t m = strlen(suffix);
+        if (n > m && strcmp(buf + n - m, suffix) == 0) {
             buf[n - m] = '\0';
-            len->unit = length_units[k].unit;
+            len->unit = length_units[k];
             break;
         }
     }

@@ -1,5 +1,6 @@
 /* Lengths with calendar units (30y, 6mon, 10d) on a series' time axis
  * (slowscan_screen_length_on_axis, slowscan_screen_config_on_axis; screen.h). */
+#include "screen_internal.h"
 #include "slowscan/screen.h"
 #include "slowscan/status.h"
 
@@ -45,6 +46,22 @@ int slowscan_screen_length_on_axis(const screen_length *len, const time_axis *ax
     return SLOWSCAN_OK;
 }
 
+int screen_length_to_axis(screen_length *len, screen_option option, const time_axis *axis,
+                          screen_detail *d)
+{
+    screen_length converted;
+    if (slowscan_screen_length_on_axis(len, axis, &converted) != SLOWSCAN_OK) {
+        d->rule = SCREEN_RULE_LENGTH_UNIT;
+        d->option = option;
+        d->status = SLOWSCAN_EINVAL;
+        d->count = (size_t)len->unit;
+        d->need = (size_t)axis->unit;
+        return SLOWSCAN_EINVAL;
+    }
+    *len = converted;
+    return SLOWSCAN_OK;
+}
+
 int slowscan_screen_config_on_axis(screen_config *cfg, const time_axis *axis,
                                    screen_detail *d)
 {
@@ -54,19 +71,19 @@ int slowscan_screen_config_on_axis(screen_config *cfg, const time_axis *axis,
     } lengths[] = {{&cfg->window, SCREEN_OPTION_WINDOW},
                    {&cfg->bandwidth, SCREEN_OPTION_BANDWIDTH},
                    {&cfg->deseason_window, SCREEN_OPTION_DESEASON_WINDOW}};
-    for (size_t k = 0; k < sizeof lengths / sizeof lengths[0]; k++) {
-        if (isnan(lengths[k].len->amount))
-            continue; /* a length not given (the deseason window) */
-        screen_length converted;
-        if (slowscan_screen_length_on_axis(lengths[k].len, axis, &converted) != SLOWSCAN_OK) {
-            d->rule = SCREEN_RULE_LENGTH_UNIT;
-            d->option = lengths[k].option;
-            d->status = SLOWSCAN_EINVAL;
-            d->count = (size_t)lengths[k].len->unit;
-            d->need = (size_t)axis->unit;
-            return SLOWSCAN_EINVAL;
-        }
-        *lengths[k].len = converted;
+    int st = SLOWSCAN_OK;
+    for (size_t k = 0; k < sizeof lengths / sizeof lengths[0] && st == SLOWSCAN_OK; k++)
+        if (!isnan(lengths[k].len->amount)) /* NaN: not given (the deseason window) */
+            st = screen_length_to_axis(lengths[k].len, lengths[k].option, axis, d);
+    return st;
+}
+
+const char *slowscan_screen_length_suffix(length_unit unit)
+{
+    switch (unit) {
+    case LENGTH_DAYS: return "d";
+    case LENGTH_MONTHS: return "mon";
+    case LENGTH_YEARS: return "y";
+    default: return "";
     }
-    return SLOWSCAN_OK;
 }

@@ -80,19 +80,9 @@ static const char *name_of(const message_out *m, screen_option option)
                                                             : slowscan_message_option_name(option);
 }
 
-static const char *unit_suffix(length_unit unit)
-{
-    switch (unit) {
-    case LENGTH_DAYS: return "d";
-    case LENGTH_MONTHS: return "mon";
-    case LENGTH_YEARS: return "y";
-    default: return "";
-    }
-}
-
 static const char *length_text(const screen_length *len, char buf[64])
 {
-    snprintf(buf, 64, "%g%s", len->amount, len->percent ? "%" : unit_suffix(len->unit));
+    snprintf(buf, 64, "%g%s", len->amount, len->percent ? "%" : slowscan_screen_length_suffix(len->unit));
     return buf;
 }
 

@@ -210,19 +210,12 @@ static int method_cells(method_pass *p)
  * cannot be measured on it). */
 static int grid_on_axis(robustness_grid *grid, const time_axis *axis, screen_detail *d)
 {
-    for (size_t k = 0; k < grid->nwindows + grid->nbandwidths; k++) {
-        int is_window = k < grid->nwindows;
-        screen_length *len = is_window ? &grid->windows[k] : &grid->bandwidths[k - grid->nwindows];
-        if (slowscan_screen_length_on_axis(len, axis, len) != SLOWSCAN_OK) {
-            d->rule = SCREEN_RULE_LENGTH_UNIT;
-            d->option = is_window ? SCREEN_OPTION_WINDOW : SCREEN_OPTION_BANDWIDTH;
-            d->status = SLOWSCAN_EINVAL;
-            d->count = (size_t)len->unit;
-            d->need = (size_t)axis->unit;
-            return SLOWSCAN_EINVAL;
-        }
-    }
-    return SLOWSCAN_OK;
+    int st = SLOWSCAN_OK;
+    for (size_t w = 0; w < grid->nwindows && st == SLOWSCAN_OK; w++)
+        st = screen_length_to_axis(&grid->windows[w], SCREEN_OPTION_WINDOW, axis, d);
+    for (size_t b = 0; b < grid->nbandwidths && st == SLOWSCAN_OK; b++)
+        st = screen_length_to_axis(&grid->bandwidths[b], SCREEN_OPTION_BANDWIDTH, axis, d);
+    return st;
 }
 
 int slowscan_robustness_series(robustness_workspace *ws, const robustness_grid *grid,

@@ -80,4 +80,9 @@ typedef struct {
 } screen_null_task;
 int screen_null_parallel(screen_null_task *task, null_trend_workspace *const *ws, size_t threads);
 
+/* A length of option `option` in the axis' own unit, in place (lengths.c); a refusal
+ * (SCREEN_RULE_LENGTH_UNIT) in *d when the axis cannot measure it. */
+int screen_length_to_axis(screen_length *len, screen_option option, const time_axis *axis,
+                          screen_detail *d);
+
 #endif

@@ -311,6 +311,9 @@ int slowscan_screen_length_on_axis(const screen_length *len, const time_axis *ax
 /* Every length of cfg (window, bandwidth, deseason window) in the axis' own unit; a refusal
  * (SCREEN_RULE_LENGTH_UNIT) names the first that cannot be. slowscan_screen_prepare does
  * this with the input's axis itself; callers resolving windows beforehand call it first. */
+/* How a calendar unit is written after a length: "d", "mon", "y"; "" for the axis' own. */
+SLOWSCAN_API
+const char *slowscan_screen_length_suffix(length_unit unit);
 SLOWSCAN_API
 int slowscan_screen_config_on_axis(screen_config *cfg, const time_axis *axis,
                                    screen_detail *detail);
