@@ -79,13 +79,10 @@ int cli_grid(const cli_options *o, series_table *t, int announce, io_error *err)
     size_t gaps = 0;
     int st = slowscan_table_regularize(t, &gaps, err);
     if (st == SLOWSCAN_OK && gaps > 0 && announce) {
-        char step[64];
-        cli_warning("%s: %zu row%s missing from the regular grid (step %s) were read as "
+        const char *unit = slowscan_time_axis_unit_name(t->axis.unit);
+        cli_warning("%s: %zu row%s missing from the regular grid (step %.15g%s%s) were read as "
                     "missing values", cli_source_name(t->source), gaps, gaps == 1 ? "" : "s",
-                    slowscan_time_axis_unit_name(t->axis.unit)
-                        ? (snprintf(step, sizeof step, "%.15g %s", t->time[1] - t->time[0],
-                                    slowscan_time_axis_unit_name(t->axis.unit)), step)
-                        : (snprintf(step, sizeof step, "%.15g", t->time[1] - t->time[0]), step));
+                    t->time[1] - t->time[0], unit ? " " : "", unit ? unit : "");
     }
     return st;
 }

@@ -83,27 +83,16 @@ static void finish_grid(cli_cursor *c)
     c->reader = NULL;
 }
 
-/* The next table of series of the streamed CSV being read (made ready); CLI_CURSOR_END at its
- * end. */
-static int next_columns(cli_cursor *c)
+/* A table just read (status st of the reading, its message in err) becomes the table walked:
+ * made ready like a CSV table, notices said on the first walk only. */
+static int take_chunk(cli_cursor *c, int st, const io_error *err, int suspect_codes)
 {
-    slowscan_series_table_free(&c->chunk);
-    c->table = NULL;
-    const series_table *h = slowscan_csv_columns_header(c->columns);
-    if (c->column_first >= h->nseries) {
-        c->columns = NULL;
-        return CLI_CURSOR_END;
-    }
-    io_error err = {{0}};
-    int st = slowscan_csv_columns_table(c->columns, c->column_first, cells_per_table(h->n),
-                                        &c->chunk, &err);
     if (st != SLOWSCAN_OK) {
-        cli_error("%s", err.message);
+        cli_error("%s", err->message);
         return st == SLOWSCAN_ENOMEM ? EXIT_INTERNAL : EXIT_BAD_INPUT;
     }
-    c->column_first += c->chunk.nseries;
     int first = c->chunks++ == 0 && !c->opts->repeat_walk;
-    if (!c->opts->repeat_walk)
+    if (suspect_codes && !c->opts->repeat_walk)
         cli_series_notices(&c->chunk);
     int rc = cli_ready_table(c->opts, &c->chunk, first);
     if (rc == EXIT_OK) {
@@ -113,32 +102,33 @@ static int next_columns(cli_cursor *c)
     return rc;
 }
 
-/* The next table of cells of the grid being read (made ready); CLI_CURSOR_END at its end. */
+/* The next table of series of the streamed CSV, or of cells of the grid, being read;
+ * CLI_CURSOR_END at its end. */
 static int next_chunk(cli_cursor *c)
 {
-    if (c->columns)
-        return next_columns(c);
     slowscan_series_table_free(&c->chunk);
     c->table = NULL;
+    io_error err = {{0}};
+    if (c->columns) {
+        const series_table *h = slowscan_csv_columns_header(c->columns);
+        if (c->column_first >= h->nseries) {
+            c->columns = NULL;
+            return CLI_CURSOR_END;
+        }
+        int st = slowscan_csv_columns_table(c->columns, c->column_first,
+                                            cells_per_table(h->n), &c->chunk, &err);
+        c->column_first += c->chunk.nseries;
+        return take_chunk(c, st, &err, 1);
+    }
     size_t n;
     slowscan_netcdf_times(c->reader, &n, NULL, NULL);
-    io_error err = {{0}};
     int st = slowscan_netcdf_next_table(c->reader, cells_per_table(n), &c->chunk,
                                         &c->all_missing, &err);
     if (st == NETCDF_END) {
         finish_grid(c);
         return CLI_CURSOR_END;
     }
-    if (st != SLOWSCAN_OK) {
-        cli_error("%s", err.message);
-        return st == SLOWSCAN_ENOMEM ? EXIT_INTERNAL : EXIT_BAD_INPUT;
-    }
-    int rc = cli_ready_table(c->opts, &c->chunk, c->chunks++ == 0 && !c->opts->repeat_walk);
-    if (rc == EXIT_OK) {
-        c->table = &c->chunk;
-        c->next = 0;
-    }
-    return rc;
+    return take_chunk(c, st, &err, 0);
 }
 
 /* Opens input c->input (a grid's reader, or a CSV table as read). */
