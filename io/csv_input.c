@@ -38,7 +38,7 @@ char *csv_trim(char *s, size_t *len)
 
 /* A cell: NaN for empty / NA / NaN (any case); else 0 and a finite number, 1 not a number,
  * 2 not finite (inf, Infinity, or too large for a double). */
-static int parse_cell(const char *s, double *v)
+int csv_cell_number(const char *s, double *v)
 {
     if (!*s || !strcasecmp(s, "NA") || !strcasecmp(s, "NaN")) {
         *v = NAN;
@@ -86,7 +86,7 @@ static void data_field(csv_reader *r, char *s, size_t len)
         r->row_values[0] = v;
         return;
     }
-    int bad = parse_cell(cell, &v);
+    int bad = csv_cell_number(cell, &v);
     /* Without --vars, a column whose first value is text (a station id, a flag column) is
      * not a series: it is left out with a notice. A column that starts with numbers and then
      * holds text is a broken series, refused below. */

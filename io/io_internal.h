@@ -100,6 +100,9 @@ int csv_read(const char *path, const csv_read_options *options, series_table *t,
 
 /* Sets the reader's error once ("NAME: " is prepended); returns the reader's status. */
 int csv_failf(csv_reader *r, int status, const char *fmt, ...) __attribute__((format(printf, 3, 4)));
+/* A cell as a number: 0 with *v (NaN for empty, NA, NaN), 1 not a number, 2 not finite (inf,
+ * Infinity, or too large for a double). The data cells' rule and the time column's. */
+int csv_cell_number(const char *s, double *v);
 /* Narrows s[0..*len) to drop surrounding spaces and tabs; NUL-terminates in place. */
 char *csv_trim(char *s, size_t *len);
 

@@ -31,17 +31,6 @@ static int written_decimals(const char *s)
     return n > 15 ? -1 : (int)n;
 }
 
-/* A plain number: 0 with *v, 1 not a number, 2 not finite (as the data cells). */
-static int read_number(const char *s, double *v)
-{
-    char *end;
-    errno = 0;
-    *v = strtod(s, &end);
-    if (end == s || *end != '\0')
-        return 1;
-    return !isfinite(*v) || (errno == ERANGE && fabs(*v) > 1) ? 2 : 0;
-}
-
 static int read_date(time_reader *tr, const char *cell, double *value, char *why, size_t size)
 {
     const csv_read_options *o = tr->options;
@@ -71,7 +60,7 @@ int time_reader_cell(time_reader *tr, const char *cell, double *value, char *why
         *value = NAN;
         return SLOWSCAN_OK;
     }
-    int number = tr->options->time_format ? 1 : read_number(cell, value);
+    int number = tr->options->time_format ? 1 : csv_cell_number(cell, value);
     int kind = number == 1 ? TIME_CELLS_DATES : TIME_CELLS_NUMBERS;
     if (kind == TIME_CELLS_DATES && tr->options->age) {
         snprintf(why, size, "is not a number, and --age says the column holds ages");
