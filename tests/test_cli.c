@@ -2,6 +2,7 @@
  * formats of DESIGN §4, and the bad-input contract (exit 1, one message naming the file, row,
  * column or option, no output file left behind). */
 #include "check.h"
+#include "slowscan/demo.h"
 
 #include <gsl/gsl_statistics_double.h>
 #include <math.h>
@@ -120,6 +121,13 @@ static void test_demo_matches_committed_data(void)
     snprintf(args, sizeof args, "cmp -s '%s/shelf.nc' data/shelf.nc", dir);
     CHECK(check_run(args, NULL, NULL) == 0,
           "the gridded demo is deterministic and equals the committed data/shelf.nc");
+    /* the forced runs, one file per experiment (slowscan_demo_experiment_get) */
+    for (size_t k = 0; k < slowscan_demo_experiment_count(); k++) {
+        const char *name = slowscan_demo_experiment_get(k)->name;
+        snprintf(args, sizeof args, "cmp -s '%s/forced-%s.csv' data/forced-%s.csv", dir, name, name);
+        CHECK(check_run(args, NULL, NULL) == 0,
+              "the forced-run demo '%s' is deterministic and equals the committed file", name);
+    }
 }
 
 static void test_detrend_output(void)

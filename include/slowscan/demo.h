@@ -49,4 +49,39 @@ int slowscan_demo_generate(unsigned long seed, size_t n, double *time, double **
 SLOWSCAN_API
 int slowscan_demo_grid_write(unsigned long seed, const char *path);
 
+/* The forced-run demo (data/README.md): an invented two-layer energy-balance model run as a
+ * control, abrupt steps of one and two doublings, a 1%-a-year ramp and an ensemble that ramps
+ * and then comes back to a lower forcing, each with
+ * some members past a threshold at the peak (or none). Annual means from DEMO_FORCED_FIRST_YEAR. */
+#define DEMO_FORCED_FIRST_YEAR 1850.0
+
+typedef enum {
+    DEMO_FORCING_NONE, /* a control run */
+    DEMO_FORCING_STEP, /* `level` doublings from the first year on */
+    DEMO_FORCING_RAMP, /* 1% more CO2 a year, forcing logarithmic in concentration */
+    DEMO_FORCING_HOLD  /* that ramp up to `level` doublings, down to `settle`, then held */
+} demo_forcing_kind;
+
+typedef struct {
+    const char *name;
+    demo_forcing_kind kind;
+    size_t years;
+    double level;      /* doublings (step; the peak of a hold run) */
+    size_t members;    /* ensemble members (1: a single run) */
+    double settle;     /* doublings a hold run comes back to and keeps */
+} demo_experiment;
+
+SLOWSCAN_API
+size_t slowscan_demo_experiment_count(void);
+SLOWSCAN_API
+const demo_experiment *slowscan_demo_experiment_get(size_t k);
+
+/* One member of an experiment: year[e->years], forcing (W m-2), net flux at the top of the
+ * atmosphere (W m-2, with the control's offset and drift) and near-surface temperature (K,
+ * absolute). Deterministic for a given seed. SLOWSCAN_EINVAL for a member out of range,
+ * SLOWSCAN_ENUMERIC if the model blew up (not with the shipped constants). */
+SLOWSCAN_API
+int slowscan_demo_forced_run(unsigned long seed, const demo_experiment *e, size_t member,
+                             double *year, double *forcing, double *net_flux, double *tas);
+
 #endif
