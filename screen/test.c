@@ -98,6 +98,11 @@ static significance_alternative alternative_of(const screen_config *cfg, size_t 
     return ALTERNATIVE_TWO_SIDED;
 }
 
+int slowscan_screen_test_alternative(const screen_config *cfg, size_t j)
+{
+    return (int)alternative_of(cfg, j);
+}
+
 static int by_double(const void *a, const void *b)
 {
     double x = *(const double *)a, y = *(const double *)b;

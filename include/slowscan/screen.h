@@ -87,6 +87,10 @@ SLOWSCAN_API
 const char *slowscan_screen_test_name(int kind);
 SLOWSCAN_API
 int slowscan_screen_test_rolling(int kind);
+/* The alternative (significance_alternative) test j of cfg is tested against: the setting,
+ * else the indicator's direction (one-sided rising; skewness two-sided). */
+SLOWSCAN_API
+int slowscan_screen_test_alternative(const screen_config *cfg, size_t j);
 
 /* Quantiles of each test's null distribution: the five of the JSON summary, and the two
  * outer ones the figures draw as the null's wider interval (kept apart so that the JSON,
