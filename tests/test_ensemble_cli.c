@@ -1,6 +1,210 @@
-/* screen --ensemble, --members and --member-anomalies through the binary. */
+/* screen --ensemble, --members and --member-anomalies through the binary: rows and roles,
+ * the Benjamini-Hochberg families against statsmodels, anomalies against pandas, the refusals,
+ * the split warning, and the pooled test's size on null ensembles. */
 #include "ensemble_check.h"
+
+#include <gsl/gsl_cdf.h>
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+enum { CLI_MEMBERS = 6, CLI_N = 200 };
+
+/* A CSV of one ensemble T.r0..T.r5 (split or not) and a plain column of AR(1) noise. */
+static const char *ensemble_csv(const char *name, int split, unsigned long seed)
+{
+    double x[(CLI_MEMBERS + 1) * CLI_N];
+    check_rng *rng = check_rng_alloc(seed);
+    ensemble_draw(rng, CLI_MEMBERS + 1, CLI_N, split, x);
+    check_rng_free(rng);
+    const char *path = check_tmp_path(name);
+    check_write_table_csv(path, "t,T.r0,T.r1,T.r2,T.r3,T.r4,T.r5,plain", CLI_MEMBERS + 1, CLI_N,
+                          1.0, x);
+    return path;
+}
+
+static int starts_with(const char *text, const char *prefix)
+{
+    return text && strncmp(text, prefix, strlen(prefix)) == 0;
+}
+
+static size_t count_lines(const char *text, const char *needle)
+{
+    size_t n = 0;
+    for (const char *p = text; p && (p = strstr(p, needle)); p++)
+        n++;
+    return n;
+}
+
+/* screen ARGS IN: its exit code, stdout in *out and stderr in *err (either may be NULL). */
+static int run(const char *args, const char *in, char **out, char **err)
+{
+    char cmd[2400];
+    snprintf(cmd, sizeof cmd, "%s screen --surrogates 99 --threads 2 %s %s", check_binary(), args,
+             in);
+    return check_run(cmd, out, err);
+}
+
+/* Rows and roles; the three BH families equal statsmodels' fdr_bh on their own p-values. */
+static void test_rows(void)
+{
+    const char *in = ensemble_csv("ens.csv", 1, 5), *js = check_tmp_path("ens.json");
+    const char *sum = check_tmp_path("ens-summary.csv");
+    char args[1200], *err = NULL;
+    int rc;
+    snprintf(args, sizeof args, "--ensemble --json %s -o %s", js, sum);
+    rc = run(args, in, NULL, &err);
+    char *out = check_read_file(sum);
+    CHECK(rc == 0 && out, "screen --ensemble runs (%d): %s", rc, err ? err : "");
+    CHECK(starts_with(out, "series,indicator,n,window,bandwidth,tau,statistic,p_value,q_value,"
+                           "null,surrogates,flag,role,share_flagged\n"), "role columns");
+    /* 6 members and a plain series, the mean, the pooled row: x 3 tests */
+    CHECK(count_lines(out, ",member,") == 18 && count_lines(out, ",series,") == 3 &&
+              count_lines(out, "\nT[mean],") == 3 && count_lines(out, "\nT[pooled],") == 3,
+          "rows by role");
+    /* the split test on half the members crossing a threshold: warned once */
+    CHECK(err && count_lines(err, "ensemble 'T' splits") == 1, "split warning: %s",
+          err ? err : "");
+    double v[6] = {1, 1, 1, 0, 0, 0};
+    char cmd[1400];
+    snprintf(cmd, sizeof cmd, "ensemble_rows.py bh %s", sum);
+    /* statsmodels multipletests(method='fdr_bh') within each family */
+    CHECK(check_python(cmd, v, 6) == 6 && v[0] < 1e-9 && v[1] < 1e-9 && v[2] < 1e-9 &&
+              v[3] == 21 && v[4] == 3 && v[5] == 3,
+          "BH families = statsmodels': %g %g %g over %g %g %g rows", v[0], v[1], v[2], v[3],
+          v[4], v[5]);
+    char *json = check_read_file(js);
+    CHECK(json && strstr(json, "\"split\": true") && strstr(json, "\"role\": \"pooled\""),
+          "JSON: the split and the roles");
+    free(json);
+    /* members' rows equal a run without --ensemble (same family: members and plain series) */
+    char *plain = NULL;
+    rc = run("", in, &plain, NULL);
+    char *row = out ? strstr(out, "\nT.r3,lag1,") : NULL, *want = plain ? strstr(plain, "\nT.r3,lag1,") : NULL;
+    CHECK(row && want && strncmp(row, want, strcspn(want + 1, "\n") + 1) == 0 &&
+              starts_with(plain, "series,indicator,n,window,bandwidth,tau,statistic,p_value,"
+                                 "q_value,null,surrogates,flag\n"),
+          "member rows as without --ensemble; no role columns without it");
+    free(plain), free(out), free(err);
+}
+
+/* --members picks the listed suffixes; --member-anomalies screens members minus the mean,
+ * against the same anomalies made by pandas and screened as plain columns. */
+static void test_members_anomalies(void)
+{
+    const char *in = ensemble_csv("ens-m.csv", 0, 6);
+    char *err = NULL;
+    int rc;
+    char *out = NULL;
+    rc = run("--members r0,r1,r2,r4", in, &out, &err);
+    CHECK(rc == 0 && out && count_lines(out, ",member,") == 12 &&
+              count_lines(out, "\nT.r3,lag1,") == 1 && strstr(out, "\nT.r3,lag1,") &&
+              strstr(strstr(out, "\nT.r3,lag1,"), ",series,"),
+          "--members: four members, T.r3 and T.r5 plain (%d)", rc);
+    free(out), free(err);
+    const char *anom = check_tmp_path("ens-anom.csv");
+    char cmd[1400];
+    snprintf(cmd, sizeof cmd, "ensemble_rows.py anomalies %s %s", in, anom);
+    double v = 0;
+    CHECK(check_python(cmd, &v, 1) == 1 && v == CLI_MEMBERS, "pandas anomalies written");
+    out = NULL;
+    char *plain = NULL;
+    rc = run("--member-anomalies", in, &out, NULL);
+    rc |= run("", anom, &plain, NULL);
+    size_t same = 0;
+    for (size_t m = 0; m < CLI_MEMBERS && out && plain; m++) {
+        char key[32];
+        snprintf(key, sizeof key, "\nT.r%zu,variance,", m);
+        const char *a = strstr(out, key), *b = strstr(plain, key);
+        /* pandas' row mean (Debian python3-pandas) and ours agree to the last bit here */
+        same += a && b && strncmp(a, b, strcspn(b + 1, "\n") + 1) == 0;
+    }
+    CHECK(same == CLI_MEMBERS, "--member-anomalies rows = pandas anomalies screened (%zu)", same);
+    free(out), free(plain);
+}
+
+/* One message line naming the file and what is wrong, exit 1, no output file. */
+static void refused(const char *args, const char *header, const char *values, const char *want)
+{
+    const char *in = check_tmp_path("ens-bad.csv"), *sum = check_tmp_path("ens-bad-out.csv");
+    char text[4096];
+    size_t len = (size_t)snprintf(text, sizeof text, "%s\n", header);
+    for (int i = 0; i < 40; i++)
+        len += (size_t)snprintf(text + len, sizeof text - len, "%d,%s\n", i,
+                                i >= 35 && strstr(values, "TAIL") ? "1,2,3,NA" : "1,2,3,4");
+    check_write_file(in, text);
+    char cmd[1600], *err = NULL;
+    snprintf(cmd, sizeof cmd, "%s screen --surrogates 19 %s -o %s %s", check_binary(), args, sum,
+             in);
+    int rc = check_run(cmd, NULL, &err);
+    CHECK(rc == 1 && err && count_lines(err, "\n") == 1 && strstr(err, want) &&
+              !check_file_exists(sum),
+          "refused (%s): rc %d, %s", want, rc, err ? err : "");
+    free(err);
+}
+
+static void test_refusals(void)
+{
+    refused("--ensemble", "t,T.a,T.b,T.c,x", "", "ens-bad.csv: option --ensemble: ensemble of "
+            "column 'T.a' has 3 members, at least 4 needed");
+    refused("--ensemble", "t,a,b,c,d", "", "option --ensemble: no column is named NAME.MEMBER");
+    refused("--members a,b,c", "t,T.a,T.b,T.c,T.d", "", "option --members: 3 members listed");
+    refused("--members a,b,c,e", "t,T.a,T.b,T.c,T.d", "", "has no member 'e'");
+    refused("--ensemble", "t,T.a,T.b,T.c,T.d", "TAIL", "member 'T.d' ends after 35 samples");
+    refused("--ensemble --resume", "t,T.a,T.b,T.c,T.d", "", "not available with --resume");
+    refused("--ensemble --figures " "/tmp", "t,T.a,T.b,T.c,T.d", "", "not available with --figures");
+}
+
+/* The pooled test's size on null ensembles (forced relaxation + AR(1) members, detrended
+ * by the default gaussian-linear fit): with M = 99, P(p <= 0.05) = 0.05 exactly when the
+ * pooled null is exchangeable with the pooled statistic. */
+static void test_pooled_size(void)
+{
+    enum { ENSEMBLES = 120, MEMBERS = 5, N = 150 };
+    double *x = malloc((size_t)ENSEMBLES * MEMBERS * N * sizeof *x);
+    char *header = malloc((size_t)ENSEMBLES * MEMBERS * 16 + 8);
+    check_rng *rng = check_rng_alloc(77);
+    size_t len = (size_t)sprintf(header, "t");
+    for (size_t e = 0; e < ENSEMBLES; e++) {
+        ensemble_draw(rng, MEMBERS, N, 0, x + e * MEMBERS * N);
+        for (size_t m = 0; m < MEMBERS; m++)
+            len += (size_t)sprintf(header + len, ",E%zu.%zu", e, m);
+    }
+    check_rng_free(rng);
+    const char *in = check_tmp_path("ens-null.csv"), *sum = check_tmp_path("ens-null-out.csv");
+    check_write_table_csv(in, header, ENSEMBLES * MEMBERS, N, 1.0, x);
+    free(x), free(header);
+    char args[1400], *err = NULL;
+    int rc;
+    snprintf(args, sizeof args, "--ensemble --quiet -o %s", sum);
+    rc = run(args, in, NULL, &err);
+    CHECK(rc == 0, "null ensembles screened (%d): %s", rc, err ? err : "");
+    free(err);
+    double v[6] = {0};
+    char cmd[1400];
+    snprintf(cmd, sizeof cmd, "ensemble_rows.py size %s 0.05", sum);
+    CHECK(check_python(cmd, v, 6) == 6, "pooled rows counted");
+    /* Bonferroni over the three tests: fails by chance less than 0.1% of runs */
+    unsigned bound = 0;
+    while (gsl_cdf_binomial_Q(bound, 0.05, ENSEMBLES) > 0.001 / 3)
+        bound++;
+    const char *names[] = {"lag1", "recovery_trend", "variance"};
+    for (int k = 0; k < 3; k++) {
+        double lo, hi;
+        check_wilson((size_t)v[2 * k], (size_t)v[2 * k + 1], &lo, &hi);
+        fprintf(stderr, "   pooled %s size on null ensembles (%d x %d members): %g/%g = %.3f, "
+                "Wilson 95%% [%.3f, %.3f]\n", names[k], ENSEMBLES, MEMBERS, v[2 * k],
+                v[2 * k + 1], v[2 * k] / v[2 * k + 1], lo, hi);
+        CHECK(v[2 * k + 1] == ENSEMBLES && v[2 * k] <= bound, "pooled %s size: %g > %u",
+              names[k], v[2 * k], bound);
+    }
+}
 
 void ensemble_cli_tests(void)
 {
+    test_rows();
+    test_members_anomalies();
+    test_refusals();
+    test_pooled_size();
 }
