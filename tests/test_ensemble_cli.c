@@ -8,6 +8,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <unistd.h>
 
 enum { CLI_MEMBERS = 6, CLI_N = 200 };
 
@@ -156,6 +157,28 @@ static void test_refusals(void)
     refused("--ensemble --figures " "/tmp", "t,T.a,T.b,T.c,T.d", "", "not available with --figures");
 }
 
+/* slowscan-mpi refuses --ensemble with several processes (one message, exit 1, no output);
+ * skipped, saying why, without the binary or mpirun. */
+static void test_mpi_refusal(void)
+{
+    if (access("build/slowscan-mpi", X_OK) != 0 || check_run("command -v mpirun", NULL, NULL) != 0 ||
+        strstr(check_binary(), "asan")) {
+        fprintf(stderr, "   ensemble: mpi refusal skipped (no build/slowscan-mpi or mpirun, or "
+                "the sanitized run)\n");
+        return;
+    }
+    const char *in = ensemble_csv("ens-mpi.csv", 0, 9), *sum = check_tmp_path("ens-mpi-out.csv");
+    char cmd[2400], *err = NULL;
+    snprintf(cmd, sizeof cmd, "%smpirun --oversubscribe -np 2 build/slowscan-mpi screen --ensemble "
+             "--surrogates 19 -o %s %s", geteuid() == 0 ? "OMPI_ALLOW_RUN_AS_ROOT=1 "
+             "OMPI_ALLOW_RUN_AS_ROOT_CONFIRM=1 " : "", sum, in);
+    int rc = check_run(cmd, NULL, &err);
+    CHECK(rc != 0 && err && count_lines(err, "slowscan: option --ensemble: not available with "
+                                        "slowscan-mpi") == 1 && !check_file_exists(sum),
+          "slowscan-mpi -np 2 refuses --ensemble (%d): %s", rc, err ? err : "");
+    free(err);
+}
+
 /* The pooled test's size on null ensembles (forced relaxation + AR(1) members, detrended
  * by the default gaussian-linear fit): with M = 99, P(p <= 0.05) = 0.05 exactly when the
  * pooled null is exchangeable with the pooled statistic. */
@@ -206,5 +229,6 @@ void ensemble_cli_tests(void)
     test_rows();
     test_members_anomalies();
     test_refusals();
+    test_mpi_refusal();
     test_pooled_size();
 }
