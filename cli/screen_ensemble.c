@@ -26,6 +26,8 @@ const ensemble_role *ensemble_find(const struct cli_ensemble_run *e, size_t inpu
                                    const char *name)
 {
     ensemble_role key = {.input = input, .name = name};
+    if (e->nroles == 0)
+        return NULL;
     return bsearch(&key, e->roles, e->nroles, sizeof *e->roles, by_input_name);
 }
 
@@ -251,7 +253,8 @@ int cli_ensemble_start(const cli_options *opts, cli_inputs *in, screen_run *run)
                   opts->ensemble.members_text ? " with one of the listed members" : "");
         rc = EXIT_BAD_INPUT;
     }
-    qsort(e->roles, e->nroles, sizeof *e->roles, by_input_name);
+    if (e->nroles > 0) /* (qsort and bsearch take no NULL array, even of 0 elements) */
+        qsort(e->roles, e->nroles, sizeof *e->roles, by_input_name);
     return rc;
 }
 
