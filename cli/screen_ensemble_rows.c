@@ -87,7 +87,11 @@ static int pool(screen_run *run, ensemble_info *info)
     int rc = info->collected == k ? member_rows(run, info, flagged) : EXIT_INTERNAL;
     double *stats = malloc(k * sizeof *stats), *taus = malloc(k * sizeof *taus);
     const double **nulls = malloc(k * sizeof *nulls);
-    rc = rc == EXIT_OK && (!stats || !taus || !nulls) ? EXIT_INTERNAL : rc;
+    size_t most = 0;
+    for (size_t c = 0; c < k * e->ntests; c++)
+        most = info->replicates[c] > most ? info->replicates[c] : most;
+    double *pooled = malloc((2 * most + 1) * sizeof *pooled); /* the null, then scratch */
+    rc = rc == EXIT_OK && (!stats || !taus || !nulls || !pooled) ? EXIT_INTERNAL : rc;
     for (size_t j = 0; rc == EXIT_OK && j < info->ntests; j++) {
         size_t replicates = SIZE_MAX;
         for (size_t m = 0; m < k; m++) {
@@ -98,8 +102,9 @@ static int pool(screen_run *run, ensemble_info *info)
         ensemble_pooled p;
         ensemble_pooled tau;
         int alt = slowscan_screen_test_alternative(&e->cfg, j);
-        if (slowscan_ensemble_pooled_test(stats, nulls, k, replicates, alt, &p) != SLOWSCAN_OK ||
-            slowscan_ensemble_pooled_test(taus, nulls, k, 0, alt, &tau) != SLOWSCAN_OK)
+        if (slowscan_ensemble_pooled_test(stats, nulls, k, replicates, alt, &p, pooled) !=
+                SLOWSCAN_OK ||
+            slowscan_ensemble_pooled_test(taus, nulls, k, 0, alt, &tau, NULL) != SLOWSCAN_OK)
             rc = EXIT_INTERNAL;
         screen_test *t = &info->pooled[j];
         *t = (screen_test){.kind = info->first[j].result.kind, .tau = tau.statistic,
@@ -112,9 +117,11 @@ static int pool(screen_run *run, ensemble_info *info)
             t->quantile[q] = NAN;
         for (size_t q = 0; q < SCREEN_TAIL_QUANTILES; q++)
             t->quantile_tail[q] = NAN;
+        if (!isnan(p.p_value)) /* the pooled null's quantiles, as a member's are summarised */
+            slowscan_screen_null_quantiles(pooled, replicates, pooled + most, t);
         info->share[j] = (double)flagged[j] / (double)k;
     }
-    free(stats), free(taus), free(nulls);
+    free(stats), free(taus), free(nulls), free(pooled);
     if (rc == EXIT_INTERNAL)
         cli_error("out of memory");
     return rc;

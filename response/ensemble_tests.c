@@ -94,7 +94,8 @@ int slowscan_ensemble_split_test(const double *const *members, size_t nmembers, 
 
 int slowscan_ensemble_pooled_test(const double *statistics, const double *const *nulls,
                                   size_t nmembers, size_t replicates,
-                                  significance_alternative alternative, ensemble_pooled *out)
+                                  significance_alternative alternative, ensemble_pooled *out,
+                                  double *pooled_null)
 {
     *out = (ensemble_pooled){.statistic = NAN, .p_value = NAN};
     if (nmembers == 0)
@@ -108,7 +109,7 @@ int slowscan_ensemble_pooled_test(const double *statistics, const double *const 
     out->statistic = sum / (double)nmembers; /* NaN when a member has none */
     if (!complete || replicates == 0 || isnan(out->statistic))
         return SLOWSCAN_OK;
-    double *pooled = malloc(replicates * sizeof *pooled);
+    double *pooled = pooled_null ? pooled_null : malloc(replicates * sizeof *pooled);
     if (!pooled)
         return SLOWSCAN_ENOMEM;
     for (size_t j = 0; j < replicates; j++) {
@@ -119,6 +120,7 @@ int slowscan_ensemble_pooled_test(const double *statistics, const double *const 
     }
     out->p_value = slowscan_significance_p_value(out->statistic, pooled, replicates,
                                                  alternative, &out->null_used);
-    free(pooled);
+    if (pooled != pooled_null)
+        free(pooled);
     return SLOWSCAN_OK;
 }

@@ -148,6 +148,33 @@ static void test_bimodality(void)
                 "evenly spaced values: 5/9");
 }
 
+/* The pooled test against numpy: the mean of the members' statistics against the members'
+ * mean of each replicate, p = (1 + #{pooled_j >= pooled}) / (M + 1) (DESIGN §3's rule). */
+static void test_pooled(void)
+{
+    enum { K = 5, M = 99 };
+    double x[K + K * M], pooled[M];
+    const double *nulls[K];
+    check_rng *rng = check_rng_alloc(11);
+    for (size_t i = 0; i < K + K * M; i++)
+        x[i] = 0.3 * check_rng_gaussian(rng) + (i < K ? 0.15 : 0);
+    check_rng_free(rng);
+    for (size_t m = 0; m < K; m++)
+        nulls[m] = x + K + m * M;
+    ensemble_pooled p;
+    CHECK(slowscan_ensemble_pooled_test(x, nulls, K, M, ALTERNATIVE_INCREASING, &p, pooled) ==
+              SLOWSCAN_OK, "pooled test made");
+    double want[2] = {NAN, NAN};
+    CHECK(check_python_on("ensemble_numpy.py", x, K + K * M, "pooled 5", want, 2) == 2,
+          "numpy ran");
+    CHECK_CLOSE(p.statistic, want[0], 1e-14, 0, "pooled statistic = numpy's");
+    CHECK_CLOSE(p.p_value, want[1], 0, 0, "pooled p = numpy's");
+    CHECK(p.null_used == M, "every replicate used");
+    nulls[2] = NULL;
+    slowscan_ensemble_pooled_test(x, nulls, K, M, ALTERNATIVE_INCREASING, &p, NULL);
+    CHECK(isnan(p.p_value) && isfinite(p.statistic), "a member without a null: no p");
+}
+
 static void test_split(void)
 {
     ensemble_rate r = ensemble_split_rate(ENSEMBLE_SPLIT_NULL_RUNS, 10, 200, 0, 101);
@@ -168,6 +195,7 @@ void suite_ensemble(void)
     test_grouping();
     test_mean();
     test_bimodality();
+    test_pooled();
     test_split();
     ensemble_cli_tests();
 }

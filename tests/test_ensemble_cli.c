@@ -78,6 +78,11 @@ static void test_rows(void)
     char *json = check_read_file(js);
     CHECK(json && strstr(json, "\"split\": true") && strstr(json, "\"role\": \"pooled\""),
           "JSON: the split and the roles");
+    /* Python's json module (RFC 8259): every row of the CSV, the same tau, p and q */
+    snprintf(cmd, sizeof cmd, "json_matches_csv.py %s %s", js, sum);
+    double agree[4] = {0};
+    CHECK(check_python(cmd, agree, 4) == 4 && agree[0] == 27 && agree[1] == 1,
+          "JSON = CSV: %g rows, agree %g", agree[0], agree[1]);
     free(json);
     /* members' rows equal a run without --ensemble (same family: members and plain series) */
     char *plain = NULL;

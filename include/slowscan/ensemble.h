@@ -140,10 +140,13 @@ typedef struct {
 } ensemble_pooled;
 
 /* statistics[nmembers]; nulls[nmembers] of `replicates` values each (a NULL entry: that member
- * has no null). Non-finite values of a replicate leave it out. SLOWSCAN_OK, SLOWSCAN_ENOMEM. */
+ * has no null). Non-finite values of a replicate leave it out. pooled_null (NULL, or room for
+ * `replicates` values) receives the pooled replicates (NaN where left out) when p is made.
+ * SLOWSCAN_OK, SLOWSCAN_ENOMEM. */
 SLOWSCAN_API
 int slowscan_ensemble_pooled_test(const double *statistics, const double *const *nulls,
                                   size_t nmembers, size_t replicates,
-                                  significance_alternative alternative, ensemble_pooled *out);
+                                  significance_alternative alternative, ensemble_pooled *out,
+                                  double *pooled_null);
 
 #endif

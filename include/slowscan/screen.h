@@ -389,6 +389,11 @@ typedef enum {
 SLOWSCAN_API
 const char *slowscan_screen_flag_name(screen_flag flag);
 
+/* t's null_used and quantiles (screen_quantile_levels, screen_tail_levels) of the finite
+ * values among null[m]; sorted is scratch of m values. */
+SLOWSCAN_API
+void slowscan_screen_null_quantiles(const double *null, size_t m, double *sorted,
+                                    screen_test *t);
 /* q-values (Benjamini-Hochberg over every test with a p-value) and flags of `count` tests:
  * with a single tested p it decides itself, else q <= fdr. q[] and flags[] have count
  * entries. SLOWSCAN_ENOMEM. */
