@@ -142,14 +142,18 @@ static void help_indicators(FILE *out)
 }
 
 static const char ensemble_options[] =
-    "ensembles (CSV inputs, grouped within each file, one process; not with --resume,\n"
-    "--maps or --figures):\n"
+    "ensembles (grouped within each input, one process; not with --resume, --maps or\n"
+    "--figures):\n"
     "  --ensemble           columns NAME.MEMBER (split at the last '.') are the members of\n"
     "                       ensemble NAME, at least 4 each; every dotted name must then\n"
     "                       belong to one (an ensemble of fewer members, or members that\n"
     "                       stop at different times, is refused); names without '.' stay\n"
     "                       plain series. Opt-in, so dotted names are never grouped by\n"
-    "                       accident\n"
+    "                       accident. In a NetCDF input the members lie along a dimension\n"
+    "                       named member, realization, ensemble or ens, or whose\n"
+    "                       coordinate has standard_name realization (CF): the cells\n"
+    "                       VAR[DIM=M,...] of each place form an ensemble VAR[...]; such a\n"
+    "                       file is read whole, not a part at a time\n"
     "  --members A,B,C,...  only the columns NAME.A, NAME.B, ... are members (at least 4\n"
     "                       listed; each ensemble must have all of them); implies\n"
     "                       --ensemble\n"

@@ -40,13 +40,72 @@ static int refuse_unsupported(const cli_options *o, const cli_inputs *in)
                          : o->figures_dir      ? "--figures"
                                                : NULL;
     for (size_t f = 0; !option && f < in->ntables; f++)
-        if (in->grid_cells[f] > 0 || in->columns[f])
-            option = in->grid_cells[f] > 0 ? "a NetCDF input" : "a CSV input this wide";
+        if (in->columns[f])
+            option = "a CSV input this wide (it is read a part at a time)";
     if (!option)
         return EXIT_OK;
-    cli_error("option --ensemble: not available with %s (screen the ensemble's columns "
-              "from a CSV file in one process)", option);
+    cli_error("option --ensemble: not available with %s (screen the ensemble in one "
+              "process)", option);
     return EXIT_BAD_INPUT;
+}
+
+/* A NetCDF input read whole into tables[f] (its members must sit side by side; a grid is
+ * otherwise read a part at a time), made ready like a CSV table; its member dimension into
+ * member[size]. */
+static int load_grid(const cli_options *o, cli_inputs *in, size_t f, char *member, size_t size)
+{
+    netcdf_read_options ro = cli_netcdf_options(o);
+    netcdf_reader *r = NULL;
+    io_error err = {{0}};
+    int st = slowscan_netcdf_open(o->files[f], &ro, &r, &err);
+    if (st == SLOWSCAN_OK && !slowscan_netcdf_member_dimension(r, member, size)) {
+        slowscan_netcdf_close(r);
+        cli_error("%s: option --ensemble: no member dimension among its variables' (one named "
+                  "member, realization, ensemble or ens, or with standard_name realization)",
+                  o->files[f]);
+        return EXIT_BAD_INPUT;
+    }
+    if (st == SLOWSCAN_OK)
+        st = slowscan_netcdf_next_table(r, slowscan_netcdf_series_count(r) + 1, &in->tables[f],
+                                        NULL, &err);
+    slowscan_netcdf_close(r);
+    if (st == NETCDF_END)
+        snprintf(err.message, sizeof err.message, "%s: no cell holds a value", o->files[f]);
+    if (st != SLOWSCAN_OK) {
+        cli_error("%s", err.message);
+        return st == SLOWSCAN_ENOMEM ? EXIT_INTERNAL : EXIT_BAD_INPUT;
+    }
+    in->grid_cells[f] = 0; /* walked as a table from now on */
+    return cli_ready_table(o, &in->tables[f], 1);
+}
+
+/* A cell's name VAR[a=1,DIM=3,b=2] as NAME.MEMBER for grouping: VAR[a=1,b=2].3 (a '.' in the
+ * member's value becomes '_'); a cell without that dimension gets a name without a dot. */
+static char *grid_member_name(const char *name, const char *dim)
+{
+    size_t len = strlen(name), dl = strlen(dim);
+    char *out = malloc(len + 3);
+    const char *open = strchr(name, '[');
+    const char *item = open;
+    while (item && item[1] && !(strncmp(item + 1, dim, dl) == 0 && item[1 + dl] == '='))
+        item = strpbrk(item + 1, ",]");
+    if (!out || !item || !item[1]) {
+        if (out)
+            snprintf(out, len + 3, "-");
+        return out;
+    }
+    const char *value = item + 2 + dl, *end = value + strcspn(value, ",]");
+    size_t at = (size_t)(item - name);
+    memcpy(out, name, at); /* VAR[a=1 */
+    if (*end == ',') /* the items after it, keeping the bracket or comma before it */
+        at += (size_t)snprintf(out + at, len + 3 - at, "%c%s", *item, end + 1);
+    else if (*item == ',')
+        at += (size_t)snprintf(out + at, len + 3 - at, "]");
+    out[at++] = '.';
+    for (const char *c = value; c < end; c++)
+        out[at++] = *c == '.' ? '_' : *c;
+    out[at] = '\0';
+    return out;
 }
 
 /* --members A,B,C into suffixes (in *text, which the caller frees). */
@@ -187,17 +246,16 @@ static int grow(struct cli_ensemble_run *e, series_table *t, const ensemble_set 
     return names && values && groups && roles ? EXIT_OK : EXIT_INTERNAL;
 }
 
-/* The ensembles of table f. A table without any is left alone (the run refuses when no
- * table has one). */
+/* The ensembles of table f, grouped by names[] (the table's, or its cells' as NAME.MEMBER).
+ * A table without any is left alone (the run refuses when no table has one). */
 static int group_table(const cli_options *o, struct cli_ensemble_run *e, series_table *t,
-                       size_t f, const ensemble_grouping *how)
+                       size_t f, const ensemble_grouping *how, const char *const *names)
 {
     size_t *len = reaches(t);
     ensemble_set set = {0};
     ensemble_detail d = {0};
-    int st = len ? slowscan_ensemble_group((const char *const *)t->names, len, t->nseries, how,
-                                           &set, &d)
-                 : SLOWSCAN_ENOMEM;
+    int st = len && names ? slowscan_ensemble_group(names, len, t->nseries, how, &set, &d)
+                          : SLOWSCAN_ENOMEM;
     free(len);
     int rc = st == SLOWSCAN_OK || d.rule == ENSEMBLE_RULE_NO_MEMBERS ? EXIT_OK
              : st == SLOWSCAN_ENOMEM                                 ? EXIT_INTERNAL
@@ -218,6 +276,29 @@ static int group_table(const cli_options *o, struct cli_ensemble_run *e, series_
     for (size_t g = 0; rc == EXIT_OK && st == SLOWSCAN_OK && g < set.ngroups; g++)
         rc = add_ensemble(o, e, t, f, &set.groups[g]);
     slowscan_ensemble_set_free(&set);
+    return rc;
+}
+
+/* The ensembles of input f: a CSV table's columns NAME.MEMBER, or a grid's cells along its
+ * member dimension. */
+static int group_input(const cli_options *o, struct cli_ensemble_run *e, cli_inputs *in,
+                       size_t f, const ensemble_grouping *how)
+{
+    char member[260];
+    if (in->grid_cells[f] == 0)
+        return group_table(o, e, &in->tables[f], f, how, (const char *const *)in->tables[f].names);
+    int rc = load_grid(o, in, f, member, sizeof member);
+    series_table *t = &in->tables[f];
+    size_t cells = t->nseries; /* before the means are appended */
+    char **names = rc == EXIT_OK ? calloc(cells + 1, sizeof *names) : NULL;
+    int made = names != NULL;
+    for (size_t k = 0; made && k < cells; k++)
+        made = (names[k] = grid_member_name(t->names[k], member)) != NULL;
+    if (rc == EXIT_OK)
+        rc = group_table(o, e, t, f, how, made ? (const char *const *)names : NULL);
+    for (size_t k = 0; names && k < cells; k++)
+        free(names[k]);
+    free(names);
     return rc;
 }
 
@@ -244,7 +325,7 @@ int cli_ensemble_start(const cli_options *opts, cli_inputs *in, screen_run *run)
     rc = member_list(opts, &text, &list, &how.nmembers);
     how.members = list;
     for (size_t f = 0; rc == EXIT_OK && f < in->ntables; f++)
-        rc = group_table(opts, e, &in->tables[f], f, &how);
+        rc = group_input(opts, e, in, f, &how);
     free(text);
     free(list);
     if (rc == EXIT_OK && e->ngroups == 0) {

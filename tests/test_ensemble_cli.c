@@ -162,6 +162,53 @@ static void test_refusals(void)
     refused("--ensemble --figures " "/tmp", "t,T.a,T.b,T.c,T.d", "", "not available with --figures");
 }
 
+/* The rows NAME[mean] of a line in the summary, in order (a malloc'd text). */
+static char *mean_rows(const char *text)
+{
+    size_t len = text ? strlen(text) : 0, used = 0;
+    char *out = calloc(len + 1, 1);
+    for (const char *p = text; out && p && *p;) {
+        size_t n = strcspn(p, "\n") + (p[strcspn(p, "\n")] != 0);
+        const char *mark = strstr(p, "[mean]");
+        if (mark && mark < p + n)
+            memcpy(out + used, p, n), used += n;
+        p += n;
+    }
+    return out;
+}
+
+/* A NetCDF ensemble (a member dimension "run" with standard_name realization, CF), written by
+ * python3-netcdf4 with the same numbers as a CSV of NAME.MEMBER columns: the same ensembles,
+ * and the means' rows byte for byte (a mean's random stream follows its name). A grid without
+ * a member dimension is refused. */
+static void test_netcdf(void)
+{
+    const char *nc = check_tmp_path("ens.nc"), *csv = check_tmp_path("ens-nc.csv");
+    char cmd[1400];
+    snprintf(cmd, sizeof cmd, "netcdf_ensemble.py %s %s", nc, csv);
+    double runs = 0;
+    CHECK(check_python(cmd, &runs, 1) == 1 && runs == 5, "python3-netcdf4 wrote the ensemble");
+    char *grid = NULL, *table = NULL, *err = NULL;
+    int rc = run("--ensemble", nc, &grid, &err);
+    rc |= run("--ensemble", csv, &table, NULL);
+    CHECK(rc == 0 && count_lines(grid, ",member,") == 30 && count_lines(grid, ",mean,") == 6 &&
+              count_lines(grid, ",pooled,") == 6 && strstr(grid, "\n\"tas[run=3,lat=30]\","),
+          "NetCDF ensemble: 2 cells x 5 members (%d): %s", rc, err ? err : "");
+    char *a = mean_rows(grid), *b = mean_rows(table);
+    CHECK(a && b && count_lines(a, "\n") == 6 && strcmp(a, b) == 0,
+          "NetCDF means = the CSV's means:\n%s---\n%s", a ? a : "", b ? b : "");
+    free(a), free(b), free(grid), free(table), free(err);
+    const char *plain = check_tmp_path("ens-plain.nc");
+    snprintf(cmd, sizeof cmd, "netcdf_grid.py %s NETCDF4 map_chunks > /dev/null && echo 1", plain);
+    double made = 0;
+    check_python(cmd, &made, 1);
+    err = NULL;
+    rc = run("--ensemble", plain, NULL, &err);
+    CHECK(rc == 1 && err && count_lines(err, "\n") == 1 && strstr(err, "no member dimension"),
+          "a grid without members refused (%d): %s", rc, err ? err : "");
+    free(err);
+}
+
 /* slowscan-mpi refuses --ensemble with several processes (one message, exit 1, no output);
  * skipped, saying why, without the binary or mpirun. */
 static void test_mpi_refusal(void)
@@ -234,6 +281,7 @@ void ensemble_cli_tests(void)
     test_rows();
     test_members_anomalies();
     test_refusals();
+    test_netcdf();
     test_mpi_refusal();
     test_pooled_size();
 }
