@@ -22,6 +22,20 @@ void ensemble_draw(check_rng *rng, size_t members, size_t n, int split, double *
     }
 }
 
+void ensemble_draw_fold(check_rng *rng, size_t members, size_t n, double *x)
+{
+    const double h = 0.05;
+    for (size_t m = 0; m < members; m++) {
+        double state = 1.0;
+        for (size_t i = 0; i < n; i++) {
+            double a = 1.0 - 0.98 * (double)i / (double)(n - 1);
+            for (int s = 0; s < 10; s++) /* Euler-Maruyama, 10 substeps a sample */
+                state += (a - state * state) * h + 0.03 * sqrt(h) * check_rng_gaussian(rng);
+            x[m * n + i] = state;
+        }
+    }
+}
+
 ensemble_rate ensemble_split_rate(size_t runs, size_t members, size_t n, int split,
                                   unsigned long seed)
 {

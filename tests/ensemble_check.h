@@ -16,6 +16,11 @@ enum { ENSEMBLE_SPLIT_NULL_RUNS = 400 };
  * logistic step centred at 0.7 n (a threshold crossed by half the ensemble). */
 void ensemble_draw(check_rng *rng, size_t members, size_t n, int split, double *x);
 
+/* x[m * n + i]: members approaching a fold, dx = (a - x^2) dt + 0.03 dW with a ramped from 1
+ * to 0.02 over the record (the saddle-node normal form; Strogatz 1994, Nonlinear Dynamics
+ * and Chaos, 3.1), each member with its own noise: their memory and variance rise. */
+void ensemble_draw_fold(check_rng *rng, size_t members, size_t n, double *x);
+
 typedef struct {
     size_t runs, hits;   /* ensembles tested, flagged split */
     size_t bimodal, gap; /* flagged by each criterion */
