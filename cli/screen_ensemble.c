@@ -200,6 +200,8 @@ static int add_ensemble(const cli_options *o, struct cli_ensemble_run *e, series
     free(members);
     t->names[t->nseries] = joined(info->mean_name, "");
     t->values[t->nseries] = mean;
+    if (t->grid) /* a grid's mean stands where its first member does */
+        t->grid[t->nseries] = t->grid[g->members[0]];
     e->roles[e->nroles++] = (ensemble_role){input, info->mean_name, ROLE_MEAN, e->ngroups - 1, 0};
     if (!t->names[t->nseries++]) {
         cli_error("out of memory");
@@ -237,13 +239,20 @@ static int grow(struct cli_ensemble_run *e, series_table *t, const ensemble_set 
     double **values = realloc(t->values, (t->nseries + set->ngroups) * sizeof *values);
     if (values)
         t->values = values;
+    grid_position *grid = t->grid ? realloc(t->grid, (t->nseries + set->ngroups) * sizeof *grid)
+                                  : NULL;
+    if (grid)
+        t->grid = grid;
     ensemble_info *groups = realloc(e->groups, (e->ngroups + set->ngroups) * sizeof *groups);
     if (groups)
         e->groups = groups;
     ensemble_role *roles = realloc(e->roles, (e->nroles + members + set->ngroups) * sizeof *roles);
     if (roles)
         e->roles = roles;
-    return names && values && groups && roles ? EXIT_OK : EXIT_INTERNAL;
+    if (names && values && (grid || !t->grid) && groups && roles)
+        return EXIT_OK;
+    cli_error("out of memory");
+    return EXIT_INTERNAL;
 }
 
 /* The ensembles of table f, grouped by names[] (the table's, or its cells' as NAME.MEMBER).
