@@ -35,9 +35,16 @@ static void test_grouping(void)
         CHECK(strcmp(ab->name, "a.b") == 0 && ab->nmembers == 4, "ensemble a.b (last dot)");
     }
     slowscan_ensemble_set_free(&set);
+}
 
+/* Refusals, each with its rule and the names it is about (common practice, no source). */
+static void test_grouping_refusals(void)
+{
+    ensemble_grouping how = slowscan_ensemble_grouping_default();
+    ensemble_set set;
+    ensemble_detail d;
     const char *few[] = {"T.a", "T.b", "T.c", "U.1", "U.2", "U.3", "U.4"};
-    st = slowscan_ensemble_group(few, NULL, 7, &how, &set, &d);
+    int st = slowscan_ensemble_group(few, NULL, 7, &how, &set, &d);
     char msg[512];
     slowscan_message_ensemble_refusal(msg, sizeof msg, &d, few, "--ensemble", NULL);
     CHECK(st == SLOWSCAN_EINVAL && d.rule == ENSEMBLE_RULE_FEW_MEMBERS && d.count == 3 &&
@@ -193,6 +200,7 @@ static void test_split(void)
 void suite_ensemble(void)
 {
     test_grouping();
+    test_grouping_refusals();
     test_mean();
     test_bimodality();
     test_pooled();
