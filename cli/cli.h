@@ -34,6 +34,13 @@ enum { CLI_MAX_GRID = 64 };
 /* Detrending methods of one robustness grid (--detrends). */
 enum { CLI_MAX_DETRENDS = 8 };
 
+/* screen --ensemble, --members, --member-anomalies (screen_ensemble.c). */
+typedef struct {
+    int on;                   /* --ensemble, or implied by the other two */
+    const char *members_text; /* --members A,B,C as given, NULL: any NAME.MEMBER */
+    int anomalies;            /* --member-anomalies: members minus the ensemble mean */
+} cli_ensemble_options;
+
 typedef struct {
     const char *command;
     /* input */
@@ -106,6 +113,7 @@ typedef struct {
     /* the command line as given (the history of NetCDF outputs) */
     int argc;
     char **argv;
+    cli_ensemble_options ensemble;
 } cli_options;
 
 /* The null model's name in outputs and random streams ("control" with --null control). */

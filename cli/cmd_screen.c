@@ -140,7 +140,11 @@ static int accept_record(const void *data, size_t size, void *context)
     if (res->ntests > 0 && width > run->name_width)
         run->name_width = width;
     io_error err = {{0}};
-    int st = slowscan_screen_store_add(run->store, name, res, extra, head.extra_size, &err);
+    screen_origin origin;
+    memcpy(&origin, extra, sizeof origin);
+    /* --ensemble: the ensemble means go to their own store (their own BH family) */
+    screen_store *store = cli_ensemble_store_for(run, origin.input, name);
+    int st = slowscan_screen_store_add(store, name, res, extra, head.extra_size, &err);
     if (st != SLOWSCAN_OK)
         return store_failed(st, &err);
     cli_tally_leakage(&sink->leakage, ps.source, ps.name, &res->leakage, res->leakage_tested);
@@ -165,24 +169,38 @@ size_t cli_screen_series_rows(screen_run *run, size_t k, screen_row *rows, int *
         rows[j] = (screen_row){s.name, res->n, rolling_window(res, j), res->bandwidth,
                                s.q_value[j], res->tests[j], s.flag[j], res->harmonics,
                                res->leakage, res->leakage_tested, unit + strlen(unit) + 1, unit,
-                               origin};
+                               origin, cli_ensemble_role(run, origin.input, s.name), NAN};
     *rc = EXIT_OK;
     return res->ntests;
 }
 
-int cli_screen_each_row(screen_run *run, screen_row_visitor visit, void *context)
+/* The rows of every series of `store` (the run's, or with --ensemble the means'), counting
+ * on from *index. */
+static int each_stored_row(screen_run *run, screen_store *store, screen_row_visitor visit,
+                           void *context, size_t *index)
 {
-    size_t series = slowscan_screen_store_count(run->store), index = 0;
-    for (size_t k = 0; k < series; k++) {
+    screen_store *own = run->store;
+    run->store = store; /* cli_screen_series_rows reads the run's store */
+    size_t series = slowscan_screen_store_count(store);
+    int rc = EXIT_OK;
+    for (size_t k = 0; rc == EXIT_OK && k < series; k++) {
         screen_row rows[SCREEN_MAX_TESTS];
-        int rc;
         size_t tests = cli_screen_series_rows(run, k, rows, &rc);
         for (size_t j = 0; rc == EXIT_OK && j < tests; j++)
-            rc = visit(&rows[j], index++, context);
-        if (rc != EXIT_OK)
-            return rc;
+            rc = visit(&rows[j], (*index)++, context);
     }
-    return EXIT_OK;
+    run->store = own;
+    return rc;
+}
+
+int cli_screen_each_row(screen_run *run, screen_row_visitor visit, void *context)
+{
+    size_t index = 0;
+    int rc = each_stored_row(run, run->store, visit, context, &index);
+    if (rc == EXIT_OK && run->ensemble)
+        rc = each_stored_row(run, cli_ensemble_means(run), visit, context, &index);
+    return rc == EXIT_OK && run->ensemble ? cli_ensemble_pooled_rows(run, visit, context, index)
+                                          : rc;
 }
 
 /* The series of the inputs in order, as the batch driver takes them. A grid's cells come a
@@ -290,6 +308,8 @@ static int put_series(void *state, const screen_batch_item *item)
     io_error err = {{0}};
     if (size > 0 && cli_screen_journal(sink->run, sink->record, size, rows, nrows) != EXIT_OK)
         size = 0, sink->rc = EXIT_BAD_INPUT; /* the journal's message is printed */
+    if (size > 0 && cli_ensemble_collect(sink->run, sink->origins[item->index].input, item) != EXIT_OK)
+        size = 0, sink->rc = EXIT_INTERNAL; /* its message is printed */
     free(rows);
     if (size == 0 && sink->rc != EXIT_OK) {
         /* nothing more to say */
@@ -348,7 +368,7 @@ static int screen_share(const cli_options *opts, const cli_inputs *in, ordered_s
     /* Only --rolling needs the paths handed on: the figures read the null's quantiles from
      * the results and prepare the series again once the q-values exist. */
     screen_sink ordered = {.put = put_series, .state = sink,
-                           .keep_series = sink->run->rolling != NULL,
+                           .keep_series = sink->run->rolling != NULL || sink->run->ensemble,
                            .progress = opts->progress > 0 ? series_progress : NULL};
     screen_batch_failure failure;
     int st = slowscan_screen_batch_run(&sink->run->cfg, &source, &ordered, &failure);
@@ -403,6 +423,11 @@ static int replay_series(void *state, const void *record, size_t size)
 static int run_series(const cli_options *opts, const cli_inputs *in, void *context)
 {
     screen_run *run = context;
+    /* --ensemble adds each ensemble's mean to its table as a column before the walk (the
+     * inputs are the run's own, loaded for it by cli_run_series_command) */
+    int ens = cli_ensemble_start(opts, (cli_inputs *)in, run);
+    if (ens != EXIT_OK)
+        return ens;
     ordered_sink sink = {.opts = opts, .run = run, .total = cli_inputs_series_count(in)};
     input_source src = {.ranks = 1, .rc = EXIT_OK};
     cli_cursor_start(&src.cursor, opts, in);
@@ -465,8 +490,13 @@ static int write_csv_row(const screen_row *row, size_t index, void *context)
         cli_put_number(w->out, cells[c]);
         fputc(',', w->out);
     }
-    fprintf(w->out, "%s,%ld,%s\n", w->opts->surrogates > 0 ? cli_null_name(w->opts) : "none",
+    fprintf(w->out, "%s,%ld,%s", w->opts->surrogates > 0 ? cli_null_name(w->opts) : "none",
             w->opts->surrogates, slowscan_screen_flag_name(row->flag));
+    if (row->role) { /* --ensemble */
+        fprintf(w->out, ",%s,", row->role);
+        cli_put_number(w->out, row->share_flagged);
+    }
+    fputc('\n', w->out);
     return EXIT_OK;
 }
 
@@ -497,8 +527,11 @@ static int write_summary(const cli_options *opts, screen_run *run)
 {
     row_writer w = {opts, run->out, run->name_width > 6 ? run->name_width : 6};
     if (strcmp(opts->format, "table") != 0) {
-        cli_put_header(run->out, opts, "series,indicator,n,window,bandwidth,tau,statistic,p_value,"
-                       "q_value,null,surrogates,flag\n");
+        cli_put_header(run->out, opts, opts->ensemble.on
+                       ? "series,indicator,n,window,bandwidth,tau,statistic,p_value,"
+                         "q_value,null,surrogates,flag,role,share_flagged\n"
+                       : "series,indicator,n,window,bandwidth,tau,statistic,p_value,"
+                         "q_value,null,surrogates,flag\n");
         return cli_screen_each_row(run, write_csv_row, &w);
     }
     fprintf(run->out, "%-*s  %-14s %9s %10s %10s  %s\n", w.width, "series", "indicator",
@@ -515,7 +548,9 @@ static int finish(const cli_options *opts, void *context)
         cli_error("out of memory");
         return EXIT_INTERNAL;
     }
-    int rc = run->json ? cli_screen_json(run->json, opts, run) : EXIT_OK;
+    int rc = cli_ensemble_finish(opts, run);
+    if (rc == EXIT_OK)
+        rc = run->json ? cli_screen_json(run->json, opts, run) : EXIT_OK;
     if (rc == EXIT_OK && run->maps)
         rc = cli_screen_maps_fill(run);
     return rc == EXIT_OK ? write_summary(opts, run) : rc;
@@ -543,6 +578,7 @@ int cmd_screen(const cli_options *opts)
     int rc = cli_run_series_command(opts, &cmd);
     /* the journal goes once the outputs are in place; a failed run keeps it */
     cli_resume_close(&run.resume, rc == EXIT_OK);
+    cli_ensemble_free(&run);
     slowscan_screen_store_free(run.store);
     return rc;
 }

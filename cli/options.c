@@ -68,6 +68,14 @@ static int set_quiet(cli_options *o, const char *n, const char *v)
     o->quiet = warnings_silenced = 1;
     return EXIT_OK;
 }
+static int set_ensemble(cli_options *o, const char *n, const char *v)
+{
+    o->ensemble.on = 1;
+    if (strcmp(n, "--members") == 0)
+        o->ensemble.members_text = v;
+    o->ensemble.anomalies |= strcmp(n, "--member-anomalies") == 0;
+    return EXIT_OK;
+}
 static int set_log(cli_options *o, const char *n, const char *v) { (void)n; (void)v; o->log_values = 1; return EXIT_OK; }
 
 static int set_detrend(cli_options *o, const char *n, const char *v)
@@ -347,6 +355,9 @@ static const option_spec options[] = {
     {"--fractions", 1, C_ROBUST, set_fractions},
     {"--detrends", 1, C_ROBUST, cli_set_detrends},
     {"--format", 1, C_SCREEN, set_format},
+    {"--ensemble", 0, C_SCREEN, set_ensemble},
+    {"--members", 1, C_SCREEN, set_ensemble},
+    {"--member-anomalies", 0, C_SCREEN, set_ensemble},
     {"--figures", 1, C_TESTING, set_figures},
     {"--figure-format", 1, C_TESTING, set_figure_format},
     {"-o", 1, C_SERIES | C_MERGE, set_output},

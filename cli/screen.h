@@ -6,6 +6,7 @@
 #include "cli.h"
 
 #include "slowscan/netcdf_maps.h"
+#include "slowscan/screen_batch.h"
 #include "slowscan/screen_store.h"
 
 
@@ -31,6 +32,10 @@ typedef struct {
     const char *time_unit; /* of window and bandwidth: days, months, years, or "" (the time
                               column's own numbers) */
     screen_origin origin;
+    /* --ensemble (screen_ensemble.c): "series", "member", "mean" or "pooled"; NULL without
+     * it. share_flagged: a pooled row's share of members flagged (NaN on other rows). */
+    const char *role;
+    double share_flagged;
 } screen_row;
 
 
@@ -46,6 +51,7 @@ typedef struct {
     netcdf_maps *maps;     /* --maps FILE (owned by the run's outputs) */
     size_t maps_input;     /* the input the maps are of */
     size_t figure_series;  /* series drawn so far */
+    struct cli_ensemble_run *ensemble; /* --ensemble, else NULL */
 } screen_run;
 
 /* The rows of stored series k into rows[SCREEN_MAX_TESTS]; returns how many, or 0 with the
@@ -80,5 +86,32 @@ int cli_screen_unjournal(const void *record, size_t size, const void **series,
                          size_t *series_size, const char **rows, size_t *rows_size);
 int cli_screen_journal(screen_run *run, const void *series, size_t series_size,
                        const char *rows, size_t rows_size);
+
+/* screen --ensemble (screen_ensemble.c). Before the run: groups every table's NAME.MEMBER
+ * columns (or --members), warns of split ensembles, appends each ensemble's mean as a
+ * column NAME[mean] and, with --member-anomalies, replaces the members by their anomalies;
+ * refuses what it does not support (several processes, --resume, --maps, --figures, NetCDF
+ * and streamed inputs). EXIT_OK (run->ensemble set), or an exit code (message printed). */
+int cli_ensemble_start(const cli_options *opts, cli_inputs *in, screen_run *run);
+void cli_ensemble_free(screen_run *run);
+/* The store a screened series goes to: the ensemble means' own (their own BH family), else
+ * the run's. */
+screen_store *cli_ensemble_store_for(screen_run *run, size_t input, const char *name);
+/* A screened series before it enters its store: a member's statistics and nulls are kept
+ * for the pooled test. EXIT_OK or EXIT_INTERNAL (message printed). */
+int cli_ensemble_collect(screen_run *run, size_t input, const screen_batch_item *item);
+/* After the run's decision: the means' q-values, the pooled tests, their q and flags. */
+int cli_ensemble_finish(const cli_options *opts, screen_run *run);
+/* The role of a stored series' rows. */
+const char *cli_ensemble_role(const screen_run *run, size_t input, const char *name);
+/* The ensemble means' store (NULL without --ensemble); the pooled rows after every stored
+ * row (index continues the run's count). */
+screen_store *cli_ensemble_means(const screen_run *run);
+int cli_ensemble_pooled_rows(screen_run *run, screen_row_visitor visit, void *context,
+                             size_t index);
+/* Rows the ensembles add: the means' and the pooled rows. */
+size_t cli_ensemble_rows(const screen_run *run);
+/* --json: the ensembles and their split tests (nothing without --ensemble). */
+void cli_ensemble_json(FILE *fp, const screen_run *run);
 
 #endif

@@ -125,7 +125,12 @@ static void write_row(FILE *fp, const screen_row *row, int several)
         fprintf(fp, "%s\"%g\": ", q ? ", " : "", screen_quantile_levels[q]);
         cli_json_number(fp, row->result.null_used ? row->result.quantile[q] : NAN);
     }
-    fputs("}}", fp);
+    fputs("}", fp);
+    if (row->role) { /* --ensemble */
+        fprintf(fp, ", \"role\": \"%s\", \"share_flagged\": ", row->role);
+        cli_json_number(fp, row->share_flagged);
+    }
+    fputs("}", fp);
 }
 
 typedef struct {
@@ -146,8 +151,10 @@ int cli_screen_json(FILE *fp, const cli_options *opts, screen_run *run)
 {
     fputs("{\n", fp);
     write_parameters(fp, opts);
+    cli_ensemble_json(fp, run);
     fputs("  \"results\": [\n", fp);
-    json_rows rows = {fp, slowscan_screen_store_tests(run->store), cli_several_inputs(opts)};
+    json_rows rows = {fp, slowscan_screen_store_tests(run->store) + cli_ensemble_rows(run),
+                      cli_several_inputs(opts)};
     int rc = cli_screen_each_row(run, put_row, &rows);
     fputs("  ]\n}\n", fp);
     return rc;

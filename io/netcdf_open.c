@@ -378,3 +378,30 @@ size_t slowscan_netcdf_series_count(const netcdf_reader *r)
 {
     return r->total_cells;
 }
+
+/* A dimension of members: named so, or its coordinate variable has the standard name
+ * "realization" (CF standard name table). */
+static int is_member_dimension(const netcdf_reader *r, const netcdf_dim *d)
+{
+    static const char *const names[] = {"member", "realization", "ensemble", "ens"};
+    for (size_t k = 0; k < sizeof names / sizeof names[0]; k++)
+        if (strcasecmp(d->name, names[k]) == 0)
+            return 1;
+    int varid;
+    char text[256];
+    if (!netcdf_coordinate_variable(r->ncid, d->dimid, &varid))
+        return 0;
+    text_attribute(r->ncid, varid, "standard_name", text, sizeof text);
+    return strcmp(text, "realization") == 0;
+}
+
+int slowscan_netcdf_member_dimension(const netcdf_reader *r, char *name, size_t size)
+{
+    for (size_t v = 0; v < r->nvars; v++)
+        for (int k = 0; k < r->vars[v].ncoords; k++)
+            if (is_member_dimension(r, &r->vars[v].dims[k])) {
+                snprintf(name, size, "%s", r->vars[v].dims[k].name);
+                return 1;
+            }
+    return 0;
+}

@@ -3,8 +3,10 @@
 #include "slowscan/message.h"
 #include "slowscan/status.h"
 
+#include <math.h>
 #include <stdarg.h>
 #include <stdio.h>
+#include <string.h>
 
 /* A text growing in the caller's buffer: `len` counts what the whole text needs, even past
  * the end of the buffer, as snprintf does. */
@@ -433,5 +435,59 @@ size_t slowscan_message_leakage_summary(char *buf, size_t size, size_t count, si
         put(&m, "%s'%s'", k ? ", " : "", first[k] ? first[k] : "");
     put(&m, " (%s lists each); ", name_of(&m, SCREEN_OPTION_JSON));
     put_leakage_advice(&m);
+    return m.len;
+}
+
+size_t slowscan_message_ensemble_refusal(char *buf, size_t size, const ensemble_detail *d,
+                                         const char *const *names, const char *option,
+                                         const message_context *ctx)
+{
+    message_out m = message_begin(buf, size, ctx);
+    put_source(&m);
+    put(&m, "option %s: ", option);
+    const char *series = d->rule == ENSEMBLE_RULE_NO_MEMBERS || d->rule == ENSEMBLE_RULE_FEW_LISTED
+                             ? "" : names[d->series];
+    switch (d->rule) {
+    case ENSEMBLE_RULE_NO_MEMBERS:
+        put(&m, "no column is named NAME.MEMBER%s",
+            strcmp(option, "--members") == 0 ? " with one of the listed members" : "");
+        break;
+    case ENSEMBLE_RULE_FEW_MEMBERS:
+        put(&m, "ensemble of column '%s' has %zu members, at least %zu needed", series, d->count,
+            d->need);
+        break;
+    case ENSEMBLE_RULE_MISSING_MEMBER:
+        put(&m, "ensemble of column '%s' has no member '%s'", series, d->member);
+        break;
+    case ENSEMBLE_RULE_MIXED_LENGTHS:
+        put(&m, "member '%s' ends after %zu samples, member '%s' after %zu (the members of an "
+            "ensemble must cover the same times)", series, d->count, names[d->other], d->need);
+        break;
+    case ENSEMBLE_RULE_FEW_LISTED:
+        put(&m, "%zu members listed, at least %zu needed", d->count, d->need);
+        break;
+    default:
+        put(&m, "refused by a rule of unknown kind %d", (int)d->rule);
+        break;
+    }
+    return m.len;
+}
+
+size_t slowscan_message_ensemble_split(char *buf, size_t size, const char *ensemble,
+                                       const ensemble_split *s, const ensemble_split_options *o,
+                                       const message_context *ctx)
+{
+    message_out m = message_begin(buf, size, ctx);
+    put_source(&m);
+    put(&m, "ensemble '%s' splits by the end of the record:", ensemble);
+    if (s->flags & ENSEMBLE_SPLIT_BIMODAL)
+        put(&m, " the bimodality coefficient of its %zu members' final values is %.3f, above "
+            "%.3f;", s->members, s->bimodality, o->bimodality_limit);
+    if (s->flags & ENSEMBLE_SPLIT_GAP)
+        put(&m, " a gap of %g parts its members %zu below %g from %zu above, %.1f times "
+            "their spread within groups;", s->gap, s->lower, s->cut, s->upper,
+            s->spread > 0 ? s->gap / s->spread : INFINITY);
+    put(&m, " final values are means over the last %g%% of the record; the ensemble mean may "
+        "follow a path that no member follows", 100 * o->final_share);
     return m.len;
 }

@@ -98,27 +98,37 @@ static significance_alternative alternative_of(const screen_config *cfg, size_t 
     return ALTERNATIVE_TWO_SIDED;
 }
 
+int slowscan_screen_test_alternative(const screen_config *cfg, size_t j)
+{
+    return (int)alternative_of(cfg, j);
+}
+
 static int by_double(const void *a, const void *b)
 {
     double x = *(const double *)a, y = *(const double *)b;
     return (x > y) - (x < y);
 }
 
-/* Quantiles of the finite null values. */
-static void null_quantiles(screen_workspace *ws, const double *null, size_t m, screen_test *t)
+void slowscan_screen_null_quantiles(const double *null, size_t m, double *sorted, screen_test *t)
 {
     size_t k = 0;
     for (size_t j = 0; j < m; j++)
         if (isfinite(null[j]))
-            ws->sorted[k++] = null[j];
+            sorted[k++] = null[j];
     t->null_used = k;
-    qsort(ws->sorted, k, sizeof *ws->sorted, by_double);
+    qsort(sorted, k, sizeof *sorted, by_double);
     for (int q = 0; q < SCREEN_QUANTILES && k > 0; q++)
-        t->quantile[q] = gsl_stats_quantile_from_sorted_data(ws->sorted, 1, k,
+        t->quantile[q] = gsl_stats_quantile_from_sorted_data(sorted, 1, k,
                                                               screen_quantile_levels[q]);
     for (int q = 0; q < SCREEN_TAIL_QUANTILES && k > 0; q++)
-        t->quantile_tail[q] = gsl_stats_quantile_from_sorted_data(ws->sorted, 1, k,
+        t->quantile_tail[q] = gsl_stats_quantile_from_sorted_data(sorted, 1, k,
                                                                   screen_tail_levels[q]);
+}
+
+/* Quantiles of the finite null values. */
+static void null_quantiles(screen_workspace *ws, const double *null, size_t m, screen_test *t)
+{
+    slowscan_screen_null_quantiles(null, m, ws->sorted, t);
 }
 
 static void warn(screen_result *out, screen_warning_kind kind, size_t count, size_t total,

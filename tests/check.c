@@ -281,3 +281,12 @@ void check_write_series_csv(const char *path, size_t count, size_t n, check_samp
     free(state);
     check_rng_free(rng);
 }
+
+void check_wilson(size_t hits, size_t trials, double *lo, double *hi)
+{
+    const double z = 1.959963984540054;
+    double n = (double)trials, p = n > 0 ? (double)hits / n : 0, z2 = z * z / n;
+    double mid = (p + z2 / 2) / (1 + z2), half = z / (1 + z2) * sqrt(p * (1 - p) / n + z2 / n / 4);
+    *lo = n > 0 ? fmax(0, mid - half) : 0;
+    *hi = n > 0 ? fmin(1, mid + half) : 1;
+}

@@ -76,4 +76,8 @@ int check_write_columns_csv(const char *path, size_t count, size_t n, const doub
 int check_write_table_csv(const char *path, const char *header, size_t count, size_t n,
                           double step, const double *x);
 
+/* Wilson score 95% interval of a binomial share hits/trials (Wilson 1927, J. Am. Stat.
+ * Assoc. 22:209), z = 1.959964. */
+void check_wilson(size_t hits, size_t trials, double *lo, double *hi);
+
 #endif

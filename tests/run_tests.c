@@ -41,6 +41,7 @@ void suite_resume(void);
 void suite_store(void);
 void suite_progress(void);
 void suite_mpi(void);
+void suite_ensemble(void);
 
 static const struct {
     const char *name;
@@ -64,6 +65,7 @@ static const struct {
     {"dated_cli", suite_dated_cli},   {"interrupt", suite_interrupt},
     {"merge", suite_merge},           {"resume", suite_resume},
     {"mpi", suite_mpi},
+    {"ensemble", suite_ensemble},
 };
 
 int main(int argc, char **argv)

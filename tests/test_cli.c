@@ -85,7 +85,8 @@ static void test_help_and_version(void)
         "--recovery", "--surrogates", "--null", "--iaaft-tol", "--iaaft-iterations",
         "--block-length", "--alternative", "--fdr", "--seed", "--threads", "--rolling", "--json",
         "--format", "--windows", "--bandwidths", "--fractions", "--control", "--progress", "--quiet", "-o",
-        "--noise-trend", "--figures", "--figure-format", "--detrends"};
+        "--noise-trend", "--figures", "--figure-format", "--detrends", "--ensemble", "--members",
+        "--member-anomalies"};
     char *man = check_read_file("doc/slowscan.1");
     char *helps = NULL;
     char loop[600];

@@ -17,6 +17,7 @@
 
 #include "slowscan/export.h"
 
+#include "slowscan/ensemble.h"
 #include "slowscan/screen.h"
 
 #include <stddef.h>
@@ -87,5 +88,20 @@ SLOWSCAN_API
 size_t slowscan_message_leakage_summary(char *buf, size_t size, size_t count, size_t tested,
                                         const char *const *first, size_t nfirst,
                                         const message_context *ctx);
+
+/* Why names were refused as ensembles (slowscan_ensemble_group): names as given to it,
+ * option as the caller's users spell the setting ("--ensemble", "--members"); ctx->source
+ * names the file. */
+SLOWSCAN_API
+size_t slowscan_message_ensemble_refusal(char *buf, size_t size, const ensemble_detail *detail,
+                                         const char *const *names, const char *option,
+                                         const message_context *ctx);
+
+/* The warning of an ensemble whose members split by the end (split->flags non-zero). */
+SLOWSCAN_API
+size_t slowscan_message_ensemble_split(char *buf, size_t size, const char *ensemble,
+                                       const ensemble_split *split,
+                                       const ensemble_split_options *options,
+                                       const message_context *ctx);
 
 #endif

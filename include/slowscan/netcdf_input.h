@@ -95,4 +95,10 @@ SLOWSCAN_API
 int slowscan_netcdf_next_table(netcdf_reader *reader, size_t max_series, series_table *table,
                                size_t *all_missing, io_error *err);
 
+/* The dimension of the ensemble members among the selected variables' non-time dimensions:
+ * one named member, realization, ensemble or ens (any case), or whose coordinate variable
+ * has standard_name "realization" (CF). 1 with its name in name[size]; 0 when there is none. */
+SLOWSCAN_API
+int slowscan_netcdf_member_dimension(const netcdf_reader *reader, char *name, size_t size);
+
 #endif

@@ -87,6 +87,10 @@ SLOWSCAN_API
 const char *slowscan_screen_test_name(int kind);
 SLOWSCAN_API
 int slowscan_screen_test_rolling(int kind);
+/* The alternative (significance_alternative) test j of cfg is tested against: the setting,
+ * else the indicator's direction (one-sided rising; skewness two-sided). */
+SLOWSCAN_API
+int slowscan_screen_test_alternative(const screen_config *cfg, size_t j);
 
 /* Quantiles of each test's null distribution: the five of the JSON summary, and the two
  * outer ones the figures draw as the null's wider interval (kept apart so that the JSON,
@@ -385,6 +389,11 @@ typedef enum {
 SLOWSCAN_API
 const char *slowscan_screen_flag_name(screen_flag flag);
 
+/* t's null_used and quantiles (screen_quantile_levels, screen_tail_levels) of the finite
+ * values among null[m]; sorted is scratch of m values. */
+SLOWSCAN_API
+void slowscan_screen_null_quantiles(const double *null, size_t m, double *sorted,
+                                    screen_test *t);
 /* q-values (Benjamini-Hochberg over every test with a p-value) and flags of `count` tests:
  * with a single tested p it decides itself, else q <= fdr. q[] and flags[] have count
  * entries. SLOWSCAN_ENOMEM. */
