@@ -100,23 +100,26 @@ static void drift_test(const feedback_window *w, size_t m, double level, double 
     d->verdict = d->p_value <= 1 - level ? FEEDBACK_DRIFT_DRIFTING : FEEDBACK_DRIFT_STEADY;
 }
 
-/* Windows of the same length laid end to end from the first sample analysed. */
+/* The record after the skip cut into k consecutive blocks that do not overlap, as many as
+ * windows of the chosen length fit, at least two (a window longer than half the record then
+ * gives two halves): the drift test compares independent estimates only. */
 static int drift_windows(const double *time, const double *flux, const double *response,
                          size_t n, const feedback_config *cfg, const window_layout *L,
                          double *scratch, feedback_drift *drift)
 {
-    size_t m = L->count == 1 && L->step == L->len ? 1 : (n - L->first) / L->len;
-    feedback_window *w = malloc((m > 0 ? m : 1) * sizeof *w);
-    double *buf = malloc((m > 0 ? 3 * m : 1) * sizeof *buf);
+    size_t avail = n - L->first;
+    size_t m = L->count == 1 && L->step == L->len ? 1 : avail / L->len < 2 ? 2 : avail / L->len;
+    size_t len = m > 1 ? avail / m : L->len;
+    feedback_window *w = malloc(m * sizeof *w);
+    double *buf = malloc(3 * m * sizeof *buf);
     if (!w || !buf) {
         free(w);
         free(buf);
         return SLOWSCAN_ENOMEM;
     }
-    for (size_t j = 0; j < m; j++)
-        feedback_fit_with(time, flux, response, L->first + j * L->len, L->len, cfg, scratch,
-                          &w[j]);
-    drift_test(w, m, cfg->level, buf, drift);
+    for (size_t j = 0; j < m && m > 1; j++)
+        feedback_fit_with(time, flux, response, L->first + j * len, len, cfg, scratch, &w[j]);
+    drift_test(w, m > 1 ? m : 0, cfg->level, buf, drift);
     free(w);
     free(buf);
     return SLOWSCAN_OK;
@@ -132,7 +135,7 @@ int slowscan_feedback_run(const double *time, const double *flux, const double *
         return st;
     if (!flux || !response || !out || count < L.count)
         return SLOWSCAN_EINVAL;
-    double *scratch = malloc(4 * L.len * sizeof *scratch);
+    double *scratch = malloc(4 * (n - L.first) * sizeof *scratch); /* the drift blocks too */
     if (!scratch)
         return SLOWSCAN_ENOMEM;
     double reference = NAN; /* lambda of the first window with a fit */
