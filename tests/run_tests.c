@@ -41,6 +41,8 @@ void suite_resume(void);
 void suite_store(void);
 void suite_progress(void);
 void suite_mpi(void);
+void suite_feedback(void);
+void suite_feedback_rates(void);
 
 static const struct {
     const char *name;
@@ -64,6 +66,7 @@ static const struct {
     {"dated_cli", suite_dated_cli},   {"interrupt", suite_interrupt},
     {"merge", suite_merge},           {"resume", suite_resume},
     {"mpi", suite_mpi},
+    {"feedback", suite_feedback},     {"feedback_rates", suite_feedback_rates},
 };
 
 int main(int argc, char **argv)

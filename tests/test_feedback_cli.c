@@ -1,0 +1,174 @@
+/* `slowscan feedback` through the binary: a run's rows and verdict, --baseline, --annual,
+ * --fit-span, and every refusal (exit 1, one message naming the option/file/column, no
+ * output file left). */
+#include "check.h"
+
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+static char *out_text, *err_text;
+
+static int feedback(const char *args)
+{
+    free(out_text);
+    free(err_text);
+    out_text = err_text = NULL;
+    char cmd[10000];
+    snprintf(cmd, sizeof cmd, "%s feedback %s", check_binary(), args);
+    return check_run(cmd, &out_text, &err_text);
+}
+
+static size_t lines(const char *s)
+{
+    size_t n = 0;
+    for (; s && *s; s++)
+        n += *s == '\n';
+    return n;
+}
+
+/* An annual run of n years from 1850: columns rtnt (flux), tas (response), other. */
+static void write_run(const char *path, size_t n, double lambda, unsigned long seed)
+{
+    check_rng *r = check_rng_alloc(seed);
+    FILE *fp = fopen(path, "w");
+    fputs("year,rtnt,tas,other\n", fp);
+    for (size_t i = 0; i < n; i++) {
+        double t = (double)i + 1;
+        double T = 3.5 * (1 - exp(-t / 4)) + 2.7 * (1 - exp(-t / 250)) + 0.15 * check_rng_gaussian(r);
+        fprintf(fp, "%zu,%.9f,%.9f,%.3f\n", 1850 + i, 7.4 + lambda * T + 0.5 * check_rng_gaussian(r),
+                T, check_rng_gaussian(r));
+    }
+    fclose(fp);
+    check_rng_free(r);
+}
+
+static void expect_refused(const char *what, const char *args, const char *needle)
+{
+    const char *out = check_tmp_path("fb-out.csv");
+    remove(out);
+    char line[8192];
+    snprintf(line, sizeof line, "%s -o %s", args, out);
+    int rc = feedback(line);
+    CHECK(rc == 1, "%s: exit %d, want 1 (stderr: %s)", what, rc, err_text ? err_text : "");
+    CHECK(lines(err_text) == 1, "%s: want one message line: %s", what, err_text ? err_text : "");
+    CHECK(err_text && strstr(err_text, needle), "%s: message lacks '%s': %s", what, needle,
+          err_text ? err_text : "");
+    CHECK(!check_file_exists(out) && check_scratch_files("fb-out.csv") == 0,
+          "%s: an output file was left behind", what);
+}
+
+static void test_run(const char *run)
+{
+    char args[4096];
+    snprintf(args, sizeof args, "--flux rtnt --response tas %s", run);
+    CHECK(feedback(args) == 0, "feedback runs: %s", err_text ? err_text : "");
+    /* 150 years, window 74.5 (50%% < 100), stride 7.45 -> 7 samples: (150 - 76) / 7 + 1 */
+    CHECK(out_text && strncmp(out_text, "start,end,pairs,lambda,", 23) == 0, "header");
+    CHECK(lines(out_text) == 1 + 11, "11 windows: %zu lines", lines(out_text));
+    CHECK(lines(err_text) == 1 && strstr(err_text, "steady"), "one verdict line: %s",
+          err_text ? err_text : "");
+    snprintf(args, sizeof args, "--flux rtnt --response tas --fit-span 1870:1999 --scale 0.5 %s", run);
+    CHECK(feedback(args) == 0 && lines(out_text) == 2 && strstr(out_text, "\n1870,1999,130,"),
+          "--fit-span: one fit of 130 pairs: %s", out_text ? out_text : "");
+    snprintf(args, sizeof args, "--flux rtnt --response tas --window 40 --stride 40 --skip 20 %s", run);
+    CHECK(feedback(args) == 0 && lines(out_text) == 1 + 3 && strstr(out_text, "\n1870,1910,41,"),
+          "--skip 20 --window 40 --stride 40: 3 windows from 1870: %s", out_text ? out_text : "");
+    CHECK(err_text && strstr(err_text, "weighted_trend over 3"), "trend test over 3 blocks: %s",
+          err_text ? err_text : "");
+}
+
+/* --baseline: anomalies (a constant offset in the baseline shifts F only) and the TLS noise
+ * ratio estimated from it. */
+static void test_baseline_cli(const char *run)
+{
+    char base[1024];
+    snprintf(base, sizeof base, "%s", check_tmp_path("fb-base.csv"));
+    FILE *fp = fopen(base, "w");
+    fputs("year,rtnt,tas\n", fp);
+    check_rng *r = check_rng_alloc(9);
+    for (int i = 0; i < 300; i++)
+        fprintf(fp, "%d,%.9f,%.9f\n", 1700 + i, 0.8 + 0.5 * check_rng_gaussian(r),
+                287 + 0.15 * check_rng_gaussian(r));
+    check_rng_free(r);
+    fclose(fp);
+    char args[4096];
+    char json_path[1024];
+    snprintf(json_path, sizeof json_path, "%s", check_tmp_path("fb.json"));
+    snprintf(args, sizeof args, "--flux rtnt --response tas --fit tls --baseline %s "
+             "--baseline-offset 100 --baseline-mode drift --json %s %s", base, json_path, run);
+    CHECK(feedback(args) == 0, "TLS with the ratio from the baseline: %s", err_text ? err_text : "");
+    char *json = check_read_file(json_path);
+    CHECK(json && strstr(json, "\"noise_ratio_from_baseline\": true"), "ratio from the baseline");
+    free(json);
+}
+
+/* --annual: a monthly record becomes annual means (standard calendar). */
+static void test_annual_cli(void)
+{
+    char path[1024];
+    snprintf(path, sizeof path, "%s", check_tmp_path("fb-monthly.csv"));
+    FILE *fp = fopen(path, "w");
+    fputs("time,rtnt,tas\n", fp);
+    check_rng *r = check_rng_alloc(4);
+    for (int y = 1850; y < 1890; y++)
+        for (int m = 1; m <= 12; m++) {
+            double T = 0.1 * (y - 1850) + 0.3 * check_rng_gaussian(r);
+            fprintf(fp, "%d-%02d,%.6f,%.6f\n", y, m, 4 - T + 0.3 * check_rng_gaussian(r), T);
+        }
+    check_rng_free(r);
+    fclose(fp);
+    char args[4096];
+    snprintf(args, sizeof args, "--flux rtnt --response tas --annual --window 20 --stride 19 %s", path);
+    CHECK(feedback(args) == 0 && strstr(out_text, "\n1850,1870,21,") &&
+          strstr(out_text, "\n1869,1889,21,"), "--annual: windows of 21 years: %s %s",
+          out_text ? out_text : "", err_text ? err_text : "");
+    char yearly[1024];
+    snprintf(yearly, sizeof yearly, "%s", check_tmp_path("fb-run.csv"));
+    snprintf(args, sizeof args, "--flux rtnt --response tas --annual %s", yearly);
+    expect_refused("--annual on a yearly record", args, "not a monthly record");
+}
+
+void suite_feedback_cli(void)
+{
+    char run[1024]; /* check_tmp_path's buffer is reused by the next call */
+    snprintf(run, sizeof run, "%s", check_tmp_path("fb-run.csv"));
+    write_run(run, 150, -1.2, 5);
+    test_run(run);
+    test_baseline_cli(run);
+    test_annual_cli();
+    char a[4096];
+#define REFUSED(what, opts, needle)                                                          \
+    do {                                                                                     \
+        snprintf(a, sizeof a, "%s %s", opts, run);                                           \
+        expect_refused(what, a, needle);                                                     \
+    } while (0)
+    REFUSED("tls without a ratio", "--flux rtnt --response tas --fit tls", "--noise-ratio");
+    REFUSED("unknown column", "--flux nope --response tas", "no column 'nope'");
+    REFUSED("unknown response", "--flux rtnt --response nope", "no column 'nope'");
+    REFUSED("missing --flux", "--response tas", "--flux");
+    REFUSED("same column", "--flux tas --response tas", "same column");
+    REFUSED("window longer than the record", "--flux rtnt --response tas --window 200", "--window 200");
+    REFUSED("window after skip", "--flux rtnt --response tas --window 100 --skip 60", "after --skip");
+    REFUSED("stride below the step", "--flux rtnt --response tas --stride 0.5", "--stride 0.5");
+    REFUSED("ratio with ols", "--flux rtnt --response tas --noise-ratio 2", "--noise-ratio");
+    REFUSED("bad fit", "--flux rtnt --response tas --fit lad", "--fit");
+    REFUSED("zero scale", "--flux rtnt --response tas --scale 0", "--scale");
+    REFUSED("mode without baseline", "--flux rtnt --response tas --baseline-mode drift", "--baseline");
+    REFUSED("offset without baseline", "--flux rtnt --response tas --baseline-offset 3", "--baseline");
+    REFUSED("span outside", "--flux rtnt --response tas --fit-span 1800:1900", "--fit-span");
+    REFUSED("span not A:B", "--flux rtnt --response tas --fit-span 1900", "--fit-span");
+    REFUSED("span with window", "--flux rtnt --response tas --fit-span 1870:1900 --window 20", "--fit-span");
+    REFUSED("missing baseline", "--flux rtnt --response tas --baseline /nonexistent.csv", "--baseline");
+    char base[1024];
+    snprintf(base, sizeof base, "%s", check_tmp_path("fb-base.csv"));
+    snprintf(a, sizeof a, "--flux rtnt --response tas --baseline-offset 1000 --baseline %s %s",
+             base, run);
+    expect_refused("baseline not covering the period", a, "too few values");
+    REFUSED("screen option", "--flux rtnt --response tas --detrend linear", "--detrend");
+#undef REFUSED
+    free(out_text);
+    free(err_text);
+    out_text = err_text = NULL;
+}
