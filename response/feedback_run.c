@@ -69,25 +69,35 @@ int slowscan_feedback_window_count(const double *time, size_t n, const feedback_
 }
 
 /* First against last window (two), or the weighted regression of lambda on the windows'
- * middle times with weights 1/se^2 taken as known (gsl_fit_wlinear's covariance). */
+ * middle times with weights 1/se^2 taken as known (gsl_fit_wlinear's covariance). The
+ * reference is Student's t, not the normal: each error is itself estimated from n_eff - 2
+ * degrees of freedom. Two windows take Welch-Satterthwaite's degrees of freedom; more take
+ * the smallest window's, which errs on the conservative side. */
 static void drift_test(const feedback_window *w, size_t m, double level, double *buf,
                        feedback_drift *d)
 {
     double *t = buf, *l = buf + m, *wt = buf + 2 * m;
     size_t k = 0;
+    double dof_min = INFINITY, welch_num = 0, welch_den = 0;
     for (size_t j = 0; j < m; j++)
         if (w[j].status == SLOWSCAN_OK && w[j].se_lambda_adj > 0 && isfinite(w[j].se_lambda_adj)) {
+            double v = w[j].se_lambda_adj * w[j].se_lambda_adj, dof = w[j].n_eff - 2;
             t[k] = 0.5 * (w[j].start + w[j].end);
             l[k] = w[j].lambda;
-            wt[k++] = 1 / (w[j].se_lambda_adj * w[j].se_lambda_adj);
+            wt[k++] = 1 / v;
+            dof_min = fmin(dof_min, dof);
+            welch_num += v;
+            welch_den += v * v / dof;
         }
     *d = (feedback_drift){FEEDBACK_DRIFT_UNTESTED, FEEDBACK_DRIFT_NONE, k, NAN, NAN, NAN, NAN};
     if (k < 2)
         return;
+    double dof = dof_min;
     if (k == 2) {
         d->method = FEEDBACK_DRIFT_ENDS;
         d->slope = (l[1] - l[0]) / (t[1] - t[0]);
         d->se_slope = sqrt(1 / wt[0] + 1 / wt[1]) / (t[1] - t[0]);
+        dof = welch_num * welch_num / welch_den;
     } else {
         double c0, c00, c01, c11, chi2;
         d->method = FEEDBACK_DRIFT_TREND;
@@ -96,7 +106,7 @@ static void drift_test(const feedback_window *w, size_t m, double level, double 
         d->se_slope = sqrt(c11);
     }
     d->z = d->slope / d->se_slope;
-    d->p_value = 2 * gsl_cdf_ugaussian_Q(fabs(d->z));
+    d->p_value = 2 * gsl_cdf_tdist_Q(fabs(d->z), dof);
     d->verdict = d->p_value <= 1 - level ? FEEDBACK_DRIFT_DRIFTING : FEEDBACK_DRIFT_STEADY;
 }
 

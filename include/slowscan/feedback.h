@@ -60,7 +60,7 @@ typedef struct {
     double forcing, se_forcing, se_forcing_adj; /* F, the intercept */
     double cov;           /* covariance of F and lambda (unadjusted) */
     double r2;            /* squared correlation of N and T in the window */
-    double r_response, r_residual; /* lag-1 autocorrelations behind n_eff */
+    double r_response, r_residual; /* lag-1 autocorrelations (n_eff uses the residuals') */
     double n_eff;         /* effective sample size, at most n */
     double lo, hi;        /* interval of lambda at `level`, with the adjusted error */
     double t_eq, se_t_eq; /* -F/lambda (times scale) and its delta-method error (adjusted) */
@@ -87,7 +87,7 @@ typedef struct {
     size_t windows;   /* non-overlapping windows used */
     double slope;     /* change of lambda per time unit (ENDS: difference / time between) */
     double se_slope;
-    double z, p_value;  /* two-sided, normal reference */
+    double z, p_value;  /* slope / se and its two-sided p (Student t reference) */
 } feedback_drift;
 
 /* Number of windows a record of n samples from time[0] with step dt gives under cfg (1 with
