@@ -420,5 +420,7 @@ void cli_series_notices(const series_table *t);
 int cli_feedback_set(cli_options *o, const char *name, const char *value);
 void cli_feedback_defaults(cli_options *o);
 int cli_feedback_check(const cli_options *o);
+/* help_feedback.c: `slowscan help feedback`. */
+void cli_help_feedback(FILE *out);
 
 #endif
