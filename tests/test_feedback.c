@@ -203,6 +203,7 @@ static void test_weights(void)
 }
 
 void suite_feedback_cli(void);
+void suite_feedback_grid(void);
 
 void suite_feedback(void)
 {
@@ -213,4 +214,5 @@ void suite_feedback(void)
     test_baseline();
     test_weights();
     suite_feedback_cli();
+    suite_feedback_grid();
 }

@@ -172,3 +172,38 @@ void suite_feedback_cli(void)
     free(err_text);
     out_text = err_text = NULL;
 }
+
+/* --area-mean against numpy's weighted means of the same grid (python3-numpy/netCDF4,
+ * reference library): one fit over the whole run, whose F and lambda equal numpy.polyfit's
+ * on numpy's means. */
+static void area_case(const char *mode, const char *warning)
+{
+    char nc[1024], args[4096];
+    snprintf(nc, sizeof nc, "%s", check_tmp_path("fb-grid.nc"));
+    double ref[2];
+    snprintf(args, sizeof args, "feedback_grid.py %s %s", nc, mode);
+    CHECK(check_python(args, ref, 2) == 2, "%s: the grid was written", mode);
+    snprintf(args, sizeof args, "--flux rtnt --response tas --area-mean --fit-span 1850:1889 %s", nc);
+    CHECK(feedback(args) == 0, "%s: --area-mean runs: %s", mode, err_text ? err_text : "");
+    double F = NAN, lambda = NAN;
+    const char *row = out_text ? strchr(out_text, '\n') : NULL;
+    if (row)
+        sscanf(row + 1, "%*[^,],%*[^,],%*[^,],%lf,%*[^,],%*[^,],%*[^,],%*[^,],%*[^,],%lf", &lambda, &F);
+    CHECK_CLOSE(F, ref[0], 1e-9, 0, "area-mean F vs numpy");
+    CHECK_CLOSE(lambda, ref[1], 1e-9, 0, "area-mean lambda vs numpy");
+    CHECK(warning ? err_text && strstr(err_text, warning) != NULL
+                  : err_text && !strstr(err_text, "warning"),
+          "%s: warnings as expected: %s", mode, err_text ? err_text : "");
+}
+
+void suite_feedback_grid(void);
+void suite_feedback_grid(void)
+{
+    area_case("coslat", NULL);
+    area_case("measures", NULL);
+    area_case("gaussian", "only approximate");
+    char nc[1024], args[4096];
+    snprintf(nc, sizeof nc, "%s", check_tmp_path("fb-grid.nc"));
+    snprintf(args, sizeof args, "--flux rtnt --response tas %s", nc);
+    expect_refused("a grid without --area-mean", args, "--area-mean");
+}
