@@ -232,6 +232,18 @@ static void write_json(feedback_command *run, const cli_feedback_run *r,
     fputs("}}", fp);
 }
 
+/* The figure (--figures), with the drift test in words. */
+static int draw(feedback_command *run, const cli_feedback_run *r, const feedback_config *c,
+                const feedback_window *w, size_t count, const feedback_drift *d)
+{
+    char verdict[96];
+    if (!isnan(c->span_from) || d->verdict == FEEDBACK_DRIFT_UNTESTED)
+        snprintf(verdict, sizeof verdict, "not tested");
+    else
+        snprintf(verdict, sizeof verdict, "%s (p = %.3g)", drift_word(d), d->p_value);
+    return cli_feedback_figure(run->figures, run->opts, r, w, count, verdict);
+}
+
 /* One input: its run made ready, the windows fitted, rows, verdict, JSON, figure. */
 static int feedback_input(void *context, const series_table *t)
 {
@@ -264,7 +276,7 @@ static int feedback_input(void *context, const series_table *t)
         if (run->json)
             write_json(run, &r, &c, count, &d);
         if (run->figures)
-            rc = cli_feedback_figure(run->figures, &r, w, count, &d);
+            rc = draw(run, &r, &c, w, count, &d);
     }
     free(w);
     cli_feedback_run_free(&r);

@@ -28,7 +28,7 @@ int cli_feedback_grid(const cli_options *o, const char *path,
                       int (*visit)(void *context, const series_table *t), void *context);
 
 /* feedback_figure.c: the figure of a run (--figures). */
-int cli_feedback_figure(report_batch *figures, const cli_feedback_run *r,
-                        const feedback_window *w, size_t count, const feedback_drift *d);
+int cli_feedback_figure(report_batch *figures, const cli_options *o, const cli_feedback_run *r,
+                        const feedback_window *w, size_t count, const char *verdict);
 
 #endif

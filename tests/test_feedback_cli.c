@@ -77,6 +77,11 @@ static void test_run(const char *run)
           "--skip 20 --window 40 --stride 40: 3 windows from 1870: %s", out_text ? out_text : "");
     CHECK(err_text && strstr(err_text, "weighted_trend over 3"), "trend test over 3 blocks: %s",
           err_text ? err_text : "");
+    char dir[1024], png[1100];
+    snprintf(dir, sizeof dir, "%s", check_tmp_path("fb-figures"));
+    snprintf(args, sizeof args, "--flux rtnt --response tas --figures %s %s", dir, run);
+    snprintf(png, sizeof png, "%s/feedback-fb-run.csv.png", dir);
+    CHECK(feedback(args) == 0 && check_file_exists(png), "--figures writes %s", png);
 }
 
 /* --baseline: anomalies (a constant offset in the baseline shifts F only) and the TLS noise
