@@ -5,6 +5,7 @@
 
 #include <math.h>
 #include <stdlib.h>
+#include <string.h>
 
 /* The response's finite range over [start, end]. */
 static void response_range(const cli_feedback_run *r, double start, double end, double *lo,
@@ -46,8 +47,10 @@ int cli_feedback_figure(report_batch *figures, const cli_options *o, const cli_f
                                  axis.unit == TIME_AXIS_NUMBER ? "time" : unit[0] ? "year" : "time",
                                  r->n, r->flux, r->response, count, mid, lam, lo, hi, F, tmin,
                                  tmax, flags, verdict};
+    /* named after the file without its directories: feedback-RUN.csv.png */
+    const char *slash = strrchr(r->source, '/');
     int rc = cli_figure_draw(figures, &slowscan_report_feedback_figure, &data, "feedback",
-                             r->source);
+                             slash ? slash + 1 : r->source);
     free(buf);
     free(flags);
     return rc;
