@@ -22,6 +22,30 @@ static const char header[] =
     "forcing,forcing_se,forcing_se_adjusted,r_squared,equilibrium,equilibrium_se,"
     "equilibrium_note,flags\n";
 
+/* Takes over the baseline's table of area means (cli_feedback_grid). */
+static int keep_baseline(void *context, series_table *t, const double *branch)
+{
+    (void)branch;
+    series_table *dst = context;
+    *dst = *t;
+    memset(t, 0, sizeof *t);
+    return EXIT_OK;
+}
+
+/* The baseline run: a CSV read like the inputs, or a NetCDF grid's area means; never cut
+ * to --from/--until (its period is the run's, after alignment). */
+static int load_baseline(const cli_options *opts, feedback_command *run)
+{
+    const char *path = opts->feedback.baseline;
+    if (!cli_is_netcdf(path))
+        return cli_load_whole_table(opts, path, "--baseline", "a baseline run", &run->baseline);
+    cli_options whole = *opts;
+    whole.from = whole.until = NAN;
+    whole.from_text = whole.until_text = NULL;
+    whole.select = NULL;
+    return cli_feedback_grid(&whole, path, keep_baseline, &run->baseline);
+}
+
 static int open_outputs(const cli_options *opts, cli_outputs *outs, void *context)
 {
     feedback_command *run = context;
@@ -36,8 +60,7 @@ static int open_outputs(const cli_options *opts, cli_outputs *outs, void *contex
     if (rc == EXIT_OK && opts->feedback.baseline) {
         if (cli_output_clashes(outs, opts, opts->feedback.baseline, "--baseline"))
             return EXIT_BAD_INPUT;
-        rc = cli_load_whole_table(opts, opts->feedback.baseline, "--baseline",
-                                  "a baseline run", &run->baseline);
+        rc = load_baseline(opts, run);
         run->has_baseline = rc == EXIT_OK;
     }
     if (rc == EXIT_OK)
@@ -214,7 +237,9 @@ static void write_json(feedback_command *run, const cli_feedback_run *r,
     cli_json_string(fp, r->source);
     fprintf(fp, ", \"fit\": \"%s\", \"noise_ratio\": ", c->fit == FEEDBACK_TLS ? "tls" : "ols");
     cli_json_number(fp, c->fit == FEEDBACK_TLS ? c->noise_ratio : NAN);
-    fprintf(fp, ", \"noise_ratio_from_baseline\": %s", r->ratio_estimated ? "true" : "false");
+    fprintf(fp, ", \"noise_ratio_from_baseline\": %s, \"baseline_offset\": ",
+            r->ratio_estimated ? "true" : "false");
+    cli_json_number(fp, r->baseline_offset);
     const char *k[] = {"window", "stride", "skip", "scale"};
     const double v[] = {c->window, c->stride, c->skip, c->scale};
     for (size_t i = 0; i < 4; i++) {
@@ -245,7 +270,7 @@ static int draw(feedback_command *run, const cli_feedback_run *r, const feedback
 }
 
 /* One input: its run made ready, the windows fitted, rows, verdict, JSON, figure. */
-static int feedback_input(void *context, const series_table *t)
+static int feedback_input(void *context, series_table *t, const double *branch)
 {
     feedback_command *run = context;
     const cli_options *o = run->opts;
@@ -255,6 +280,11 @@ static int feedback_input(void *context, const series_table *t)
     feedback_drift d;
     size_t count = 0;
     int rc = cli_feedback_take(o, t, &r);
+    if (branch && branch[0]) {
+        r.has_branch = 1;
+        r.branch_parent_day = branch[1];
+        r.branch_child_day = branch[2];
+    }
     if (rc == EXIT_OK && run->has_baseline)
         rc = cli_feedback_anomalies(o, &run->baseline, &r);
     if (rc == EXIT_OK)
@@ -296,7 +326,7 @@ static int run_inputs(const cli_options *opts, const cli_inputs *in, void *conte
                       opts->files[f]);
             rc = EXIT_BAD_INPUT;
         } else
-            rc = feedback_input(run, &in->tables[f]);
+            rc = feedback_input(run, &in->tables[f], NULL);
     }
     return rc;
 }

@@ -87,8 +87,8 @@ static int sum_cells(netcdf_reader *r, const char *path, const cli_options *o, s
     return st == SLOWSCAN_ENOMEM ? EXIT_INTERNAL : EXIT_BAD_INPUT;
 }
 
-int cli_feedback_grid(const cli_options *o, const char *path,
-                      int (*visit)(void *context, const series_table *t), void *context)
+int cli_feedback_grid(const cli_options *o, const char *path, cli_feedback_visit visit,
+                      void *context)
 {
     if (!o->feedback.area_mean) {
         cli_error("%s: a NetCDF grid needs --area-mean (feedback fits one global series of "
@@ -109,7 +109,15 @@ int cli_feedback_grid(const cli_options *o, const char *path,
     slowscan_netcdf_times(r, &n, NULL, NULL);
     double *acc = calloc(4 * n, sizeof *acc);
     series_table t = {0};
-    int rc = acc ? sum_cells(r, path, o, n, acc, acc + 2 * n) : EXIT_INTERNAL;
+    int found = 0;
+    double branch[3] = {0, NAN, NAN};
+    int rc = slowscan_netcdf_branch_days(r, &found, &branch[1], &branch[2], &err) == SLOWSCAN_OK
+             ? EXIT_OK : EXIT_BAD_INPUT;
+    branch[0] = found;
+    if (rc != EXIT_OK)
+        cli_error("%s", err.message);
+    if (rc == EXIT_OK)
+        rc = acc ? sum_cells(r, path, o, n, acc, acc + 2 * n) : EXIT_INTERNAL;
     if (rc == EXIT_OK)
         rc = make_table(r, path, o, acc, acc + 2 * n, &t);
     slowscan_netcdf_close(r);
@@ -117,7 +125,7 @@ int cli_feedback_grid(const cli_options *o, const char *path,
     if (rc == EXIT_OK)
         rc = cli_ready_table(o, &t, 1);
     if (rc == EXIT_OK)
-        rc = visit(context, &t);
+        rc = visit(context, &t, branch);
     slowscan_series_table_free(&t);
     return rc;
 }

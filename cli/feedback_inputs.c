@@ -81,10 +81,33 @@ int cli_feedback_take(const cli_options *o, const series_table *t, cli_feedback_
     memset(run, 0, sizeof *run);
     run->source = cli_source_name(t->source);
     run->noise_ratio = o->feedback.noise_ratio;
+    run->baseline_offset = NAN;
     char what[600];
     snprintf(what, sizeof what, "%s", run->source);
     int rc = take_columns(o, t, o->feedback.flux ? "--flux" : "--response", what, run);
     return rc;
+}
+
+/* A day number as a time of the run's axis (a dated axis: day numbers, month indices or
+ * years; decimal for a day inside a month or year). */
+static double axis_time(const time_axis *axis, double day)
+{
+    time_axis days = *axis;
+    days.unit = TIME_AXIS_DAYS;
+    double year = slowscan_time_axis_decimal_year(&days, day);
+    return axis->unit == TIME_AXIS_DAYS ? day : axis->unit == TIME_AXIS_MONTHS ? 12 * year : year;
+}
+
+/* --baseline-offset, else the CF branch times of a NetCDF run (the parent's time at the
+ * branch minus the run's own), else 0: the baseline's time at the run's time 0. */
+static double baseline_offset(const cli_options *o, cli_feedback_run *run)
+{
+    double offset = o->feedback.baseline_offset;
+    if (isnan(offset) && run->has_branch && run->axis.unit != TIME_AXIS_NUMBER)
+        offset = axis_time(&run->axis, run->branch_parent_day) -
+                 axis_time(&run->axis, run->branch_child_day);
+    run->baseline_offset = isnan(offset) ? 0 : offset;
+    return run->baseline_offset;
 }
 
 int cli_feedback_anomalies(const cli_options *o, const series_table *baseline,
@@ -95,7 +118,7 @@ int cli_feedback_anomalies(const cli_options *o, const series_table *baseline,
     char what[600];
     snprintf(what, sizeof what, "the baseline run %s", f->baseline);
     int rc = take_columns(o, baseline, "--baseline", what, &b);
-    double offset = isnan(f->baseline_offset) ? 0 : f->baseline_offset;
+    double offset = baseline_offset(o, run);
     double *series[] = {run->flux, run->response};
     const double *bseries[] = {b.flux, b.response};
     for (int s = 0; s < 2 && rc == EXIT_OK; s++) {

@@ -12,6 +12,9 @@ typedef struct {
     double *time, *flux, *response; /* owned */
     double noise_ratio; /* --noise-ratio, or estimated from the baseline run (TLS) */
     int ratio_estimated;
+    int has_branch;     /* a NetCDF run's CF branch times, day numbers of its calendar */
+    double branch_parent_day, branch_child_day;
+    double baseline_offset; /* the baseline's time at the run's time 0 (as used) */
 } cli_feedback_run;
 
 /* The run's columns (--flux, --response) of table t, as annual means with --annual. */
@@ -23,9 +26,12 @@ int cli_feedback_anomalies(const cli_options *o, const series_table *baseline,
 void cli_feedback_run_free(cli_feedback_run *run);
 
 /* feedback_grid.c: --area-mean over a NetCDF grid: a table of two columns (--flux and
- * --response, each the area-weighted mean over its cells) handed to `visit`. */
-int cli_feedback_grid(const cli_options *o, const char *path,
-                      int (*visit)(void *context, const series_table *t), void *context);
+ * --response, each the area-weighted mean over its cells) handed to `visit` (which may take
+ * it over, leaving it zeroed), with the file's CF branch times (branch[0] 1 when found, then
+ * the parent's and the child's day numbers). */
+typedef int (*cli_feedback_visit)(void *context, series_table *t, const double *branch);
+int cli_feedback_grid(const cli_options *o, const char *path, cli_feedback_visit visit,
+                      void *context);
 
 /* feedback_figure.c: the figure of a run (--figures). */
 int cli_feedback_figure(report_batch *figures, const cli_options *o, const cli_feedback_run *r,

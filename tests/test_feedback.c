@@ -204,6 +204,7 @@ static void test_weights(void)
 
 void suite_feedback_cli(void);
 void suite_feedback_grid(void);
+void suite_feedback_branch(void);
 
 void suite_feedback(void)
 {
@@ -215,4 +216,5 @@ void suite_feedback(void)
     test_weights();
     suite_feedback_cli();
     suite_feedback_grid();
+    suite_feedback_branch();
 }

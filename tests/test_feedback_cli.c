@@ -212,3 +212,31 @@ void suite_feedback_grid(void)
     snprintf(args, sizeof args, "--flux rtnt --response tas %s", nc);
     expect_refused("a grid without --area-mean", args, "--area-mean");
 }
+
+/* CF branch times align a NetCDF run with its NetCDF control: the run (years 1-60 of its
+ * own axis) branched from the control at 1950, so the same rows as --baseline-offset 1949
+ * (CF conventions' branch_time_in_parent / parent_time_units, CMIP practice; common
+ * practice, no source), and different rows from no offset. */
+void suite_feedback_branch(void);
+void suite_feedback_branch(void)
+{
+    char runp[1024], ctl[1024], args[4096], *aligned = NULL;
+    snprintf(runp, sizeof runp, "%s", check_tmp_path("fb-branched.nc"));
+    snprintf(ctl, sizeof ctl, "%s", check_tmp_path("fb-control.nc"));
+    double dummy;
+    snprintf(args, sizeof args, "feedback_branch.py %s %s", runp, ctl);
+    CHECK(check_python(args, &dummy, 1) == 1, "branched run written");
+    snprintf(args, sizeof args, "--flux rtnt --response tas --area-mean --baseline %s "
+             "--baseline-mode drift --window 20 %s", ctl, runp);
+    CHECK(feedback(args) == 0, "branch-time alignment runs: %s", err_text ? err_text : "");
+    aligned = out_text ? strdup(out_text) : NULL;
+    snprintf(args, sizeof args, "--flux rtnt --response tas --area-mean --baseline %s "
+             "--baseline-mode drift --window 20 --baseline-offset 1949 %s", ctl, runp);
+    CHECK(feedback(args) == 0 && aligned && out_text && strcmp(aligned, out_text) == 0,
+          "the branch times give the rows of --baseline-offset 1949");
+    snprintf(args, sizeof args, "--flux rtnt --response tas --area-mean --baseline %s "
+             "--baseline-mode drift --window 20 --baseline-offset 1900 %s", ctl, runp);
+    CHECK(feedback(args) == 0 && aligned && out_text && strcmp(aligned, out_text) != 0,
+          "another offset gives other rows");
+    free(aligned);
+}

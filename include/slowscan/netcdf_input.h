@@ -125,4 +125,12 @@ double slowscan_netcdf_cell_weight(const netcdf_area_weights *weights, const net
 SLOWSCAN_API
 void slowscan_netcdf_area_weights_free(netcdf_area_weights *weights);
 
+/* The CF branch-time attributes (global branch_time_in_parent in parent_time_units, or the
+ * file's own units when that is absent; branch_time_in_child in the time variable's units,
+ * 0 when absent) as day numbers of the file's calendar; *found 0 without
+ * branch_time_in_parent. SLOWSCAN_EINVAL for parent_time_units that are not CF units. */
+SLOWSCAN_API
+int slowscan_netcdf_branch_days(const netcdf_reader *reader, int *found, double *parent_day,
+                                double *child_day, io_error *err);
+
 #endif
