@@ -38,35 +38,43 @@ static void run_windows(const double *v, feedback_config *c, feedback_window *w,
           "feedback run");
 }
 
+/* The windows' numbers (per of them each, in the script's order) against a reference
+ * script's output; prints the largest relative difference. */
+static void compare_windows(const char *what, const double *mine, const double *ref, int got,
+                            size_t count, int per, double tol)
+{
+    CHECK(got == (int)(per * count), "%s: reference ran (%d numbers)", what, got);
+    double worst = 0;
+    for (size_t k = 0; got == (int)(per * count) && k < per * count; k++) {
+        worst = fmax(worst, fabs(mine[k] - ref[k]) / fabs(ref[k]));
+        CHECK_CLOSE(mine[k], ref[k], tol, 0, what);
+    }
+    printf("  %s: %zu windows, largest relative difference %.2g\n", what, count, worst);
+}
+
 static void test_ols_reference(void)
 {
-    double v[2 * N], ref[5 * N];
+    double v[2 * N], ref[5 * N], mine[5 * N];
     simulate_pair(v, N, 11);
     feedback_config c = slowscan_feedback_config_default();
     feedback_window w[N];
     size_t count = 0;
     run_windows(v, &c, w, &count);
+    for (size_t j = 0; j < count; j++) {
+        const double m[] = {w[j].forcing, w[j].lambda, w[j].se_forcing, w[j].se_lambda, w[j].r2};
+        memcpy(mine + 5 * j, m, sizeof m);
+    }
     /* Each window's coefficients, standard errors and R^2 against statsmodels.api.OLS on the
      * same samples (Debian python3-statsmodels, reference library), to 1e-8 relative. */
     char extra[64];
     snprintf(extra, sizeof extra, "%d %d", W, STEP);
     int got = check_python_on("feedback_statsmodels.py", v, 2 * N, extra, ref, 5 * N);
-    CHECK(got == (int)(5 * count), "statsmodels ran (%d numbers)", got);
-    double worst = 0;
-    for (size_t j = 0; got == (int)(5 * count) && j < count; j++) {
-        const double mine[] = {w[j].forcing, w[j].lambda, w[j].se_forcing, w[j].se_lambda, w[j].r2};
-        for (int k = 0; k < 5; k++) {
-            double rel = fabs(mine[k] - ref[5 * j + k]) / fabs(ref[5 * j + k]);
-            worst = rel > worst ? rel : worst;
-            CHECK_CLOSE(mine[k], ref[5 * j + k], 1e-8, 0, "OLS window vs statsmodels");
-        }
-    }
-    printf("  OLS vs statsmodels: %zu windows, largest relative difference %.2g\n", count, worst);
+    compare_windows("OLS vs statsmodels", mine, ref, got, count, 5, 1e-8);
 }
 
 static void test_tls_reference(void)
 {
-    double v[2 * N], ref[4 * N];
+    double v[2 * N], ref[4 * N], mine[4 * N];
     simulate_pair(v, N, 12);
     feedback_config c = slowscan_feedback_config_default();
     c.fit = FEEDBACK_TLS;
@@ -74,22 +82,16 @@ static void test_tls_reference(void)
     feedback_window w[N];
     size_t count = 0;
     run_windows(v, &c, w, &count);
+    for (size_t j = 0; j < count; j++) {
+        const double m[] = {w[j].forcing, w[j].lambda, w[j].se_forcing, w[j].se_lambda};
+        memcpy(mine + 4 * j, m, sizeof m);
+    }
     /* Deming regression against scipy.odr's straight line with sx = 1, sy = sqrt(ratio)
      * (Debian python3-scipy, ODRPACK; reference library): beta and sd_beta to 1e-6. */
     char extra[96];
     snprintf(extra, sizeof extra, "%d %d %.17g", W, STEP, c.noise_ratio);
     int got = check_python_on("feedback_odr.py", v, 2 * N, extra, ref, 4 * N);
-    CHECK(got == (int)(4 * count), "scipy.odr ran (%d numbers)", got);
-    double worst = 0;
-    for (size_t j = 0; got == (int)(4 * count) && j < count; j++) {
-        const double mine[] = {w[j].forcing, w[j].lambda, w[j].se_forcing, w[j].se_lambda};
-        for (int k = 0; k < 4; k++) {
-            double rel = fabs(mine[k] - ref[4 * j + k]) / fabs(ref[4 * j + k]);
-            worst = rel > worst ? rel : worst;
-            CHECK_CLOSE(mine[k], ref[4 * j + k], 1e-6, 0, "TLS window vs scipy.odr");
-        }
-    }
-    printf("  TLS vs scipy.odr: %zu windows, largest relative difference %.2g\n", count, worst);
+    compare_windows("TLS vs scipy.odr", mine, ref, got, count, 4, 1e-6);
 }
 
 /* T_eq = -F/lambda, its delta-method error, and the refusal when lambda >= 0. */

@@ -44,6 +44,22 @@ static void write_run(const char *path, size_t n, double lambda, unsigned long s
     check_rng_free(r);
 }
 
+/* A scratch path kept in buf (check_tmp_path's own buffer is reused by the next call). */
+static const char *scratch(const char *name, char *buf, size_t size)
+{
+    snprintf(buf, size, "%s", check_tmp_path(name));
+    return buf;
+}
+
+/* A scratch CSV opened for writing with its header line; its path in buf. */
+static FILE *scratch_csv(const char *name, const char *header, char *buf, size_t size)
+{
+    FILE *fp = fopen(scratch(name, buf, size), "w");
+    if (fp)
+        fputs(header, fp);
+    return fp;
+}
+
 static void expect_refused(const char *what, const char *args, const char *needle)
 {
     const char *out = check_tmp_path("fb-out.csv");
@@ -78,7 +94,7 @@ static void test_run(const char *run)
     CHECK(err_text && strstr(err_text, "weighted_trend over 3"), "trend test over 3 blocks: %s",
           err_text ? err_text : "");
     char dir[1024], png[1100];
-    snprintf(dir, sizeof dir, "%s", check_tmp_path("fb-figures"));
+    scratch("fb-figures", dir, sizeof dir);
     snprintf(args, sizeof args, "--flux rtnt --response tas --figures %s %s", dir, run);
     snprintf(png, sizeof png, "%s/feedback-fb-run.csv.png", dir);
     CHECK(feedback(args) == 0 && check_file_exists(png), "--figures writes %s", png);
@@ -89,9 +105,7 @@ static void test_run(const char *run)
 static void test_baseline_cli(const char *run)
 {
     char base[1024];
-    snprintf(base, sizeof base, "%s", check_tmp_path("fb-base.csv"));
-    FILE *fp = fopen(base, "w");
-    fputs("year,rtnt,tas\n", fp);
+    FILE *fp = scratch_csv("fb-base.csv", "year,rtnt,tas\n", base, sizeof base);
     check_rng *r = check_rng_alloc(9);
     for (int i = 0; i < 300; i++)
         fprintf(fp, "%d,%.9f,%.9f\n", 1700 + i, 0.8 + 0.5 * check_rng_gaussian(r),
@@ -100,7 +114,7 @@ static void test_baseline_cli(const char *run)
     fclose(fp);
     char args[4096];
     char json_path[1024];
-    snprintf(json_path, sizeof json_path, "%s", check_tmp_path("fb.json"));
+    scratch("fb.json", json_path, sizeof json_path);
     snprintf(args, sizeof args, "--flux rtnt --response tas --fit tls --baseline %s "
              "--baseline-offset 100 --baseline-mode drift --json %s %s", base, json_path, run);
     CHECK(feedback(args) == 0, "TLS with the ratio from the baseline: %s", err_text ? err_text : "");
@@ -113,9 +127,7 @@ static void test_baseline_cli(const char *run)
 static void test_annual_cli(void)
 {
     char path[1024];
-    snprintf(path, sizeof path, "%s", check_tmp_path("fb-monthly.csv"));
-    FILE *fp = fopen(path, "w");
-    fputs("time,rtnt,tas\n", fp);
+    FILE *fp = scratch_csv("fb-monthly.csv", "time,rtnt,tas\n", path, sizeof path);
     check_rng *r = check_rng_alloc(4);
     for (int y = 1850; y < 1890; y++)
         for (int m = 1; m <= 12; m++) {
@@ -130,7 +142,7 @@ static void test_annual_cli(void)
           strstr(out_text, "\n1869,1889,21,"), "--annual: windows of 21 years: %s %s",
           out_text ? out_text : "", err_text ? err_text : "");
     char yearly[1024];
-    snprintf(yearly, sizeof yearly, "%s", check_tmp_path("fb-run.csv"));
+    scratch("fb-run.csv", yearly, sizeof yearly);
     snprintf(args, sizeof args, "--flux rtnt --response tas --annual %s", yearly);
     expect_refused("--annual on a yearly record", args, "not a monthly record");
 }
@@ -138,7 +150,7 @@ static void test_annual_cli(void)
 void suite_feedback_cli(void)
 {
     char run[1024]; /* check_tmp_path's buffer is reused by the next call */
-    snprintf(run, sizeof run, "%s", check_tmp_path("fb-run.csv"));
+    scratch("fb-run.csv", run, sizeof run);
     write_run(run, 150, -1.2, 5);
     test_run(run);
     test_baseline_cli(run);
@@ -167,7 +179,7 @@ void suite_feedback_cli(void)
     REFUSED("span with window", "--flux rtnt --response tas --fit-span 1870:1900 --window 20", "--fit-span");
     REFUSED("missing baseline", "--flux rtnt --response tas --baseline /nonexistent.csv", "--baseline");
     char base[1024];
-    snprintf(base, sizeof base, "%s", check_tmp_path("fb-base.csv"));
+    scratch("fb-base.csv", base, sizeof base);
     snprintf(a, sizeof a, "--flux rtnt --response tas --baseline-offset 1000 --baseline %s %s",
              base, run);
     expect_refused("baseline not covering the period", a, "too few values");
@@ -184,7 +196,7 @@ void suite_feedback_cli(void)
 static void area_case(const char *mode, const char *warning)
 {
     char nc[1024], args[4096];
-    snprintf(nc, sizeof nc, "%s", check_tmp_path("fb-grid.nc"));
+    scratch("fb-grid.nc", nc, sizeof nc);
     double ref[2];
     snprintf(args, sizeof args, "feedback_grid.py %s %s", nc, mode);
     CHECK(check_python(args, ref, 2) == 2, "%s: the grid was written", mode);
@@ -208,7 +220,7 @@ void suite_feedback_grid(void)
     area_case("measures", NULL);
     area_case("gaussian", "only approximate");
     char nc[1024], args[4096];
-    snprintf(nc, sizeof nc, "%s", check_tmp_path("fb-grid.nc"));
+    scratch("fb-grid.nc", nc, sizeof nc);
     snprintf(args, sizeof args, "--flux rtnt --response tas %s", nc);
     expect_refused("a grid without --area-mean", args, "--area-mean");
 }
@@ -221,8 +233,8 @@ void suite_feedback_branch(void);
 void suite_feedback_branch(void)
 {
     char runp[1024], ctl[1024], args[4096], *aligned = NULL;
-    snprintf(runp, sizeof runp, "%s", check_tmp_path("fb-branched.nc"));
-    snprintf(ctl, sizeof ctl, "%s", check_tmp_path("fb-control.nc"));
+    scratch("fb-branched.nc", runp, sizeof runp);
+    scratch("fb-control.nc", ctl, sizeof ctl);
     double dummy;
     snprintf(args, sizeof args, "feedback_branch.py %s %s", runp, ctl);
     CHECK(check_python(args, &dummy, 1) == 1, "branched run written");
