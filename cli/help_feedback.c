@@ -85,6 +85,8 @@ static const char usage[] =
     "  tls, noise in T that N does not see (T's window variation about its noise):\n"
     "                            drifting 24% [23, 25]; reversed 8.1% [7.4, 8.9]: with tls on\n"
     "                            so weak a signal the flags are NOT calibrated\n"
+    "  power: a feedback weakening from -1.6 to -0.6 over the run is flagged drifting in\n"
+    "                            1000 of 1000 runs [99.6, 100]%\n"
     "weak is not a test at a fixed level: on a constant but noisy feedback it fires\n"
     "wherever a window's response varies little (late in a relaxation).\n"
     "\n"

@@ -117,6 +117,38 @@ static void run_case(const rate_case *c, size_t runs, unsigned long seed)
     CHECK(c->known_high || rev_r <= bound, "%s: reversed on %zu of %zu runs", c->name, rev_r, runs);
 }
 
+/* The other side: a feedback that weakens from -1.6 to -0.6 W m-2 K-1 over the run (a pattern
+ * effect of our own invention) is flagged drifting in most runs. */
+static void drifting_power(size_t runs)
+{
+    double time[YEARS], T[YEARS], Nf[YEARS];
+    feedback_config cfg = slowscan_feedback_config_default();
+    cfg.window = 74.5;
+    cfg.stride = 7.45;
+    size_t count = 0, flagged = 0;
+    for (size_t i = 0; i < YEARS; i++)
+        time[i] = 1850 + (double)i;
+    slowscan_feedback_window_count(time, YEARS, &cfg, &count);
+    feedback_window *w = malloc(count * sizeof *w);
+    check_rng *r = check_rng_alloc(77);
+    for (size_t s = 0; s < runs; s++) {
+        for (size_t i = 0; i < YEARS; i++) {
+            double t = (double)i + 1, lambda = -1.6 + (double)i / (YEARS - 1);
+            T[i] = 3.5 * (1 - exp(-t / 4)) + 2.67 * (1 - exp(-t / 250)) + 0.15 * check_rng_gaussian(r);
+            Nf[i] = 7.4 + lambda * T[i] + 0.5 * check_rng_gaussian(r);
+        }
+        feedback_drift d;
+        slowscan_feedback_run(time, Nf, T, YEARS, &cfg, w, count, &d);
+        flagged += d.verdict == FEEDBACK_DRIFT_DRIFTING;
+    }
+    check_rng_free(r);
+    free(w);
+    printf("  a feedback weakening from -1.6 to -0.6 (%zu runs)\n", runs);
+    report("runs flagged drifting (power)", flagged, runs);
+    CHECK(flagged > runs / 2, "a weakening feedback is flagged drifting in %zu of %zu runs",
+          flagged, runs);
+}
+
 void suite_feedback_rates(void)
 {
     static const rate_case cases[] = {
@@ -129,4 +161,5 @@ void suite_feedback_rates(void)
     size_t runs = env && atol(env) > 0 ? (size_t)atol(env) : 1000;
     for (size_t k = 0; k < sizeof cases / sizeof cases[0]; k++)
         run_case(&cases[k], runs, 1000 + k);
+    drifting_power(runs / 5 > 50 ? runs / 5 : 50);
 }
