@@ -86,7 +86,7 @@ static const char usage[] =
     "                            drifting 24% [23, 25]; reversed 8.1% [7.4, 8.9]: with tls on\n"
     "                            so weak a signal the flags are NOT calibrated\n"
     "  power: a feedback weakening from -1.6 to -0.6 over the run is flagged drifting in\n"
-    "                            1000 of 1000 runs [99.6, 100]%\n"
+    "                            995 of 1000 runs (99.5%, [98.8, 99.8])\n"
     "weak is not a test at a fixed level: on a constant but noisy feedback it fires\n"
     "wherever a window's response varies little (late in a relaxation).\n"
     "\n"
