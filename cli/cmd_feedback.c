@@ -220,11 +220,16 @@ static void verdict(const cli_feedback_run *r, const feedback_config *c, const f
     else
         snprintf(drift, sizeof drift, "%s (%s over %zu non-overlapping windows, p = %.3g)",
                  drift_word(d), drift_method(d), d->windows, d->p_value);
+    char first[32] = "NA", last[32] = "NA";
+    if (isfinite(w[0].lambda))
+        snprintf(first, sizeof first, "%.4g", w[0].lambda);
+    if (isfinite(w[count - 1].lambda))
+        snprintf(last, sizeof last, "%.4g", w[count - 1].lambda);
     cli_progress_message_begin();
-    fprintf(stderr, "slowscan: feedback %s: %zu window%s (%zu fitted, %s), lambda %.4g to %.4g; "
+    fprintf(stderr, "slowscan: feedback %s: %zu window%s (%zu fitted, %s), lambda %s to %s; "
             "%zu weak, %zu reversed; %s%s\n", r->source, count, count == 1 ? "" : "s", fitted,
-            c->fit == FEEDBACK_TLS ? "tls" : "ols", w[0].lambda, w[count - 1].lambda, weak,
-            reversed, drift, d->verdict == FEEDBACK_DRIFT_DRIFTING
+            c->fit == FEEDBACK_TLS ? "tls" : "ols", first, last, weak, reversed, drift,
+            d->verdict == FEEDBACK_DRIFT_DRIFTING
             ? ": extrapolating one window's equilibrium is not justified" : "");
     cli_progress_message_end();
 }

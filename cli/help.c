@@ -350,6 +350,6 @@ int cli_help(const char *topic, FILE *out)
             topics[i].print(out);
             return EXIT_OK;
         }
-    fprintf(stderr, "slowscan: no help for '%s' (commands: screen, robustness, recovery, indicators, detrend, surrogates, demo)\n", topic);
+    fprintf(stderr, "slowscan: no help for '%s' (commands: screen, robustness, recovery, feedback, indicators, detrend, surrogates, demo)\n", topic);
     return EXIT_BAD_INPUT;
 }

@@ -121,6 +121,15 @@ static void test_baseline_cli(const char *run)
     char *json = check_read_file(json_path);
     CHECK(json && strstr(json, "\"noise_ratio_from_baseline\": true"), "ratio from the baseline");
     free(json);
+    /* the JSON parses (Python's json module, RFC 8259) */
+    snprintf(args, sizeof args, "/usr/bin/python3 -c 'import json,sys; json.load(open(sys.argv[1]))' %s",
+             json_path);
+    CHECK(check_run(args, NULL, NULL) == 0, "--json writes valid JSON");
+    /* two runs: a leading file column, each run's rows and verdict */
+    snprintf(args, sizeof args, "--flux rtnt --response tas --fit-span 1900:1950 %s %s", run, base);
+    CHECK(feedback(args) == 0 && out_text && strncmp(out_text, "file,start,", 11) == 0 &&
+          lines(out_text) == 3 && lines(err_text) == 2, "two inputs: file column, two rows: %s",
+          out_text ? out_text : "");
 }
 
 /* --annual: a monthly record becomes annual means (standard calendar). */
