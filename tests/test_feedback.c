@@ -111,12 +111,16 @@ static void test_equilibrium(void)
           w.teq_reason == FEEDBACK_TEQ_OK, "restoring window has an equilibrium");
     /* -F/lambda times the scale (definition, Gregory et al. 2004, GRL 31:L03205) */
     CHECK_CLOSE(w.t_eq, -w.forcing / w.lambda * 0.5, 1e-14, 0, "T_eq = -F/lambda * scale");
-    /* delta method: gradient (-1/l, F/l^2) of -F/l (common practice, no source); the errors
-     * here are unadjusted when the residuals show no positive lag-1 autocorrelation */
-    double l = w.lambda, F = w.forcing, f2 = (w.se_lambda_adj / w.se_lambda);
-    double var = w.se_forcing * w.se_forcing / (l * l) +
-                 F * F * w.se_lambda * w.se_lambda / (l * l * l * l) - 2 * F * w.cov / (l * l * l);
-    CHECK_CLOSE(w.se_t_eq, sqrt(var) * f2 * 0.5, 1e-12, 0, "delta-method se of T_eq");
+    /* the delta method (common practice) against statsmodels' cov_params() with a numerical
+     * gradient (tests/reference/feedback_teq.py; Debian python3-statsmodels); slowscan's
+     * error carries the autocorrelation factor, divided out here */
+    double pair[100], ref[2];
+    for (size_t i = 0; i < 50; i++)
+        pair[i] = T[i], pair[50 + i] = Nf[i];
+    CHECK(check_python_on("feedback_teq.py", pair, 100, NULL, ref, 2) == 2, "statsmodels ran");
+    double factor = w.se_lambda_adj / w.se_lambda;
+    CHECK_CLOSE(w.t_eq / 0.5, ref[0], 1e-10, 0, "T_eq vs statsmodels");
+    CHECK_CLOSE(w.se_t_eq / 0.5 / factor, ref[1], 1e-6, 0, "delta-method se of T_eq vs statsmodels");
     for (size_t i = 0; i < 50; i++)
         Nf[i] = 1 + 0.3 * T[i] + 0.05 * check_rng_gaussian(r);
     check_rng_free(r);
