@@ -11,6 +11,7 @@
 #include "slowscan/report.h"
 #include "slowscan/screen.h"
 #include "slowscan/surrogates.h"
+#include "feedback.h"
 
 #include <stddef.h>
 #include <stdio.h>
@@ -114,6 +115,7 @@ typedef struct {
     int argc;
     char **argv;
     cli_ensemble_options ensemble;
+    cli_feedback_options feedback; /* slowscan feedback (cli/feedback.h) */
 } cli_options;
 
 /* The null model's name in outputs and random streams ("control" with --null control). */
@@ -167,6 +169,10 @@ typedef struct {
 
 int cli_inputs_load(const cli_options *opts, cli_inputs *inputs);
 void cli_inputs_free(cli_inputs *inputs);
+/* Reads a CSV run beside the inputs (--control, feedback --baseline) like them but never cut
+ * in time; `option` and `what` name it in messages. */
+int cli_load_whole_table(const cli_options *opts, const char *path, const char *option,
+                         const char *what, series_table *table);
 /* Number of series over all tables; series k of the run in order. */
 size_t cli_inputs_series_count(const cli_inputs *inputs);
 
@@ -335,6 +341,7 @@ int cmd_surrogates(const cli_options *opts);
 int cmd_robustness(const cli_options *opts);
 int cmd_recovery(const cli_options *opts);
 int cmd_merge(const cli_options *opts);
+int cmd_feedback(const cli_options *opts);
 
 /* inputs.c: a walk over every series of the inputs in order — CSV tables as read, NetCDF
  * grids a table of cells at a time, each made ready like a CSV table (cli_ready_table). */
@@ -415,5 +422,13 @@ int cli_grid(const cli_options *o, series_table *t, int announce, io_error *err)
 void cli_input_notices(const cli_options *o, const series_table *t);
 /* The values that look like missing-value codes, per series of a table. */
 void cli_series_notices(const series_table *t);
+
+/* feedback_options.c: the setter of feedback's rows of the option table, its defaults, and
+ * the checks between its options (after the parse). */
+int cli_feedback_set(cli_options *o, const char *name, const char *value);
+void cli_feedback_defaults(cli_options *o);
+int cli_feedback_check(const cli_options *o);
+/* help_feedback.c: `slowscan help feedback`. */
+void cli_help_feedback(FILE *out);
 
 #endif

@@ -15,6 +15,7 @@ static const char overview[] =
     "  robustness  the trend test over a grid of detrending x windows x bandwidths\n"
     "  recovery    recovery-rate path of an AR(1) with a drifting coefficient\n"
     "  surrogates  null-model replicates of each residual (series,replicate,time,value)\n"
+    "  feedback    sliding regression of a forced run's flux on its response (lambda, T_eq)\n"
     "  merge       one run's summary from the summaries of its parts (q-values over all)\n"
     "  demo        write the invented demo data sets (lake stations, a coastal shelf grid)\n"
     "  help        this text, or 'slowscan help COMMAND'\n"
@@ -388,7 +389,8 @@ int cli_help(const char *topic, FILE *out)
                   {"robustness", help_robustness},
                   {"recovery", help_recovery},
                   {"demo", help_demo},
-                  {"merge", help_merge}};
+                  {"merge", help_merge},
+                  {"feedback", cli_help_feedback}};
     if (!topic) {
         fputs(overview, out);
         fputc('\n', out);
@@ -400,6 +402,6 @@ int cli_help(const char *topic, FILE *out)
             topics[i].print(out);
             return EXIT_OK;
         }
-    fprintf(stderr, "slowscan: no help for '%s' (commands: screen, robustness, recovery, indicators, detrend, surrogates, demo)\n", topic);
+    fprintf(stderr, "slowscan: no help for '%s' (commands: screen, robustness, recovery, feedback, indicators, detrend, surrogates, demo)\n", topic);
     return EXIT_BAD_INPUT;
 }

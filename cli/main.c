@@ -20,6 +20,7 @@ static const struct {
     {"surrogates", cmd_surrogates},
     {"demo", cmd_demo},
     {"merge", cmd_merge},
+    {"feedback", cmd_feedback},
 };
 
 int cli_main(int argc, char **argv)

@@ -16,7 +16,7 @@
 #include <unistd.h>
 
 enum { C_DETREND = 1, C_INDICATORS = 2, C_SCREEN = 4, C_DEMO = 8, C_SURROGATES = 16, C_ROBUST = 32,
-       C_RECOVERY = 64, C_MERGE = 128 };
+       C_RECOVERY = 64, C_MERGE = 128, C_FEEDBACK = 256 };
 #define C_SERIES (C_DETREND | C_INDICATORS | C_SCREEN | C_SURROGATES | C_ROBUST | C_RECOVERY)
 #define C_ROLLING (C_INDICATORS | C_SCREEN | C_ROBUST)
 #define C_TESTING (C_SCREEN | C_ROBUST | C_RECOVERY)
@@ -311,26 +311,26 @@ static int set_format(cli_options *o, const char *n, const char *v)
 }
 
 static const option_spec options[] = {
-    {"--time", 1, C_SERIES, set_time},
-    {"--vars", 1, C_SERIES, set_vars},
-    {"--from", 1, C_SERIES, cli_set_from},
-    {"--until", 1, C_SERIES, cli_set_until},
+    {"--time", 1, C_SERIES | C_FEEDBACK, set_time},
+    {"--vars", 1, C_SERIES | C_FEEDBACK, set_vars},
+    {"--from", 1, C_SERIES | C_FEEDBACK, cli_set_from},
+    {"--until", 1, C_SERIES | C_FEEDBACK, cli_set_until},
     {"--log", 0, C_SERIES, set_log},
-    {"--resample", 1, C_SERIES, set_resample},
-    {"--max-gap", 1, C_SERIES, cli_set_max_gap},
-    {"--select", 1, C_SERIES, set_select},
+    {"--resample", 1, C_SERIES | C_FEEDBACK, set_resample},
+    {"--max-gap", 1, C_SERIES | C_FEEDBACK, cli_set_max_gap},
+    {"--select", 1, C_SERIES | C_FEEDBACK, set_select},
     {"--resume", 0, C_SCREEN, set_resume},
-    {"--calendar", 1, C_SERIES, cli_set_calendar},
-    {"--time-format", 1, C_SERIES, cli_set_time_format},
-    {"--time-units", 1, C_SERIES, cli_set_time_units},
+    {"--calendar", 1, C_SERIES | C_FEEDBACK, cli_set_calendar},
+    {"--time-format", 1, C_SERIES | C_FEEDBACK, cli_set_time_format},
+    {"--time-units", 1, C_SERIES | C_FEEDBACK, cli_set_time_units},
     {"--age", 0, C_SERIES, cli_set_age},
-    {"--missing", 1, C_SERIES, cli_set_missing},
+    {"--missing", 1, C_SERIES | C_FEEDBACK, cli_set_missing},
     {"--detrend", 1, C_SERIES, set_detrend},
     {"--bandwidth", 1, C_SERIES, set_bandwidth},
     {"--deseason", 1, C_SERIES, set_deseason},
     {"--deseason-window", 1, C_SERIES, set_deseason_window},
     {"--harmonics", 1, C_SERIES, set_harmonics},
-    {"--window", 1, C_ROLLING, set_window},
+    {"--window", 1, C_ROLLING | C_FEEDBACK, set_window},
     {"--indicators", 1, C_ROLLING, set_indicators},
     {"--min-coverage", 1, C_ROLLING, set_min_coverage},
     {"--recovery", 1, C_ROLLING, set_recovery},
@@ -344,7 +344,7 @@ static const option_spec options[] = {
     {"--fdr", 1, C_TESTING | C_MERGE, set_fdr},
     {"--alternative", 1, C_TESTING, set_alternative},
     {"--rolling", 1, C_SCREEN, set_rolling},
-    {"--json", 1, C_SCREEN | C_RECOVERY, set_json},
+    {"--json", 1, C_SCREEN | C_RECOVERY | C_FEEDBACK, set_json},
     {"--maps", 1, C_SCREEN, set_maps},
     {"--control", 1, C_TESTING | C_SURROGATES, set_control},
     {"--noise-trend", 0, C_TESTING, set_noise_trend},
@@ -358,23 +358,36 @@ static const option_spec options[] = {
     {"--ensemble", 0, C_SCREEN, set_ensemble},
     {"--members", 1, C_SCREEN, set_ensemble},
     {"--member-anomalies", 0, C_SCREEN, set_ensemble},
-    {"--figures", 1, C_TESTING, set_figures},
-    {"--figure-format", 1, C_TESTING, set_figure_format},
-    {"-o", 1, C_SERIES | C_MERGE, set_output},
-    {"--output", 1, C_SERIES, set_output},
+    {"--figures", 1, C_TESTING | C_FEEDBACK, set_figures},
+    {"--figure-format", 1, C_TESTING | C_FEEDBACK, set_figure_format},
+    {"-o", 1, C_SERIES | C_MERGE | C_FEEDBACK, set_output},
+    {"--output", 1, C_SERIES | C_FEEDBACK, set_output},
     {"--progress", 0, C_SERIES, set_progress},
     {"--no-progress", 0, C_SERIES, set_progress},
-    {"--quiet", 0, C_SERIES, set_quiet},
+    {"--quiet", 0, C_SERIES | C_FEEDBACK, set_quiet},
     {"--out", 1, C_DEMO, set_out_dir},
     {"--seed", 1, C_DEMO | C_TESTING | C_SURROGATES, set_seed},
     {"--threads", 1, C_TESTING, set_threads},
+    {"--flux", 1, C_FEEDBACK, cli_feedback_set},
+    {"--response", 1, C_FEEDBACK, cli_feedback_set},
+    {"--stride", 1, C_FEEDBACK, cli_feedback_set},
+    {"--skip", 1, C_FEEDBACK, cli_feedback_set},
+    {"--fit", 1, C_FEEDBACK, cli_feedback_set},
+    {"--noise-ratio", 1, C_FEEDBACK, cli_feedback_set},
+    {"--fit-span", 1, C_FEEDBACK, cli_feedback_set},
+    {"--scale", 1, C_FEEDBACK, cli_feedback_set},
+    {"--baseline", 1, C_FEEDBACK, cli_feedback_set},
+    {"--baseline-mode", 1, C_FEEDBACK, cli_feedback_set},
+    {"--baseline-offset", 1, C_FEEDBACK, cli_feedback_set},
+    {"--annual", 0, C_FEEDBACK, cli_feedback_set},
+    {"--area-mean", 0, C_FEEDBACK, cli_feedback_set},
 };
 
 static int command_bit(const char *command)
 {
     static const char *names[] = {"detrend", "indicators", "screen", "demo", "surrogates",
-                                  "robustness", "recovery", "merge"};
-    for (int i = 0; i < 8; i++)
+                                  "robustness", "recovery", "merge", "feedback"};
+    for (int i = 0; i < 9; i++)
         if (strcmp(command, names[i]) == 0)
             return 1 << i;
     return 0;
@@ -388,6 +401,8 @@ static void set_defaults(const char *command, cli_options *o)
     o->format = "csv";
     o->figure_format = REPORT_PNG;
     o->progress = -1;
+    if (strcmp(command, "feedback") == 0)
+        cli_feedback_defaults(o);
     /* The default grid is centred on screen's own choice (50%, 10%): windows in even steps
      * from 30% to 70%, bandwidths in equal ratios (about sqrt 2) from half to twice 10%. */
     cli_parse_grid("--windows", "30%:70%:10%", o->windows, o->grid_text[0], &o->nwindows);
@@ -495,6 +510,8 @@ int cli_parse(const char *command, int argc, char **argv, int first, cli_options
         cli_error("%s: no input file given (a CSV file, or - for standard input)", command);
         return EXIT_BAD_INPUT;
     }
+    if (bit == C_FEEDBACK && cli_feedback_check(o) != EXIT_OK)
+        return EXIT_BAD_INPUT;
     if (bit == C_DEMO && o->nfiles > 0) {
         cli_error("demo: takes no input file (write the data set with --out DIR)");
         return EXIT_BAD_INPUT;

@@ -47,12 +47,13 @@ int cli_ready_table(const cli_options *opts, series_table *t, int first)
 
 /* The control run is read with the same columns, grid and logarithm as the inputs, but never
  * cut by --from/--until: those select the forced run's span, not the control's. */
-static int load_control(const cli_options *opts, cli_inputs *in)
+int cli_load_whole_table(const cli_options *opts, const char *path, const char *option,
+                         const char *what, series_table *table)
 {
     for (size_t f = 0; f < opts->nfiles; f++)
-        if (slowscan_io_same_file(opts->control_file, opts->files[f])) {
-            cli_error("option --control: %s is also an input; a control run must be another file",
-                      opts->control_file);
+        if (slowscan_io_same_file(path, opts->files[f])) {
+            cli_error("option %s: %s is also an input; %s must be another file", option, path,
+                      what);
             return EXIT_BAD_INPUT;
         }
     csv_read_options ro;
@@ -60,16 +61,26 @@ static int load_control(const cli_options *opts, cli_inputs *in)
     if (cli_read_options(opts, &units, &ro) != EXIT_OK)
         return EXIT_BAD_INPUT;
     io_error err = {{0}};
-    int st = slowscan_csv_read_table(opts->control_file, &ro, &in->control, &err);
+    int st = slowscan_csv_read_table(path, &ro, table, &err);
     if (st != SLOWSCAN_OK) {
-        cli_error("option --control: %s", err.message);
+        cli_error("option %s: %s", option, err.message);
         return st == SLOWSCAN_ENOMEM ? EXIT_INTERNAL : EXIT_BAD_INPUT;
     }
-    in->has_control = 1;
     cli_options whole = *opts;
     whole.from = whole.until = NAN;
     whole.from_text = whole.until_text = NULL;
-    return cli_ready_table(&whole, &in->control, 1);
+    int rc = cli_ready_table(&whole, table, 1);
+    if (rc != EXIT_OK)
+        slowscan_series_table_free(table);
+    return rc;
+}
+
+static int load_control(const cli_options *opts, cli_inputs *in)
+{
+    int rc = cli_load_whole_table(opts, opts->control_file, "--control", "a control run",
+                                  &in->control);
+    in->has_control = rc == EXIT_OK;
+    return rc;
 }
 
 /* A NetCDF input is opened once here, so that a bad file, variable or --select fails before

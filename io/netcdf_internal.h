@@ -72,6 +72,8 @@ int netcdf_library_fail(const netcdf_reader *r, io_error *err, int nc_status, co
 /* 1 with *varid when dimension dimid has a coordinate variable: a numeric variable of the
  * same name on that dimension alone (netcdf_open.c). */
 int netcdf_coordinate_variable(int ncid, int dimid, int *varid);
+/* A text attribute into buf (empty when absent, not text or too long) (netcdf_open.c). */
+void netcdf_text_attribute(int ncid, int varid, const char *name, char *buf, size_t size);
 /* --select applied to every variable's dimensions; the cell counts (netcdf_select.c). */
 int netcdf_apply_selection(netcdf_reader *r, io_error *err);
 /* Closes and removes the transposed copy, if any (netcdf_blocks.c). */

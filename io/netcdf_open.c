@@ -32,8 +32,7 @@ int netcdf_library_fail(const netcdf_reader *r, io_error *err, int nc_status, co
                        "%s: %s", doing, nc_strerror(nc_status));
 }
 
-/* A text attribute into buf (empty when absent or not text). */
-static void text_attribute(int ncid, int varid, const char *name, char *buf, size_t size)
+void netcdf_text_attribute(int ncid, int varid, const char *name, char *buf, size_t size)
 {
     nc_type type;
     size_t len;
@@ -72,13 +71,13 @@ int netcdf_coordinate_variable(int ncid, int dimid, int *varid)
 static int says_time(int ncid, int varid)
 {
     char text[256];
-    text_attribute(ncid, varid, "axis", text, sizeof text);
+    netcdf_text_attribute(ncid, varid, "axis", text, sizeof text);
     if (strcasecmp(text, "T") == 0)
         return 1;
-    text_attribute(ncid, varid, "standard_name", text, sizeof text);
+    netcdf_text_attribute(ncid, varid, "standard_name", text, sizeof text);
     if (strcmp(text, "time") == 0)
         return 1;
-    text_attribute(ncid, varid, "units", text, sizeof text);
+    netcdf_text_attribute(ncid, varid, "units", text, sizeof text);
     return strstr(text, " since ") != NULL;
 }
 
@@ -86,8 +85,8 @@ static int says_time(int ncid, int varid)
 static int read_time(netcdf_reader *r, int varid, io_error *err)
 {
     char calendar[64], units[256];
-    text_attribute(r->ncid, varid, "calendar", calendar, sizeof calendar);
-    text_attribute(r->ncid, varid, "units", units, sizeof units);
+    netcdf_text_attribute(r->ncid, varid, "calendar", calendar, sizeof calendar);
+    netcdf_text_attribute(r->ncid, varid, "units", units, sizeof units);
     calendar_kind kind = CALENDAR_STANDARD;
     if (calendar[0] && slowscan_calendar_lookup(calendar, &kind) != SLOWSCAN_OK)
         return netcdf_fail(r, err, SLOWSCAN_EINVAL, "variable '%s': calendar = \"%s\" is not a "
@@ -236,7 +235,7 @@ static int describes_grid(int ncid, int nvars, const char *name)
     for (int v = 0; v < nvars; v++)
         for (size_t a = 0; a < 3; a++) {
             char text[1024];
-            text_attribute(ncid, v, attributes[a], text, sizeof text);
+            netcdf_text_attribute(ncid, v, attributes[a], text, sizeof text);
             char *save = NULL;
             for (char *tok = strtok_r(text, " ", &save); tok; tok = strtok_r(NULL, " ", &save))
                 if (strcmp(tok, name) == 0)

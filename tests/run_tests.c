@@ -42,6 +42,8 @@ void suite_store(void);
 void suite_progress(void);
 void suite_mpi(void);
 void suite_ensemble(void);
+void suite_feedback(void);
+void suite_feedback_rates(void);
 
 static const struct {
     const char *name;
@@ -66,6 +68,7 @@ static const struct {
     {"merge", suite_merge},           {"resume", suite_resume},
     {"mpi", suite_mpi},
     {"ensemble", suite_ensemble},
+    {"feedback", suite_feedback},     {"feedback_rates", suite_feedback_rates},
 };
 
 int main(int argc, char **argv)

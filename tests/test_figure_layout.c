@@ -466,8 +466,47 @@ static void test_binary_map(void)
     }
 }
 
+/* ---- the feedback figure from invented data --------------------------------------------- */
+
+/* A forced run's feedback figure: every text box on the page, none overlapping, ink in each,
+ * and coloured data in both panels (png_chroma.py). */
+static void test_feedback_geometry(void)
+{
+    enum { NF = 150, NWIN = 12 };
+    double T[NF], Nf[NF], mid[NWIN], lam[NWIN], lo[NWIN], hi[NWIN], F[NWIN], t0[NWIN], t1[NWIN];
+    unsigned flags[NWIN];
+    for (int i = 0; i < NF; i++) {
+        T[i] = 6 * (1 - exp(-(i + 1) / 30.0)) + 0.1 * sin(i);
+        Nf[i] = 7.4 - 1.2 * T[i] + 0.3 * cos(1.7 * i);
+    }
+    for (int j = 0; j < NWIN; j++) {
+        mid[j] = 1890 + 6 * j, lam[j] = -1.3 + 0.08 * j, lo[j] = lam[j] - 0.4, hi[j] = lam[j] + 0.4;
+        F[j] = 7.4, t0[j] = 0.5 * j, t1[j] = 0.5 * j + 1.5;
+        flags[j] = j > 9 ? 1u : 0u;
+    }
+    report_feedback_data d = {"an abrupt run", "net flux", "temperature", "year", NF, Nf, T, NWIN,
+                              mid, lam, lo, hi, F, t0, t1, flags, "drifting (p = 0.012)"};
+    char dir[512], png[800];
+    io_error err = {{0}};
+    report_batch *batch = open_batch("geometry-feedback", REPORT_PNG, dir, sizeof dir);
+    int ok = batch && slowscan_report_batch_draw(batch, &slowscan_report_feedback_figure, &d,
+                                                 "feedback", "run", &err) == SLOWSCAN_OK;
+    ok = ok && slowscan_report_batch_commit(batch, &err) == SLOWSCAN_OK;
+    CHECK(ok, "feedback figure drawn: %s", err.message);
+    slowscan_report_batch_free(batch);
+    if (!ok)
+        return;
+    snprintf(png, sizeof png, "%s/feedback-run.png", dir);
+    manifest m;
+    check_figure(png, "feedback-run", &m);
+    CHECK(panel_chroma(png, &m, "scatter") > 50 && panel_chroma(png, &m, "lambda") > 50,
+          "feedback figure: coloured data in both panels");
+    free(m.boxes);
+}
+
 void suite_figure_layout(void)
 {
+    test_feedback_geometry();
     test_series_geometry();
     test_decimation();
     test_overview_labels();

@@ -100,5 +100,42 @@ int slowscan_netcdf_next_table(netcdf_reader *reader, size_t max_series, series_
  * has standard_name "realization" (CF). 1 with its name in name[size]; 0 when there is none. */
 SLOWSCAN_API
 int slowscan_netcdf_member_dimension(const netcdf_reader *reader, char *name, size_t size);
+/* Area weights of variable `variable`'s cells (for an area-weighted mean): the CF
+ * cell_measures "area: NAME" variable when the file holds it on the variable's own non-time
+ * dimensions (kind MEASURES, `measure` names it), else cos(latitude) from a latitude
+ * coordinate (units degrees_north, or named lat/latitude): exact area weights on a regular
+ * latitude-longitude grid (REGULAR_LATLON), approximate on a Gaussian or other unequally
+ * spaced one (IRREGULAR_LAT); NONE (equal weights) without either. */
+typedef enum {
+    NETCDF_AREA_MEASURES = 0,
+    NETCDF_AREA_REGULAR_LATLON,
+    NETCDF_AREA_IRREGULAR_LAT,
+    NETCDF_AREA_NONE
+} netcdf_area_kind;
+
+typedef struct {
+    netcdf_area_kind kind;
+    char measure[260];          /* the cell_measures variable named (also when unusable) */
+    int lat_dim;                /* the latitude's position among the cell's coordinates */
+    double *areas;              /* MEASURES: the area variable in file order */
+    size_t stride[NETCDF_MAX_DIMS];
+} netcdf_area_weights;
+
+SLOWSCAN_API
+int slowscan_netcdf_area_weights(const netcdf_reader *reader, size_t variable,
+                                 netcdf_area_weights *weights, io_error *err);
+/* The weight of a cell handed out by slowscan_netcdf_next. */
+SLOWSCAN_API
+double slowscan_netcdf_cell_weight(const netcdf_area_weights *weights, const netcdf_series *cell);
+SLOWSCAN_API
+void slowscan_netcdf_area_weights_free(netcdf_area_weights *weights);
+
+/* The CF branch-time attributes (global branch_time_in_parent in parent_time_units, or the
+ * file's own units when that is absent; branch_time_in_child in the time variable's units,
+ * 0 when absent) as day numbers of the file's calendar; *found 0 without
+ * branch_time_in_parent. SLOWSCAN_EINVAL for parent_time_units that are not CF units. */
+SLOWSCAN_API
+int slowscan_netcdf_branch_days(const netcdf_reader *reader, int *found, double *parent_day,
+                                double *child_day, io_error *err);
 
 #endif

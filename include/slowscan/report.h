@@ -210,6 +210,22 @@ typedef struct {
 } report_recovery_data;
 extern SLOWSCAN_API const report_figure_type slowscan_report_recovery_figure;
 
+/* Feedback figure of a forced run (slowscan feedback): the flux against the response with
+ * each window's fitted line over the response's range in that window, and lambda at each
+ * window's middle time with its interval, weak and reversed windows marked. */
+typedef struct {
+    const char *name;                 /* the run */
+    const char *flux_name, *response_name, *time_name;
+    size_t n;
+    const double *flux, *response;    /* n samples (NaN missing) */
+    size_t windows;
+    const double *middle, *lambda, *lo, *hi, *forcing; /* per window */
+    const double *t_min, *t_max;      /* the response's range in each window */
+    const unsigned *flags;            /* feedback.h's FEEDBACK_FLAG_* bits */
+    const char *verdict;              /* the run's drift verdict in words */
+} report_feedback_data;
+extern SLOWSCAN_API const report_figure_type slowscan_report_feedback_figure;
+
 /* Maps of one variable of a NetCDF grid (screen --maps with --figures): one panel per test,
  * each grid cell's statistic as a plain raster over the two horizontal dimensions (x across,
  * y up; a cell reaches halfway to its neighbours' coordinates), on a diverging colour scale
