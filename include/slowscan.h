@@ -24,6 +24,7 @@
 #include "slowscan/screen_batch.h"
 #include "slowscan/robustness.h"
 #include "slowscan/recovery.h"
+#include "slowscan/timescales.h"
 #include "slowscan/message.h"
 #include "slowscan/screen_store.h"
 #include "slowscan/netcdf_maps.h"

@@ -41,6 +41,8 @@ void suite_resume(void);
 void suite_store(void);
 void suite_progress(void);
 void suite_mpi(void);
+void suite_timescales(void);
+void suite_emulate(void);
 
 static const struct {
     const char *name;
@@ -58,6 +60,7 @@ static const struct {
     {"batch", suite_batch},           {"messages", suite_messages},
     {"store", suite_store},           {"progress", suite_progress},
     {"series_calls", suite_series_calls},
+    {"timescales", suite_timescales},
     {"calendar", suite_calendar},
     {"time_column", suite_time_column}, {"netcdf", suite_netcdf},
     {"maps", suite_maps},

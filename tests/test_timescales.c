@@ -1,0 +1,215 @@
+/* Relaxation timescales of a step response (response/timescales.c): against
+ * scipy.optimize.curve_fit, exact recovery, the BIC's choice, the flags. */
+#include "check.h"
+#include "slowscan/status.h"
+#include "slowscan/timescales.h"
+#include "timescales_check.h"
+
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+
+enum { N = 150 };
+
+void modes_simulate(double *t, double *y, size_t n, const double *a, const double *tau,
+                    size_t K, double sd, double phi, unsigned long seed)
+{
+    check_rng *r = seed ? check_rng_alloc(seed) : NULL;
+    double noise = 0;
+    for (size_t i = 0; i < n; i++) {
+        t[i] = (double)(i + 1);
+        y[i] = 0;
+        for (size_t k = 0; k < K; k++)
+            y[i] += a[k] * (1.0 - exp(-t[i] / tau[k]));
+        if (r) {
+            /* AR(1) noise of stationary sd `sd` */
+            noise = phi * noise + sd * sqrt(1.0 - phi * phi) * check_rng_gaussian(r);
+            y[i] += noise;
+        }
+    }
+    if (r)
+        check_rng_free(r);
+}
+
+/* Our fit at K modes (max_modes = K and the choice forced) against curve_fit's. */
+static void against_curve_fit(const double *t, const double *y, size_t n, size_t K, double tol,
+                              const char *what)
+{
+    char path[4200], args[4400];
+    snprintf(path, sizeof path, "%s", check_tmp_path("timescales_curve_fit.txt"));
+    FILE *fp = fopen(path, "w");
+    for (size_t i = 0; fp && i < n; i++)
+        fprintf(fp, "%.17g %.17g\n", t[i], y[i]);
+    if (fp)
+        fclose(fp);
+    snprintf(args, sizeof args, "timescales_curve_fit.py %s %zu", path, K);
+    double ref[4 * TIMESCALES_MAX_MODES];
+    CHECK(check_python(args, ref, 4 * K) == (int)(4 * K), "%s: curve_fit ran", what);
+    timescales_config cfg = slowscan_timescales_config_default();
+    cfg.max_modes = K;
+    timescales_workspace *ws = slowscan_timescales_workspace_alloc(n);
+    timescales_result r;
+    CHECK(slowscan_timescales_fit(ws, &cfg, t, y, n, &r) == SLOWSCAN_OK, "%s: fit runs", what);
+    CHECK(r.nmodes == K || K == 1, "%s: %zu modes kept (of %zu)", what, r.nmodes, K);
+    for (size_t k = 0; k < K && r.nmodes == K; k++) {
+        char label[128];
+        /* scipy.optimize.curve_fit (Debian python3-scipy), same model, same data */
+        snprintf(label, sizeof label, "%s: a_%zu vs curve_fit", what, k + 1);
+        CHECK_CLOSE(r.modes[k].a, ref[k], tol, 0, label);
+        snprintf(label, sizeof label, "%s: tau_%zu vs curve_fit", what, k + 1);
+        CHECK_CLOSE(r.modes[k].tau, ref[K + k], tol, 0, label);
+        /* pcov (absolute_sigma=False) is rss/(n-p) (J'J)^-1: ours before the n/n_eff
+         * inflation; on noise-free data both are round-off and not compared */
+        if (tol > 1e-6) {
+            snprintf(label, sizeof label, "%s: se(a_%zu) vs curve_fit", what, k + 1);
+            CHECK_CLOSE(r.modes[k].se_a / r.se_inflation, ref[2 * K + k], 0.02, 0, label);
+            snprintf(label, sizeof label, "%s: se(tau_%zu) vs curve_fit", what, k + 1);
+            CHECK_CLOSE(r.modes[k].se_tau / r.se_inflation, ref[3 * K + k], 0.02, 0, label);
+        }
+    }
+    slowscan_timescales_workspace_free(ws);
+}
+
+static void test_reference(void)
+{
+    double t[N], y[N];
+    const double a[] = {2.0, 3.0}, tau[] = {4.0, 35.0};
+    modes_simulate(t, y, N, a, tau, 2, 0, 0, 0);
+    against_curve_fit(t, y, N, 2, 1e-6, "noise-free two modes");
+    modes_simulate(t, y, N, a, tau, 2, 0.15, 0.0, 11);
+    against_curve_fit(t, y, N, 2, 0.01, "two modes, white noise");
+    modes_simulate(t, y, N, a, tau, 2, 0.2, 0.5, 12);
+    against_curve_fit(t, y, N, 2, 0.01, "two modes, red noise");
+    modes_simulate(t, y, N, a, tau, 2, 0.15, 0.0, 13);
+    against_curve_fit(t, y, N, 1, 0.01, "one mode on two-mode data");
+}
+
+/* Noise-free two-mode data: the parameters come back to round-off, K = 2 is chosen. */
+static void test_exact(void)
+{
+    double t[N], y[N];
+    const double a[] = {1.5, 4.0}, tau[] = {3.0, 30.0};
+    modes_simulate(t, y, N, a, tau, 2, 0, 0, 0);
+    timescales_config cfg = slowscan_timescales_config_default();
+    timescales_workspace *ws = slowscan_timescales_workspace_alloc(N);
+    timescales_result r;
+    CHECK(slowscan_timescales_fit(ws, &cfg, t, y, N, &r) == SLOWSCAN_OK, "exact: fit runs");
+    CHECK(r.nmodes == 2, "exact: K = %zu chosen, want 2", r.nmodes);
+    for (size_t k = 0; k < 2 && r.nmodes == 2; k++) {
+        /* the model's own parameters (exact recovery; no source needed) */
+        CHECK_CLOSE(r.modes[k].a, a[k], 1e-8, 0, "exact: amplitude");
+        CHECK_CLOSE(r.modes[k].tau, tau[k], 1e-8, 0, "exact: timescale");
+    }
+    CHECK_CLOSE(r.equilibrium, 5.5, 1e-8, 0, "exact: equilibrium sum");
+    CHECK(r.flags == 0, "exact: no flag at taus 3, 30 on 150 samples (flags %u)",
+          r.flags);
+    slowscan_timescales_workspace_free(ws);
+}
+
+/* Two modes under red noise (AR(1), phi 0.6): the effective-sample-size BIC keeps K = 2
+ * where red residuals would otherwise buy a third mode. Counted over seeds. */
+static void test_bic(void)
+{
+    enum { SEEDS = 20 };
+    double t[N], y[N];
+    const double a[] = {2.0, 3.0}, tau[] = {4.0, 35.0};
+    timescales_config cfg = slowscan_timescales_config_default();
+    timescales_workspace *ws = slowscan_timescales_workspace_alloc(N);
+    size_t two = 0, three = 0;
+    for (unsigned long s = 1; s <= SEEDS; s++) {
+        modes_simulate(t, y, N, a, tau, 2, 0.1, 0.6, 100 + s);
+        timescales_result r;
+        if (slowscan_timescales_fit(ws, &cfg, t, y, N, &r) != SLOWSCAN_OK)
+            continue;
+        two += r.nmodes == 2;
+        three += r.nmodes == 3;
+    }
+    printf("  timescales: BIC (n_eff) chose K = 2 in %zu of %d red-noise two-mode series, "
+           "K = 3 in %zu\n", two, SEEDS, three);
+    /* common practice, no source: the right K in most draws, a spurious third mode rarely */
+    CHECK(two >= SEEDS * 8 / 10, "BIC: K = 2 in %zu of %d", two, SEEDS);
+    CHECK(three <= SEEDS / 10, "BIC: K = 3 in %zu of %d", three, SEEDS);
+    slowscan_timescales_workspace_free(ws);
+}
+
+static unsigned flags_of(const double *a, const double *tau, size_t K)
+{
+    double t[N], y[N];
+    modes_simulate(t, y, N, a, tau, K, 0, 0, 0);
+    timescales_config cfg = slowscan_timescales_config_default();
+    cfg.max_modes = K;
+    timescales_workspace *ws = slowscan_timescales_workspace_alloc(N);
+    timescales_result r = {0};
+    int st = slowscan_timescales_fit(ws, &cfg, t, y, N, &r);
+    slowscan_timescales_workspace_free(ws);
+    return st == SLOWSCAN_OK ? r.flags : 99u;
+}
+
+/* The flags' definitions (the issue's: longest tau beyond a third of the record; two taus
+ * more than 10x apart). */
+static void test_flags(void)
+{
+    const double a1[] = {2.0, 3.0}, tau_none[] = {5.0, 30.0}, tau_multi[] = {2.0, 40.0};
+    const double a_one[] = {4.0}, tau_long[] = {80.0}, tau_edge[] = {45.0};
+    CHECK(flags_of(a1, tau_none, 2) == 0, "flags: none at 5, 30");
+    CHECK(flags_of(a1, tau_multi, 2) == TIMESCALES_FLAG_MULTISCALE, "flags: multiscale at 2, 40");
+    CHECK(flags_of(a_one, tau_long, 1) == TIMESCALES_FLAG_UNRESOLVED, "flags: unresolved at 80 of 150");
+    CHECK(flags_of(a_one, tau_edge, 1) == 0, "flags: 45 of 150 is resolved");
+}
+
+/* The joint fit on noise-free data: shared timescales, the flux amplitudes and the forcing
+ * come back (exact recovery), and the equilibrium is where N reaches 0. */
+static void test_joint(void)
+{
+    double t[N], y[N], f[N];
+    const double a[] = {2.0, 3.0}, tau[] = {4.0, 35.0}, c[] = {4.0, 2.0};
+    modes_simulate(t, y, N, a, tau, 2, 0, 0, 0);
+    for (size_t i = 0; i < N; i++)
+        f[i] = c[0] * exp(-t[i] / tau[0]) + c[1] * exp(-t[i] / tau[1]);
+    timescales_config cfg = slowscan_timescales_config_default();
+    timescales_workspace *ws = slowscan_timescales_workspace_alloc(N);
+    timescales_result r;
+    CHECK(slowscan_timescales_fit_joint(ws, &cfg, t, y, f, N, &r) == SLOWSCAN_OK, "joint: runs");
+    CHECK(r.nmodes == 2 && r.joint, "joint: K = %zu", r.nmodes);
+    for (size_t k = 0; k < 2 && r.nmodes == 2; k++) {
+        CHECK_CLOSE(r.modes[k].a, a[k], 1e-7, 0, "joint: amplitude (exact recovery)");
+        CHECK_CLOSE(r.modes[k].tau, tau[k], 1e-7, 0, "joint: timescale (exact recovery)");
+        CHECK_CLOSE(r.modes[k].c, c[k], 1e-7, 0, "joint: flux amplitude (exact recovery)");
+    }
+    CHECK_CLOSE(r.forcing, 6.0, 1e-7, 0, "joint: forcing N0 = sum c_k");
+    CHECK_CLOSE(r.equilibrium, 5.0, 1e-7, 0, "joint: equilibrium where N = 0");
+    slowscan_timescales_workspace_free(ws);
+}
+
+/* Refusals of the library: too short, non-increasing time, NaN, a constant response. */
+static void test_refusals(void)
+{
+    double t[N], y[N];
+    const double a[] = {2.0}, tau[] = {10.0};
+    modes_simulate(t, y, N, a, tau, 1, 0, 0, 0);
+    timescales_config cfg = slowscan_timescales_config_default();
+    timescales_workspace *ws = slowscan_timescales_workspace_alloc(N);
+    timescales_result r;
+    CHECK(slowscan_timescales_fit(ws, &cfg, t, y, 11, &r) == SLOWSCAN_ESHORT, "refuses 11 samples for 3 modes");
+    t[5] = t[4];
+    CHECK(slowscan_timescales_fit(ws, &cfg, t, y, N, &r) == SLOWSCAN_EINVAL, "refuses a repeated time");
+    t[5] = 6.0;
+    y[7] = NAN;
+    CHECK(slowscan_timescales_fit(ws, &cfg, t, y, N, &r) == SLOWSCAN_EINVAL, "refuses NaN");
+    for (size_t i = 0; i < N; i++)
+        y[i] = 1.0;
+    CHECK(slowscan_timescales_fit(ws, &cfg, t, y, N, &r) == SLOWSCAN_ECONST, "refuses a constant");
+    cfg.max_modes = TIMESCALES_MAX_MODES + 1;
+    CHECK(slowscan_timescales_fit(ws, &cfg, t, y, N, &r) == SLOWSCAN_EINVAL, "refuses too many modes");
+    slowscan_timescales_workspace_free(ws);
+}
+
+void suite_timescales(void)
+{
+    test_reference();
+    test_exact();
+    test_bic();
+    test_flags();
+    test_joint();
+    test_refusals();
+}

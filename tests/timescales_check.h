@@ -1,0 +1,12 @@
+/* Test helpers shared by the suites of response/ (timescales, emulate). */
+#ifndef SLOWSCAN_TESTS_TIMESCALES_CHECK_H
+#define SLOWSCAN_TESTS_TIMESCALES_CHECK_H
+
+#include <stddef.h>
+
+/* t[i] = i + 1 and y[i] = sum_k a_k (1 - exp(-t_i / tau_k)) plus, when seed != 0, AR(1)
+ * noise of coefficient phi and stationary sd `sd` (GSL mt19937 through check_rng). */
+void modes_simulate(double *t, double *y, size_t n, const double *a, const double *tau,
+                    size_t K, double sd, double phi, unsigned long seed);
+
+#endif
