@@ -11,6 +11,8 @@
 #include "slowscan/report.h"
 #include "slowscan/screen.h"
 #include "slowscan/surrogates.h"
+#include "slowscan/timescales.h"
+#include "modes.h"
 
 #include <stddef.h>
 #include <stdio.h>
@@ -106,6 +108,7 @@ typedef struct {
     /* the command line as given (the history of NetCDF outputs) */
     int argc;
     char **argv;
+    cli_modes_options modes; /* timescales, emulate (modes.h) */
 } cli_options;
 
 /* The null model's name in outputs and random streams ("control" with --null control). */
