@@ -25,6 +25,7 @@
 #include "slowscan/robustness.h"
 #include "slowscan/recovery.h"
 #include "slowscan/timescales.h"
+#include "slowscan/emulate.h"
 #include "slowscan/message.h"
 #include "slowscan/screen_store.h"
 #include "slowscan/netcdf_maps.h"

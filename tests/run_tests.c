@@ -60,7 +60,7 @@ static const struct {
     {"batch", suite_batch},           {"messages", suite_messages},
     {"store", suite_store},           {"progress", suite_progress},
     {"series_calls", suite_series_calls},
-    {"timescales", suite_timescales},
+    {"timescales", suite_timescales}, {"emulate", suite_emulate},
     {"calendar", suite_calendar},
     {"time_column", suite_time_column}, {"netcdf", suite_netcdf},
     {"maps", suite_maps},

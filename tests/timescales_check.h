@@ -9,4 +9,10 @@
 void modes_simulate(double *t, double *y, size_t n, const double *a, const double *tau,
                     size_t K, double sd, double phi, unsigned long seed);
 
+/* Wilson score interval (95%) of x successes in n trials. */
+void modes_wilson(size_t x, size_t n, double *lo, double *hi);
+
+/* Departures the default rule reports on `runs` linear step/ramp run pairs (test_emulate.c). */
+size_t modes_false_departures(size_t runs, double sd, double phi, int skew, unsigned long seed0);
+
 #endif
