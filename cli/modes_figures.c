@@ -6,3 +6,11 @@ int cli_timescales_figure(report_batch *figures, const modes_series *s, const ti
     (void)figures, (void)s, (void)r;
     return EXIT_OK;
 }
+
+int cli_emulate_figure(report_batch *figures, const cli_options *opts, const modes_series *s,
+                       const double *time, const double *emulated, const double *actual,
+                       size_t n, const emulate_departure *dep)
+{
+    (void)figures, (void)opts, (void)s, (void)time, (void)emulated, (void)actual, (void)n, (void)dep;
+    return EXIT_OK;
+}

@@ -102,7 +102,7 @@ int cli_modes_refuse(const cli_options *opts, const modes_series *s, int status)
 }
 
 /* The column an option names in table t, or a refusal naming the option, file and columns. */
-static int named_column(const series_table *t, const char *option, const char *name, size_t *k)
+int cli_modes_column(const series_table *t, const char *option, const char *name, size_t *k)
 {
     *k = column_index(t, name);
     if (*k != (size_t)-1)
@@ -120,7 +120,7 @@ static int named_column(const series_table *t, const char *option, const char *n
 static int visit_one(const cli_options *opts, const series_table *t, size_t k, modes_walk *w)
 {
     size_t f = (size_t)-1;
-    if (opts->modes.joint && named_column(t, "--flux", opts->modes.flux, &f) != EXIT_OK)
+    if (opts->modes.joint && cli_modes_column(t, "--flux", opts->modes.flux, &f) != EXIT_OK)
         return EXIT_BAD_INPUT;
     modes_series s;
     double *owned = NULL;
@@ -142,7 +142,7 @@ static int walk(const cli_options *opts, const cli_inputs *in, void *context)
     int rc;
     while ((rc = cli_cursor_next(&c, &t, &k)) == EXIT_OK) {
         if (opts->modes.response && k == 0 &&
-            (rc = named_column(t, "--response", opts->modes.response, &r)) != EXIT_OK)
+            (rc = cli_modes_column(t, "--response", opts->modes.response, &r)) != EXIT_OK)
             break;
         if (opts->modes.response && k != r)
             continue;
@@ -175,4 +175,34 @@ int cli_modes_run(const cli_options *opts,
     modes_walk w = {visit, open, finish, context};
     series_command cmd = {.open = walk_open, .finish = walk_finish, .context = &w, .run = walk};
     return cli_run_series_command(opts, &cmd);
+}
+
+int cli_modes_read_ref(const cli_options *opts, const cli_series_ref *ref, const char *option,
+                       series_table *table, size_t *k)
+{
+    memset(table, 0, sizeof *table);
+    const char *files[1] = {ref->file};
+    cli_options local = *opts;
+    local.files = files;
+    local.nfiles = 1;
+    local.vars = NULL;
+    local.control_file = NULL;
+    local.use_control = 0;
+    if (cli_is_netcdf(ref->file) || cli_too_wide(ref->file)) {
+        cli_error("option %s: %s: give a CSV table of moderate size (a NetCDF file or a CSV "
+                  "read in parts is not taken here)", option, ref->file);
+        return EXIT_BAD_INPUT;
+    }
+    cli_inputs in;
+    int rc = cli_inputs_load(&local, &in);
+    if (rc == EXIT_OK) {
+        *table = in.tables[0];
+        memset(&in.tables[0], 0, sizeof in.tables[0]);
+    }
+    cli_inputs_free(&in);
+    if (rc == EXIT_OK)
+        rc = cli_modes_column(table, option, ref->column, k);
+    if (rc != EXIT_OK)
+        slowscan_series_table_free(table);
+    return rc;
 }

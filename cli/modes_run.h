@@ -5,6 +5,7 @@
 
 #include "cli.h"
 #include "slowscan/timescales.h"
+#include "slowscan/emulate.h"
 
 /* One response (and, --joint, its flux) ready to fit: samples from the onset on (and from
  * --skip after it). Arrays owned by the run, valid during the visit. */
@@ -32,6 +33,14 @@ int cli_modes_run(const cli_options *opts,
 int cli_modes_series(const cli_options *opts, const series_table *t, size_t k, size_t f,
                      modes_series *s, double **owned);
 
+/* The column `name` of t, or a refusal naming the option, the file and its columns. */
+int cli_modes_column(const series_table *t, const char *option, const char *name, size_t *k);
+
+/* Reads the CSV of a FILE:COL option (or the input file's column) like an input (--time,
+ * --from/--until, the grid); *k is the column's index. An exit code (message printed). */
+int cli_modes_read_ref(const cli_options *opts, const cli_series_ref *ref, const char *option,
+                       series_table *table, size_t *k);
+
 /* The message of a library refusal of series s; the exit code. */
 int cli_modes_refuse(const cli_options *opts, const modes_series *s, int status);
 
@@ -43,5 +52,10 @@ void cli_modes_say(const cli_options *opts, const char *fmt, ...) __attribute__(
 
 /* timescales --figures: the modes over the data and the residuals. */
 int cli_timescales_figure(report_batch *figures, const modes_series *s, const timescales_result *r);
+
+/* emulate --figures: actual and emulated response, the noise band, the departure. */
+int cli_emulate_figure(report_batch *figures, const cli_options *opts, const modes_series *s,
+                       const double *time, const double *emulated, const double *actual,
+                       size_t n, const emulate_departure *dep);
 
 #endif
