@@ -23,6 +23,10 @@ int cli_set_forcing(cli_options *o, const char *n, const char *v);
 int cli_set_compare(cli_options *o, const char *n, const char *v);
 int cli_set_noise_run(cli_options *o, const char *n, const char *v);
 
+/* help_modes.c */
+void cli_help_timescales(FILE *out);
+void cli_help_emulate(FILE *out);
+
 int cmd_timescales(const cli_options *opts);
 int cmd_emulate(const cli_options *opts);
 

@@ -75,7 +75,7 @@ int cli_modes_series(const cli_options *opts, const series_table *t, size_t k, s
     }
     *s = (modes_series){.source = source, .name = t->names[k], .n = n, .t = rel, .time = time,
                         .y = y, .flux = f == (size_t)-1 ? NULL : flux, .onset = onset, .dt = dt,
-                        .axis = &t->axis, .flux_name = f == (size_t)-1 ? NULL : t->names[f]};
+                        .axis = &t->axis, .time_name = t->time_name, .flux_name = f == (size_t)-1 ? NULL : t->names[f]};
     size_t need = 3 * (size_t)opts->modes.max_modes + 3;
     if (n < need) {
         cli_error("%s: column '%s': %zu samples after the onset (%g)%s; %s with --max-modes %ld "

@@ -10,7 +10,7 @@
 /* One response (and, --joint, its flux) ready to fit: samples from the onset on (and from
  * --skip after it). Arrays owned by the run, valid during the visit. */
 typedef struct {
-    const char *source, *name, *flux_name;
+    const char *source, *name, *flux_name, *time_name;
     size_t n;
     const double *t;    /* time since the onset */
     const double *time; /* the same samples' own times */
