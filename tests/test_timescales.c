@@ -8,6 +8,7 @@
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
+#include <string.h>
 
 enum { N = 150 };
 
@@ -204,6 +205,61 @@ static void test_refusals(void)
     slowscan_timescales_workspace_free(ws);
 }
 
+
+/* The command: its table against the library on the same data, and its refusals. */
+static void test_command(void)
+{
+    double t[N], y[N], f[N];
+    const double a[] = {2.0, 3.0}, tau[] = {4.0, 35.0};
+    modes_simulate(t, y, N, a, tau, 2, 0.1, 0.3, 21);
+    for (size_t i = 0; i < N; i++)
+        f[i] = 4.0 * exp(-t[i] / 4.0) + 2.0 * exp(-t[i] / 35.0);
+    const double *cols[] = {y, f};
+    char csv[600];
+    snprintf(csv, sizeof csv, "%s", modes_write_csv("step.csv", "year,tas,flux", N, 1.0, 1.0, cols, 2));
+    char args[2000], *out = NULL;
+    snprintf(args, sizeof args, "timescales --response tas --quiet %s", csv);
+    CHECK(modes_run(args, &out, NULL) == 0, "timescales runs");
+    timescales_config cfg = slowscan_timescales_config_default();
+    timescales_workspace *ws = slowscan_timescales_workspace_alloc(N);
+    timescales_result r;
+    slowscan_timescales_fit(ws, &cfg, t, y, N, &r);
+    slowscan_timescales_workspace_free(ws);
+    char want[64];
+    snprintf(want, sizeof want, "\ntas,%zu,1,", r.nmodes);
+    const char *row = out ? strstr(out, want) : NULL;
+    double a1 = NAN, tau1 = NAN;
+    if (row)
+        sscanf(row + strlen(want), "%lf,%*[^,],%lf", &a1, &tau1);
+    /* the onset one step before the first sample (time 1): t = time - 0, as the library had;
+     * the CSV holds the data to 12 digits, hence 1e-6 */
+    CHECK(out && strstr(out, "series,modes_chosen,mode,amplitude") && row,
+          "timescales table: %s", out ? out : "");
+    CHECK_CLOSE(a1, r.modes[0].a, 1e-6, 0, "timescales table: the library's first amplitude");
+    CHECK_CLOSE(tau1, r.modes[0].tau, 1e-6, 0, "timescales table: the library's first e-folding time");
+    free(out);
+    char bad_time[600];
+    snprintf(bad_time, sizeof bad_time, "%s", check_tmp_path("bad-time.csv"));
+    check_write_file(bad_time, "year,tas\n1,0.1\n2,0.2\n2,0.3\n3,0.4\n");
+    const struct { const char *what, *args, *needle; } refusals[] = {
+        {"unknown column", "timescales --response nope %s", "--response"},
+        {"unknown flux column", "timescales --joint --response tas --flux nope %s", "--flux"},
+        {"joint without flux", "timescales --joint --response tas %s", "--joint"},
+        {"flux without joint", "timescales --response tas --flux flux %s", "--flux"},
+        {"too many modes", "timescales --response tas --max-modes 6 %s", "--max-modes"},
+        {"zero modes", "timescales --response tas --max-modes 0 %s", "--max-modes"},
+        {"negative skip", "timescales --response tas --skip -3 %s", "--skip"},
+        {"too short after skip", "timescales --response tas --skip 140 %s", "needs at least 12"},
+        {"onset after the record", "timescales --response tas --onset 500 %s", "after the onset"},
+    };
+    for (size_t k = 0; k < sizeof refusals / sizeof refusals[0]; k++) {
+        snprintf(args, sizeof args, refusals[k].args, csv);
+        modes_expect_refusal(refusals[k].what, args, refusals[k].needle);
+    }
+    snprintf(args, sizeof args, "timescales --response tas %s", bad_time);
+    modes_expect_refusal("non-increasing time", args, "row 4");
+}
+
 void suite_timescales(void)
 {
     test_reference();
@@ -212,4 +268,5 @@ void suite_timescales(void)
     test_flags();
     test_joint();
     test_refusals();
+    test_command();
 }

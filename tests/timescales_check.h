@@ -15,4 +15,13 @@ void modes_wilson(size_t x, size_t n, double *lo, double *hi);
 /* Departures the default rule reports on `runs` linear step/ramp run pairs (test_emulate.c). */
 size_t modes_false_departures(size_t runs, double sd, double phi, int skew, unsigned long seed0);
 
+/* The binary with args; exit status, stdout and stderr (either may be NULL; free them). */
+int modes_run(const char *args, char **out, char **err);
+/* The binary refuses args (-o a scratch file added): exit 1, one message line holding
+ * needle, no output file left. */
+void modes_expect_refusal(const char *what, const char *args, const char *needle);
+/* A CSV in the scratch directory: header, then rows t0 + i dt and the columns; its path. */
+const char *modes_write_csv(const char *name, const char *header, size_t n, double t0, double dt,
+                            const double *const *columns, size_t ncol);
+
 #endif
