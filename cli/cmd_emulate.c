@@ -72,6 +72,15 @@ static int fit_step(const cli_options *opts, emulate_run *run, size_t k, modes_s
         return cli_modes_refuse(opts, s, st);
     run->sd = run->fit.sigma;
     run->r1 = run->fit.r1;
+    double scale = 0;
+    for (size_t i = 0; i < s->n; i++)
+        scale = fmax(scale, fabs(s->y[i]));
+    /* residuals at round-off (a noise-free model run) are no noise estimate */
+    if (!opts->modes.control.text && !(run->sd > 1e-8 * scale)) {
+        cli_error("%s: column '%s': the fitted modes leave no residual noise (sd %.3g) to set "
+                  "the band; give a control run with --control FILE:COL", s->source, s->name, run->sd);
+        return EXIT_BAD_INPUT;
+    }
     return EXIT_OK;
 }
 
