@@ -52,6 +52,11 @@ static void against_curve_fit(const double *t, const double *y, size_t n, size_t
     timescales_result r;
     CHECK(slowscan_timescales_fit(ws, &cfg, t, y, n, &r) == SLOWSCAN_OK, "%s: fit runs", what);
     CHECK(r.nmodes == K || K == 1, "%s: %zu modes kept (of %zu)", what, r.nmodes, K);
+    double worst = 0;
+    for (size_t k = 0; k < K && r.nmodes == K; k++)
+        worst = fmax(worst, fmax(fabs(r.modes[k].a / ref[k] - 1), fabs(r.modes[k].tau / ref[K + k] - 1)));
+    printf("  timescales: %s, K = %zu: largest relative difference from curve_fit %.2e\n", what,
+           K, worst);
     for (size_t k = 0; k < K && r.nmodes == K; k++) {
         char label[128];
         /* scipy.optimize.curve_fit (Debian python3-scipy), same model, same data */
