@@ -459,6 +459,7 @@ int slowscan_timescales_fit(timescales_workspace *ws, const timescales_config *c
     if (st != SLOWSCAN_OK)
         return st;
     fit_data d = {.t = t, .y = y, .f = NULL, .n = n, .joint = 0, .wy = 1.0, .wf = 0.0};
+    out->weight_response = 1.0;
     if (fit_all(ws, &d, cfg, out) == 0)
         return SLOWSCAN_ENUMERIC;
     d.K = choose(out, cfg->max_modes);
@@ -512,6 +513,8 @@ int slowscan_timescales_fit_joint(timescales_workspace *ws, const timescales_con
             return SLOWSCAN_ENUMERIC;
     }
     out->joint = 1;
+    out->weight_response = d.wy;
+    out->weight_flux = d.wf;
     d.K = choose(out, cfg->max_modes);
     describe(ws, &d, cfg, d.K, out);
     return SLOWSCAN_OK;

@@ -187,6 +187,47 @@ static void test_joint(void)
     slowscan_timescales_workspace_free(ws);
 }
 
+/* The joint fit on noisy data against curve_fit on the same stacked, weighted residuals
+ * (the library's final weights passed to it): 1%. */
+static void test_joint_reference(void)
+{
+    double t[N], y[N], f[N];
+    const double a[] = {2.0, 3.0}, tau[] = {4.0, 35.0}, c[] = {4.0, 2.0};
+    modes_simulate(t, y, N, a, tau, 2, 0.1, 0.2, 41);
+    check_rng *rng = check_rng_alloc(42);
+    for (size_t i = 0; i < N; i++)
+        f[i] = c[0] * exp(-t[i] / tau[0]) + c[1] * exp(-t[i] / tau[1]) + 0.3 * check_rng_gaussian(rng);
+    check_rng_free(rng);
+    timescales_config cfg = slowscan_timescales_config_default();
+    cfg.max_modes = 2;
+    timescales_workspace *ws = slowscan_timescales_workspace_alloc(N);
+    timescales_result r;
+    CHECK(slowscan_timescales_fit_joint(ws, &cfg, t, y, f, N, &r) == SLOWSCAN_OK && r.nmodes == 2,
+          "joint, noisy: fit runs with 2 modes");
+    slowscan_timescales_workspace_free(ws);
+    char path[4200], args[4600];
+    snprintf(path, sizeof path, "%s", check_tmp_path("timescales_joint.txt"));
+    FILE *fp = fopen(path, "w");
+    for (size_t i = 0; fp && i < N; i++)
+        fprintf(fp, "%.17g %.17g %.17g\n", t[i], y[i], f[i]);
+    if (fp)
+        fclose(fp);
+    snprintf(args, sizeof args, "timescales_joint_curve_fit.py %s 2 %.17g %.17g", path,
+             r.weight_response, r.weight_flux);
+    double ref[6];
+    CHECK(check_python(args, ref, 6) == 6, "joint: curve_fit ran");
+    double worst = 0;
+    for (size_t k = 0; k < 2 && r.nmodes == 2; k++) {
+        /* scipy.optimize.curve_fit (Debian python3-scipy) on the same weighted problem */
+        CHECK_CLOSE(r.modes[k].a, ref[k], 0.01, 0, "joint: a_k vs curve_fit");
+        CHECK_CLOSE(r.modes[k].tau, ref[2 + k], 0.01, 0, "joint: tau_k vs curve_fit");
+        CHECK_CLOSE(r.modes[k].c, ref[4 + k], 0.01, 0, "joint: c_k vs curve_fit");
+        worst = fmax(worst, fmax(fabs(r.modes[k].a / ref[k] - 1), fabs(r.modes[k].tau / ref[2 + k] - 1)));
+        worst = fmax(worst, fabs(r.modes[k].c / ref[4 + k] - 1));
+    }
+    printf("  timescales: joint fit, noisy: largest relative difference from curve_fit %.2e\n", worst);
+}
+
 /* Refusals of the library: too short, non-increasing time, NaN, a constant response. */
 static void test_refusals(void)
 {
@@ -272,6 +313,7 @@ void suite_timescales(void)
     test_bic();
     test_flags();
     test_joint();
+    test_joint_reference();
     test_refusals();
     test_command();
 }

@@ -73,6 +73,9 @@ typedef struct {
     timescales_choice choice[TIMESCALES_MAX_MODES]; /* K = 1..max_modes at [K-1] */
     unsigned flags;     /* timescales_flag bits */
     int joint;
+    /* joint fit: the weights of the response and flux residuals in the final pass (each the
+     * inverse of its series' noise scale); 1 and 0 otherwise */
+    double weight_response, weight_flux;
 } timescales_result;
 
 /* Scratch for records up to n samples (both series for the joint fit). NULL on failure. */
