@@ -160,7 +160,7 @@ static void write_rows(emulate_run *run)
     double h = run->dep.half_width;
     for (size_t i = 0; i < run->n; i++) {
         double d = run->actual[i] - run->emulated[i];
-        cli_put_number(fp, run->time[i]);
+        cli_put_time(fp, &run->tables[FORCING].axis, run->time[i]);
         const double v[] = {run->forcing[i], run->emulated[i], run->actual[i], d,
                             run->emulated[i] - h, run->emulated[i] + h};
         put_numbers(fp, v, sizeof v / sizeof v[0]);
@@ -235,7 +235,10 @@ static int read_inputs(const cli_options *opts, emulate_run *run, size_t *k)
     for (int j = STEP; j <= CONTROL; j++) {
         if (!refs[j]->text)
             continue;
-        int rc = cli_modes_read_ref(opts, refs[j], names[j], &run->tables[j], &k[j]);
+        /* --from/--until choose the span compared; the forcing is emulated from its start
+         * (a cut forcing would begin with a jump from 0), the step and control runs whole */
+        int cut = j == COMPARE;
+        int rc = cli_modes_read_ref(opts, refs[j], names[j], cut, &run->tables[j], &k[j]);
         if (rc == EXIT_OK && j != COMPARE)
             rc = complete(&run->tables[j], k[j], names[j]);
         if (rc != EXIT_OK)

@@ -82,6 +82,9 @@ static void write_json(timescales_run *run, const cli_options *opts, const modes
     }
     fputs("\"series\": ", fp);
     cli_json_string(fp, s->name);
+    fputs(", \"time_unit\": ", fp); /* of the e-folding times and the onset */
+    s->axis->unit != TIME_AXIS_NUMBER ? cli_json_string(fp, cli_time_unit(s->axis))
+                                      : (void)fputs("null", fp);
     fprintf(fp, ", \"joint\": %s, \"samples\": %zu, \"onset\": ", r->joint ? "true" : "false", r->n);
     cli_json_number(fp, s->onset);
     json_field(fp, "lag1_residuals", r->r1);

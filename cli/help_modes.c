@@ -93,6 +93,8 @@ void cli_help_emulate(FILE *out)
           "the band.\n\n", out);
     fputs(EMULATE_RATE_TEXT, out);
     fputs(modes_input, out);
+    fputs("  (emulate: --from/--until cut the compared run only; the forcing is emulated from\n"
+          "  its start, the step and control runs are read whole)\n", out);
     fputs("emulation:\n"
           "  --step FILE:COL      the step-forced run (or give its file as input with\n"
           "                       --response COL)\n"

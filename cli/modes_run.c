@@ -178,7 +178,7 @@ int cli_modes_run(const cli_options *opts,
 }
 
 int cli_modes_read_ref(const cli_options *opts, const cli_series_ref *ref, const char *option,
-                       series_table *table, size_t *k)
+                       int cut, series_table *table, size_t *k)
 {
     memset(table, 0, sizeof *table);
     const char *files[1] = {ref->file};
@@ -188,6 +188,10 @@ int cli_modes_read_ref(const cli_options *opts, const cli_series_ref *ref, const
     local.vars = NULL;
     local.control_file = NULL;
     local.use_control = 0;
+    if (!cut) {
+        local.from = local.until = NAN;
+        local.from_text = local.until_text = NULL;
+    }
     if (cli_is_netcdf(ref->file) || cli_too_wide(ref->file)) {
         cli_error("option %s: %s: give a CSV table of moderate size (a NetCDF file or a CSV "
                   "read in parts is not taken here)", option, ref->file);

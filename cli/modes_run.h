@@ -37,9 +37,10 @@ int cli_modes_series(const cli_options *opts, const series_table *t, size_t k, s
 int cli_modes_column(const series_table *t, const char *option, const char *name, size_t *k);
 
 /* Reads the CSV of a FILE:COL option (or the input file's column) like an input (--time,
- * --from/--until, the grid); *k is the column's index. An exit code (message printed). */
+ * the grid; --from/--until when `cut`); *k is the column's index. An exit code (message
+ * printed). */
 int cli_modes_read_ref(const cli_options *opts, const cli_series_ref *ref, const char *option,
-                       series_table *table, size_t *k);
+                       int cut, series_table *table, size_t *k);
 
 /* The message of a library refusal of series s; the exit code. */
 int cli_modes_refuse(const cli_options *opts, const modes_series *s, int status);

@@ -375,6 +375,13 @@ static void test_command(void)
         free(err);
         err = NULL;
     }
+    /* --until cuts the compared run only: the fold run up to 2150, before the fold, has no
+     * departure (the forcing is still emulated from its start) */
+    snprintf(args, sizeof args, "emulate --step %s:tas --step-forcing 4 --forcing %s:forcing "
+             "--compare %s:fold --control %s:noise --until 2150 -o /dev/null", step, ramp, ramp, ramp);
+    CHECK(modes_run(args, NULL, &err) == 0 && err && strstr(err, "no departure"),
+          "fold run cut before the fold: no departure: %s", err ? err : "");
+    free(err);
     test_command_refusals(step, ramp);
 }
 
