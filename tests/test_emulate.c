@@ -318,6 +318,11 @@ static void test_command_refusals(const char *step, const char *ramp)
     }
     snprintf(args, sizeof args, "emulate --step %s:tas --forcing %s:forcing", step, ramp);
     modes_expect_refusal("no step forcing", args, "--step-forcing");
+    char repeated[600];
+    snprintf(repeated, sizeof repeated, "%s", check_tmp_path("repeated.csv"));
+    check_write_file(repeated, "year,forcing\n1,0\n2,1\n3,2\n3,3\n4,4\n5,5\n6,6\n7,7\n8,8\n9,9\n");
+    snprintf(args, sizeof args, "%s --forcing %s:forcing", base, repeated);
+    modes_expect_refusal("non-increasing forcing time", args, "row 5");
     snprintf(args, sizeof args, "emulate --step %s:tas --step-forcing 0 --forcing %s:forcing", step, ramp);
     modes_expect_refusal("step forcing 0", args, "--step-forcing");
     snprintf(args, sizeof args, "emulate --step %s:tas --step-forcing 4", step);

@@ -304,6 +304,12 @@ static void test_command(void)
     }
     snprintf(args, sizeof args, "timescales --response tas %s", bad_time);
     modes_expect_refusal("non-increasing time", args, "row 4");
+    char gap[600];
+    snprintf(gap, sizeof gap, "%s", check_tmp_path("gap.csv"));
+    check_write_file(gap, "year,tas\n1,0.10\n2,0.19\n3,NA\n4,0.34\n5,0.41\n6,0.47\n7,0.52\n"
+                          "8,0.57\n9,0.61\n10,0.65\n11,0.68\n12,0.71\n13,0.74\n");
+    snprintf(args, sizeof args, "timescales --response tas --max-modes 1 %s", gap);
+    modes_expect_refusal("missing value", args, "row 4, column 'tas': missing value");
 }
 
 void suite_timescales(void)
