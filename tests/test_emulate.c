@@ -133,20 +133,22 @@ void modes_wilson(size_t x, size_t n, double *lo, double *hi)
  * step run and a ramp run of the same two-mode system, each with its own noise (white, red,
  * strongly red, skewed), the modes fitted to the step run, the band from its residuals. */
 size_t modes_false_departures(size_t runs, double sd, double phi, int skew, size_t persist,
-                              unsigned long seed0)
+                              size_t length, unsigned long seed0)
 {
     timescales_workspace *tw = slowscan_timescales_workspace_alloc(NSTEP);
     emulate_config cfg = slowscan_emulate_config_default();
-    emulate_workspace *ws = slowscan_emulate_workspace_alloc(NSTEP, &cfg);
-    double x[NSTEP], F[NSTEP];
+    emulate_workspace *ws = slowscan_emulate_workspace_alloc(length, &cfg);
+    double x[400], F[400];
     size_t departed = 0;
+    length = length > 400 ? 400 : length;
     for (size_t s = 0; s < runs; s++) {
         timescales_result fit;
         emulate_departure dep;
         if (fitted_step_run(tw, sd, phi, seed0 + 2 * s, &fit) != SLOWSCAN_OK)
             continue;
-        ramp_run(x, F, NSTEP, STEP_FORCING / NSTEP, sd, phi, skew, INFINITY, 0, seed0 + 2 * s + 1);
-        departed += emulate_ramp(ws, &fit, F, x, NSTEP, persist, &dep) == SLOWSCAN_OK && dep.departed;
+        /* the ramp reaches the step's forcing at the step run's length */
+        ramp_run(x, F, length, STEP_FORCING / NSTEP, sd, phi, skew, INFINITY, 0, seed0 + 2 * s + 1);
+        departed += emulate_ramp(ws, &fit, F, x, length, persist, &dep) == SLOWSCAN_OK && dep.departed;
     }
     slowscan_timescales_workspace_free(tw);
     slowscan_emulate_workspace_free(ws);
@@ -170,7 +172,7 @@ static void test_false_departures(void)
     for (size_t c = 0; c < sizeof cases / sizeof cases[0]; c++)
         for (size_t q = 0; q < np; q++) {
             size_t d = modes_false_departures(RUNS, cases[c].sd, cases[c].phi, cases[c].skew,
-                                              persists[q], 1000 + 1000 * c);
+                                              persists[q], NSTEP, 1000 + 1000 * c);
             double lo, hi;
             modes_wilson(d, RUNS, &lo, &hi);
             char rule[32] = "default rule";
@@ -184,6 +186,17 @@ static void test_false_departures(void)
             if (persists[q] == 0)
                 CHECK(d <= RUNS / 20, "false departures, %s: %zu of %zu", cases[c].name, d, RUNS);
         }
+    /* with EMULATE_RUNS also an emulation beyond the step run: a ramp twice as long, to
+     * twice the step's forcing (the fitted modes extrapolated in time and in amount) */
+    for (size_t c = 0; env && c < 2; c++) {
+        size_t d = modes_false_departures(RUNS, cases[c].sd, cases[c].phi, 0, 0, 2 * NSTEP,
+                                          5000 + 1000 * c);
+        double lo, hi;
+        modes_wilson(d, RUNS, &lo, &hi);
+        printf("  emulate: false departures, %s noise, ramp of %d samples to twice the step: %zu "
+               "of %zu (%.1f%%, Wilson 95%% %.1f-%.1f%%)\n", cases[c].name, 2 * NSTEP, d, RUNS,
+               100.0 * (double)d / (double)RUNS, 100 * lo, 100 * hi);
+    }
 }
 
 /* A linear run: the ramp's emulation from the fitted modes stays within the band of the

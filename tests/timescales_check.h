@@ -14,7 +14,7 @@ void modes_wilson(size_t x, size_t n, double *lo, double *hi);
 
 /* Departures the rule (persist 0) or a fixed persistence reports on `runs` linear step/ramp run pairs (test_emulate.c). */
 size_t modes_false_departures(size_t runs, double sd, double phi, int skew, size_t persist,
-                              unsigned long seed0);
+                              size_t length, unsigned long seed0);
 
 /* The binary with args; exit status, stdout and stderr (either may be NULL; free them). */
 int modes_run(const char *args, char **out, char **err);
