@@ -12,6 +12,8 @@
 #include "slowscan/screen.h"
 #include "slowscan/surrogates.h"
 #include "feedback.h"
+#include "slowscan/timescales.h"
+#include "modes.h"
 
 #include <stddef.h>
 #include <stdio.h>
@@ -116,6 +118,7 @@ typedef struct {
     char **argv;
     cli_ensemble_options ensemble;
     cli_feedback_options feedback; /* slowscan feedback (cli/feedback.h) */
+    cli_modes_options modes; /* timescales, emulate (modes.h) */
 } cli_options;
 
 /* The null model's name in outputs and random streams ("control" with --null control). */

@@ -1,5 +1,6 @@
 /* Help texts: `slowscan help [COMMAND]` and `COMMAND --help`. */
 #include "cli.h"
+#include "modes_cli.h"
 
 #include <string.h>
 
@@ -14,6 +15,8 @@ static const char overview[] =
     "  detrend     trend and residual per series (series,time,value,trend,residual)\n"
     "  robustness  the trend test over a grid of detrending x windows x bandwidths\n"
     "  recovery    recovery-rate path of an AR(1) with a drifting coefficient\n"
+    "  timescales  relaxation modes of a step-forced response, its extrapolated equilibrium\n"
+    "  emulate     linear-response emulation of another forcing, and where a run departs\n"
     "  surrogates  null-model replicates of each residual (series,replicate,time,value)\n"
     "  feedback    sliding regression of a forced run's flux on its response (lambda, T_eq)\n"
     "  merge       one run's summary from the summaries of its parts (q-values over all)\n"
@@ -390,7 +393,9 @@ int cli_help(const char *topic, FILE *out)
                   {"recovery", help_recovery},
                   {"demo", help_demo},
                   {"merge", help_merge},
-                  {"feedback", cli_help_feedback}};
+                  {"feedback", cli_help_feedback},
+                  {"timescales", cli_help_timescales},
+                  {"emulate", cli_help_emulate}};
     if (!topic) {
         fputs(overview, out);
         fputc('\n', out);
@@ -402,6 +407,6 @@ int cli_help(const char *topic, FILE *out)
             topics[i].print(out);
             return EXIT_OK;
         }
-    fprintf(stderr, "slowscan: no help for '%s' (commands: screen, robustness, recovery, feedback, indicators, detrend, surrogates, demo)\n", topic);
+    fprintf(stderr, "slowscan: no help for '%s' (commands: screen, robustness, recovery, feedback, timescales, emulate, indicators, detrend, surrogates, demo)\n", topic);
     return EXIT_BAD_INPUT;
 }

@@ -1,6 +1,7 @@
 /* slowscan: command dispatch (cli_main), called by the program's main: cli/entry.c for the
  * plain binary, cli/mpi_main.c for slowscan-mpi. */
 #include "cli.h"
+#include "modes_cli.h"
 #include "slowscan/version.h"
 
 #include <fftw3.h>
@@ -21,6 +22,8 @@ static const struct {
     {"demo", cmd_demo},
     {"merge", cmd_merge},
     {"feedback", cmd_feedback},
+    {"timescales", cmd_timescales},
+    {"emulate", cmd_emulate},
 };
 
 int cli_main(int argc, char **argv)

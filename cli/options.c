@@ -2,6 +2,7 @@
  * that stores its value, so each command accepts exactly its own options. */
 #define _GNU_SOURCE /* sched_getaffinity: the cores this process may run on */
 #include "cli.h"
+#include "modes_cli.h"
 #include "share.h"
 #include "slowscan/status.h"
 #include "slowscan/surrogates.h"
@@ -16,7 +17,8 @@
 #include <unistd.h>
 
 enum { C_DETREND = 1, C_INDICATORS = 2, C_SCREEN = 4, C_DEMO = 8, C_SURROGATES = 16, C_ROBUST = 32,
-       C_RECOVERY = 64, C_MERGE = 128, C_FEEDBACK = 256 };
+       C_RECOVERY = 64, C_MERGE = 128, C_FEEDBACK = 256, C_TIMESCALES = 512, C_EMULATE = 1024 };
+#define C_MODES (C_TIMESCALES | C_EMULATE)
 #define C_SERIES (C_DETREND | C_INDICATORS | C_SCREEN | C_SURROGATES | C_ROBUST | C_RECOVERY)
 #define C_ROLLING (C_INDICATORS | C_SCREEN | C_ROBUST)
 #define C_TESTING (C_SCREEN | C_ROBUST | C_RECOVERY)
@@ -311,20 +313,20 @@ static int set_format(cli_options *o, const char *n, const char *v)
 }
 
 static const option_spec options[] = {
-    {"--time", 1, C_SERIES | C_FEEDBACK, set_time},
+    {"--time", 1, C_SERIES | C_FEEDBACK | C_MODES, set_time},
     {"--vars", 1, C_SERIES | C_FEEDBACK, set_vars},
-    {"--from", 1, C_SERIES | C_FEEDBACK, cli_set_from},
-    {"--until", 1, C_SERIES | C_FEEDBACK, cli_set_until},
+    {"--from", 1, C_SERIES | C_FEEDBACK | C_MODES, cli_set_from},
+    {"--until", 1, C_SERIES | C_FEEDBACK | C_MODES, cli_set_until},
     {"--log", 0, C_SERIES, set_log},
-    {"--resample", 1, C_SERIES | C_FEEDBACK, set_resample},
-    {"--max-gap", 1, C_SERIES | C_FEEDBACK, cli_set_max_gap},
+    {"--resample", 1, C_SERIES | C_FEEDBACK | C_MODES, set_resample},
+    {"--max-gap", 1, C_SERIES | C_FEEDBACK | C_MODES, cli_set_max_gap},
     {"--select", 1, C_SERIES | C_FEEDBACK, set_select},
     {"--resume", 0, C_SCREEN, set_resume},
-    {"--calendar", 1, C_SERIES | C_FEEDBACK, cli_set_calendar},
-    {"--time-format", 1, C_SERIES | C_FEEDBACK, cli_set_time_format},
-    {"--time-units", 1, C_SERIES | C_FEEDBACK, cli_set_time_units},
+    {"--calendar", 1, C_SERIES | C_FEEDBACK | C_MODES, cli_set_calendar},
+    {"--time-format", 1, C_SERIES | C_FEEDBACK | C_MODES, cli_set_time_format},
+    {"--time-units", 1, C_SERIES | C_FEEDBACK | C_MODES, cli_set_time_units},
     {"--age", 0, C_SERIES, cli_set_age},
-    {"--missing", 1, C_SERIES | C_FEEDBACK, cli_set_missing},
+    {"--missing", 1, C_SERIES | C_FEEDBACK | C_MODES, cli_set_missing},
     {"--detrend", 1, C_SERIES, set_detrend},
     {"--bandwidth", 1, C_SERIES, set_bandwidth},
     {"--deseason", 1, C_SERIES, set_deseason},
@@ -344,7 +346,7 @@ static const option_spec options[] = {
     {"--fdr", 1, C_TESTING | C_MERGE, set_fdr},
     {"--alternative", 1, C_TESTING, set_alternative},
     {"--rolling", 1, C_SCREEN, set_rolling},
-    {"--json", 1, C_SCREEN | C_RECOVERY | C_FEEDBACK, set_json},
+    {"--json", 1, C_SCREEN | C_RECOVERY | C_FEEDBACK | C_MODES, set_json},
     {"--maps", 1, C_SCREEN, set_maps},
     {"--control", 1, C_TESTING | C_SURROGATES, set_control},
     {"--noise-trend", 0, C_TESTING, set_noise_trend},
@@ -358,13 +360,13 @@ static const option_spec options[] = {
     {"--ensemble", 0, C_SCREEN, set_ensemble},
     {"--members", 1, C_SCREEN, set_ensemble},
     {"--member-anomalies", 0, C_SCREEN, set_ensemble},
-    {"--figures", 1, C_TESTING | C_FEEDBACK, set_figures},
-    {"--figure-format", 1, C_TESTING | C_FEEDBACK, set_figure_format},
-    {"-o", 1, C_SERIES | C_MERGE | C_FEEDBACK, set_output},
-    {"--output", 1, C_SERIES | C_FEEDBACK, set_output},
-    {"--progress", 0, C_SERIES, set_progress},
-    {"--no-progress", 0, C_SERIES, set_progress},
-    {"--quiet", 0, C_SERIES | C_FEEDBACK, set_quiet},
+    {"--figures", 1, C_TESTING | C_FEEDBACK | C_MODES, set_figures},
+    {"--figure-format", 1, C_TESTING | C_FEEDBACK | C_MODES, set_figure_format},
+    {"-o", 1, C_SERIES | C_MERGE | C_FEEDBACK | C_MODES, set_output},
+    {"--output", 1, C_SERIES | C_FEEDBACK | C_MODES, set_output},
+    {"--progress", 0, C_SERIES | C_MODES, set_progress},
+    {"--no-progress", 0, C_SERIES | C_MODES, set_progress},
+    {"--quiet", 0, C_SERIES | C_FEEDBACK | C_MODES, set_quiet},
     {"--out", 1, C_DEMO, set_out_dir},
     {"--seed", 1, C_DEMO | C_TESTING | C_SURROGATES, set_seed},
     {"--threads", 1, C_TESTING, set_threads},
@@ -381,13 +383,29 @@ static const option_spec options[] = {
     {"--baseline-offset", 1, C_FEEDBACK, cli_feedback_set},
     {"--annual", 0, C_FEEDBACK, cli_feedback_set},
     {"--area-mean", 0, C_FEEDBACK, cli_feedback_set},
+    /* timescales and emulate (modes_options.c) */
+    {"--response", 1, C_MODES, cli_set_response},
+    {"--flux", 1, C_TIMESCALES, cli_set_flux},
+    {"--joint", 0, C_TIMESCALES, cli_set_joint},
+    {"--max-modes", 1, C_MODES, cli_set_max_modes},
+    {"--skip", 1, C_MODES, cli_set_skip},
+    {"--onset", 1, C_MODES, cli_set_onset},
+    {"--step", 1, C_EMULATE, cli_set_step_run},
+    {"--step-forcing", 1, C_EMULATE, cli_set_step_forcing},
+    {"--forcing", 1, C_EMULATE, cli_set_forcing},
+    {"--compare", 1, C_EMULATE, cli_set_compare},
+    {"--control", 1, C_EMULATE, cli_set_noise_run},
+    {"--band-level", 1, C_EMULATE, cli_set_band_level},
+    {"--persist", 1, C_EMULATE, cli_set_persist},
+    {"--empirical", 0, C_EMULATE, cli_set_empirical},
 };
 
 static int command_bit(const char *command)
 {
     static const char *names[] = {"detrend", "indicators", "screen", "demo", "surrogates",
-                                  "robustness", "recovery", "merge", "feedback"};
-    for (int i = 0; i < 9; i++)
+                                  "robustness", "recovery", "merge", "feedback", "timescales",
+                                  "emulate"};
+    for (int i = 0; i < (int)(sizeof names / sizeof names[0]); i++)
         if (strcmp(command, names[i]) == 0)
             return 1 << i;
     return 0;
@@ -398,6 +416,7 @@ static int command_bit(const char *command)
 static void set_defaults(const char *command, cli_options *o)
 {
     cli_science_defaults(command, o);
+    cli_modes_defaults(o);
     o->format = "csv";
     o->figure_format = REPORT_PNG;
     o->progress = -1;
@@ -416,16 +435,19 @@ static void set_defaults(const char *command, cli_options *o)
     o->threads = cores < 1 ? 1 : cores > CLI_MAX_THREADS ? CLI_MAX_THREADS : cores;
 }
 
-static const option_spec *find_option(const char *arg, size_t *name_len)
+/* The row of the option for this command (a name may have a row per command: --step, --control). */
+static const option_spec *find_option(const char *arg, int bit, size_t *name_len)
 {
     const char *eq = strchr(arg, '=');
     size_t len = eq && arg[1] == '-' ? (size_t)(eq - arg) : strlen(arg);
+    const option_spec *found = NULL;
     for (size_t i = 0; i < sizeof options / sizeof options[0]; i++)
-        if (strlen(options[i].name) == len && strncmp(arg, options[i].name, len) == 0) {
+        if (strlen(options[i].name) == len && strncmp(arg, options[i].name, len) == 0 &&
+            (!found || (options[i].commands & bit))) {
             *name_len = len;
-            return &options[i];
+            found = &options[i];
         }
-    return NULL;
+    return found;
 }
 
 /* One option at argv[*i]; advances *i past its value. */
@@ -433,7 +455,7 @@ static int parse_one(cli_options *o, int bit, int argc, char **argv, int *i)
 {
     const char *arg = argv[*i];
     size_t len = 0;
-    const option_spec *spec = find_option(arg, &len);
+    const option_spec *spec = find_option(arg, bit, &len);
     if (!spec || !(spec->commands & bit)) {
         cli_error("%s: unknown option '%s' (see 'slowscan help %s')", o->command, arg, o->command);
         return EXIT_BAD_INPUT;
@@ -506,7 +528,9 @@ int cli_parse(const char *command, int argc, char **argv, int first, cli_options
     }
     if (o->progress < 0)
         o->progress = isatty(STDERR_FILENO);
-    if (bit != C_DEMO && o->nfiles == 0) {
+    if ((bit & C_MODES) && cli_modes_check(o) != EXIT_OK)
+        return EXIT_BAD_INPUT;
+    if (bit != C_DEMO && o->nfiles == 0 && !(bit == C_EMULATE && o->modes.step.text)) {
         cli_error("%s: no input file given (a CSV file, or - for standard input)", command);
         return EXIT_BAD_INPUT;
     }

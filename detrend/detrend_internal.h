@@ -94,4 +94,8 @@ struct deseason_model {
 deseason_model *detrend_harmonic_model_alloc(int harmonics, double steps, const double *gain);
 void detrend_harmonic_model_free(deseason_model *model);
 
+/* The smallest length >= at_least whose prime factors are 2, 3, 5, 7 (FFTW is fastest on
+ * them); also used by response/emulate.c. */
+size_t detrend_fft_size(size_t at_least);
+
 #endif

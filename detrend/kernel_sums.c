@@ -53,7 +53,7 @@ static int smooth_2357(size_t m)
 }
 
 /* FFTW is fastest on sizes whose factors are small primes. */
-static size_t fft_size(size_t at_least)
+size_t detrend_fft_size(size_t at_least)
 {
     size_t m = at_least;
     while (!smooth_2357(m))
@@ -131,7 +131,7 @@ detrend_kernel_fft *detrend_kernel_fft_alloc(const detrend_kernel *k, size_t n, 
     *status = SLOWSCAN_ENOMEM;
     if (!f)
         return NULL;
-    f->size = fft_size(n + k->h);
+    f->size = detrend_fft_size(n + k->h);
     f->ncomplex = f->size / 2 + 1;
     f->n = n;
     f->max_power = max_power < 0 ? 0 : max_power > 2 ? 2 : max_power;

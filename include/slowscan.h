@@ -26,6 +26,8 @@
 #include "slowscan/recovery.h"
 #include "slowscan/ensemble.h"
 #include "slowscan/feedback.h"
+#include "slowscan/timescales.h"
+#include "slowscan/emulate.h"
 #include "slowscan/message.h"
 #include "slowscan/screen_store.h"
 #include "slowscan/netcdf_maps.h"

@@ -390,7 +390,7 @@ static int is_member_dimension(const netcdf_reader *r, const netcdf_dim *d)
     char text[256];
     if (!netcdf_coordinate_variable(r->ncid, d->dimid, &varid))
         return 0;
-    text_attribute(r->ncid, varid, "standard_name", text, sizeof text);
+    netcdf_text_attribute(r->ncid, varid, "standard_name", text, sizeof text);
     return strcmp(text, "realization") == 0;
 }
 

@@ -44,6 +44,8 @@ void suite_mpi(void);
 void suite_ensemble(void);
 void suite_feedback(void);
 void suite_feedback_rates(void);
+void suite_timescales(void);
+void suite_emulate(void);
 
 static const struct {
     const char *name;
@@ -61,6 +63,7 @@ static const struct {
     {"batch", suite_batch},           {"messages", suite_messages},
     {"store", suite_store},           {"progress", suite_progress},
     {"series_calls", suite_series_calls},
+    {"timescales", suite_timescales}, {"emulate", suite_emulate},
     {"calendar", suite_calendar},
     {"time_column", suite_time_column}, {"netcdf", suite_netcdf},
     {"maps", suite_maps},

@@ -504,6 +504,56 @@ static void test_feedback_geometry(void)
     free(m.boxes);
 }
 
+/* ---- timescales and emulate from invented data ---------------------------------------- */
+
+/* The modes figure with three modes and both flags in its title, the emulation with a
+ * departure and without a compared run. */
+static void test_modes_geometry(void)
+{
+    enum { NM = 150 };
+    static double time[NM], data[NM], fit[NM], resid[NM], m[3][NM], lo[NM], hi[NM], act[NM];
+    const double taus[3] = {2.0, 15.0, 90.0}, amp[3] = {1.0, 2.0, 3.0};
+    for (int i = 0; i < NM; i++) {
+        time[i] = 1850 + i;
+        fit[i] = 0;
+        for (int k = 0; k < 3; k++)
+            fit[i] += m[k][i] = amp[k] * (1 - exp(-(i + 1) / taus[k]));
+        resid[i] = 0.1 * sin(0.7 * i);
+        data[i] = fit[i] + resid[i];
+        lo[i] = fit[i] - 0.3, hi[i] = fit[i] + 0.3;
+        act[i] = fit[i] + (i > 100 ? 1.0 : 0.0) + resid[i];
+    }
+    const double *modes[3] = {m[0], m[1], m[2]};
+    report_timescales_data td = {.name = "a response with a long name", .time_name = "year",
+                                 .n = NM, .time = time, .data = data, .fit = fit,
+                                 .residual = resid, .nmodes = 3, .modes = modes, .taus = taus,
+                                 .equilibrium = 6.0, .flags = "unresolved;multiscale"};
+    report_emulate_data ed = {.name = "tas", .time_name = "year", .n = NM, .time = time,
+                              .emulated = fit, .lower = lo, .upper = hi, .actual = act,
+                              .departed = 1, .departure_time = 1951, .confirmed_time = 1955,
+                              .size = 1.0, .band_level = 0.99};
+    char dir[512], png[800];
+    io_error err = {{0}};
+    report_batch *batch = open_batch("geometry-modes", REPORT_PNG, dir, sizeof dir);
+    int ok = batch && slowscan_report_batch_draw(batch, &slowscan_report_timescales_figure, &td,
+                                                 "timescales", "three", &err) == SLOWSCAN_OK;
+    ok = ok && slowscan_report_batch_draw(batch, &slowscan_report_emulate_figure, &ed, "emulate",
+                                          "departed", &err) == SLOWSCAN_OK;
+    ed.actual = NULL, ed.departed = 0;
+    ok = ok && slowscan_report_batch_draw(batch, &slowscan_report_emulate_figure, &ed, "emulate",
+                                          "alone", &err) == SLOWSCAN_OK;
+    ok = ok && slowscan_report_batch_commit(batch, &err) == SLOWSCAN_OK;
+    CHECK(ok, "timescales and emulate figures drawn: %s", err.message);
+    slowscan_report_batch_free(batch);
+    static const char *const figures[] = {"timescales-three", "emulate-departed", "emulate-alone"};
+    for (size_t k = 0; ok && k < 3; k++) {
+        snprintf(png, sizeof png, "%s/%s.png", dir, figures[k]);
+        manifest mf;
+        check_figure(png, figures[k], &mf);
+        free(mf.boxes);
+    }
+}
+
 void suite_figure_layout(void)
 {
     test_feedback_geometry();
@@ -514,4 +564,5 @@ void suite_figure_layout(void)
     test_binary_figures();
     test_map_geometry();
     test_binary_map();
+    test_modes_geometry();
 }

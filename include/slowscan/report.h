@@ -249,4 +249,31 @@ typedef struct {
 } report_map_data;
 extern SLOWSCAN_API const report_figure_type slowscan_report_map_figure;
 
+/* The relaxation modes of a step response (slowscan timescales): the data with the fitted
+ * sum and each mode's own curve a_k (1 - exp(-t/tau_k)), and below, the residuals. */
+typedef struct {
+    const char *name, *time_name;
+    size_t n;
+    const double *time, *data, *fit, *residual; /* n each */
+    size_t nmodes;
+    const double *const *modes; /* nmodes curves of n */
+    const double *taus;         /* nmodes e-folding times */
+    double equilibrium;
+    const char *flags;          /* "none", "unresolved", ... */
+} report_timescales_data;
+extern SLOWSCAN_API const report_figure_type slowscan_report_timescales_figure;
+
+/* A linear-response emulation against the run (slowscan emulate): the emulated response
+ * inside its noise band, the actual run, and the departure (when there is one) marked from
+ * its first sample. actual may hold NaN (not compared). */
+typedef struct {
+    const char *name, *time_name;
+    size_t n;
+    const double *time, *emulated, *lower, *upper, *actual; /* n each; actual NULL: none */
+    int departed;
+    double departure_time, confirmed_time, size;
+    double band_level;
+} report_emulate_data;
+extern SLOWSCAN_API const report_figure_type slowscan_report_emulate_figure;
+
 #endif

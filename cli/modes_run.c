@@ -1,0 +1,212 @@
+/* The shared run of timescales and emulate (modes_run.h). */
+#include "modes_run.h"
+#include "modes_cli.h"
+#include "slowscan/status.h"
+
+#include <math.h>
+#include <stdarg.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+/* The command's hooks, wrapped so that the shared driver's one context carries them all. */
+typedef struct {
+    modes_visitor visit;
+    int (*open)(const cli_options *, cli_outputs *, void *);
+    int (*finish)(const cli_options *, void *);
+    void *context;
+} modes_walk;
+
+static int walk_open(const cli_options *opts, cli_outputs *outs, void *context)
+{
+    modes_walk *w = context;
+    return w->open ? w->open(opts, outs, w->context) : EXIT_OK;
+}
+
+static int walk_finish(const cli_options *opts, void *context)
+{
+    modes_walk *w = context;
+    return w->finish ? w->finish(opts, w->context) : EXIT_OK;
+}
+
+/* The index of column `name` in t, or (size_t)-1. */
+static size_t column_index(const series_table *t, const char *name)
+{
+    for (size_t k = 0; name && k < t->nseries; k++)
+        if (strcmp(t->names[k], name) == 0)
+            return k;
+    return (size_t)-1;
+}
+
+/* The file row of sample i, for messages (the sample's position when resampled). */
+static size_t file_row(const series_table *t, size_t i)
+{
+    return t->rows ? t->rows[i] : i + 2;
+}
+
+int cli_modes_series(const cli_options *opts, const series_table *t, size_t k, size_t f,
+                     modes_series *s, double **owned)
+{
+    const char *source = cli_source_name(t->source);
+    double dt = t->n > 1 ? (t->time[t->n - 1] - t->time[0]) / (double)(t->n - 1) : 1.0;
+    double onset = isnan(opts->modes.onset) ? t->time[0] - dt : opts->modes.onset;
+    *owned = malloc(4 * (t->n ? t->n : 1) * sizeof **owned);
+    if (!*owned) {
+        cli_error("out of memory");
+        return EXIT_INTERNAL;
+    }
+    double *rel = *owned, *time = rel + t->n, *y = time + t->n, *flux = y + t->n;
+    size_t n = 0;
+    for (size_t i = 0; i < t->n; i++) {
+        double since = t->time[i] - onset;
+        if (since < 0 || since < opts->modes.skip)
+            continue;
+        for (size_t j = 0; j < (f == (size_t)-1 ? 1u : 2u); j++)
+            if (isnan(t->values[j ? f : k][i])) {
+                cli_error("%s: row %zu, column '%s': missing value; %s needs a complete record "
+                          "(cut the span with --from/--until)", source, file_row(t, i),
+                          t->names[j ? f : k], opts->command);
+                return EXIT_BAD_INPUT;
+            }
+        rel[n] = since;
+        time[n] = t->time[i];
+        y[n] = t->values[k][i];
+        flux[n++] = f == (size_t)-1 ? NAN : t->values[f][i];
+    }
+    *s = (modes_series){.source = source, .name = t->names[k], .n = n, .t = rel, .time = time,
+                        .y = y, .flux = f == (size_t)-1 ? NULL : flux, .onset = onset, .dt = dt,
+                        .axis = &t->axis, .time_name = t->time_name, .flux_name = f == (size_t)-1 ? NULL : t->names[f]};
+    size_t need = 3 * (size_t)opts->modes.max_modes + 3;
+    if (n < need) {
+        cli_error("%s: column '%s': %zu samples after the onset (%g)%s; %s with --max-modes %ld "
+                  "needs at least %zu", source, s->name, n, onset,
+                  opts->modes.skip > 0 ? " and --skip" : "", opts->command, opts->modes.max_modes, need);
+        return EXIT_BAD_INPUT;
+    }
+    return EXIT_OK;
+}
+
+int cli_modes_refuse(const cli_options *opts, const modes_series *s, int status)
+{
+    (void)opts;
+    if (status == SLOWSCAN_ENOMEM) {
+        cli_error("out of memory");
+        return EXIT_INTERNAL;
+    }
+    const char *why = status == SLOWSCAN_ECONST ? "the response does not vary"
+                      : status == SLOWSCAN_ENUMERIC ? "no number of modes could be fitted"
+                      : status == SLOWSCAN_ESHORT ? "too few samples"
+                      : "the times or values cannot be fitted (a time before the onset?)";
+    cli_error("%s: column '%s': %s", s->source, s->name, why);
+    return EXIT_BAD_INPUT;
+}
+
+/* The column an option names in table t, or a refusal naming the option, file and columns. */
+int cli_modes_column(const series_table *t, const char *option, const char *name, size_t *k)
+{
+    *k = column_index(t, name);
+    if (*k != (size_t)-1)
+        return EXIT_OK;
+    char list[512] = "";
+    size_t used = 0;
+    for (size_t j = 0; j < t->nseries && used < sizeof list; j++)
+        used += (size_t)snprintf(list + used, sizeof list - used, "%s%s", j ? ", " : "", t->names[j]);
+    cli_error("%s: option %s: there is no column '%s' (columns: %s)", cli_source_name(t->source),
+              option, name, list);
+    return EXIT_BAD_INPUT;
+}
+
+/* Series k of t as the command's (the flux beside it with --joint), visited. */
+static int visit_one(const cli_options *opts, const series_table *t, size_t k, modes_walk *w)
+{
+    size_t f = (size_t)-1;
+    if (opts->modes.joint && cli_modes_column(t, "--flux", opts->modes.flux, &f) != EXIT_OK)
+        return EXIT_BAD_INPUT;
+    modes_series s;
+    double *owned = NULL;
+    int rc = cli_modes_series(opts, t, k, f, &s, &owned);
+    if (rc == EXIT_OK)
+        rc = w->visit(opts, &s, w->context);
+    free(owned);
+    return rc;
+}
+
+/* Every series of the inputs: the --response column of each table, or every column. */
+static int walk(const cli_options *opts, const cli_inputs *in, void *context)
+{
+    modes_walk *w = context;
+    cli_cursor c;
+    cli_cursor_start(&c, opts, in);
+    const series_table *t;
+    size_t k, r = 0;
+    int rc;
+    while ((rc = cli_cursor_next(&c, &t, &k)) == EXIT_OK) {
+        if (opts->modes.response && k == 0 &&
+            (rc = cli_modes_column(t, "--response", opts->modes.response, &r)) != EXIT_OK)
+            break;
+        if (opts->modes.response && k != r)
+            continue;
+        if ((rc = visit_one(opts, t, k, w)) != EXIT_OK)
+            break;
+    }
+    cli_cursor_end(&c);
+    return rc == CLI_CURSOR_END ? EXIT_OK : rc;
+}
+
+void cli_modes_say(const cli_options *opts, const char *fmt, ...)
+{
+    if (opts->quiet)
+        return;
+    va_list ap;
+    va_start(ap, fmt);
+    cli_progress_message_begin();
+    fprintf(stderr, "slowscan: %s: ", opts->command);
+    vfprintf(stderr, fmt, ap);
+    fputc('\n', stderr);
+    cli_progress_message_end();
+    va_end(ap);
+}
+
+int cli_modes_run(const cli_options *opts,
+                  int (*open)(const cli_options *, cli_outputs *, void *),
+                  modes_visitor visit, int (*finish)(const cli_options *, void *),
+                  void *context)
+{
+    modes_walk w = {visit, open, finish, context};
+    series_command cmd = {.open = walk_open, .finish = walk_finish, .context = &w, .run = walk};
+    return cli_run_series_command(opts, &cmd);
+}
+
+int cli_modes_read_ref(const cli_options *opts, const cli_series_ref *ref, const char *option,
+                       int cut, series_table *table, size_t *k)
+{
+    memset(table, 0, sizeof *table);
+    const char *files[1] = {ref->file};
+    cli_options local = *opts;
+    local.files = files;
+    local.nfiles = 1;
+    local.vars = NULL;
+    local.control_file = NULL;
+    local.use_control = 0;
+    if (!cut) {
+        local.from = local.until = NAN;
+        local.from_text = local.until_text = NULL;
+    }
+    if (cli_is_netcdf(ref->file) || cli_too_wide(ref->file)) {
+        cli_error("option %s: %s: give a CSV table of moderate size (a NetCDF file or a CSV "
+                  "read in parts is not taken here)", option, ref->file);
+        return EXIT_BAD_INPUT;
+    }
+    cli_inputs in;
+    int rc = cli_inputs_load(&local, &in);
+    if (rc == EXIT_OK) {
+        *table = in.tables[0];
+        memset(&in.tables[0], 0, sizeof in.tables[0]);
+    }
+    cli_inputs_free(&in);
+    if (rc == EXIT_OK)
+        rc = cli_modes_column(table, option, ref->column, k);
+    if (rc != EXIT_OK)
+        slowscan_series_table_free(table);
+    return rc;
+}

@@ -1,0 +1,90 @@
+/* slowscan — linear-response emulation and where it stops holding (module prefix: emulate_).
+ *
+ * A system that responds linearly to its forcing answers any forcing history F(t) with the
+ * superposition of step responses started by the forcing's increments (Good et al. 2011,
+ * Geophys. Res. Lett. 38:L01703):
+ *     y_i = sum_{j <= i} (F_j - F_{j-1}) R_{i-j},   F_{-1} = 0,
+ * R_m the response per unit forcing m steps after a step, taken from a step-forced run: its
+ * fitted relaxation modes (timescales.h) or its own values divided by the step's forcing. The
+ * sum is a convolution: by direct summation for short records, by FFTW (r2c/c2r, plans made
+ * once per workspace, new-array execution) for long ones.
+ *
+ * Comparing the emulation with the run actually forced so, a departure is declared when the
+ * difference stays outside the noise band, +-z sd with z the band level's two-sided normal
+ * quantile, on the same side for `persist` consecutive samples. The band is pointwise; the
+ * noise's memory is met by the persistence: by default persist = ceil(3 (1 + r1) / (1 - r1))
+ * (r1, the noise's lag-1 autocorrelation, within [0, 0.9]), three decorrelation times' worth
+ * of consecutive samples, so red noise must stay out as long in independent-sample terms as
+ * white noise. A departure marks where linear response stops describing the run (a threshold
+ * crossed, a new state); its absence is no proof of linearity. */
+#ifndef SLOWSCAN_EMULATE_H
+#define SLOWSCAN_EMULATE_H
+
+#include "slowscan/export.h"
+#include "slowscan/timescales.h"
+
+#include <stddef.h>
+
+typedef struct {
+    double band_level;  /* two-sided level of the noise band: 0.99 */
+    size_t persist;     /* consecutive samples outside the band; 0: the rule above */
+    size_t direct_max;  /* records up to this length are convolved by direct sums: 256 */
+} emulate_config;
+
+SLOWSCAN_API
+emulate_config slowscan_emulate_config_default(void);
+
+/* Where the actual run leaves the band (plain data). */
+typedef struct {
+    int departed;       /* 1: a departure; the fields below then describe it */
+    size_t first;       /* index of the first sample of the persisting run outside the band */
+    size_t confirmed;   /* index at which it had lasted `persist` samples */
+    size_t last;        /* its last sample outside the band (on the same side) */
+    double size;        /* mean difference (actual - emulated) over first..last */
+    int sign;           /* +1: the run is above the emulation, -1 below */
+    double half_width;  /* the band: +-half_width around the emulation */
+    size_t persist;     /* the persistence used */
+    size_t outside;     /* samples outside the band over the whole comparison */
+} emulate_departure;
+
+/* FFTW plans and buffers for records up to n samples (made once; their execution is
+ * thread-safe). NULL on failure. */
+typedef struct emulate_workspace emulate_workspace;
+SLOWSCAN_API
+emulate_workspace *slowscan_emulate_workspace_alloc(size_t n, const emulate_config *cfg);
+SLOWSCAN_API
+void slowscan_emulate_workspace_free(emulate_workspace *ws);
+
+/* The response per unit forcing of fitted modes at lags lag0 + m dt, m = 0..n-1:
+ * R_m = sum_k a_k (1 - exp(-(lag0 + m dt) / tau_k)) / step_forcing. EINVAL for a zero
+ * forcing, dt <= 0 or lag0 < 0. */
+SLOWSCAN_API
+int slowscan_emulate_modes_response(const timescales_result *modes, double step_forcing,
+                                    double dt, double lag0, size_t n, double *response);
+
+/* out[i] = sum_{j <= i} (F_j - F_{j-1}) R_{i-j} for i < n, F_{-1} = 0 (the forcing as an
+ * anomaly from the state the step run started in). EINVAL for NaN in either input or n larger
+ * than the workspace's. */
+SLOWSCAN_API
+int slowscan_emulate_convolve(emulate_workspace *ws, const double *response,
+                              const double *forcing, size_t n, double *out);
+
+/* The persistence the rule gives for noise of lag-1 autocorrelation r1. */
+SLOWSCAN_API
+size_t slowscan_emulate_default_persist(double r1);
+
+/* The departure of actual from emulated (n samples; NaN in actual: not compared, and it
+ * breaks a run) for noise of standard deviation sd and lag-1 autocorrelation r1. EINVAL for
+ * sd <= 0 or a band level outside (0.5, 1). */
+SLOWSCAN_API
+int slowscan_emulate_departure(const emulate_config *cfg, const double *actual,
+                               const double *emulated, size_t n, double sd, double r1,
+                               emulate_departure *out);
+
+/* The noise of a control run x[n]: the sd and lag-1 autocorrelation of its residual from a
+ * least-squares line in the sample index (control runs drift). ESHORT for n < 4, EINVAL for
+ * NaN. */
+SLOWSCAN_API
+int slowscan_emulate_control_noise(const double *x, size_t n, double *sd, double *r1);
+
+#endif
