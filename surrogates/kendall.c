@@ -261,12 +261,25 @@ static int64_t insertion_count(double *y, size_t lo, size_t hi)
 /* A full run of RUN = 8: its discordant pairs counted directly (28 comparisons), then sorted
  * by an optimal 19-comparator network (Knuth, The Art of Computer Programming 3, §5.3.4),
  * all without branches — an insertion sort mispredicts on nearly every shift here. */
-/* Orders a <= b with minsd/maxsd: the values stay in registers and nothing branches. */
+/* Orders a <= b with minsd/maxsd: the values stay in registers and nothing branches. GCC
+ * turns the plain conditional pair into a compare and a branch around a swap (mispredicted
+ * half of the time on random data), so x86-64 spells the instructions out; their operand
+ * order gives exactly the selects below (the second operand on a tie). */
+#if defined(__SSE2__)
+#include <emmintrin.h>
+#define EXCHANGE(a, b)                                                                     \
+    do {                                                                                   \
+        __m128d a_ = _mm_set_sd(a), b_ = _mm_set_sd(b);                                    \
+        (a) = _mm_cvtsd_f64(_mm_min_sd(b_, a_));                                           \
+        (b) = _mm_cvtsd_f64(_mm_max_sd(a_, b_));                                           \
+    } while (0)
+#else
 #define EXCHANGE(a, b)                                                                     \
     do {                                                                                   \
         double lo_ = (b) < (a) ? (b) : (a), hi_ = (b) < (a) ? (a) : (b);                   \
         (a) = lo_, (b) = hi_;                                                              \
     } while (0)
+#endif
 
 static int64_t run8_count_sort(double *y)
 {
