@@ -61,6 +61,8 @@ void wsums_init(window_sums *s, const double *x, const double *level, size_t n, 
     s->inv_n_of = s->inv_np_of = 0;
     s->m2 = s->offset = 0.0;
     s->spread = 0;
+    s->floor = 0.0;
+    s->drift_spacing = W / WSUMS_DRIFT_SPACING_DIVISOR ? W / WSUMS_DRIFT_SPACING_DIVISOR : 1;
 }
 
 /* sign = +1 adds the sample, -1 removes it. */

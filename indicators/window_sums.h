@@ -36,6 +36,8 @@ typedef struct {
     double m2;                 /* derived, kept by push and refresh: sum (x - mean)^2 */
     double offset;             /* window mean minus c */
     int spread;                /* m2 resolvable: n >= 2 and above round-off */
+    double floor;              /* derived: wsums_spread_floor of the power sums */
+    size_t drift_spacing;      /* steps between drift re-centrings: max(W / 16, 1), fixed */
     double cl;                 /* shift of the level sum */
     size_t nl;                 /* present level samples */
     double sl;                 /* sum (level - cl) over them */
@@ -100,7 +102,8 @@ static inline void wsums_derive(window_sums *s)
     s->offset = s->n ? s->s1 * s->inv_n : 0.0;
     double v = s->n ? s->s2 - s->s1 * (s->s1 * s->inv_n) : 0.0;
     s->m2 = v > 0.0 ? v : 0.0;
-    s->spread = s->n >= 2 && s->m2 > wsums_spread_floor((double)s->n, s->c, s->s2);
+    s->floor = wsums_spread_floor((double)s->n, s->c, s->s2);
+    s->spread = s->n >= 2 && s->m2 > s->floor;
 }
 
 /* Pairs: sum (h - hbar)^2 (never negative) and sum (h - hbar)(tl - tlbar). */
@@ -177,15 +180,13 @@ static inline void wsums_maintain(window_sums *s)
     }
     if (s->n == 0)
         return;
-    double central = wsums_central2(s);
-    double floor = wsums_spread_floor((double)s->n, s->c, s->s2);
+    double central = wsums_central2(s), floor = s->floor; /* both from wsums_derive */
     if ((double)WSUMS_COLLAPSE_FACTOR * central + floor < s->peak) {
         wsums_refresh(s);
         return;
     }
-    size_t spacing = s->W / WSUMS_DRIFT_SPACING_DIVISOR;
     double d = wsums_offset(s);
-    if (since >= (spacing ? spacing : 1) && (double)s->n * d * d > central + floor)
+    if (since >= s->drift_spacing && (double)s->n * d * d > central + floor)
         wsums_refresh(s);
 }
 
