@@ -12,8 +12,6 @@
 /* A level mean smaller than this fraction of the level's magnitude is round-off. */
 #define LEVEL_RESOLUTION 1e-14
 
-typedef double (*indicator_fn)(const window_sums *s, const rolling_spec *spec);
-
 /* sum (x - m)^3 and sum (x - m)^4 from the sums about c, with d = m - c (binomial
  * expansion of ((x - c) - d)^k). */
 static double central3(const window_sums *s, double d)
@@ -109,12 +107,23 @@ static double ind_recovery(const window_sums *s, const rolling_spec *spec)
     return ar1 > 0.0 ? log(ar1) / spec->dt : NAN;
 }
 
-static const indicator_fn evaluate[INDICATOR_COUNT] = {
-    [INDICATOR_VARIANCE] = ind_variance, [INDICATOR_SD] = ind_sd,
-    [INDICATOR_CV] = ind_cv,             [INDICATOR_SKEWNESS] = ind_skewness,
-    [INDICATOR_KURTOSIS] = ind_kurtosis, [INDICATOR_LAG1] = ind_lag1,
-    [INDICATOR_AR1] = ind_ar1,           [INDICATOR_RECOVERY] = ind_recovery,
-};
+/* The table of the moment indicators. A switch rather than an array of pointers: it runs
+ * once per window and indicator of every surrogate, and direct calls are inlined where an
+ * indirect call per window would cost as much as the indicator itself. */
+static inline double evaluate(indicator_kind kind, const window_sums *s, const rolling_spec *spec)
+{
+    switch (kind) {
+    case INDICATOR_VARIANCE: return ind_variance(s, spec);
+    case INDICATOR_SD: return ind_sd(s, spec);
+    case INDICATOR_CV: return ind_cv(s, spec);
+    case INDICATOR_SKEWNESS: return ind_skewness(s, spec);
+    case INDICATOR_KURTOSIS: return ind_kurtosis(s, spec);
+    case INDICATOR_LAG1: return ind_lag1(s, spec);
+    case INDICATOR_AR1: return ind_ar1(s, spec);
+    case INDICATOR_RECOVERY: return ind_recovery(s, spec);
+    default: return NAN; /* per-window indicators: window_plan.c */
+    }
+}
 
 /* A per-window indicator needs a plan of this W and dt, a W it is defined for and, for
  * spectral_exponent, enough frequencies in the band. */
@@ -196,7 +205,7 @@ static void moment_pass(const rolling_spec *spec, const double *residual, const 
         }
         int covered = s.n >= need;
         for (size_t m = 0; m < count; m++)
-            out[moments[m]][i] = covered ? evaluate[kinds[moments[m]]](&s, spec) : NAN;
+            out[moments[m]][i] = covered ? evaluate(kinds[moments[m]], &s, spec) : NAN;
     }
 }
 

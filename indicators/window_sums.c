@@ -18,9 +18,6 @@
 
 #include <math.h>
 
-#define COLLAPSE_FACTOR 64.0
-#define DRIFT_SPACING_DIVISOR 16
-
 static void clear_power(window_sums *s)
 {
     s->n = 0;
@@ -64,6 +61,8 @@ void wsums_init(window_sums *s, const double *x, const double *level, size_t n, 
     s->inv_n_of = s->inv_np_of = 0;
     s->m2 = s->offset = 0.0;
     s->spread = 0;
+    s->floor = 0.0;
+    s->drift_spacing = W / WSUMS_DRIFT_SPACING_DIVISOR ? W / WSUMS_DRIFT_SPACING_DIVISOR : 1;
 }
 
 /* sign = +1 adds the sample, -1 removes it. */
@@ -134,45 +133,12 @@ static void add(window_sums *s, size_t i)
     }
 }
 
-/* For a series without missing samples the window always holds W samples and W-1 pairs, so
- * no sample needs a test. Every sum still runs on its own: deriving the pairs' sums of squares
- * from the window's (s2 minus the newest sample's square) cancels badly when one sample
- * dominates the window, a spike of 1e8 in noise of 1 costing ar1 1% (found in review). */
-static void slide_complete(window_sums *s, size_t i)
+void wsums_push_general(window_sums *s, size_t i)
 {
-    const double *x = s->x;
-    size_t j = i - s->W;
-    double c = s->c, old = x[j] - c, old_next = x[j + 1] - c, prev = x[i - 1] - c, v = x[i] - c;
-    double old2 = old * old, v2 = v * v;
-    s->s1 += v - old;
-    s->s2 += v2 - old2;
-    if (s->keep_high) {
-        s->s3 += v2 * v - old2 * old;
-        s->s4 += v2 * v2 - old2 * old2;
-    }
-    if (s->s2 > s->peak)
-        s->peak = s->s2;
-    if (s->keep_pairs) { /* pair (i-1, i) in, pair (i-W, i-W+1) out */
-        s->ph += prev - old;
-        s->pt += v - old_next;
-        s->phh += prev * prev - old2;
-        s->ptt += v2 - old_next * old_next;
-        s->pht += prev * v - old * old_next;
-    }
+    if (i >= s->W)
+        drop(s, i - s->W);
+    add(s, i);
     s->end = i;
-}
-
-void wsums_push(window_sums *s, size_t i)
-{
-    if (s->complete && i >= s->W) {
-        slide_complete(s, i);
-    } else {
-        if (i >= s->W)
-            drop(s, i - s->W);
-        add(s, i);
-        s->end = i;
-    }
-    wsums_derive(s);
 }
 
 /* Mean of the finite values of v[lo..hi]; `count` receives their number (mean 0 if none). */
@@ -251,23 +217,3 @@ void wsums_refresh(window_sums *s)
     wsums_derive(s);
 }
 
-void wsums_maintain(window_sums *s)
-{
-    size_t since = s->end - s->refreshed_at;
-    if (since >= s->W) {
-        wsums_refresh(s);
-        return;
-    }
-    if (s->n == 0)
-        return;
-    double central = wsums_central2(s);
-    double floor = wsums_spread_floor((double)s->n, s->c, s->s2);
-    if (COLLAPSE_FACTOR * central + floor < s->peak) {
-        wsums_refresh(s);
-        return;
-    }
-    size_t spacing = s->W / DRIFT_SPACING_DIVISOR;
-    double d = wsums_offset(s);
-    if (since >= (spacing ? spacing : 1) && (double)s->n * d * d > central + floor)
-        wsums_refresh(s);
-}

@@ -13,6 +13,7 @@
  * start from insertion-sorted runs of 8 and ping-pong between the workspace arrays, so a call
  * never allocates. */
 #include "slowscan/kendall.h"
+#include "kendall_internal.h"
 #include "slowscan/status.h"
 
 #include <math.h>
@@ -261,12 +262,25 @@ static int64_t insertion_count(double *y, size_t lo, size_t hi)
 /* A full run of RUN = 8: its discordant pairs counted directly (28 comparisons), then sorted
  * by an optimal 19-comparator network (Knuth, The Art of Computer Programming 3, §5.3.4),
  * all without branches — an insertion sort mispredicts on nearly every shift here. */
-/* Orders a <= b with minsd/maxsd: the values stay in registers and nothing branches. */
+/* Orders a <= b with minsd/maxsd: the values stay in registers and nothing branches. GCC
+ * turns the plain conditional pair into a compare and a branch around a swap (mispredicted
+ * half of the time on random data), so x86-64 spells the instructions out; their operand
+ * order gives exactly the selects below (the second operand on a tie). */
+#if defined(__SSE2__)
+#include <emmintrin.h>
+#define EXCHANGE(a, b)                                                                     \
+    do {                                                                                   \
+        __m128d a_ = _mm_set_sd(a), b_ = _mm_set_sd(b);                                    \
+        (a) = _mm_cvtsd_f64(_mm_min_sd(b_, a_));                                           \
+        (b) = _mm_cvtsd_f64(_mm_max_sd(a_, b_));                                           \
+    } while (0)
+#else
 #define EXCHANGE(a, b)                                                                     \
     do {                                                                                   \
         double lo_ = (b) < (a) ? (b) : (a), hi_ = (b) < (a) ? (a) : (b);                   \
         (a) = lo_, (b) = hi_;                                                              \
     } while (0)
+#endif
 
 static int64_t run8_count_sort(double *y)
 {
@@ -328,32 +342,14 @@ static int x_strictly_increasing(const double *x, size_t n)
     return 1;
 }
 
-int slowscan_kendall_tau_b(kendall_workspace *ws, const double *x, const double *y, size_t n,
-                  double *tau, size_t *used)
+int kendall_time_like(const double *x, size_t n)
 {
-    if (tau)
-        *tau = NAN;
-    if (used)
-        *used = 0;
-    if (!ws || !tau || (n && (!x || !y)) || n > ws->nmax)
-        return SLOWSCAN_EINVAL;
-    /* The trend statistic's case, x = time, needs neither the x column nor its sort. */
-    int time_like = x_strictly_increasing(x, n);
-    size_t m = 0;
-    if (time_like) {
-        for (size_t i = 0; i < n; i++) { /* written always, kept when finite: no branch */
-            ws->y[m] = y[i];
-            m += isfinite(y[i]);
-        }
-    } else {
-        for (size_t i = 0; i < n; i++) {
-            ws->x[m] = x[i];
-            ws->y[m] = y[i];
-            m += isfinite(x[i]) & isfinite(y[i]);
-        }
-    }
-    if (used)
-        *used = m;
+    return x_strictly_increasing(x, n);
+}
+
+/* tau-b from the m finite pairs in the workspace (y alone when x is time-like). */
+static int tau_of_pairs(kendall_workspace *ws, size_t m, int time_like, double *tau)
+{
     if (m < 2)
         return SLOWSCAN_ESHORT;
     if (!time_like)
@@ -372,4 +368,53 @@ int slowscan_kendall_tau_b(kendall_workspace *ws, const double *x, const double 
     /* |tau_b| <= 1 exactly; only the two rounded roots could push it past. */
     *tau = t > 1.0 ? 1.0 : (t < -1.0 ? -1.0 : t);
     return SLOWSCAN_OK;
+}
+
+/* The finite values of y[n] into ws->y; their number. */
+static size_t keep_finite_y(kendall_workspace *ws, const double *y, size_t n)
+{
+    size_t m = 0;
+    for (size_t i = 0; i < n; i++) { /* written always, kept when finite: no branch */
+        ws->y[m] = y[i];
+        m += isfinite(y[i]);
+    }
+    return m;
+}
+
+int kendall_tau_b_time_like(kendall_workspace *ws, const double *y, size_t n, double *tau,
+                            size_t *used)
+{
+    *tau = NAN;
+    if (n > ws->nmax)
+        return SLOWSCAN_EINVAL;
+    size_t m = keep_finite_y(ws, y, n);
+    if (used)
+        *used = m;
+    return tau_of_pairs(ws, m, 1, tau);
+}
+
+int slowscan_kendall_tau_b(kendall_workspace *ws, const double *x, const double *y, size_t n,
+                  double *tau, size_t *used)
+{
+    if (tau)
+        *tau = NAN;
+    if (used)
+        *used = 0;
+    if (!ws || !tau || (n && (!x || !y)) || n > ws->nmax)
+        return SLOWSCAN_EINVAL;
+    /* The trend statistic's case, x = time, needs neither the x column nor its sort. */
+    int time_like = x_strictly_increasing(x, n);
+    size_t m = 0;
+    if (time_like) {
+        m = keep_finite_y(ws, y, n);
+    } else {
+        for (size_t i = 0; i < n; i++) {
+            ws->x[m] = x[i];
+            ws->y[m] = y[i];
+            m += isfinite(x[i]) & isfinite(y[i]);
+        }
+    }
+    if (used)
+        *used = m;
+    return tau_of_pairs(ws, m, time_like, tau);
 }

@@ -20,6 +20,15 @@ void surrogate_mt_refill(mt_state *s)
     for (; k < MT_WORDS - 1; k++) /* the words ahead wrap round to the new ones */
         w[k] = twist(w[k], w[k + 1], w[k + MT_SHIFT - MT_WORDS]);
     w[MT_WORDS - 1] = twist(w[MT_WORDS - 1], w[0], w[MT_SHIFT - 1]);
+    /* Tempering, as a loop of its own over the block: independent words, which the compiler
+     * takes four at a time, instead of a dozen scalar operations inside every draw. */
+    for (k = 0; k < MT_WORDS; k++) {
+        uint32_t y = w[k];
+        y ^= y >> 11;
+        y ^= (y << 7) & 0x9d2c5680u;
+        y ^= (y << 15) & 0xefc60000u;
+        s->out[k] = y ^ (y >> 18);
+    }
     s->next = 0;
 }
 

@@ -20,13 +20,14 @@ enum { MT_WORDS = 624 };
 
 typedef struct {
     uint32_t word[MT_WORDS];
-    size_t next; /* MT_WORDS: the block is used up */
+    uint32_t out[MT_WORDS]; /* the block's outputs: word[] tempered, all at once at refill */
+    size_t next;            /* MT_WORDS: the block is used up */
 } mt_state;
 
 /* The generator type: gsl_rng_alloc(surrogate_mt19937). */
 extern const gsl_rng_type *const surrogate_mt19937;
 
-/* The next block of MT_WORDS words. */
+/* The next block of MT_WORDS words, and their outputs. */
 void surrogate_mt_refill(mt_state *s);
 
 /* The next 32-bit output of the generator behind rng (whose type is surrogate_mt19937). */
@@ -35,11 +36,7 @@ static inline uint32_t surrogate_mt_next(gsl_rng *rng)
     mt_state *s = rng->state;
     if (s->next == MT_WORDS)
         surrogate_mt_refill(s);
-    uint32_t y = s->word[s->next++];
-    y ^= y >> 11; /* tempering */
-    y ^= (y << 7) & 0x9d2c5680u;
-    y ^= (y << 15) & 0xefc60000u;
-    return y ^ (y >> 18);
+    return s->out[s->next++];
 }
 
 #endif

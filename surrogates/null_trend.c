@@ -1,4 +1,5 @@
 /* The null distribution of indicator trends: surrogate -> rolling indicators -> Kendall tau. */
+#include "kendall_internal.h"
 #include "mt_stream.h"
 #include "slowscan/null_trend.h"
 #include "slowscan/ar1_drift.h"
@@ -70,7 +71,7 @@ null_trend_workspace *slowscan_null_trend_alloc(size_t n, size_t nkinds)
 
 /* One replicate: draw, indicators, one tau per indicator. */
 static int one_replicate(null_trend_workspace *ws, surrogate_source *source,
-                         const null_trend_job *job, double *tau)
+                         const null_trend_job *job, int time_like, double *tau)
 {
     int st = slowscan_surrogate_draw(source, ws->rng, ws->surrogate);
     if (st != SLOWSCAN_OK)
@@ -91,9 +92,16 @@ static int one_replicate(null_trend_workspace *ws, surrogate_source *source,
         tau[job->nkinds] = slowscan_ar1_drift_estimate(ws->drift, ws->surrogate, ws->n, &fit) == SLOWSCAN_OK
                                ? fit.t_a1 : NAN;
     }
+    /* Against a time axis tested once per draw, and without the path's head: the rolling
+     * values before the first full window are NaN, which tau-b leaves out anyway. */
+    size_t head = time_like && job->rolling->window <= ws->n ? job->rolling->window - 1 : 0;
     for (size_t k = 0; k < job->nkinds; k++) {
         size_t used = 0;
-        if (slowscan_kendall_tau_b(ws->kendall, job->time, ws->paths[k], ws->n, &tau[k], &used) != SLOWSCAN_OK)
+        int st_k = time_like ? kendall_tau_b_time_like(ws->kendall, ws->paths[k] + head,
+                                                       ws->n - head, &tau[k], &used)
+                             : slowscan_kendall_tau_b(ws->kendall, job->time, ws->paths[k], ws->n,
+                                                      &tau[k], &used);
+        if (st_k != SLOWSCAN_OK)
             tau[k] = NAN;
     }
     return SLOWSCAN_OK;
@@ -112,9 +120,10 @@ int slowscan_null_trend_draw(null_trend_workspace *ws, surrogate_source *source,
     if (first % NULL_TREND_BLOCK != 0 || job->nkinds > ws->nkinds || job->nkinds > INDICATOR_COUNT)
         return SLOWSCAN_EINVAL;
     double tau[INDICATOR_COUNT + 1];
+    int time_like = job->nkinds > 0 && kendall_time_like(job->time, ws->n);
     for (size_t j = first; j < first + count; j++) {
         slowscan_null_trend_stream(ws->rng, job->seed, job->series, job->purpose, j);
-        int st = one_replicate(ws, source, job, tau);
+        int st = one_replicate(ws, source, job, time_like, tau);
         if (st != SLOWSCAN_OK)
             return st;
         for (size_t k = 0; k < job->nkinds + (job->drift != 0); k++)
