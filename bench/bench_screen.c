@@ -287,7 +287,7 @@ int main(void)
     int bad = have_ref ? check_agreement(&best, &ref) : 0;
     if (have_ref)
         printf("standard job (n=%d, gaussian detrend, %d phase surrogates, variance+lag1), single "
-               "thread: reference %.3f s, slowscan %.4f s, speed-up %.0fx (target >= 30x)\n", N,
+               "thread: reference %.3f s, slowscan %.4f s, speed-up %.0fx (target >= 25x, issue 11)\n", N,
                M, ref.seconds, best.seconds, ref.seconds / best.seconds);
     floor_ratio(x);
     per_window_ratio(x);
