@@ -2,6 +2,7 @@
  * response (response/feedback), one CSV row per window, a one-line verdict per run on stderr,
  * and with --json the drift test of each run. */
 #include "feedback_run.h"
+#include "forced_inputs.h"
 #include "slowscan/status.h"
 
 #include <math.h>
@@ -36,7 +37,7 @@ static int keep_baseline(void *context, series_table *t, const double *branch)
  * to --from/--until (its period is the run's, after alignment). */
 static int load_baseline(const cli_options *opts, feedback_command *run)
 {
-    const char *path = opts->feedback.baseline;
+    const char *path = opts->forced.baseline;
     if (!cli_is_netcdf(path))
         return cli_load_whole_table(opts, path, "--baseline", "a baseline run", &run->baseline);
     cli_options whole = *opts;
@@ -57,8 +58,8 @@ static int open_outputs(const cli_options *opts, cli_outputs *outs, void *contex
         rc = cli_outputs_open(outs, opts, opts->json_output, "--json", &run->json);
     if (rc == EXIT_OK && run->json)
         fputs("{\n  \"program\": \"slowscan\",\n  \"command\": \"feedback\",\n  \"runs\": [", run->json);
-    if (rc == EXIT_OK && opts->feedback.baseline) {
-        if (cli_output_clashes(outs, opts, opts->feedback.baseline, "--baseline"))
+    if (rc == EXIT_OK && opts->forced.baseline) {
+        if (cli_output_clashes(outs, opts, opts->forced.baseline, "--baseline"))
             return EXIT_BAD_INPUT;
         rc = load_baseline(opts, run);
         run->has_baseline = rc == EXIT_OK;
@@ -66,21 +67,6 @@ static int open_outputs(const cli_options *opts, cli_outputs *outs, void *contex
     if (rc == EXIT_OK)
         rc = cli_figures_open(outs, opts, &run->figures);
     return rc;
-}
-
-/* A length option in time units of the run's axis: percent of `span`, calendar units
- * converted; an exit code with a message naming the option. */
-static int resolve(const cli_feedback_length *len, const char *option, const time_axis *axis,
-                   double span, double *out)
-{
-    screen_length l = {len->amount, len->percent, (length_unit)len->unit}, on;
-    if (slowscan_screen_length_on_axis(&l, axis, &on) != SLOWSCAN_OK) {
-        cli_error("option %s: %s cannot be measured on this time axis (%s)", option, len->text,
-                  axis->unit == TIME_AXIS_NUMBER ? "plain numbers: give time units" : "use its own unit");
-        return EXIT_BAD_INPUT;
-    }
-    *out = on.percent ? on.amount / 100 * span : on.amount;
-    return EXIT_OK;
 }
 
 /* --fit-span A:B as times of the run's axis, inside the record. */
@@ -118,18 +104,19 @@ static int configure(const cli_options *o, const cli_feedback_run *r, feedback_c
     if (f->span_text)
         return fit_span(o, r, c);
     double span = r->time[r->n - 1] - r->time[0], dt = span / (double)(r->n - 1);
-    int rc = f->skip.text ? resolve(&f->skip, "--skip", &r->axis, span, &c->skip) : EXIT_OK;
+    const cli_forced_length *skip = &o->forced.skip;
+    int rc = skip->text ? cli_forced_resolve(skip, "--skip", &r->axis, span, &c->skip) : EXIT_OK;
     double rest = span - c->skip;
     if (rc == EXIT_OK && !(rest >= 3 * dt)) {
-        cli_error("option --skip %s: leaves less than 4 samples of %s", f->skip.text, r->source);
+        cli_error("option --skip %s: leaves less than 4 samples of %s", skip->text, r->source);
         return EXIT_BAD_INPUT;
     }
     cli_feedback_length half = {50, 1, 0, NULL};
     if (rc == EXIT_OK && o->window.text) {
         cli_feedback_length w = {o->window.amount, o->window.percent, (int)o->window.unit, o->window.text};
-        rc = resolve(&w, "--window", &r->axis, rest, &c->window);
+        rc = cli_forced_resolve(&w, "--window", &r->axis, rest, &c->window);
     } else if (rc == EXIT_OK) {
-        resolve(&half, "--window", &r->axis, rest, &c->window);
+        cli_forced_resolve(&half, "--window", &r->axis, rest, &c->window);
         c->window = fmin(c->window, 100);
     }
     if (rc == EXIT_OK && c->window > rest + 1e-6 * dt) {
@@ -145,7 +132,7 @@ static int configure(const cli_options *o, const cli_feedback_run *r, feedback_c
     }
     c->stride = fmax(c->window / 10, dt);
     if (rc == EXIT_OK && f->stride.text) {
-        rc = resolve(&f->stride, "--stride", &r->axis, rest, &c->stride);
+        rc = cli_forced_resolve(&f->stride, "--stride", &r->axis, rest, &c->stride);
         if (rc == EXIT_OK && c->stride < dt * (1 - 1e-6)) {
             cli_error("option --stride %s: shorter than the time step (%.12g) of %s",
                       f->stride.text, dt, r->source);

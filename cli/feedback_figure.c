@@ -43,7 +43,7 @@ int cli_feedback_figure(report_batch *figures, const cli_options *o, const cli_f
         response_range(r, w[j].start, w[j].end, &tmin[j], &tmax[j]);
     }
     const char *unit = cli_time_unit(&axis);
-    report_feedback_data data = {r->source, o->feedback.flux, o->feedback.response,
+    report_feedback_data data = {r->source, o->forced.flux, o->forced.response,
                                  axis.unit == TIME_AXIS_NUMBER ? "time" : unit[0] ? "year" : "time",
                                  r->n, r->flux, r->response, count, mid, lam, lo, hi, F, tmin,
                                  tmax, flags, verdict};
