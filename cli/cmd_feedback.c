@@ -52,6 +52,8 @@ static int open_outputs(const cli_options *opts, cli_outputs *outs, void *contex
     feedback_command *run = context;
     run->opts = opts;
     int rc = cli_outputs_open(outs, opts, opts->output, "-o", &run->out);
+    if (rc == EXIT_OK && opts->ensemble.on)
+        fputs("member,", run->out);
     if (rc == EXIT_OK)
         cli_put_header(run->out, opts, header);
     if (rc == EXIT_OK && opts->json_output)
@@ -158,6 +160,10 @@ static void write_rows(FILE *fp, const cli_options *o, const cli_feedback_run *r
                        const feedback_window *w, size_t count)
 {
     for (size_t j = 0; j < count; j++) {
+        if (r->member) {
+            cli_put_field(fp, r->member);
+            fputc(',', fp);
+        }
         if (cli_several_inputs(o)) {
             cli_put_field(fp, r->source);
             fputc(',', fp);
@@ -213,8 +219,9 @@ static void verdict(const cli_feedback_run *r, const feedback_config *c, const f
     if (isfinite(w[count - 1].lambda))
         snprintf(last, sizeof last, "%.4g", w[count - 1].lambda);
     cli_progress_message_begin();
-    fprintf(stderr, "slowscan: feedback %s: %zu window%s (%zu fitted, %s), lambda %s to %s; "
-            "%zu weak, %zu reversed; %s%s\n", r->source, count, count == 1 ? "" : "s", fitted,
+    fprintf(stderr, "slowscan: feedback %s%s%s: %zu window%s (%zu fitted, %s), lambda %s to %s; "
+            "%zu weak, %zu reversed; %s%s\n", r->source, r->member ? " member " : "",
+            r->member ? r->member : "", count, count == 1 ? "" : "s", fitted,
             c->fit == FEEDBACK_TLS ? "tls" : "ols", first, last, weak, reversed, drift,
             d->verdict == FEEDBACK_DRIFT_DRIFTING
             ? ": extrapolating one window's equilibrium is not justified" : "");
@@ -227,6 +234,10 @@ static void write_json(feedback_command *run, const cli_feedback_run *r,
     FILE *fp = run->json;
     fprintf(fp, "%s\n    {\"file\": ", run->written++ ? "," : "");
     cli_json_string(fp, r->source);
+    if (r->member) {
+        fputs(", \"member\": ", fp);
+        cli_json_string(fp, r->member);
+    }
     fprintf(fp, ", \"fit\": \"%s\", \"noise_ratio\": ", c->fit == FEEDBACK_TLS ? "tls" : "ols");
     cli_json_number(fp, c->fit == FEEDBACK_TLS ? c->noise_ratio : NAN);
     fprintf(fp, ", \"noise_ratio_from_baseline\": %s, \"baseline_offset\": ",
@@ -261,10 +272,11 @@ static int draw(feedback_command *run, const cli_feedback_run *r, const feedback
     return cli_feedback_figure(run->figures, run->opts, r, w, count, verdict);
 }
 
-/* One input: its run made ready, the windows fitted, rows, verdict, JSON, figure. */
-static int feedback_input(void *context, series_table *t, const double *branch)
+/* One input (or a member of an ensemble in one: NULL for none): its run made ready, the
+ * windows fitted, rows, verdict, JSON, figure. */
+static int feedback_run_one(feedback_command *run, const series_table *t, const double *branch,
+                            const char *member)
 {
-    feedback_command *run = context;
     const cli_options *o = run->opts;
     cli_feedback_run r;
     feedback_config c;
@@ -272,6 +284,7 @@ static int feedback_input(void *context, series_table *t, const double *branch)
     feedback_drift d;
     size_t count = 0;
     int rc = cli_feedback_take(o, t, &r);
+    r.member = member;
     if (branch && branch[0]) {
         r.has_branch = 1;
         r.branch_parent_day = branch[1];
@@ -305,13 +318,30 @@ static int feedback_input(void *context, series_table *t, const double *branch)
     return rc;
 }
 
+static int feedback_input(void *context, series_table *t, const double *branch)
+{
+    return feedback_run_one(context, t, branch, NULL);
+}
+
+static int feedback_member(void *context, const cli_forced_member *m)
+{
+    return feedback_run_one(context, &m->table, NULL, m->member);
+}
+
 static int run_inputs(const cli_options *opts, const cli_inputs *in, void *context)
 {
     feedback_command *run = context;
     run->opts = opts;
     int rc = EXIT_OK;
     for (size_t f = 0; rc == EXIT_OK && f < in->ntables; f++) {
-        if (in->grid_cells[f] > 0)
+        if (opts->ensemble.on && (in->grid_cells[f] > 0 || in->columns[f])) {
+            cli_error("option --ensemble: %s: give a CSV table of the members' columns (not a "
+                      "NetCDF grid, nor a CSV read in parts)", opts->files[f]);
+            rc = EXIT_BAD_INPUT;
+        } else if (opts->ensemble.on)
+            rc = cli_forced_ensemble(opts, &in->tables[f], opts->forced.response,
+                                     opts->forced.flux, feedback_member, run);
+        else if (in->grid_cells[f] > 0)
             rc = cli_feedback_grid(opts, opts->files[f], feedback_input, run);
         else if (in->columns[f]) {
             cli_error("%s: too large for feedback (a run is two columns; keep only those)",

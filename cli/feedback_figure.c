@@ -49,8 +49,10 @@ int cli_feedback_figure(report_batch *figures, const cli_options *o, const cli_f
                                  tmax, flags, verdict};
     /* named after the file without its directories: feedback-RUN.csv.png */
     const char *slash = strrchr(r->source, '/');
-    int rc = cli_figure_draw(figures, &slowscan_report_feedback_figure, &data, "feedback",
-                             slash ? slash + 1 : r->source);
+    char name[1024]; /* an ensemble's member: feedback-RUN.csv.m01.png */
+    snprintf(name, sizeof name, "%s%s%s", slash ? slash + 1 : r->source, r->member ? "." : "",
+             r->member ? r->member : "");
+    int rc = cli_figure_draw(figures, &slowscan_report_feedback_figure, &data, "feedback", name);
     free(buf);
     free(flags);
     return rc;

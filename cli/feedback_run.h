@@ -7,6 +7,7 @@
 
 typedef struct {
     const char *source; /* as messages name it */
+    const char *member; /* --ensemble: the member suffix or "mean"; NULL: no ensemble */
     time_axis axis;
     size_t n;
     series_table table;             /* the two columns (cli_forced_table), owned */

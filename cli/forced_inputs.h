@@ -45,3 +45,22 @@ int cli_forced_load_baseline(const cli_options *o, const cli_outputs *outs,
                              series_table *baseline, int *loaded);
 
 #endif
+
+/* --ensemble in feedback and timescales (forced_ensemble.c): one member of an ensemble of
+ * runs in one table, or their mean. */
+typedef struct {
+    const char *member;       /* the member suffix, or "mean" */
+    const char *column;       /* the response column as the table names it (tas.m01), or
+                                 NAME[mean] */
+    series_table table;       /* the response (named as --response), then the flux when
+                                 paired (named as --flux): what a single run would hold */
+} cli_forced_member;
+
+typedef int (*cli_forced_member_visit)(void *context, const cli_forced_member *m);
+
+/* Groups the columns of t into ensembles (screen's --ensemble/--members rules), takes the
+ * ensemble `response` (and `flux`, NULL: none, its members paired by suffix), gives the
+ * split warning on the response's members, then visits each member in turn and their mean
+ * (the mean of the members' response, and of their flux). An exit code (message printed). */
+int cli_forced_ensemble(const cli_options *o, const series_table *t, const char *response,
+                        const char *flux, cli_forced_member_visit visit, void *context);

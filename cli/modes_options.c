@@ -108,6 +108,11 @@ int cli_modes_check(const cli_options *o)
                       "net flux of the same run)");
             return EXIT_BAD_INPUT;
         }
+        if (o->ensemble.on && !o->forced.response) {
+            cli_error("option %s needs --response NAME (the ensemble's columns NAME.MEMBER)",
+                      o->ensemble.members_text ? "--members" : "--ensemble");
+            return EXIT_BAD_INPUT;
+        }
         if (o->forced.flux && !m->joint) {
             cli_error("option --flux is used by --joint only");
             return EXIT_BAD_INPUT;

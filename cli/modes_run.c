@@ -141,8 +141,10 @@ int cli_modes_ready(const cli_options *opts, const series_table *t, size_t k, si
 }
 
 /* Series k of t as the command's (the flux beside it with --joint), visited: with --baseline
- * or --annual through a table of its own (cli_modes_ready). */
-static int visit_one(const cli_options *opts, const series_table *t, size_t k, modes_walk *w)
+ * or --annual through a table of its own (cli_modes_ready); a member of an ensemble (NULL:
+ * none) keeps its own column name and member in the rows. */
+static int visit_one(const cli_options *opts, const series_table *t, size_t k, modes_walk *w,
+                     const cli_forced_member *member)
 {
     size_t f = (size_t)-1;
     if (opts->modes.joint && cli_modes_column(t, "--flux", opts->forced.flux, &f) != EXIT_OK)
@@ -156,6 +158,10 @@ static int visit_one(const cli_options *opts, const series_table *t, size_t k, m
     if (rc == EXIT_OK)
         rc = own ? cli_modes_series(opts, &ready, 0, f == (size_t)-1 ? f : 1, &s, &owned)
                  : cli_modes_series(opts, t, k, f, &s, &owned);
+    if (rc == EXIT_OK && member) {
+        s.name = member->column;
+        s.member = member->member;
+    }
     if (rc == EXIT_OK)
         rc = w->visit(opts, &s, w->context);
     free(owned);
@@ -164,7 +170,19 @@ static int visit_one(const cli_options *opts, const series_table *t, size_t k, m
     return rc;
 }
 
-/* Every series of the inputs: the --response column of each table, or every column. */
+typedef struct {
+    const cli_options *opts;
+    modes_walk *walk;
+} member_visit;
+
+static int visit_member(void *context, const cli_forced_member *m)
+{
+    member_visit *v = context;
+    return visit_one(v->opts, &m->table, 0, v->walk, m);
+}
+
+/* Every series of the inputs: the --response column of each table, or every column; with
+ * --ensemble the members of the --response ensemble of each table, and their mean. */
 static int walk(const cli_options *opts, const cli_inputs *in, void *context)
 {
     modes_walk *w = context;
@@ -173,13 +191,21 @@ static int walk(const cli_options *opts, const cli_inputs *in, void *context)
     const series_table *t;
     size_t k, r = 0;
     int rc;
+    member_visit mv = {opts, w};
     while ((rc = cli_cursor_next(&c, &t, &k)) == EXIT_OK) {
+        if (opts->ensemble.on) {
+            if (k == 0 && (rc = cli_forced_ensemble(opts, t, opts->forced.response,
+                                                    opts->modes.joint ? opts->forced.flux : NULL,
+                                                    visit_member, &mv)) != EXIT_OK)
+                break;
+            continue;
+        }
         if (opts->forced.response && k == 0 &&
             (rc = cli_modes_column(t, "--response", opts->forced.response, &r)) != EXIT_OK)
             break;
         if (opts->forced.response && k != r)
             continue;
-        if ((rc = visit_one(opts, t, k, w)) != EXIT_OK)
+        if ((rc = visit_one(opts, t, k, w, NULL)) != EXIT_OK)
             break;
     }
     cli_cursor_end(&c);

@@ -17,6 +17,7 @@ typedef struct {
     const double *y, *flux; /* flux NULL without --joint */
     double onset, dt;
     const time_axis *axis;
+    const char *member; /* --ensemble: the member suffix or "mean" (NULL: no ensemble) */
 } modes_series;
 
 typedef int (*modes_visitor)(const cli_options *opts, const modes_series *s, void *context);

@@ -108,8 +108,7 @@ static char *grid_member_name(const char *name, const char *dim)
     return out;
 }
 
-/* --members A,B,C into suffixes (in *text, which the caller frees). */
-static int member_list(const cli_options *o, char **text, const char ***list, size_t *count)
+int cli_ensemble_member_list(const cli_options *o, char **text, const char ***list, size_t *count)
 {
     *list = NULL, *count = 0, *text = NULL;
     if (!o->ensemble.members_text)
@@ -132,6 +131,20 @@ static int member_list(const cli_options *o, char **text, const char ***list, si
         (*list)[(*count)++] = p;
     }
     return EXIT_OK;
+}
+
+void cli_ensemble_split(const char *source, const char *name, const double *const *members,
+                        size_t nmembers, size_t n, const ensemble_split_options *options,
+                        ensemble_split *split)
+{
+    slowscan_ensemble_split_test(members, nmembers, n, options, split);
+    if (!split->flags)
+        return;
+    char msg[1024];
+    message_context ctx = slowscan_message_context_default();
+    ctx.source = source;
+    slowscan_message_ensemble_split(msg, sizeof msg, name, split, options, &ctx);
+    cli_warning("%s", msg);
 }
 
 /* How far each series reaches: the index of its last finite value + 1. */
@@ -185,14 +198,8 @@ static int add_ensemble(const cli_options *o, struct cli_ensemble_run *e, series
         e->roles[e->nroles++] = (ensemble_role){input, t->names[g->members[m]], ROLE_MEMBER,
                                                 e->ngroups - 1, m};
     }
-    slowscan_ensemble_split_test(members, g->nmembers, t->n, &e->split, &info->split);
-    if (info->split.flags) {
-        char msg[1024];
-        message_context ctx = slowscan_message_context_default();
-        ctx.source = info->source;
-        slowscan_message_ensemble_split(msg, sizeof msg, g->name, &info->split, &e->split, &ctx);
-        cli_warning("%s", msg);
-    }
+    cli_ensemble_split(info->source, g->name, members, g->nmembers, t->n, &e->split,
+                       &info->split);
     slowscan_ensemble_mean(members, g->nmembers, t->n, mean);
     if (o->ensemble.anomalies)
         slowscan_ensemble_anomalies(members, g->nmembers, t->n, mean,
@@ -331,7 +338,7 @@ int cli_ensemble_start(const cli_options *opts, cli_inputs *in, screen_run *run)
     ensemble_grouping how = slowscan_ensemble_grouping_default();
     char *text;
     const char **list;
-    rc = member_list(opts, &text, &list, &how.nmembers);
+    rc = cli_ensemble_member_list(opts, &text, &list, &how.nmembers);
     how.members = list;
     for (size_t f = 0; rc == EXIT_OK && f < in->ntables; f++)
         rc = group_input(opts, e, in, f, &how);
