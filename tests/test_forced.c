@@ -241,6 +241,7 @@ static void test_refusals(void)
     modes_expect_refusal("a skip that is no length", args, "--skip");
 }
 
+void forced_ensemble_tests(void); /* test_forced_ensemble.c */
 void suite_forced(void);
 void suite_forced(void)
 {
@@ -248,4 +249,5 @@ void suite_forced(void)
     test_anomalies_numpy();
     test_skip();
     test_refusals();
+    forced_ensemble_tests();
 }
