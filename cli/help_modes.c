@@ -81,6 +81,15 @@ void cli_help_timescales(FILE *out)
           "                       N0 = sum c_k is in --json. Each series' residuals are weighted\n"
           "                       by their own noise scale (two passes).\n", out);
     fputs(baseline_options, out);
+    fputs("ensembles:\n"
+          "  --ensemble           columns NAME.MEMBER of the --response NAME (at least 4\n"
+          "                       members, grouped as 'slowscan help screen' says; with --joint\n"
+          "                       the flux's members paired by suffix) are fitted member by\n"
+          "                       member, then their mean; the rows gain a leading column\n"
+          "                       member (the suffix, or mean; series is the member's column,\n"
+          "                       or NAME[mean]). The split warning of screen is given on the\n"
+          "                       members: a mean's modes may then describe no member\n"
+          "  --members A,B,C,...  only these member suffixes; implies --ensemble\n", out);
     fputs("outputs:\n"
           "  -o FILE              the table (default: standard output)\n"
           "  --json FILE          per series: the BIC and RSS of every K, r1, n_eff, the\n"
