@@ -146,13 +146,7 @@ static int group(const cli_options *o, const series_table *t, ensemble_set *set)
         cli_error("out of memory");
         rc = EXIT_INTERNAL;
     } else if (rc == EXIT_OK && st != SLOWSCAN_OK) {
-        char msg[1024];
-        message_context ctx = slowscan_message_context_default();
-        ctx.source = cli_source_name(t->source);
-        slowscan_message_ensemble_refusal(msg, sizeof msg, &d, (const char *const *)t->names,
-                                          o->ensemble.members_text ? "--members" : "--ensemble",
-                                          &ctx);
-        cli_error("%s", msg);
+        cli_ensemble_refusal(o, t, &d);
         rc = EXIT_BAD_INPUT;
     }
     return rc;

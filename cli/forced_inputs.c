@@ -246,11 +246,11 @@ int cli_forced_anomalies(const cli_options *o, const series_table *baseline, dou
     if (rc == EXIT_OK)
         rc = cli_forced_table(o, baseline, cols, t->nseries, what, &b);
     free(cols);
+    if (rc != EXIT_OK)
+        return rc;
     for (size_t k = 0; rc == EXIT_OK && k < t->nseries; k++)
-        if ((rc = anomaly(o, &b, b.values[k], offset, t, k)) != EXIT_OK)
-            slowscan_series_table_free(&b);
-    if (rc == EXIT_OK)
-        slowscan_series_table_free(&b);
+        rc = anomaly(o, &b, b.values[k], offset, t, k);
+    slowscan_series_table_free(&b);
     return rc;
 }
 

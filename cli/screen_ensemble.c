@@ -147,6 +147,16 @@ void cli_ensemble_split(const char *source, const char *name, const double *cons
     cli_warning("%s", msg);
 }
 
+void cli_ensemble_refusal(const cli_options *o, const series_table *t, const ensemble_detail *d)
+{
+    char msg[1024];
+    message_context ctx = slowscan_message_context_default();
+    ctx.source = cli_source_name(t->source);
+    slowscan_message_ensemble_refusal(msg, sizeof msg, d, (const char *const *)t->names,
+                                      o->ensemble.members_text ? "--members" : "--ensemble", &ctx);
+    cli_error("%s", msg);
+}
+
 /* How far each series reaches: the index of its last finite value + 1. */
 static size_t *reaches(const series_table *t)
 {
@@ -276,15 +286,9 @@ static int group_table(const cli_options *o, struct cli_ensemble_run *e, series_
     int rc = st == SLOWSCAN_OK || d.rule == ENSEMBLE_RULE_NO_MEMBERS ? EXIT_OK
              : st == SLOWSCAN_ENOMEM                                 ? EXIT_INTERNAL
                                                                      : EXIT_BAD_INPUT;
-    if (rc == EXIT_BAD_INPUT) {
-        char msg[1024];
-        message_context ctx = slowscan_message_context_default();
-        ctx.source = cli_source_name(t->source);
-        slowscan_message_ensemble_refusal(msg, sizeof msg, &d, (const char *const *)t->names,
-                                          o->ensemble.members_text ? "--members" : "--ensemble",
-                                          &ctx);
-        cli_error("%s", msg);
-    } else if (rc == EXIT_INTERNAL) {
+    if (rc == EXIT_BAD_INPUT)
+        cli_ensemble_refusal(o, t, &d);
+    else if (rc == EXIT_INTERNAL) {
         cli_error("out of memory");
     }
     if (rc == EXIT_OK && st == SLOWSCAN_OK)

@@ -60,6 +60,9 @@ void cli_ensemble_split(const char *source, const char *name, const double *cons
                         size_t nmembers, size_t n, const ensemble_split_options *options,
                         ensemble_split *split);
 
+/* The library's words for names of t refused as ensembles (slowscan_ensemble_group). */
+void cli_ensemble_refusal(const cli_options *o, const series_table *t, const ensemble_detail *d);
+
 const ensemble_role *ensemble_find(const struct cli_ensemble_run *e, size_t input,
                                    const char *name);
 
