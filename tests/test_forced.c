@@ -190,6 +190,50 @@ static void test_skip(void)
     free(a), free(b);
 }
 
+/* A copy of an annual CSV as a monthly one (every month holds its year's values); its path. */
+static const char *monthly_copy(const char *annual, const char *name)
+{
+    const char *path = check_tmp_path(name);
+    char *text = check_read_file(annual);
+    FILE *fp = fopen(path, "w");
+    char *p = text ? strchr(text, '\n') : NULL;
+    if (fp && p)
+        fprintf(fp, "time%.*s", (int)(p - strchr(text, ',') + 1), strchr(text, ','));
+    for (; fp && p && p[1]; p = strchr(p + 1, '\n')) {
+        const char *comma = strchr(p + 1, ',');
+        int len = comma ? (int)strcspn(comma, "\n") : 0;
+        for (int m = 1; comma && m <= 12; m++)
+            fprintf(fp, "%ld-%02d%.*s\n", strtol(p + 1, NULL, 10), m, len, comma);
+    }
+    if (fp)
+        fclose(fp);
+    free(text);
+    return path;
+}
+
+/* --annual: monthly copies of the step run and the control (each month its year's values)
+ * give, as annual means weighted by month length, the modes of the annual files. */
+static void test_annual(void)
+{
+    char step[600], ctl[600], args[2048], *a = NULL, *b = NULL;
+    snprintf(step, sizeof step, "%s", monthly_copy(STEP2X, "step2x-monthly.csv"));
+    snprintf(ctl, sizeof ctl, "%s", monthly_copy(CONTROL, "control-monthly.csv"));
+    snprintf(args, sizeof args, "timescales --response tas --quiet --annual --baseline %s "
+             "--baseline-mode drift %s", ctl, step);
+    CHECK(modes_run(args, &a, NULL) == 0, "timescales --annual --baseline on monthly copies runs");
+    snprintf(args, sizeof args, "timescales --response tas --quiet --baseline %s --baseline-mode "
+             "drift %s", CONTROL, STEP2X);
+    modes_run(args, &b, NULL);
+    double ma[5] = {0}, mb[5] = {0};
+    /* a mean of twelve equal values weighted by month length is the value to round-off */
+    for (int k = 1; k <= 2; k++)
+        CHECK(a && b && mode_row(a, "tas", k, ma) && mode_row(b, "tas", k, mb) &&
+              check_close(ma[3], mb[3], 1e-8, 0) && check_close(ma[1], mb[1], 1e-8, 0),
+              "--annual: mode %d of the monthly copies is the annual file's (%.10g vs %.10g)", k,
+              ma[3], mb[3]);
+    free(a), free(b);
+}
+
 static void test_refusals(void)
 {
     const char *no_tas = check_tmp_path("control-no-tas.csv");
@@ -248,6 +292,7 @@ void suite_forced(void)
     test_step_modes();
     test_anomalies_numpy();
     test_skip();
+    test_annual();
     test_refusals();
     forced_ensemble_tests();
 }
