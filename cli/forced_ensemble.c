@@ -140,15 +140,15 @@ static int group(const cli_options *o, const series_table *t, ensemble_set *set)
     int st = rc == EXIT_OK ? slowscan_ensemble_group((const char *const *)t->names, NULL,
                                                      t->nseries, &how, set, &d)
                            : SLOWSCAN_OK;
-    free(text);
-    free(list);
     if (rc == EXIT_OK && st == SLOWSCAN_ENOMEM) {
         cli_error("out of memory");
         rc = EXIT_INTERNAL;
     } else if (rc == EXIT_OK && st != SLOWSCAN_OK) {
-        cli_ensemble_refusal(o, t, &d);
+        cli_ensemble_refusal(o, t, &d); /* (d.member points into the list) */
         rc = EXIT_BAD_INPUT;
     }
+    free(text);
+    free(list);
     return rc;
 }
 
