@@ -127,9 +127,12 @@ static void verdict(const cli_options *opts, const modes_series *s, const timesc
     for (size_t k = 0; k < r->nmodes && used < sizeof taus; k++)
         used += (size_t)snprintf(taus + used, sizeof taus - used, "%s%.4g", k ? ", " : "",
                                  r->modes[k].tau);
-    cli_modes_say(opts, "%s: column '%s': %zu mode%s (e-folding times %s); equilibrium %.4g +- %.2g, "
+    char se[32] = "NA"; /* a standard error the fit could not give */
+    if (isfinite(r->se_equilibrium))
+        snprintf(se, sizeof se, "%.2g", r->se_equilibrium);
+    cli_modes_say(opts, "%s: column '%s': %zu mode%s (e-folding times %s); equilibrium %.4g +- %s, "
                 "an extrapolation of the fitted modes, not a forecast", s->source, s->name,
-                r->nmodes, r->nmodes == 1 ? "" : "s", taus, r->equilibrium, r->se_equilibrium);
+                r->nmodes, r->nmodes == 1 ? "" : "s", taus, r->equilibrium, se);
     if (r->flags & TIMESCALES_FLAG_UNRESOLVED)
         cli_warning("%s: column '%s': unresolved: the longest e-folding time (%.4g) exceeds a "
                     "third of the record; the run cannot pin it or the equilibrium down",
