@@ -171,6 +171,26 @@ static void test_timescales_members(void)
            "difference %.2g\n", d);
     CHECK(d < 1e-6, "timescales mean: the rows of a run on numpy's mean column (%.2g)", d);
     free(rows), free(want), free(one), free(ens);
+    /* --joint: the flux's members paired with the response's by suffix */
+    ens = one = NULL;
+    snprintf(args, sizeof args, "timescales --ensemble --joint --response tas --flux net_flux "
+             "--max-modes 1 --baseline %s --quiet %s", CONTROL, HIGH);
+    CHECK(modes_run(args, &ens, NULL) == 0, "timescales --ensemble --joint runs");
+    snprintf(args, sizeof args, "timescales --joint --response tas --flux net_flux --max-modes 1 "
+             "--baseline %s --quiet %s", CONTROL, single_run(HIGH, "net_flux,tas", "m06"));
+    CHECK(modes_run(args, &one, NULL) == 0, "timescales --joint on member m06 alone runs");
+    rows = rows_with(ens, "m06,tas.m06,"), want = rows_with(one, "tas,");
+    CHECK(rows && want && *rows && strcmp(rows, want) == 0, "timescales --joint member m06: the "
+          "rows of a run on its two columns alone");
+    free(rows), free(want), free(one), free(ens);
+    /* --members: only the listed members, and their mean */
+    ens = NULL;
+    snprintf(args, sizeof args, "timescales --members m01,m03,m05,m07 --response tas --max-modes 1 "
+             "--quiet %s", LOW);
+    CHECK(modes_run(args, &ens, NULL) == 0 && count(ens, "\nm0") == 4 && count(ens, "\nm03,") == 1
+          && count(ens, "\nm02,") == 0 && count(ens, "\nmean,") == 1,
+          "--members: four members and their mean: %s", ens ? ens : "");
+    free(ens);
 }
 
 static void test_refusals(void)
