@@ -118,6 +118,7 @@ typedef struct {
     char **argv;
     cli_ensemble_options ensemble;
     cli_feedback_options feedback; /* slowscan feedback (cli/feedback.h) */
+    cli_forced_options forced; /* shared by feedback, timescales, emulate (forced.h) */
     cli_modes_options modes; /* timescales, emulate (modes.h) */
 } cli_options;
 

@@ -6,6 +6,7 @@
  * the two responses with the band and the departure. */
 #include "modes_cli.h"
 #include "modes_run.h"
+#include "forced_inputs.h"
 #include "slowscan/emulate.h"
 #include "slowscan/status.h"
 
@@ -17,6 +18,8 @@ typedef struct {
     FILE *out, *json;
     report_batch *figures;
     series_table tables[4]; /* step, forcing, compare, control */
+    series_table baseline;  /* --baseline FILE */
+    int has_baseline;
     size_t n;               /* forcing samples */
     double *time, *forcing, *response, *emulated, *actual; /* n each, in one block */
     timescales_result fit;
@@ -35,6 +38,8 @@ static int open_outputs(const cli_options *opts, cli_outputs *outs, void *contex
         rc = cli_outputs_open(outs, opts, opts->json_output, "--json", &run->json);
     if (rc == EXIT_OK)
         rc = cli_figures_open(outs, opts, &run->figures);
+    if (rc == EXIT_OK)
+        rc = cli_forced_load_baseline(opts, outs, &run->baseline, &run->has_baseline);
     return rc;
 }
 
@@ -218,15 +223,34 @@ static void verdict(const cli_options *opts, const emulate_run *run)
                       run->time[d->last]);
 }
 
+/* Table j as the run uses it (its column k alone, then *k = 0): annual means with --annual,
+ * and for the step and the compared runs anomalies against --baseline (not the forcing: it
+ * is imposed, not a response; not the control run, whose drift is removed for the band). */
+static int ready(const cli_options *opts, emulate_run *run, int j, size_t *k)
+{
+    int anomalies = run->has_baseline && (j == STEP || j == COMPARE);
+    if (!anomalies && !opts->forced.annual)
+        return EXIT_OK;
+    series_table t;
+    int rc = cli_modes_ready(opts, &run->tables[j], *k, (size_t)-1,
+                             anomalies ? &run->baseline : NULL, &t);
+    if (rc == EXIT_OK) {
+        slowscan_series_table_free(&run->tables[j]);
+        run->tables[j] = t;
+        *k = 0;
+    }
+    return rc;
+}
+
 /* Reads the step run, the forcing, and the compared and control runs when given. */
 static int read_inputs(const cli_options *opts, emulate_run *run, size_t *k)
 {
     const cli_modes_options *m = &opts->modes;
-    cli_series_ref from_input = {.text = m->response};
+    cli_series_ref from_input = {.text = opts->forced.response};
     const cli_series_ref *step = &m->step;
     if (!step->text) {
         snprintf(from_input.file, sizeof from_input.file, "%s", opts->files[0]);
-        snprintf(from_input.column, sizeof from_input.column, "%s", m->response);
+        snprintf(from_input.column, sizeof from_input.column, "%s", opts->forced.response);
         step = &from_input;
     }
     const cli_series_ref *refs[] = {step, &m->forcing, &m->compare, &m->control};
@@ -241,6 +265,8 @@ static int read_inputs(const cli_options *opts, emulate_run *run, size_t *k)
         int rc = cli_modes_read_ref(opts, refs[j], names[j], cut, &run->tables[j], &k[j]);
         if (rc == EXIT_OK && j != COMPARE)
             rc = complete(&run->tables[j], k[j], names[j]);
+        if (rc == EXIT_OK)
+            rc = ready(opts, run, j, &k[j]);
         if (rc != EXIT_OK)
             return rc;
     }
@@ -334,6 +360,8 @@ int cmd_emulate(const cli_options *opts)
     int rc = cli_run_series_command(opts, &cmd);
     for (int j = 0; j < 4; j++)
         slowscan_series_table_free(&run.tables[j]);
+    if (run.has_baseline)
+        slowscan_series_table_free(&run.baseline);
     free(run.time);
     return rc;
 }

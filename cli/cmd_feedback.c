@@ -2,6 +2,7 @@
  * response (response/feedback), one CSV row per window, a one-line verdict per run on stderr,
  * and with --json the drift test of each run. */
 #include "feedback_run.h"
+#include "forced_inputs.h"
 #include "slowscan/status.h"
 
 #include <math.h>
@@ -36,7 +37,7 @@ static int keep_baseline(void *context, series_table *t, const double *branch)
  * to --from/--until (its period is the run's, after alignment). */
 static int load_baseline(const cli_options *opts, feedback_command *run)
 {
-    const char *path = opts->feedback.baseline;
+    const char *path = opts->forced.baseline;
     if (!cli_is_netcdf(path))
         return cli_load_whole_table(opts, path, "--baseline", "a baseline run", &run->baseline);
     cli_options whole = *opts;
@@ -51,14 +52,16 @@ static int open_outputs(const cli_options *opts, cli_outputs *outs, void *contex
     feedback_command *run = context;
     run->opts = opts;
     int rc = cli_outputs_open(outs, opts, opts->output, "-o", &run->out);
+    if (rc == EXIT_OK && opts->ensemble.on)
+        fputs("member,", run->out);
     if (rc == EXIT_OK)
         cli_put_header(run->out, opts, header);
     if (rc == EXIT_OK && opts->json_output)
         rc = cli_outputs_open(outs, opts, opts->json_output, "--json", &run->json);
     if (rc == EXIT_OK && run->json)
         fputs("{\n  \"program\": \"slowscan\",\n  \"command\": \"feedback\",\n  \"runs\": [", run->json);
-    if (rc == EXIT_OK && opts->feedback.baseline) {
-        if (cli_output_clashes(outs, opts, opts->feedback.baseline, "--baseline"))
+    if (rc == EXIT_OK && opts->forced.baseline) {
+        if (cli_output_clashes(outs, opts, opts->forced.baseline, "--baseline"))
             return EXIT_BAD_INPUT;
         rc = load_baseline(opts, run);
         run->has_baseline = rc == EXIT_OK;
@@ -66,21 +69,6 @@ static int open_outputs(const cli_options *opts, cli_outputs *outs, void *contex
     if (rc == EXIT_OK)
         rc = cli_figures_open(outs, opts, &run->figures);
     return rc;
-}
-
-/* A length option in time units of the run's axis: percent of `span`, calendar units
- * converted; an exit code with a message naming the option. */
-static int resolve(const cli_feedback_length *len, const char *option, const time_axis *axis,
-                   double span, double *out)
-{
-    screen_length l = {len->amount, len->percent, (length_unit)len->unit}, on;
-    if (slowscan_screen_length_on_axis(&l, axis, &on) != SLOWSCAN_OK) {
-        cli_error("option %s: %s cannot be measured on this time axis (%s)", option, len->text,
-                  axis->unit == TIME_AXIS_NUMBER ? "plain numbers: give time units" : "use its own unit");
-        return EXIT_BAD_INPUT;
-    }
-    *out = on.percent ? on.amount / 100 * span : on.amount;
-    return EXIT_OK;
 }
 
 /* --fit-span A:B as times of the run's axis, inside the record. */
@@ -118,18 +106,19 @@ static int configure(const cli_options *o, const cli_feedback_run *r, feedback_c
     if (f->span_text)
         return fit_span(o, r, c);
     double span = r->time[r->n - 1] - r->time[0], dt = span / (double)(r->n - 1);
-    int rc = f->skip.text ? resolve(&f->skip, "--skip", &r->axis, span, &c->skip) : EXIT_OK;
+    const cli_forced_length *skip = &o->forced.skip;
+    int rc = skip->text ? cli_forced_resolve(skip, "--skip", &r->axis, span, &c->skip) : EXIT_OK;
     double rest = span - c->skip;
     if (rc == EXIT_OK && !(rest >= 3 * dt)) {
-        cli_error("option --skip %s: leaves less than 4 samples of %s", f->skip.text, r->source);
+        cli_error("option --skip %s: leaves less than 4 samples of %s", skip->text, r->source);
         return EXIT_BAD_INPUT;
     }
     cli_feedback_length half = {50, 1, 0, NULL};
     if (rc == EXIT_OK && o->window.text) {
         cli_feedback_length w = {o->window.amount, o->window.percent, (int)o->window.unit, o->window.text};
-        rc = resolve(&w, "--window", &r->axis, rest, &c->window);
+        rc = cli_forced_resolve(&w, "--window", &r->axis, rest, &c->window);
     } else if (rc == EXIT_OK) {
-        resolve(&half, "--window", &r->axis, rest, &c->window);
+        cli_forced_resolve(&half, "--window", &r->axis, rest, &c->window);
         c->window = fmin(c->window, 100);
     }
     if (rc == EXIT_OK && c->window > rest + 1e-6 * dt) {
@@ -145,7 +134,7 @@ static int configure(const cli_options *o, const cli_feedback_run *r, feedback_c
     }
     c->stride = fmax(c->window / 10, dt);
     if (rc == EXIT_OK && f->stride.text) {
-        rc = resolve(&f->stride, "--stride", &r->axis, rest, &c->stride);
+        rc = cli_forced_resolve(&f->stride, "--stride", &r->axis, rest, &c->stride);
         if (rc == EXIT_OK && c->stride < dt * (1 - 1e-6)) {
             cli_error("option --stride %s: shorter than the time step (%.12g) of %s",
                       f->stride.text, dt, r->source);
@@ -171,6 +160,10 @@ static void write_rows(FILE *fp, const cli_options *o, const cli_feedback_run *r
                        const feedback_window *w, size_t count)
 {
     for (size_t j = 0; j < count; j++) {
+        if (r->member) {
+            cli_put_field(fp, r->member);
+            fputc(',', fp);
+        }
         if (cli_several_inputs(o)) {
             cli_put_field(fp, r->source);
             fputc(',', fp);
@@ -226,8 +219,9 @@ static void verdict(const cli_feedback_run *r, const feedback_config *c, const f
     if (isfinite(w[count - 1].lambda))
         snprintf(last, sizeof last, "%.4g", w[count - 1].lambda);
     cli_progress_message_begin();
-    fprintf(stderr, "slowscan: feedback %s: %zu window%s (%zu fitted, %s), lambda %s to %s; "
-            "%zu weak, %zu reversed; %s%s\n", r->source, count, count == 1 ? "" : "s", fitted,
+    fprintf(stderr, "slowscan: feedback %s%s%s: %zu window%s (%zu fitted, %s), lambda %s to %s; "
+            "%zu weak, %zu reversed; %s%s\n", r->source, r->member ? " member " : "",
+            r->member ? r->member : "", count, count == 1 ? "" : "s", fitted,
             c->fit == FEEDBACK_TLS ? "tls" : "ols", first, last, weak, reversed, drift,
             d->verdict == FEEDBACK_DRIFT_DRIFTING
             ? ": extrapolating one window's equilibrium is not justified" : "");
@@ -240,6 +234,10 @@ static void write_json(feedback_command *run, const cli_feedback_run *r,
     FILE *fp = run->json;
     fprintf(fp, "%s\n    {\"file\": ", run->written++ ? "," : "");
     cli_json_string(fp, r->source);
+    if (r->member) {
+        fputs(", \"member\": ", fp);
+        cli_json_string(fp, r->member);
+    }
     fprintf(fp, ", \"fit\": \"%s\", \"noise_ratio\": ", c->fit == FEEDBACK_TLS ? "tls" : "ols");
     cli_json_number(fp, c->fit == FEEDBACK_TLS ? c->noise_ratio : NAN);
     fprintf(fp, ", \"noise_ratio_from_baseline\": %s, \"baseline_offset\": ",
@@ -274,10 +272,11 @@ static int draw(feedback_command *run, const cli_feedback_run *r, const feedback
     return cli_feedback_figure(run->figures, run->opts, r, w, count, verdict);
 }
 
-/* One input: its run made ready, the windows fitted, rows, verdict, JSON, figure. */
-static int feedback_input(void *context, series_table *t, const double *branch)
+/* One input (or a member of an ensemble in one: NULL for none): its run made ready, the
+ * windows fitted, rows, verdict, JSON, figure. */
+static int feedback_run_one(feedback_command *run, const series_table *t, const double *branch,
+                            const char *member)
 {
-    feedback_command *run = context;
     const cli_options *o = run->opts;
     cli_feedback_run r;
     feedback_config c;
@@ -285,6 +284,7 @@ static int feedback_input(void *context, series_table *t, const double *branch)
     feedback_drift d;
     size_t count = 0;
     int rc = cli_feedback_take(o, t, &r);
+    r.member = member;
     if (branch && branch[0]) {
         r.has_branch = 1;
         r.branch_parent_day = branch[1];
@@ -318,13 +318,30 @@ static int feedback_input(void *context, series_table *t, const double *branch)
     return rc;
 }
 
+static int feedback_input(void *context, series_table *t, const double *branch)
+{
+    return feedback_run_one(context, t, branch, NULL);
+}
+
+static int feedback_member(void *context, const cli_forced_member *m)
+{
+    return feedback_run_one(context, &m->table, NULL, m->member);
+}
+
 static int run_inputs(const cli_options *opts, const cli_inputs *in, void *context)
 {
     feedback_command *run = context;
     run->opts = opts;
     int rc = EXIT_OK;
     for (size_t f = 0; rc == EXIT_OK && f < in->ntables; f++) {
-        if (in->grid_cells[f] > 0)
+        if (opts->ensemble.on && (in->grid_cells[f] > 0 || in->columns[f])) {
+            cli_error("option --ensemble: %s: give a CSV table of the members' columns (not a "
+                      "NetCDF grid, nor a CSV read in parts)", opts->files[f]);
+            rc = EXIT_BAD_INPUT;
+        } else if (opts->ensemble.on)
+            rc = cli_forced_ensemble(opts, &in->tables[f], opts->forced.response,
+                                     opts->forced.flux, feedback_member, run);
+        else if (in->grid_cells[f] > 0)
             rc = cli_feedback_grid(opts, opts->files[f], feedback_input, run);
         else if (in->columns[f]) {
             cli_error("%s: too large for feedback (a run is two columns; keep only those)",

@@ -23,6 +23,8 @@ static int open_outputs(const cli_options *opts, cli_outputs *outs, void *contex
 {
     timescales_run *run = context;
     int rc = cli_outputs_open(outs, opts, opts->output, "-o", &run->out);
+    if (rc == EXIT_OK && opts->ensemble.on)
+        fputs("member,", run->out);
     if (rc == EXIT_OK)
         cli_put_header(run->out, opts, "series,modes_chosen,mode,amplitude,amplitude_se,"
                        "efold_time,efold_time_se,flux_at_onset,flux_at_onset_se,equilibrium,"
@@ -52,6 +54,10 @@ static void write_rows(timescales_run *run, const cli_options *opts, const modes
     cli_modes_flag_names(r->flags, flags, sizeof flags);
     for (size_t k = 0; k < r->nmodes; k++) {
         const timescales_mode *m = &r->modes[k];
+        if (s->member) {
+            cli_put_field(run->out, s->member);
+            fputc(',', run->out);
+        }
         cli_put_series(run->out, opts, s->source, s->name);
         fprintf(run->out, ",%zu,%zu", r->nmodes, k + 1);
         const double v[] = {m->a, m->se_a, m->tau, m->se_tau, m->c, m->se_c, r->equilibrium,
@@ -78,6 +84,11 @@ static void write_json(timescales_run *run, const cli_options *opts, const modes
     if (cli_several_inputs(opts)) {
         fputs("\"file\": ", fp);
         cli_json_string(fp, s->source);
+        fputs(", ", fp);
+    }
+    if (s->member) {
+        fputs("\"member\": ", fp);
+        cli_json_string(fp, s->member);
         fputs(", ", fp);
     }
     fputs("\"series\": ", fp);
@@ -116,9 +127,12 @@ static void verdict(const cli_options *opts, const modes_series *s, const timesc
     for (size_t k = 0; k < r->nmodes && used < sizeof taus; k++)
         used += (size_t)snprintf(taus + used, sizeof taus - used, "%s%.4g", k ? ", " : "",
                                  r->modes[k].tau);
-    cli_modes_say(opts, "%s: column '%s': %zu mode%s (e-folding times %s); equilibrium %.4g +- %.2g, "
+    char se[32] = "NA"; /* a standard error the fit could not give */
+    if (isfinite(r->se_equilibrium))
+        snprintf(se, sizeof se, "%.2g", r->se_equilibrium);
+    cli_modes_say(opts, "%s: column '%s': %zu mode%s (e-folding times %s); equilibrium %.4g +- %s, "
                 "an extrapolation of the fitted modes, not a forecast", s->source, s->name,
-                r->nmodes, r->nmodes == 1 ? "" : "s", taus, r->equilibrium, r->se_equilibrium);
+                r->nmodes, r->nmodes == 1 ? "" : "s", taus, r->equilibrium, se);
     if (r->flags & TIMESCALES_FLAG_UNRESOLVED)
         cli_warning("%s: column '%s': unresolved: the longest e-folding time (%.4g) exceeds a "
                     "third of the record; the run cannot pin it or the equilibrium down",

@@ -43,14 +43,16 @@ int cli_feedback_figure(report_batch *figures, const cli_options *o, const cli_f
         response_range(r, w[j].start, w[j].end, &tmin[j], &tmax[j]);
     }
     const char *unit = cli_time_unit(&axis);
-    report_feedback_data data = {r->source, o->feedback.flux, o->feedback.response,
+    report_feedback_data data = {r->source, o->forced.flux, o->forced.response,
                                  axis.unit == TIME_AXIS_NUMBER ? "time" : unit[0] ? "year" : "time",
                                  r->n, r->flux, r->response, count, mid, lam, lo, hi, F, tmin,
                                  tmax, flags, verdict};
     /* named after the file without its directories: feedback-RUN.csv.png */
     const char *slash = strrchr(r->source, '/');
-    int rc = cli_figure_draw(figures, &slowscan_report_feedback_figure, &data, "feedback",
-                             slash ? slash + 1 : r->source);
+    char name[1024]; /* an ensemble's member: feedback-RUN.csv.m01.png */
+    snprintf(name, sizeof name, "%s%s%s", slash ? slash + 1 : r->source, r->member ? "." : "",
+             r->member ? r->member : "");
+    int rc = cli_figure_draw(figures, &slowscan_report_feedback_figure, &data, "feedback", name);
     free(buf);
     free(flags);
     return rc;

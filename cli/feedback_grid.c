@@ -40,7 +40,7 @@ static int make_table(netcdf_reader *r, const char *path, const cli_options *o, 
     size_t n;
     const char *time_name;
     const double *time = slowscan_netcdf_times(r, &n, &t->axis, &time_name);
-    const char *names[2] = {o->feedback.flux, o->feedback.response};
+    const char *names[2] = {o->forced.flux, o->forced.response};
     t->source = strdup(path);
     t->time_name = strdup(time_name);
     t->time = malloc(n * sizeof *t->time);
@@ -72,7 +72,7 @@ static int sum_cells(netcdf_reader *r, const char *path, const cli_options *o, s
     for (size_t k = 0; k < 2 && st == SLOWSCAN_OK; k++) {
         st = slowscan_netcdf_area_weights(r, k, &w[k], &err);
         if (st == SLOWSCAN_OK)
-            weights_notice(path, k ? o->feedback.response : o->feedback.flux, &w[k]);
+            weights_notice(path, k ? o->forced.response : o->forced.flux, &w[k]);
     }
     netcdf_series s;
     while (st == SLOWSCAN_OK && (st = slowscan_netcdf_next(r, &s, &err)) == SLOWSCAN_OK) {
@@ -96,7 +96,7 @@ int cli_feedback_grid(const cli_options *o, const char *path, cli_feedback_visit
         return EXIT_BAD_INPUT;
     }
     char vars[600];
-    snprintf(vars, sizeof vars, "%s,%s", o->feedback.flux, o->feedback.response);
+    snprintf(vars, sizeof vars, "%s,%s", o->forced.flux, o->forced.response);
     netcdf_read_options ro = cli_netcdf_options(o);
     ro.vars = vars;
     netcdf_reader *r = NULL;

@@ -7,9 +7,11 @@
 
 typedef struct {
     const char *source; /* as messages name it */
+    const char *member; /* --ensemble: the member suffix or "mean"; NULL: no ensemble */
     time_axis axis;
     size_t n;
-    double *time, *flux, *response; /* owned */
+    series_table table;             /* the two columns (cli_forced_table), owned */
+    double *time, *flux, *response; /* its time and columns */
     double noise_ratio; /* --noise-ratio, or estimated from the baseline run (TLS) */
     int ratio_estimated;
     int has_branch;     /* a NetCDF run's CF branch times, day numbers of its calendar */

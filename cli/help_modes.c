@@ -32,7 +32,26 @@ static const char fit_options[] =
     "  --onset T            time of the step (default: one time step before the first\n"
     "                       sample, i.e. the first sample is the first step after it);\n"
     "                       samples before it are not fitted\n"
-    "  --skip T             leave out the first T time units after the onset\n";
+    "  --skip LEN           leave out the first LEN after the onset: time units, N% of the\n"
+    "                       record's span, or with y/mon/d on a dated axis (the same\n"
+    "                       length as feedback's --skip, measured there from the first\n"
+    "                       sample)\n";
+
+static const char baseline_options[] =
+    "baseline (as for feedback, by the same code):\n"
+    "  --baseline FILE      a baseline (control) run, CSV, with a column of the same name:\n"
+    "                       the response (and --flux with --joint) become anomalies against\n"
+    "                       it over the run's own period, before the onset and --skip are\n"
+    "                       applied. Refused when the baseline lacks the column or does not\n"
+    "                       cover the period (within half its time step)\n"
+    "  --baseline-mode M    mean: its mean over that period (default); drift: its least-\n"
+    "                       squares line there, evaluated at each time (removes a control\n"
+    "                       drift)\n"
+    "  --baseline-offset T  the baseline's time at the run's time 0 is T (default 0: the\n"
+    "                       same time axis)\n"
+    "  --annual             monthly input: annual means weighted by month length in the\n"
+    "                       calendar (the baseline's too); partial years at the ends are\n"
+    "                       left out\n";
 
 void cli_help_timescales(FILE *out)
 {
@@ -60,8 +79,18 @@ void cli_help_timescales(FILE *out)
           "                       N(t) = sum_k c_k exp(-t / tau_k), so N reaches 0 where the\n"
           "                       response reaches sum a_k; c_k is flux_at_onset, the forcing\n"
           "                       N0 = sum c_k is in --json. Each series' residuals are weighted\n"
-          "                       by their own noise scale (two passes).\n"
-          "outputs:\n"
+          "                       by their own noise scale (two passes).\n", out);
+    fputs(baseline_options, out);
+    fputs("ensembles:\n"
+          "  --ensemble           columns NAME.MEMBER of the --response NAME (at least 4\n"
+          "                       members, grouped as 'slowscan help screen' says; with --joint\n"
+          "                       the flux's members paired by suffix) are fitted member by\n"
+          "                       member, then their mean; the rows gain a leading column\n"
+          "                       member (the suffix, or mean; series is the member's column,\n"
+          "                       or NAME[mean]). The split warning of screen is given on the\n"
+          "                       members: a mean's modes may then describe no member\n"
+          "  --members A,B,C,...  only these member suffixes; implies --ensemble\n", out);
+    fputs("outputs:\n"
           "  -o FILE              the table (default: standard output)\n"
           "  --json FILE          per series: the BIC and RSS of every K, r1, n_eff, the\n"
           "                       residual sd, the equilibrium and forcing with their errors\n", out);
@@ -105,6 +134,10 @@ void cli_help_emulate(FILE *out)
           "  --empirical          use the step run's values, not its fitted modes (the step run\n"
           "                       must be as long as the forcing record)\n", out);
     fputs(fit_options, out);
+    fputs(baseline_options, out);
+    fputs("  (emulate: the step run and the --compare run become anomalies; the forcing and\n"
+          "  the --control noise run do not: the forcing is imposed, and the control's own\n"
+          "  linear drift is removed for the band)\n", out);
     fputs("comparison:\n"
           "  --compare FILE:COL   the run forced so (its times on the forcing's grid)\n"
           "  --control FILE:COL   a control run for the noise band (default: the step run's\n"

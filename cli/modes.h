@@ -13,10 +13,9 @@ typedef struct {
 } cli_series_ref;
 
 typedef struct {
-    const char *response, *flux; /* --response COL, --flux COL */
+    /* --response, --flux, --skip, --baseline*: cli_options.forced (forced.h) */
     long max_modes;              /* --max-modes K: 3 */
     int joint;                   /* --joint */
-    double skip;                 /* --skip T: time after the onset left out of the fit (0) */
     double onset;                /* --onset T: time of the step; NaN: one step before the first sample */
     /* emulate */
     cli_series_ref step, forcing, compare, control;

@@ -8,13 +8,10 @@
 void cli_modes_defaults(cli_options *o);
 /* Checks between the options of timescales and emulate after the parse (exit code). */
 int cli_modes_check(const cli_options *o);
-int cli_set_response(cli_options *o, const char *n, const char *v);
-int cli_set_flux(cli_options *o, const char *n, const char *v);
 int cli_set_joint(cli_options *o, const char *n, const char *v);
 int cli_set_empirical(cli_options *o, const char *n, const char *v);
 int cli_set_max_modes(cli_options *o, const char *n, const char *v);
 int cli_set_persist(cli_options *o, const char *n, const char *v);
-int cli_set_skip(cli_options *o, const char *n, const char *v);
 int cli_set_onset(cli_options *o, const char *n, const char *v);
 int cli_set_step_forcing(cli_options *o, const char *n, const char *v);
 int cli_set_band_level(cli_options *o, const char *n, const char *v);

@@ -15,20 +15,6 @@ void cli_modes_defaults(cli_options *o)
     o->modes.band_level = 0.99;
 }
 
-int cli_set_response(cli_options *o, const char *n, const char *v)
-{
-    (void)n;
-    o->modes.response = v;
-    return EXIT_OK;
-}
-
-int cli_set_flux(cli_options *o, const char *n, const char *v)
-{
-    (void)n;
-    o->modes.flux = v;
-    return EXIT_OK;
-}
-
 int cli_set_joint(cli_options *o, const char *n, const char *v)
 {
     (void)n, (void)v;
@@ -65,16 +51,6 @@ int cli_set_max_modes(cli_options *o, const char *n, const char *v)
 int cli_set_persist(cli_options *o, const char *n, const char *v)
 {
     return whole_in(n, v, 1, 100000, &o->modes.persist);
-}
-
-int cli_set_skip(cli_options *o, const char *n, const char *v)
-{
-    int rc = cli_parse_number(n, v, &o->modes.skip);
-    if (rc == EXIT_OK && o->modes.skip < 0) {
-        cli_error("option %s: %s is negative (a time after the onset)", n, v);
-        return EXIT_BAD_INPUT;
-    }
-    return rc;
 }
 
 int cli_set_onset(cli_options *o, const char *n, const char *v)
@@ -127,23 +103,28 @@ int cli_modes_check(const cli_options *o)
 {
     const cli_modes_options *m = &o->modes;
     if (strcmp(o->command, "timescales") == 0) {
-        if (m->joint && (!m->response || !m->flux)) {
+        if (m->joint && (!o->forced.response || !o->forced.flux)) {
             cli_error("option --joint needs --response COL and --flux COL (the response and the "
                       "net flux of the same run)");
             return EXIT_BAD_INPUT;
         }
-        if (m->flux && !m->joint) {
+        if (o->ensemble.on && !o->forced.response) {
+            cli_error("option %s needs --response NAME (the ensemble's columns NAME.MEMBER)",
+                      o->ensemble.members_text ? "--members" : "--ensemble");
+            return EXIT_BAD_INPUT;
+        }
+        if (o->forced.flux && !m->joint) {
             cli_error("option --flux is used by --joint only");
             return EXIT_BAD_INPUT;
         }
         return EXIT_OK;
     }
-    if (m->step.text && (o->nfiles > 0 || m->response)) {
+    if (m->step.text && (o->nfiles > 0 || o->forced.response)) {
         cli_error("option --step FILE:COL names the step run; give it either so or as an input "
                   "file with --response COL, not both");
         return EXIT_BAD_INPUT;
     }
-    if (!m->step.text && o->nfiles > 0 && !m->response) {
+    if (!m->step.text && o->nfiles > 0 && !o->forced.response) {
         cli_error("emulate: option --response COL is needed (the step run's column in %s)",
                   o->files[0]);
         return EXIT_BAD_INPUT;

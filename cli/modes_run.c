@@ -1,6 +1,7 @@
 /* The shared run of timescales and emulate (modes_run.h). */
 #include "modes_run.h"
 #include "modes_cli.h"
+#include "forced_inputs.h"
 #include "slowscan/status.h"
 
 #include <math.h>
@@ -15,12 +16,17 @@ typedef struct {
     int (*open)(const cli_options *, cli_outputs *, void *);
     int (*finish)(const cli_options *, void *);
     void *context;
+    series_table baseline; /* --baseline FILE */
+    int has_baseline;
 } modes_walk;
 
 static int walk_open(const cli_options *opts, cli_outputs *outs, void *context)
 {
     modes_walk *w = context;
-    return w->open ? w->open(opts, outs, w->context) : EXIT_OK;
+    int rc = w->open ? w->open(opts, outs, w->context) : EXIT_OK;
+    if (rc == EXIT_OK)
+        rc = cli_forced_load_baseline(opts, outs, &w->baseline, &w->has_baseline);
+    return rc;
 }
 
 static int walk_finish(const cli_options *opts, void *context)
@@ -49,7 +55,11 @@ int cli_modes_series(const cli_options *opts, const series_table *t, size_t k, s
 {
     const char *source = cli_source_name(t->source);
     double dt = t->n > 1 ? (t->time[t->n - 1] - t->time[0]) / (double)(t->n - 1) : 1.0;
-    double onset = isnan(opts->modes.onset) ? t->time[0] - dt : opts->modes.onset;
+    double onset = isnan(opts->modes.onset) ? t->time[0] - dt : opts->modes.onset, skip = 0;
+    const cli_forced_length *skip_len = &opts->forced.skip;
+    if (skip_len->text && cli_forced_resolve(skip_len, "--skip", &t->axis,
+                                             t->time[t->n - 1] - t->time[0], &skip) != EXIT_OK)
+        return EXIT_BAD_INPUT;
     *owned = malloc(4 * (t->n ? t->n : 1) * sizeof **owned);
     if (!*owned) {
         cli_error("out of memory");
@@ -59,7 +69,7 @@ int cli_modes_series(const cli_options *opts, const series_table *t, size_t k, s
     size_t n = 0;
     for (size_t i = 0; i < t->n; i++) {
         double since = t->time[i] - onset;
-        if (since < 0 || since < opts->modes.skip)
+        if (since < 0 || since < skip)
             continue;
         for (size_t j = 0; j < (f == (size_t)-1 ? 1u : 2u); j++)
             if (isnan(t->values[j ? f : k][i])) {
@@ -80,7 +90,7 @@ int cli_modes_series(const cli_options *opts, const series_table *t, size_t k, s
     if (n < need) {
         cli_error("%s: column '%s': %zu samples after the onset (%g)%s; %s with --max-modes %ld "
                   "needs at least %zu", source, s->name, n, onset,
-                  opts->modes.skip > 0 ? " and --skip" : "", opts->command, opts->modes.max_modes, need);
+                  skip > 0 ? " and --skip" : "", opts->command, opts->modes.max_modes, need);
         return EXIT_BAD_INPUT;
     }
     return EXIT_OK;
@@ -116,22 +126,63 @@ int cli_modes_column(const series_table *t, const char *option, const char *name
     return EXIT_BAD_INPUT;
 }
 
-/* Series k of t as the command's (the flux beside it with --joint), visited. */
-static int visit_one(const cli_options *opts, const series_table *t, size_t k, modes_walk *w)
+int cli_modes_ready(const cli_options *opts, const series_table *t, size_t k, size_t f,
+                    const series_table *baseline, series_table *out)
 {
-    size_t f = (size_t)-1;
-    if (opts->modes.joint && cli_modes_column(t, "--flux", opts->modes.flux, &f) != EXIT_OK)
-        return EXIT_BAD_INPUT;
-    modes_series s;
-    double *owned = NULL;
-    int rc = cli_modes_series(opts, t, k, f, &s, &owned);
-    if (rc == EXIT_OK)
-        rc = w->visit(opts, &s, w->context);
-    free(owned);
+    const size_t cols[2] = {k, f};
+    int rc = cli_forced_table(opts, t, cols, f == (size_t)-1 ? 1 : 2, cli_source_name(t->source),
+                              out);
+    if (rc == EXIT_OK && baseline) {
+        rc = cli_forced_anomalies(opts, baseline, cli_forced_offset(opts, &out->axis, NULL), out);
+        if (rc != EXIT_OK)
+            slowscan_series_table_free(out);
+    }
     return rc;
 }
 
-/* Every series of the inputs: the --response column of each table, or every column. */
+/* Series k of t as the command's (the flux beside it with --joint), visited: with --baseline
+ * or --annual through a table of its own (cli_modes_ready); a member of an ensemble (NULL:
+ * none) keeps its own column name and member in the rows. */
+static int visit_one(const cli_options *opts, const series_table *t, size_t k, modes_walk *w,
+                     const cli_forced_member *member)
+{
+    size_t f = (size_t)-1;
+    if (opts->modes.joint && cli_modes_column(t, "--flux", opts->forced.flux, &f) != EXIT_OK)
+        return EXIT_BAD_INPUT;
+    series_table ready = {0};
+    int own = w->has_baseline || opts->forced.annual;
+    int rc = own ? cli_modes_ready(opts, t, k, f, w->has_baseline ? &w->baseline : NULL, &ready)
+                 : EXIT_OK;
+    modes_series s;
+    double *owned = NULL;
+    if (rc == EXIT_OK)
+        rc = own ? cli_modes_series(opts, &ready, 0, f == (size_t)-1 ? f : 1, &s, &owned)
+                 : cli_modes_series(opts, t, k, f, &s, &owned);
+    if (rc == EXIT_OK && member) {
+        s.name = member->column;
+        s.member = member->member;
+    }
+    if (rc == EXIT_OK)
+        rc = w->visit(opts, &s, w->context);
+    free(owned);
+    if (own)
+        slowscan_series_table_free(&ready);
+    return rc;
+}
+
+typedef struct {
+    const cli_options *opts;
+    modes_walk *walk;
+} member_visit;
+
+static int visit_member(void *context, const cli_forced_member *m)
+{
+    member_visit *v = context;
+    return visit_one(v->opts, &m->table, 0, v->walk, m);
+}
+
+/* Every series of the inputs: the --response column of each table, or every column; with
+ * --ensemble the members of the --response ensemble of each table, and their mean. */
 static int walk(const cli_options *opts, const cli_inputs *in, void *context)
 {
     modes_walk *w = context;
@@ -140,13 +191,21 @@ static int walk(const cli_options *opts, const cli_inputs *in, void *context)
     const series_table *t;
     size_t k, r = 0;
     int rc;
+    member_visit mv = {opts, w};
     while ((rc = cli_cursor_next(&c, &t, &k)) == EXIT_OK) {
-        if (opts->modes.response && k == 0 &&
-            (rc = cli_modes_column(t, "--response", opts->modes.response, &r)) != EXIT_OK)
-            break;
-        if (opts->modes.response && k != r)
+        if (opts->ensemble.on) {
+            if (k == 0 && (rc = cli_forced_ensemble(opts, t, opts->forced.response,
+                                                    opts->modes.joint ? opts->forced.flux : NULL,
+                                                    visit_member, &mv)) != EXIT_OK)
+                break;
             continue;
-        if ((rc = visit_one(opts, t, k, w)) != EXIT_OK)
+        }
+        if (opts->forced.response && k == 0 &&
+            (rc = cli_modes_column(t, "--response", opts->forced.response, &r)) != EXIT_OK)
+            break;
+        if (opts->forced.response && k != r)
+            continue;
+        if ((rc = visit_one(opts, t, k, w, NULL)) != EXIT_OK)
             break;
     }
     cli_cursor_end(&c);
@@ -172,9 +231,12 @@ int cli_modes_run(const cli_options *opts,
                   modes_visitor visit, int (*finish)(const cli_options *, void *),
                   void *context)
 {
-    modes_walk w = {visit, open, finish, context};
+    modes_walk w = {visit, open, finish, context, {0}, 0};
     series_command cmd = {.open = walk_open, .finish = walk_finish, .context = &w, .run = walk};
-    return cli_run_series_command(opts, &cmd);
+    int rc = cli_run_series_command(opts, &cmd);
+    if (w.has_baseline)
+        slowscan_series_table_free(&w.baseline);
+    return rc;
 }
 
 int cli_modes_read_ref(const cli_options *opts, const cli_series_ref *ref, const char *option,

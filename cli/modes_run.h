@@ -17,6 +17,7 @@ typedef struct {
     const double *y, *flux; /* flux NULL without --joint */
     double onset, dt;
     const time_axis *axis;
+    const char *member; /* --ensemble: the member suffix or "mean" (NULL: no ensemble) */
 } modes_series;
 
 typedef int (*modes_visitor)(const cli_options *opts, const modes_series *s, void *context);
@@ -32,6 +33,12 @@ int cli_modes_run(const cli_options *opts,
  * in *owned (free() it). Refusals (a missing value, too few samples after --skip) printed. */
 int cli_modes_series(const cli_options *opts, const series_table *t, size_t k, size_t f,
                      modes_series *s, double **owned);
+
+/* Column k (and f, or (size_t)-1) of t as a table of their own in *out (owned; free with
+ * slowscan_series_table_free): annual means with --annual, anomalies against the baseline
+ * run when given (NULL: none). An exit code (message printed). */
+int cli_modes_ready(const cli_options *opts, const series_table *t, size_t k, size_t f,
+                    const series_table *baseline, series_table *out);
 
 /* The column `name` of t, or a refusal naming the option, the file and its columns. */
 int cli_modes_column(const series_table *t, const char *option, const char *name, size_t *k);

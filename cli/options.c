@@ -2,6 +2,7 @@
  * that stores its value, so each command accepts exactly its own options. */
 #define _GNU_SOURCE /* sched_getaffinity: the cores this process may run on */
 #include "cli.h"
+#include "forced_inputs.h"
 #include "modes_cli.h"
 #include "share.h"
 #include "slowscan/status.h"
@@ -357,8 +358,8 @@ static const option_spec options[] = {
     {"--fractions", 1, C_ROBUST, set_fractions},
     {"--detrends", 1, C_ROBUST, cli_set_detrends},
     {"--format", 1, C_SCREEN, set_format},
-    {"--ensemble", 0, C_SCREEN, set_ensemble},
-    {"--members", 1, C_SCREEN, set_ensemble},
+    {"--ensemble", 0, C_SCREEN | C_FEEDBACK | C_TIMESCALES, set_ensemble},
+    {"--members", 1, C_SCREEN | C_FEEDBACK | C_TIMESCALES, set_ensemble},
     {"--member-anomalies", 0, C_SCREEN, set_ensemble},
     {"--figures", 1, C_TESTING | C_FEEDBACK | C_MODES, set_figures},
     {"--figure-format", 1, C_TESTING | C_FEEDBACK | C_MODES, set_figure_format},
@@ -370,25 +371,23 @@ static const option_spec options[] = {
     {"--out", 1, C_DEMO, set_out_dir},
     {"--seed", 1, C_DEMO | C_TESTING | C_SURROGATES, set_seed},
     {"--threads", 1, C_TESTING, set_threads},
-    {"--flux", 1, C_FEEDBACK, cli_feedback_set},
-    {"--response", 1, C_FEEDBACK, cli_feedback_set},
+    /* shared by the forced-run commands (forced_inputs.c) */
+    {"--flux", 1, C_FEEDBACK | C_TIMESCALES, cli_forced_set},
+    {"--response", 1, C_FEEDBACK | C_MODES, cli_forced_set},
+    {"--skip", 1, C_FEEDBACK | C_MODES, cli_forced_set},
+    {"--baseline", 1, C_FEEDBACK | C_MODES, cli_forced_set},
+    {"--baseline-mode", 1, C_FEEDBACK | C_MODES, cli_forced_set},
+    {"--baseline-offset", 1, C_FEEDBACK | C_MODES, cli_forced_set},
+    {"--annual", 0, C_FEEDBACK | C_MODES, cli_forced_set},
     {"--stride", 1, C_FEEDBACK, cli_feedback_set},
-    {"--skip", 1, C_FEEDBACK, cli_feedback_set},
     {"--fit", 1, C_FEEDBACK, cli_feedback_set},
     {"--noise-ratio", 1, C_FEEDBACK, cli_feedback_set},
     {"--fit-span", 1, C_FEEDBACK, cli_feedback_set},
     {"--scale", 1, C_FEEDBACK, cli_feedback_set},
-    {"--baseline", 1, C_FEEDBACK, cli_feedback_set},
-    {"--baseline-mode", 1, C_FEEDBACK, cli_feedback_set},
-    {"--baseline-offset", 1, C_FEEDBACK, cli_feedback_set},
-    {"--annual", 0, C_FEEDBACK, cli_feedback_set},
     {"--area-mean", 0, C_FEEDBACK, cli_feedback_set},
     /* timescales and emulate (modes_options.c) */
-    {"--response", 1, C_MODES, cli_set_response},
-    {"--flux", 1, C_TIMESCALES, cli_set_flux},
     {"--joint", 0, C_TIMESCALES, cli_set_joint},
     {"--max-modes", 1, C_MODES, cli_set_max_modes},
-    {"--skip", 1, C_MODES, cli_set_skip},
     {"--onset", 1, C_MODES, cli_set_onset},
     {"--step", 1, C_EMULATE, cli_set_step_run},
     {"--step-forcing", 1, C_EMULATE, cli_set_step_forcing},
@@ -417,6 +416,7 @@ static void set_defaults(const char *command, cli_options *o)
 {
     cli_science_defaults(command, o);
     cli_modes_defaults(o);
+    cli_forced_defaults(o);
     o->format = "csv";
     o->figure_format = REPORT_PNG;
     o->progress = -1;
@@ -528,6 +528,8 @@ int cli_parse(const char *command, int argc, char **argv, int first, cli_options
     }
     if (o->progress < 0)
         o->progress = isatty(STDERR_FILENO);
+    if ((bit & (C_MODES | C_FEEDBACK)) && cli_forced_check(o) != EXIT_OK)
+        return EXIT_BAD_INPUT;
     if ((bit & C_MODES) && cli_modes_check(o) != EXIT_OK)
         return EXIT_BAD_INPUT;
     if (bit != C_DEMO && o->nfiles == 0 && !(bit == C_EMULATE && o->modes.step.text)) {

@@ -108,8 +108,7 @@ static char *grid_member_name(const char *name, const char *dim)
     return out;
 }
 
-/* --members A,B,C into suffixes (in *text, which the caller frees). */
-static int member_list(const cli_options *o, char **text, const char ***list, size_t *count)
+int cli_ensemble_member_list(const cli_options *o, char **text, const char ***list, size_t *count)
 {
     *list = NULL, *count = 0, *text = NULL;
     if (!o->ensemble.members_text)
@@ -132,6 +131,30 @@ static int member_list(const cli_options *o, char **text, const char ***list, si
         (*list)[(*count)++] = p;
     }
     return EXIT_OK;
+}
+
+void cli_ensemble_split(const char *source, const char *name, const double *const *members,
+                        size_t nmembers, size_t n, const ensemble_split_options *options,
+                        ensemble_split *split)
+{
+    slowscan_ensemble_split_test(members, nmembers, n, options, split);
+    if (!split->flags)
+        return;
+    char msg[1024];
+    message_context ctx = slowscan_message_context_default();
+    ctx.source = source;
+    slowscan_message_ensemble_split(msg, sizeof msg, name, split, options, &ctx);
+    cli_warning("%s", msg);
+}
+
+void cli_ensemble_refusal(const cli_options *o, const series_table *t, const ensemble_detail *d)
+{
+    char msg[1024];
+    message_context ctx = slowscan_message_context_default();
+    ctx.source = cli_source_name(t->source);
+    slowscan_message_ensemble_refusal(msg, sizeof msg, d, (const char *const *)t->names,
+                                      o->ensemble.members_text ? "--members" : "--ensemble", &ctx);
+    cli_error("%s", msg);
 }
 
 /* How far each series reaches: the index of its last finite value + 1. */
@@ -185,14 +208,8 @@ static int add_ensemble(const cli_options *o, struct cli_ensemble_run *e, series
         e->roles[e->nroles++] = (ensemble_role){input, t->names[g->members[m]], ROLE_MEMBER,
                                                 e->ngroups - 1, m};
     }
-    slowscan_ensemble_split_test(members, g->nmembers, t->n, &e->split, &info->split);
-    if (info->split.flags) {
-        char msg[1024];
-        message_context ctx = slowscan_message_context_default();
-        ctx.source = info->source;
-        slowscan_message_ensemble_split(msg, sizeof msg, g->name, &info->split, &e->split, &ctx);
-        cli_warning("%s", msg);
-    }
+    cli_ensemble_split(info->source, g->name, members, g->nmembers, t->n, &e->split,
+                       &info->split);
     slowscan_ensemble_mean(members, g->nmembers, t->n, mean);
     if (o->ensemble.anomalies)
         slowscan_ensemble_anomalies(members, g->nmembers, t->n, mean,
@@ -269,15 +286,9 @@ static int group_table(const cli_options *o, struct cli_ensemble_run *e, series_
     int rc = st == SLOWSCAN_OK || d.rule == ENSEMBLE_RULE_NO_MEMBERS ? EXIT_OK
              : st == SLOWSCAN_ENOMEM                                 ? EXIT_INTERNAL
                                                                      : EXIT_BAD_INPUT;
-    if (rc == EXIT_BAD_INPUT) {
-        char msg[1024];
-        message_context ctx = slowscan_message_context_default();
-        ctx.source = cli_source_name(t->source);
-        slowscan_message_ensemble_refusal(msg, sizeof msg, &d, (const char *const *)t->names,
-                                          o->ensemble.members_text ? "--members" : "--ensemble",
-                                          &ctx);
-        cli_error("%s", msg);
-    } else if (rc == EXIT_INTERNAL) {
+    if (rc == EXIT_BAD_INPUT)
+        cli_ensemble_refusal(o, t, &d);
+    else if (rc == EXIT_INTERNAL) {
         cli_error("out of memory");
     }
     if (rc == EXIT_OK && st == SLOWSCAN_OK)
@@ -331,7 +342,7 @@ int cli_ensemble_start(const cli_options *opts, cli_inputs *in, screen_run *run)
     ensemble_grouping how = slowscan_ensemble_grouping_default();
     char *text;
     const char **list;
-    rc = member_list(opts, &text, &list, &how.nmembers);
+    rc = cli_ensemble_member_list(opts, &text, &list, &how.nmembers);
     how.members = list;
     for (size_t f = 0; rc == EXIT_OK && f < in->ntables; f++)
         rc = group_input(opts, e, in, f, &how);

@@ -51,6 +51,18 @@ struct cli_ensemble_run {
     ensemble_split_options split;
 };
 
+/* --members A,B,C into suffixes (in *text, which the caller frees; *list too). */
+int cli_ensemble_member_list(const cli_options *o, char **text, const char ***list,
+                             size_t *count);
+/* The split test of an ensemble's members into *split, and its warning (the library's
+ * message) when it fires. */
+void cli_ensemble_split(const char *source, const char *name, const double *const *members,
+                        size_t nmembers, size_t n, const ensemble_split_options *options,
+                        ensemble_split *split);
+
+/* The library's words for names of t refused as ensembles (slowscan_ensemble_group). */
+void cli_ensemble_refusal(const cli_options *o, const series_table *t, const ensemble_detail *d);
+
 const ensemble_role *ensemble_find(const struct cli_ensemble_run *e, size_t input,
                                    const char *name);
 
