@@ -152,6 +152,8 @@ validate: deps
 
 DEMO_OUT ?= demo-output
 DEMO_ARGS := --deseason 364 --indicators variance,lag1,recovery_trend
+# The forced runs against their control (data/README.md).
+FORCED_ARGS := --response tas --baseline data/forced-control.csv --baseline-mode drift
 demo: deps
 	@$(MAKE) --no-print-directory all
 	@mkdir -p $(DEMO_OUT)
@@ -165,6 +167,15 @@ demo: deps
 	  data/stations.csv
 	$(B)/slowscan screen --deseason 12 --surrogates 999 --threads 2 \
 	  --maps $(DEMO_OUT)/shelf-maps.nc -o $(DEMO_OUT)/shelf-summary.csv data/shelf.nc
+	$(B)/slowscan feedback $(FORCED_ARGS) --flux net_flux --skip 20 --figures $(DEMO_OUT) \
+	  -o $(DEMO_OUT)/feedback-step4x.csv data/forced-step4x.csv
+	$(B)/slowscan timescales $(FORCED_ARGS) --figures $(DEMO_OUT) \
+	  -o $(DEMO_OUT)/timescales-step2x.csv data/forced-step2x.csv
+	$(B)/slowscan emulate $(FORCED_ARGS) --step-forcing 3.7 --forcing data/forced-ramp.csv:forcing \
+	  --compare data/forced-ramp.csv:tas --control data/forced-control.csv:tas \
+	  --figures $(DEMO_OUT) -o $(DEMO_OUT)/emulate-ramp.csv data/forced-step2x.csv
+	$(B)/slowscan screen --ensemble --surrogates 99 -o $(DEMO_OUT)/overshoot-summary.csv \
+	  data/forced-overshoot-high.csv
 	@cp $(DEMO_OUT)/screen-reed_inlet.png doc/demo-figure.png
 	@$(B)/slowscan screen $(DEMO_ARGS) --format table data/stations.csv
 

@@ -47,10 +47,13 @@ int cli_feedback_figure(report_batch *figures, const cli_options *o, const cli_f
                                  axis.unit == TIME_AXIS_NUMBER ? "time" : unit[0] ? "year" : "time",
                                  r->n, r->flux, r->response, count, mid, lam, lo, hi, F, tmin,
                                  tmax, flags, verdict};
-    /* named after the file without its directories: feedback-RUN.csv.png */
-    const char *slash = strrchr(r->source, '/');
-    char name[1024]; /* an ensemble's member: feedback-RUN.csv.m01.png */
-    snprintf(name, sizeof name, "%s%s%s", slash ? slash + 1 : r->source, r->member ? "." : "",
+    /* named after the file without its directories and extension: feedback-RUN.png, an
+     * ensemble's member feedback-RUN-m01.png */
+    const char *slash = strrchr(r->source, '/'), *base = slash ? slash + 1 : r->source;
+    const char *dot = strrchr(base, '.');
+    int stem = dot && dot != base ? (int)(dot - base) : (int)strlen(base);
+    char name[1024];
+    snprintf(name, sizeof name, "%.*s%s%s", stem, base, r->member ? "-" : "",
              r->member ? r->member : "");
     int rc = cli_figure_draw(figures, &slowscan_report_feedback_figure, &data, "feedback", name);
     free(buf);

@@ -96,7 +96,7 @@ static void test_run(const char *run)
     char dir[1024], png[1100];
     scratch("fb-figures", dir, sizeof dir);
     snprintf(args, sizeof args, "--flux rtnt --response tas --figures %s %s", dir, run);
-    snprintf(png, sizeof png, "%s/feedback-fb-run.csv.png", dir);
+    snprintf(png, sizeof png, "%s/feedback-fb-run.png", dir);
     CHECK(feedback(args) == 0 && check_file_exists(png), "--figures writes %s", png);
 }
 
