@@ -4,13 +4,20 @@
 
 #include <math.h>
 #include <plplot.h>
+#include <stdarg.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 
-void report_heading(report_figure *fig, const char *text)
+void report_heading(report_figure *fig, const char *fmt, ...)
 {
-    report_say(fig, text, REPORT_SIZE_HEADING, 0.5, 0.5 * REPORT_PAGE_WIDTH, 10, INK_TEXT);
+    char heading[REPORT_TEXT_MAX], fitted[REPORT_TEXT_MAX];
+    va_list ap;
+    va_start(ap, fmt);
+    vsnprintf(heading, sizeof heading, fmt, ap);
+    va_end(ap);
+    report_say(fig, report_fit(fig, heading, REPORT_SIZE_HEADING, REPORT_PAGE_WIDTH - 20, fitted),
+               REPORT_SIZE_HEADING, 0.5, 0.5 * REPORT_PAGE_WIDTH, 10, INK_TEXT);
 }
 
 /* Calls `run` on every maximal stretch [start, end) where keep(i) holds. */

@@ -21,9 +21,8 @@ static int emulate_draw(report_figure *fig, const void *data)
     const double *all[3] = {d->lower, d->upper, d->actual ? d->actual : d->emulated};
     double lo, hi;
     report_range(all, 3, d->n, &lo, &hi);
-    char heading[REPORT_TEXT_MAX], fitted[REPORT_TEXT_MAX], title[300];
-    snprintf(heading, sizeof heading, "%s: linear-response emulation against the run", d->name);
-    report_heading(fig, report_fit(fig, heading, REPORT_SIZE_HEADING, REPORT_PAGE_WIDTH - 20, fitted));
+    char fitted[REPORT_TEXT_MAX], title[300];
+    report_heading(fig, "%s: linear-response emulation against the run", d->name);
     report_ticks xt, yt;
     report_axes a = report_cell_axes(fig, 0, 0, d->time[0], d->time[d->n - 1], lo, hi, &xt, &yt);
     report_axes_enter(&a);

@@ -76,9 +76,7 @@ static int feedback_draw(report_figure *fig, const void *data)
     const report_feedback_data *d = data;
     if (d->n < 2 || d->windows < 1)
         return SLOWSCAN_ESHORT;
-    char heading[REPORT_TEXT_MAX], fitted[REPORT_TEXT_MAX];
-    snprintf(heading, sizeof heading, "%s: feedback N = F + lambda T in sliding windows", d->name);
-    report_heading(fig, report_fit(fig, heading, REPORT_SIZE_HEADING, REPORT_PAGE_WIDTH - 20, fitted));
+    report_heading(fig, "%s: feedback N = F + lambda T in sliding windows", d->name);
     scatter_panel(fig, d);
     lambda_panel(fig, d);
     return SLOWSCAN_OK;

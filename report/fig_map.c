@@ -157,9 +157,7 @@ static int map_draw(report_figure *fig, const void *data)
     if (d->ntests == 0 || d->nx == 0 || d->ny == 0)
         return SLOWSCAN_EINVAL;
     diverging_scale();
-    char heading[REPORT_TEXT_MAX], fitted[REPORT_TEXT_MAX];
-    snprintf(heading, sizeof heading, "%s: where does the screening find a trend?", d->name);
-    report_heading(fig, report_fit(fig, heading, REPORT_SIZE_HEADING, REPORT_PAGE_WIDTH - 20, fitted));
+    report_heading(fig, "%s: where does the screening find a trend?", d->name);
     double limit = t_limit(d);
     for (size_t j = 0; j < d->ntests; j++)
         map_panel(fig, d, j, d->tests[j].rolling ? 1.0 : limit);

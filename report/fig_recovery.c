@@ -101,9 +101,8 @@ static int recovery_draw(report_figure *fig, const void *data)
     report_range(all, 3, d->n, &lo, &hi);
     lo = fmin(lo, 0.0);
     hi = fmax(hi, 0.05 * (hi - lo)); /* the zero line always shows */
-    char heading[REPORT_TEXT_MAX], title[300], ylabel[200], a1[32], p[32], fitted[REPORT_TEXT_MAX];
-    snprintf(heading, sizeof heading, "%s: recovery rate of the drifting AR(1)", d->name);
-    report_heading(fig, report_fit(fig, heading, REPORT_SIZE_HEADING, REPORT_PAGE_WIDTH - 20, fitted));
+    char title[300], ylabel[200], a1[32], p[32];
+    report_heading(fig, "%s: recovery rate of the drifting AR(1)", d->name);
     report_ticks xt, yt;
     report_axes a = report_cell_axes(fig, 0, 0, d->time[0], time_end(d), lo, hi, &xt, &yt);
     a.area.y1 -= NOTE_ROOM;

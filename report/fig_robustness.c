@@ -229,14 +229,12 @@ static int robustness_draw(report_figure *fig, const void *data)
     size_t tests = tests_of(d), methods = d->ndetrends ? d->ndetrends : 1;
     if (d->nwindows == 0 || d->nbandwidths == 0 || tests == 0)
         return SLOWSCAN_EINVAL;
-    char heading[REPORT_TEXT_MAX], fitted[REPORT_TEXT_MAX];
     if (d->ndetrends == 1)
-        snprintf(heading, sizeof heading, "%s: does the trend hold over windows and bandwidths? "
-                 "(%s detrending)", d->name, d->detrend_labels[0]);
+        report_heading(fig, "%s: does the trend hold over windows and bandwidths? (%s detrending)",
+                       d->name, d->detrend_labels[0]);
     else
-        snprintf(heading, sizeof heading, "%s: does the trend hold over windows, bandwidths and "
-                 "detrending?", d->name);
-    report_heading(fig, report_fit(fig, heading, REPORT_SIZE_HEADING, REPORT_PAGE_WIDTH - 20, fitted));
+        report_heading(fig, "%s: does the trend hold over windows, bandwidths and detrending?",
+                       d->name);
     panel_place at = {0, 0, 0, 0, -1, 1};
     tau_range(d, methods, &at.tau_lo, &at.tau_hi);
     size_t cols = slowscan_report_figure_layout(fig)->cols[0];

@@ -343,9 +343,7 @@ static int series_draw(report_figure *fig, const void *data)
     int st = plan_series(fig, d, &p);
     if (st != SLOWSCAN_OK)
         return st;
-    char heading[REPORT_TEXT_MAX], fitted[REPORT_TEXT_MAX];
-    snprintf(heading, sizeof heading, "%s  (%s)", d->name, d->source);
-    report_heading(fig, report_fit(fig, heading, REPORT_SIZE_HEADING, REPORT_PAGE_WIDTH - 20, fitted));
+    report_heading(fig, "%s  (%s)", d->name, d->source);
     draw_record(fig, d, &p);
     draw_traces(fig, d, &p);
     size_t row = 2;

@@ -71,9 +71,7 @@ static int timescales_draw(report_figure *fig, const void *data)
     const report_timescales_data *d = data;
     if (d->n < 2)
         return SLOWSCAN_ESHORT;
-    char heading[REPORT_TEXT_MAX], fitted[REPORT_TEXT_MAX];
-    snprintf(heading, sizeof heading, "%s: relaxation modes of the step response", d->name);
-    report_heading(fig, report_fit(fig, heading, REPORT_SIZE_HEADING, REPORT_PAGE_WIDTH - 20, fitted));
+    report_heading(fig, "%s: relaxation modes of the step response", d->name);
     draw_modes(fig, d);
     draw_residuals(fig, d);
     return SLOWSCAN_OK;

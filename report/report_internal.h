@@ -192,7 +192,8 @@ const char *report_fit(report_figure *fig, const char *text, report_size size, d
 /* Finite min and max over several arrays, widened by 5% (a flat or empty range gets +-1). */
 void report_range(const double *const *arrays, size_t narrays, size_t n, double *lo, double *hi);
 
-/* The page heading, centred in the top strip. */
-void report_heading(report_figure *fig, const char *text);
+/* The page heading, printf-style, shortened with "..." to the page's width and centred in
+ * the top strip. */
+void report_heading(report_figure *fig, const char *fmt, ...) __attribute__((format(printf, 2, 3)));
 
 #endif
