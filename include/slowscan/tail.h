@@ -47,11 +47,11 @@ tail_options slowscan_tail_options_default(void);
 SLOWSCAN_API
 size_t slowscan_tail_min_surrogates(const tail_options *opt);
 
-/* Why the estimate was, or was not, used. */
+/* Why the estimate was, or was not, used (zero, as in a zeroed result: not tried). */
 typedef enum {
-    TAIL_USED = 0,       /* p is the GPD estimate */
+    TAIL_NOT_TESTED = 0, /* not tried: the method is off, or no statistic or surrogate p */
+    TAIL_USED,           /* p is the GPD estimate */
     TAIL_NOT_NEEDED,     /* a surrogate reaches the observed statistic: the ordinary p */
-    TAIL_NOT_TESTED,     /* no statistic or no surrogate p */
     TAIL_FEW_SURROGATES, /* fewer finite surrogates than slowscan_tail_min_surrogates */
     TAIL_NO_FIT,         /* no maximum-likelihood fit with xi > -1 at any threshold tried */
     TAIL_POOR_FIT,       /* the Anderson-Darling test rejected the fit at every threshold */
@@ -60,7 +60,7 @@ typedef enum {
 } tail_reason;
 
 /* Plain data. Fit fields are NaN (and counts 0) when no fit was tried; for TAIL_POOR_FIT
- * they describe the last threshold tried, for TAIL_BEYOND_END the accepted fit. */
+ * they describe the last threshold fitted, for TAIL_BEYOND_END the accepted fit. */
 typedef struct {
     double p;            /* the p to use: the estimate when used, else p_surrogates */
     double p_surrogates; /* the ordinary (1 + #{s >= obs}) / (M + 1) */
