@@ -128,7 +128,8 @@ typedef struct {
     cli_tail_options tail;   /* screen --tail */
 } cli_options;
 
-/* screen --tail METHOD (screen_tail.c). */
+/* screen --tail METHOD (screen_tail.c), and its help. */
+extern const char cli_tail_help[];
 int cli_set_tail(cli_options *o, const char *name, const char *value);
 
 /* The null model's name in outputs and random streams ("control" with --null control). */

@@ -8,6 +8,25 @@
 #include <math.h>
 #include <string.h>
 
+const char cli_tail_help[] =
+    "  --tail gpd           p below 1/(M+1): where the statistic lies beyond every\n"
+    "                       surrogate, p is ESTIMATED from a generalised Pareto fit to\n"
+    "                       the surrogates' upper tail (Knijnenburg et al. 2009): 250 down\n"
+    "                       to 100 exceedances, at most 10% of the surrogates, kept when an\n"
+    "                       Anderson-Darling test passes at 0.05 (Choulakian & Stephens\n"
+    "                       2001); needs --surrogates 1000 or more. The estimate enters\n"
+    "                       BH and the flags; the summary gains a p_source column\n"
+    "                       (surrogates | tail_estimate), --json the fit of each test.\n"
+    "                       Caution: it extrapolates beyond the surrogates drawn and\n"
+    "                       assumes the null's tail is GPD-shaped above the threshold; it\n"
+    "                       is not an exact Monte Carlo p. Measured on i.i.d. normal nulls\n"
+    "                       (300 replicates each): at M = 10000 the share of p < 1e-4 is\n"
+    "                       0.85 x 1e-4, of p < 1e-5 3.0 x, of p < 1e-6 10 x nominal; at\n"
+    "                       M = 1000 the share of p < 1e-4 is 2.7 x nominal: read such p\n"
+    "                       as orders of magnitude, and draw more surrogates for claims\n"
+    "                       that hang on one test. Where the fitted tail ends (shape < 0)\n"
+    "                       before the statistic, or no fit passes, p stays 1/(M+1)\n";
+
 int cli_set_tail(cli_options *o, const char *n, const char *v)
 {
     if (strcmp(v, "gpd") != 0 && strcmp(v, "none") != 0) {
