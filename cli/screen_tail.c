@@ -22,7 +22,7 @@ const char cli_tail_help[] =
     "                       is not an exact Monte Carlo p. Measured on i.i.d. normal nulls\n"
     "                       (300 replicates each): at M = 10000 the share of p < 1e-4 is\n"
     "                       0.85 x 1e-4, of p < 1e-5 3.0 x, of p < 1e-6 10 x nominal; at\n"
-    "                       M = 1000 the share of p < 1e-4 is 2.7 x nominal: read such p\n"
+    "                       M = 1000 the share of p < 1e-4 is 2.9 x nominal: read such p\n"
     "                       as orders of magnitude, and draw more surrogates for claims\n"
     "                       that hang on one test. Where the fitted tail ends (shape < 0)\n"
     "                       before the statistic, or no fit passes, p stays 1/(M+1)\n";

@@ -101,8 +101,8 @@ double slowscan_tail_anderson_darling(const double *z, size_t n, double xi, doub
 
 /* The critical value of A^2 at `level` (0.001 to 0.5) when both GPD parameters are
  * estimated: Choulakian & Stephens 2001 (Technometrics 43:478), Table 2, case 3, linear in
- * xi between its rows (xi from -0.9 to 0.5; outside, the nearest row) and log-linear in the
- * level between its columns. */
+ * xi between its rows (xi from -0.5 to 0.9; outside, the nearest row) and log-linear in the
+ * level between its columns (how its rows are read: see surrogates/tail.c). */
 SLOWSCAN_API
 double slowscan_tail_ad_critical(double xi, double level);
 /* The p of an A^2 from the same table, log-linear between columns, clamped to [0.001, 0.5]. */
