@@ -72,6 +72,8 @@ void cli_screen_tail_cell(FILE *fp, const cli_options *o, const char *separator,
                           const screen_test *t);
 void cli_screen_tail_parameters(FILE *fp, const cli_options *o);
 void cli_screen_tail_json(FILE *fp, const cli_options *o, const screen_test *t);
+/* A figure's verdict for test t, saying when its p is the tail estimate. */
+const char *cli_screen_tail_verdict(const char *verdict, const screen_test *t);
 
 /* Writes the run as JSON: every parameter needed to reproduce it, then the rows. */
 int cli_screen_json(FILE *fp, const cli_options *opts, screen_run *run);

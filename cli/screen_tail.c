@@ -104,3 +104,16 @@ void cli_screen_tail_json(FILE *fp, const cli_options *o, const screen_test *t)
     }
     fprintf(fp, ", \"exceedances\": %zu, \"surrogates\": %zu}", r->exceedances, r->surrogates);
 }
+
+const char *cli_screen_tail_verdict(const char *verdict, const screen_test *t)
+{
+    if (!t->tail.used)
+        return verdict;
+    /* the figure's line of a test: its p is labelled as the tail estimate it is (the
+     * words fit the line beside the p and q of the widest tests) */
+    if (strcmp(verdict, "flagged: rising") == 0)
+        return "flagged: rising (tail p)";
+    if (strcmp(verdict, "flagged: falling") == 0)
+        return "flagged: falling (tail p)";
+    return "not flagged (tail p)";
+}
