@@ -240,7 +240,8 @@ static void check_fallbacks(void)
     for (size_t j = 0; j < M; j++) /* the top tenth all tied: no fit */
         v[j] = j < 900 ? (double)j / 900 : 2.0;
     slowscan_tail_estimate(&o, v, M, 10, p0, &t);
-    CHECK(t.reason == TAIL_NO_FIT && t.p == p0, "tied tail: %s", slowscan_tail_reason_name(t.reason));
+    CHECK(t.reason == TAIL_NO_FIT && t.p == p0, "tied tail: %s",
+          slowscan_tail_reason_name(t.reason));
     for (size_t j = 0; j < M; j++) /* a tail of two clumps, 60 close above 1, 40 at 3-4 */
         v[j] = j < 900 ? gsl_rng_uniform(r)
                        : 1 + (j < 960 ? 0.02 * gsl_rng_uniform(r) : 2 + gsl_rng_uniform(r));
@@ -370,7 +371,8 @@ static void check_null_screen(void)
     CHECK(check_run(cmd, NULL, NULL) == 0, "screen of null series runs");
     char *summary = check_read_file(out);
     size_t tests = 0, below = 0, floor_hits = 0, estimates = 0;
-    for (char *line = summary ? strchr(summary, '\n') : NULL; line && line[1]; line = strchr(line + 1, '\n')) {
+    char *line = summary ? strchr(summary, '\n') : NULL;
+    for (; line && line[1]; line = strchr(line + 1, '\n')) {
         char *f = line + 1;
         for (int c = 0; c < 7 && f; c++)
             f = strchr(f, ',') ? strchr(f, ',') + 1 : NULL;
