@@ -306,6 +306,23 @@ static void check_cli_same(const char *csv, const char *out)
     free(one), free(three), free(spilled);
 }
 
+/* --maps: the p maps' long_name says p may be a tail estimate (python3-netcdf4), and the
+ * maps agree with the summary (tests/reference/netcdf_maps.py). */
+static void check_maps(void)
+{
+    const char *maps = check_tmp_path("tail_maps.nc"), *out = check_tmp_path("tail_maps.csv");
+    char cmd[2048];
+    double ref[8];
+    snprintf(cmd, sizeof cmd, "%s screen --deseason 12 --indicators variance --surrogates 1000 "
+             "--tail gpd --quiet --maps %s -o %s data/shelf.nc", check_binary(), maps, out);
+    CHECK(check_run(cmd, NULL, NULL) == 0, "--tail with --maps runs");
+    snprintf(cmd, sizeof cmd, "maps_long_names.py '%s' 'generalised Pareto'", maps);
+    CHECK(check_python(cmd, ref, 2) == 2 && ref[0] == 1 && ref[1] == 1,
+          "the p map says it may hold tail estimates");
+    snprintf(cmd, sizeof cmd, "netcdf_maps.py '%s' '%s'", maps, out);
+    CHECK(check_python(cmd, ref, 8) >= 4 && ref[0] > 0 && ref[1] == 0, "maps match the summary");
+}
+
 static void check_cli(void)
 {
     const char *csv = check_tmp_path("tail.csv"), *out = check_tmp_path("tail_out.csv");
@@ -334,6 +351,10 @@ static void check_cli(void)
           strstr(js, "\"anderson_darling_critical\": ") && strstr(js, "\"method\": \"gpd\""),
           "JSON has the fit of each test");
     free(summary), free(js);
+    /* the JSON read by Python's json module, its p and q those of the summary */
+    double ref[4];
+    snprintf(cmd, sizeof cmd, "json_matches_csv.py '%s' '%s'", json, out);
+    CHECK(check_python(cmd, ref, 4) == 4 && ref[0] == 6 && ref[1] == 1, "JSON matches CSV");
     snprintf(cmd, sizeof cmd, "%s screen --surrogates 1000 --tail gpd --format table %s",
              check_binary(), csv);
     CHECK(check_run(cmd, &o, NULL) == 0 && o && strstr(o, " p_source\n") &&
@@ -407,5 +428,6 @@ void suite_tail(void)
     check_size();
     check_fallbacks();
     check_cli();
+    check_maps();
     check_null_screen();
 }
