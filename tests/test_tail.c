@@ -306,6 +306,49 @@ static void check_cli_same(const char *csv, const char *out)
     free(one), free(three), free(spilled);
 }
 
+/* An AR(1) whose memory falls from 0.97 to 0.1. */
+static double falling_ar1(check_rng *r, size_t k, size_t i, size_t n, double *state)
+{
+    (void)k;
+    return *state = (0.97 - 0.87 * (double)i / (double)(n - 1)) * *state + check_rng_gaussian(r);
+}
+
+/* The p of recovery_trend in screen's summary under --alternative ALT, NAN when its p did
+ * not come from the tail estimate. */
+static double tail_p_of(const char *csv, const char *alternative)
+{
+    char cmd[2048], *o = NULL;
+    snprintf(cmd, sizeof cmd, "%s screen --surrogates 1000 --tail gpd --alternative %s "
+             "--indicators recovery_trend %s", check_binary(), alternative, csv);
+    double p = NAN;
+    char *row = check_run(cmd, &o, NULL) == 0 && o ? strstr(o, "recovery_trend,") : NULL;
+    if (row && strstr(row, ",falling,tail_estimate")) {
+        for (int c = 0; c < 6; c++)
+            row = strchr(row, ',') + 1;
+        p = strtod(row, NULL);
+    }
+    free(o);
+    return p;
+}
+
+/* The null turned toward the alternative: a falling memory's drift t far below its null is
+ * estimated under "decreasing" and "two-sided", never under "increasing" (where its p is
+ * near 1). The two estimates are of different tails (of -t, and of |t| whose threshold lies
+ * lower on each side) and need not keep the order of exact p-values: here 6.5e-5 one-sided
+ * and 9.4e-7 two-sided, the spread of extrapolating from 100 exceedances (see
+ * check_exact_tail). */
+static void check_directions(void)
+{
+    const char *csv = check_tmp_path("tail_falling.csv");
+    check_write_series_csv(csv, 1, 500, falling_ar1, 5);
+    double down = tail_p_of(csv, "decreasing"), both = tail_p_of(csv, "two-sided");
+    CHECK(down < 1.0 / 1001 && both < 1.0 / 1001, "falling: tail estimates %g and %g", down,
+          both);
+    CHECK(isnan(tail_p_of(csv, "increasing")), "no estimate against the other side");
+    printf("  falling memory, recovery_trend: tail p %.3g decreasing, %.3g two-sided\n", down,
+           both);
+}
+
 /* --maps: the p maps' long_name says p may be a tail estimate (python3-netcdf4), and the
  * maps agree with the summary (tests/reference/netcdf_maps.py). */
 static void check_maps(void)
@@ -429,5 +472,6 @@ void suite_tail(void)
     check_fallbacks();
     check_cli();
     check_maps();
+    check_directions();
     check_null_screen();
 }
