@@ -220,8 +220,9 @@ static int test_null(screen_workspace *ws, const screen_config *cfg, const scree
         if (!isnan(t->statistic))
             t->p_value = slowscan_significance_p_value(t->statistic, ws->null + j * m, m,
                                               alternative_of(cfg, j), &t->null_used);
-        if (cfg->tail.method != TAIL_OFF && !isnan(t->p_value))
-            st = tail_estimate(ws, cfg, j, t);
+        int tail_st = cfg->tail.method != TAIL_OFF && !isnan(t->p_value)
+                          ? tail_estimate(ws, cfg, j, t) : SLOWSCAN_OK;
+        st = st != SLOWSCAN_OK ? st : tail_st; /* only options out of their domain fail */
         null_quantiles(ws, ws->null + j * m, m, t);
     }
     return st;
