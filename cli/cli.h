@@ -44,6 +44,12 @@ typedef struct {
     int anomalies;            /* --member-anomalies: members minus the ensemble mean */
 } cli_ensemble_options;
 
+/* screen --tail gpd (screen_tail.c). */
+typedef struct {
+    int method;       /* tail_method: TAIL_OFF unless given */
+    const char *text; /* as given, NULL: not given */
+} cli_tail_options;
+
 typedef struct {
     const char *command;
     /* input */
@@ -120,7 +126,12 @@ typedef struct {
     cli_feedback_options feedback; /* slowscan feedback (cli/feedback.h) */
     cli_forced_options forced; /* shared by feedback, timescales, emulate (forced.h) */
     cli_modes_options modes; /* timescales, emulate (modes.h) */
+    cli_tail_options tail;   /* screen --tail */
 } cli_options;
+
+/* screen --tail METHOD (screen_tail.c), and its help. */
+extern const char cli_tail_help[];
+int cli_set_tail(cli_options *o, const char *name, const char *value);
 
 /* The null model's name in outputs and random streams ("control" with --null control). */
 const char *cli_null_name(const cli_options *opts);

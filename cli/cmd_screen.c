@@ -496,6 +496,7 @@ static int write_csv_row(const screen_row *row, size_t index, void *context)
         fprintf(w->out, ",%s,", row->role);
         cli_put_number(w->out, row->share_flagged);
     }
+    cli_screen_tail_cell(w->out, w->opts, ",", &row->result);
     fputc('\n', w->out);
     return EXIT_OK;
 }
@@ -516,10 +517,14 @@ static int write_table_row(const screen_row *row, size_t index, void *context)
     char tau[32], p[32], q[32], name[1024];
     snprintf(name, sizeof name, "%s%s%s", cli_several_inputs(w->opts) ? row->file : "",
              cli_several_inputs(w->opts) ? ":" : "", row->series);
-    fprintf(w->out, "%-*s  %-14s %9s %10s %10s  %s\n", w->width, name,
+    /* with --tail the flag is padded to align the p_source column after it */
+    fprintf(w->out, w->opts->tail.method ? "%-*s  %-14s %9s %10s %10s  %-12s"
+                                         : "%-*s  %-14s %9s %10s %10s  %s", w->width, name,
             slowscan_screen_test_name(row->result.kind), fixed(tau, row->result.statistic, 3, 1),
             fixed(p, row->result.p_value, 4, 0), fixed(q, row->q_value, 4, 0),
             slowscan_screen_flag_name(row->flag));
+    cli_screen_tail_cell(w->out, w->opts, " ", &row->result);
+    fputc('\n', w->out);
     return EXIT_OK;
 }
 
@@ -529,13 +534,15 @@ static int write_summary(const cli_options *opts, screen_run *run)
     if (strcmp(opts->format, "table") != 0) {
         cli_put_header(run->out, opts, opts->ensemble.on
                        ? "series,indicator,n,window,bandwidth,tau,statistic,p_value,"
-                         "q_value,null,surrogates,flag,role,share_flagged\n"
+                         "q_value,null,surrogates,flag,role,share_flagged"
                        : "series,indicator,n,window,bandwidth,tau,statistic,p_value,"
-                         "q_value,null,surrogates,flag\n");
+                         "q_value,null,surrogates,flag");
+        fprintf(run->out, "%s\n", cli_screen_tail_columns(opts));
         return cli_screen_each_row(run, write_csv_row, &w);
     }
-    fprintf(run->out, "%-*s  %-14s %9s %10s %10s  %s\n", w.width, "series", "indicator",
-            "statistic", "p", "q", "flag");
+    fprintf(run->out, opts->tail.method ? "%-*s  %-14s %9s %10s %10s  %-12s p_source\n"
+                                        : "%-*s  %-14s %9s %10s %10s  %s\n",
+            w.width, "series", "indicator", "statistic", "p", "q", "flag");
     return cli_screen_each_row(run, write_table_row, &w);
 }
 
@@ -563,6 +570,8 @@ int cmd_screen(const cli_options *opts)
                   "(mpirun -np K with K > 1); write the rolling paths with one process");
         return EXIT_BAD_INPUT;
     }
+    if (cli_screen_tail_check(opts) != EXIT_OK)
+        return EXIT_BAD_INPUT;
     screen_run run = {0};
     run.several = cli_several_inputs(opts);
     cli_screen_config(opts, &run.cfg);

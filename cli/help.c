@@ -249,6 +249,7 @@ static void help_screen(FILE *out)
           "                       after a kill and the journaled series are taken back, the\n"
           "                       rest computed: the outputs of an uninterrupted run. The\n"
           "                       journal is removed once the outputs are in place\n", out);
+    fputs(cli_tail_help, out);
     fputs(ensemble_options, out);
     fputs(figure_options, out);
     fputs("                       screen-SERIES: the record and its trend (first window\n"

@@ -358,6 +358,7 @@ static const option_spec options[] = {
     {"--fractions", 1, C_ROBUST, set_fractions},
     {"--detrends", 1, C_ROBUST, cli_set_detrends},
     {"--format", 1, C_SCREEN, set_format},
+    {"--tail", 1, C_SCREEN, cli_set_tail},
     {"--ensemble", 0, C_SCREEN | C_FEEDBACK | C_TIMESCALES, set_ensemble},
     {"--members", 1, C_SCREEN | C_FEEDBACK | C_TIMESCALES, set_ensemble},
     {"--member-anomalies", 0, C_SCREEN, set_ensemble},

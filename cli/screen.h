@@ -62,6 +62,19 @@ size_t cli_screen_series_rows(screen_run *run, size_t k, screen_row *rows, int *
 typedef int (*screen_row_visitor)(const screen_row *row, size_t index, void *context);
 int cli_screen_each_row(screen_run *run, screen_row_visitor visit, void *context);
 
+/* screen --tail (screen_tail.c): the refusal of too few surrogates (message printed); the
+ * summary's extra column (",p_source" with --tail, else "") and a test's cell after
+ * `separator`; the JSON's tail parameters and a test's fit. Without --tail all write nothing,
+ * so outputs stay as they were. */
+int cli_screen_tail_check(const cli_options *o);
+const char *cli_screen_tail_columns(const cli_options *o);
+void cli_screen_tail_cell(FILE *fp, const cli_options *o, const char *separator,
+                          const screen_test *t);
+void cli_screen_tail_parameters(FILE *fp, const cli_options *o);
+void cli_screen_tail_json(FILE *fp, const cli_options *o, const screen_test *t);
+/* A figure's verdict for test t, saying when its p is the tail estimate. */
+const char *cli_screen_tail_verdict(const char *verdict, const screen_test *t);
+
 /* Writes the run as JSON: every parameter needed to reproduce it, then the rows. */
 int cli_screen_json(FILE *fp, const cli_options *opts, screen_run *run);
 

@@ -37,7 +37,7 @@ static report_series_test test_of(const screen_row *row, const double *path)
                             has_null ? r->quantile_tail[0] : NAN, has_null ? r->quantile[0] : NAN,
                             has_null ? r->quantile[2] : NAN, has_null ? r->quantile[4] : NAN,
                             has_null ? r->quantile_tail[1] : NAN, r->null_used,
-                            verdict(row->flag),
+                            cli_screen_tail_verdict(verdict(row->flag), r),
                             row->flag == SCREEN_FLAG_RISING || row->flag == SCREEN_FLAG_FALLING};
     return t;
 }

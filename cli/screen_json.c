@@ -91,7 +91,7 @@ static void write_leakage(FILE *fp, const screen_row *row)
     fputc('}', fp);
 }
 
-static void write_row(FILE *fp, const screen_row *row, int several)
+static void write_row(FILE *fp, const cli_options *o, const screen_row *row, int several)
 {
     fputs("    {", fp);
     if (row->file && several) {
@@ -126,6 +126,7 @@ static void write_row(FILE *fp, const screen_row *row, int several)
         cli_json_number(fp, row->result.null_used ? row->result.quantile[q] : NAN);
     }
     fputs("}", fp);
+    cli_screen_tail_json(fp, o, &row->result);
     if (row->role) { /* --ensemble */
         fprintf(fp, ", \"role\": \"%s\", \"share_flagged\": ", row->role);
         cli_json_number(fp, row->share_flagged);
@@ -135,6 +136,7 @@ static void write_row(FILE *fp, const screen_row *row, int several)
 
 typedef struct {
     FILE *fp;
+    const cli_options *opts;
     size_t rows;
     int several; /* more than one input: each row names its file */
 } json_rows;
@@ -142,7 +144,7 @@ typedef struct {
 static int put_row(const screen_row *row, size_t index, void *context)
 {
     const json_rows *j = context;
-    write_row(j->fp, row, j->several);
+    write_row(j->fp, j->opts, row, j->several);
     fputs(index + 1 < j->rows ? ",\n" : "\n", j->fp);
     return EXIT_OK;
 }
@@ -151,9 +153,10 @@ int cli_screen_json(FILE *fp, const cli_options *opts, screen_run *run)
 {
     fputs("{\n", fp);
     write_parameters(fp, opts);
+    cli_screen_tail_parameters(fp, opts);
     cli_ensemble_json(fp, run);
     fputs("  \"results\": [\n", fp);
-    json_rows rows = {fp, slowscan_screen_store_tests(run->store) + cli_ensemble_rows(run),
+    json_rows rows = {fp, opts, slowscan_screen_store_tests(run->store) + cli_ensemble_rows(run),
                       cli_several_inputs(opts)};
     int rc = cli_screen_each_row(run, put_row, &rows);
     fputs("  ]\n}\n", fp);

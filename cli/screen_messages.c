@@ -98,6 +98,7 @@ void cli_screen_config(const cli_options *o, screen_config *cfg)
     cfg->fdr = o->fdr;
     cfg->alternative = o->alternative;
     cfg->threads = o->threads > 0 ? (size_t)o->threads : 1;
+    cfg->tail.method = (tail_method)o->tail.method;
 }
 
 /* The library's message context for this command: the series, and the options as its user

@@ -29,6 +29,7 @@ struct netcdf_maps {
     size_t ntests;
     test_maps *maps;       /* [variable * ntests + test] */
     int written;
+    int tail_estimates; /* the spec's */
 };
 
 /* A dimension of the output: an input dimension with its selection and coordinate. */
@@ -102,6 +103,7 @@ int slowscan_netcdf_maps_open(const char *path, const netcdf_maps_spec *spec,
         return io_fail(err, SLOWSCAN_ENOMEM, "%s: out of memory", path);
     }
     m->ntests = spec->ntests;
+    m->tail_estimates = spec->tail_estimates;
     memcpy(m->tests, spec->tests, spec->ntests * sizeof *spec->tests);
     int st = slowscan_netcdf_open(spec->input, &spec->read, &m->reader, err);
     if (st == SLOWSCAN_OK && (st = alloc_maps(m)) != SLOWSCAN_OK)
@@ -246,7 +248,7 @@ static void statistic_words(int test, const char *var, char *buf, size_t size)
 
 /* One map variable: float with _FillValue and units "1", or the byte flag. */
 static int define_map(int out, const char *var, int test, const char *what, const int *dimids,
-                      int ndims, int *varid)
+                      int ndims, int tail, int *varid)
 {
     char name[NC_MAX_NAME + 1], words[512];
     const char *tname = slowscan_screen_test_name(test);
@@ -256,8 +258,9 @@ static int define_map(int out, const char *var, int test, const char *what, cons
     if (strcmp(what, "statistic") == 0)
         statistic_words(test, var, words, sizeof words);
     else if (strcmp(what, "p_value") == 0)
-        snprintf(words, sizeof words, "p-value of the %s test of %s against surrogates", tname,
-                 var);
+        snprintf(words, sizeof words, "p-value of the %s test of %s against surrogates%s", tname,
+                 var, tail ? "; where the statistic lies beyond every surrogate, an estimate "
+                             "from a generalised Pareto fit to their upper tail" : "");
     else if (strcmp(what, "q_value") == 0)
         snprintf(words, sizeof words, "Benjamini-Hochberg q-value of the %s test of %s over "
                  "every test of the run", tname, var);
@@ -306,6 +309,7 @@ static int define_maps(const netcdf_maps *m, int out, const out_dim *dims, size_
         for (size_t j = 0; j < m->ntests; j++)
             for (int k = 0; k < 4 && st == NC_NOERR; k++)
                 st = define_map(out, var->name, m->tests[j], MAP_KINDS[k], dimids, var->ncoords,
+                                m->tail_estimates,
                                 &varids[(v * m->ntests + j) * 4 + (size_t)k]);
     }
     return st;

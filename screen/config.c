@@ -30,6 +30,7 @@ screen_config slowscan_screen_config_default(void)
     c.fdr = 0.05;
     c.alternative = -1; /* per test: rising, or two-sided for skewness */
     c.threads = 1;
+    c.tail = slowscan_tail_options_default();
     return c;
 }
 

@@ -168,6 +168,24 @@ static int draw_null(screen_workspace *ws, const screen_config *cfg, const scree
     return st;
 }
 
+/* The tail estimate of test j (tail.h): its null and statistic turned so that larger is
+ * more extreme, as the test's alternative counts "at least as extreme". With it, p_value is
+ * the estimate where one is used. */
+static int tail_estimate(screen_workspace *ws, const screen_config *cfg, size_t j,
+                         screen_test *t)
+{
+    size_t m = cfg->surrogates;
+    const double *null = ws->null + j * m;
+    significance_alternative alt = alternative_of(cfg, j);
+    double sign = alt == ALTERNATIVE_DECREASING ? -1.0 : 1.0;
+    for (size_t k = 0; k < m; k++)
+        ws->sorted[k] = alt == ALTERNATIVE_TWO_SIDED ? fabs(null[k]) : sign * null[k];
+    double observed = alt == ALTERNATIVE_TWO_SIDED ? fabs(t->statistic) : sign * t->statistic;
+    int st = slowscan_tail_estimate(&cfg->tail, ws->sorted, m, observed, t->p_value, &t->tail);
+    t->p_value = t->tail.p;
+    return st;
+}
+
 /* The null distribution of every test over the surrogates, and the p-values. */
 static int test_null(screen_workspace *ws, const screen_config *cfg, const screen_prepared *ps,
                      screen_result *out, screen_detail *d)
@@ -202,9 +220,12 @@ static int test_null(screen_workspace *ws, const screen_config *cfg, const scree
         if (!isnan(t->statistic))
             t->p_value = slowscan_significance_p_value(t->statistic, ws->null + j * m, m,
                                               alternative_of(cfg, j), &t->null_used);
+        int tail_st = cfg->tail.method != TAIL_OFF && !isnan(t->p_value)
+                          ? tail_estimate(ws, cfg, j, t) : SLOWSCAN_OK;
+        st = st != SLOWSCAN_OK ? st : tail_st; /* only options out of their domain fail */
         null_quantiles(ws, ws->null + j * m, m, t);
     }
-    return SLOWSCAN_OK;
+    return st;
 }
 
 int slowscan_screen_test_series(screen_workspace *ws, const screen_config *cfg, const screen_prepared *ps,
@@ -221,7 +242,10 @@ int slowscan_screen_test_series(screen_workspace *ws, const screen_config *cfg, 
                            .surrogates = cfg->surrogates,
                            .quantile = {NAN, NAN, NAN, NAN, NAN},
                            .quantile_tail = {NAN, NAN},
-                           .reason = SCREEN_REASON_NO_VARIATION};
+                           .reason = SCREEN_REASON_NO_VARIATION,
+                           .tail = {.p = NAN, .p_surrogates = NAN, .xi = NAN, .sigma = NAN,
+                                    .threshold = NAN, .ad = NAN, .ad_critical = NAN,
+                                    .ad_p = NAN}};
         if (!ps->constant) {
             if (j < cfg->nindicators)
                 t->tau = t->statistic = trend_of(ws, ps, paths[j], &t->reason);

@@ -47,6 +47,7 @@ void suite_feedback_rates(void);
 void suite_timescales(void);
 void suite_emulate(void);
 void suite_forced(void);
+void suite_tail(void);
 
 static const struct {
     const char *name;
@@ -65,6 +66,7 @@ static const struct {
     {"store", suite_store},           {"progress", suite_progress},
     {"series_calls", suite_series_calls},
     {"timescales", suite_timescales}, {"emulate", suite_emulate}, {"forced", suite_forced},
+    {"tail", suite_tail},
     {"calendar", suite_calendar},
     {"time_column", suite_time_column}, {"netcdf", suite_netcdf},
     {"maps", suite_maps},

@@ -40,6 +40,8 @@ typedef struct {
     const int *tests;          /* ntests test kinds (screen_test_kind) in the run's order */
     size_t ntests;
     const char *history;       /* the command line that made the maps (NULL: none) */
+    int tail_estimates;        /* 1: p may be a tail estimate (screen_config.tail, tail.h);
+                                  the p maps' long_name says so */
 } netcdf_maps_spec;
 
 typedef struct netcdf_maps netcdf_maps;

@@ -18,6 +18,7 @@
 #include "slowscan/detrend.h"
 #include "slowscan/indicators.h"
 #include "slowscan/surrogates.h"
+#include "slowscan/tail.h"
 
 #include <stddef.h>
 
@@ -64,6 +65,8 @@ typedef struct {
     double fdr;                    /* 0.05 */
     int alternative;               /* significance_alternative; -1: each test's direction */
     size_t threads;                /* surrogate threads of one series: 1 */
+    tail_options tail;             /* method TAIL_OFF; TAIL_GPD: p beyond the surrogates
+                                      estimated from their tail (tail.h), p_value takes it */
 } screen_config;
 
 SLOWSCAN_API
@@ -122,6 +125,8 @@ typedef struct {
     double quantile[SCREEN_QUANTILES];
     double quantile_tail[SCREEN_TAIL_QUANTILES];
     screen_reason reason;   /* why statistic (or p) is NaN */
+    tail_result tail;       /* cfg->tail: the tail estimate, and whether p_value is it
+                               (tail.used); reason TAIL_NOT_TESTED otherwise */
 } screen_test;
 
 /* How much a series varies. */
