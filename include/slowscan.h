@@ -14,6 +14,7 @@
 #include "slowscan/surrogates.h"
 #include "slowscan/null_trend.h"
 #include "slowscan/significance.h"
+#include "slowscan/sequential.h"
 #include "slowscan/ar1_drift.h"
 #include "slowscan/calendar.h"
 #include "slowscan/time_units.h"
