@@ -203,90 +203,6 @@ int cli_screen_each_row(screen_run *run, screen_row_visitor visit, void *context
                                           : rc;
 }
 
-/* The series of the inputs in order, as the batch driver takes them. A grid's cells come a
- * table at a time, and a table is gone when the next is read, so each of its series is
- * copied for the workers until the driver releases it. */
-typedef struct {
-    char *name, *source, *time_name;
-    double *time, *values;
-} series_copy;
-
-typedef struct {
-    cli_cursor cursor;
-    screen_input *controls; /* one per series with --null control (borrowed arrays) */
-    series_copy *copies;    /* one per series of a grid, freed on release */
-    screen_origin *origins; /* one per series: where it came from */
-    size_t rank, ranks;     /* a shared run: this process takes series i with i mod ranks = rank */
-    size_t walked;          /* series of the inputs walked so far */
-    size_t skip;            /* series the journal gave back (--resume): skipped */
-    int rc;                 /* the cursor's own failure (its message printed) */
-} input_source;
-
-static int copy_series(series_copy *c, const series_table *t, size_t k)
-{
-    c->name = strdup(t->names[k]);
-    c->source = strdup(cli_source_name(t->source));
-    c->time_name = strdup(t->time_name);
-    c->time = malloc(t->n * sizeof *c->time);
-    c->values = malloc(t->n * sizeof *c->values);
-    if (!c->name || !c->source || !c->time_name || !c->time || !c->values)
-        return SLOWSCAN_ENOMEM;
-    memcpy(c->time, t->time, t->n * sizeof *c->time);
-    memcpy(c->values, t->values[k], t->n * sizeof *c->values);
-    return SLOWSCAN_OK;
-}
-
-static void release_series(void *state, size_t index)
-{
-    input_source *src = state;
-    if (!src->copies)
-        return;
-    series_copy *c = &src->copies[index];
-    free(c->name), free(c->source), free(c->time_name), free(c->time), free(c->values);
-    memset(c, 0, sizeof *c);
-}
-
-static int next_series(void *state, size_t index, screen_input *out, screen_detail *detail)
-{
-    (void)detail;
-    input_source *src = state;
-    const series_table *t;
-    size_t k;
-    int rc;
-    do /* the journal's series and those of other processes are skipped, unread */
-        rc = cli_cursor_next(&src->cursor, &t, &k);
-    while (rc == EXIT_OK && (src->skip > 0 ? (src->skip--, 1)
-                                           : src->walked++ % src->ranks != src->rank));
-    if (rc == CLI_CURSOR_END)
-        return SCREEN_BATCH_END;
-    if (rc != EXIT_OK) {
-        src->rc = rc;
-        return SLOWSCAN_EINVAL;
-    }
-    *out = (screen_input){.name = t->names[k], .source = cli_source_name(t->source),
-                          .time_name = t->time_name, .time = t->time, .values = t->values[k],
-                          .n = t->n, .control = NULL, .axis = t->axis};
-    if (t == &src->cursor.chunk) {
-        series_copy *c = &src->copies[index];
-        if (copy_series(c, t, k) != SLOWSCAN_OK) {
-            cli_error("out of memory");
-            src->rc = EXIT_INTERNAL;
-            return SLOWSCAN_ENOMEM;
-        }
-        out->name = c->name, out->source = c->source, out->time_name = c->time_name;
-        out->time = c->time, out->values = c->values;
-    }
-    screen_origin *origin = &src->origins[index];
-    *origin = (screen_origin){.input = src->cursor.input - 1, .gridded = t->grid != NULL};
-    if (t->grid)
-        origin->position = t->grid[k];
-    if (src->controls) {
-        src->controls[index] = cli_control_input(src->cursor.in, t->names[k]);
-        out->control = &src->controls[index];
-    }
-    return SLOWSCAN_OK;
-}
-
 static int put_series(void *state, const screen_batch_item *item)
 {
     ordered_sink *sink = state;
@@ -350,21 +266,14 @@ static void series_progress(void *state, const screen_progress *progress)
 static int screen_share(const cli_options *opts, const cli_inputs *in, ordered_sink *sink,
                         input_source *src)
 {
-    int grids = 0;
-    for (size_t f = 0; f < in->ntables; f++) /* inputs read a table at a time */
-        grids |= in->grid_cells[f] > 0 || in->columns[f] != NULL;
     size_t all = sink->total;
-    sink->origins = src->origins = calloc(all + 1, sizeof *src->origins);
-    if (!src->origins ||
-        (in->has_control && !(src->controls = calloc(all + 1, sizeof *src->controls))) ||
-        (grids && !(src->copies = calloc(all + 1, sizeof *src->copies)))) {
-        cli_error("out of memory");
+    if (cli_screen_source_arrays(in, src, all) != EXIT_OK)
         return EXIT_INTERNAL;
-    }
+    sink->origins = src->origins;
     /* this process's series: every ranks-th from its own rank, after the journal's */
     size_t left = all - src->skip;
     size_t mine = left / src->ranks + (src->rank < left % src->ranks);
-    screen_source source = {next_series, release_series, mine, src};
+    screen_source source = {cli_screen_next_series, cli_screen_release_series, mine, src};
     /* Only --rolling needs the paths handed on: the figures read the null's quantiles from
      * the results and prepare the series again once the q-values exist. */
     screen_sink ordered = {.put = put_series, .state = sink,
@@ -446,12 +355,7 @@ static int run_series(const cli_options *opts, const cli_inputs *in, void *conte
                    : screen_share(opts, in, &sink, &src);
     if (rc == EXIT_OK && (!share || share->rank == 0))
         cli_report_leakage(opts, &sink.leakage);
-    for (size_t i = 0; src.copies && i <= sink.total; i++)
-        release_series(&src, i);
-    cli_cursor_end(&src.cursor);
-    free(src.origins);
-    free(src.controls);
-    free(src.copies);
+    cli_screen_source_end(&src, sink.total);
     free(sink.record);
     return rc;
 }

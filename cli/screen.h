@@ -39,6 +39,33 @@ typedef struct {
 } screen_row;
 
 
+/* The series of the inputs in order, as the batch driver takes them. A grid's cells come a
+ * table at a time, and a table is gone when the next is read, so each of its series is
+ * copied for the workers until the driver releases it. */
+typedef struct {
+    char *name, *source, *time_name;
+    double *time, *values;
+} series_copy;
+
+typedef struct {
+    cli_cursor cursor;
+    screen_input *controls; /* one per series with --null control (borrowed arrays) */
+    series_copy *copies;    /* one per series of a grid, freed on release */
+    screen_origin *origins; /* one per series: where it came from */
+    size_t rank, ranks;     /* a shared run: this process takes series i with i mod ranks = rank */
+    size_t walked;          /* series of the inputs walked so far */
+    size_t skip;            /* series the journal gave back (--resume): skipped */
+    int rc;                 /* the cursor's own failure (its message printed) */
+} input_source;
+
+/* The batch driver's source over src (screen_batch.h): series `index` of the walk, skipping
+ * the journal's and other processes'; its copy (a grid's series) freed on release. */
+int cli_screen_next_series(void *state, size_t index, screen_input *out, screen_detail *detail);
+void cli_screen_release_series(void *state, size_t index);
+/* src's arrays for `all` series (message printed on failure); and their end, with the cursor. */
+int cli_screen_source_arrays(const cli_inputs *in, input_source *src, size_t all);
+void cli_screen_source_end(input_source *src, size_t all);
+
 typedef struct {
     FILE *out, *rolling;
     cli_resume resume;   /* --resume: the run's journal */
