@@ -169,7 +169,12 @@ size_t cli_screen_series_rows(screen_run *run, size_t k, screen_row *rows, int *
         rows[j] = (screen_row){s.name, res->n, rolling_window(res, j), res->bandwidth,
                                s.q_value[j], res->tests[j], s.flag[j], res->harmonics,
                                res->leakage, res->leakage_tested, unit + strlen(unit) + 1, unit,
-                               origin, cli_ensemble_role(run, origin.input, s.name), NAN};
+                               origin, cli_ensemble_role(run, origin.input, s.name), NAN,
+                               NAN, NAN};
+    for (size_t j = 0; run->seq && j < res->ntests; j++) { /* --surrogates auto */
+        rows[j].flag = cli_sequential_flag(run->seq, k, j, &res->tests[j], s.flag[j]);
+        cli_sequential_interval(run->seq, k, j, &rows[j].p_low, &rows[j].p_high);
+    }
     *rc = EXIT_OK;
     return res->ntests;
 }
@@ -219,7 +224,14 @@ static int put_series(void *state, const screen_batch_item *item)
         fclose(rolling);
         fwrite(rows, 1, nrows, sink->run->rolling);
     }
-    size_t size = make_record(ps, item->result, &sink->origins[item->index], &sink->record,
+    screen_result patched;
+    const screen_result *res = item->result;
+    if (sink->run->seq) { /* --surrogates auto: the rounds' p-values and counts */
+        patched = *res;
+        cli_sequential_patch(sink->run->seq, item->index, &patched);
+        res = &patched;
+    }
+    size_t size = make_record(ps, res, &sink->origins[item->index], &sink->record,
                               &sink->record_cap);
     io_error err = {{0}};
     if (size > 0 && cli_screen_journal(sink->run, sink->record, size, rows, nrows) != EXIT_OK)
@@ -251,6 +263,13 @@ static int refuse(const cli_options *opts, const screen_batch_failure *f, const 
     if (f->detail.control)
         return cli_control_refuse(opts, f->input.control, &f->prepared, &f->detail);
     return cli_screen_refuse(opts, &f->prepared, &f->detail);
+}
+
+/* A series that fails in a round of --surrogates auto, in the same words. */
+static int refuse_round(const cli_options *opts, const screen_batch_failure *f)
+{
+    ordered_sink none = {.rc = EXIT_OK};
+    return refuse(opts, f, &none);
 }
 
 /* Surrogates drawn inside a series still running (the batch driver calls this one at a time). */
@@ -338,6 +357,12 @@ static int run_series(const cli_options *opts, const cli_inputs *in, void *conte
     if (ens != EXIT_OK)
         return ens;
     ordered_sink sink = {.opts = opts, .run = run, .total = cli_inputs_series_count(in)};
+    /* --surrogates auto: its rounds first; the ordinary pass then draws no surrogates */
+    int rounds = opts->surrogates_auto
+                     ? cli_sequential_run(opts, in, run, sink.total, refuse_round)
+                     : EXIT_OK;
+    if (rounds != EXIT_OK)
+        return rounds;
     input_source src = {.ranks = 1, .rc = EXIT_OK};
     cli_cursor_start(&src.cursor, opts, in);
     const cli_share *share = cli_share_get();
@@ -394,8 +419,16 @@ static int write_csv_row(const screen_row *row, size_t index, void *context)
         cli_put_number(w->out, cells[c]);
         fputc(',', w->out);
     }
-    fprintf(w->out, "%s,%ld,%s", w->opts->surrogates > 0 ? cli_null_name(w->opts) : "none",
-            w->opts->surrogates, slowscan_screen_flag_name(row->flag));
+    int seq = w->opts->surrogates_auto;
+    fprintf(w->out, "%s,%ld,%s", w->opts->surrogates > 0 || seq ? cli_null_name(w->opts) : "none",
+            seq ? (long)row->result.surrogates : w->opts->surrogates,
+            slowscan_screen_flag_name(row->flag));
+    if (seq) { /* the Monte Carlo interval of p */
+        fputc(',', w->out);
+        cli_put_number(w->out, row->p_low);
+        fputc(',', w->out);
+        cli_put_number(w->out, row->p_high);
+    }
     if (row->role) { /* --ensemble */
         fprintf(w->out, ",%s,", row->role);
         cli_put_number(w->out, row->share_flagged);
@@ -434,6 +467,9 @@ static int write_summary(const cli_options *opts, screen_run *run)
         cli_put_header(run->out, opts, opts->ensemble.on
                        ? "series,indicator,n,window,bandwidth,tau,statistic,p_value,"
                          "q_value,null,surrogates,flag,role,share_flagged\n"
+                       : opts->surrogates_auto
+                       ? "series,indicator,n,window,bandwidth,tau,statistic,p_value,"
+                         "q_value,null,surrogates,flag,p_low,p_high\n"
                        : "series,indicator,n,window,bandwidth,tau,statistic,p_value,"
                          "q_value,null,surrogates,flag\n");
         return cli_screen_each_row(run, write_csv_row, &w);
@@ -457,6 +493,8 @@ static int finish(const cli_options *opts, void *context)
         rc = run->json ? cli_screen_json(run->json, opts, run) : EXIT_OK;
     if (rc == EXIT_OK && run->maps)
         rc = cli_screen_maps_fill(run);
+    if (rc == EXIT_OK && run->seq)
+        cli_sequential_report(opts, run->seq);
     return rc == EXIT_OK ? write_summary(opts, run) : rc;
 }
 
@@ -467,6 +505,8 @@ int cmd_screen(const cli_options *opts)
                   "(mpirun -np K with K > 1); write the rolling paths with one process");
         return EXIT_BAD_INPUT;
     }
+    if (cli_sequential_check(opts) != EXIT_OK)
+        return EXIT_BAD_INPUT;
     screen_run run = {0};
     run.several = cli_several_inputs(opts);
     cli_screen_config(opts, &run.cfg);
@@ -483,6 +523,7 @@ int cmd_screen(const cli_options *opts)
     /* the journal goes once the outputs are in place; a failed run keeps it */
     cli_resume_close(&run.resume, rc == EXIT_OK);
     cli_ensemble_free(&run);
+    cli_sequential_free(run.seq);
     slowscan_screen_store_free(run.store);
     return rc;
 }
