@@ -6,6 +6,7 @@
 
 #include <math.h>
 #include <stdlib.h>
+#include <string.h>
 
 sequential_config slowscan_sequential_config_default(void)
 {
@@ -94,38 +95,57 @@ static size_t request(const sequential_config *cfg, size_t drawn)
     return want < room ? want : room;
 }
 
+typedef struct {
+    size_t want, series;
+} wish;
+
+static int by_want(const void *a, const void *b)
+{
+    const wish *x = a, *y = b;
+    if (x->want != y->want)
+        return x->want < y->want ? -1 : 1;
+    return x->series < y->series ? -1 : (x->series > y->series);
+}
+
+/* Grants the requests whole, smallest first (ties by series), while the budget lasts; the
+ * first that does not fit gets what is left in whole blocks, and the rest nothing. The
+ * smallest requests are the series closest to being settled for the least work. */
+static size_t grant_smallest_first(const sequential_config *cfg, size_t series, size_t *add,
+                                   size_t left)
+{
+    size_t block = cfg->block ? cfg->block : 1, total = 0, count = 0;
+    wish *w = malloc((series + 1) * sizeof *w);
+    for (size_t s = 0; s < series; s++) {
+        if (w && add[s] > 0)
+            w[count++] = (wish){add[s], s};
+        if (w)
+            add[s] = 0;
+    }
+    if (!w) { /* no room to sort: in series order */
+        for (size_t s = 0; s < series; s++) {
+            add[s] = add[s] <= left ? add[s] : left - left % block;
+            left -= add[s], total += add[s];
+        }
+        return total;
+    }
+    qsort(w, count, sizeof *w, by_want);
+    for (size_t k = 0; k < count && left >= block; k++) {
+        size_t a = w[k].want <= left ? w[k].want : left - left % block;
+        add[w[k].series] = a;
+        left -= a, total += a;
+    }
+    free(w);
+    return total;
+}
+
 void slowscan_sequential_next(const sequential_config *cfg, size_t series,
                               const size_t *drawn, const int *open, size_t spent,
                               size_t budget, size_t *add, size_t *total)
 {
-    size_t left = budget > spent ? budget - spent : 0, asked = 0, block = cfg->block ? cfg->block : 1;
+    size_t left = budget > spent ? budget - spent : 0, asked = 0;
     for (size_t s = 0; s < series; s++) {
         add[s] = open[s] ? request(cfg, drawn[s]) : 0;
         asked += add[s];
     }
-    *total = 0;
-    if (asked > left) {
-        /* the same share of every request, in whole blocks (a capped last round of a series
-           may end off a block; it is the last that series takes) */
-        double share = (double)left / (double)asked;
-        for (size_t s = 0; s < series; s++) {
-            size_t a = (size_t)floor((double)add[s] * share);
-            add[s] = a < add[s] ? a - a % block : add[s];
-            *total += add[s];
-        }
-        for (size_t s = 0; *total == 0 && s < series; s++)
-            if (open[s] && request(cfg, drawn[s]) > 0) {
-                size_t a = request(cfg, drawn[s]);
-                a = a < block ? a : block;
-                if (a > left)
-                    break;
-                add[s] = a;
-                left -= a;
-            }
-        if (*total == 0)
-            for (size_t s = 0; s < series; s++)
-                *total += add[s];
-        return;
-    }
-    *total = asked;
+    *total = asked <= left ? asked : grant_smallest_first(cfg, series, add, left);
 }

@@ -84,8 +84,8 @@ static void decide_against_reference(void)
 }
 
 /* The next round by the rule written out: doubling, first_round to start, capped at K;
- * when the requests exceed the budget, the same share of each in whole blocks; if that is
- * nothing, a block to each open series in order while the budget lasts. */
+ * when the requests exceed the budget, whole requests smallest first (ties by series), the
+ * rest of the budget in whole blocks to the first that does not fit. */
 static void next_round(void)
 {
     sequential_config cfg = slowscan_sequential_config_default();
@@ -102,11 +102,12 @@ static void next_round(void)
     size_t big[] = {1024, 2048, 0, 0, 0};
     cfg.max_per_series = 100000;
     slowscan_sequential_next(&cfg, 2, big, open, 0, 1536, add, &total);
-    /* asked 3072 of 1536: half each, in whole blocks */
-    CHECK(add[0] == 512 && add[1] == 1024 && total == 1536, "scaled: %zu %zu", add[0], add[1]);
+    /* asked 3072 of 1536: the smaller request whole, the rest to the next */
+    CHECK(add[0] == 1024 && add[1] == 512 && total == 1536, "smallest first: %zu %zu", add[0],
+          add[1]);
     slowscan_sequential_next(&cfg, 5, drawn, open, 0, 100, add, &total);
     CHECK(add[0] == 64 && add[1] == 0 && add[2] == 0 && total == 64,
-          "blocks in order when the share is less than a block: %zu %zu %zu", add[0], add[1],
+          "a block to the first series when less than two are left: %zu %zu %zu", add[0], add[1],
           add[2]);
 }
 

@@ -91,8 +91,8 @@ void slowscan_sequential_p(const sequential_test *t, double *p, double *lo, doub
 /* The next round: add[s] more surrogates for each of `series` series, from drawn[s] drawn so
  * far and open[s] (non-zero: a test of series s is open), within what is left of the budget
  * after `spent`. Doubling (first_round for a series with none), capped by max_per_series;
- * when the requests exceed the budget each is scaled by the same factor (whole blocks), and
- * if that leaves nothing, whole blocks go to open series in order. Depends on the counts
+ * when the requests exceed what is left, they are granted whole, smallest first (ties by
+ * series), and the first that does not fit gets the rest in whole blocks. Depends on the counts
  * only. *total: the sum of add[] (0: the procedure ends). */
 SLOWSCAN_API
 void slowscan_sequential_next(const sequential_config *cfg, size_t series,
