@@ -209,6 +209,23 @@ static void command(void)
     }
     for (int k = 0; k < 3; k++)
         free(out[k]);
+    /* the JSON records the procedure and its parameters (checked with Python's json) */
+    const char *json = check_tmp_path("sequential.json");
+    snprintf(args, sizeof args, "screen --surrogates auto --budget 6000 --json %s %s", json, csv);
+    char *ignored_out;
+    rc = run_out(args, &ignored_out, NULL);
+    free(ignored_out);
+    char py[1024];
+    snprintf(py, sizeof py,
+             "/usr/bin/python3 -c \"import json; d=json.load(open('%s')); s=d['sequential'];"
+             "r=d['results'][0]; print(s['budget'], s['max_per_series'], s['epsilon'],"
+             " d['parameters']['surrogates'] == 'auto', len(r['p_interval']), r['surrogates'] > 0)\"",
+             json);
+    char *jout = NULL;
+    int jrc = check_run(py, &jout, NULL);
+    CHECK(rc == 0 && jrc == 0 && jout && !strcmp(jout, "6000 100000 0.001 True 2 True\n"),
+          "JSON records the procedure: %s", jout ? jout : "");
+    free(jout);
     /* a tiny budget: undecided tests, said on stderr */
     snprintf(args, sizeof args, "screen --surrogates auto --budget 200 %s", csv);
     char *tiny;
