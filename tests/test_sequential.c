@@ -245,7 +245,7 @@ static void command(void)
                              "robustness --surrogates auto", "screen --max-per-series 10 "
                                                              "--surrogates auto"};
     for (size_t k = 0; k < sizeof refused / sizeof refused[0]; k++) {
-        const char *o = check_tmp_path("refused.csv");
+        const char *o = check_tmp_path("sequential_refused.csv");
         snprintf(args, sizeof args, "%s %s -o %s", refused[k], csv, o);
         char *none;
         rc = run_out(args, &none, &err);
