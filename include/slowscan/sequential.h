@@ -10,8 +10,8 @@
  * to the lower limits a set B containing A (BH's rejection set only grows as p-values fall):
  * the tests in A would be rejected, those outside B accepted, whatever the p-values inside
  * the intervals are; the rest are open and get more surrogates in the next round. This is the
- * idea of Gandy & Hahn's MMCTest (Scand. J. Stat. 2014; recalled from memory, not checked: the exact form
- * of their intervals and spending of epsilon differ). When the budget is spent, open tests
+ * idea of Gandy & Hahn's MMCTest (Scand. J. Stat. 2014; recalled from memory, not checked;
+ * their intervals and spending of epsilon may differ). When the budget is spent, open tests
  * are undecided.
  *
  * Surrogates are per series: one surrogate gives a statistic for every test of its series,
