@@ -1,7 +1,8 @@
 /* Benchmark of --surrogates auto (sequential Monte Carlo tests under BH) against a fixed
  * number of surrogates M = 10^4 taken as the reference.
  *
- * Data: S series (default 10^4; `bench_sequential S` for fewer) of 500 samples; every 100th
+ * Data: S series (default 10^4; `bench_sequential S B` for fewer, B the budget per series,
+ * default 1000) of 500 samples; every 100th
  * is AR(1) with its coefficient rising linearly from 0.2 to 0.9, the rest AR(1) with a
  * stationary coefficient 0.5 (GSL mt19937, seed 16). Default indicators (variance, lag1) and
  * recovery_trend: 3 tests per series.
@@ -155,12 +156,14 @@ static int run(const char *cmd, double *seconds)
 }
 
 /* The auto run over `series` series of x into a[]: its time and surrogates. */
+static unsigned long per_series_budget = 1000; /* `bench_sequential S B`: B per series */
+
 static int auto_run(const char *bin, const char *csv, const char *out, size_t series, row *a,
                     double *seconds, size_t *drawn)
 {
     char cmd[2048];
     snprintf(cmd, sizeof cmd, "%s screen --surrogates auto --budget %lu --threads 2 --quiet %s -o %s",
-             bin, 1000UL * series, csv, out);
+             bin, per_series_budget * series, csv, out);
     if (run(cmd, seconds) != 0 || read_summary(out, a, series, 1) != series * TESTS)
         return -1;
     *drawn = 0;
@@ -195,6 +198,8 @@ static size_t candidates(const row *a, size_t m, double fdr, int *cand)
 int main(int argc, char **argv)
 {
     size_t series = argc > 1 ? strtoul(argv[1], NULL, 10) : 10000, m = series * TESTS;
+    if (argc > 2)
+        per_series_budget = strtoul(argv[2], NULL, 10);
     const char *bin = getenv("SLOWSCAN_BIN") ? getenv("SLOWSCAN_BIN") : "build/slowscan";
     if (!mkdtemp(dir))
         return 2;
@@ -239,7 +244,7 @@ int main(int argc, char **argv)
     printf("bench_sequential: %zu series x %d samples (%zu with rising memory), %zu tests, q 0.05\n",
            series, N, (series + 99) / 100, m);
     printf("  auto (--budget %lu, --threads 2): %.1f s, %zu surrogates (%.0f per series), %zu "
-           "discoveries, %zu undecided\n", 1000UL * series, t_auto, drawn,
+           "discoveries, %zu undecided\n", per_series_budget * series, t_auto, drawn,
            (double)drawn / (double)series, found, undecided);
     printf("  reference --surrogates %d: %zu discoveries; drawn for the %zu series holding the %zu "
            "candidate tests in %.1f s (%.2f s per series: about %.0f s for all %zu)\n", REFERENCE,
