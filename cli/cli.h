@@ -95,6 +95,9 @@ typedef struct {
     surrogate_options null_options;
     double fdr;
     int alternative; /* significance_alternative, -1: the indicator's own direction */
+    int surrogates_auto;  /* screen --surrogates auto: sequential tests (sequential.h) */
+    long budget;          /* --budget N: surrogates of the whole run; 0: 200 per test */
+    long max_per_series;  /* --max-per-series K: 100000 */
     /* outputs */
     const char *output, *rolling_output, *json_output, *fractions_output;
     const char *maps_output; /* screen --maps FILE.nc */

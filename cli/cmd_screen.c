@@ -169,7 +169,12 @@ size_t cli_screen_series_rows(screen_run *run, size_t k, screen_row *rows, int *
         rows[j] = (screen_row){s.name, res->n, rolling_window(res, j), res->bandwidth,
                                s.q_value[j], res->tests[j], s.flag[j], res->harmonics,
                                res->leakage, res->leakage_tested, unit + strlen(unit) + 1, unit,
-                               origin, cli_ensemble_role(run, origin.input, s.name), NAN};
+                               origin, cli_ensemble_role(run, origin.input, s.name), NAN,
+                               NAN, NAN};
+    for (size_t j = 0; run->seq && j < res->ntests; j++) { /* --surrogates auto */
+        rows[j].flag = cli_sequential_flag(run->seq, k, j, &res->tests[j], s.flag[j]);
+        cli_sequential_interval(run->seq, k, j, &rows[j].p_low, &rows[j].p_high);
+    }
     *rc = EXIT_OK;
     return res->ntests;
 }
@@ -203,90 +208,6 @@ int cli_screen_each_row(screen_run *run, screen_row_visitor visit, void *context
                                           : rc;
 }
 
-/* The series of the inputs in order, as the batch driver takes them. A grid's cells come a
- * table at a time, and a table is gone when the next is read, so each of its series is
- * copied for the workers until the driver releases it. */
-typedef struct {
-    char *name, *source, *time_name;
-    double *time, *values;
-} series_copy;
-
-typedef struct {
-    cli_cursor cursor;
-    screen_input *controls; /* one per series with --null control (borrowed arrays) */
-    series_copy *copies;    /* one per series of a grid, freed on release */
-    screen_origin *origins; /* one per series: where it came from */
-    size_t rank, ranks;     /* a shared run: this process takes series i with i mod ranks = rank */
-    size_t walked;          /* series of the inputs walked so far */
-    size_t skip;            /* series the journal gave back (--resume): skipped */
-    int rc;                 /* the cursor's own failure (its message printed) */
-} input_source;
-
-static int copy_series(series_copy *c, const series_table *t, size_t k)
-{
-    c->name = strdup(t->names[k]);
-    c->source = strdup(cli_source_name(t->source));
-    c->time_name = strdup(t->time_name);
-    c->time = malloc(t->n * sizeof *c->time);
-    c->values = malloc(t->n * sizeof *c->values);
-    if (!c->name || !c->source || !c->time_name || !c->time || !c->values)
-        return SLOWSCAN_ENOMEM;
-    memcpy(c->time, t->time, t->n * sizeof *c->time);
-    memcpy(c->values, t->values[k], t->n * sizeof *c->values);
-    return SLOWSCAN_OK;
-}
-
-static void release_series(void *state, size_t index)
-{
-    input_source *src = state;
-    if (!src->copies)
-        return;
-    series_copy *c = &src->copies[index];
-    free(c->name), free(c->source), free(c->time_name), free(c->time), free(c->values);
-    memset(c, 0, sizeof *c);
-}
-
-static int next_series(void *state, size_t index, screen_input *out, screen_detail *detail)
-{
-    (void)detail;
-    input_source *src = state;
-    const series_table *t;
-    size_t k;
-    int rc;
-    do /* the journal's series and those of other processes are skipped, unread */
-        rc = cli_cursor_next(&src->cursor, &t, &k);
-    while (rc == EXIT_OK && (src->skip > 0 ? (src->skip--, 1)
-                                           : src->walked++ % src->ranks != src->rank));
-    if (rc == CLI_CURSOR_END)
-        return SCREEN_BATCH_END;
-    if (rc != EXIT_OK) {
-        src->rc = rc;
-        return SLOWSCAN_EINVAL;
-    }
-    *out = (screen_input){.name = t->names[k], .source = cli_source_name(t->source),
-                          .time_name = t->time_name, .time = t->time, .values = t->values[k],
-                          .n = t->n, .control = NULL, .axis = t->axis};
-    if (t == &src->cursor.chunk) {
-        series_copy *c = &src->copies[index];
-        if (copy_series(c, t, k) != SLOWSCAN_OK) {
-            cli_error("out of memory");
-            src->rc = EXIT_INTERNAL;
-            return SLOWSCAN_ENOMEM;
-        }
-        out->name = c->name, out->source = c->source, out->time_name = c->time_name;
-        out->time = c->time, out->values = c->values;
-    }
-    screen_origin *origin = &src->origins[index];
-    *origin = (screen_origin){.input = src->cursor.input - 1, .gridded = t->grid != NULL};
-    if (t->grid)
-        origin->position = t->grid[k];
-    if (src->controls) {
-        src->controls[index] = cli_control_input(src->cursor.in, t->names[k]);
-        out->control = &src->controls[index];
-    }
-    return SLOWSCAN_OK;
-}
-
 static int put_series(void *state, const screen_batch_item *item)
 {
     ordered_sink *sink = state;
@@ -303,7 +224,14 @@ static int put_series(void *state, const screen_batch_item *item)
         fclose(rolling);
         fwrite(rows, 1, nrows, sink->run->rolling);
     }
-    size_t size = make_record(ps, item->result, &sink->origins[item->index], &sink->record,
+    screen_result patched;
+    const screen_result *res = item->result;
+    if (sink->run->seq) { /* --surrogates auto: the rounds' p-values and counts */
+        patched = *res;
+        cli_sequential_patch(sink->run->seq, item->index, &patched);
+        res = &patched;
+    }
+    size_t size = make_record(ps, res, &sink->origins[item->index], &sink->record,
                               &sink->record_cap);
     io_error err = {{0}};
     if (size > 0 && cli_screen_journal(sink->run, sink->record, size, rows, nrows) != EXIT_OK)
@@ -337,6 +265,13 @@ static int refuse(const cli_options *opts, const screen_batch_failure *f, const 
     return cli_screen_refuse(opts, &f->prepared, &f->detail);
 }
 
+/* A series that fails in a round of --surrogates auto, in the same words. */
+static int refuse_round(const cli_options *opts, const screen_batch_failure *f)
+{
+    ordered_sink none = {.rc = EXIT_OK};
+    return refuse(opts, f, &none);
+}
+
 /* Surrogates drawn inside a series still running (the batch driver calls this one at a time). */
 static void series_progress(void *state, const screen_progress *progress)
 {
@@ -350,21 +285,14 @@ static void series_progress(void *state, const screen_progress *progress)
 static int screen_share(const cli_options *opts, const cli_inputs *in, ordered_sink *sink,
                         input_source *src)
 {
-    int grids = 0;
-    for (size_t f = 0; f < in->ntables; f++) /* inputs read a table at a time */
-        grids |= in->grid_cells[f] > 0 || in->columns[f] != NULL;
     size_t all = sink->total;
-    sink->origins = src->origins = calloc(all + 1, sizeof *src->origins);
-    if (!src->origins ||
-        (in->has_control && !(src->controls = calloc(all + 1, sizeof *src->controls))) ||
-        (grids && !(src->copies = calloc(all + 1, sizeof *src->copies)))) {
-        cli_error("out of memory");
+    if (cli_screen_source_arrays(in, src, all) != EXIT_OK)
         return EXIT_INTERNAL;
-    }
+    sink->origins = src->origins;
     /* this process's series: every ranks-th from its own rank, after the journal's */
     size_t left = all - src->skip;
     size_t mine = left / src->ranks + (src->rank < left % src->ranks);
-    screen_source source = {next_series, release_series, mine, src};
+    screen_source source = {cli_screen_next_series, cli_screen_release_series, mine, src};
     /* Only --rolling needs the paths handed on: the figures read the null's quantiles from
      * the results and prepare the series again once the q-values exist. */
     screen_sink ordered = {.put = put_series, .state = sink,
@@ -429,6 +357,12 @@ static int run_series(const cli_options *opts, const cli_inputs *in, void *conte
     if (ens != EXIT_OK)
         return ens;
     ordered_sink sink = {.opts = opts, .run = run, .total = cli_inputs_series_count(in)};
+    /* --surrogates auto: its rounds first; the ordinary pass then draws no surrogates */
+    int rounds = opts->surrogates_auto
+                     ? cli_sequential_run(opts, in, run, sink.total, refuse_round)
+                     : EXIT_OK;
+    if (rounds != EXIT_OK)
+        return rounds;
     input_source src = {.ranks = 1, .rc = EXIT_OK};
     cli_cursor_start(&src.cursor, opts, in);
     const cli_share *share = cli_share_get();
@@ -446,12 +380,7 @@ static int run_series(const cli_options *opts, const cli_inputs *in, void *conte
                    : screen_share(opts, in, &sink, &src);
     if (rc == EXIT_OK && (!share || share->rank == 0))
         cli_report_leakage(opts, &sink.leakage);
-    for (size_t i = 0; src.copies && i <= sink.total; i++)
-        release_series(&src, i);
-    cli_cursor_end(&src.cursor);
-    free(src.origins);
-    free(src.controls);
-    free(src.copies);
+    cli_screen_source_end(&src, sink.total);
     free(sink.record);
     return rc;
 }
@@ -490,8 +419,16 @@ static int write_csv_row(const screen_row *row, size_t index, void *context)
         cli_put_number(w->out, cells[c]);
         fputc(',', w->out);
     }
-    fprintf(w->out, "%s,%ld,%s", w->opts->surrogates > 0 ? cli_null_name(w->opts) : "none",
-            w->opts->surrogates, slowscan_screen_flag_name(row->flag));
+    int seq = w->opts->surrogates_auto;
+    fprintf(w->out, "%s,%ld,%s", w->opts->surrogates > 0 || seq ? cli_null_name(w->opts) : "none",
+            seq ? (long)row->result.surrogates : w->opts->surrogates,
+            slowscan_screen_flag_name(row->flag));
+    if (seq) { /* the Monte Carlo interval of p */
+        fputc(',', w->out);
+        cli_put_number(w->out, row->p_low);
+        fputc(',', w->out);
+        cli_put_number(w->out, row->p_high);
+    }
     if (row->role) { /* --ensemble */
         fprintf(w->out, ",%s,", row->role);
         cli_put_number(w->out, row->share_flagged);
@@ -535,6 +472,9 @@ static int write_summary(const cli_options *opts, screen_run *run)
         cli_put_header(run->out, opts, opts->ensemble.on
                        ? "series,indicator,n,window,bandwidth,tau,statistic,p_value,"
                          "q_value,null,surrogates,flag,role,share_flagged"
+                       : opts->surrogates_auto
+                       ? "series,indicator,n,window,bandwidth,tau,statistic,p_value,"
+                         "q_value,null,surrogates,flag,p_low,p_high"
                        : "series,indicator,n,window,bandwidth,tau,statistic,p_value,"
                          "q_value,null,surrogates,flag");
         fprintf(run->out, "%s\n", cli_screen_tail_columns(opts));
@@ -560,6 +500,8 @@ static int finish(const cli_options *opts, void *context)
         rc = run->json ? cli_screen_json(run->json, opts, run) : EXIT_OK;
     if (rc == EXIT_OK && run->maps)
         rc = cli_screen_maps_fill(run);
+    if (rc == EXIT_OK && run->seq)
+        cli_sequential_report(opts, run->seq);
     return rc == EXIT_OK ? write_summary(opts, run) : rc;
 }
 
@@ -570,7 +512,7 @@ int cmd_screen(const cli_options *opts)
                   "(mpirun -np K with K > 1); write the rolling paths with one process");
         return EXIT_BAD_INPUT;
     }
-    if (cli_screen_tail_check(opts) != EXIT_OK)
+    if (cli_screen_tail_check(opts) != EXIT_OK || cli_sequential_check(opts) != EXIT_OK)
         return EXIT_BAD_INPUT;
     screen_run run = {0};
     run.several = cli_several_inputs(opts);
@@ -588,6 +530,7 @@ int cmd_screen(const cli_options *opts)
     /* the journal goes once the outputs are in place; a failed run keeps it */
     cli_resume_close(&run.resume, rc == EXIT_OK);
     cli_ensemble_free(&run);
+    cli_sequential_free(run.seq);
     slowscan_screen_store_free(run.store);
     return rc;
 }

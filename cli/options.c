@@ -208,7 +208,27 @@ enum { MAX_SURROGATES = 1000000 };
 
 static int set_surrogates(cli_options *o, const char *n, const char *v)
 {
+    o->surrogates_auto = strcmp(v, "auto") == 0;
+    if (o->surrogates_auto && strcmp(o->command, "screen") != 0) {
+        cli_error("option %s auto: only for screen (give a number of surrogates)", n);
+        return EXIT_BAD_INPUT;
+    }
+    if (o->surrogates_auto) {
+        o->surrogates = 0; /* the rounds set each series' own range */
+        return EXIT_OK;
+    }
     return set_whole(n, v, 0, MAX_SURROGATES, &o->surrogates);
+}
+
+/* --surrogates auto: the whole run's surrogates, and one series' at most (sequential.h). */
+static int set_budget(cli_options *o, const char *n, const char *v)
+{
+    return set_whole(n, v, 1, LONG_MAX, &o->budget);
+}
+
+static int set_max_per_series(cli_options *o, const char *n, const char *v)
+{
+    return set_whole(n, v, 64, MAX_SURROGATES, &o->max_per_series);
 }
 
 /* The bootstrap interval needs its 2.5% tails resolved by a dozen draws or more. */
@@ -341,6 +361,8 @@ static const option_spec options[] = {
     {"--band", 1, C_ROLLING, set_band},
     {"--surrogates", 1, C_TESTING | C_SURROGATES, set_surrogates},
     {"--null", 1, C_TESTING | C_SURROGATES, set_null},
+    {"--budget", 1, C_SCREEN, set_budget},
+    {"--max-per-series", 1, C_SCREEN, set_max_per_series},
     {"--iaaft-tol", 1, C_TESTING | C_SURROGATES, set_iaaft_tol},
     {"--iaaft-iterations", 1, C_TESTING | C_SURROGATES, set_iaaft_iterations},
     {"--block-length", 1, C_TESTING | C_SURROGATES, set_block_length},

@@ -8,6 +8,7 @@
 #include "slowscan/netcdf_maps.h"
 #include "slowscan/screen_batch.h"
 #include "slowscan/screen_store.h"
+#include "slowscan/sequential.h"
 
 
 /* Where a series came from: its input and, in a NetCDF grid, its place (grid_position). */
@@ -36,8 +37,36 @@ typedef struct {
      * it. share_flagged: a pooled row's share of members flagged (NaN on other rows). */
     const char *role;
     double share_flagged;
+    double p_low, p_high; /* --surrogates auto: the 95% interval of the Monte Carlo p */
 } screen_row;
 
+
+/* The series of the inputs in order, as the batch driver takes them. A grid's cells come a
+ * table at a time, and a table is gone when the next is read, so each of its series is
+ * copied for the workers until the driver releases it. */
+typedef struct {
+    char *name, *source, *time_name;
+    double *time, *values;
+} series_copy;
+
+typedef struct {
+    cli_cursor cursor;
+    screen_input *controls; /* one per series with --null control (borrowed arrays) */
+    series_copy *copies;    /* one per series of a grid, freed on release */
+    screen_origin *origins; /* one per series: where it came from */
+    size_t rank, ranks;     /* a shared run: this process takes series i with i mod ranks = rank */
+    size_t walked;          /* series of the inputs walked so far */
+    size_t skip;            /* series the journal gave back (--resume): skipped */
+    int rc;                 /* the cursor's own failure (its message printed) */
+} input_source;
+
+/* The batch driver's source over src (screen_batch.h): series `index` of the walk, skipping
+ * the journal's and other processes'; its copy (a grid's series) freed on release. */
+int cli_screen_next_series(void *state, size_t index, screen_input *out, screen_detail *detail);
+void cli_screen_release_series(void *state, size_t index);
+/* src's arrays for `all` series (message printed on failure); and their end, with the cursor. */
+int cli_screen_source_arrays(const cli_inputs *in, input_source *src, size_t all);
+void cli_screen_source_end(input_source *src, size_t all);
 
 typedef struct {
     FILE *out, *rolling;
@@ -52,7 +81,43 @@ typedef struct {
     size_t maps_input;     /* the input the maps are of */
     size_t figure_series;  /* series drawn so far */
     struct cli_ensemble_run *ensemble; /* --ensemble, else NULL */
+    struct screen_sequential *seq;     /* --surrogates auto, else NULL */
 } screen_run;
+
+/* --surrogates auto (screen_sequential.c, the library's sequential.h): rounds of surrogates
+ * over every series before the run's one ordinary pass, which carries no surrogates of its
+ * own; each series' counts, per test, and what its rounds warned of. */
+typedef struct screen_sequential {
+    sequential_config cfg;
+    size_t series, per_series; /* tests: series x per_series, series-major */
+    sequential_test *tests;
+    size_t *drawn, *add;       /* per series: replicates drawn so far, in this round */
+    int *open;                 /* per series: a test still open */
+    int *no_null;              /* per series: why it has no null (a status), 0: it has one */
+    size_t *unconverged;       /* per series: iaaft draws that hit the iteration limit */
+    size_t budget, spent, rounds, undecided, tested;
+} screen_sequential;
+
+/* Checks the options that do not go with --surrogates auto (message printed). */
+int cli_sequential_check(const cli_options *opts);
+/* The rounds over every series of `in` (total of them), then run->seq holds the decisions.
+ * refuse: how a series that fails is told (the ordinary run's words). */
+int cli_sequential_run(const cli_options *opts, const cli_inputs *in, screen_run *run,
+                       size_t total,
+                       int (*refuse)(const cli_options *, const screen_batch_failure *));
+/* Series g's result of the ordinary pass with its sequential p-values, counts and warnings. */
+void cli_sequential_patch(const screen_sequential *seq, size_t g, screen_result *res);
+/* The flag of test j of series g (the decision; `stored`: the store's, for untested tests),
+ * and its p interval. */
+screen_flag cli_sequential_flag(const screen_sequential *seq, size_t g, size_t j,
+                                const screen_test *t, screen_flag stored);
+void cli_sequential_interval(const screen_sequential *seq, size_t g, size_t j, double *lo,
+                             double *hi);
+/* Warnings at the end: no discovery possible, tests undecided. */
+void cli_sequential_report(const cli_options *opts, const screen_sequential *seq);
+/* The procedure and its parameters, as members of the JSON's parameters object. */
+void cli_sequential_json(FILE *fp, const screen_sequential *seq);
+void cli_sequential_free(screen_sequential *seq);
 
 /* The rows of stored series k into rows[SCREEN_MAX_TESTS]; returns how many, or 0 with the
  * message printed and *rc set. */

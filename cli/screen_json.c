@@ -15,6 +15,8 @@ static void json_length(FILE *fp, const char *key, const cli_length *len)
 
 static void write_parameters(FILE *fp, const cli_options *o)
 {
+    char surrogates[32]; /* --surrogates auto: the counts are per test in the rows */
+    snprintf(surrogates, sizeof surrogates, o->surrogates_auto ? "\"auto\"" : "%ld", o->surrogates);
     fprintf(fp, "  \"program\": \"slowscan\",\n  \"version\": \"%s\",\n  \"parameters\": {\n",
             slowscan_version());
     fputs("    \"inputs\": [", fp);
@@ -52,11 +54,11 @@ static void write_parameters(FILE *fp, const cli_options *o)
     o->step ? (void)fprintf(fp, "%ld", o->step) : (void)fputs("null", fp);
     fputs(",\n    \"band\": ", fp);
     o->band_text ? cli_json_string(fp, o->band_text) : (void)fputs("null", fp);
-    fprintf(fp, ",\n    \"recovery\": \"%s\",\n    \"null\": \"%s\",\n    \"surrogates\": %ld,\n"
+    fprintf(fp, ",\n    \"recovery\": \"%s\",\n    \"null\": \"%s\",\n    \"surrogates\": %s,\n"
             "    \"iaaft_iterations\": %d,\n    \"block_length\": %zu,\n    \"alternative\": \"%s\",\n"
             "    \"seed\": %lu\n  },\n",
             o->recovery == RECOVERY_INCREMENTS ? "increments" : "log",
-            cli_null_name(o), o->surrogates,
+            cli_null_name(o), surrogates,
             o->null_options.iaaft_max_iterations, o->null_options.block_length,
             o->alternative < 0 ? "per-indicator"
             : o->alternative == 0 ? "increasing"
@@ -91,7 +93,7 @@ static void write_leakage(FILE *fp, const screen_row *row)
     fputc('}', fp);
 }
 
-static void write_row(FILE *fp, const cli_options *o, const screen_row *row, int several)
+static void write_row(FILE *fp, const cli_options *o, const screen_row *row, int several, int seq)
 {
     fputs("    {", fp);
     if (row->file && several) {
@@ -127,6 +129,13 @@ static void write_row(FILE *fp, const cli_options *o, const screen_row *row, int
     }
     fputs("}", fp);
     cli_screen_tail_json(fp, o, &row->result);
+    if (seq) { /* --surrogates auto: the surrogates of this test and p's 95% interval */
+        fprintf(fp, ", \"surrogates\": %zu, \"p_interval\": [", row->result.surrogates);
+        cli_json_number(fp, row->p_low);
+        fputs(", ", fp);
+        cli_json_number(fp, row->p_high);
+        fputs("]", fp);
+    }
     if (row->role) { /* --ensemble */
         fprintf(fp, ", \"role\": \"%s\", \"share_flagged\": ", row->role);
         cli_json_number(fp, row->share_flagged);
@@ -139,12 +148,13 @@ typedef struct {
     const cli_options *opts;
     size_t rows;
     int several; /* more than one input: each row names its file */
+    int seq;     /* --surrogates auto */
 } json_rows;
 
 static int put_row(const screen_row *row, size_t index, void *context)
 {
     const json_rows *j = context;
-    write_row(j->fp, j->opts, row, j->several);
+    write_row(j->fp, j->opts, row, j->several, j->seq);
     fputs(index + 1 < j->rows ? ",\n" : "\n", j->fp);
     return EXIT_OK;
 }
@@ -154,10 +164,12 @@ int cli_screen_json(FILE *fp, const cli_options *opts, screen_run *run)
     fputs("{\n", fp);
     write_parameters(fp, opts);
     cli_screen_tail_parameters(fp, opts);
+    if (run->seq)
+        cli_sequential_json(fp, run->seq);
     cli_ensemble_json(fp, run);
     fputs("  \"results\": [\n", fp);
     json_rows rows = {fp, opts, slowscan_screen_store_tests(run->store) + cli_ensemble_rows(run),
-                      cli_several_inputs(opts)};
+                      cli_several_inputs(opts), opts->surrogates_auto};
     int rc = cli_screen_each_row(run, put_row, &rows);
     fputs("  ]\n}\n", fp);
     return rc;

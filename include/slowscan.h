@@ -15,6 +15,7 @@
 #include "slowscan/null_trend.h"
 #include "slowscan/significance.h"
 #include "slowscan/tail.h"
+#include "slowscan/sequential.h"
 #include "slowscan/ar1_drift.h"
 #include "slowscan/calendar.h"
 #include "slowscan/time_units.h"

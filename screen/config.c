@@ -64,7 +64,8 @@ const char *slowscan_screen_test_name(int kind)
 
 const char *slowscan_screen_flag_name(screen_flag flag)
 {
-    static const char *const names[] = {"untested", "none", "rising", "falling", "insufficient"};
+    static const char *const names[] = {"untested", "none", "rising", "falling", "insufficient",
+                                        "undecided"};
     return (unsigned)flag < sizeof names / sizeof names[0] ? names[flag] : "untested";
 }
 
@@ -102,4 +103,12 @@ int slowscan_screen_decide(const screen_test *const *tests, size_t count, double
         flags[r] = screen_flag_of(tests[r], q[r], tested, fdr);
     free(p);
     return st;
+}
+
+size_t slowscan_screen_test_hits(const screen_test *t)
+{
+    if (isnan(t->p_value))
+        return 0;
+    double hits = t->p_value * ((double)t->null_used + 1.0) - 1.0;
+    return hits > 0 ? (size_t)llround(hits) : 0;
 }

@@ -57,7 +57,8 @@ static void *worker(void *p)
         size_t first = block * NULL_TREND_BLOCK, count = t->m - first;
         if (count > NULL_TREND_BLOCK)
             count = NULL_TREND_BLOCK;
-        st = slowscan_null_trend_draw(arg->ws, src, t->job, first, count, t->null, t->m);
+        st = slowscan_null_trend_draw(arg->ws, src, t->job, t->first + first, count, t->null,
+                                      t->stride);
         if (st == SLOWSCAN_OK)
             block_drawn(s, count);
     }

@@ -210,6 +210,9 @@ int slowscan_screen_prepare_with(screen_workspace *ws, const screen_config *give
     ps->trend = ps->value + in->n;
     ps->residual = ps->trend + in->n;
     ps->null_source = ps->residual;
+    ps->null_range = in->null_range;
+    ps->null_first = in->null_first;
+    ps->null_count = in->null_count;
     memcpy(ps->value, in->values, in->n * sizeof(double));
     count_finite(ps);
     if (!isnan(cfg->deseason) && (st = deseason_series(cfg, ps, d)) != SLOWSCAN_OK)

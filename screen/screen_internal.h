@@ -17,7 +17,7 @@ struct screen_workspace {
     null_trend_workspace *null_ws[SCREEN_MAX_THREADS];    /* one per thread */
     size_t null_n, null_kinds;
     double *null;   /* tests x surrogates */
-    size_t null_cap, null_stride, null_tests;
+    size_t null_cap, null_stride, null_tests, null_first;
     double *sorted; /* surrogates: scratch for the quantiles */
     size_t sorted_cap;
     ar1_drift_workspace *drift;
@@ -71,8 +71,10 @@ typedef struct {
     const surrogate_options *options;
     const double *residual;
     const null_trend_job *job;
-    size_t m;     /* replicates */
-    double *null; /* nkinds x m */
+    size_t first;  /* the first replicate (a multiple of NULL_TREND_BLOCK) */
+    size_t m;      /* replicates: first .. first + m - 1 */
+    size_t stride; /* of null's rows; replicate j at column j */
+    double *null;  /* nkinds x stride */
     size_t unconverged; /* out: iaaft draws that hit the iteration limit */
     screen_progress_fn progress; /* NULL, or told after each block (under the blocks' lock) */
     void *progress_context;

@@ -56,10 +56,23 @@ static double drift_of(screen_workspace *ws, const screen_config *cfg, const scr
     return NAN;
 }
 
-/* Everything sized by the series length is remade only when the length changes. */
-static int ready_null(screen_workspace *ws, const screen_config *cfg, size_t n, size_t tests)
+/* The replicates this series draws: [first, first + count), from its input's range when it
+ * has one (a round of --surrogates auto), else [0, cfg->surrogates). */
+static size_t null_first(const screen_config *cfg, const screen_prepared *ps)
 {
-    size_t m = cfg->surrogates;
+    (void)cfg;
+    return ps->null_range ? ps->null_first : 0;
+}
+
+static size_t null_count(const screen_config *cfg, const screen_prepared *ps)
+{
+    return ps->null_range ? ps->null_count : cfg->surrogates;
+}
+
+/* Everything sized by the series length is remade only when the length changes. */
+static int ready_null(screen_workspace *ws, const screen_config *cfg, size_t n, size_t tests,
+                      size_t first, size_t m)
+{
     if (ws->null_n != n || ws->null_kinds < cfg->nindicators) {
         slowscan_surrogate_plan_free(ws->plan);
         for (size_t k = 0; k < ws->threads; k++) {
@@ -76,9 +89,10 @@ static int ready_null(screen_workspace *ws, const screen_config *cfg, size_t n, 
         ws->null_n = n;
         ws->null_kinds = cfg->nindicators;
     }
-    if (ws->null_cap < tests * m) {
+    size_t stride = first + m; /* replicate j sits at column j, as when drawn from 0 */
+    if (ws->null_cap < tests * stride) {
         free(ws->null);
-        ws->null_cap = (ws->null = malloc(tests * m * sizeof *ws->null)) ? tests * m : 0;
+        ws->null_cap = (ws->null = malloc(tests * stride * sizeof *ws->null)) ? tests * stride : 0;
     }
     if (ws->sorted_cap < m) {
         free(ws->sorted);
@@ -147,7 +161,8 @@ static int draw_null(screen_workspace *ws, const screen_config *cfg, const scree
     int st = screen_rolling_ready(ws, cfg, ps, &spec, &ignored);
     if (st != SLOWSCAN_OK)
         return st; /* the paths were made with the same spec: this does not happen */
-    st = ready_null(ws, cfg, ps->n, tests);
+    size_t first = null_first(cfg, ps), m = null_count(cfg, ps);
+    st = ready_null(ws, cfg, ps->n, tests, first, m);
     int need_level = 0;
     for (size_t j = 0; j < cfg->nindicators; j++)
         need_level |= slowscan_indicator_needs_level(cfg->indicators[j]);
@@ -155,10 +170,10 @@ static int draw_null(screen_workspace *ws, const screen_config *cfg, const scree
                           need_level ? ps->trend : NULL, cfg->seed, ps->name,
                           cfg->null_name ? cfg->null_name : slowscan_surrogate_name(cfg->null_kind),
                           cfg->drift_test ? 1 + cfg->noise_trend : 0};
-    size_t m = cfg->surrogates;
     screen_null_task task = {.plan = ws->plan, .kind = cfg->null_kind,
                              .options = &cfg->null_options, .residual = ps->null_source,
-                             .job = &job, .m = m, .null = ws->null, .progress = ws->progress,
+                             .job = &job, .first = first, .m = m, .stride = first + m,
+                             .null = ws->null, .progress = ws->progress,
                              .progress_context = ws->progress_context, .series = ps->name};
     size_t threads = cfg->threads < ws->threads ? cfg->threads : ws->threads;
     if (st == SLOWSCAN_OK)
@@ -172,10 +187,8 @@ static int draw_null(screen_workspace *ws, const screen_config *cfg, const scree
  * more extreme, as the test's alternative counts "at least as extreme". With it, p_value is
  * the estimate where one is used. */
 static int tail_estimate(screen_workspace *ws, const screen_config *cfg, size_t j,
-                         screen_test *t)
+                         const double *null, size_t m, screen_test *t)
 {
-    size_t m = cfg->surrogates;
-    const double *null = ws->null + j * m;
     significance_alternative alt = alternative_of(cfg, j);
     double sign = alt == ALTERNATIVE_DECREASING ? -1.0 : 1.0;
     for (size_t k = 0; k < m; k++)
@@ -190,7 +203,8 @@ static int tail_estimate(screen_workspace *ws, const screen_config *cfg, size_t 
 static int test_null(screen_workspace *ws, const screen_config *cfg, const screen_prepared *ps,
                      screen_result *out, screen_detail *d)
 {
-    size_t block = cfg->null_options.block_length, tests = out->ntests, m = cfg->surrogates;
+    size_t block = cfg->null_options.block_length, tests = out->ntests;
+    size_t first = null_first(cfg, ps), m = null_count(cfg, ps);
     if (cfg->null_kind == SURROGATE_BLOCK && block > ps->n / 2) {
         /* With blocks longer than half the record there are too few distinct starts for a
          * null distribution (at L = n every replicate is the series itself). */
@@ -214,16 +228,18 @@ static int test_null(screen_workspace *ws, const screen_config *cfg, const scree
         return st;
     }
     ws->null_tests = tests;
-    ws->null_stride = m;
+    ws->null_stride = first + m;
+    ws->null_first = first;
     for (size_t j = 0; j < tests; j++) {
         screen_test *t = &out->tests[j];
+        const double *null = ws->null + j * (first + m) + first;
         if (!isnan(t->statistic))
-            t->p_value = slowscan_significance_p_value(t->statistic, ws->null + j * m, m,
+            t->p_value = slowscan_significance_p_value(t->statistic, null, m,
                                               alternative_of(cfg, j), &t->null_used);
         int tail_st = cfg->tail.method != TAIL_OFF && !isnan(t->p_value)
-                          ? tail_estimate(ws, cfg, j, t) : SLOWSCAN_OK;
+                          ? tail_estimate(ws, cfg, j, null, m, t) : SLOWSCAN_OK;
         st = st != SLOWSCAN_OK ? st : tail_st; /* only options out of their domain fail */
-        null_quantiles(ws, ws->null + j * m, m, t);
+        null_quantiles(ws, null, m, t);
     }
     return st;
 }
@@ -239,7 +255,7 @@ int slowscan_screen_test_series(screen_workspace *ws, const screen_config *cfg, 
         screen_test *t = &out->tests[j];
         *t = (screen_test){.kind = slowscan_screen_test_of(cfg, j), .tau = NAN, .statistic = NAN,
                            .statistic_model = NAN, .p_value = NAN,
-                           .surrogates = cfg->surrogates,
+                           .surrogates = null_count(cfg, ps),
                            .quantile = {NAN, NAN, NAN, NAN, NAN},
                            .quantile_tail = {NAN, NAN},
                            .reason = SCREEN_REASON_NO_VARIATION,
@@ -256,12 +272,12 @@ int slowscan_screen_test_series(screen_workspace *ws, const screen_config *cfg, 
             t->reason = SCREEN_REASON_NONE;
         any |= !isnan(t->statistic);
     }
-    if (cfg->surrogates > 0 && any)
+    if (null_count(cfg, ps) > 0 && any)
         return test_null(ws, cfg, ps, out, d);
     return SLOWSCAN_OK;
 }
 
 const double *slowscan_screen_workspace_null(const screen_workspace *ws, size_t j)
 {
-    return j < ws->null_tests ? ws->null + j * ws->null_stride : NULL;
+    return j < ws->null_tests ? ws->null + j * ws->null_stride + ws->null_first : NULL;
 }

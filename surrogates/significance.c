@@ -1,5 +1,6 @@
 /* Surrogate p-values, Benjamini-Hochberg q-values, and stream seeds. */
 #include "slowscan/significance.h"
+#include "slowscan/sequential.h"
 #include "slowscan/status.h"
 
 #include <gsl/gsl_cdf.h>
@@ -108,9 +109,15 @@ static double beta_quantile(double p, double a, double b)
     return 0.5 * (lo + hi);
 }
 
-void slowscan_significance_binomial_interval(size_t hits, size_t trials, double *lo, double *hi)
+void slowscan_sequential_interval(size_t hits, size_t trials, double alpha, double *lo,
+                                  double *hi)
 {
     double k = (double)hits, s = (double)trials;
-    *lo = hits == 0 ? 0.0 : beta_quantile(0.025, k, s - k + 1);
-    *hi = hits >= trials ? 1.0 : beta_quantile(0.975, k + 1, s - k);
+    *lo = hits == 0 || trials == 0 ? 0.0 : beta_quantile(alpha / 2, k, s - k + 1);
+    *hi = hits >= trials ? 1.0 : beta_quantile(1 - alpha / 2, k + 1, s - k);
+}
+
+void slowscan_significance_binomial_interval(size_t hits, size_t trials, double *lo, double *hi)
+{
+    slowscan_sequential_interval(hits, trials, 0.05, lo, hi);
 }

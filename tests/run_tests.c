@@ -8,6 +8,7 @@
 int check_totals(const char *label);
 
 void suite_detrend(void);
+void suite_sequential(void);
 void suite_deseason(void);
 void suite_io(void);
 void suite_indicators(void);
@@ -72,7 +73,7 @@ static const struct {
     {"maps", suite_maps},
     {"dated_cli", suite_dated_cli},   {"interrupt", suite_interrupt},
     {"merge", suite_merge},           {"resume", suite_resume},
-    {"mpi", suite_mpi},
+    {"mpi", suite_mpi},           {"sequential", suite_sequential},
     {"ensemble", suite_ensemble},
     {"feedback", suite_feedback},     {"feedback_rates", suite_feedback_rates},
 };

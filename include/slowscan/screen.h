@@ -163,6 +163,12 @@ struct screen_input {
                                     when the run has none of that name): surrogates are made
                                     from its first n samples' residual (slowscan_screen_attach_control) */
     time_axis axis;         /* what the times are (calendar.h); zero: plain numbers */
+    /* With null_range: the surrogates of this series are replicates [null_first, null_first +
+       null_count) instead of [0, cfg->surrogates) — a round of --surrogates auto
+       (sequential.h). null_first is a multiple of NULL_TREND_BLOCK; replicate j is the same
+       draw either way. */
+    int null_range;
+    size_t null_first, null_count;
 };
 
 /* A series prepared for the indicators: deseasoned and detrended. */
@@ -182,6 +188,8 @@ typedef struct {
     screen_variation constant;        /* non-zero: indicators are NA */
     const double *null_source;        /* what surrogates are made from */
     double *owned;                    /* storage behind null_source when it is not residual */
+    int null_range;                   /* the input's replicate range (screen_input) */
+    size_t null_first, null_count;
 } screen_prepared;
 
 /* The result of one series: plain data. */
@@ -389,7 +397,9 @@ typedef enum {
     SCREEN_FLAG_NONE,
     SCREEN_FLAG_RISING,
     SCREEN_FLAG_FALLING,
-    SCREEN_FLAG_INSUFFICIENT
+    SCREEN_FLAG_INSUFFICIENT,
+    SCREEN_FLAG_UNDECIDED     /* --surrogates auto: the budget did not settle its side of the
+                                 BH threshold (sequential.h) */
 } screen_flag;
 SLOWSCAN_API
 const char *slowscan_screen_flag_name(screen_flag flag);
@@ -399,6 +409,10 @@ const char *slowscan_screen_flag_name(screen_flag flag);
 SLOWSCAN_API
 void slowscan_screen_null_quantiles(const double *null, size_t m, double *sorted,
                                     screen_test *t);
+/* The surrogate statistics at least as extreme as t's own behind its p-value (p =
+ * (1 + hits) / (null_used + 1)); 0 when t has no p-value. */
+SLOWSCAN_API
+size_t slowscan_screen_test_hits(const screen_test *t);
 /* q-values (Benjamini-Hochberg over every test with a p-value) and flags of `count` tests:
  * with a single tested p it decides itself, else q <= fdr. q[] and flags[] have count
  * entries. SLOWSCAN_ENOMEM. */

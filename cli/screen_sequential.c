@@ -1,0 +1,282 @@
+/* screen --surrogates auto: rounds of surrogates over every series (the library's
+ * sequential.h decides after each round which tests are settled and how many surrogates each
+ * open series gets next), before the run's one ordinary pass, which draws no surrogates and
+ * takes its p-values, counts and flags from here.
+ *
+ * Each round walks the inputs again (a grid is re-read a table at a time) and hands the batch
+ * driver only the series still open, each with its replicate range [drawn, drawn + add), so
+ * replicate j of a series is the draw a fixed --surrogates run makes as its j-th. The rounds
+ * depend on the counts alone: the same for any --threads. */
+#include "cli.h"
+#include "screen.h"
+#include "share.h"
+#include "slowscan/status.h"
+
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+
+int cli_sequential_check(const cli_options *opts)
+{
+    if (!opts->surrogates_auto && (opts->budget > 0 || opts->max_per_series != 100000)) {
+        cli_error("option %s: only with --surrogates auto",
+                  opts->budget > 0 ? "--budget" : "--max-per-series");
+        return EXIT_BAD_INPUT;
+    }
+    if (!opts->surrogates_auto)
+        return EXIT_OK;
+    const char *clash = opts->resume                 ? "--resume"
+                        : opts->ensemble.on          ? "--ensemble"
+                        : cli_share_get() != NULL    ? "mpirun -np K with K > 1"
+                                                     : NULL;
+    if (clash) {
+        cli_error("option --surrogates auto: not with %s yet (its rounds are not journaled nor "
+                  "shared by processes; give a fixed number of surrogates)", clash);
+        return EXIT_BAD_INPUT;
+    }
+    return EXIT_OK;
+}
+
+/* One round's walk of the inputs: series `walked` next; map: the batch's index -> series. */
+typedef struct {
+    input_source src;
+    screen_sequential *seq;
+    size_t walked, last; /* last: one past the last series this round draws for */
+    size_t *map;
+    int first; /* round 1: every series, for its statistics */
+} round_walk;
+
+static int round_next(void *state, size_t index, screen_input *in, screen_detail *d)
+{
+    round_walk *w = state;
+    screen_sequential *q = w->seq;
+    while (w->walked < w->last) {
+        size_t g = w->walked;
+        int st = cli_screen_next_series(&w->src, g, in, d);
+        if (st != SLOWSCAN_OK)
+            return st;
+        w->walked++;
+        if (w->first || q->add[g] > 0) {
+            in->null_range = 1;
+            in->null_first = q->drawn[g];
+            in->null_count = q->add[g];
+            w->map[index] = g;
+            return SLOWSCAN_OK;
+        }
+        cli_screen_release_series(&w->src, g);
+    }
+    return SCREEN_BATCH_END;
+}
+
+static void round_release(void *state, size_t index)
+{
+    round_walk *w = state;
+    cli_screen_release_series(&w->src, w->map[index]);
+}
+
+/* A series' round: its tests' counts, what it warned of. */
+static int round_put(void *state, const screen_batch_item *item)
+{
+    round_walk *w = state;
+    screen_sequential *q = w->seq;
+    size_t g = w->map[item->index];
+    const screen_result *r = item->result;
+    for (size_t w_ = 0; w_ < r->nwarnings; w_++) {
+        if (r->warnings[w_].kind == SCREEN_WARN_NO_SURROGATES)
+            q->no_null[g] = r->warnings[w_].status;
+        if (r->warnings[w_].kind == SCREEN_WARN_IAAFT_UNCONVERGED)
+            q->unconverged[g] += r->warnings[w_].count;
+    }
+    for (size_t j = 0; j < r->ntests && j < q->per_series; j++) {
+        sequential_test *t = &q->tests[g * q->per_series + j];
+        const screen_test *s = &r->tests[j];
+        if (w->first)
+            t->series = g, t->tested = !isnan(s->statistic) && !q->no_null[g];
+        if (!isnan(s->p_value)) {
+            t->hits += slowscan_screen_test_hits(s);
+            t->drawn += s->null_used;
+        }
+    }
+    q->drawn[g] += q->add[g];
+    q->spent += q->add[g];
+    return SLOWSCAN_OK;
+}
+
+static int run_round(const cli_options *opts, const cli_inputs *in, screen_run *run,
+                     screen_sequential *q, int first,
+                     int (*refuse)(const cli_options *, const screen_batch_failure *))
+{
+    round_walk w = {.src = {.ranks = 1, .rc = EXIT_OK}, .seq = q, .first = first};
+    size_t count = 0;
+    for (size_t g = 0; g < q->series; g++)
+        if (first || q->add[g] > 0)
+            count++, w.last = g + 1;
+    cli_cursor_start(&w.src.cursor, opts, in);
+    int rc = (w.map = calloc(q->series + 1, sizeof *w.map)) ? EXIT_OK : EXIT_INTERNAL;
+    if (rc != EXIT_OK)
+        cli_error("out of memory");
+    if (rc == EXIT_OK)
+        rc = cli_screen_source_arrays(in, &w.src, q->series);
+    if (rc == EXIT_OK) {
+        screen_source source = {round_next, round_release, count, &w};
+        screen_sink sink = {.put = round_put, .state = &w};
+        screen_batch_failure failure;
+        int st = slowscan_screen_batch_run(&run->cfg, &source, &sink, &failure);
+        rc = st == SLOWSCAN_OK ? EXIT_OK : w.src.rc != EXIT_OK ? w.src.rc : refuse(opts, &failure);
+    }
+    cli_screen_source_end(&w.src, q->series);
+    free(w.map);
+    return rc;
+}
+
+static screen_sequential *sequential_alloc(const cli_options *opts, const screen_config *cfg,
+                                           size_t series)
+{
+    screen_sequential *q = calloc(1, sizeof *q);
+    if (!q)
+        return NULL;
+    q->cfg = slowscan_sequential_config_default();
+    q->cfg.fdr = opts->fdr;
+    q->cfg.max_per_series = (size_t)opts->max_per_series;
+    q->cfg.budget = opts->budget > 0 ? (size_t)opts->budget : 0;
+    q->series = series;
+    q->per_series = slowscan_screen_test_count(cfg);
+    size_t s1 = series + 1;
+    q->tests = calloc(s1 * q->per_series + 1, sizeof *q->tests);
+    q->drawn = calloc(s1, sizeof *q->drawn);
+    q->add = calloc(s1, sizeof *q->add);
+    q->open = calloc(s1, sizeof *q->open);
+    q->no_null = calloc(s1, sizeof *q->no_null);
+    q->unconverged = calloc(s1, sizeof *q->unconverged);
+    if (!q->tests || !q->drawn || !q->add || !q->open || !q->no_null || !q->unconverged) {
+        cli_sequential_free(q);
+        return NULL;
+    }
+    return q;
+}
+
+void cli_sequential_free(screen_sequential *q)
+{
+    if (!q)
+        return;
+    free(q->tests), free(q->drawn), free(q->add), free(q->open), free(q->no_null);
+    free(q->unconverged);
+    free(q);
+}
+
+/* After a round: the decisions, which series are open, the next round's sizes. */
+static int plan_next(screen_sequential *q, size_t *total)
+{
+    size_t open = 0;
+    if (slowscan_sequential_decide(&q->cfg, q->tests, q->series * q->per_series, &open) !=
+        SLOWSCAN_OK)
+        return EXIT_INTERNAL;
+    q->undecided = open;
+    for (size_t g = 0; g < q->series; g++) {
+        q->open[g] = 0;
+        for (size_t j = 0; j < q->per_series; j++)
+            q->open[g] |= q->tests[g * q->per_series + j].decision == SEQUENTIAL_OPEN;
+    }
+    slowscan_sequential_next(&q->cfg, q->series, q->drawn, q->open, q->spent, q->budget, q->add,
+                             total);
+    return EXIT_OK;
+}
+
+int cli_sequential_run(const cli_options *opts, const cli_inputs *in, screen_run *run,
+                       size_t total, int (*refuse)(const cli_options *, const screen_batch_failure *))
+{
+    screen_sequential *q = run->seq = sequential_alloc(opts, &run->cfg, total);
+    if (!q) {
+        cli_error("out of memory");
+        return EXIT_INTERNAL;
+    }
+    /* round 1 gives every series first_round (within the budget, counted as if every test
+     * had a statistic), and every test its statistic */
+    q->budget = slowscan_sequential_budget(&q->cfg, total * q->per_series);
+    size_t add = 0;
+    for (size_t g = 0; g < total; g++)
+        q->open[g] = 1;
+    slowscan_sequential_next(&q->cfg, total, q->drawn, q->open, 0, q->budget, q->add, &add);
+    int rc = EXIT_OK;
+    for (int first = 1; rc == EXIT_OK && (first || add > 0); first = 0) {
+        rc = run_round(opts, in, run, q, first, refuse);
+        q->rounds++;
+        if (first) {
+            for (size_t r = 0; r < total * q->per_series; r++)
+                q->tested += q->tests[r].tested != 0;
+            q->budget = slowscan_sequential_budget(&q->cfg, q->tested);
+        }
+        if (rc == EXIT_OK && (rc = plan_next(q, &add)) != EXIT_OK)
+            cli_error("out of memory");
+    }
+    return rc;
+}
+
+void cli_sequential_patch(const screen_sequential *q, size_t g, screen_result *res)
+{
+    for (size_t j = 0; j < res->ntests && j < q->per_series; j++) {
+        const sequential_test *t = &q->tests[g * q->per_series + j];
+        screen_test *s = &res->tests[j];
+        double lo, hi;
+        s->surrogates = q->drawn[g];
+        if (t->tested)
+            slowscan_sequential_p(t, &s->p_value, &lo, &hi), s->null_used = t->drawn;
+        if (q->no_null[g] && !isnan(s->statistic))
+            s->reason = SCREEN_REASON_NO_SURROGATES;
+    }
+    if (q->no_null[g] && res->nwarnings < SCREEN_MAX_WARNINGS)
+        res->warnings[res->nwarnings++] =
+            (screen_warning){SCREEN_WARN_NO_SURROGATES, 0, q->drawn[g], q->no_null[g]};
+    if (q->unconverged[g] && res->nwarnings < SCREEN_MAX_WARNINGS)
+        res->warnings[res->nwarnings++] =
+            (screen_warning){SCREEN_WARN_IAAFT_UNCONVERGED, q->unconverged[g], q->drawn[g], 0};
+}
+
+screen_flag cli_sequential_flag(const screen_sequential *q, size_t g, size_t j,
+                                const screen_test *s, screen_flag stored)
+{
+    switch (q->tests[g * q->per_series + j].decision) {
+    case SEQUENTIAL_REJECTED: return s->statistic > 0 ? SCREEN_FLAG_RISING : SCREEN_FLAG_FALLING;
+    case SEQUENTIAL_ACCEPTED: return SCREEN_FLAG_NONE;
+    case SEQUENTIAL_OPEN: return SCREEN_FLAG_UNDECIDED;
+    default: return stored;
+    }
+}
+
+void cli_sequential_interval(const screen_sequential *q, size_t g, size_t j, double *lo,
+                             double *hi)
+{
+    double p;
+    slowscan_sequential_p(&q->tests[g * q->per_series + j], &p, lo, hi);
+}
+
+void cli_sequential_report(const cli_options *opts, const screen_sequential *q)
+{
+    (void)opts;
+    double m = (double)q->tested, floor_p = 1.0 / ((double)q->cfg.max_per_series + 1.0);
+    if (q->tested > 0 && floor_p > q->cfg.fdr / m)
+        cli_warning("option --surrogates auto: no discovery is possible: the smallest p, "
+                    "1/(K+1) = %.3g with --max-per-series %zu, is above q/m = %.3g for %zu "
+                    "tests; raise --max-per-series", floor_p, q->cfg.max_per_series,
+                    q->cfg.fdr / m, q->tested);
+    if (q->undecided > 0)
+        cli_warning("option --surrogates auto: %zu of %zu tests undecided: the budget (%zu "
+                    "surrogates, --budget) ran out before their side of the FDR threshold "
+                    "was settled", q->undecided, q->tested, q->budget);
+}
+
+void cli_sequential_json(FILE *fp, const screen_sequential *q)
+{
+    fprintf(fp, "  \"sequential\": {\n    \"procedure\": \"rounds of surrogates; Clopper-Pearson "
+                "intervals of every Monte Carlo p (joint level 1 - epsilon, Bonferroni over tests "
+                "x rounds); Benjamini-Hochberg on their upper and lower limits settles each test "
+                "(after Gandy and Hahn's MMCTest); p = (1 + hits) / (1 + surrogates)\",\n");
+    fprintf(fp, "    \"fdr\": %g,\n    \"epsilon\": %g,\n    \"budget\": %zu,\n"
+                "    \"max_per_series\": %zu,\n    \"first_round\": %zu,\n    \"block\": %zu,\n"
+                "    \"growth\": 2,\n    \"max_rounds\": %zu,\n    \"rounds\": %zu,\n"
+                "    \"surrogates_drawn\": %zu,\n    \"tests\": %zu,\n    \"undecided\": %zu,\n"
+                "    \"p_interval\": \"Clopper-Pearson 95%%\"\n  },\n",
+            q->cfg.fdr, q->cfg.epsilon, q->budget, q->cfg.max_per_series, q->cfg.first_round,
+            q->cfg.block, slowscan_sequential_max_rounds(&q->cfg), q->rounds, q->spent,
+            q->tested, q->undecided);
+}

@@ -1,0 +1,102 @@
+/* slowscan — sequential Monte Carlo testing of many tests at once, under Benjamini-Hochberg
+ * (module prefix: sequential_).
+ *
+ * Surrogates are drawn in rounds. After each round every test i has S_i surrogate statistics
+ * at least as extreme as its own (by the test's direction) among n_i drawn. Its unknown
+ * Monte Carlo p (the chance one surrogate is at least as extreme) lies, with joint
+ * probability at least 1 - epsilon over every test and every round (Bonferroni over
+ * m tests x the largest number of rounds), in a Clopper-Pearson interval [L_i, U_i].
+ * Benjamini-Hochberg at level q applied to the upper limits rejects a set A of tests, applied
+ * to the lower limits a set B containing A (BH's rejection set only grows as p-values fall):
+ * the tests in A would be rejected, those outside B accepted, whatever the p-values inside
+ * the intervals are; the rest are open and get more surrogates in the next round. This is the
+ * idea of Gandy & Hahn's MMCTest (Scand. J. Stat. 2014; recalled from memory, not checked;
+ * their intervals and spending of epsilon may differ). When the budget is spent, open tests
+ * are undecided.
+ *
+ * Surrogates are per series: one surrogate gives a statistic for every test of its series,
+ * so a series draws on while any of its tests is open. Round sizes depend only on the counts
+ * (never on scheduling) and are whole blocks of `block` replicates, so replicate j of a
+ * series is the same draw however the rounds fall.
+ *
+ * Plain data, no I/O; statuses from status.h. */
+#ifndef SLOWSCAN_SEQUENTIAL_H
+#define SLOWSCAN_SEQUENTIAL_H
+
+#include "slowscan/export.h"
+
+#include <stddef.h>
+
+typedef struct {
+    double fdr;            /* q of Benjamini-Hochberg: 0.05 */
+    double epsilon;        /* chance that any decision differs from BH on the exact
+                              Monte Carlo p-values: 1e-3 */
+    size_t max_per_series; /* K, surrogates of one series at most: 100000 */
+    size_t budget;         /* surrogates of the whole run (summed over series); 0: 200 per
+                              test with a statistic */
+    size_t first_round;    /* surrogates of every series in round 1: 64 */
+    size_t block;          /* round sizes are multiples of this (the stream block): 64 */
+} sequential_config;
+
+SLOWSCAN_API
+sequential_config slowscan_sequential_config_default(void);
+
+typedef enum {
+    SEQUENTIAL_OPEN = 0,   /* not settled yet (at the end: undecided) */
+    SEQUENTIAL_REJECTED,   /* BH rejects it whatever its p inside the interval */
+    SEQUENTIAL_ACCEPTED,   /* BH accepts it whatever its p inside the interval */
+    SEQUENTIAL_UNTESTED    /* no statistic: not in the family */
+} sequential_decision;
+
+/* One test of the run. */
+typedef struct {
+    size_t series;  /* its series (tests of a series are next to each other) */
+    int tested;     /* 0: no statistic or no null, not in the family */
+    size_t hits;    /* surrogate statistics at least as extreme */
+    size_t drawn;   /* finite surrogate statistics */
+    sequential_decision decision;
+    /* the joint Clopper-Pearson interval of the last decision, kept so that a test with no new
+       draws is not inverted again; interval_at: the drawn count it was made at (0: none) */
+    double lo, hi;
+    size_t interval_at;
+} sequential_test;
+
+/* Rounds a series can take from first_round doubling up to max_per_series: the rounds the
+ * error epsilon is spread over. */
+SLOWSCAN_API
+size_t slowscan_sequential_max_rounds(const sequential_config *cfg);
+
+/* The budget of a run with `tested` tests (cfg->budget, or 200 per test when 0). */
+SLOWSCAN_API
+size_t slowscan_sequential_budget(const sequential_config *cfg, size_t tested);
+
+/* Clopper-Pearson interval of a binomial share hits/trials at two-sided level alpha
+ * (GSL's beta quantiles, with bisection where they fail); trials 0 gives [0, 1]. */
+SLOWSCAN_API
+void slowscan_sequential_interval(size_t hits, size_t trials, double alpha, double *lo,
+                                  double *hi);
+
+/* Decides every tested test of tests[count] from its counts (writes .decision); *open
+ * receives the number still open. SLOWSCAN_ENOMEM. */
+SLOWSCAN_API
+int slowscan_sequential_decide(const sequential_config *cfg, sequential_test *tests,
+                               size_t count, size_t *open);
+
+/* The reported p of a test: (1 + hits) / (1 + drawn) (the usual Monte Carlo p, Davison &
+ * Hinkley 1997), and the 95% Clopper-Pearson interval of the Monte Carlo p from hits of
+ * drawn. NaN when the test has no draws. */
+SLOWSCAN_API
+void slowscan_sequential_p(const sequential_test *t, double *p, double *lo, double *hi);
+
+/* The next round: add[s] more surrogates for each of `series` series, from drawn[s] drawn so
+ * far and open[s] (non-zero: a test of series s is open), within what is left of the budget
+ * after `spent`. Doubling (first_round for a series with none), capped by max_per_series;
+ * when the requests exceed what is left, they are granted whole, smallest first (ties by
+ * series), and the first that does not fit gets the rest in whole blocks. Depends on the counts
+ * only. *total: the sum of add[] (0: the procedure ends). */
+SLOWSCAN_API
+void slowscan_sequential_next(const sequential_config *cfg, size_t series,
+                              const size_t *drawn, const int *open, size_t spent,
+                              size_t budget, size_t *add, size_t *total);
+
+#endif
