@@ -42,6 +42,13 @@ int cli_screen_tail_check(const cli_options *o)
 {
     if (o->tail.method == TAIL_OFF)
         return EXIT_OK;
+    if (o->surrogates_auto) {
+        /* The sequential rounds stop a test as soon as its decision is settled: its
+         * surrogates are too few, and too different in number between tests, for a tail fit. */
+        cli_error("option --tail gpd needs a fixed number of surrogates (--surrogates M, M >= "
+                  "1000); it cannot be combined with --surrogates auto");
+        return EXIT_BAD_INPUT;
+    }
     tail_options t = slowscan_tail_options_default();
     size_t need = slowscan_tail_min_surrogates(&t);
     if (o->surrogates < 0 || (size_t)o->surrogates < need) {

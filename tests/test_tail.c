@@ -379,6 +379,12 @@ static void check_cli(void)
           !strchr(strchr(e, '\n') + 1, '\n'), "too few surrogates refused: %s", e ? e : "");
     CHECK(!check_file_exists(out), "no output left by the refusal");
     free(o), free(e);
+    snprintf(cmd, sizeof cmd, "%s screen --surrogates auto --tail gpd -o %s %s", check_binary(),
+             out, csv);
+    rc = check_run(cmd, NULL, &e);
+    CHECK(rc == 1 && e && strstr(e, "--tail gpd") && strstr(e, "--surrogates auto"),
+          "--tail with --surrogates auto refused: %s", e ? e : "");
+    free(e);
     snprintf(cmd, sizeof cmd, "%s screen --tail pareto %s", check_binary(), csv);
     rc = check_run(cmd, NULL, &e);
     CHECK(rc == 1 && e && strstr(e, "--tail") && strstr(e, "pareto"), "unknown method: %s", e);
