@@ -80,9 +80,11 @@ void cli_screen_tail_parameters(FILE *fp, const cli_options *o)
     tail_options t = slowscan_tail_options_default();
     fprintf(fp, "  \"tail\": {\"method\": \"gpd\", \"estimate\": true, \"max_exceedances\": %zu, "
             "\"min_exceedances\": %zu, \"exceedance_step\": %zu, \"max_fraction\": %g, "
-            "\"goodness_of_fit\": \"anderson-darling\", \"gof_level\": %g},\n",
+            "\"goodness_of_fit\": \"anderson-darling\", \"gof_level\": %g, "
+            "\"p\": \"upper_confidence_limit\", \"confidence\": %g, "
+            "\"limit\": \"profile_likelihood\"},\n",
             t.max_exceedances, t.min_exceedances, t.exceedance_step, t.max_fraction,
-            t.gof_level);
+            t.gof_level, t.confidence);
 }
 
 void cli_screen_tail_json(FILE *fp, const cli_options *o, const screen_test *t)
@@ -95,7 +97,8 @@ void cli_screen_tail_json(FILE *fp, const cli_options *o, const screen_test *t)
             slowscan_tail_reason_name(r->reason));
     cli_json_number(fp, r->reason == TAIL_NOT_TESTED ? t->p_value : r->p_surrogates);
     const struct { const char *key; double v; } cells[] = {
-        {"p_estimate", r->used ? r->p : NAN}, {"xi", r->xi}, {"sigma", r->sigma},
+        {"p_estimate", r->used ? r->p : NAN}, {"p_point", r->p_point},
+        {"p_upper", r->p_upper}, {"p_predictive", r->p_predictive}, {"xi", r->xi}, {"sigma", r->sigma},
         {"threshold", r->threshold}, {"anderson_darling", r->ad},
         {"anderson_darling_critical", r->ad_critical}, {"anderson_darling_p", r->ad_p}};
     for (size_t k = 0; k < sizeof cells / sizeof cells[0]; k++) {

@@ -96,17 +96,24 @@ static double minus_loglik_at(double xi, void *params)
     return isfinite(l) ? -l : GSL_POSINF;
 }
 
-enum { SHAPE_GRID = 40 };
-static const double SHAPE_LO = -0.999, SHAPE_HI = 3.0;
+/* The shapes searched: 30 steps over (-1, 1.5], then 10 geometric steps to 50 (a profile
+ * at a large q can climb toward heavy tails; beyond 50 no surrogate null goes). */
+enum { SHAPE_GRID = 40, SHAPE_UNIFORM = 30 };
+static double shape_at(size_t g)
+{
+    if (g <= SHAPE_UNIFORM)
+        return -0.999 + 2.499 * (double)g / SHAPE_UNIFORM;
+    return 1.5 * pow(50.0 / 1.5, (double)(g - SHAPE_UNIFORM) / (SHAPE_GRID - SHAPE_UNIFORM));
+}
 
 /* max over xi of the log-likelihood with q fixed: a grid, then Brent around its best. */
 static double profile_q(profile_point *p)
 {
     gsl_function fn = {minus_loglik_at, p};
-    double h = (SHAPE_HI - SHAPE_LO) / SHAPE_GRID, best_f = GSL_POSINF;
+    double best_f = GSL_POSINF;
     size_t best = 0;
     for (size_t g = 0; g <= SHAPE_GRID; g++) {
-        double v = minus_loglik_at(SHAPE_LO + (double)g * h, p);
+        double v = minus_loglik_at(shape_at(g), p);
         if (v < best_f)
             best_f = v, best = g;
     }
@@ -116,10 +123,9 @@ static double profile_q(profile_point *p)
     gsl_min_fminimizer *s = gsl_min_fminimizer_alloc(gsl_min_fminimizer_brent);
     if (!s)
         return -best_f;
-    double x = SHAPE_LO + (double)best * h;
-    int st = gsl_min_fminimizer_set_with_values(s, &fn, x, best_f, x - h,
-                                                minus_loglik_at(x - h, p), x + h,
-                                                minus_loglik_at(x + h, p));
+    double x = shape_at(best), a = shape_at(best - 1), b = shape_at(best + 1);
+    int st = gsl_min_fminimizer_set_with_values(s, &fn, x, best_f, a, minus_loglik_at(a, p), b,
+                                                minus_loglik_at(b, p));
     for (int it = 0; st == GSL_SUCCESS && it < 100; it++) {
         st = gsl_min_fminimizer_iterate(s);
         if (gsl_min_test_interval(gsl_min_fminimizer_x_lower(s), gsl_min_fminimizer_x_upper(s),
@@ -171,36 +177,97 @@ static int zeta_upper(const tail_fit *f, double *zeta_up)
     return st;
 }
 
-int tail_bound_p(const tail_fit *f, double observed, double cap, double *p_upper, int *capped)
+/* log q where the profile lies d below the maximum, searched in (lo, top] (lo inside the
+ * region): *at_top when q at top is still inside (the value is then at least e^top). */
+static int q_at_deficit(q_search *s, double lmax, double d, double lo, double top, double *logq,
+                        int *at_top)
 {
-    *p_upper = cap;
-    *capped = 1;
+    gsl_function fn = {outside_q, s};
+    s->edge_line = lmax - d;
+    s->unsure = 0;
+    *at_top = 0;
+    *logq = top;
+    /* bracket by steps of e up from lo: the profile near the limit is well inside the
+     * shapes searched, unlike at q near 1 */
+    double hi = lo;
+    do {
+        lo = hi;
+        hi = fmin(lo + 1.0, top);
+        if (outside_q(hi, s) > 0)
+            break;
+        if (hi == top) {
+            *at_top = 1;
+            return SLOWSCAN_OK;
+        }
+    } while (1);
+    double rlo;
+    int st = s->unsure ? SLOWSCAN_ENUMERIC : tail_root(&fn, lo, hi, 1e-3, &rlo, logq);
+    return st != SLOWSCAN_OK || s->unsure ? SLOWSCAN_ENUMERIC : SLOWSCAN_OK;
+}
+
+/* int exp(lq + b (r - r0)) phi(r) dr over [r0, r1]: the log-linear piece of q(r). */
+static double segment(double lq, double lq1, double r0, double r1)
+{
+    double b = (lq1 - lq) / (r1 - r0);
+    if (!(b < 30)) /* a steep piece (from q = 0): its upper step, q(r1) over the piece */
+        return exp(lq1) * (gsl_cdf_ugaussian_Q(r0) - gsl_cdf_ugaussian_Q(r1));
+    return exp(lq - b * r0 + 0.5 * b * b) *
+           (gsl_cdf_ugaussian_Q(r0 - b) - gsl_cdf_ugaussian_Q(r1 - b));
+}
+
+/* The predictive tail probability: q averaged over its confidence distribution
+ * C(q) = Phi(r(q)), r the signed root of the profile deficit, sqrt(2 (l_max - l_prof(q)))
+ * above the estimate. Below the estimate (r < 0) q <= q_hat, counted as q_hat / 2; above,
+ * q(r) at nodes r0 + j/2, log-linear between them; where q is not resolved (it reaches 1, or
+ * the profile cannot be trusted) the rest counts as q = 1. Stops once the mean reaches
+ * q_stop (the caller's floor) or the mass left is under a thousandth of the sum (counted as
+ * q = 1). r0 > 0 when q_hat = 0 (a bounded fit ending before z0: the region reaches z0 only
+ * at deficit r0^2 / 2). */
+static double predictive(q_search *s, double lmax, double lq, double r0, double q_stop)
+{
+    const double h = 0.5, top = log1p(-1e-9), nothing = log(1e-300);
+    double sum = r0 > 0 ? 0.0 : 0.5 * exp(lq), r = r0;
+    for (int j = 0; j < 40 && sum < q_stop; j++) {
+        double rest = gsl_cdf_ugaussian_Q(r), lq1;
+        int at_top;
+        if (rest <= 1e-3 * sum ||
+            q_at_deficit(s, lmax, 0.5 * (r + h) * (r + h), lq > nothing ? lq : nothing, top,
+                         &lq1, &at_top) != SLOWSCAN_OK || at_top)
+            return sum + rest;
+        sum += segment(lq, lq1, r, r + h);
+        r += h;
+        lq = lq1;
+    }
+    return sum < q_stop ? sum + gsl_cdf_ugaussian_Q(r) : sum;
+}
+
+int tail_bound_p(const tail_fit *f, double observed, double cap, double *upper,
+                 double *predicted)
+{
+    *upper = *predicted = cap;
     double zeta;
     if (zeta_upper(f, &zeta) != SLOWSCAN_OK)
         return SLOWSCAN_ENUMERIC;
-    double z0 = observed - f->threshold, q_cap = cap / zeta;
-    q_search s = {{f, z0, 0.0, 0}, loglik(f, f->xi, f->sigma) - f->c, 0};
-    gsl_function fn = {outside_q, &s};
-    if (!(q_cap < 1) || !isfinite(s.edge_line) || outside_q(log(q_cap), &s) <= 0)
-        return s.unsure ? SLOWSCAN_ENUMERIC : SLOWSCAN_OK; /* inside: the limit is >= cap */
+    double z0 = observed - f->threshold, q_cap = cap / zeta, lmax = loglik(f, f->xi, f->sigma);
     double q_hat = slowscan_tail_gpd_sf(z0, f->xi, f->sigma);
-    double lo = q_hat > 1e-300 ? log(q_hat) : log(1e-300);
-    if (!(lo < log(q_cap)))
-        return SLOWSCAN_OK; /* the point estimate itself is at or above cap */
-    if (outside_q(lo, &s) > 0) {
-        /* at the point estimate the profile is the maximum: outside means it failed */
-        if (s.unsure || q_hat > 1e-300)
-            return SLOWSCAN_ENUMERIC;
-        *p_upper = 0.0; /* no tail in the region reaches z0 */
-        *capped = 0;
-        return SLOWSCAN_OK;
-    }
-    double rlo, rhi;
-    s.unsure = 0;
-    int st = tail_root(&fn, lo, log(q_cap), 1e-4, &rlo, &rhi);
-    if (st != SLOWSCAN_OK || s.unsure)
+    double lo = log(q_hat > 1e-300 ? q_hat : 1e-300);
+    if (!(q_cap < 1) || !isfinite(lmax) || !(lo < log(q_cap)))
+        return SLOWSCAN_OK; /* the point estimate itself is at or above the floor */
+    q_search s = {{f, z0, 0.0, 0}, lmax, 0};
+    double d0 = outside_q(lo, &s); /* the deficit at the point estimate */
+    if (s.unsure || (q_hat > 1e-300 && d0 > 1e-6))
+        return SLOWSCAN_ENUMERIC; /* there the profile is the maximum: anything else failed */
+    double r0 = q_hat > 1e-300 ? 0.0 : sqrt(2.0 * fmax(d0, 0.0)), lq;
+    int at_top = 0;
+    if (d0 >= f->c)
+        *upper = 0.0; /* no tail in the region reaches z0 */
+    else if (q_at_deficit(&s, lmax, f->c, lo, log(q_cap), &lq, &at_top) != SLOWSCAN_OK)
         return SLOWSCAN_ENUMERIC;
-    *p_upper = zeta * exp(rhi); /* the bracket's outer end: never below the limit */
-    *capped = 0;
+    else if (!at_top)
+        *upper = zeta * exp(lq); /* the bracket's outer end: never below the limit */
+    if (at_top)
+        return SLOWSCAN_OK; /* the limit reaches the floor: the predictive p does not matter */
+    double qp = predictive(&s, lmax, lo, r0, q_cap);
+    *predicted = qp < q_cap ? zeta * qp : cap;
     return SLOWSCAN_OK;
 }

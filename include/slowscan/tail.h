@@ -85,6 +85,8 @@ typedef struct {
                             fit passed; 0 beyond a bounded fit's end */
     double p_upper;      /* its upper confidence limit (the p used when used), NaN when not
                             computed, the ordinary p when the limit reaches it */
+    double p_predictive; /* the tail probability averaged over the parameters' confidence
+                            distribution (NaN, or the ordinary p, as p_upper) */
 } tail_result;
 
 /* "used", "not_needed", "not_tested", "few_surrogates", "no_fit", "poor_fit", "beyond_end",
