@@ -98,7 +98,8 @@ void cli_screen_tail_json(FILE *fp, const cli_options *o, const screen_test *t)
     cli_json_number(fp, r->reason == TAIL_NOT_TESTED ? t->p_value : r->p_surrogates);
     const struct { const char *key; double v; } cells[] = {
         {"p_estimate", r->used ? r->p : NAN}, {"p_point", r->p_point},
-        {"p_upper", r->p_upper}, {"p_predictive", r->p_predictive}, {"xi", r->xi}, {"sigma", r->sigma},
+        {"p_upper", r->p_upper}, {"p_predictive", r->p_predictive},
+        {"p_exponential", r->p_exponential}, {"xi", r->xi}, {"sigma", r->sigma},
         {"threshold", r->threshold}, {"anderson_darling", r->ad},
         {"anderson_darling_critical", r->ad_critical}, {"anderson_darling_p", r->ad_p}};
     for (size_t k = 0; k < sizeof cells / sizeof cells[0]; k++) {

@@ -350,14 +350,16 @@ static int use_bound(const tail_options *opt, const double *x, size_t m, double 
     out->p_point = (double)out->exceedances / (double)m * sf;
     tail_fit f = {x + m - out->exceedances, out->exceedances, m, out->threshold, out->xi,
                   out->sigma, tail_bound_deficit(opt->confidence)};
-    double upper, predicted;
-    if (tail_bound_p(&f, observed, out->p_surrogates, &upper, &predicted) != SLOWSCAN_OK) {
+    double upper, predicted, exponential;
+    if (tail_bound_p(&f, observed, out->p_surrogates, &upper, &predicted, &exponential) !=
+        SLOWSCAN_OK) {
         out->reason = TAIL_NO_BOUND;
         return SLOWSCAN_OK;
     }
     out->p_upper = upper;
     out->p_predictive = predicted;
-    double p = fmax(fmax(upper, predicted), out->p_point);
+    out->p_exponential = exponential;
+    double p = fmax(fmax(upper, predicted), fmax(exponential, out->p_point));
     if (!(p > 0)) {
         out->reason = TAIL_BEYOND_END;
         return SLOWSCAN_OK;
@@ -378,7 +380,7 @@ int slowscan_tail_estimate(const tail_options *opt, double *values, size_t count
     *out = (tail_result){.p = p_surrogates, .p_surrogates = p_surrogates, .used = 0,
                          .reason = TAIL_NOT_TESTED, .xi = NAN, .sigma = NAN, .threshold = NAN,
                          .ad = NAN, .ad_critical = NAN, .ad_p = NAN, .p_point = NAN,
-                         .p_upper = NAN, .p_predictive = NAN};
+                         .p_upper = NAN, .p_predictive = NAN, .p_exponential = NAN};
     if (!valid_options(opt))
         return SLOWSCAN_EINVAL;
     double largest;

@@ -21,14 +21,16 @@ typedef struct {
 double tail_bound_deficit(double confidence);
 
 /* The upper confidence limit of P(X > observed) = zeta * (1 - F(observed - t)) over the
- * region, and the predictive tail probability (its mean over the confidence distribution),
- * both multiplied by zeta's upper limit (see tail_bound.c). Each is `cap` when it reaches cap
+ * region, the predictive tail probability (its mean over the confidence distribution), and
+ * the upper limit with the shape fixed at 0 (the exponential floor), each multiplied by
+ * zeta's upper limit (see tail_bound.c). When the floor reaches cap the other two are not
+ * computed (left at cap). Each is `cap` when it reaches cap
  * (not resolved above it); *upper is 0 when no distribution in the region reaches the
  * observed (every end point lies before it). SLOWSCAN_OK; SLOWSCAN_ENUMERIC when the limit
  * cannot be trusted (the profile's maximum on the border of the shapes searched, or a root
  * finder failing). observed must exceed every x. */
 int tail_bound_p(const tail_fit *f, double observed, double cap, double *upper,
-                 double *predicted);
+                 double *predicted, double *exponential);
 
 /* Brent's root of fn in [lo, hi] (fn(lo), fn(hi) of opposite signs), to an absolute width
  * tol: the final bracket in *root_lo, *root_hi. SLOWSCAN_OK or SLOWSCAN_ENUMERIC. */

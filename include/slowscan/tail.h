@@ -87,6 +87,8 @@ typedef struct {
                             computed, the ordinary p when the limit reaches it */
     double p_predictive; /* the tail probability averaged over the parameters' confidence
                             distribution (NaN, or the ordinary p, as p_upper) */
+    double p_exponential; /* the upper limit with the shape fixed at 0: no lighter tail is
+                            extrapolated (NaN, or the ordinary p, as p_upper) */
 } tail_result;
 
 /* "used", "not_needed", "not_tested", "few_surrogates", "no_fit", "poor_fit", "beyond_end",
