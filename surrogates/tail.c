@@ -19,7 +19,7 @@ tail_options slowscan_tail_options_default(void)
      * ours: below 100 the shape is poorly determined, above a tenth the "tail" is the body. */
     return (tail_options){.method = TAIL_OFF, .max_exceedances = 250, .min_exceedances = 100,
                           .exceedance_step = 10, .max_fraction = 0.1, .gof_level = 0.05,
-                          .confidence = 0.95};
+                          .confidence = 0.95, .max_decades = 2.0};
 }
 
 size_t slowscan_tail_min_surrogates(const tail_options *opt)
@@ -301,7 +301,7 @@ static int valid_options(const tail_options *o)
     return o->min_exceedances >= 2 && o->max_exceedances >= o->min_exceedances &&
            o->exceedance_step >= 1 && o->max_fraction > 0 && o->max_fraction <= 1 &&
            o->gof_level >= 0.001 && o->gof_level <= 0.5 && o->confidence >= 0.5 &&
-           o->confidence < 1;
+           o->confidence < 1 && o->max_decades >= 0 && o->max_decades <= 300;
 }
 
 /* Tries the threshold below the nexc largest of x[m] (ascending): 1 when the fit passes. */
@@ -359,11 +359,14 @@ static int use_bound(const tail_options *opt, const double *x, size_t m, double 
     out->p_upper = upper;
     out->p_predictive = predicted;
     out->p_exponential = exponential;
+    /* Beyond max_decades below the floor the size was not measured to hold (three decades
+     * out, M = 1000, Student t nulls: 1.3 times alpha): p stops there. */
     double p = fmax(fmax(upper, predicted), fmax(exponential, out->p_point));
     if (!(p > 0)) {
         out->reason = TAIL_BEYOND_END;
         return SLOWSCAN_OK;
     }
+    p = fmax(p, out->p_surrogates * pow(10.0, -opt->max_decades));
     if (!(p < out->p_surrogates)) {
         out->reason = TAIL_NOT_BELOW_FLOOR;
         return SLOWSCAN_OK;

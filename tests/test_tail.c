@@ -171,7 +171,7 @@ static void check_exact_tail(const char *what, double (*draw)(gsl_rng *), double
     qsort(ratio, used, sizeof *ratio, by_double);
     qsort(point, used, sizeof *point, by_double);
     double median = used ? ratio[used / 2] : NAN;
-    CHECK(used >= R / 4, "%s: estimate used in %zu of %d replicates", what, used, R);
+    CHECK(used >= R / 8, "%s: estimate used in %zu of %d replicates", what, used, R);
     CHECK(ordered == used, "%s: p_point <= p_upper <= p < 1/(M+1) in %zu of %zu", what,
           ordered, used);
     CHECK(median > 1 && median < 15, "%s: median p / exact %.3f", what, median);
@@ -233,8 +233,24 @@ static void check_fallbacks(void)
     for (size_t j = 0; j < 10000; j++) /* density 2(1 - x) on [0, 1]: xi = -1/2, ends at 1 */
         w[j] = 1 - sqrt(gsl_rng_uniform_pos(r));
     slowscan_tail_estimate(&o, w, 10000, 1.5, 1.0 / 10001, &t);
-    CHECK(t.reason == TAIL_BEYOND_END && t.p == 1.0 / 10001 && t.xi < 0,
-          "beyond the fitted end: %s (xi %.3f)", slowscan_tail_reason_name(t.reason), t.xi);
+    /* beyond every end point of the region the point estimate and the GPD limit are 0; the
+     * exponential floor still gives a p (an unbounded tail is not ruled out) */
+    CHECK(t.xi < 0 && t.p_point == 0 && t.p_upper == 0 &&
+          t.p == fmax(t.p_exponential, 1.0 / 10001 * 1e-2) && t.p < 1.0 / 10001 &&
+          t.reason == TAIL_USED,
+          "beyond the fitted end: %s, p %g (xi %.3f)", slowscan_tail_reason_name(t.reason),
+          t.p, t.xi);
+    double largest = -INFINITY; /* just beyond the largest: the limit reaches the floor */
+    for (size_t j = 0; j < M; j++)
+        largest = fmax(largest, v[j] = gsl_ran_gaussian(r, 1.0));
+    slowscan_tail_estimate(&o, v, M, largest + 1e-9, p0, &t);
+    CHECK(t.reason == TAIL_NOT_BELOW_FLOOR && t.p == p0 && !t.used && t.p_upper == p0,
+          "just beyond the largest: %s (point estimate %g)", slowscan_tail_reason_name(t.reason),
+          t.p_point);
+    memcpy(w, v, M * sizeof *v); /* far beyond: p stops two decades below the floor */
+    slowscan_tail_estimate(&o, w, M, largest + 40, p0, &t);
+    CHECK(t.used && t.p == p0 * 1e-2 && t.p_upper < t.p,
+          "far beyond: p %g, two decades below %g (upper limit %g)", t.p, p0, t.p_upper);
     o.min_exceedances = 1;
     CHECK(slowscan_tail_estimate(&o, w, 10000, 1.5, 0.1, &t) == SLOWSCAN_EINVAL,
           "options out of their domain");

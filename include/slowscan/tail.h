@@ -43,6 +43,8 @@ typedef struct {
     double max_fraction;     /* 0.1: exceedances at most this share of the surrogates */
     double gof_level;        /* 0.05: a fit passes when the Anderson-Darling p exceeds this */
     double confidence;       /* 0.95: p is the one-sided upper limit at this confidence */
+    double max_decades;      /* 2: p never below 1/(M+1) x 10^-max_decades (how far beyond
+                                the surrogates the size was measured to hold) */
 } tail_options;
 
 SLOWSCAN_API
