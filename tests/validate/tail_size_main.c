@@ -21,7 +21,8 @@ int main(int argc, char **argv)
     for (int n = 0; n < 2; n++)
         for (int k = 0; k < 2; k++)
             for (int point = 1; point >= 0; point--) {
-                if (point && getenv("TAIL_SIZE_LIMIT_ONLY"))
+                if ((point && getenv("TAIL_SIZE_LIMIT_ONLY")) ||
+                    (!point && getenv("TAIL_SIZE_POINT_ONLY")))
                     continue;
                 if (only && (strcmp(only, n ? "t5" : "normal") != 0 || only_m != ms[k]))
                     continue;
