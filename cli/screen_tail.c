@@ -88,10 +88,11 @@ void cli_screen_tail_parameters(FILE *fp, const cli_options *o)
     fprintf(fp, "  \"tail\": {\"method\": \"gpd\", \"estimate\": true, \"max_exceedances\": %zu, "
             "\"min_exceedances\": %zu, \"exceedance_step\": %zu, \"max_fraction\": %g, "
             "\"goodness_of_fit\": \"anderson-darling\", \"gof_level\": %g, "
-            "\"p\": \"upper_confidence_limit\", \"confidence\": %g, "
-            "\"limit\": \"profile_likelihood\"},\n",
+            "\"p\": \"upper_bound\", \"confidence\": %g, "
+            "\"limit\": \"profile_likelihood\", \"also\": [\"predictive\", \"exponential\"], "
+            "\"max_decades\": %g},\n",
             t.max_exceedances, t.min_exceedances, t.exceedance_step, t.max_fraction,
-            t.gof_level, t.confidence);
+            t.gof_level, t.confidence, t.max_decades);
 }
 
 void cli_screen_tail_json(FILE *fp, const cli_options *o, const screen_test *t)
