@@ -146,9 +146,14 @@ VALIDATE_OBJ := $(B)/obj/tests/validate/validate.o $(B)/obj/tests/check.o \
 $(B)/validate: $(VALIDATE_OBJ) $(STATIC_LIBS)
 	$(CC) $(CFLAGS) -o $@ $^ $(LIBS)
 
+# The size of --tail gpd on i.i.d. nulls, exactly per set of surrogates (tests/tail_size.c).
+$(B)/tail_size: $(B)/obj/tests/validate/tail_size_main.o $(B)/obj/tests/tail_size.o $(STATIC_LIBS)
+	$(CC) $(CFLAGS) -o $@ $^ $(LIBS)
+
 validate: deps
-	@$(MAKE) --no-print-directory all $(B)/validate
+	@$(MAKE) --no-print-directory all $(B)/validate $(B)/tail_size
 	SLOWSCAN_BIN=$(B)/slowscan $(B)/validate $(B)/validate.md
+	$(B)/tail_size | tee $(B)/validate_tail.md
 
 DEMO_OUT ?= demo-output
 DEMO_ARGS := --deseason 364 --indicators variance,lag1,recovery_trend

@@ -261,7 +261,8 @@ int slowscan_screen_test_series(screen_workspace *ws, const screen_config *cfg, 
                            .reason = SCREEN_REASON_NO_VARIATION,
                            .tail = {.p = NAN, .p_surrogates = NAN, .xi = NAN, .sigma = NAN,
                                     .threshold = NAN, .ad = NAN, .ad_critical = NAN,
-                                    .ad_p = NAN}};
+                                    .ad_p = NAN, .p_point = NAN, .p_upper = NAN,
+                                    .p_predictive = NAN, .p_exponential = NAN}};
         if (!ps->constant) {
             if (j < cfg->nindicators)
                 t->tau = t->statistic = trend_of(ws, ps, paths[j], &t->reason);

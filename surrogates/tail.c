@@ -2,6 +2,7 @@
  * surrogate statistics (tail.h). */
 #include "slowscan/tail.h"
 #include "slowscan/status.h"
+#include "tail_internal.h"
 
 #include <gsl/gsl_errno.h>
 #include <gsl/gsl_min.h>
@@ -17,7 +18,8 @@ tail_options slowscan_tail_options_default(void)
      * procedure has it). The floor of 100 exceedances and the tenth of the surrogates are
      * ours: below 100 the shape is poorly determined, above a tenth the "tail" is the body. */
     return (tail_options){.method = TAIL_OFF, .max_exceedances = 250, .min_exceedances = 100,
-                          .exceedance_step = 10, .max_fraction = 0.1, .gof_level = 0.05};
+                          .exceedance_step = 10, .max_fraction = 0.1, .gof_level = 0.05,
+                          .confidence = 0.95, .max_decades = 2.0};
 }
 
 size_t slowscan_tail_min_surrogates(const tail_options *opt)
@@ -37,6 +39,8 @@ const char *slowscan_tail_reason_name(tail_reason reason)
     case TAIL_NO_FIT: return "no_fit";
     case TAIL_POOR_FIT: return "poor_fit";
     case TAIL_BEYOND_END: return "beyond_end";
+    case TAIL_NOT_BELOW_FLOOR: return "not_below_floor";
+    case TAIL_NO_BOUND: return "no_bound";
     }
     return "unknown";
 }
@@ -123,19 +127,8 @@ static double xi_plus_one(double u, void *params)
 static int lower_end(exceedances *e, double *u_lo)
 {
     gsl_function f = {xi_plus_one, e};
-    gsl_root_fsolver *s = gsl_root_fsolver_alloc(gsl_root_fsolver_brent);
-    if (!s)
-        return SLOWSCAN_ENOMEM;
-    int st = gsl_root_fsolver_set(s, &f, -2.0 * (double)e->n, 0.0);
-    for (int it = 0; st == GSL_SUCCESS && it < 200; it++) {
-        st = gsl_root_fsolver_iterate(s);
-        double a = gsl_root_fsolver_x_lower(s), b = gsl_root_fsolver_x_upper(s);
-        if (st == GSL_SUCCESS && gsl_root_test_interval(a, b, 1e-12, 1e-12) == GSL_SUCCESS)
-            break;
-    }
-    *u_lo = gsl_root_fsolver_root(s);
-    gsl_root_fsolver_free(s);
-    return st == GSL_SUCCESS ? SLOWSCAN_OK : SLOWSCAN_ENUMERIC;
+    double lo;
+    return tail_root(&f, -2.0 * (double)e->n, 0.0, 1e-12, &lo, u_lo);
 }
 
 /* Grid points of the search: dense enough that the grid's best point has neighbours worse
@@ -307,7 +300,8 @@ static int valid_options(const tail_options *o)
 {
     return o->min_exceedances >= 2 && o->max_exceedances >= o->min_exceedances &&
            o->exceedance_step >= 1 && o->max_fraction > 0 && o->max_fraction <= 1 &&
-           o->gof_level >= 0.001 && o->gof_level <= 0.5;
+           o->gof_level >= 0.001 && o->gof_level <= 0.5 && o->confidence >= 0.5 &&
+           o->confidence < 1 && o->max_decades >= 0 && o->max_decades <= 300;
 }
 
 /* Tries the threshold below the nexc largest of x[m] (ascending): 1 when the fit passes. */
@@ -348,12 +342,48 @@ static size_t finite_front(double *values, size_t count, double *largest)
     return m;
 }
 
+/* With a fit accepted: the point estimate, its upper limit, and which p stands. */
+static int use_bound(const tail_options *opt, const double *x, size_t m, double observed,
+                     tail_result *out)
+{
+    double sf = slowscan_tail_gpd_sf(observed - out->threshold, out->xi, out->sigma);
+    out->p_point = (double)out->exceedances / (double)m * sf;
+    tail_fit f = {x + m - out->exceedances, out->exceedances, m, out->threshold, out->xi,
+                  out->sigma, tail_bound_deficit(opt->confidence)};
+    double upper, predicted, exponential;
+    if (tail_bound_p(&f, observed, out->p_surrogates, &upper, &predicted, &exponential) !=
+        SLOWSCAN_OK) {
+        out->reason = TAIL_NO_BOUND;
+        return SLOWSCAN_OK;
+    }
+    out->p_upper = upper;
+    out->p_predictive = predicted;
+    out->p_exponential = exponential;
+    /* Beyond max_decades below the floor the size was not measured to hold (three decades
+     * out, M = 1000, Student t nulls: 1.3 times alpha): p stops there. */
+    double p = fmax(fmax(upper, predicted), fmax(exponential, out->p_point));
+    if (!(p > 0)) {
+        out->reason = TAIL_BEYOND_END;
+        return SLOWSCAN_OK;
+    }
+    p = fmax(p, out->p_surrogates * pow(10.0, -opt->max_decades));
+    if (!(p < out->p_surrogates)) {
+        out->reason = TAIL_NOT_BELOW_FLOOR;
+        return SLOWSCAN_OK;
+    }
+    out->p = p;
+    out->used = 1;
+    out->reason = TAIL_USED;
+    return SLOWSCAN_OK;
+}
+
 int slowscan_tail_estimate(const tail_options *opt, double *values, size_t count,
                            double observed, double p_surrogates, tail_result *out)
 {
     *out = (tail_result){.p = p_surrogates, .p_surrogates = p_surrogates, .used = 0,
                          .reason = TAIL_NOT_TESTED, .xi = NAN, .sigma = NAN, .threshold = NAN,
-                         .ad = NAN, .ad_critical = NAN, .ad_p = NAN};
+                         .ad = NAN, .ad_critical = NAN, .ad_p = NAN, .p_point = NAN,
+                         .p_upper = NAN, .p_predictive = NAN, .p_exponential = NAN};
     if (!valid_options(opt))
         return SLOWSCAN_EINVAL;
     double largest;
@@ -383,13 +413,5 @@ int slowscan_tail_estimate(const tail_options *opt, double *values, size_t count
         out->reason = fitted ? TAIL_POOR_FIT : TAIL_NO_FIT;
         return SLOWSCAN_OK;
     }
-    double sf = slowscan_tail_gpd_sf(observed - out->threshold, out->xi, out->sigma);
-    if (!(sf > 0)) {
-        out->reason = TAIL_BEYOND_END;
-        return SLOWSCAN_OK;
-    }
-    out->p = (double)out->exceedances / (double)m * sf;
-    out->used = 1;
-    out->reason = TAIL_USED;
-    return SLOWSCAN_OK;
+    return use_bound(opt, values, m, observed, out);
 }

@@ -6,7 +6,11 @@
  * generalised Pareto distribution (GPD) fitted to the exceedances over t, and
  *     p_tail = (N_exc / M) * (1 - F_gpd(observed - t; xi, sigma))
  * (Knijnenburg, Wessels, Reinders & Shmulevich 2009, Bioinformatics 25(12):i161, "Fewer
- * permutations, more accurate P-values"). The threshold is chosen as they do: t halfway
+ * permutations, more accurate P-values"). That point estimate errs toward too small (it was
+ * measured at 3 to 10 times the nominal rate of p < 1e-5 and 1e-6 on normal nulls), so the
+ * p used is its one-sided upper confidence limit (opt->confidence, 95%), from the profile
+ * likelihood of the tail probability (Coles 2001, ch. 4) with the binomial uncertainty of
+ * N_exc / M (surrogates/tail_bound.c); the point estimate is kept in p_point. The threshold is chosen as they do: t halfway
  * between the N_exc-th and (N_exc+1)-th largest surrogate, N_exc from 250 down in steps of 10
  * until an Anderson-Darling test of the fitted GPD passes at level 0.05; here never below 100
  * exceedances, and never more than a tenth of the surrogates (the fit is of a tail).
@@ -38,6 +42,9 @@ typedef struct {
     size_t exceedance_step;  /* 10 */
     double max_fraction;     /* 0.1: exceedances at most this share of the surrogates */
     double gof_level;        /* 0.05: a fit passes when the Anderson-Darling p exceeds this */
+    double confidence;       /* 0.95: p is the one-sided upper limit at this confidence */
+    double max_decades;      /* 2: p never below 1/(M+1) x 10^-max_decades (how far beyond
+                                the surrogates the size was measured to hold) */
 } tail_options;
 
 SLOWSCAN_API
@@ -55,8 +62,11 @@ typedef enum {
     TAIL_FEW_SURROGATES, /* fewer finite surrogates than slowscan_tail_min_surrogates */
     TAIL_NO_FIT,         /* no maximum-likelihood fit with xi > -1 at any threshold tried */
     TAIL_POOR_FIT,       /* the Anderson-Darling test rejected the fit at every threshold */
-    TAIL_BEYOND_END      /* xi < 0 and the observed lies at or beyond the fitted end point,
-                            where the estimate would be 0: not credible, the ordinary p stands */
+    TAIL_BEYOND_END,     /* no tail in the confidence region reaches the observed (every end
+                            point lies before it): a limit of 0 is not credible, the ordinary
+                            p stands */
+    TAIL_NOT_BELOW_FLOOR, /* the upper limit is not below the ordinary p, which stands */
+    TAIL_NO_BOUND        /* the upper limit could not be computed: the ordinary p stands */
 } tail_reason;
 
 /* Plain data. Fit fields are NaN (and counts 0) when no fit was tried; for TAIL_POOR_FIT
@@ -73,9 +83,18 @@ typedef struct {
     double ad;           /* Anderson-Darling A^2 of the exceedances under the fit */
     double ad_critical;  /* its critical value at gof_level (Choulakian & Stephens 2001) */
     double ad_p;         /* its p, interpolated in their table, within [0.001, 0.5] */
+    double p_point;      /* the point estimate (N_exc / M)(1 - F(observed - t)), NaN when no
+                            fit passed; 0 beyond a bounded fit's end */
+    double p_upper;      /* its upper confidence limit (the p used when used), NaN when not
+                            computed, the ordinary p when the limit reaches it */
+    double p_predictive; /* the tail probability averaged over the parameters' confidence
+                            distribution (NaN, or the ordinary p, as p_upper) */
+    double p_exponential; /* the upper limit with the shape fixed at 0: no lighter tail is
+                            extrapolated (NaN, or the ordinary p, as p_upper) */
 } tail_result;
 
-/* "used", "not_needed", "not_tested", "few_surrogates", "no_fit", "poor_fit", "beyond_end". */
+/* "used", "not_needed", "not_tested", "few_surrogates", "no_fit", "poor_fit", "beyond_end",
+ * "not_below_floor", "no_bound". */
 SLOWSCAN_API
 const char *slowscan_tail_reason_name(tail_reason reason);
 
@@ -112,7 +131,9 @@ double slowscan_tail_ad_p(double xi, double a2);
 /* The tail estimate of one test. values[count] are the surrogate statistics oriented so that
  * larger is more extreme (non-finite ones are skipped); they are sorted in place. observed
  * is on the same scale; p_surrogates is the ordinary p. The estimate is tried only when
- * opt->method is TAIL_GPD and observed exceeds every finite surrogate. Always fills *out;
+ * opt->method is TAIL_GPD and observed exceeds every finite surrogate; it is used only when
+ * its upper limit lies below p_surrogates, so p never exceeds the ordinary p and never falls
+ * below the limit (nor the point estimate). Deterministic: no random draws. Always fills *out;
  * SLOWSCAN_OK, or SLOWSCAN_EINVAL for options out of their domain. */
 SLOWSCAN_API
 int slowscan_tail_estimate(const tail_options *opt, double *values, size_t count,
