@@ -226,6 +226,24 @@ static int set_budget(cli_options *o, const char *n, const char *v)
     return set_whole(n, v, 1, LONG_MAX, &o->budget);
 }
 
+/* --risk E: the chance a test's interval misses its p, (0, 0.5). */
+static int set_risk(cli_options *o, const char *n, const char *v)
+{
+    int rc = cli_parse_number(n, v, &o->risk);
+    if (rc == EXIT_OK && !(o->risk > 0 && o->risk < 0.5)) {
+        cli_error("option %s: %s is outside (0, 0.5)", n, v);
+        return EXIT_BAD_INPUT;
+    }
+    return rc;
+}
+
+static int set_risk_joint(cli_options *o, const char *n, const char *v)
+{
+    (void)n, (void)v;
+    o->risk_joint = 1;
+    return EXIT_OK;
+}
+
 static int set_max_per_series(cli_options *o, const char *n, const char *v)
 {
     return set_whole(n, v, 64, MAX_SURROGATES, &o->max_per_series);
@@ -363,6 +381,8 @@ static const option_spec options[] = {
     {"--null", 1, C_TESTING | C_SURROGATES, set_null},
     {"--budget", 1, C_SCREEN, set_budget},
     {"--max-per-series", 1, C_SCREEN, set_max_per_series},
+    {"--risk", 1, C_SCREEN, set_risk},
+    {"--risk-joint", 0, C_SCREEN, set_risk_joint},
     {"--iaaft-tol", 1, C_TESTING | C_SURROGATES, set_iaaft_tol},
     {"--iaaft-iterations", 1, C_TESTING | C_SURROGATES, set_iaaft_iterations},
     {"--block-length", 1, C_TESTING | C_SURROGATES, set_block_length},

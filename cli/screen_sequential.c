@@ -18,9 +18,13 @@
 
 int cli_sequential_check(const cli_options *opts)
 {
-    if (!opts->surrogates_auto && (opts->budget > 0 || opts->max_per_series != 100000)) {
+    int risk = opts->risk != 1e-3 || opts->risk_joint;
+    if (!opts->surrogates_auto && (opts->budget > 0 || opts->max_per_series != 100000 || risk)) {
         cli_error("option %s: only with --surrogates auto",
-                  opts->budget > 0 ? "--budget" : "--max-per-series");
+                  opts->budget > 0                ? "--budget"
+                  : opts->max_per_series != 100000 ? "--max-per-series"
+                  : opts->risk_joint               ? "--risk-joint"
+                                                   : "--risk");
         return EXIT_BAD_INPUT;
     }
     if (!opts->surrogates_auto)
@@ -138,6 +142,8 @@ static screen_sequential *sequential_alloc(const cli_options *opts, const screen
     q->cfg = slowscan_sequential_config_default();
     q->cfg.fdr = opts->fdr;
     q->cfg.max_per_series = (size_t)opts->max_per_series;
+    q->cfg.epsilon = opts->risk;
+    q->cfg.joint = opts->risk_joint;
     q->cfg.budget = opts->budget > 0 ? (size_t)opts->budget : 0;
     q->series = series;
     q->per_series = slowscan_screen_test_count(cfg);
@@ -208,6 +214,12 @@ int cli_sequential_run(const cli_options *opts, const cli_inputs *in, screen_run
         }
         if (rc == EXIT_OK && (rc = plan_next(q, &add)) != EXIT_OK)
             cli_error("out of memory");
+    }
+    /* the budget is spent: the open tests against BH's threshold on the reported p */
+    if (rc == EXIT_OK && slowscan_sequential_finish(&q->cfg, q->tests, total * q->per_series,
+                                                    &q->undecided) != SLOWSCAN_OK) {
+        cli_error("out of memory");
+        rc = EXIT_INTERNAL;
     }
     return rc;
 }
