@@ -280,15 +280,18 @@ void cli_sequential_report(const cli_options *opts, const screen_sequential *q)
 void cli_sequential_json(FILE *fp, const screen_sequential *q)
 {
     fprintf(fp, "  \"sequential\": {\n    \"procedure\": \"rounds of surrogates; Clopper-Pearson "
-                "intervals of every Monte Carlo p (joint level 1 - epsilon, Bonferroni over tests "
-                "x rounds); Benjamini-Hochberg on their upper and lower limits settles each test "
-                "(after Gandy and Hahn's MMCTest); p = (1 + hits) / (1 + surrogates)\",\n");
-    fprintf(fp, "    \"fdr\": %g,\n    \"epsilon\": %g,\n    \"budget\": %zu,\n"
+                "intervals of every Monte Carlo p (level 1 - epsilon / max_rounds per round and "
+                "test, or with risk 'joint' 1 - epsilon / (tests x max_rounds)); "
+                "Benjamini-Hochberg on their upper and lower limits settles each test "
+                "(after Gandy and Hahn's MMCTest and QuickMMCTest); when the budget is spent, "
+                "open tests whose interval lies on one side of BH's threshold on the reported p "
+                "take that side, the rest are undecided; p = (1 + hits) / (1 + surrogates)\",\n");
+    fprintf(fp, "    \"fdr\": %g,\n    \"epsilon\": %g,\n    \"risk\": \"%s\",\n    \"budget\": %zu,\n"
                 "    \"max_per_series\": %zu,\n    \"first_round\": %zu,\n    \"block\": %zu,\n"
                 "    \"growth\": 2,\n    \"max_rounds\": %zu,\n    \"rounds\": %zu,\n"
                 "    \"surrogates_drawn\": %zu,\n    \"tests\": %zu,\n    \"undecided\": %zu,\n"
                 "    \"p_interval\": \"Clopper-Pearson 95%%\"\n  },\n",
-            q->cfg.fdr, q->cfg.epsilon, q->budget, q->cfg.max_per_series, q->cfg.first_round,
+            q->cfg.fdr, q->cfg.epsilon, q->cfg.joint ? "joint" : "per test", q->budget, q->cfg.max_per_series, q->cfg.first_round,
             q->cfg.block, slowscan_sequential_max_rounds(&q->cfg), q->rounds, q->spent,
             q->tested, q->undecided);
 }

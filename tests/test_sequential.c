@@ -231,12 +231,12 @@ static void command(void)
     char py[1024];
     snprintf(py, sizeof py,
              "/usr/bin/python3 -c \"import json; d=json.load(open('%s')); s=d['sequential'];"
-             "r=d['results'][0]; print(s['budget'], s['max_per_series'], s['epsilon'],"
+             "r=d['results'][0]; print(s['budget'], s['max_per_series'], s['epsilon'], s['risk'],"
              " d['parameters']['surrogates'] == 'auto', len(r['p_interval']), r['surrogates'] > 0)\"",
              json);
     char *jout = NULL;
     int jrc = check_run(py, &jout, NULL);
-    CHECK(rc == 0 && jrc == 0 && jout && !strcmp(jout, "6000 100000 0.001 True 2 True\n"),
+    CHECK(rc == 0 && jrc == 0 && jout && !strcmp(jout, "6000 100000 0.001 per test True 2 True\n"),
           "JSON records the procedure: %s", jout ? jout : "");
     free(jout);
     /* a tiny budget: undecided tests, said on stderr */
@@ -256,7 +256,9 @@ static void command(void)
     /* refusals: one line naming the option, exit 1, no output file */
     const char *refused[] = {"screen --budget 100", "screen --surrogates auto --resume",
                              "robustness --surrogates auto", "screen --max-per-series 10 "
-                                                             "--surrogates auto"};
+                                                             "--surrogates auto",
+                             "screen --risk 0.01", "screen --risk-joint",
+                             "screen --surrogates auto --risk 0.7"};
     for (size_t k = 0; k < sizeof refused / sizeof refused[0]; k++) {
         const char *o = check_tmp_path("sequential_refused.csv");
         snprintf(args, sizeof args, "%s %s -o %s", refused[k], csv, o);
