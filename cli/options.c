@@ -226,15 +226,22 @@ static int set_budget(cli_options *o, const char *n, const char *v)
     return set_whole(n, v, 1, LONG_MAX, &o->budget);
 }
 
-/* --risk E: the chance a test's interval misses its p, (0, 0.5). */
-static int set_risk(cli_options *o, const char *n, const char *v)
+/* A number strictly between 0 and max (`bound`: max as the message writes it). */
+static int set_open_interval(const char *n, const char *v, double max, const char *bound,
+                             double *out)
 {
-    int rc = cli_parse_number(n, v, &o->risk);
-    if (rc == EXIT_OK && !(o->risk > 0 && o->risk < 0.5)) {
-        cli_error("option %s: %s is outside (0, 0.5)", n, v);
+    int rc = cli_parse_number(n, v, out);
+    if (rc == EXIT_OK && !(*out > 0 && *out < max)) {
+        cli_error("option %s: %s is outside (0, %s)", n, v, bound);
         return EXIT_BAD_INPUT;
     }
     return rc;
+}
+
+/* --risk E: the chance a test's interval misses its p. */
+static int set_risk(cli_options *o, const char *n, const char *v)
+{
+    return set_open_interval(n, v, 0.5, "0.5", &o->risk);
 }
 
 static int set_risk_joint(cli_options *o, const char *n, const char *v)
@@ -295,12 +302,7 @@ static int set_block_length(cli_options *o, const char *n, const char *v)
 
 static int set_fdr(cli_options *o, const char *n, const char *v)
 {
-    int rc = cli_parse_number(n, v, &o->fdr);
-    if (rc == EXIT_OK && !(o->fdr > 0 && o->fdr < 1)) {
-        cli_error("option %s: %s is outside (0, 1)", n, v);
-        return EXIT_BAD_INPUT;
-    }
-    return rc;
+    return set_open_interval(n, v, 1, "1", &o->fdr);
 }
 
 static int set_alternative(cli_options *o, const char *n, const char *v)
