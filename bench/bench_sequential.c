@@ -1,7 +1,7 @@
 /* Benchmark of --surrogates auto (sequential Monte Carlo tests under BH) against a fixed
  * number of surrogates M = 10^4 taken as the reference.
  *
- * Data: S series (default 10^4; `bench_sequential S B` for fewer, B the budget per series,
+ * Data: S series (default 10^4; `bench_sequential S B E` for fewer, B the budget per series,
  * default 1000; E, --risk, default 0.001) of 500 samples; every 100th
  * is AR(1) with its coefficient rising linearly from 0.2 to 0.9, the rest AR(1) with a
  * stationary coefficient 0.5 (GSL mt19937, seed 16). Default indicators (variance, lag1) and
