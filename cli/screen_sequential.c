@@ -204,7 +204,8 @@ int cli_sequential_run(const cli_options *opts, const cli_inputs *in, screen_run
         q->open[g] = 1;
     slowscan_sequential_next(&q->cfg, total, q->drawn, q->open, 0, q->budget, q->add, &add);
     int rc = EXIT_OK;
-    for (int first = 1; rc == EXIT_OK && (first || add > 0); first = 0) {
+    size_t rounds = slowscan_sequential_max_rounds(&q->cfg); /* the risk is spread over these */
+    for (int first = 1; rc == EXIT_OK && (first || add > 0) && q->rounds < rounds; first = 0) {
         rc = run_round(opts, in, run, q, first, refuse);
         q->rounds++;
         if (first) {

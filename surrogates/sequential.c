@@ -128,7 +128,8 @@ static size_t grant_common_cap(const sequential_config *cfg, size_t series, size
     size_t cap = lo * block, total = cut_sum(add, series, cap);
     left -= total;
     for (size_t s = 0; s < series; s++) {
-        size_t extra = add[s] > cap && left >= block ? block : 0;
+        size_t over = add[s] > cap ? add[s] - cap : 0, extra = left >= block ? block : 0;
+        extra = over < extra ? over : extra;
         add[s] = (add[s] < cap ? add[s] : cap) + extra;
         left -= extra, total += extra;
     }

@@ -289,7 +289,7 @@ static void simulated_screen(const sequential_config *cfg, gsl_rng *r, size_t m,
     }
     size_t budget = slowscan_sequential_budget(cfg, m), spent = 0, total = 0, left = 0;
     slowscan_sequential_next(cfg, m, drawn, open, spent, budget, add, &total);
-    while (total > 0) {
+    for (size_t round = 0; total > 0 && round < slowscan_sequential_max_rounds(cfg); round++) {
         for (size_t i = 0; i < m; i++) {
             t[i].hits += gsl_ran_binomial(r, p[i], (unsigned)add[i]);
             t[i].drawn += add[i], drawn[i] += add[i], spent += add[i];

@@ -69,7 +69,9 @@ typedef struct {
 } sequential_test;
 
 /* Rounds a series can take from first_round doubling up to max_per_series: the rounds the
- * error epsilon is spread over. */
+ * error epsilon is spread over. A run takes no more rounds than this (a series cut short by
+ * the budget then ends below max_per_series), so no test gets more intervals than the
+ * risk was spread over. */
 SLOWSCAN_API
 size_t slowscan_sequential_max_rounds(const sequential_config *cfg);
 
