@@ -118,6 +118,12 @@ static void next_round(void)
     /* cap 1472 (1024 + 2 x 1472 = 3968 fits, a block more does not), 32 left: less than a block */
     CHECK(add[0] == 1024 && add[1] == 1472 && add[2] == 1472 && total == 3968,
           "common cap and blocks: %zu %zu %zu", add[0], add[1], add[2]);
+    size_t near_k[] = {99900, 1000, 1000};
+    slowscan_sequential_next(&cfg, 3, near_k, open, 0, 300, add, &total);
+    /* asked 100 (K - 99900), 1000, 1000: cap 64 (192), 108 left: 36 more to the first (never
+       past its request), a block to the second, 8 left */
+    CHECK(add[0] == 100 && add[1] == 128 && add[2] == 64 && total == 292,
+          "blocks after the cap within the requests: %zu %zu %zu", add[0], add[1], add[2]);
     slowscan_sequential_next(&cfg, 5, drawn, open, 0, 100, add, &total);
     CHECK(add[0] == 64 && add[1] == 0 && add[2] == 0 && total == 64,
           "a block to the first series when less than two are left: %zu %zu %zu", add[0], add[1],
