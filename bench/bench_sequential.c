@@ -1,8 +1,8 @@
 /* Benchmark of --surrogates auto (sequential Monte Carlo tests under BH) against a fixed
  * number of surrogates M = 10^4 taken as the reference.
  *
- * Data: S series (default 10^4; `bench_sequential S B` for fewer, B the budget per series,
- * default 1000) of 500 samples; every 100th
+ * Data: S series (default 10^4; `bench_sequential S B E` for fewer, B the budget per series,
+ * default 1000; E, --risk, default 0.001) of 500 samples; every 100th
  * is AR(1) with its coefficient rising linearly from 0.2 to 0.9, the rest AR(1) with a
  * stationary coefficient 0.5 (GSL mt19937, seed 16). Default indicators (variance, lag1) and
  * recovery_trend: 3 tests per series.
@@ -157,13 +157,14 @@ static int run(const char *cmd, double *seconds)
 
 /* The auto run over `series` series of x into a[]: its time and surrogates. */
 static unsigned long per_series_budget = 1000; /* `bench_sequential S B`: B per series */
+static const char *risk = "0.001";              /* `bench_sequential S B E`: --risk E */
 
 static int auto_run(const char *bin, const char *csv, const char *out, size_t series, row *a,
                     double *seconds, size_t *drawn)
 {
     char cmd[2048];
-    snprintf(cmd, sizeof cmd, "%s screen --surrogates auto --budget %lu --threads 2 --quiet %s -o %s",
-             bin, per_series_budget * series, csv, out);
+    snprintf(cmd, sizeof cmd, "%s screen --surrogates auto --budget %lu --risk %s --threads 2 "
+             "--quiet %s -o %s", bin, per_series_budget * series, risk, csv, out);
     if (run(cmd, seconds) != 0 || read_summary(out, a, series, 1) != series * TESTS)
         return -1;
     *drawn = 0;
@@ -200,6 +201,8 @@ int main(int argc, char **argv)
     size_t series = argc > 1 ? strtoul(argv[1], NULL, 10) : 10000, m = series * TESTS;
     if (argc > 2)
         per_series_budget = strtoul(argv[2], NULL, 10);
+    if (argc > 3)
+        risk = argv[3];
     const char *bin = getenv("SLOWSCAN_BIN") ? getenv("SLOWSCAN_BIN") : "build/slowscan";
     if (!mkdtemp(dir))
         return 2;
@@ -243,8 +246,8 @@ int main(int argc, char **argv)
     double per_series = subset ? t_ref / (double)subset : 0;
     printf("bench_sequential: %zu series x %d samples (%zu with rising memory), %zu tests, q 0.05\n",
            series, N, (series + 99) / 100, m);
-    printf("  auto (--budget %lu, --threads 2): %.1f s, %zu surrogates (%.0f per series), %zu "
-           "discoveries, %zu undecided\n", per_series_budget * series, t_auto, drawn,
+    printf("  auto (--budget %lu, --risk %s, --threads 2): %.1f s, %zu surrogates (%.0f per "
+           "series), %zu discoveries, %zu undecided\n", per_series_budget * series, risk, t_auto, drawn,
            (double)drawn / (double)series, found, undecided);
     printf("  reference --surrogates %d: %zu discoveries; drawn for the %zu series holding the %zu "
            "candidate tests in %.1f s (%.2f s per series: about %.0f s for all %zu)\n", REFERENCE,

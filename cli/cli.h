@@ -98,6 +98,8 @@ typedef struct {
     int surrogates_auto;  /* screen --surrogates auto: sequential tests (sequential.h) */
     long budget;          /* --budget N: surrogates of the whole run; 0: 200 per test */
     long max_per_series;  /* --max-per-series K: 100000 */
+    double risk;          /* --risk E: resampling risk per test (or joint), 1e-3 */
+    int risk_joint;       /* --risk-joint: E for all tests together */
     /* outputs */
     const char *output, *rolling_output, *json_output, *fractions_output;
     const char *maps_output; /* screen --maps FILE.nc */

@@ -226,6 +226,31 @@ static int set_budget(cli_options *o, const char *n, const char *v)
     return set_whole(n, v, 1, LONG_MAX, &o->budget);
 }
 
+/* A number strictly between 0 and max (`bound`: max as the message writes it). */
+static int set_open_interval(const char *n, const char *v, double max, const char *bound,
+                             double *out)
+{
+    int rc = cli_parse_number(n, v, out);
+    if (rc == EXIT_OK && !(*out > 0 && *out < max)) {
+        cli_error("option %s: %s is outside (0, %s)", n, v, bound);
+        return EXIT_BAD_INPUT;
+    }
+    return rc;
+}
+
+/* --risk E: the chance a test's interval misses its p. */
+static int set_risk(cli_options *o, const char *n, const char *v)
+{
+    return set_open_interval(n, v, 0.5, "0.5", &o->risk);
+}
+
+static int set_risk_joint(cli_options *o, const char *n, const char *v)
+{
+    (void)n, (void)v;
+    o->risk_joint = 1;
+    return EXIT_OK;
+}
+
 static int set_max_per_series(cli_options *o, const char *n, const char *v)
 {
     return set_whole(n, v, 64, MAX_SURROGATES, &o->max_per_series);
@@ -277,12 +302,7 @@ static int set_block_length(cli_options *o, const char *n, const char *v)
 
 static int set_fdr(cli_options *o, const char *n, const char *v)
 {
-    int rc = cli_parse_number(n, v, &o->fdr);
-    if (rc == EXIT_OK && !(o->fdr > 0 && o->fdr < 1)) {
-        cli_error("option %s: %s is outside (0, 1)", n, v);
-        return EXIT_BAD_INPUT;
-    }
-    return rc;
+    return set_open_interval(n, v, 1, "1", &o->fdr);
 }
 
 static int set_alternative(cli_options *o, const char *n, const char *v)
@@ -363,6 +383,8 @@ static const option_spec options[] = {
     {"--null", 1, C_TESTING | C_SURROGATES, set_null},
     {"--budget", 1, C_SCREEN, set_budget},
     {"--max-per-series", 1, C_SCREEN, set_max_per_series},
+    {"--risk", 1, C_SCREEN, set_risk},
+    {"--risk-joint", 0, C_SCREEN, set_risk_joint},
     {"--iaaft-tol", 1, C_TESTING | C_SURROGATES, set_iaaft_tol},
     {"--iaaft-iterations", 1, C_TESTING | C_SURROGATES, set_iaaft_iterations},
     {"--block-length", 1, C_TESTING | C_SURROGATES, set_block_length},

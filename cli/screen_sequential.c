@@ -18,9 +18,13 @@
 
 int cli_sequential_check(const cli_options *opts)
 {
-    if (!opts->surrogates_auto && (opts->budget > 0 || opts->max_per_series != 100000)) {
+    int risk = opts->risk != 1e-3 || opts->risk_joint;
+    if (!opts->surrogates_auto && (opts->budget > 0 || opts->max_per_series != 100000 || risk)) {
         cli_error("option %s: only with --surrogates auto",
-                  opts->budget > 0 ? "--budget" : "--max-per-series");
+                  opts->budget > 0                ? "--budget"
+                  : opts->max_per_series != 100000 ? "--max-per-series"
+                  : opts->risk_joint               ? "--risk-joint"
+                                                   : "--risk");
         return EXIT_BAD_INPUT;
     }
     if (!opts->surrogates_auto)
@@ -138,6 +142,8 @@ static screen_sequential *sequential_alloc(const cli_options *opts, const screen
     q->cfg = slowscan_sequential_config_default();
     q->cfg.fdr = opts->fdr;
     q->cfg.max_per_series = (size_t)opts->max_per_series;
+    q->cfg.epsilon = opts->risk;
+    q->cfg.joint = opts->risk_joint;
     q->cfg.budget = opts->budget > 0 ? (size_t)opts->budget : 0;
     q->series = series;
     q->per_series = slowscan_screen_test_count(cfg);
@@ -198,7 +204,8 @@ int cli_sequential_run(const cli_options *opts, const cli_inputs *in, screen_run
         q->open[g] = 1;
     slowscan_sequential_next(&q->cfg, total, q->drawn, q->open, 0, q->budget, q->add, &add);
     int rc = EXIT_OK;
-    for (int first = 1; rc == EXIT_OK && (first || add > 0); first = 0) {
+    size_t rounds = slowscan_sequential_max_rounds(&q->cfg); /* the risk is spread over these */
+    for (int first = 1; rc == EXIT_OK && (first || add > 0) && q->rounds < rounds; first = 0) {
         rc = run_round(opts, in, run, q, first, refuse);
         q->rounds++;
         if (first) {
@@ -208,6 +215,12 @@ int cli_sequential_run(const cli_options *opts, const cli_inputs *in, screen_run
         }
         if (rc == EXIT_OK && (rc = plan_next(q, &add)) != EXIT_OK)
             cli_error("out of memory");
+    }
+    /* the budget is spent: the open tests against BH's threshold on the reported p */
+    if (rc == EXIT_OK && slowscan_sequential_finish(&q->cfg, q->tests, total * q->per_series,
+                                                    &q->undecided) != SLOWSCAN_OK) {
+        cli_error("out of memory");
+        rc = EXIT_INTERNAL;
     }
     return rc;
 }
@@ -268,15 +281,18 @@ void cli_sequential_report(const cli_options *opts, const screen_sequential *q)
 void cli_sequential_json(FILE *fp, const screen_sequential *q)
 {
     fprintf(fp, "  \"sequential\": {\n    \"procedure\": \"rounds of surrogates; Clopper-Pearson "
-                "intervals of every Monte Carlo p (joint level 1 - epsilon, Bonferroni over tests "
-                "x rounds); Benjamini-Hochberg on their upper and lower limits settles each test "
-                "(after Gandy and Hahn's MMCTest); p = (1 + hits) / (1 + surrogates)\",\n");
-    fprintf(fp, "    \"fdr\": %g,\n    \"epsilon\": %g,\n    \"budget\": %zu,\n"
+                "intervals of every Monte Carlo p (level 1 - epsilon / max_rounds per round and "
+                "test, or with risk 'joint' 1 - epsilon / (tests x max_rounds)); "
+                "Benjamini-Hochberg on their upper and lower limits settles each test "
+                "(after Gandy and Hahn's MMCTest and QuickMMCTest); when the budget is spent, "
+                "open tests whose interval lies on one side of BH's threshold on the reported p "
+                "take that side, the rest are undecided; p = (1 + hits) / (1 + surrogates)\",\n");
+    fprintf(fp, "    \"fdr\": %g,\n    \"epsilon\": %g,\n    \"risk\": \"%s\",\n    \"budget\": %zu,\n"
                 "    \"max_per_series\": %zu,\n    \"first_round\": %zu,\n    \"block\": %zu,\n"
                 "    \"growth\": 2,\n    \"max_rounds\": %zu,\n    \"rounds\": %zu,\n"
                 "    \"surrogates_drawn\": %zu,\n    \"tests\": %zu,\n    \"undecided\": %zu,\n"
                 "    \"p_interval\": \"Clopper-Pearson 95%%\"\n  },\n",
-            q->cfg.fdr, q->cfg.epsilon, q->budget, q->cfg.max_per_series, q->cfg.first_round,
+            q->cfg.fdr, q->cfg.epsilon, q->cfg.joint ? "joint" : "per test", q->budget, q->cfg.max_per_series, q->cfg.first_round,
             q->cfg.block, slowscan_sequential_max_rounds(&q->cfg), q->rounds, q->spent,
             q->tested, q->undecided);
 }

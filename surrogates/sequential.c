@@ -11,7 +11,7 @@
 sequential_config slowscan_sequential_config_default(void)
 {
     return (sequential_config){.fdr = 0.05, .epsilon = 1e-3, .max_per_series = 100000,
-                               .budget = 0, .first_round = 64, .block = 64};
+                               .budget = 0, .first_round = 64, .block = 64, .joint = 0};
 }
 
 size_t slowscan_sequential_max_rounds(const sequential_config *cfg)
@@ -46,14 +46,19 @@ static int bh_rejects(const double *p, size_t count, double fdr, double *q, unsi
     return st;
 }
 
+double slowscan_sequential_alpha(const sequential_config *cfg, size_t tested)
+{
+    double rounds = (double)slowscan_sequential_max_rounds(cfg);
+    return cfg->epsilon / (cfg->joint ? (double)(tested ? tested : 1) * rounds : rounds);
+}
+
 int slowscan_sequential_decide(const sequential_config *cfg, sequential_test *tests,
                                size_t count, size_t *open)
 {
     size_t m = 0;
     for (size_t r = 0; r < count; r++)
         m += tests[r].tested != 0;
-    /* Bonferroni over the tests and every round any of them may take */
-    double alpha = cfg->epsilon / ((double)(m ? m : 1) * (double)slowscan_sequential_max_rounds(cfg));
+    double alpha = slowscan_sequential_alpha(cfg, m);
     double *buf = calloc(3 * count + 1, sizeof *buf);
     unsigned char *sure = malloc(2 * count + 1);
     if (!buf || !sure) {
@@ -95,46 +100,39 @@ static size_t request(const sequential_config *cfg, size_t drawn)
     return want < room ? want : room;
 }
 
-typedef struct {
-    size_t want, series;
-} wish;
-
-static int by_want(const void *a, const void *b)
+/* Sum of the requests cut to c. */
+static size_t cut_sum(const size_t *add, size_t series, size_t c)
 {
-    const wish *x = a, *y = b;
-    if (x->want != y->want)
-        return x->want < y->want ? -1 : 1;
-    return x->series < y->series ? -1 : (x->series > y->series);
+    size_t sum = 0;
+    for (size_t s = 0; s < series; s++)
+        sum += add[s] < c ? add[s] : c;
+    return sum;
 }
 
-/* Grants the requests whole, smallest first (ties by series), while the budget lasts; the
- * first that does not fit gets what is left in whole blocks, and the rest nothing. The
- * smallest requests are the series closest to being settled for the least work. */
-static size_t grant_smallest_first(const sequential_config *cfg, size_t series, size_t *add,
-                                   size_t left)
+/* Cuts the requests to the largest common cap (a multiple of block) that fits in `left`, then
+ * hands what is left a block at a time to the series cut, in series order. */
+static size_t grant_common_cap(const sequential_config *cfg, size_t series, size_t *add,
+                               size_t left)
 {
-    size_t block = cfg->block ? cfg->block : 1, total = 0, count = 0;
-    wish *w = malloc((series + 1) * sizeof *w);
+    size_t block = cfg->block ? cfg->block : 1, lo = 0, hi = 0;
+    for (size_t s = 0; s < series; s++)
+        hi = add[s] > hi ? add[s] : hi;
+    hi = hi / block + 1; /* caps in blocks: lo fits, hi does not */
+    while (hi - lo > 1) {
+        size_t mid = lo + (hi - lo) / 2;
+        if (cut_sum(add, series, mid * block) <= left)
+            lo = mid;
+        else
+            hi = mid;
+    }
+    size_t cap = lo * block, total = cut_sum(add, series, cap);
+    left -= total;
     for (size_t s = 0; s < series; s++) {
-        if (w && add[s] > 0)
-            w[count++] = (wish){add[s], s};
-        if (w)
-            add[s] = 0;
+        size_t over = add[s] > cap ? add[s] - cap : 0, extra = left >= block ? block : 0;
+        extra = over < extra ? over : extra;
+        add[s] = (add[s] < cap ? add[s] : cap) + extra;
+        left -= extra, total += extra;
     }
-    if (!w) { /* no room to sort: in series order */
-        for (size_t s = 0; s < series; s++) {
-            add[s] = add[s] <= left ? add[s] : left - left % block;
-            left -= add[s], total += add[s];
-        }
-        return total;
-    }
-    qsort(w, count, sizeof *w, by_want);
-    for (size_t k = 0; k < count && left >= block; k++) {
-        size_t a = w[k].want <= left ? w[k].want : left - left % block;
-        add[w[k].series] = a;
-        left -= a, total += a;
-    }
-    free(w);
     return total;
 }
 
@@ -147,5 +145,44 @@ void slowscan_sequential_next(const sequential_config *cfg, size_t series,
         add[s] = open[s] ? request(cfg, drawn[s]) : 0;
         asked += add[s];
     }
-    *total = asked <= left ? asked : grant_smallest_first(cfg, series, add, left);
+    *total = asked <= left ? asked : grant_common_cap(cfg, series, add, left);
+}
+
+/* BH's threshold on the reported p of the tested tests: fdr max(k, 1) / m. */
+static int final_threshold(const sequential_config *cfg, const sequential_test *tests,
+                           size_t count, double *t)
+{
+    double *p = calloc(2 * (count + 1), sizeof *p), lo, hi;
+    if (!p)
+        return SLOWSCAN_ENOMEM;
+    size_t m = 0, k = 0;
+    for (size_t r = 0; r < count; r++) {
+        p[r] = NAN;
+        if (tests[r].tested)
+            slowscan_sequential_p(&tests[r], &p[r], &lo, &hi), m++;
+    }
+    int st = slowscan_significance_bh(p, count, p + count, NULL);
+    for (size_t r = 0; st == SLOWSCAN_OK && r < count; r++)
+        k += !isnan(p[count + r]) && p[count + r] <= cfg->fdr;
+    *t = cfg->fdr * (double)(k ? k : 1) / (double)(m ? m : 1);
+    free(p);
+    return st;
+}
+
+int slowscan_sequential_finish(const sequential_config *cfg, sequential_test *tests,
+                               size_t count, size_t *open)
+{
+    double t = 0;
+    int st = final_threshold(cfg, tests, count, &t);
+    *open = 0;
+    for (size_t r = 0; st == SLOWSCAN_OK && r < count; r++) {
+        sequential_test *s = &tests[r];
+        if (s->decision != SEQUENTIAL_OPEN || !s->tested || s->interval_at == 0)
+            continue;
+        s->decision = s->hi <= t ? SEQUENTIAL_REJECTED
+                      : s->lo > t ? SEQUENTIAL_ACCEPTED
+                                  : SEQUENTIAL_OPEN;
+        *open += s->decision == SEQUENTIAL_OPEN;
+    }
+    return st;
 }

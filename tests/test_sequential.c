@@ -38,16 +38,24 @@ static void decide_counts(sequential_test *t)
                                  .drawn = drawn[k % 10] * (1 + k / 10)};
 }
 
-static void decide_against_reference(void)
+/* One round's decisions (and, with finish, the end's) in risk mode `joint` against
+ * sequential_decide.py. */
+static void decide_against_reference(int joint, int finish)
 {
     sequential_config cfg = slowscan_sequential_config_default();
     cfg.fdr = 0.1;
+    cfg.joint = joint;
     sequential_test t[DECIDE_TESTS];
     decide_counts(t);
     size_t open = 0;
     CHECK(slowscan_sequential_decide(&cfg, t, DECIDE_TESTS, &open) == SLOWSCAN_OK, "decide");
-    double alpha = cfg.epsilon / (DECIDE_TESTS * (double)slowscan_sequential_max_rounds(&cfg));
-    double counts[2 * DECIDE_TESTS], ref[3 * DECIDE_TESTS];
+    if (finish)
+        CHECK(slowscan_sequential_finish(&cfg, t, DECIDE_TESTS, &open) == SLOWSCAN_OK, "finish");
+    double alpha = slowscan_sequential_alpha(&cfg, DECIDE_TESTS);
+    double want = cfg.epsilon / ((joint ? DECIDE_TESTS : 1) *
+                                 (double)slowscan_sequential_max_rounds(&cfg));
+    CHECK(alpha == want, "per-round level %g (joint %d)", alpha, joint);
+    double ref[3 * DECIDE_TESTS];
     char path[512], cmd[1024];
     snprintf(path, sizeof path, "%s", check_tmp_path("sequential_counts.txt"));
     FILE *f = fopen(path, "w");
@@ -55,8 +63,8 @@ static void decide_against_reference(void)
         fprintf(f, "%zu %zu\n", t[k].hits, t[k].drawn);
     if (f)
         fclose(f);
-    (void)counts;
-    snprintf(cmd, sizeof cmd, "sequential_decide.py %s %.17g %.17g", path, alpha, cfg.fdr);
+    snprintf(cmd, sizeof cmd, "sequential_decide.py %s %.17g %.17g%s", path, alpha, cfg.fdr,
+             finish ? " finish" : "");
     /* scipy.stats.beta.ppf and statsmodels multipletests(fdr_bh) */
     int got = check_python(cmd, ref, 3 * DECIDE_TESTS);
     CHECK(got == 3 * DECIDE_TESTS, "sequential_decide.py gave %d numbers", got);
@@ -67,11 +75,11 @@ static void decide_against_reference(void)
         same += (int)t[k].decision == (int)ref[3 * k + 2];
         kinds[t[k].decision % 3]++;
     }
-    CHECK(same == DECIDE_TESTS, "decisions equal the direct computation's: %zu of %d", same,
-          DECIDE_TESTS);
+    CHECK(same == DECIDE_TESTS, "decisions equal the direct computation's: %zu of %d (joint %d, "
+          "finish %d)", same, DECIDE_TESTS, joint, finish);
     CHECK(kinds[0] > 0 && kinds[1] > 0 && kinds[2] > 0,
-          "the case holds open, rejected and accepted tests (%zu %zu %zu)", kinds[0], kinds[1],
-          kinds[2]);
+          "the case holds open, rejected and accepted tests (%zu %zu %zu; joint %d, finish %d)",
+          kinds[0], kinds[1], kinds[2], joint, finish);
     size_t open_count = 0;
     for (size_t k = 0; k < DECIDE_TESTS; k++)
         open_count += t[k].decision == SEQUENTIAL_OPEN;
@@ -84,8 +92,8 @@ static void decide_against_reference(void)
 }
 
 /* The next round by the rule written out: doubling, first_round to start, capped at K;
- * when the requests exceed the budget, whole requests smallest first (ties by series), the
- * rest of the budget in whole blocks to the first that does not fit. */
+ * when the requests exceed the budget, all cut to one common cap (whole blocks), what is left
+ * a block at a time to the series cut, in series order. */
 static void next_round(void)
 {
     sequential_config cfg = slowscan_sequential_config_default();
@@ -102,9 +110,20 @@ static void next_round(void)
     size_t big[] = {1024, 2048, 0, 0, 0};
     cfg.max_per_series = 100000;
     slowscan_sequential_next(&cfg, 2, big, open, 0, 1536, add, &total);
-    /* asked 3072 of 1536: the smaller request whole, the rest to the next */
-    CHECK(add[0] == 1024 && add[1] == 512 && total == 1536, "smallest first: %zu %zu", add[0],
+    /* asked 3072 of 1536: both cut to 768, the larger request not starved */
+    CHECK(add[0] == 768 && add[1] == 768 && total == 1536, "common cap: %zu %zu", add[0],
           add[1]);
+    size_t three[] = {1024, 2048, 4096};
+    slowscan_sequential_next(&cfg, 3, three, open, 0, 4000, add, &total);
+    /* cap 1472 (1024 + 2 x 1472 = 3968 fits, a block more does not), 32 left: less than a block */
+    CHECK(add[0] == 1024 && add[1] == 1472 && add[2] == 1472 && total == 3968,
+          "common cap and blocks: %zu %zu %zu", add[0], add[1], add[2]);
+    size_t near_k[] = {99900, 1000, 1000};
+    slowscan_sequential_next(&cfg, 3, near_k, open, 0, 300, add, &total);
+    /* asked 100 (K - 99900), 1000, 1000: cap 64 (192), 108 left: 36 more to the first (never
+       past its request), a block to the second, 8 left */
+    CHECK(add[0] == 100 && add[1] == 128 && add[2] == 64 && total == 292,
+          "blocks after the cap within the requests: %zu %zu %zu", add[0], add[1], add[2]);
     slowscan_sequential_next(&cfg, 5, drawn, open, 0, 100, add, &total);
     CHECK(add[0] == 64 && add[1] == 0 && add[2] == 0 && total == 64,
           "a block to the first series when less than two are left: %zu %zu %zu", add[0], add[1],
@@ -218,12 +237,12 @@ static void command(void)
     char py[1024];
     snprintf(py, sizeof py,
              "/usr/bin/python3 -c \"import json; d=json.load(open('%s')); s=d['sequential'];"
-             "r=d['results'][0]; print(s['budget'], s['max_per_series'], s['epsilon'],"
+             "r=d['results'][0]; print(s['budget'], s['max_per_series'], s['epsilon'], s['risk'],"
              " d['parameters']['surrogates'] == 'auto', len(r['p_interval']), r['surrogates'] > 0)\"",
              json);
     char *jout = NULL;
     int jrc = check_run(py, &jout, NULL);
-    CHECK(rc == 0 && jrc == 0 && jout && !strcmp(jout, "6000 100000 0.001 True 2 True\n"),
+    CHECK(rc == 0 && jrc == 0 && jout && !strcmp(jout, "6000 100000 0.001 per test True 2 True\n"),
           "JSON records the procedure: %s", jout ? jout : "");
     free(jout);
     /* a tiny budget: undecided tests, said on stderr */
@@ -243,7 +262,9 @@ static void command(void)
     /* refusals: one line naming the option, exit 1, no output file */
     const char *refused[] = {"screen --budget 100", "screen --surrogates auto --resume",
                              "robustness --surrogates auto", "screen --max-per-series 10 "
-                                                             "--surrogates auto"};
+                                                             "--surrogates auto",
+                             "screen --risk 0.01", "screen --risk-joint",
+                             "screen --surrogates auto --risk 0.7"};
     for (size_t k = 0; k < sizeof refused / sizeof refused[0]; k++) {
         const char *o = check_tmp_path("sequential_refused.csv");
         snprintf(args, sizeof args, "%s %s -o %s", refused[k], csv, o);
@@ -274,7 +295,7 @@ static void simulated_screen(const sequential_config *cfg, gsl_rng *r, size_t m,
     }
     size_t budget = slowscan_sequential_budget(cfg, m), spent = 0, total = 0, left = 0;
     slowscan_sequential_next(cfg, m, drawn, open, spent, budget, add, &total);
-    while (total > 0) {
+    for (size_t round = 0; total > 0 && round < slowscan_sequential_max_rounds(cfg); round++) {
         for (size_t i = 0; i < m; i++) {
             t[i].hits += gsl_ran_binomial(r, p[i], (unsigned)add[i]);
             t[i].drawn += add[i], drawn[i] += add[i], spent += add[i];
@@ -284,6 +305,7 @@ static void simulated_screen(const sequential_config *cfg, gsl_rng *r, size_t m,
             open[i] = t[i].decision == SEQUENTIAL_OPEN;
         slowscan_sequential_next(cfg, m, drawn, open, spent, budget, add, &total);
     }
+    slowscan_sequential_finish(cfg, t, m, &left);
     *false_found = *found = 0;
     for (size_t i = 0; i < m; i++) {
         *found += t[i].decision == SEQUENTIAL_REJECTED;
@@ -294,14 +316,16 @@ static void simulated_screen(const sequential_config *cfg, gsl_rng *r, size_t m,
 }
 
 /* Mean FDP over `screens` screens of m tests (alt alternatives), with a normal-theory 95%
- * interval of the mean. SEQUENTIAL_SCREENS sets the count (bigger runs by hand). */
-static void false_discoveries(void)
+ * interval of the mean, at `per_test` surrogates of budget per test and in risk mode joint.
+ * SEQUENTIAL_SCREENS sets the count (bigger runs by hand). */
+static void false_discoveries(size_t per_test, int joint)
 {
     const char *env = getenv("SEQUENTIAL_SCREENS");
     size_t screens = env ? strtoul(env, NULL, 10) : 60, m = 300, alt = 30;
     sequential_config cfg = slowscan_sequential_config_default();
     cfg.fdr = 0.1;
-    cfg.budget = 1000 * m; /* the alternatives need about 2000 surrogates each to be settled */
+    cfg.joint = joint;
+    cfg.budget = per_test * m; /* 1000: the alternatives need about 2000 surrogates each */
     gsl_rng *r = gsl_rng_alloc(gsl_rng_mt19937);
     gsl_rng_set(r, 2026);
     double sum = 0, sum2 = 0, power = 0, undecided = 0;
@@ -317,23 +341,28 @@ static void false_discoveries(void)
     double mean = sum / (double)screens;
     double sd = sqrt(fmax(0.0, (sum2 - (double)screens * mean * mean) / (double)(screens - 1)));
     double half = 1.959964 * sd / sqrt((double)screens);
-    printf("  sequential: mean FDP %.4f [%.4f, %.4f] over %zu screens of %zu tests (%zu "
-           "alternatives), q = %g (bound m0 q / m = %.3f); power %.3f, undecided %.2f per screen\n",
+    printf("  sequential (%s risk, budget %zu per test): mean FDP %.4f [%.4f, %.4f] over %zu "
+           "screens of %zu tests (%zu alternatives), q = %g (bound m0 q / m = %.3f); power %.3f, "
+           "undecided %.2f per screen\n", joint ? "joint" : "per-test", per_test,
            mean, mean - half, mean + half, screens, m, alt, cfg.fdr,
            cfg.fdr * (double)(m - alt) / (double)m, power / (double)screens,
            undecided / (double)screens);
     /* Benjamini & Hochberg 1995, Theorem 1: FDR <= m0 q / m for independent tests */
     CHECK(mean - half <= cfg.fdr * (double)(m - alt) / (double)m,
           "mean FDP %.4f (95%% interval from %.4f) at or below q m0/m", mean, mean - half);
-    CHECK(power / (double)screens > 0.5, "the alternatives are found (power %.3f)",
-          power / (double)screens);
+    CHECK(per_test < 1000 || power / (double)screens > 0.5,
+          "the alternatives are found (power %.3f)", power / (double)screens);
 }
 
 void suite_sequential(void)
 {
-    decide_against_reference();
+    decide_against_reference(0, 0);
+    decide_against_reference(1, 0);
+    decide_against_reference(0, 1);
     next_round();
     ranges_equal_fixed();
     command();
-    false_discoveries();
+    false_discoveries(1000, 0);
+    false_discoveries(200, 0);
+    false_discoveries(1000, 1);
 }

@@ -3,16 +3,22 @@
  *
  * Surrogates are drawn in rounds. After each round every test i has S_i surrogate statistics
  * at least as extreme as its own (by the test's direction) among n_i drawn. Its unknown
- * Monte Carlo p (the chance one surrogate is at least as extreme) lies, with joint
- * probability at least 1 - epsilon over every test and every round (Bonferroni over
- * m tests x the largest number of rounds), in a Clopper-Pearson interval [L_i, U_i].
+ * Monte Carlo p (the chance one surrogate is at least as extreme) lies in a Clopper-Pearson
+ * interval [L_i, U_i]. By default (joint = 0) the risk epsilon is per test: each round's
+ * interval has level 1 - epsilon / R (R the largest number of rounds), so each test's
+ * intervals over all its rounds hold its p except with probability epsilon (the expected
+ * number of tests with a failed interval is at most epsilon x the tests). With joint = 1
+ * the level is 1 - epsilon / (m R) (Bonferroni over m tests too): every interval of every
+ * test holds with probability 1 - epsilon, at a far higher cost in surrogates.
  * Benjamini-Hochberg at level q applied to the upper limits rejects a set A of tests, applied
  * to the lower limits a set B containing A (BH's rejection set only grows as p-values fall):
  * the tests in A would be rejected, those outside B accepted, whatever the p-values inside
  * the intervals are; the rest are open and get more surrogates in the next round. This is the
- * idea of Gandy & Hahn's MMCTest (Scand. J. Stat. 2014; recalled from memory, not checked;
- * their intervals and spending of epsilon may differ). When the budget is spent, open tests
- * are undecided.
+ * idea of Gandy & Hahn's MMCTest (Scand. J. Stat. 2014), and the per-test risk with a fixed
+ * total budget that of their QuickMMCTest (both recalled from memory, not checked; their
+ * intervals and spending of epsilon may differ). When the budget is spent,
+ * slowscan_sequential_finish settles the open tests against BH's threshold on the reported
+ * p; those whose interval still straddles it are undecided.
  *
  * Surrogates are per series: one surrogate gives a statistic for every test of its series,
  * so a series draws on while any of its tests is open. Round sizes depend only on the counts
@@ -29,13 +35,14 @@
 
 typedef struct {
     double fdr;            /* q of Benjamini-Hochberg: 0.05 */
-    double epsilon;        /* chance that any decision differs from BH on the exact
-                              Monte Carlo p-values: 1e-3 */
+    double epsilon;        /* resampling risk (--risk): 1e-3; per test, or for the whole
+                              run with joint */
     size_t max_per_series; /* K, surrogates of one series at most: 100000 */
     size_t budget;         /* surrogates of the whole run (summed over series); 0: 200 per
                               test with a statistic */
     size_t first_round;    /* surrogates of every series in round 1: 64 */
     size_t block;          /* round sizes are multiples of this (the stream block): 64 */
+    int joint;             /* 0: epsilon per test (default); 1: for all tests jointly */
 } sequential_config;
 
 SLOWSCAN_API
@@ -62,7 +69,9 @@ typedef struct {
 } sequential_test;
 
 /* Rounds a series can take from first_round doubling up to max_per_series: the rounds the
- * error epsilon is spread over. */
+ * error epsilon is spread over. A run takes no more rounds than this (a series cut short by
+ * the budget then ends below max_per_series), so no test gets more intervals than the
+ * risk was spread over. */
 SLOWSCAN_API
 size_t slowscan_sequential_max_rounds(const sequential_config *cfg);
 
@@ -82,6 +91,20 @@ SLOWSCAN_API
 int slowscan_sequential_decide(const sequential_config *cfg, sequential_test *tests,
                                size_t count, size_t *open);
 
+/* The per-round two-sided level of a test's interval among `tested` tests: epsilon / R, or
+ * epsilon / (tested R) with cfg->joint. */
+SLOWSCAN_API
+double slowscan_sequential_alpha(const sequential_config *cfg, size_t tested);
+
+/* After the last round: BH at level fdr on the reported p of all tested tests gives k
+ * rejections and the threshold t = fdr max(k, 1) / m; an open test whose last interval lies
+ * at or below t is rejected, one whose interval lies above t accepted, the others stay
+ * open (undecided). Decided tests keep their decisions. *open: those still open.
+ * SLOWSCAN_ENOMEM. */
+SLOWSCAN_API
+int slowscan_sequential_finish(const sequential_config *cfg, sequential_test *tests,
+                               size_t count, size_t *open);
+
 /* The reported p of a test: (1 + hits) / (1 + drawn) (the usual Monte Carlo p, Davison &
  * Hinkley 1997), and the 95% Clopper-Pearson interval of the Monte Carlo p from hits of
  * drawn. NaN when the test has no draws. */
@@ -91,8 +114,10 @@ void slowscan_sequential_p(const sequential_test *t, double *p, double *lo, doub
 /* The next round: add[s] more surrogates for each of `series` series, from drawn[s] drawn so
  * far and open[s] (non-zero: a test of series s is open), within what is left of the budget
  * after `spent`. Doubling (first_round for a series with none), capped by max_per_series;
- * when the requests exceed what is left, they are granted whole, smallest first (ties by
- * series), and the first that does not fit gets the rest in whole blocks. Depends on the counts
+ * when the requests exceed what is left, every request is cut to one common cap c (the
+ * largest multiple of block whose cut requests fit), and what is left after that goes a block
+ * at a time to the series cut, in series order: no open series is starved for others (the
+ * strongly significant series, which ask for the most, need it most). Depends on the counts
  * only. *total: the sum of add[] (0: the procedure ends). */
 SLOWSCAN_API
 void slowscan_sequential_next(const sequential_config *cfg, size_t series,

@@ -2,9 +2,11 @@
 """Decisions of one round of the sequential Monte Carlo procedure, computed directly:
 Clopper-Pearson limits by scipy.stats.beta.ppf (Debian python3-scipy) at two-sided level
 ALPHA, Benjamini-Hochberg by statsmodels.stats.multitest.multipletests(method='fdr_bh') on
-the upper and on the lower limits. Usage: sequential_decide.py FILE ALPHA FDR, FILE holding
-"hits drawn" per line (one line per test, all tested). Prints, per test, lo hi decision
-(1 rejected, 2 accepted, 0 open)."""
+the upper and on the lower limits. Usage: sequential_decide.py FILE ALPHA FDR [finish], FILE
+holding "hits drawn" per line (one line per test, all tested). Prints, per test, lo hi decision
+(1 rejected, 2 accepted, 0 open). With `finish`, the open tests are then settled against
+t = FDR max(k, 1) / m, k the rejections of BH on the reported p (1 + hits) / (1 + drawn):
+rejected when hi <= t, accepted when lo > t, open otherwise."""
 import sys
 import numpy as np
 from scipy.stats import beta
@@ -17,7 +19,12 @@ lo = np.where(hits == 0, 0.0, beta.ppf(alpha / 2, hits, drawn - hits + 1))
 hi = np.where(hits >= drawn, 1.0, beta.ppf(1 - alpha / 2, hits + 1, drawn - hits))
 sure = multipletests(hi, alpha=fdr, method="fdr_bh")[0]
 may = multipletests(lo, alpha=fdr, method="fdr_bh")[0]
+decision = np.where(sure, 1, np.where(~may, 2, 0))
+if len(sys.argv) > 4 and sys.argv[4] == "finish":
+    k = multipletests((1 + hits) / (1 + drawn), alpha=fdr, method="fdr_bh")[0].sum()
+    t = fdr * max(k, 1) / len(hits)
+    decision = np.where(decision != 0, decision, np.where(hi <= t, 1, np.where(lo > t, 2, 0)))
 out = []
 for k in range(len(hits)):
-    out += ["%.17g" % lo[k], "%.17g" % hi[k], "1" if sure[k] else ("2" if not may[k] else "0")]
+    out += ["%.17g" % lo[k], "%.17g" % hi[k], "%d" % decision[k]]
 print(" ".join(out))
