@@ -233,6 +233,21 @@ static void print_load(void)
                sysconf(_SC_NPROCESSORS_ONLN));
 }
 
+/* CPU time over wall time says how many cores a run actually got: on a shared host a
+ * two-thread (or two-process) run may be given one, and then its speed-up says nothing of
+ * `measured`. `flag` names the setting ("--threads", "-np"), best[0] and best[1] its runs at
+ * 1 and 2. */
+static void print_cores(const char *flag, const child_cost best[2], const char *run,
+                        const char *measured)
+{
+    double cores = best[1].cpu / best[1].seconds;
+    printf("\ncores used: %s 1 %.2f, %s 2 %.2f (CPU %.2f s vs %.2f s)", flag,
+           best[0].cpu / best[0].seconds, flag, cores, best[0].cpu, best[1].cpu);
+    if (cores < 1.5)
+        printf("; the machine did not give the %s two cores, so its speed-up is not a measure "
+               "of the %s", run, measured);
+}
+
 /* Part 1: --threads 1 against --threads 2, alternating, best of 2 each; outputs compared. */
 static int thread_scaling(const char *bin)
 {
@@ -262,13 +277,7 @@ static int thread_scaling(const char *bin)
            "--threads 2 %.2f s, speed-up %.2fx (target >= 1.7x on two cores)", SERIES, SAMPLES,
            best[0].seconds, best[1].seconds, best[0].seconds / best[1].seconds);
     print_load();
-    /* CPU time over wall time says how many cores the run actually got: on a shared host
-     * a two-thread run may be given one, and then its speed-up says nothing of the code. */
-    double cores = best[1].cpu / best[1].seconds;
-    printf("\ncores used: --threads 1 %.2f, --threads 2 %.2f (CPU %.2f s vs %.2f s)%s",
-           best[0].cpu / best[0].seconds, cores, best[0].cpu, best[1].cpu,
-           cores < 1.5 ? "; the machine did not give the two-thread run two cores, so its "
-                         "speed-up is not a measure of the driver" : "");
+    print_cores("--threads", best, "two-thread run", "driver");
     printf("\noutputs at --threads 1 and 2: %s\n",
            identical ? "byte-identical" : "FAIL: they differ");
     return identical ? 0 : -1;
@@ -314,13 +323,9 @@ static int process_scaling(const char *bin)
            best[0].seconds / best[1].seconds,
            identical ? "byte-identical to the serial binary's" : "FAIL: they differ");
     print_load();
-    /* mpirun waits for the processes it starts, so its rusage holds theirs: as for threads,
-     * CPU over wall time says how many cores the two-process run was given. */
-    double cores = best[1].cpu / best[1].seconds;
-    printf("\ncores used: -np 1 %.2f, -np 2 %.2f (CPU %.2f s vs %.2f s)%s\n",
-           best[0].cpu / best[0].seconds, cores, best[0].cpu, best[1].cpu,
-           cores < 1.5 ? "; the machine did not give the two-process run two cores, so its "
-                         "speed-up is not a measure of the code" : "");
+    /* mpirun waits for the processes it starts, so its rusage holds theirs. */
+    print_cores("-np", best, "two-process run", "code");
+    putchar('\n');
     return identical ? 0 : -1;
 }
 
