@@ -94,7 +94,7 @@ static int same_step(double a, double b) { return fabs(a - b) <= 1e-6 * fabs(b);
 
 static double table_step(const series_table *t)
 {
-    return t->n > 1 ? (t->time[t->n - 1] - t->time[0]) / (double)(t->n - 1) : NAN;
+    return cli_mean_step(t->time, t->n);
 }
 
 /* The step response per unit forcing at lags 0, dt, 2 dt, ...: the modes', or the step run's

@@ -80,7 +80,7 @@ static int fit_span(const cli_options *o, const cli_feedback_run *r, feedback_co
         cli_error("option --fit-span: '%s' is not two times of %s", f->span_text, r->source);
         return EXIT_BAD_INPUT;
     }
-    double dt = (r->time[r->n - 1] - r->time[0]) / (double)(r->n - 1);
+    double dt = cli_mean_step(r->time, r->n);
     if (!(c->span_from < c->span_until) || c->span_from < r->time[0] - 1e-6 * dt ||
         c->span_until > r->time[r->n - 1] + 1e-6 * dt) {
         cli_error("option --fit-span: %s is not an increasing span inside the record of %s",
@@ -105,7 +105,7 @@ static int configure(const cli_options *o, const cli_feedback_run *r, feedback_c
     }
     if (f->span_text)
         return fit_span(o, r, c);
-    double span = r->time[r->n - 1] - r->time[0], dt = span / (double)(r->n - 1);
+    double span = r->time[r->n - 1] - r->time[0], dt = cli_mean_step(r->time, r->n);
     const cli_forced_length *skip = &o->forced.skip;
     int rc = skip->text ? cli_forced_resolve(skip, "--skip", &r->axis, span, &c->skip) : EXIT_OK;
     double rest = span - c->skip;

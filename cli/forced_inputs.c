@@ -205,7 +205,7 @@ static int anomaly(const cli_options *o, const series_table *b, const double *bv
 {
     const cli_forced_options *f = &o->forced;
     double from = t->time[0] + offset, until = t->time[t->n - 1] + offset, first, last;
-    double step = b->n > 1 ? (b->time[b->n - 1] - b->time[0]) / (double)(b->n - 1) : 0;
+    double step = b->n > 1 ? cli_mean_step(b->time, b->n) : 0;
     finite_reach(b, bv, &first, &last);
     /* half a step of slack: the two runs' samples may sit at different points of a step */
     if (!(first <= from + 0.5 * step && last >= until - 0.5 * step)) {

@@ -2,8 +2,11 @@
  * read a table of cells at a time (slowscan_netcdf_next_table) so that a field of 10^5 cells
  * never sits in memory at once; each table of cells is made ready like a CSV table. */
 #include "cli.h"
+
+#include <math.h>
 #include "slowscan/status.h"
 
+#include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -178,4 +181,9 @@ int cli_cursor_next(cli_cursor *c, const series_table **t, size_t *k)
         if (rc != EXIT_OK)
             return rc;
     }
+}
+
+double cli_mean_step(const double *time, size_t n)
+{
+    return n > 1 ? (time[n - 1] - time[0]) / (double)(n - 1) : NAN;
 }

@@ -54,7 +54,7 @@ int cli_modes_series(const cli_options *opts, const series_table *t, size_t k, s
                      modes_series *s, double **owned)
 {
     const char *source = cli_source_name(t->source);
-    double dt = t->n > 1 ? (t->time[t->n - 1] - t->time[0]) / (double)(t->n - 1) : 1.0;
+    double dt = t->n > 1 ? cli_mean_step(t->time, t->n) : 1.0;
     double onset = isnan(opts->modes.onset) ? t->time[0] - dt : opts->modes.onset, skip = 0;
     const cli_forced_length *skip_len = &opts->forced.skip;
     if (skip_len->text && cli_forced_resolve(skip_len, "--skip", &t->axis,
