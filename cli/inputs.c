@@ -2,8 +2,6 @@
  * read a table of cells at a time (slowscan_netcdf_next_table) so that a field of 10^5 cells
  * never sits in memory at once; each table of cells is made ready like a CSV table. */
 #include "cli.h"
-
-#include <math.h>
 #include "slowscan/status.h"
 
 #include <math.h>
