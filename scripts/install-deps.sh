@@ -3,7 +3,8 @@
 # On Debian (or a derivative) as root it runs apt-get; elsewhere it prints the list.
 set -e
 PKGS="gcc make pkg-config libopenmpi-dev openmpi-bin libfftw3-dev libgsl-dev libcsv-dev libnetcdf-dev libudunits2-dev libplplot-dev
-plplot-driver-cairo python3-numpy python3-scipy python3-pandas python3-statsmodels python3-cftime python3-netcdf4 netcdf-bin"
+plplot-driver-cairo python3-numpy python3-scipy python3-pandas python3-statsmodels python3-cftime python3-netcdf4 netcdf-bin
+python3-cffi python3-xarray python3-pytest python3-dask"
 missing=""
 if command -v dpkg-query >/dev/null 2>&1; then
     for p in $PKGS; do
