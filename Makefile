@@ -57,7 +57,7 @@ SCLI_OBJ  := $(CLI_SRC:%.c=$(B)/asan/%.o)
 STEST_OBJ := $(TEST_SRC:%.c=$(B)/asan/%.o)
 BENCH_BIN := $(BENCH_SRC:bench/%.c=$(B)/bench/%)
 
-.PHONY: all deps check demo bench validate install clean lib-sources
+.PHONY: all deps check python-check demo bench validate install clean lib-sources
 # Programs link the static archives: the binary then runs from the build tree and from any
 # prefix without a library path, and the tests may reach module internals.
 STATIC_LIBS := $(B)/libslowscan-report.a $(B)/libslowscan.a
@@ -138,7 +138,15 @@ check: deps
 	plain=0; SLOWSCAN_BIN=$(B)/slowscan SLOWSCAN_LABEL=plain $(B)/run_tests || plain=1; \
 	ASAN_OPTIONS=detect_leaks=1:abort_on_error=0 UBSAN_OPTIONS=print_stacktrace=1 \
 	  LSAN_OPTIONS=suppressions=$(CURDIR)/tests/lsan.supp:print_suppressions=0 \
-	  SLOWSCAN_BIN=$(B)/asan/slowscan SLOWSCAN_LABEL=sanitized $(B)/asan/run_tests && exit $$plain
+	  SLOWSCAN_BIN=$(B)/asan/slowscan SLOWSCAN_LABEL=sanitized $(B)/asan/run_tests || plain=1; \
+	$(MAKE) --no-print-directory python-check || plain=1; exit $$plain
+
+# The Python package's tests (python/tests) against the library just built, not installed:
+# SLOWSCAN_LIBRARY points the package at it, SLOWSCAN_BIN the tests at the command.
+python-check: all
+	SLOWSCAN_LIBRARY=$(CURDIR)/$(B)/libslowscan.so.$(SOMAJOR) SLOWSCAN_BIN=$(CURDIR)/$(B)/slowscan \
+	  PYTHONPATH=$(CURDIR)/python PYTHONDONTWRITEBYTECODE=1 \
+	  /usr/bin/python3 -m pytest -q -p no:cacheprovider python/tests
 
 # The calibration battery of `make check` with more series and every memory-keeping null.
 VALIDATE_OBJ := $(B)/obj/tests/validate/validate.o $(B)/obj/tests/check.o \
