@@ -13,7 +13,8 @@ people belong to the responsible experts and authorities.
 from ._errors import SlowscanError, SlowscanWarning
 from ._library import lib as _lib, ffi as _ffi, path as library_path
 from ._detrend import detrend
+from ._screen import Progress, screen
 
 __version__ = _ffi.string(_lib.slowscan_version()).decode()
 
-__all__ = ["detrend", "SlowscanError", "SlowscanWarning", "library_path", "__version__"]
+__all__ = ["detrend", "screen", "Progress", "SlowscanError", "SlowscanWarning", "library_path", "__version__"]

@@ -172,6 +172,7 @@ OPTIONS = {
     "indicators": ROLLING,
     "surrogates": SERIES + ("window",) + NULL,
     "screen": ROLLING + NULL + ("fdr", "alternative", "noise_trend", "threads"),
+    "screen_grid": ROLLING + NULL + ("fdr", "alternative", "noise_trend", "threads"),
 }
 
 

@@ -74,3 +74,8 @@ typedef struct {
     size_t first_row;
 } suspect_code;
 int slowscan_table_suspect_code(const series_table *table, size_t k, suspect_code *found);
+
+/* netcdf_input.h: a grid cell's series name */
+size_t slowscan_netcdf_series_name(char *buf, size_t size, const char *variable,
+                                   const char *const *coord_name, const double *coord_value,
+                                   size_t ncoords);

@@ -35,3 +35,4 @@ typedef struct {
 screen_memory_run slowscan_screen_memory_default(void);
 int slowscan_screen_memory_run(const screen_config *cfg, screen_memory_run *run,
                                screen_batch_failure *failure);
+enum { SCREEN_STORE_SPILL_AFTER = 4096 };
