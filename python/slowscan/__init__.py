@@ -14,7 +14,8 @@ from ._errors import SlowscanError, SlowscanWarning
 from ._library import lib as _lib, ffi as _ffi, path as library_path
 from ._detrend import detrend
 from ._screen import Progress, screen
+from ._rolling import indicators, surrogates
 
 __version__ = _ffi.string(_lib.slowscan_version()).decode()
 
-__all__ = ["detrend", "screen", "Progress", "SlowscanError", "SlowscanWarning", "library_path", "__version__"]
+__all__ = ["detrend", "indicators", "surrogates", "screen", "Progress", "SlowscanError", "SlowscanWarning", "library_path", "__version__"]

@@ -170,7 +170,7 @@ NULL = ("surrogates", "null", "iaaft_tol", "iaaft_iterations", "block_length", "
 OPTIONS = {
     "detrend": SERIES,
     "indicators": ROLLING,
-    "surrogates": SERIES + ("window",) + NULL,
+    "surrogates": SERIES + NULL,
     "screen": ROLLING + NULL + ("fdr", "alternative", "noise_trend", "threads"),
     "screen_grid": ROLLING + NULL + ("fdr", "alternative", "noise_trend", "threads"),
 }

@@ -41,6 +41,7 @@ class MessageContext:
 
     def __init__(self, source=None, series=None, config=None):
         self._keep = []
+        self.source_name = source
         self.c = ffi.new("message_context *", lib.slowscan_message_context_default())
         self.c.source = self._text(source)
         self.c.series = self._text(series)
