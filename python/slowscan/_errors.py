@@ -1,6 +1,7 @@
 """The library's refusals as exceptions and its warnings as Python warnings, in the
 library's own words (the slowscan_message_* writers), with the settings named as Python
 callers write them ("window=") instead of the command line's ("--window")."""
+import re
 import warnings
 
 from ._library import ffi, lib
@@ -87,12 +88,29 @@ def refusal(status, detail, ctx):
     return SlowscanError(words(lib.slowscan_message_refusal, detail, ctx.c), status)
 
 
+# io/'s messages name the command's options; a Python caller gives these keywords
+_IO_OPTIONS = {"--from": "start=", "--until": "end=", "--log": "log=True",
+               "--resample STEP": "resample=STEP", "--vars": "names="}
+
+
+def _keyword(option):
+    return _IO_OPTIONS.get(option, python_option_name(option))
+
+
+def _python_words(text):
+    """'--from 3' -> 'start=3', '--missing' -> 'missing=' (io/ words the command's options)."""
+    text = text.replace("--resample STEP", _IO_OPTIONS["--resample STEP"])
+    text = re.sub(r"(--[a-z][a-z-]*) ([-+]?[0-9][^ ,;)]*)",
+                  lambda m: _keyword(m.group(1)) + m.group(2), text)
+    return re.sub(r"--[a-z][a-z-]*", lambda m: _keyword(m.group(0)), text)
+
+
 def io_refusal(status, err):
     """The exception for a status of io/ and the message it wrote."""
     if status == lib.SLOWSCAN_ENOMEM:
         return MemoryError("slowscan: out of memory")
     text = ffi.string(err.message).decode(errors="replace") or status_text(status)
-    return SlowscanError(text, status)
+    return SlowscanError(_python_words(text), status)
 
 
 def warn(text):

@@ -12,7 +12,7 @@ from ._errors import MessageContext, SlowscanError, warn
 from ._inputs import Table
 from ._library import ffi, lib
 from ._screen import COLUMNS, Run, summary_rows, warn_few_surrogates
-from ._series import split_options
+from ._series import ready_options, split_options
 
 FLAG_FILL = -127  # the maps' _FillValue of a flag (a cell without a result)
 FLAG_MEANINGS = "untested none rising falling insufficient"
@@ -139,7 +139,7 @@ def screen_grid(da, progress, maps, options):
         table = Table(values[:, present], time=times, names=[cells.name(index[k]) for k in present],
                       calendar=inputs.get("calendar"), time_units=inputs.get("time_units"),
                       missing=inputs.get("missing"), source=variable)
-        table.cut(inputs.get("start"), inputs.get("end"), bool(inputs.get("log", False)))
+        table.ready(**ready_options(inputs))
         run.add(table, variable)
         positions.extend(np.ravel_multi_index(index[k], cells.shape) if cells.shape else 0
                          for k in present)

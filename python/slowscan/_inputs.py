@@ -200,16 +200,26 @@ class Table:
             raise io_refusal(st, err)
         self.source = source
         self.notices = notices
-        self._regularize(err)
 
-    def _regularize(self, err):
+    def _grid(self, resample, max_gap, err):
+        """A regular grid: resample= onto one (with its guard against long gaps), or the
+        rows as they are with gaps filled (slowscan_table_regularize)."""
         gaps = ffi.new("size_t *")
-        st = lib.slowscan_table_regularize(self.c, gaps, err)
+        if resample is not None:
+            if not is_number(resample):
+                raise TypeError("resample=: a time step (a number) is needed")
+            st = lib.slowscan_table_resample_within(
+                self.c, float(resample), 2.0 if max_gap is None else float(max_gap), err)
+        else:
+            st = lib.slowscan_table_regularize(self.c, gaps, err)
         if st != 0:
             raise io_refusal(st, err)
         if self.notices and gaps[0]:
-            warn("%s: %d row%s missing from the regular grid were read as missing values"
-                 % (self.source, gaps[0], "" if gaps[0] == 1 else "s"))
+            unit = lib.slowscan_time_axis_unit_name(self.c.axis.unit)
+            unit = " " + ffi.string(unit).decode() if unit != ffi.NULL else ""
+            warn("%s: %d row%s missing from the regular grid (step %.15g%s) were read as "
+                 "missing values" % (self.source, gaps[0], "" if gaps[0] == 1 else "s",
+                                     self.c.time[1] - self.c.time[0], unit))
         if self.notices and self.c.coded_missing:
             warn("%s: %d value%s given by missing= read as missing" % (
                 self.source, self.c.coded_missing, "" if self.c.coded_missing == 1 else "s"))
@@ -221,14 +231,34 @@ class Table:
                      % (self.source, self.names[k], code.value, code.count,
                         "" if code.count == 1 else "s", code.value))
 
-    def cut(self, start=None, end=None, log=False):
-        """start=/end= (numbers on the table's axis) and log=, then the command's minimum."""
+    def bound(self, option, value):
+        """start=/end= on the table's axis: a number on a number axis, a date (text,
+        datetime64, cftime) on a dated one; NaN when not given."""
+        if value is None:
+            return float("nan")
+        axis = self.c.axis
+        if axis.unit == lib.TIME_AXIS_NUMBER and is_number(value):
+            return float(value)
+        text = value if isinstance(value, str) else time_cells(np.array([value]))[0][0]
+        out = ffi.new("double *")
+        if lib.slowscan_time_axis_value(ffi.addressof(axis), text.encode(), ffi.NULL, out) != 0:
+            what = "numbers" if axis.unit == lib.TIME_AXIS_NUMBER else \
+                "dates on the %s calendar" % ffi.string(
+                    lib.slowscan_calendar_name(axis.calendar)).decode()
+            raise SlowscanError("%s=%r: not a time of the input, whose times are %s"
+                                % (option, value, what))
+        return out[0]
+
+    def ready(self, start=None, end=None, log=False, resample=None, max_gap=None):
+        """As the command readies a table: the span start..end, the grid, log=, then at least
+        MIN_ROWS samples; the notices about what was read as missing."""
         err = ffi.new("io_error *")
-        if start is not None or end is not None:
-            st = lib.slowscan_table_select_span(self.c, np.nan if start is None else start,
-                                                np.nan if end is None else end, err)
+        lo, hi = self.bound("start", start), self.bound("end", end)
+        if lo == lo or hi == hi:
+            st = lib.slowscan_table_select_span(self.c, lo, hi, err)
             if st != 0:
                 raise io_refusal(st, err)
+        self._grid(resample, max_gap, err)
         if log:
             st = lib.slowscan_table_log(self.c, err)
             if st != 0:

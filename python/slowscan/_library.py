@@ -50,3 +50,18 @@ def _open(ffi):
 ffi = cffi.FFI()
 ffi.cdef(_declarations())
 lib, path = _open(ffi)
+
+
+def _thread_safe_planning():
+    """Calls release Python's lock, so two Python threads may plan FFTs at once; FFTW's
+    planner is not thread-safe unless told (the command does this in main, the batch driver
+    when it starts threads). libfftw3_threads is already loaded with the library."""
+    threads = cffi.FFI()
+    threads.cdef("void fftw_make_planner_thread_safe(void);")
+    try:
+        threads.dlopen("libfftw3_threads.so.3").fftw_make_planner_thread_safe()
+    except (OSError, AttributeError):  # an FFTW without it: calls stay safe one at a time
+        pass
+
+
+_thread_safe_planning()

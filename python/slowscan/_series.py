@@ -11,7 +11,13 @@ from ._library import ffi, lib
 # how many leaking series a run names one by one before it sums up (as the command)
 LEAKAGE_NAMED = 3
 
-INPUT_OPTIONS = ("time", "names", "calendar", "time_units", "missing", "start", "end", "log")
+INPUT_OPTIONS = ("time", "names", "calendar", "time_units", "missing", "start", "end", "log",
+                 "resample", "max_gap")
+
+
+def ready_options(inputs):
+    """The options of Table.ready among a call's input options."""
+    return {k: inputs[k] for k in ("start", "end", "log", "resample", "max_gap") if k in inputs}
 
 
 def split_options(options):
@@ -26,7 +32,7 @@ def setup(command, data, options, source="input"):
     cfg = _config.make_config(command, rest, keep)
     table = Table(data, inputs.get("time"), inputs.get("names"), inputs.get("calendar"),
                   inputs.get("time_units"), inputs.get("missing"), source=source)
-    table.cut(inputs.get("start"), inputs.get("end"), bool(inputs.get("log", False)))
+    table.ready(**ready_options(inputs))
     return table, cfg, MessageContext(source=source, config=cfg), keep
 
 

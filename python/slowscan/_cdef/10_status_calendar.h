@@ -36,3 +36,5 @@ const char *slowscan_time_axis_unit_name(time_axis_unit unit);
 int slowscan_time_axis_format(const time_axis *axis, double value, char *buffer, size_t size);
 double slowscan_time_axis_decimal_year(const time_axis *axis, double value);
 const char *slowscan_version(void);
+int slowscan_time_axis_value(const time_axis *axis, const char *text, const char *format,
+                             double *value);
