@@ -19,3 +19,7 @@ from ._rolling import indicators, surrogates
 __version__ = _ffi.string(_lib.slowscan_version()).decode()
 
 __all__ = ["detrend", "indicators", "surrogates", "screen", "Progress", "SlowscanError", "SlowscanWarning", "library_path", "__version__"]
+
+# recovery, robustness and the forced-run functions (feedback, timescales, emulate)
+from ._recovery import recovery, robustness  # noqa: E402
+__all__ += ["recovery", "robustness"]
