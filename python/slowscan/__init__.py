@@ -23,3 +23,8 @@ __all__ = ["detrend", "indicators", "surrogates", "screen", "Progress", "Slowsca
 # recovery, robustness and the forced-run functions (feedback, timescales, emulate)
 from ._recovery import recovery, robustness  # noqa: E402
 __all__ += ["recovery", "robustness"]
+from ._feedback import feedback  # noqa: E402
+__all__ += ["feedback"]
+from ._modes import timescales  # noqa: E402
+from ._emulate import emulate  # noqa: E402
+__all__ += ["timescales", "emulate"]
