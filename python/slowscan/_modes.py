@@ -3,7 +3,6 @@
 with the departure of the run actually forced so (slowscan_emulate_*), as the `timescales`
 and `emulate` commands make them (cli/modes_run.c, cli/cmd_timescales.c, cli/cmd_emulate.c).
 """
-import math
 
 import numpy as np
 

@@ -9,9 +9,10 @@ import pandas as pd
 
 from . import _config
 from ._errors import MessageContext, SlowscanError, refusal, status_text, warn, words
+from ._forced import time_text
 from ._library import ffi, lib
 from ._rolling import _times
-from ._series import Leakage, array, prepared, series_input, setup
+from ._series import Leakage, prepared, series_input, setup
 
 # the options of the two commands (as the command line accepts them); registered beside
 # the other commands' so that make_config refuses anything else
@@ -46,20 +47,6 @@ def tested_setup(command, data, options):
     if given.get("indicators") is None:
         cfg.drift_test = 0
     return table, cfg, ctx, keep
-
-
-def _time_cell(table, v):
-    """A time as the command prints it (cli_put_time): NA, a number, or a date."""
-    axis = table.c.axis
-    if not math.isfinite(v) or axis.unit == lib.TIME_AXIS_NUMBER:
-        return _number(-v if axis.backward else v)
-    buf = ffi.new("char[]", 64)
-    lib.slowscan_time_axis_format(ffi.addressof(axis), v, buf, 64)
-    return ffi.string(buf).decode()
-
-
-def _number(v):
-    return float("nan") if not math.isfinite(v) else float(v)
 
 
 def recovery(data, project=False, project_draws=1000, **options):
@@ -143,10 +130,11 @@ def _projection_row(table, name, r):
     if r.projection_status != 0:
         warn("%s: column '%s': no projected crossing (%s)"
              % (table.source, name, status_text(r.projection_status)))
+    axis = table.c.axis
     status = "not_computed" if pr.draws == 0 else _PROJECTION_STATUS[pr.kind]
     interval = "NA" if pr.draws == 0 else "open_above" if math.isinf(pr.index_hi) else "closed"
-    return [name, status, _time_cell(table, r.crossing_time), _time_cell(table, r.crossing_lo),
-            _time_cell(table, r.crossing_hi), interval, _number(pr.share_crossing),
+    return [name, status, time_text(axis, r.crossing_time), time_text(axis, r.crossing_lo),
+            time_text(axis, r.crossing_hi), interval, pr.share_crossing,
             int(pr.draws), _BASIS]
 
 
