@@ -5,7 +5,7 @@ import math
 
 import numpy as np
 
-from . import _forced
+from . import _ensemble, _forced
 from ._config import _number
 from ._errors import SlowscanError, status_text
 from ._library import ffi, lib
@@ -21,7 +21,7 @@ _VERDICTS = ("untested", "steady", "drifting")
 _METHODS = ("none", "first_vs_last", "weighted_trend")
 
 
-def feedback(data, flux, response, **options):
+def feedback(data, flux, response, ensemble=False, members=None, **options):
     """The sliding-window regression N = F + lambda T of a forced run (Gregory et al. 2004),
     as `slowscan feedback --flux FLUX --response RESPONSE` writes it.
 
@@ -35,20 +35,47 @@ def feedback(data, flux, response, **options):
     baseline_offset=0, annual=False; for the input: time=, names=, calendar=, time_units=,
     missing=, start=, end=, resample=, max_gap=.
 
+    ensemble=True: the columns FLUX.MEMBER and RESPONSE.MEMBER (at least 4 members) are
+    fitted member by member, then the members' mean flux against their mean response; the
+    rows gain a leading column member (the suffix, or "mean"); members= (a list or "a,b,...")
+    takes only those suffixes. A split of the response's members is warned of.
+
     Returns a DataFrame with the command's columns, one row per window; attrs["run"] holds
     what --json writes for the run (settings and the drift test: verdict, method, windows,
     slope, slope_se, z, p_value). An equilibrium extrapolated from a transient is not a
-    forecast.
+    forecast. With ensemble=True, attrs["runs"] holds it per member.
     """
     inputs, opts = _forced.split(options, OWN)
     table = _forced.read(data, inputs, "input")
-    run = _forced.Run(table, [flux, response], "input", bool(opts.get("annual")))
+    annual = bool(opts.get("annual"))
+    baseline = None
+    if opts.get("baseline") is not None:
+        baseline = _forced.read(opts["baseline"], inputs, "baseline", cut=False)
+    if not (ensemble or members is not None):
+        rows, summary = _one_run(_forced.Run.of(table, [flux, response], "input", annual),
+                                 baseline, opts)
+        out = _forced.frame(rows, COLUMNS)
+        out.attrs["run"] = summary
+        return out.astype({"pairs": np.int64})
+    rows, runs = [], {}
+    for member, _, run in _ensemble.member_runs(table, response, flux, members, annual,
+                                                "input"):
+        run.names = [flux, response]  # the order of a single run's columns
+        run.values.reverse()
+        got, runs[member] = _one_run(run, baseline, opts)
+        rows.extend([member] + r for r in got)
+    out = _forced.frame(rows, ["member"] + COLUMNS).astype({"pairs": np.int64})
+    out.attrs["runs"] = runs
+    return out
+
+
+def _one_run(run, baseline, opts):
+    """(rows, summary) of one run: anomalies, the configuration, the library's windows."""
     ratio = opts.get("noise_ratio")
     ratio = float("nan") if ratio is None else _positive("noise_ratio", ratio)
     estimated, offset = False, float("nan")
-    if opts.get("baseline") is not None:
-        b, offset = run.anomalies(_forced.read(opts["baseline"], inputs, "baseline", cut=False),
-                                  opts)
+    if baseline is not None:
+        b, offset = run.anomalies(baseline, opts)
         if opts.get("fit", "ols") == "tls" and math.isnan(ratio):
             ratio, estimated = _ratio_from(b, run, offset), True
     cfg = _configure(run, opts, ratio)
@@ -63,10 +90,8 @@ def feedback(data, flux, response, **options):
     if st != 0:
         raise SlowscanError("%s: the feedback regression failed (%s)"
                             % (run.source, status_text(st)), st)
-    out = _forced.frame([_row(run.axis, w[j]) for j in range(count[0])], COLUMNS)
-    out = out.astype({"pairs": np.int64})
-    out.attrs["run"] = _summary(cfg, count[0], drift, estimated, offset)
-    return out
+    return [_row(run.axis, w[j]) for j in range(count[0])], \
+        _summary(cfg, count[0], drift, estimated, offset)
 
 
 def _positive(option, value):

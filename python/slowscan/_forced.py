@@ -29,6 +29,10 @@ def read(data, inputs, source, cut=True):
     return table
 
 
+def table_time(table):
+    return np.frombuffer(ffi.buffer(table.c.time, table.c.n * 8), np.float64).copy()
+
+
 def mean_step(time):
     return (time[-1] - time[0]) / (len(time) - 1) if len(time) > 1 else float("nan")
 
@@ -53,16 +57,20 @@ class Run:
     """Some columns of a table, owned here (numpy), on the table's axis: what a forced-run
     command works on (cli_forced_table)."""
 
-    def __init__(self, table, names, what, annual=False):
-        self.source = table.source
-        self.axis = ffi.new("time_axis *", table.c.axis)[0]
-        self.time = np.frombuffer(ffi.buffer(table.c.time, table.c.n * 8), np.float64).copy()
-        self.names = list(names)
-        self.values = [np.frombuffer(ffi.buffer(table.c.values[column(table, n, what)],
-                                                table.c.n * 8), np.float64).copy()
-                       for n in names]
+    def __init__(self, source, axis, time, names, values, what, annual=False):
+        self.source, self.axis, self.time = source, axis, time
+        self.names, self.values = list(names), list(values)
         if annual:
             self._annual(what)
+
+    @classmethod
+    def of(cls, table, names, what, annual=False, labels=None):
+        """Columns `names` of a Table (named `labels` in the run, default the same)."""
+        n = table.c.n
+        values = [np.frombuffer(ffi.buffer(table.c.values[column(table, name, what)], n * 8),
+                                np.float64).copy() for name in names]
+        return cls(table.source, ffi.new("time_axis *", table.c.axis)[0], table_time(table),
+                   labels or names, values, what, annual)
 
     @property
     def n(self):
@@ -97,7 +105,7 @@ class Run:
         if mode not in _MODES:
             raise SlowscanError("baseline_mode=%r: neither 'mean' nor 'drift'" % (mode,))
         what = "the baseline run"
-        b = Run(baseline, self.names, what, bool(options.get("annual")))
+        b = Run.of(baseline, self.names, what, bool(options.get("annual")))
         for k, name in enumerate(self.names):
             _anomaly(self, k, b, b.values[k], offset, _MODES[mode])
         return b, offset

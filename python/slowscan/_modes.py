@@ -6,7 +6,7 @@ and `emulate` commands make them (cli/modes_run.c, cli/cmd_timescales.c, cli/cmd
 
 import numpy as np
 
-from . import _forced
+from . import _ensemble, _forced
 from ._config import _number, _whole
 from ._errors import SlowscanError, warn
 from ._forced import ptr
@@ -82,7 +82,11 @@ def max_modes(opts):
 
 def _ready(table, names, opts, inputs, what):
     """Columns of a table as a Run: annual means, anomalies against baseline= (cli_modes_ready)."""
-    run = _forced.Run(table, names, what, bool(opts.get("annual")))
+    return _anomalies(_forced.Run.of(table, names, what, bool(opts.get("annual"))), opts,
+                      inputs)
+
+
+def _anomalies(run, opts, inputs):
     if opts.get("baseline") is not None:
         run.anomalies(_forced.read(opts["baseline"], inputs, "baseline", cut=False), opts)
     return run
@@ -93,7 +97,8 @@ def flag_names(flags):
     return ";".join(names) or "none"
 
 
-def timescales(data, response=None, flux=None, joint=False, **options):
+def timescales(data, response=None, flux=None, joint=False, ensemble=False, members=None,
+               **options):
     """Relaxation modes of a step-forced run, y(t) = sum_k a_k (1 - exp(-t/tau_k)), as
     `slowscan timescales` writes them: one row per mode of the fit BIC chose.
 
@@ -105,6 +110,11 @@ def timescales(data, response=None, flux=None, joint=False, **options):
     baseline_offset=0, annual=False; for the input: time=, names=, calendar=, time_units=,
     missing=, start=, end=, resample=, max_gap=.
 
+    ensemble=True: the columns RESPONSE.MEMBER (at least 4; with joint=True the flux's members
+    paired by suffix) are fitted member by member, then their mean; the rows gain a leading
+    column member (the suffix, or "mean"; series is the member's column, or RESPONSE[mean]);
+    members= takes only those suffixes. A split of the members is warned of.
+
     Returns a DataFrame series, modes_chosen, mode, amplitude, amplitude_se, efold_time,
     efold_time_se, flux_at_onset, flux_at_onset_se, equilibrium, equilibrium_se, n_eff,
     flags; attrs["fits"] holds per series what --json writes (the BIC and RSS of every K,
@@ -115,18 +125,28 @@ def timescales(data, response=None, flux=None, joint=False, **options):
     if joint and flux is None:
         raise SlowscanError("joint=True needs flux= (the net flux column)")
     table = _forced.read(data, inputs, "input")
-    names = [response] if response is not None else list(table.names)
+    f = 1 if joint else None
+    if ensemble or members is not None:
+        if response is None:
+            raise SlowscanError("ensemble=True needs response= (the ensemble NAME of the "
+                                "columns NAME.MEMBER)")
+        runs = ((m, column, _anomalies(run, opts, inputs)) for m, column, run in
+                _ensemble.member_runs(table, response, flux if joint else None, members,
+                                      bool(opts.get("annual")), "input"))
+    else:
+        names = [response] if response is not None else list(table.names)
+        runs = ((None, name, _ready(table, [name] if not joint else [name, flux], opts,
+                                    inputs, "input")) for name in names)
     rows, fits = [], {}
-    for name in names:
-        cols = [name] if not joint else [name, flux]
-        run = _ready(table, cols, opts, inputs, "input")
-        s = Series(run, 0, 1 if joint else None, opts, "timescales")
+    for member, column, run in runs:
+        s = Series(run, 0, f, opts, "timescales")
+        s.name = column
         r = s.fit(opts)
-        rows.extend(_mode_rows(s.name, r))
-        fits[s.name] = _fit_summary(s, r, max_modes(opts))
+        rows.extend(([member] if member else []) + row for row in _mode_rows(column, r))
+        fits[column] = _fit_summary(s, r, max_modes(opts))
         _say_flags(s, r)
-    out = _forced.frame(rows, TIMESCALES_COLUMNS).astype({"modes_chosen": np.int64,
-                                                          "mode": np.int64})
+    columns = (["member"] if ensemble or members is not None else []) + TIMESCALES_COLUMNS
+    out = _forced.frame(rows, columns).astype({"modes_chosen": np.int64, "mode": np.int64})
     out.attrs["fits"] = fits
     return out
 

@@ -163,3 +163,50 @@ def test_emulate_refusals():
         slowscan.emulate(step, ramp["forcing"], 3.7)
     with pytest.raises(slowscan.SlowscanError, match="non-zero forcing"):
         slowscan.emulate(step["tas"], ramp["forcing"], 0)
+
+
+OVERSHOOT = DATA + "/forced-overshoot-high.csv"
+
+
+def test_feedback_ensemble_equal_cli():
+    runs, control = _read(OVERSHOOT), _read(CONTROL)
+    with pytest.warns(slowscan.SlowscanWarning, match="ensemble 'tas' splits"):
+        got = slowscan.feedback(runs, flux="net_flux", response="tas", ensemble=True,
+                                baseline=control)
+    cli = run_cli("feedback", "--flux", "net_flux", "--response", "tas", "--ensemble",
+                  "--baseline", CONTROL, OVERSHOOT)
+    assert_same_as_cli(got, cli.stdout)
+    assert list(got.attrs["runs"]) == ["m%02d" % m for m in range(1, 9)] + ["mean"]
+    got = slowscan.feedback(runs, flux="net_flux", response="tas", window=50,
+                            members=["m01", "m02", "m03", "m05"])
+    cli = run_cli("feedback", "--flux", "net_flux", "--response", "tas", "--members",
+                  "m01,m02,m03,m05", "--window", 50, OVERSHOOT)
+    assert_same_as_cli(got, cli.stdout)
+    with pytest.raises(slowscan.SlowscanError, match="2 members listed, at least 4 needed"):
+        slowscan.feedback(runs, flux="net_flux", response="tas", members="m01,m02")
+
+
+def test_timescales_ensemble_equal_cli(tmpcsv):
+    runs = _read(OVERSHOOT).iloc[:150]
+    with pytest.warns(slowscan.SlowscanWarning):
+        got = slowscan.timescales(runs, response="tas", ensemble=True, baseline=_read(CONTROL),
+                                  max_modes=2)
+    cli = run_cli("timescales", "--response", "tas", "--ensemble", "--baseline", CONTROL,
+                  "--max-modes", 2, tmpcsv(runs))
+    assert_same_as_cli(got, cli.stdout)
+    assert got["series"].iloc[-1] == "tas[mean]" and got["member"].iloc[-1] == "mean"
+
+
+def test_nothing_on_stderr(capfd):
+    # the library prints nothing: warnings are Python's, refusals exceptions
+    step, ramp, control = _read(STEP2X), _read(RAMP), _read(CONTROL)
+    with pytest.warns(slowscan.SlowscanWarning):
+        slowscan.feedback(step, flux="net_flux", response="tas", baseline=control)
+        slowscan.timescales(step, response="tas")
+        slowscan.emulate(step["tas"], ramp["forcing"], 3.7, compare=ramp["tas"])
+        slowscan.recovery(ramp[["tas"]], surrogates=9, project=True)
+        slowscan.robustness(ramp[["tas"]], windows="40%", bandwidths="10%")
+        with pytest.raises(slowscan.SlowscanError):
+            slowscan.timescales(step, response="forcing")
+    out, err = capfd.readouterr()
+    assert out == "" and err == ""
