@@ -20,11 +20,9 @@ __version__ = _ffi.string(_lib.slowscan_version()).decode()
 
 __all__ = ["detrend", "indicators", "surrogates", "screen", "Progress", "SlowscanError", "SlowscanWarning", "library_path", "__version__"]
 
-# recovery, robustness and the forced-run functions (feedback, timescales, emulate)
+# recovery, robustness and the forced-run functions (the commands of the same names)
 from ._recovery import recovery, robustness  # noqa: E402
-__all__ += ["recovery", "robustness"]
 from ._feedback import feedback  # noqa: E402
-__all__ += ["feedback"]
 from ._modes import timescales  # noqa: E402
 from ._emulate import emulate  # noqa: E402
-__all__ += ["timescales", "emulate"]
+__all__ += ["recovery", "robustness", "feedback", "timescales", "emulate"]

@@ -61,11 +61,14 @@ def test_recovery_options_dated_equal_cli(tmpcsv):
 
 def test_recovery_same_seed_any_thread_count():
     spots = _sunspots()
-    one = slowscan.recovery(spots, surrogates=39, seed=9, threads=1)
-    for threads in (2, 3):
-        two = slowscan.recovery(spots, surrogates=39, seed=9, threads=threads)
-        pd.testing.assert_frame_equal(one, two)
-        pd.testing.assert_frame_equal(one.attrs["fits"], two.attrs["fits"])
+    opts = dict(surrogates=39, seed=9, project=True, project_draws=500)
+    with pytest.warns(slowscan.SlowscanWarning, match="not forecasts"):
+        one = slowscan.recovery(spots, threads=1, **opts)
+        for threads in (2, 3):
+            two = slowscan.recovery(spots, threads=threads, **opts)
+            pd.testing.assert_frame_equal(one, two)
+            for part in ("fits", "projection"):
+                pd.testing.assert_frame_equal(one.attrs[part], two.attrs[part])
 
 
 def test_robustness_grid_fractions_equal_cli(tmpcsv, tmp_path):
