@@ -25,7 +25,8 @@ def feedback(data, flux, response, ensemble=False, members=None, **options):
     """The sliding-window regression N = F + lambda T of a forced run (Gregory et al. 2004),
     as `slowscan feedback --flux FLUX --response RESPONSE` writes it.
 
-    data: the run (a DataFrame with index = time, or values with time= and names=) holding
+    data: the run (a DataFrame with index = time, an xarray Dataset, or values with time= and
+    names=) holding
     the columns `flux` (net flux N) and `response` (T). Options, with the command's defaults:
     window=None (100 time units or 50% of the record after skip=, whichever is shorter),
     stride=None (a tenth of the window, at least one step), fit="ols" (or "tls"),

@@ -21,7 +21,13 @@ _MODES = {"mean": 0, "drift": 1}
 
 def read(data, inputs, source, cut=True):
     """A Table of data, readied as the command reads an input (cut=False: not cut to
-    start=/end=, as a baseline, step or control run is read whole)."""
+    start=/end=, as a baseline, step or control run is read whole). An xarray Dataset of
+    one-dimensional variables is taken as the table of its variables."""
+    if hasattr(data, "data_vars") and hasattr(data, "to_dataframe"):
+        if len(data.dims) != 1:
+            raise TypeError("a Dataset with dimensions %s: a run needs one time dimension"
+                            % (tuple(data.dims),))
+        data = data.to_dataframe()
     table = Table(data, inputs.get("time"), inputs.get("names"), inputs.get("calendar"),
                   inputs.get("time_units"), inputs.get("missing"), source=source)
     keys = ("start", "end", "resample", "max_gap") if cut else ("resample", "max_gap")

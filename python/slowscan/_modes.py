@@ -102,7 +102,8 @@ def timescales(data, response=None, flux=None, joint=False, ensemble=False, memb
     """Relaxation modes of a step-forced run, y(t) = sum_k a_k (1 - exp(-t/tau_k)), as
     `slowscan timescales` writes them: one row per mode of the fit BIC chose.
 
-    data: the run (a DataFrame, index = time; or values with time= and names=). response=:
+    data: the run (a DataFrame, index = time; an xarray Dataset; or values with time= and
+    names=). response=:
     the column to fit (default: every column, each alone); joint=True fits it together with
     the net flux column flux= (shared timescales). Options, with the command's defaults:
     max_modes=3 (1 to 5), onset=None (one step before the first sample), skip=None,

@@ -79,6 +79,14 @@ def test_feedback_annual_means_of_monthly_dates_equal_cli(tmpcsv):
         slowscan.feedback(_read(STEP4X), flux="net_flux", response="tas", annual=True)
 
 
+def test_xarray_dataset_run_as_dataframe():
+    # a run as an xarray Dataset (one variable per column) gives the DataFrame's numbers
+    run, control = _read(STEP4X), _read(CONTROL)
+    opts = dict(flux="net_flux", response="tas", baseline=control.to_xarray())
+    pd.testing.assert_frame_equal(slowscan.feedback(run.to_xarray(), **opts),
+                                  slowscan.feedback(run, **opts))
+
+
 def test_feedback_refusals():
     run = _read(STEP4X)
     with pytest.raises(TypeError, match="unexpected keyword argument 'windows'"):
