@@ -165,7 +165,8 @@ def test_emulate_refusals():
     every_other = ramp["forcing"].iloc[::2]
     with pytest.raises(slowscan.SlowscanError, match="time step 2 differs"):
         slowscan.emulate(step["tas"], every_other, 3.7)
-    with pytest.raises(slowscan.SlowscanError, match="no sample 101 steps after its onset, and the forcing record needs 180"):
+    with pytest.raises(slowscan.SlowscanError, match="no sample 101 steps after its onset, "
+                                                     "and the forcing record needs 180"):
         slowscan.emulate(step["tas"].iloc[:100], ramp["forcing"], 3.7, empirical=True)
     with pytest.raises(slowscan.SlowscanError, match="give \\(DataFrame, column\\)"):
         slowscan.emulate(step, ramp["forcing"], 3.7)
