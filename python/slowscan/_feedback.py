@@ -25,15 +25,15 @@ def feedback(data, flux, response, ensemble=False, members=None, **options):
     """The sliding-window regression N = F + lambda T of a forced run (Gregory et al. 2004),
     as `slowscan feedback --flux FLUX --response RESPONSE` writes it.
 
-    data: the run (a DataFrame with index = time, an xarray Dataset, or values with time= and
-    names=) holding the columns `flux` (net flux N) and `response` (T). Options, with the
+    data: the run (a DataFrame with index = time, an xarray Dataset, or values with time=
+    and names=) holding the columns `flux` (net flux N) and `response` (T). Options, with the
     command's defaults: window=None (100 time units or 50% of the record after skip=,
     whichever is shorter), stride=None (a tenth of the window, at least one step),
-    fit="ols" (or "tls"), noise_ratio=None (tls: required unless baseline= gives it), skip=None, fit_span=None (a
-    pair (A, B): one fit over A..B), scale=1, baseline=None (a control run, read like data:
-    both columns become anomalies against it), baseline_mode="mean" (or "drift"),
-    baseline_offset=0, annual=False; for the input: time=, names=, calendar=, time_units=,
-    missing=, start=, end=, resample=, max_gap=.
+    fit="ols" (or "tls"), noise_ratio=None (tls: required unless baseline= gives it),
+    skip=None, fit_span=None (a pair (A, B): one fit over A..B), scale=1, baseline=None (a
+    control run, read like data: both columns become anomalies against it),
+    baseline_mode="mean" (or "drift"), baseline_offset=0, annual=False; for the input: time=,
+    names=, calendar=, time_units=, missing=, start=, end=, resample=, max_gap=.
 
     ensemble=True: the columns FLUX.MEMBER and RESPONSE.MEMBER (at least 4 members) are
     fitted member by member, then the members' mean flux against their mean response; the
