@@ -6,7 +6,7 @@ import collections
 import numpy as np
 import pandas as pd
 
-from ._errors import MessageContext, SlowscanError, refusal, warn, words
+from ._errors import SlowscanError, refusal, warn, words
 from ._library import ffi, lib
 from ._series import Leakage, setup
 
