@@ -2,7 +2,7 @@
 import pandas as pd
 
 from ._errors import warn, words
-from ._series import Leakage, array, prepared, setup
+from ._series import Leakage, array, output_times, prepared, setup
 from ._library import lib
 
 COLUMNS = ["series", "time", "value", "trend", "residual"]
@@ -21,7 +21,6 @@ def detrend(data, **options):
     text the command prints.
     """
     table, cfg, ctx, keep = setup("detrend", data, options)
-    times = table.time_text()
     frames = []
     leakage = Leakage(ctx)
     for k, name in enumerate(table.names):
@@ -32,7 +31,7 @@ def detrend(data, **options):
                 warn(text)
             n = ps.n
             frames.append(pd.DataFrame({
-                "series": [name] * n, "time": times if _dated(table) else array(ps.time, n),
+                "series": [name] * n, "time": output_times(table, ps),
                 "value": array(ps.value, n), "trend": array(ps.trend, n),
                 "residual": array(ps.residual, n)}, columns=COLUMNS))
     leakage.report()
@@ -40,6 +39,3 @@ def detrend(data, **options):
         return pd.DataFrame(columns=COLUMNS)
     return pd.concat(frames, ignore_index=True)
 
-
-def _dated(table):
-    return table.c.axis.unit != lib.TIME_AXIS_NUMBER

@@ -19,8 +19,24 @@ FLAG_MEANINGS = "untested none rising falling insufficient"
 
 
 def is_grid(data):
+    """A DataArray with dimensions besides time, or a Dataset (each variable with the time
+    dimension screened, as the command screens every variable of a NetCDF file)."""
+    if hasattr(data, "data_vars"):
+        return True
     return hasattr(data, "dims") and hasattr(data, "coords") and hasattr(data, "transpose") \
         and len(data.dims) > 1
+
+
+def _arrays(data, time_dim):
+    """The DataArrays to screen and the time dimension they share."""
+    if not hasattr(data, "data_vars"):
+        return [data], _time_dim(data, time_dim)
+    dim = _time_dim(data, time_dim)
+    arrays = [data[v] for v in data.data_vars
+              if dim in data[v].dims and data[v].dtype.kind in "iufb"]
+    if not arrays:
+        raise SlowscanError("no numeric variable of the Dataset has the dimension %r" % dim)
+    return arrays, dim
 
 
 def _time_dim(da, given):
@@ -111,7 +127,7 @@ class _Maps:
         return ds
 
 
-def screen_grid(da, progress, maps, options):
+def screen_grid(data, progress, maps, options):
     inputs, rest = split_options(dict(options))
     time_dim = rest.pop("time_dim", None)
     for bad in ("time", "names"):
@@ -119,15 +135,33 @@ def screen_grid(da, progress, maps, options):
             raise TypeError("%s=: a DataArray carries its own %s" % (bad, bad))
     keep = []
     cfg = _config.make_config("screen", rest, keep)
-    time_dim = _time_dim(da, time_dim)
+    arrays, time_dim = _arrays(data, time_dim)
+    warn_few_surrogates(cfg)
+    run = Run(cfg, MessageContext(config=cfg), progress,
+              total=sum(int(np.prod(a.shape)) // a.sizes[time_dim] for a in arrays))
+    placed = [_screen_array(run, da, time_dim, inputs) for da in arrays]
+    run.decide()
+    if not maps:
+        return summary_rows(run) if any(p[1] for p in placed) else pd.DataFrame(columns=COLUMNS)
+    tests = [ffi.string(lib.slowscan_screen_test_name(lib.slowscan_screen_test_of(cfg, j))).decode()
+             for j in range(lib.slowscan_screen_test_count(cfg))]
+    grids = [_Maps(cells, tests) for cells, _ in placed]
+    owner = [(g, cell) for g, (_, positions) in zip(grids, placed) for cell in positions]
+    for (grid, cell), (name, stored) in zip(owner, run.series()):
+        grid.put(cell, stored)
+    import xarray as xr
+    return xr.merge([g.dataset(da.transpose(time_dim, ...), time_dim)
+                     for g, da in zip(grids, arrays)], combine_attrs="drop")
+
+
+def _screen_array(run, da, time_dim, inputs):
+    """Every cell of one DataArray into the run, block by block: (cells, flat positions of
+    the cells screened, in the order they went in)."""
     variable = str(da.name) if da.name is not None else "series"
     others = [d for d in da.dims if d != time_dim]
     da = da.transpose(time_dim, *others)
     cells = _Cells(da, others, variable)
     times = da[time_dim].values
-    ctx = MessageContext(source=variable, config=cfg)
-    warn_few_surrogates(cfg)
-    run = Run(cfg, ctx, progress, total=int(np.prod(cells.shape)))
     positions, empty = [], 0
     for offset, block in _blocks(da.data, cells.shape):
         values = block.reshape(block.shape[0], -1)
@@ -147,12 +181,4 @@ def screen_grid(da, progress, maps, options):
         warn("%s: %d cell%s no value at all (every time missing) and %s not analysed"
              % (variable, empty, "s hold" if empty != 1 else " holds",
                 "are" if empty != 1 else "is"))
-    run.decide()
-    if not maps:
-        return summary_rows(run) if positions else pd.DataFrame(columns=COLUMNS)
-    tests = [ffi.string(lib.slowscan_screen_test_name(lib.slowscan_screen_test_of(cfg, j))).decode()
-             for j in range(lib.slowscan_screen_test_count(cfg))]
-    grid = _Maps(cells, tests)
-    for cell, (name, stored) in zip(positions, run.series()):
-        grid.put(cell, stored)
-    return grid.dataset(da, time_dim)
+    return cells, positions

@@ -276,7 +276,12 @@ class Table:
         return np.frombuffer(ffi.buffer(self.c.time, self.c.n * 8), dtype=np.float64).copy()
 
     def time_text(self):
-        """The table's times as the command prints them."""
+        """The table's times as the command prints them (made once: the table is ready)."""
+        if getattr(self, "_time_text", None) is None:
+            self._time_text = self._format_times()
+        return self._time_text
+
+    def _format_times(self):
         axis = self.c.axis
         buf = ffi.new("char[]", 64)
         out = []

@@ -6,16 +6,10 @@ import pandas as pd
 
 from ._errors import SlowscanError, refusal, status_text, warn, words
 from ._library import ffi, lib
-from ._series import Leakage, array, prepared, setup
+from ._series import Leakage, output_times, prepared, setup
 
 INDICATOR_COLUMNS = ["series", "time", "indicator", "value"]
 SURROGATE_COLUMNS = ["series", "replicate", "time", "value"]
-
-
-def _times(table, ps):
-    if table.c.axis.unit != lib.TIME_AXIS_NUMBER:
-        return np.array(table.time_text(), dtype=object)
-    return array(ps.time, ps.n)
 
 
 def _frame(parts, columns):
@@ -62,7 +56,7 @@ def indicators(data, **options):
             leakage.add(name, ps.leakage, ps.leakage_tested)
             values = _paths(ws, cfg, ps, ctx)
             spec = ffi.new("rolling_spec *", lib.slowscan_screen_rolling_spec(cfg, ps))
-            times, n, w = _times(table, ps), ps.n, ps.window
+            times, n, w = output_times(table, ps), ps.n, ps.window
             for j in range(cfg.nindicators):
                 kind = cfg.indicators[j]
                 step = lib.slowscan_rolling_step(spec, kind, n)
@@ -90,7 +84,7 @@ def surrogates(data, **options):
     for k, name in enumerate(table.names):
         with prepared(cfg, table, k, ctx, table.source) as ps:
             leakage.add(name, ps.leakage, ps.leakage_tested)
-            parts.extend(_replicates(cfg, ps, ctx, name, _times(table, ps)))
+            parts.extend(_replicates(cfg, ps, ctx, name, output_times(table, ps)))
     leakage.report()
     return _frame(parts, SURROGATE_COLUMNS)
 

@@ -6,7 +6,7 @@ import collections
 import numpy as np
 import pandas as pd
 
-from ._errors import MessageContext, SlowscanError, refusal, warn, words
+from ._errors import SlowscanError, refusal, warn, words
 from ._library import ffi, lib
 from ._series import Leakage, setup
 
@@ -137,10 +137,12 @@ def screen(data, progress=None, maps=True, **options):
     """Screens every series for critical slowing down, as `slowscan screen` does.
 
     data: a DataFrame (index = time, one column per series), a Series, numpy values (time
-    first) with time= and names=, or an xarray DataArray. A DataArray with dimensions besides
-    time is a grid: every cell is screened (a dask-backed array block by block) and the
-    result is an xarray Dataset of maps, as `--maps` writes them (maps=False: the summary
-    DataFrame instead).
+    first) with time= and names=, an xarray DataArray, or an xarray Dataset. A DataArray with
+    dimensions besides time is a grid, and a Dataset screens each variable with the time
+    dimension (time_dim= names it when it is not "time" or the one dated coordinate): every
+    cell is screened (a dask-backed array block by block, all times of a block at once), the
+    q-values are over every cell, and the result is an xarray Dataset of maps, as `--maps`
+    writes them (maps=False: the summary DataFrame instead).
 
     Options, with the command's defaults: detrend="gaussian-linear", bandwidth="10%",
     deseason=None, deseason_window=None, harmonics=0, window="50%",

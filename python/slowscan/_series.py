@@ -87,3 +87,12 @@ def array(pointer, n):
     """A copy of n doubles at a library pointer."""
     import numpy as np
     return np.frombuffer(ffi.buffer(pointer, n * 8), dtype=np.float64).copy()
+
+
+def output_times(table, ps):
+    """The times of a prepared series as the command prints them: numbers on a number axis,
+    the dates' text (1950-01 on a month index) on a dated one."""
+    import numpy as np
+    if table.c.axis.unit != lib.TIME_AXIS_NUMBER:
+        return np.array(table.time_text(), dtype=object)
+    return array(ps.time, ps.n)

@@ -17,7 +17,9 @@ def unpacked(path, name):
     values = raw.values.astype(np.float64)
     values = values * raw.attrs.get("scale_factor", 1.0) + raw.attrs.get("add_offset", 0.0)
     values[raw.values == raw.attrs["_FillValue"]] = np.nan
-    return raw.copy(data=values)
+    out = raw.copy(data=values)
+    out.attrs, out.encoding = {}, {}  # unpacked: written back as plain doubles
+    return out
 
 
 @pytest.fixture(scope="module")
@@ -67,7 +69,8 @@ def test_dask_block_by_block(cli_maps):
     secchi = unpacked(SHELF, "secchi")
     watched = Watched(secchi.values)
     lazy = secchi.copy(data=da.from_array(watched, chunks=(200, 4, 5), asarray=True))
-    mine = slowscan.screen(lazy, deseason=12, surrogates=99, seed=5, threads=2)
+    with pytest.warns(slowscan.SlowscanWarning, match="4 cells hold no value"):
+        mine = slowscan.screen(lazy, deseason=12, surrogates=99, seed=5, threads=2)
     assert_same_maps(mine, cli_maps)
     nt = secchi.sizes["time"]
     cells = [np.prod([len(range(*k.indices(n))) for k, n in zip(key[1:], secchi.shape[1:])])
@@ -80,3 +83,17 @@ def test_grid_summary_names_as_cli():
     secchi = unpacked(SHELF, "secchi").isel(lat=slice(0, 2), lon=slice(0, 3))
     summary = slowscan.screen(secchi, deseason=12, surrogates=0, maps=False)
     assert summary["series"].iloc[0] == "secchi[lat=-33,lon=151]"
+
+
+def test_dataset_of_two_variables_equals_cli(tmp_path):
+    # two variables of the demo grid in one file: one run, q-values over both (as the command)
+    secchi = unpacked(SHELF, "secchi").isel(lat=slice(2, 6))
+    ds = xr.Dataset({"clarity": secchi, "turbid": 30.0 - 0.5 * secchi})
+    path = tmp_path / "two.nc"
+    ds.to_netcdf(path, format="NETCDF3_64BIT")
+    out = tmp_path / "maps.nc"
+    run_cli("screen", "--deseason", 12, "--surrogates", 49, "--maps", out, "-o",
+            tmp_path / "summary.csv", path)
+    with pytest.warns(slowscan.SlowscanWarning):
+        mine = slowscan.screen(ds, deseason=12, surrogates=49)
+    assert_same_maps(mine, xr.open_dataset(out, mask_and_scale=False))

@@ -1,6 +1,5 @@
 """make install puts the package where Debian's /usr/bin/python3 looks and records the
 library's path, so an installed package needs no SLOWSCAN_LIBRARY."""
-import glob
 import os
 import subprocess
 import sys

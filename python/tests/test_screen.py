@@ -1,5 +1,4 @@
 """slowscan.screen against `slowscan screen` on the same data and options."""
-import numpy as np
 import pandas as pd
 import pytest
 import statsmodels.api as sm
