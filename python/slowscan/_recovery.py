@@ -11,8 +11,7 @@ from . import _config
 from ._errors import MessageContext, SlowscanError, refusal, status_text, warn, words
 from ._forced import time_text
 from ._library import ffi, lib
-from ._rolling import _times
-from ._series import Leakage, prepared, series_input, setup
+from ._series import Leakage, output_times, prepared, series_input, setup
 
 # the options of the two commands (as the command line accepts them); registered beside
 # the other commands' so that make_config refuses anything else
@@ -89,7 +88,7 @@ def recovery(data, project=False, project_draws=1000, **options):
                 warn("%s: column '%s': no drifting AR(1) fit (%s); no rows written for it"
                      % (table.source, name, status_text(r.fit_status)))
                 continue
-            paths.append({"series": name, "time": _times(table, ps), "lambda": path[0],
+            paths.append({"series": name, "time": output_times(table, ps), "lambda": path[0],
                           "lambda_lo": path[1], "lambda_hi": path[2]})
             fits.append(_fit_row(name, r))
             if project:
