@@ -61,7 +61,7 @@ def emulate(step, forcing, step_forcing, compare=None, control=None, response=No
     band_upper, outside; attrs["departure"] holds what --json writes. Linear response is an
     assumption the emulation makes, not a finding.
     """
-    inputs, opts = _forced.split(options, OWN)
+    inputs, opts = _forced.split("emulate", options, OWN)
     F = _number("step_forcing", step_forcing)
     if not F != 0 or math.isinf(F):
         raise SlowscanError("step_forcing=%r: a non-zero forcing is needed" % (step_forcing,))

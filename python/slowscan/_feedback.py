@@ -45,7 +45,7 @@ def feedback(data, flux, response, ensemble=False, members=None, **options):
     slope, slope_se, z, p_value). An equilibrium extrapolated from a transient is not a
     forecast. With ensemble=True, attrs["runs"] holds it per member.
     """
-    inputs, opts = _forced.split(options, OWN)
+    inputs, opts = _forced.split("feedback", options, OWN)
     table = _forced.read(data, inputs, "input")
     annual = bool(opts.get("annual"))
     baseline = None

@@ -173,12 +173,12 @@ def axis_value(axis, option, value):
     return out[0]
 
 
-def split(options, own):
+def split(command, options, own):
     """(input options, forced-run options) of a call; anything else is refused."""
     unknown = sorted(set(options) - set(own) - set(INPUT_OPTIONS))
     if unknown:
-        raise TypeError("got an unexpected keyword argument %r (its options: %s)"
-                        % (unknown[0], ", ".join(own + INPUT_OPTIONS)))
+        raise TypeError("%s() got an unexpected keyword argument %r (its options: %s)"
+                        % (command, unknown[0], ", ".join(own + INPUT_OPTIONS)))
     inputs = {k: v for k, v in options.items() if k in INPUT_OPTIONS and v is not None}
     rest = {k: v for k, v in options.items() if k in own}
     if rest.get("baseline") is None:

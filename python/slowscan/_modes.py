@@ -122,7 +122,7 @@ def timescales(data, response=None, flux=None, joint=False, ensemble=False, memb
     lag-1 of the residuals, n_eff, residual sd, equilibrium and forcing). An equilibrium
     extrapolated from fitted modes is a property of the fit, not a forecast.
     """
-    inputs, opts = _forced.split(options, _SHARED)
+    inputs, opts = _forced.split("timescales", options, _SHARED)
     if joint and flux is None:
         raise SlowscanError("joint=True needs flux= (the net flux column)")
     table = _forced.read(data, inputs, "input")
