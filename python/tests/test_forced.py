@@ -89,7 +89,7 @@ def test_xarray_dataset_run_as_dataframe():
 
 def test_feedback_refusals():
     run = _read(STEP4X)
-    with pytest.raises(TypeError, match="feedback\(\) got an unexpected keyword argument 'windows'"):
+    with pytest.raises(TypeError, match=r"feedback\(\) got an unexpected keyword argument 'windows'"):
         slowscan.feedback(run, flux="net_flux", response="tas", windows=40)
     with pytest.raises(slowscan.SlowscanError, match="no column 'flux'"):
         slowscan.feedback(run, flux="flux", response="tas")
