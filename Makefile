@@ -57,7 +57,7 @@ SCLI_OBJ  := $(CLI_SRC:%.c=$(B)/asan/%.o)
 STEST_OBJ := $(TEST_SRC:%.c=$(B)/asan/%.o)
 BENCH_BIN := $(BENCH_SRC:bench/%.c=$(B)/bench/%)
 
-.PHONY: all deps check demo bench validate install clean lib-sources
+.PHONY: all deps check python-check demo bench validate install install-python clean lib-sources
 # Programs link the static archives: the binary then runs from the build tree and from any
 # prefix without a library path, and the tests may reach module internals.
 STATIC_LIBS := $(B)/libslowscan-report.a $(B)/libslowscan.a
@@ -138,7 +138,15 @@ check: deps
 	plain=0; SLOWSCAN_BIN=$(B)/slowscan SLOWSCAN_LABEL=plain $(B)/run_tests || plain=1; \
 	ASAN_OPTIONS=detect_leaks=1:abort_on_error=0 UBSAN_OPTIONS=print_stacktrace=1 \
 	  LSAN_OPTIONS=suppressions=$(CURDIR)/tests/lsan.supp:print_suppressions=0 \
-	  SLOWSCAN_BIN=$(B)/asan/slowscan SLOWSCAN_LABEL=sanitized $(B)/asan/run_tests && exit $$plain
+	  SLOWSCAN_BIN=$(B)/asan/slowscan SLOWSCAN_LABEL=sanitized $(B)/asan/run_tests || plain=1; \
+	$(MAKE) --no-print-directory python-check || plain=1; exit $$plain
+
+# The Python package's tests (python/tests) against the library just built, not installed:
+# SLOWSCAN_LIBRARY points the package at it, SLOWSCAN_BIN the tests at the command.
+python-check: all
+	SLOWSCAN_LIBRARY=$(CURDIR)/$(B)/libslowscan.so.$(SOMAJOR) SLOWSCAN_BIN=$(CURDIR)/$(B)/slowscan \
+	  PYTHONPATH=$(CURDIR)/python PYTHONDONTWRITEBYTECODE=1 \
+	  /usr/bin/python3 -m pytest -q -p no:cacheprovider python/tests
 
 # The calibration battery of `make check` with more series and every memory-keeping null.
 VALIDATE_OBJ := $(B)/obj/tests/validate/validate.o $(B)/obj/tests/check.o \
@@ -191,7 +199,21 @@ bench: all $(BENCH_BIN)
 # (pkg-config --static) get the private dependencies too.
 PC_SUBST = -e 's|@PREFIX@|$(PREFIX)|' -e 's|@VERSION@|$(VERSION)|' -e 's|@REQUIRES@|$(CORE_PKGS)|'
 LIBDIR = $(DESTDIR)$(PREFIX)/lib
-install: all
+# The Python package goes where Debian's /usr/bin/python3 looks for this prefix's packages:
+# /usr/lib/python3/dist-packages for /usr, else PREFIX/lib/python3.X/dist-packages (on its
+# sys.path for /usr/local); it records where the library is installed (_installed.py).
+PYTHON ?= /usr/bin/python3
+PYDIR ?= $(if $(filter /usr,$(PREFIX)),/usr/lib/python3/dist-packages,$(shell $(PYTHON) -c \
+  'import sys; print("$(PREFIX)/lib/python%d.%d/dist-packages" % sys.version_info[:2])' \
+  2>/dev/null || echo $(PREFIX)/lib/python3/dist-packages))
+install: all install-python
+install-python:
+	install -d $(DESTDIR)$(PYDIR)/slowscan/_cdef
+	install -m 644 python/slowscan/*.py $(DESTDIR)$(PYDIR)/slowscan/
+	install -m 644 python/slowscan/_cdef/*.h python/slowscan/_cdef/README \
+	  $(DESTDIR)$(PYDIR)/slowscan/_cdef/
+	printf '"""Written by make install."""\nLIBRARY = "%s"\n' \
+	  '$(PREFIX)/lib/libslowscan.so.$(SOMAJOR)' > $(DESTDIR)$(PYDIR)/slowscan/_installed.py
 	install -d $(DESTDIR)$(PREFIX)/bin $(LIBDIR)/pkgconfig $(DESTDIR)$(PREFIX)/include/slowscan
 	install -m 755 $(B)/slowscan $(DESTDIR)$(PREFIX)/bin/slowscan
 	install -m 644 $(STATIC_LIBS) $(LIBDIR)/

@@ -105,26 +105,20 @@ static int step_response(const cli_options *opts, emulate_run *run, const modes_
     if (!opts->modes.empirical)
         return slowscan_emulate_modes_response(&run->fit, F, s->dt, 0.0, run->n, run->response)
                    == SLOWSCAN_OK ? EXIT_OK : EXIT_INTERNAL;
-    for (size_t m = 0; m < run->n; m++)
-        run->response[m] = m == 0 ? 0.0 : NAN;
-    for (size_t i = 0; i < s->n; i++) {
-        double lag = s->t[i] / s->dt;
-        size_t m = (size_t)llround(lag);
-        if (fabs(lag - (double)m) > 1e-6) {
-            cli_error("option --empirical: the step run's samples are not whole steps after the "
-                      "onset (%g); set --onset", s->onset);
-            return EXIT_BAD_INPUT;
-        }
-        if (m < run->n)
-            run->response[m] = s->y[i] / F;
+    size_t gap = 0;
+    int st = slowscan_emulate_empirical_response(s->t, s->y, s->n, s->dt, F, run->n,
+                                                 run->response, &gap);
+    if (st == SLOWSCAN_EINVAL) {
+        cli_error("option --empirical: the step run's samples are not whole steps after the "
+                  "onset (%g); set --onset", s->onset);
+        return EXIT_BAD_INPUT;
     }
-    for (size_t m = 0; m < run->n; m++)
-        if (isnan(run->response[m])) {
-            cli_error("option --empirical: the step run has no sample %zu steps after its onset, "
-                      "and the forcing record needs %zu (use the fitted modes: drop --empirical)",
-                      m, run->n);
-            return EXIT_BAD_INPUT;
-        }
+    if (st != SLOWSCAN_OK) {
+        cli_error("option --empirical: the step run has no sample %zu steps after its onset, "
+                  "and the forcing record needs %zu (use the fitted modes: drop --empirical)",
+                  gap, run->n);
+        return EXIT_BAD_INPUT;
+    }
     return EXIT_OK;
 }
 

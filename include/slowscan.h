@@ -33,5 +33,6 @@
 #include "slowscan/message.h"
 #include "slowscan/screen_store.h"
 #include "slowscan/netcdf_maps.h"
+#include "slowscan/screen_memory.h"
 
 #endif

@@ -58,16 +58,6 @@ int csv_cell_number(const char *s, double *v)
     return 0;
 }
 
-/* Whether v is one of the codes for a missing value (to 1e-7 relative, so that a fill value
- * written to six digits, 9.96921e36, matches the float it stands for). */
-static int is_missing_code(const csv_read_options *o, double v)
-{
-    for (size_t c = 0; c < o->nmissing; c++)
-        if (fabs(v - o->missing[c]) <= 1e-7 * fabs(o->missing[c]))
-            return 1;
-    return 0;
-}
-
 /* A selected cell of a data record. A bad cell is remembered, not reported at once, so that
  * a ragged record is reported as ragged (its cells are probably shifted). */
 static void data_field(csv_reader *r, char *s, size_t len)
@@ -105,7 +95,7 @@ static void data_field(csv_reader *r, char *s, size_t len)
     }
     if (!bad && !isnan(v))
         r->series_state[role] = SERIES_NUMERIC;
-    if (!bad && is_missing_code(r->options, v)) {
+    if (!bad && io_missing_code(r->options, v)) {
         v = NAN;
         r->t->coded_missing++;
     }

@@ -14,6 +14,9 @@ int io_fail(io_error *err, int status, const char *fmt, ...) __attribute__((form
 char *io_strdup(const char *s);
 /* qsort's order of doubles (ascending). */
 int io_compare_doubles(const void *a, const void *b);
+/* Whether v is one of the codes for a missing value (to 1e-7 relative, so that a fill value
+ * written to six digits, 9.96921e36, matches the float it stands for). */
+int io_missing_code(const csv_read_options *o, double v);
 /* The median of the n-1 steps of time[n] (n >= 2); NaN when out of memory. */
 double io_median_step(const double *time, size_t n);
 /* Records a temporary output file just made, so a signal's handler can remove it

@@ -241,15 +241,27 @@ static int load_block(netcdf_reader *r, io_error *err)
     return st == SLOWSCAN_OK ? read_spilled(r, v, err) : st;
 }
 
-/* VAR[lat=-28.5,lon=120]: coordinate values with up to 10 significant digits. */
+size_t slowscan_netcdf_series_name(char *buf, size_t size, const char *variable,
+                                   const char *const *coord_name, const double *coord_value,
+                                   size_t ncoords)
+{
+    char scratch[1];
+    if (size == 0) /* snprintf with size 0 only measures */
+        buf = scratch;
+    size_t len = (size_t)snprintf(buf, size, "%s", variable);
+    for (size_t k = 0; k < ncoords; k++)
+        len += (size_t)snprintf(len < size ? buf + len : NULL, len < size ? size - len : 0,
+                                "%s%s=%.10g", k ? "," : "[", coord_name[k], coord_value[k]);
+    if (ncoords)
+        len += (size_t)snprintf(len < size ? buf + len : NULL, len < size ? size - len : 0,
+                                "]");
+    return len;
+}
+
 static void series_name(netcdf_reader *r, const netcdf_variable *v, netcdf_series *s)
 {
-    size_t len = (size_t)snprintf(r->name, sizeof r->name, "%s", v->name);
-    for (size_t k = 0; k < s->ncoords && len < sizeof r->name; k++)
-        len += (size_t)snprintf(r->name + len, sizeof r->name - len, "%s%s=%.10g",
-                                k ? "," : "[", s->coord_name[k], s->coord_value[k]);
-    if (s->ncoords && len < sizeof r->name)
-        snprintf(r->name + len, sizeof r->name - len, "]");
+    slowscan_netcdf_series_name(r->name, sizeof r->name, v->name, s->coord_name,
+                                s->coord_value, s->ncoords);
     s->name = r->name;
 }
 

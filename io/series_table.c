@@ -89,3 +89,11 @@ double io_median_step(const double *time, size_t n)
     free(steps);
     return median;
 }
+
+int io_missing_code(const csv_read_options *o, double v)
+{
+    for (size_t c = 0; c < o->nmissing; c++)
+        if (fabs(v - o->missing[c]) <= 1e-7 * fabs(o->missing[c]))
+            return 1;
+    return 0;
+}

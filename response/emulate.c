@@ -89,6 +89,31 @@ int slowscan_emulate_modes_response(const timescales_result *modes, double step_
     return SLOWSCAN_OK;
 }
 
+int slowscan_emulate_empirical_response(const double *t, const double *y, size_t m, double dt,
+                                        double step_forcing, size_t n, double *response,
+                                        size_t *gap)
+{
+    if (!(dt > 0) || !(step_forcing != 0) || !isfinite(step_forcing))
+        return SLOWSCAN_EINVAL;
+    for (size_t k = 0; k < n; k++)
+        response[k] = k == 0 ? 0.0 : NAN;
+    for (size_t i = 0; i < m; i++) {
+        double lag = t[i] / dt;
+        size_t k = (size_t)llround(lag);
+        if (!(fabs(lag - (double)k) <= 1e-6))
+            return SLOWSCAN_EINVAL;
+        if (k < n)
+            response[k] = y[i] / step_forcing;
+    }
+    for (size_t k = 0; k < n; k++)
+        if (isnan(response[k])) {
+            if (gap)
+                *gap = k;
+            return SLOWSCAN_ESHORT;
+        }
+    return SLOWSCAN_OK;
+}
+
 /* The linear convolution by FFT: both inputs zero-padded to the planned length. */
 static void convolve_fft(emulate_workspace *ws, const double *response, size_t n, double *out)
 {

@@ -7,6 +7,7 @@
 #include "stations_check.h"
 #include "slowscan/io.h"
 #include "slowscan/screen_batch.h"
+#include "slowscan/screen_memory.h"
 #include "slowscan/status.h"
 
 #include <math.h>
@@ -67,6 +68,43 @@ static int put(void *state, const screen_batch_item *item)
     return SLOWSCAN_OK;
 }
 
+static void count_stored(void *context, const screen_progress *p)
+{
+    if (p->total == 0)
+        ++*(size_t *)context;
+}
+
+/* A table screened in memory into a store (screen_memory.h, what the Python package calls):
+ * every series stored in order with the results of slowscan_screen_series, told once each. */
+static void memory_run_stores(const series_table *t, screen_config cfg, const expect_sink *e)
+{
+    cfg.threads = 2;
+    screen_store *store = slowscan_screen_store_alloc(4, NULL); /* spills after 4 series */
+    size_t told = 0;
+    screen_memory_run run = slowscan_screen_memory_default();
+    run.table = t, run.store = store, run.progress = count_stored, run.context = &told;
+    screen_batch_failure f;
+    int st = slowscan_screen_memory_run(&cfg, &run, &f);
+    size_t same = 0, n = t->nseries < 16 ? t->nseries : 16;
+    for (size_t k = 0; st == SLOWSCAN_OK && k < n; k++) {
+        screen_stored got;
+        io_error err;
+        if (slowscan_screen_store_read(store, k, &got, &err) != SLOWSCAN_OK)
+            break;
+        int equal = !strcmp(got.name, t->names[k]) && got.result.ntests == e->want[k].ntests;
+        for (size_t j = 0; equal && j < got.result.ntests; j++)
+            equal = memcmp(&got.result.tests[j].statistic, &e->want[k].tests[j].statistic,
+                           sizeof(double)) == 0 &&
+                    memcmp(&got.result.tests[j].p_value, &e->want[k].tests[j].p_value,
+                           sizeof(double)) == 0;
+        same += equal;
+    }
+    CHECK(st == SLOWSCAN_OK && run.stored == t->nseries && told == t->nseries && same == n,
+          "memory run: status %d, %zu stored, %zu told, %zu of %zu equal", st, run.stored, told,
+          same, n);
+    slowscan_screen_store_free(store);
+}
+
 void suite_batch(void)
 {
     series_table t;
@@ -85,6 +123,7 @@ void suite_batch(void)
         memcpy(e.want_path[k], slowscan_screen_workspace_path(ws, 0), t.n * sizeof(double));
     }
     slowscan_screen_workspace_free(ws);
+    memory_run_stores(&t, cfg, &e);
     /* 1 and 3 threads over the 8 series; 16: fewer series than threads, shared surrogates */
     const size_t threads[] = {1, 3, 16};
     for (size_t r = 0; r < 3; r++) {

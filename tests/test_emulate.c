@@ -272,6 +272,25 @@ static void test_library_refusals(void)
 }
 
 
+/* The step run's own values as the response (emulate --empirical): y / F at whole lags, 0 at
+ * lag 0 without a sample there; off-grid samples and a missing lag refused (common practice,
+ * no source: the definition). */
+static void test_empirical_response(void)
+{
+    const double t[] = {1, 2, 3, 4}, y[] = {2, 4, 6, 8};
+    double R[5], want[] = {0, 0.5, 1, 1.5, 2};
+    size_t gap = 0;
+    CHECK(slowscan_emulate_empirical_response(t, y, 4, 1.0, 4.0, 5, R, &gap) == SLOWSCAN_OK &&
+          memcmp(R, want, sizeof want) == 0, "empirical response: y/F at lags 0..4");
+    CHECK(slowscan_emulate_empirical_response(t, y, 3, 1.0, 4.0, 5, R, &gap) == SLOWSCAN_ESHORT &&
+          gap == 4, "empirical response: lag 4 missing, named");
+    const double off[] = {1, 2.5, 3, 4};
+    CHECK(slowscan_emulate_empirical_response(off, y, 4, 1.0, 4.0, 5, R, &gap) == SLOWSCAN_EINVAL,
+          "empirical response: a sample between steps refused");
+    CHECK(slowscan_emulate_empirical_response(t, y, 4, 1.0, 0.0, 5, R, &gap) == SLOWSCAN_EINVAL,
+          "empirical response: forcing 0 refused");
+}
+
 /* The command: a noise-free step run of the two modes (exactly recovered by the fit), a ramp
  * of 300 samples (FFT): the emulated column equals the closed form; then the fold run. */
 static void test_command_closed_form(const char *step, const char *ramp)
@@ -410,6 +429,7 @@ void suite_emulate(void)
     test_linear();
     test_threshold();
     test_library_refusals();
+    test_empirical_response();
     test_command();
     test_false_departures();
 }

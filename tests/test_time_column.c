@@ -358,8 +358,64 @@ static void check_column_store(void)
     slowscan_series_table_free(&whole);
 }
 
+/* A table made from cells in memory (slowscan_table_from_memory, for bindings) is the table
+ * the CSV reader makes of the same cells: times, axis, values, codes read as missing; and it
+ * refuses what the reader refuses (common practice, no source: the reader is the reference). */
+static void check_memory_table(void)
+{
+    static const char *const cells[] = {"1850-01-15", "1850-02-15", "1850-03-15", "1850-04-15",
+                                        "1850-05-15"};
+    const double a[] = {1, -999, 3, 4, 5}, b[] = {2, 4, 6, 8, NAN};
+    const double *values[] = {a, b};
+    const char *names[] = {"a", "b"};
+    double code = -999;
+    csv_read_options o = slowscan_csv_read_options_default();
+    slowscan_calendar_lookup("noleap", &o.calendar);
+    o.missing = &code, o.nmissing = 1;
+    series_table file, mem;
+    io_error err, err2 = {{0}};
+    int st = read_with("date,a,b\n1850-01-15,1,2\n1850-02-15,-999,4\n1850-03-15,3,6\n"
+                       "1850-04-15,4,8\n1850-05-15,5,NA\n", &o, &file, &err);
+    int st2 = slowscan_table_from_memory("arrays", "date", cells, 5, names, values, 2, &o, &mem,
+                                         &err2);
+    int same = st == SLOWSCAN_OK && st2 == SLOWSCAN_OK && mem.n == file.n &&
+               memcmp(&mem.axis, &file.axis, sizeof mem.axis) == 0 &&
+               mem.coded_missing == 1 && file.coded_missing == 1 && mem.rows == NULL;
+    for (size_t i = 0; same && i < mem.n; i++)
+        for (size_t k = 0; k < 2; k++)
+            same = mem.time[i] == file.time[i] && !strcmp(mem.names[k], file.names[k]) &&
+                   (mem.values[k][i] == file.values[k][i] ||
+                    (isnan(mem.values[k][i]) && isnan(file.values[k][i])));
+    CHECK(same && mem.axis.unit == TIME_AXIS_MONTHS, "memory table = CSV table (%d %d): %s",
+          st, st2, err2.message);
+    if (st == SLOWSCAN_OK)
+        slowscan_series_table_free(&file);
+    if (st2 == SLOWSCAN_OK)
+        slowscan_series_table_free(&mem);
+    static const struct { const char *cells[3]; double x; int age; const char *needle; } bad[] = {
+        {{"1", "NA", "3"}, 0, 0, "date[1]: the time is missing"},
+        {{"1", "3", "2"}, 0, 0, "date[2] = 2 is not greater than the previous time 3"},
+        {{"1", "2", "x"}, 0, 0, "date[2] 'x' is a date (or text), but the rows above hold numbers"},
+        {{"1", "2", "3"}, INFINITY, 0, "series 'a', sample 0: an infinite value"},
+        {{"1", "2", "3"}, 0, 1, "ages are not read from memory"},
+    };
+    for (size_t c = 0; c < sizeof bad / sizeof bad[0]; c++) {
+        const double x[] = {bad[c].x, 1, 2};
+        const double *v[] = {x};
+        csv_read_options d = slowscan_csv_read_options_default();
+        d.age = bad[c].age;
+        memset(&err2, 0, sizeof err2);
+        st = slowscan_table_from_memory("arrays", "date", bad[c].cells, 3, names, v, 1, &d,
+                                        &mem, &err2);
+        CHECK(st == SLOWSCAN_EINVAL && strstr(err2.message, bad[c].needle) &&
+                  mem.time == NULL && mem.names == NULL,
+              "memory table refuses '%s': %s", bad[c].needle, err2.message);
+    }
+}
+
 void suite_time_column(void)
 {
+    check_memory_table();
     check_column_store();
     check_dated_days();
     check_monthly_yearly();

@@ -62,6 +62,16 @@ SLOWSCAN_API
 int slowscan_emulate_modes_response(const timescales_result *modes, double step_forcing,
                                     double dt, double lag0, size_t n, double *response);
 
+/* The step run's own values as the response per unit forcing (emulate --empirical): sample i,
+ * t[i] after the onset (t[0..m), increasing, whole multiples of dt), gives
+ * response[round(t[i]/dt)] = y[i] / step_forcing for lags below n; lag 0 is 0 unless the run
+ * has a sample there. EINVAL for a sample not within 1e-6 steps of a whole step (or dt <= 0,
+ * a zero or non-finite forcing); ESHORT when a lag below n has no sample, its index in *gap. */
+SLOWSCAN_API
+int slowscan_emulate_empirical_response(const double *t, const double *y, size_t m, double dt,
+                                        double step_forcing, size_t n, double *response,
+                                        size_t *gap);
+
 /* out[i] = sum_{j <= i} (F_j - F_{j-1}) R_{i-j} for i < n, F_{-1} = 0 (the forcing as an
  * anomaly from the state the step run started in). EINVAL for NaN in either input or n larger
  * than the workspace's. */

@@ -95,6 +95,22 @@ int slowscan_csv_columns_table(csv_column_store *store, size_t first, size_t cou
 SLOWSCAN_API
 void slowscan_csv_columns_close(csv_column_store *store);
 
+/* A table from a caller's arrays in memory (a binding's columns), with the checks of
+ * slowscan_csv_read_table: time_cells[n] are read as a CSV's time column would be (numbers,
+ * ISO 8601 dates on options->calendar, options->time_format, options->units) and the axis
+ * settled the same way (monthly and yearly records on their index); a missing, unreadable or
+ * non-increasing time and an infinite value are refused naming `source` (NULL: "input"),
+ * time_name[index] or the series and sample (from 0); a value equal to one of
+ * options->missing becomes NaN (counted in coded_missing). options NULL: the defaults;
+ * time_column and vars are not used; ages (options->age) are refused. values[k][n] are
+ * copied; rows is NULL, so later messages about a sample name its time. */
+SLOWSCAN_API
+int slowscan_table_from_memory(const char *source, const char *time_name,
+                               const char *const *time_cells, size_t n,
+                               const char *const *names, const double *const *values,
+                               size_t nseries, const csv_read_options *options,
+                               series_table *table, io_error *err);
+
 /* Keeps the rows with from <= time <= until (NaN: no limit). SLOWSCAN_ESHORT with a message
  * when fewer than 2 rows remain. */
 SLOWSCAN_API

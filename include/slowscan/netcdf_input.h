@@ -58,6 +58,15 @@ typedef struct {
     int all_missing;        /* every value is missing (land in an ocean field) */
 } netcdf_series;
 
+/* A cell's series name, VAR[lat=-28.5,lon=120] (coordinate values with up to 10
+ * significant digits; VAR alone without coordinates): the name its results and random
+ * streams carry, for a caller that screens a grid it holds itself. Works like snprintf:
+ * returns the whole length, writes at most size bytes (NUL-terminated when size > 0). */
+SLOWSCAN_API
+size_t slowscan_netcdf_series_name(char *buf, size_t size, const char *variable,
+                                   const char *const *coord_name, const double *coord_value,
+                                   size_t ncoords);
+
 typedef struct netcdf_reader netcdf_reader;
 
 /* Opens a NetCDF file (classic, 64-bit offset, CDF-5 or NetCDF-4) and finds its time axis,

@@ -1,0 +1,46 @@
+/* slowscan — screening a table held in memory into a store (module prefix: screen_memory_).
+ *
+ * For a caller that already holds its series (a binding's arrays made into a series_table by
+ * slowscan_table_from_memory): every series of the table goes through the batch driver
+ * (screen_batch.h: threads over series, results in input order) into a screen_store, whose
+ * decision (slowscan_screen_store_decide) then gives the q-values over everything added —
+ * over several tables when they are added one after another (the blocks of a field too large
+ * to hold at once). Nothing here prints or reads files. */
+#ifndef SLOWSCAN_SCREEN_MEMORY_H
+#define SLOWSCAN_SCREEN_MEMORY_H
+
+#include "slowscan/export.h"
+
+#include "slowscan/io.h"
+#include "slowscan/screen.h"
+#include "slowscan/screen_batch.h"
+#include "slowscan/screen_store.h"
+
+#include <stddef.h>
+
+typedef struct {
+    const series_table *table; /* the series, screened in their order */
+    const char *source;        /* how results and messages name it; NULL: table->source */
+    screen_store *store;       /* receives each series (name, result; no extra block) */
+    /* Optional: called with each block of surrogates of a running series (progress->index is
+     * the series' index in the table), and with done == total == 0 once a series is in the
+     * store. Never from two threads at once; it only watches. */
+    screen_progress_fn progress;
+    void *context;
+    size_t stored;             /* out: series added to the store by this run */
+    io_error error;            /* out: the store's failure (SLOWSCAN_EIO, ENOMEM) */
+} screen_memory_run;
+
+/* Every field zero or NULL. */
+SLOWSCAN_API
+screen_memory_run slowscan_screen_memory_default(void);
+
+/* Screens every series of run->table with cfg (cfg->threads threads) into run->store.
+ * SLOWSCAN_OK; the status of the first series refused (described in *failure, as
+ * slowscan_screen_batch_run describes it; series before it are in the store); or the
+ * store's failure (SCREEN_RULE_NONE in failure->detail, the message in run->error). */
+SLOWSCAN_API
+int slowscan_screen_memory_run(const screen_config *cfg, screen_memory_run *run,
+                               screen_batch_failure *failure);
+
+#endif

@@ -1,0 +1,72 @@
+/* A table in memory through the batch driver into a store (screen_memory.h): the source
+ * hands out the table's columns as they are (nothing copied), the sink adds each result to
+ * the store in input order. */
+#include "slowscan/screen_memory.h"
+#include "slowscan/status.h"
+
+#include <string.h>
+
+typedef struct {
+    screen_memory_run *run;
+    int status; /* the store's failure */
+} memory_state;
+
+screen_memory_run slowscan_screen_memory_default(void)
+{
+    screen_memory_run run;
+    memset(&run, 0, sizeof run);
+    return run;
+}
+
+static int next_series(void *state, size_t index, screen_input *in, screen_detail *detail)
+{
+    (void)detail;
+    const screen_memory_run *run = ((memory_state *)state)->run;
+    const series_table *t = run->table;
+    if (index >= t->nseries)
+        return SCREEN_BATCH_END;
+    *in = (screen_input){.name = t->names[index],
+                         .source = run->source ? run->source : t->source,
+                         .time_name = t->time_name, .time = t->time,
+                         .values = t->values[index], .n = t->n, .control = NULL,
+                         .axis = t->axis};
+    return SLOWSCAN_OK;
+}
+
+static int put_series(void *state, const screen_batch_item *item)
+{
+    memory_state *m = state;
+    screen_memory_run *run = m->run;
+    m->status = slowscan_screen_store_add(run->store, item->input->name, item->result, NULL, 0,
+                                          &run->error);
+    if (m->status != SLOWSCAN_OK)
+        return m->status;
+    run->stored++;
+    if (run->progress) {
+        screen_progress done = {.series = item->input->name, .index = item->index};
+        run->progress(run->context, &done);
+    }
+    return SLOWSCAN_OK;
+}
+
+static void surrogates_drawn(void *state, const screen_progress *progress)
+{
+    const screen_memory_run *run = ((memory_state *)state)->run;
+    run->progress(run->context, progress);
+}
+
+int slowscan_screen_memory_run(const screen_config *cfg, screen_memory_run *run,
+                               screen_batch_failure *failure)
+{
+    memset(failure, 0, sizeof *failure);
+    run->stored = 0;
+    run->error.message[0] = '\0';
+    if (!run->table || !run->store)
+        return SLOWSCAN_EINVAL;
+    memory_state m = {run, SLOWSCAN_OK};
+    screen_source source = {next_series, NULL, run->table->nseries, &m};
+    screen_sink sink = {.put = put_series, .state = &m, .keep_series = 0,
+                        .progress = run->progress ? surrogates_drawn : NULL};
+    int st = slowscan_screen_batch_run(cfg, &source, &sink, failure);
+    return m.status != SLOWSCAN_OK ? m.status : st;
+}
