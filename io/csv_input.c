@@ -47,6 +47,11 @@ int csv_cell_number(const char *s, double *v)
         *v = NAN;
         return 0;
     }
+    /* strtod also reads C's hexadecimal forms (0x10 as 16, 0x1p3 as 8); in a data file
+     * "0x10" is far more likely a code or a typo than sixteen, so it is not a number. */
+    const char *digits = s + (*s == '+' || *s == '-');
+    if (digits[0] == '0' && (digits[1] == 'x' || digits[1] == 'X'))
+        return 1;
     char *end;
     errno = 0;
     *v = strtod(s, &end);
