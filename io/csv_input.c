@@ -133,6 +133,17 @@ static void on_field(void *data, size_t len, void *context)
     /* Line feeds inside quoted fields move the file row on without ending the record. */
     for (const char *p = s; (p = memchr(p, '\n', len - (size_t)(p - s))) != NULL; p++)
         r->record_nl++;
+    /* A NUL byte would end the cell for every C string function after this one: "1<NUL>2"
+     * would be read as 1. Text files do not hold NUL bytes; binary ones (a NetCDF or
+     * spreadsheet file given as CSV) do. */
+    if (memchr(s, '\0', len)) {
+        if (r->in_header || r->field >= r->ncols)
+            csv_failf(r, SLOWSCAN_EINVAL, "row %zu, field %zu: a NUL byte (is this a binary "
+                      "file rather than a text table?)", r->line, r->field + 1);
+        else
+            csv_failf(r, SLOWSCAN_EINVAL, "row %zu, column '%s': a NUL byte (is this a binary "
+                      "file rather than a text table?)", r->line, r->header[r->field]);
+    }
     if (r->status == SLOWSCAN_OK) {
         if (r->in_header)
             csv_header_field(r, s, len);
