@@ -399,6 +399,8 @@ int cli_ready_table(const cli_options *opts, series_table *t, int first);
 int cli_parse_number(const char *name, const char *value, double *out);
 int cli_parse_positive(const char *name, const char *value, double *out);
 int cli_parse_length(const char *name, const char *value, cli_length *len);
+/* EXIT_BAD_INPUT, with the message, when the list v holds an empty item (option_values.c). */
+int cli_list_check(const char *name, const char *v);
 int cli_parse_grid(const char *name, const char *v, cli_length *items, char (*texts)[32],
                    size_t *count);
 

@@ -9,6 +9,13 @@
 
 int cli_parse_number(const char *name, const char *value, double *out)
 {
+    /* strtod would read C's hexadecimal forms (0x10 as 16); the data reader refuses them
+     * too (io/csv_input.c), so an option and a cell mean the same by the same text */
+    const char *digits = value + (*value == '+' || *value == '-');
+    if (digits[0] == '0' && (digits[1] == 'x' || digits[1] == 'X')) {
+        cli_error("option %s: '%s' is not a decimal number", name, value);
+        return EXIT_BAD_INPUT;
+    }
     char *end;
     double v = strtod(value, &end);
     if (end == value || *end != '\0' || !isfinite(v)) {
@@ -72,6 +79,20 @@ int cli_parse_length(const char *name, const char *value, cli_length *len)
     return rc;
 }
 
+/* Lists are items separated by single commas. An empty item ("variance,,ar1", a leading or
+ * trailing comma) is refused rather than skipped: it usually marks a name that a script's
+ * variable failed to fill in, and skipping it would run a different analysis silently. */
+int cli_list_check(const char *name, const char *v)
+{
+    size_t len = strlen(v);
+    if (len == 0 || v[0] == ',' || v[len - 1] == ',' || strstr(v, ",,")) {
+        cli_error("option %s: empty item in '%s' (a list is items separated by single commas)",
+                  name, v);
+        return EXIT_BAD_INPUT;
+    }
+    return EXIT_OK;
+}
+
 /* "A:B:STEP" (inclusive of B within rounding) or "A,B,C"; every entry a positive length,
  * all in % or all in time units. */
 int cli_parse_grid(const char *name, const char *v, cli_length *items, char (*texts)[32],
@@ -112,6 +133,8 @@ int cli_parse_grid(const char *name, const char *v, cli_length *items, char (*te
         }
         return EXIT_OK;
     }
+    if (cli_list_check(name, v) != EXIT_OK)
+        return EXIT_BAD_INPUT;
     for (char *save = NULL, *tok = strtok_r(buf, ",", &save); tok; tok = strtok_r(NULL, ",", &save)) {
         if (*count == CLI_MAX_GRID) {
             cli_error("option %s: more than %d values", name, CLI_MAX_GRID);

@@ -99,6 +99,8 @@ static int set_indicators(cli_options *o, const char *n, const char *v)
         cli_error("option %s: list too long", n);
         return EXIT_BAD_INPUT;
     }
+    if (cli_list_check(n, v) != EXIT_OK)
+        return EXIT_BAD_INPUT;
     strcpy(buf, v);
     o->nindicators = 0;
     o->drift_test = 0;
