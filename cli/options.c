@@ -497,14 +497,47 @@ static const option_spec *find_option(const char *arg, int bit, size_t *name_len
     return found;
 }
 
+enum { NOPTIONS = sizeof options / sizeof options[0] };
+
+/* Every option is taken once. When the last of two values silently won, a value set early
+ * in a script (or a wrapper's default) could override the user's own without a word, and
+ * a run's options no longer said what it did. Lists are one value (--vars a,b); -o and
+ * --output are one option, as are --progress and --no-progress. Returns the spelling
+ * that came first, or NULL when this is the first time; given[] is indexed by table row. */
+static const char *given_before(const char **given, const option_spec *spec)
+{
+    const char *name = spec->name;
+    if (strcmp(name, "-o") == 0)
+        name = "--output";
+    else if (strcmp(name, "--no-progress") == 0)
+        name = "--progress";
+    size_t slot = 0;
+    while (strcmp(options[slot].name, name) != 0) /* the first row of that name */
+        slot++;
+    const char *before = given[slot];
+    given[slot] = spec->name;
+    return before;
+}
+
 /* One option at argv[*i]; advances *i past its value. */
-static int parse_one(cli_options *o, int bit, int argc, char **argv, int *i)
+static int parse_one(cli_options *o, int bit, int argc, char **argv, int *i, const char **given)
 {
     const char *arg = argv[*i];
     size_t len = 0;
     const option_spec *spec = find_option(arg, bit, &len);
     if (!spec || !(spec->commands & bit)) {
         cli_error("%s: unknown option '%s' (see 'slowscan help %s')", o->command, arg, o->command);
+        return EXIT_BAD_INPUT;
+    }
+    const char *before = given_before(given, spec);
+    if (before && strcmp(before, spec->name) != 0) {
+        cli_error("options %s and %s set the same thing: give one of them once", before,
+                  spec->name);
+        return EXIT_BAD_INPUT;
+    }
+    if (before) {
+        cli_error("option %s is given twice: give it once%s", spec->name,
+                  spec->takes_value ? " (a list is one value: A,B,...)" : "");
         return EXIT_BAD_INPUT;
     }
     const char *value = NULL;
@@ -533,6 +566,7 @@ int cli_parse(const char *command, int argc, char **argv, int first, cli_options
     o->files = calloc((size_t)argc, sizeof *o->files);
     if (!o->files)
         return EXIT_INTERNAL;
+    const char *given[NOPTIONS] = {0};
     for (int i = first; i < argc; i++) {
         const char *arg = argv[i];
         if (strcmp(arg, "--help") == 0 || strcmp(arg, "-h") == 0) {
@@ -540,7 +574,7 @@ int cli_parse(const char *command, int argc, char **argv, int first, cli_options
             return -1;
         }
         if (arg[0] == '-' && arg[1] != '\0') {
-            int rc = parse_one(o, bit, argc, argv, &i);
+            int rc = parse_one(o, bit, argc, argv, &i, given);
             if (rc != EXIT_OK)
                 return rc;
         } else {
