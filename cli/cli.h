@@ -389,6 +389,9 @@ void cli_cursor_end(cli_cursor *c);
 int cli_too_wide(const char *path);
 /* 1 when the file starts like a NetCDF file (classic, 64-bit offset, CDF-5 or HDF5). */
 int cli_is_netcdf(const char *path);
+/* EXIT_BAD_INPUT, with the message (naming option when not NULL), for a readable file named
+ * *.nc that is not NetCDF (inputs.c). */
+int cli_check_netcdf_name(const char *path, const char *option);
 /* The NetCDF reading options of the command's. */
 netcdf_read_options cli_netcdf_options(const cli_options *o);
 /* Cut to --from/--until, the grid, logs; `first` says whether notices (gaps) are due. */
