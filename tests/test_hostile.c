@@ -4,10 +4,12 @@
  * every file's bytes before and after the run. Checks are of the command's own contract
  * (DESIGN.md section 4: exit 1, one message naming the culprit, no partial output): common
  * practice, no outside source. */
+#define _XOPEN_SOURCE 700 /* nftw */
 #include "check.h"
 #include "hostile_cases.h"
 
 #include <dirent.h>
+#include <ftw.h>
 #include <stdint.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -92,11 +94,16 @@ static void make_case_dir(char *root, size_t size, const char *list, size_t k)
     }
 }
 
+static int remove_entry(const char *path, const struct stat *st, int flag, struct FTW *ftw)
+{
+    (void)st, (void)flag, (void)ftw;
+    return remove(path);
+}
+
+/* In process rather than by rm -rf: every process started costs much under the sanitizers. */
 static void remove_case_dir(const char *root)
 {
-    char cmd[800];
-    snprintf(cmd, sizeof cmd, "rm -rf '%s'", root);
-    if (system(cmd) != 0)
+    if (nftw(root, remove_entry, 8, FTW_DEPTH | FTW_PHYS) != 0)
         fprintf(stderr, "hostile: could not remove %s\n", root);
 }
 
