@@ -19,6 +19,10 @@
     "2023-01-05,2.4\n2023-01-06,0.3\n2023-01-07,1.8\n2023-01-08,2.9\n2023-01-09,1.4\n"      \
     "2023-01-10,0.6\n2023-01-11,2.2\n2023-01-12,1.5\n"
 #define SCREEN "screen --surrogates 19 -o {out} "
+/* The head of a summary as screen writes it, and a row that is fine. */
+#define SUMMARY                                                                              \
+    "series,indicator,n,window,bandwidth,tau,statistic,p_value,q_value,null,surrogates,flag\n" \
+    "a,variance,40,20,3.9,0.41,0.41,0.2,0.6,phase,19,none\n"
 
 static FILE *open_or_die(const char *path, const char *mode)
 {
@@ -318,6 +322,12 @@ const hostile_refusal hostile_refusals[] = {
     {"time units from month 13", NULL, NULL, NULL,
      "detrend -o {out} --time-units 'days since 2000-13-01' {good}", "--time-units"},
     {"--threads 0", NULL, NULL, NULL, SCREEN "--threads 0 {good}", "--threads"},
+    {"merge: a p-value above 1", SUMMARY "a,lag1,40,20,3.9,-0.7,-0.7,1.5,0.95,phase,19,none\n",
+     NULL, NULL, "merge -o {out} {in}", "row 3, column 'p_value'"},
+    {"merge: a statistic that is text", SUMMARY "a,lag1,40,20,3.9,-0.7,abc,0.9,0.95,phase,19,none\n",
+     NULL, NULL, "merge -o {out} {in}", "row 3, column 'statistic'"},
+    {"merge: the same summary twice", SUMMARY, NULL, NULL, "merge -o {out} {in} {in}",
+     "the same summary is given twice"},
     {"feedback without the flux column", NULL, NULL, NULL,
      "feedback -o {out} --flux zz --response a {good}", "zz"},
 };
