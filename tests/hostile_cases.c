@@ -303,6 +303,8 @@ const hostile_refusal hostile_refusals[] = {
     {"--json in a missing directory", NULL, NULL, NULL, SCREEN "--json {dir}/no/x.json {good}",
      "no/x.json"},
     {"--figures is a file", NULL, NULL, NULL, SCREEN "--figures {good} {good}", "--figures"},
+    {"--json on the --figures directory", NULL, NULL, NULL,
+     SCREEN "--figures {dir}/figs --json {dir}/figs {good}", "also the --figures directory"},
     {"demo --out is a file", NULL, NULL, NULL, "demo --out {good}", "good.csv"},
     /* other commands on bad tables */
     {"merge of a binary file", NULL, make_garbage, NULL, "merge -o {out} {in}", "in.csv"},
