@@ -74,6 +74,30 @@ static const char grid_cdl[] =
     " tas = 1,2, 3,1, 2,5, 4,2, 6,3, 5,7, 8,4, 7,9, 9,5, 3,8, 1,2, 3,1, 2,5, 4,2, 6,3, 5,7, 8,4,"
     " 7,9, 9,5, 3,8 ;\n}\n";
 
+static void run_ncgen(const char *path, const char *kind, const char *text)
+{
+    char cdl[600], cmd[1400];
+    snprintf(cdl, sizeof cdl, "%s.cdl", path);
+    write_bytes(cdl, text, strlen(text));
+    snprintf(cmd, sizeof cmd, "ncgen -k %s -o '%s' '%s'", kind, path, cdl);
+    int rc = system(cmd);
+    remove(cdl);
+    if (rc != 0) {
+        fprintf(stderr, "hostile: ncgen -k %s failed\n", kind);
+        exit(2);
+    }
+}
+
+/* The grid with tas[time 1, lat 10] = Infinity (ncgen reads the CDL word). */
+static void make_nc_infinite(const char *path)
+{
+    static const char before[] = "tas = 1,2, ";
+    char text[sizeof grid_cdl + 16];
+    size_t head = (size_t)(strstr(grid_cdl, before) - grid_cdl) + strlen(before);
+    snprintf(text, sizeof text, "%.*sInfinity%s", (int)head, grid_cdl, grid_cdl + head + 1);
+    run_ncgen(path, "classic", text);
+}
+
 /* The grid in a format ("classic", "cdf5", "netcdf4"); ncgen runs once per format, later
  * calls copy its bytes (each process costs much under the sanitizers). */
 static void ncgen(const char *path, const char *kind)
@@ -90,13 +114,8 @@ static void ncgen(const char *path, const char *kind)
         write_bytes(path, made[k].bytes, made[k].len);
         return;
     }
-    char cdl[600], cmd[1400];
-    snprintf(cdl, sizeof cdl, "%s.cdl", path);
-    write_bytes(cdl, grid_cdl, sizeof grid_cdl - 1);
-    snprintf(cmd, sizeof cmd, "ncgen -k %s -o '%s' '%s'", kind, path, cdl);
-    int rc = system(cmd);
-    remove(cdl);
-    FILE *fp = rc == 0 ? fopen(path, "rb") : NULL;
+    run_ncgen(path, kind, grid_cdl);
+    FILE *fp = fopen(path, "rb");
     static char buf[1 << 16];
     size_t len = fp ? fread(buf, 1, sizeof buf, fp) : 0;
     if (fp)
@@ -282,6 +301,8 @@ const hostile_refusal hostile_refusals[] = {
     {"NetCDF with a corrupted record count", NULL, make_nc_numrecs, "in/in.nc",
      "detrend -o {out} {in}", "cut short"},
     {"NetCDF-4 cut short", NULL, make_nc4_cut, "in/in.nc", SCREEN "{in}", "in.nc"},
+    {"NetCDF with an infinite value", NULL, make_nc_infinite, "in/in.nc",
+     "indicators -o {out} {in}", "variable 'tas', cell tas[lat=10], time index 1"},
     {"--maps is a directory", NULL, NULL, NULL, SCREEN "--maps {dir} {nc}", "--maps"},
     {"--maps for a CSV input", NULL, NULL, NULL, SCREEN "--maps {dir}/m.nc {good}", "--maps"},
     /* resume journals */
