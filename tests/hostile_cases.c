@@ -53,6 +53,27 @@ static void make_garbage(const char *path)
     write_bytes(path, buf, sizeof buf);
 }
 
+/* The standard rows in UTF-16 (little-endian, with its byte-order mark). */
+static void make_utf16(const char *path)
+{
+    static const char text[] = TA;
+    char buf[2 * sizeof text + 2] = "\xFF\xFE";
+    for (size_t i = 0; i + 1 < sizeof text; i++)
+        buf[2 + 2 * i] = text[i], buf[3 + 2 * i] = '\0';
+    write_bytes(path, buf, 2 * (sizeof text - 1) + 2);
+}
+
+/* The first bytes of a gzip stream and of a zip archive (an .xlsx is one), then noise. */
+static void make_signed(const char *path, const char *magic, size_t len)
+{
+    make_garbage(path);
+    FILE *fp = open_or_die(path, "r+b");
+    fwrite(magic, 1, len, fp);
+    fclose(fp);
+}
+static void make_gzip(const char *path) { make_signed(path, "\x1F\x8B\x08\x00", 4); }
+static void make_zip(const char *path) { make_signed(path, "PK\x03\x04", 4); }
+
 static void make_nul_cell(const char *path)
 {
     static const char text[] = "t,a\n0,1\n1,2\n2,3\n3,1\0002\n4,2\n5,1\n6,3\n7,2\n8,1\n9,2\n";
@@ -175,6 +196,12 @@ const hostile_refusal hostile_refusals[] = {
     {"binary garbage", NULL, make_garbage, NULL, SCREEN "{in}", "in.csv: row 1"},
     {"binary garbage on standard input", NULL, make_garbage, NULL,
      "indicators -o {out} - < {in}", "row 1"},
+    {"UTF-16 text", NULL, make_utf16, NULL, SCREEN "{in}",
+     "in.csv: not a text table: the file is UTF-16"},
+    {"gzip-compressed table", NULL, make_gzip, NULL, "indicators -o {out} {in}", "gzip"},
+    {"a spreadsheet (zip)", NULL, make_zip, NULL, "detrend -o {out} {in}", "spreadsheet"},
+    {"NetCDF on standard input", NULL, NULL, NULL, SCREEN "- < {nc}",
+     "standard input: not a text table: the file is NetCDF"},
     {"NUL byte in a cell", NULL, make_nul_cell, NULL, SCREEN "{in}", "row 5, column 'a': a NUL"},
     {"NUL byte in the header", NULL, make_nul_header, NULL, "detrend -o {out} {in}",
      "row 1, field 2"},
