@@ -404,6 +404,9 @@ int cli_parse_positive(const char *name, const char *value, double *out);
 int cli_parse_length(const char *name, const char *value, cli_length *len);
 /* EXIT_BAD_INPUT, with the message, when the list v holds an empty item (option_values.c). */
 int cli_list_check(const char *name, const char *v);
+/* The setters of --indicators and --band (option_values.c). */
+int cli_set_indicators(cli_options *o, const char *n, const char *v);
+int cli_set_band(cli_options *o, const char *n, const char *v);
 int cli_parse_grid(const char *name, const char *v, cli_length *items, char (*texts)[32],
                    size_t *count);
 
