@@ -389,6 +389,9 @@ void cli_cursor_end(cli_cursor *c);
 int cli_too_wide(const char *path);
 /* 1 when the file starts like a NetCDF file (classic, 64-bit offset, CDF-5 or HDF5). */
 int cli_is_netcdf(const char *path);
+/* EXIT_BAD_INPUT, with the message (naming option when not NULL), for a readable file named
+ * *.nc that is not NetCDF (inputs.c). */
+int cli_check_netcdf_name(const char *path, const char *option);
 /* The NetCDF reading options of the command's. */
 netcdf_read_options cli_netcdf_options(const cli_options *o);
 /* Cut to --from/--until, the grid, logs; `first` says whether notices (gaps) are due. */
@@ -399,6 +402,11 @@ int cli_ready_table(const cli_options *opts, series_table *t, int first);
 int cli_parse_number(const char *name, const char *value, double *out);
 int cli_parse_positive(const char *name, const char *value, double *out);
 int cli_parse_length(const char *name, const char *value, cli_length *len);
+/* EXIT_BAD_INPUT, with the message, when the list v holds an empty item (option_values.c). */
+int cli_list_check(const char *name, const char *v);
+/* The setters of --indicators and --band (option_values.c). */
+int cli_set_indicators(cli_options *o, const char *n, const char *v);
+int cli_set_band(cli_options *o, const char *n, const char *v);
 int cli_parse_grid(const char *name, const char *v, cli_length *items, char (*texts)[32],
                    size_t *count);
 

@@ -62,11 +62,27 @@ static screen_flag flag_named(const char *name)
     return SCREEN_FLAG_UNTESTED;
 }
 
-static double number_of(const char *text)
+/* A number of a row: NA (as screen writes a missing one), or a finite number within
+ * [lo, hi]. Anything else — text, a p-value above 1 — used to be taken as NA, and the row
+ * left out of BH silently, or fed into it, changing every q of the run. */
+static double number_of(merge_reader *m, const merge_row *r, const char *name, double lo,
+                        double hi)
 {
+    const char *text = r->field[column(m, name)];
+    if (!text || strcmp(text, "NA") == 0)
+        return NAN;
     char *end;
     double v = strtod(text, &end);
-    return end != text && *end == '\0' ? v : NAN;
+    if (end == text || *end != '\0' || !isfinite(v) || v < lo || v > hi) {
+        char range[64] = "a finite number";
+        if (isfinite(lo))
+            snprintf(range, sizeof range, "a number from %g to %g", lo, hi);
+        cli_error("%s: row %zu, column '%s': \"%.40s\" is not NA or %s", m->path, m->line,
+                  name, text, range);
+        m->status = EXIT_BAD_INPUT;
+        return NAN;
+    }
+    return v;
 }
 
 /* A complete record: the header (first), or a row checked against it. */
@@ -108,8 +124,8 @@ static void on_row(int c, void *context)
     memset(r, 0, sizeof *r);
     memcpy(r->field, m->cell, n * sizeof *m->cell);
     memset(m->cell, 0, sizeof m->cell);
-    r->test.p_value = number_of(r->field[column(m, "p_value")]);
-    r->test.statistic = number_of(r->field[column(m, "statistic")]);
+    r->test.p_value = number_of(m, r, "p_value", 0, 1);
+    r->test.statistic = number_of(m, r, "statistic", -HUGE_VAL, HUGE_VAL);
     r->flag = flag_named(r->field[column(m, "flag")]);
     return;
 done:
@@ -245,7 +261,14 @@ int cmd_merge(const cli_options *opts)
     int rc = EXIT_OK;
     for (size_t f = 0; rc == EXIT_OK && f < opts->nfiles; f++) {
         parts[f].path = opts->files[f];
-        rc = read_part(&parts[f]);
+        /* a part given twice would count its tests twice in BH */
+        for (size_t g = 0; g < f && rc == EXIT_OK; g++)
+            if (slowscan_io_same_file(opts->files[f], opts->files[g])) {
+                cli_error("%s: the same summary is given twice", opts->files[f]);
+                rc = EXIT_BAD_INPUT;
+            }
+        if (rc == EXIT_OK)
+            rc = read_part(&parts[f]);
         if (rc == EXIT_OK && f > 0 && !same_columns(&parts[0], &parts[f])) {
             cli_error("%s: its columns are not those of %s: parts of one run are written by "
                       "the same command", parts[f].path, parts[0].path);

@@ -52,13 +52,11 @@ static int same_method(const detrend_spec *a, const detrend_spec *b)
 int cli_set_detrends(cli_options *o, const char *n, const char *v)
 {
     o->ndetrends = 0;
+    if (cli_list_check(n, v) != EXIT_OK)
+        return EXIT_BAD_INPUT;
     for (const char *item = v;;) {
         const char *comma = strchr(item, ',');
         size_t len = comma ? (size_t)(comma - item) : strlen(item);
-        if (len == 0) {
-            cli_error("option %s: empty item in '%s' (a comma-separated list of methods)", n, v);
-            return EXIT_BAD_INPUT;
-        }
         if (o->ndetrends == CLI_MAX_DETRENDS) {
             cli_error("option %s: more than %d methods", n, CLI_MAX_DETRENDS);
             return EXIT_BAD_INPUT;

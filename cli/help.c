@@ -26,6 +26,9 @@ static const char overview[] =
     "FILE is a CSV with a header row (comma, semicolon or tab; '#' lines are comments), or\n"
     "- for standard input. Its time column holds numbers or dates; monthly and yearly\n"
     "dated records are analysed on a month or year index, and outputs print dates.\n"
+    "Each option is given once: a second --window (or -o and --output, --progress and\n"
+    "--no-progress) is refused, never silently replaced. A list is one value, A,B,...,\n"
+    "with no empty item.\n"
     "'slowscan --version' prints the version.\n";
 
 static const char input_options[] =

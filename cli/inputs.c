@@ -9,6 +9,7 @@
 #include <stdlib.h>
 #include <string.h>
 #include <sys/stat.h>
+#include <unistd.h>
 
 /* Cells per table of a grid: what 8 MiB of values hold, between 1 and 4096. */
 static size_t cells_per_table(size_t n)
@@ -45,6 +46,21 @@ int cli_is_netcdf(const char *path)
                   (head[3] == 1 || head[3] == 2 || head[3] == 5);
     int hdf5 = got == 8 && memcmp(head, "\x89HDF\r\n\x1a\n", 8) == 0;
     return classic || hdf5;
+}
+
+/* A file named *.nc that is not NetCDF (an error page saved under the data's name, a first
+ * block overwritten) would be read as a CSV table and refused for its bytes, a message that
+ * hides what is wrong. Files that cannot be opened are left to the reader's own message. */
+int cli_check_netcdf_name(const char *path, const char *option)
+{
+    size_t n = path ? strlen(path) : 0;
+    if (n < 4 || strcmp(path + n - 3, ".nc") != 0 || access(path, R_OK) != 0 ||
+        cli_is_netcdf(path))
+        return EXIT_OK;
+    cli_error("%s%s%s%s: not a NetCDF file, though named .nc: it begins with neither the "
+              "classic signature (CDF) nor HDF5's", option ? "option " : "",
+              option ? option : "", option ? ": " : "", path);
+    return EXIT_BAD_INPUT;
 }
 
 netcdf_read_options cli_netcdf_options(const cli_options *o)

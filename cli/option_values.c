@@ -1,7 +1,8 @@
 /* Parsing option values that are numbers and lengths: finite and positive numbers, a length
  * (N%, a number of time units, or N with a calendar unit) and a list of lengths for
- * robustness grids. Every refusal is one message naming the option. */
+ * robustness grids, the --indicators list and the --band range. Every refusal is one message naming the option. */
 #include "cli.h"
+#include "slowscan/status.h"
 
 #include <math.h>
 #include <stdlib.h>
@@ -9,6 +10,13 @@
 
 int cli_parse_number(const char *name, const char *value, double *out)
 {
+    /* strtod would read C's hexadecimal forms (0x10 as 16); the data reader refuses them
+     * too (io/csv_input.c), so an option and a cell mean the same by the same text */
+    const char *digits = value + (*value == '+' || *value == '-');
+    if (digits[0] == '0' && (digits[1] == 'x' || digits[1] == 'X')) {
+        cli_error("option %s: '%s' is not a decimal number", name, value);
+        return EXIT_BAD_INPUT;
+    }
     char *end;
     double v = strtod(value, &end);
     if (end == value || *end != '\0' || !isfinite(v)) {
@@ -72,6 +80,20 @@ int cli_parse_length(const char *name, const char *value, cli_length *len)
     return rc;
 }
 
+/* Lists are items separated by single commas. An empty item ("variance,,ar1", a leading or
+ * trailing comma) is refused rather than skipped: it usually marks a name that a script's
+ * variable failed to fill in, and skipping it would run a different analysis silently. */
+int cli_list_check(const char *name, const char *v)
+{
+    size_t len = strlen(v);
+    if (len == 0 || v[0] == ',' || v[len - 1] == ',' || strstr(v, ",,")) {
+        cli_error("option %s: empty item in '%s' (a list is items separated by single commas)",
+                  name, v);
+        return EXIT_BAD_INPUT;
+    }
+    return EXIT_OK;
+}
+
 /* "A:B:STEP" (inclusive of B within rounding) or "A,B,C"; every entry a positive length,
  * all in % or all in time units. */
 int cli_parse_grid(const char *name, const char *v, cli_length *items, char (*texts)[32],
@@ -112,6 +134,8 @@ int cli_parse_grid(const char *name, const char *v, cli_length *items, char (*te
         }
         return EXIT_OK;
     }
+    if (cli_list_check(name, v) != EXIT_OK)
+        return EXIT_BAD_INPUT;
     for (char *save = NULL, *tok = strtok_r(buf, ",", &save); tok; tok = strtok_r(NULL, ",", &save)) {
         if (*count == CLI_MAX_GRID) {
             cli_error("option %s: more than %d values", name, CLI_MAX_GRID);
@@ -130,5 +154,74 @@ int cli_parse_grid(const char *name, const char *v, cli_length *items, char (*te
         cli_error("option %s: no value given", name);
         return EXIT_BAD_INPUT;
     }
+    return EXIT_OK;
+}
+
+/* --indicators LIST: rolling indicators by name, and recovery_trend (a test of the whole
+ * residual) in screen and robustness. */
+int cli_set_indicators(cli_options *o, const char *n, const char *v)
+{
+    char buf[512];
+    if (strlen(v) >= sizeof buf) {
+        cli_error("option %s: list too long", n);
+        return EXIT_BAD_INPUT;
+    }
+    if (cli_list_check(n, v) != EXIT_OK)
+        return EXIT_BAD_INPUT;
+    strcpy(buf, v);
+    o->nindicators = 0;
+    o->drift_test = 0;
+    o->indicators_text = v;
+    for (char *save = NULL, *tok = strtok_r(buf, ",", &save); tok; tok = strtok_r(NULL, ",", &save)) {
+        indicator_kind kind;
+        if (strcmp(tok, "recovery_trend") == 0) {
+            /* Not a rolling indicator but a test of the whole residual: screen and robustness. */
+            if (strcmp(o->command, "screen") != 0 && strcmp(o->command, "robustness") != 0) {
+                cli_error("option %s: recovery_trend is a test of screen and robustness, not a "
+                          "rolling indicator (the 'recovery' command gives its path)", n);
+                return EXIT_BAD_INPUT;
+            }
+            o->drift_test = 1;
+            continue;
+        }
+        if (slowscan_indicator_lookup(tok, &kind) != SLOWSCAN_OK) {
+            cli_error("option %s: unknown indicator '%s' (variance, sd, cv, skewness, kurtosis, "
+                      "lag1, ar1, recovery, redness, spectral_exponent, dfa; recovery_trend in "
+                      "screen and robustness)", n, tok);
+            return EXIT_BAD_INPUT;
+        }
+        for (size_t j = 0; j < o->nindicators; j++)
+            if (o->indicators[j] == kind) {
+                cli_error("option %s: indicator '%s' is listed twice", n, tok);
+                return EXIT_BAD_INPUT;
+            }
+        o->indicators[o->nindicators++] = kind;
+    }
+    if (o->nindicators == 0 && !o->drift_test) {
+        cli_error("option %s: no indicator given", n);
+        return EXIT_BAD_INPUT;
+    }
+    return EXIT_OK;
+}
+
+/* LO:HI in cycles per time unit, 0 < LO < HI; the Nyquist limit and the number of
+ * frequencies inside are checked per series, once the time step and window are known. */
+int cli_set_band(cli_options *o, const char *n, const char *v)
+{
+    char buf[128];
+    const char *colon = strchr(v, ':');
+    if (!colon || strlen(v) >= sizeof buf) {
+        cli_error("option %s: '%s' is not LO:HI (frequencies in cycles per time unit)", n, v);
+        return EXIT_BAD_INPUT;
+    }
+    memcpy(buf, v, (size_t)(colon - v));
+    buf[colon - v] = '\0';
+    if (cli_parse_number(n, buf, &o->band_lo) || cli_parse_number(n, colon + 1, &o->band_hi))
+        return EXIT_BAD_INPUT;
+    if (!(o->band_lo > 0 && o->band_lo < o->band_hi)) {
+        cli_error("option %s: %s must satisfy 0 < LO < HI", n, v);
+        return EXIT_BAD_INPUT;
+    }
+    o->band_text = v;
     return EXIT_OK;
 }

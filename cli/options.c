@@ -92,49 +92,6 @@ static int set_detrend(cli_options *o, const char *n, const char *v)
     return EXIT_OK;
 }
 
-static int set_indicators(cli_options *o, const char *n, const char *v)
-{
-    char buf[512];
-    if (strlen(v) >= sizeof buf) {
-        cli_error("option %s: list too long", n);
-        return EXIT_BAD_INPUT;
-    }
-    strcpy(buf, v);
-    o->nindicators = 0;
-    o->drift_test = 0;
-    o->indicators_text = v;
-    for (char *save = NULL, *tok = strtok_r(buf, ",", &save); tok; tok = strtok_r(NULL, ",", &save)) {
-        indicator_kind kind;
-        if (strcmp(tok, "recovery_trend") == 0) {
-            /* Not a rolling indicator but a test of the whole residual: screen and robustness. */
-            if (strcmp(o->command, "screen") != 0 && strcmp(o->command, "robustness") != 0) {
-                cli_error("option %s: recovery_trend is a test of screen and robustness, not a "
-                          "rolling indicator (the 'recovery' command gives its path)", n);
-                return EXIT_BAD_INPUT;
-            }
-            o->drift_test = 1;
-            continue;
-        }
-        if (slowscan_indicator_lookup(tok, &kind) != SLOWSCAN_OK) {
-            cli_error("option %s: unknown indicator '%s' (variance, sd, cv, skewness, kurtosis, "
-                      "lag1, ar1, recovery, redness, spectral_exponent, dfa; recovery_trend in "
-                      "screen and robustness)", n, tok);
-            return EXIT_BAD_INPUT;
-        }
-        for (size_t j = 0; j < o->nindicators; j++)
-            if (o->indicators[j] == kind) {
-                cli_error("option %s: indicator '%s' is listed twice", n, tok);
-                return EXIT_BAD_INPUT;
-            }
-        o->indicators[o->nindicators++] = kind;
-    }
-    if (o->nindicators == 0 && !o->drift_test) {
-        cli_error("option %s: no indicator given", n);
-        return EXIT_BAD_INPUT;
-    }
-    return EXIT_OK;
-}
-
 static int set_min_coverage(cli_options *o, const char *n, const char *v)
 {
     int rc = cli_parse_number(n, v, &o->min_coverage);
@@ -179,28 +136,6 @@ static int set_harmonics(cli_options *o, const char *n, const char *v) { return 
 static int set_step(cli_options *o, const char *n, const char *v)
 {
     return set_whole(n, v, 1, LONG_MAX, &o->step);
-}
-
-/* LO:HI in cycles per time unit, 0 < LO < HI; the Nyquist limit and the number of
- * frequencies inside are checked per series, once the time step and window are known. */
-static int set_band(cli_options *o, const char *n, const char *v)
-{
-    char buf[128];
-    const char *colon = strchr(v, ':');
-    if (!colon || strlen(v) >= sizeof buf) {
-        cli_error("option %s: '%s' is not LO:HI (frequencies in cycles per time unit)", n, v);
-        return EXIT_BAD_INPUT;
-    }
-    memcpy(buf, v, (size_t)(colon - v));
-    buf[colon - v] = '\0';
-    if (cli_parse_number(n, buf, &o->band_lo) || cli_parse_number(n, colon + 1, &o->band_hi))
-        return EXIT_BAD_INPUT;
-    if (!(o->band_lo > 0 && o->band_lo < o->band_hi)) {
-        cli_error("option %s: %s must satisfy 0 < LO < HI", n, v);
-        return EXIT_BAD_INPUT;
-    }
-    o->band_text = v;
-    return EXIT_OK;
 }
 
 /* Enough for p-values of 1e-6; more would only fill memory (8 bytes x indicators each). */
@@ -374,11 +309,11 @@ static const option_spec options[] = {
     {"--deseason-window", 1, C_SERIES, set_deseason_window},
     {"--harmonics", 1, C_SERIES, set_harmonics},
     {"--window", 1, C_ROLLING | C_FEEDBACK, set_window},
-    {"--indicators", 1, C_ROLLING, set_indicators},
+    {"--indicators", 1, C_ROLLING, cli_set_indicators},
     {"--min-coverage", 1, C_ROLLING, set_min_coverage},
     {"--recovery", 1, C_ROLLING, set_recovery},
     {"--step", 1, C_ROLLING, set_step},
-    {"--band", 1, C_ROLLING, set_band},
+    {"--band", 1, C_ROLLING, cli_set_band},
     {"--surrogates", 1, C_TESTING | C_SURROGATES, set_surrogates},
     {"--null", 1, C_TESTING | C_SURROGATES, set_null},
     {"--budget", 1, C_SCREEN, set_budget},
@@ -495,14 +430,47 @@ static const option_spec *find_option(const char *arg, int bit, size_t *name_len
     return found;
 }
 
+enum { NOPTIONS = sizeof options / sizeof options[0] };
+
+/* Every option is taken once. When the last of two values silently won, a value set early
+ * in a script (or a wrapper's default) could override the user's own without a word, and
+ * a run's options no longer said what it did. Lists are one value (--vars a,b); -o and
+ * --output are one option, as are --progress and --no-progress. Returns the spelling
+ * that came first, or NULL when this is the first time; given[] is indexed by table row. */
+static const char *given_before(const char **given, const option_spec *spec)
+{
+    const char *name = spec->name;
+    if (strcmp(name, "-o") == 0)
+        name = "--output";
+    else if (strcmp(name, "--no-progress") == 0)
+        name = "--progress";
+    size_t slot = 0;
+    while (strcmp(options[slot].name, name) != 0) /* the first row of that name */
+        slot++;
+    const char *before = given[slot];
+    given[slot] = spec->name;
+    return before;
+}
+
 /* One option at argv[*i]; advances *i past its value. */
-static int parse_one(cli_options *o, int bit, int argc, char **argv, int *i)
+static int parse_one(cli_options *o, int bit, int argc, char **argv, int *i, const char **given)
 {
     const char *arg = argv[*i];
     size_t len = 0;
     const option_spec *spec = find_option(arg, bit, &len);
     if (!spec || !(spec->commands & bit)) {
         cli_error("%s: unknown option '%s' (see 'slowscan help %s')", o->command, arg, o->command);
+        return EXIT_BAD_INPUT;
+    }
+    const char *before = given_before(given, spec);
+    if (before && strcmp(before, spec->name) != 0) {
+        cli_error("options %s and %s set the same thing: give one of them once", before,
+                  spec->name);
+        return EXIT_BAD_INPUT;
+    }
+    if (before) {
+        cli_error("option %s is given twice: give it once%s", spec->name,
+                  spec->takes_value ? " (a list is one value: A,B,...)" : "");
         return EXIT_BAD_INPUT;
     }
     const char *value = NULL;
@@ -531,6 +499,7 @@ int cli_parse(const char *command, int argc, char **argv, int first, cli_options
     o->files = calloc((size_t)argc, sizeof *o->files);
     if (!o->files)
         return EXIT_INTERNAL;
+    const char *given[NOPTIONS] = {0};
     for (int i = first; i < argc; i++) {
         const char *arg = argv[i];
         if (strcmp(arg, "--help") == 0 || strcmp(arg, "-h") == 0) {
@@ -538,7 +507,7 @@ int cli_parse(const char *command, int argc, char **argv, int first, cli_options
             return -1;
         }
         if (arg[0] == '-' && arg[1] != '\0') {
-            int rc = parse_one(o, bit, argc, argv, &i);
+            int rc = parse_one(o, bit, argc, argv, &i, given);
             if (rc != EXIT_OK)
                 return rc;
         } else {

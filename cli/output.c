@@ -30,6 +30,13 @@ int cli_output_clashes(const cli_outputs *outs, const cli_options *opts, const c
             return 1;
         }
     }
+    /* The figures directory is made only when the outputs are committed: a file of the same
+     * name was refused only then, after the figures had been put in place. */
+    const char *dir = opts->figures_dir;
+    if (dir && (strcmp(path, dir) == 0 || slowscan_io_same_file(path, dir))) {
+        cli_error("option %s: output %s is also the --figures directory", option, path);
+        return 1;
+    }
     for (size_t j = 0; j < outs->count; j++) {
         const char *other = outs->files[j].path;
         if (other && (strcmp(other, path) == 0 || slowscan_io_same_file(other, path))) {

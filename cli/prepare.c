@@ -58,7 +58,8 @@ int cli_load_whole_table(const cli_options *opts, const char *path, const char *
         }
     csv_read_options ro;
     time_units units;
-    if (cli_read_options(opts, &units, &ro) != EXIT_OK)
+    if (cli_check_netcdf_name(path, option) != EXIT_OK ||
+        cli_read_options(opts, &units, &ro) != EXIT_OK)
         return EXIT_BAD_INPUT;
     io_error err = {{0}};
     int st = slowscan_csv_read_table(path, &ro, table, &err);
@@ -138,6 +139,8 @@ int cli_inputs_load(const cli_options *opts, cli_inputs *in)
                 return EXIT_BAD_INPUT;
             }
         in->ntables = f + 1;
+        if (cli_check_netcdf_name(opts->files[f], NULL) != EXIT_OK)
+            return EXIT_BAD_INPUT;
         if (cli_is_netcdf(opts->files[f])) {
             rc = check_grid(opts, f, &in->grid_cells[f]);
             continue;

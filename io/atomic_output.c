@@ -37,18 +37,16 @@ static void set_mode(int fd, const char *path)
 char *slowscan_atomic_temp_beside(const char *path)
 {
     size_t len = strlen(path) + sizeof ".tmp.XXXXXX";
-    char *temp = malloc(len);
-    if (!temp)
+    char *template = malloc(len), *temp = NULL;
+    if (!template)
         return NULL;
-    snprintf(temp, len, "%s.tmp.XXXXXX", path);
-    int fd = mkstemp(temp);
-    if (fd < 0) {
-        free(temp);
+    snprintf(template, len, "%s.tmp.XXXXXX", path);
+    int fd = io_temp_make(template, &temp);
+    free(template);
+    if (fd < 0)
         return NULL;
-    }
     set_mode(fd, path);
     close(fd);
-    io_temp_register(temp);
     return temp;
 }
 
@@ -84,22 +82,20 @@ int slowscan_atomic_open(atomic_file *f, const char *path, io_error *err)
     }
     size_t len = strlen(path);
     f->path = io_strdup(path);
-    f->temp_path = malloc(len + sizeof ".tmp.XXXXXX");
-    if (!f->path || !f->temp_path) {
+    char *template = malloc(len + sizeof ".tmp.XXXXXX");
+    if (!f->path || !template) {
+        free(template);
         slowscan_atomic_abort(f);
         return io_fail(err, SLOWSCAN_ENOMEM, "cannot write %s: out of memory", path);
     }
-    snprintf(f->temp_path, len + sizeof ".tmp.XXXXXX", "%s.tmp.XXXXXX", path);
-    int fd = mkstemp(f->temp_path);
-    if (fd < 0) {
-        int e = errno;
-        free(f->temp_path); /* nothing was created: there is nothing to remove */
-        f->temp_path = NULL;
+    snprintf(template, len + sizeof ".tmp.XXXXXX", "%s.tmp.XXXXXX", path);
+    int fd = io_temp_make(template, &f->temp_path), e = errno;
+    free(template);
+    if (fd < 0) { /* nothing was created: there is nothing to remove */
         slowscan_atomic_abort(f);
         return io_fail(err, SLOWSCAN_EIO, "cannot write %s: %s", path, io_strerror(e, why, sizeof why));
     }
     set_mode(fd, path);
-    io_temp_register(f->temp_path);
     if (!(f->fp = fdopen(fd, "w"))) {
         int e = errno;
         close(fd);

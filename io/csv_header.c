@@ -26,8 +26,42 @@ static int by_name(const void *key, const void *elem)
     return strcmp(((const name_ref *)key)->name, ((const name_ref *)elem)->name);
 }
 
+/* Whether s[len] is well-formed UTF-8 (RFC 3629: no overlong forms, no surrogates, nothing
+ * above U+10FFFF). */
+static int is_utf8(const unsigned char *s, size_t len)
+{
+    for (size_t i = 0; i < len;) {
+        unsigned c = s[i];
+        if (c < 0x80) {
+            i++;
+            continue;
+        }
+        size_t more = c >= 0xC2 && c <= 0xDF ? 1 : c >= 0xE0 && c <= 0xEF ? 2
+                    : c >= 0xF0 && c <= 0xF4 ? 3 : 0;
+        if (more == 0 || i + more >= len)
+            return 0;
+        unsigned lo = 0x80, hi = 0xBF; /* the second byte's range excludes the bad forms */
+        if (c == 0xE0) lo = 0xA0;
+        if (c == 0xED) hi = 0x9F;
+        if (c == 0xF0) lo = 0x90;
+        if (c == 0xF4) hi = 0x8F;
+        for (size_t k = 1; k <= more; k++, lo = 0x80, hi = 0xBF)
+            if (s[i + k] < lo || s[i + k] > hi)
+                return 0;
+        i += more + 1;
+    }
+    return 1;
+}
+
 void csv_header_field(csv_reader *r, char *s, size_t len)
 {
+    /* Names end up in every output and message; bytes that are not UTF-8 (a Latin-1 '°', or
+     * a binary file read as a table) would be copied into them undecodable. */
+    if (!is_utf8((const unsigned char *)s, len)) {
+        csv_failf(r, SLOWSCAN_EINVAL, "row %zu: the name in column %zu of the header is not "
+                  "UTF-8 text (save the file as UTF-8)", r->line, r->ncols + 1);
+        return;
+    }
     if (r->ncols == MAX_COLUMNS) {
         csv_failf(r, SLOWSCAN_EINVAL, "row %zu: the header has more than %d columns", r->line,
                   MAX_COLUMNS);

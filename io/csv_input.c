@@ -47,6 +47,11 @@ int csv_cell_number(const char *s, double *v)
         *v = NAN;
         return 0;
     }
+    /* strtod also reads C's hexadecimal forms (0x10 as 16, 0x1p3 as 8); in a data file
+     * "0x10" is far more likely a code or a typo than sixteen, so it is not a number. */
+    const char *digits = s + (*s == '+' || *s == '-');
+    if (digits[0] == '0' && (digits[1] == 'x' || digits[1] == 'X'))
+        return 1;
     char *end;
     errno = 0;
     *v = strtod(s, &end);
@@ -118,6 +123,17 @@ static void on_field(void *data, size_t len, void *context)
     /* Line feeds inside quoted fields move the file row on without ending the record. */
     for (const char *p = s; (p = memchr(p, '\n', len - (size_t)(p - s))) != NULL; p++)
         r->record_nl++;
+    /* A NUL byte would end the cell for every C string function after this one: "1<NUL>2"
+     * would be read as 1. Text files do not hold NUL bytes; binary ones (a NetCDF or
+     * spreadsheet file given as CSV) do. */
+    if (memchr(s, '\0', len)) {
+        if (r->in_header || r->field >= r->ncols)
+            csv_failf(r, SLOWSCAN_EINVAL, "row %zu, field %zu: a NUL byte (is this a binary "
+                      "file rather than a text table?)", r->line, r->field + 1);
+        else
+            csv_failf(r, SLOWSCAN_EINVAL, "row %zu, column '%s': a NUL byte (is this a binary "
+                      "file rather than a text table?)", r->line, r->header[r->field]);
+    }
     if (r->status == SLOWSCAN_OK) {
         if (r->in_header)
             csv_header_field(r, s, len);
@@ -275,6 +291,30 @@ static int detect_delimiter(detector *d, const char *buf, size_t len, int at_end
     return 1;
 }
 
+/* What a file that is not a text table starts with, when it says so by its first bytes: a
+ * named refusal instead of one about a NUL byte or a garbled header. */
+static const char *foreign_format(const unsigned char *b, size_t len)
+{
+    static const struct {
+        const char *magic;
+        size_t len;
+        const char *what;
+    } formats[] = {
+        {"\xFF\xFE", 2, "UTF-16 text (save it as UTF-8)"},
+        {"\xFE\xFF", 2, "UTF-16 text (save it as UTF-8)"},
+        {"\x1F\x8B", 2, "gzip-compressed (decompress it first)"},
+        {"PK\x03\x04", 4, "a zip archive or a spreadsheet (export the sheet as CSV)"},
+        {"CDF\x01", 4, "NetCDF (give its path, not standard input)"},
+        {"CDF\x02", 4, "NetCDF (give its path, not standard input)"},
+        {"CDF\x05", 4, "NetCDF (give its path, not standard input)"},
+        {"\x89HDF\r\n\x1a\n", 8, "HDF5 or NetCDF-4 (give its path, not standard input)"},
+    };
+    for (size_t k = 0; k < sizeof formats / sizeof formats[0]; k++)
+        if (len >= formats[k].len && !memcmp(b, formats[k].magic, formats[k].len))
+            return formats[k].what;
+    return NULL;
+}
+
 /* Reads chunks until the header line is in *buf, so the delimiter is known before libcsv
  * sees a byte. *skip is 3 when the input starts with a UTF-8 byte-order mark. */
 static int read_head(csv_reader *r, FILE *fp, char **buf, size_t *len, size_t *skip,
@@ -298,6 +338,9 @@ static int read_head(csv_reader *r, FILE *fp, char **buf, size_t *len, size_t *s
         }
         if (*len == 0 && got >= 3 && !memcmp(*buf, "\xEF\xBB\xBF", 3))
             d.pos = *skip = 3;
+        const char *foreign = *len == 0 ? foreign_format((unsigned char *)*buf, got) : NULL;
+        if (foreign)
+            return csv_failf(r, SLOWSCAN_EINVAL, "not a text table: the file is %s", foreign);
         *len += got;
         if (detect_delimiter(&d, *buf, *len, got == 0, delim))
             return SLOWSCAN_OK;

@@ -22,6 +22,10 @@ double io_median_step(const double *time, size_t n);
 /* Records a temporary output file just made, so a signal's handler can remove it
  * (temporaries.c); slowscan_atomic_temp_done forgets it once it is renamed or removed. */
 void io_temp_register(const char *path);
+/* mkstemp(template) registered from before the file exists (a signal between mkstemp and
+ * io_temp_register left the file behind): the file descriptor and *name, the file's name
+ * (malloc'd), or -1 with errno set and *name NULL. */
+int io_temp_make(const char *template, char **name);
 /* A scratch file with no name, in dir (NULL: $TMPDIR, else /tmp), opened "w+b": unlinked as
  * soon as it is made, so no run — failed, killed or crashed — leaves it behind. `stem` names
  * it while it is being made. SLOWSCAN_EIO naming the folder, or SLOWSCAN_ENOMEM. */

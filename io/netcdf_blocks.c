@@ -25,7 +25,9 @@ void netcdf_unpack(const netcdf_packing *p, double *x, size_t n)
 {
     for (size_t i = 0; i < n; i++) {
         double raw = x[i];
-        int missing = !isfinite(raw) || (p->has_fill && raw == p->fill) ||
+        /* NaN is the usual fill of float files; an infinity is left as it is, for
+         * slowscan_netcdf_next to refuse (a model's blow-up is not a gap) */
+        int missing = isnan(raw) || (p->has_fill && raw == p->fill) ||
                       raw < p->valid_min || raw > p->valid_max;
         for (size_t m = 0; m < p->nmissing && !missing; m++)
             missing = raw == p->missing[m];
@@ -293,8 +295,13 @@ int slowscan_netcdf_next(netcdf_reader *r, netcdf_series *s, io_error *err)
     s->n = r->nt;
     s->values = r->block + (r->cell_at - r->block_first) * r->nt;
     s->all_missing = 1;
-    for (size_t t = 0; t < r->nt && s->all_missing; t++)
-        s->all_missing = isnan(s->values[t]);
+    for (size_t t = 0; t < r->nt; t++) {
+        if (isinf(s->values[t]))
+            return netcdf_fail(r, err, SLOWSCAN_EINVAL, "variable '%s', cell %s, time index "
+                               "%zu: the value is infinite (declare it a _FillValue or "
+                               "missing_value if it marks missing data)", v->name, s->name, t);
+        s->all_missing = s->all_missing && isnan(s->values[t]);
+    }
     if (++r->cell_at == v->ncells) {
         r->var_at++;
         r->cell_at = 0;

@@ -74,6 +74,9 @@ int netcdf_library_fail(const netcdf_reader *r, io_error *err, int nc_status, co
 int netcdf_coordinate_variable(int ncid, int dimid, int *varid);
 /* A text attribute into buf (empty when absent, not text or too long) (netcdf_open.c). */
 void netcdf_text_attribute(int ncid, int varid, const char *name, char *buf, size_t size);
+/* SLOWSCAN_EINVAL when a classic-format file is shorter than its header says
+ * (netcdf_extent.c): netcdf-c would read the missing part as zeros. */
+int netcdf_check_extent(const netcdf_reader *r, const char *path, io_error *err);
 /* --select applied to every variable's dimensions; the cell counts (netcdf_select.c). */
 int netcdf_apply_selection(netcdf_reader *r, io_error *err);
 /* Closes and removes the transposed copy, if any (netcdf_blocks.c). */

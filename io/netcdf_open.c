@@ -310,6 +310,8 @@ static int open_file(netcdf_reader *r, const char *path, io_error *err)
         return netcdf_fail(r, err, SLOWSCAN_EIO, "cannot read it as NetCDF: %s",
                            nc_strerror(st));
     }
+    if ((st = netcdf_check_extent(r, path, err)) != SLOWSCAN_OK)
+        return st;
     int nvars;
     nc_inq_nvars(r->ncid, &nvars);
     if (!(r->vars = calloc(nvars ? (size_t)nvars : 1, sizeof *r->vars)))

@@ -51,11 +51,10 @@ static temp_slot *free_slot(void)
     }
 }
 
-void io_temp_register(const char *path)
+/* Puts `copy` (malloc'd; the registry owns it from now on) in a slot and sets it live;
+ * 0, or -1 when no slot could be had (copy then freed). */
+static int publish(char *copy)
 {
-    char *copy = io_strdup(path);
-    if (!copy)
-        return; /* the file is still removed on every path but a signal's */
     pthread_mutex_lock(&registry_lock);
     temp_slot *s = free_slot();
     if (s) {
@@ -67,6 +66,41 @@ void io_temp_register(const char *path)
         free(copy);
     }
     pthread_mutex_unlock(&registry_lock);
+    return s ? 0 : -1;
+}
+
+void io_temp_register(const char *path)
+{
+    char *copy = io_strdup(path);
+    if (copy) /* else the file is still removed on every path but a signal's */
+        publish(copy);
+}
+
+int io_temp_make(const char *template, char **name)
+{
+    *name = NULL;
+    char *copy = io_strdup(template), *slot_name = copy;
+    if (!copy || !(*name = io_strdup(template))) {
+        free(copy);
+        errno = ENOMEM;
+        return -1;
+    }
+    /* mkstemp writes each name it tries into the slot's own string, in place: a signal from
+     * now on finds the file by its name. A name it rejects (someone's file of that name)
+     * would be removed only by a signal in that instant; 62^6 names make that remote. */
+    if (publish(copy) != 0)
+        slot_name = *name; /* no slot: made unregistered, as before */
+    int fd = mkstemp(slot_name), e = errno;
+    if (slot_name != *name)
+        memcpy(*name, slot_name, strlen(slot_name));
+    if (fd < 0) {
+        if (slot_name != *name)
+            slowscan_atomic_temp_done(slot_name);
+        free(*name);
+        *name = NULL;
+        errno = e;
+    }
+    return fd;
 }
 
 void slowscan_atomic_temp_done(const char *path)
