@@ -349,6 +349,7 @@ void cli_write_rolling(FILE *fp, const cli_options *opts, const prepared_series 
         /* Only the windows evaluated on the indicator's step have a row; an evaluated window
          * whose value is undefined is NA, as at step 1. */
         size_t step = slowscan_rolling_step(&spec, opts->indicators[j], ps->n);
+        int power = slowscan_indicator_scale_power(opts->indicators[j]);
         for (size_t i = ps->window - 1; i < ps->n; i++) {
             if (!rolling_evaluated(step, ps->n, i))
                 continue;
@@ -356,7 +357,8 @@ void cli_write_rolling(FILE *fp, const cli_options *opts, const prepared_series 
             fputc(',', fp);
             cli_put_time(fp, &ps->axis, ps->time[i]);
             fprintf(fp, ",%s,", name);
-            cli_put_number(fp, values[j][i]);
+            /* the series' own units (a 1e300 series' variance is beyond doubles: NA) */
+            cli_put_number(fp, slowscan_screen_unscale(ps, values[j][i], power));
             fputc('\n', fp);
         }
     }

@@ -93,6 +93,33 @@ static void count_finite(screen_prepared *ps)
     ps->constant = ps->finite > 0 && lo == hi ? SCREEN_CONSTANT : SCREEN_VARIES;
 }
 
+/* Magnitudes beyond 2^+-100 are brought near 1 by a power of two before anything is
+ * computed: the rolling sums hold squares and fourth powers (kurtosis), the drift fit and
+ * the null models sums of squares, and at 1e300 those overflow to Inf (at 1e-300 they
+ * underflow to 0), which turned a perfectly good series into "no variation" or NaN. A power
+ * of two is exact in binary floating point, so every tau and p is what it would be for the
+ * same series near 1 (scale invariance), and series within the bounds (every ordinary
+ * record) are not touched at all. */
+#define SCALE_BOUND_EXP 100
+
+static void scale_series(screen_prepared *ps)
+{
+    double top = 0.0;
+    for (size_t i = 0; i < ps->n; i++)
+        if (isfinite(ps->value[i]))
+            top = fmax(top, fabs(ps->value[i]));
+    if (top == 0.0 || (top >= ldexp(1.0, -SCALE_BOUND_EXP) && top <= ldexp(1.0, SCALE_BOUND_EXP)))
+        return;
+    frexp(top, &ps->scale_exp); /* top = m 2^e, m in [0.5, 1) */
+    for (size_t i = 0; i < ps->n; i++)
+        ps->value[i] = ldexp(ps->value[i], -ps->scale_exp);
+}
+
+double slowscan_screen_unscale(const screen_prepared *ps, double v, int power)
+{
+    return ldexp(v, power * ps->scale_exp);
+}
+
 /* A residual at round-off level (a straight line under --detrend linear, say) carries no
  * information: its lag-1 autocorrelation would be computed from rounding noise. Treat it as
  * constant rather than report numbers made of round-off. */
@@ -122,6 +149,9 @@ static void test_leakage(const screen_config *cfg, screen_prepared *ps)
         return; /* too short to say anything, or the edges would overlap */
     ps->leakage_tested = slowscan_detrend_leakage_test(ps->residual, ps->n, (size_t)edge, LEAKAGE_LEVEL,
                                               &ps->leakage) == SLOWSCAN_OK;
+    /* the edge means in the input's units, as messages and the JSON print them */
+    ps->leakage.first.mean = slowscan_screen_unscale(ps, ps->leakage.first.mean, 1);
+    ps->leakage.last.mean = slowscan_screen_unscale(ps, ps->leakage.last.mean, 1);
 }
 
 static int same_detrend(const screen_workspace *ws, const detrend_spec *spec, double dt,
@@ -215,6 +245,7 @@ int slowscan_screen_prepare_with(screen_workspace *ws, const screen_config *give
     ps->null_count = in->null_count;
     memcpy(ps->value, in->values, in->n * sizeof(double));
     count_finite(ps);
+    scale_series(ps);
     if (!isnan(cfg->deseason) && (st = deseason_series(cfg, ps, d)) != SLOWSCAN_OK)
         return st;
     if (ps->finite < 2 || ps->constant) {
