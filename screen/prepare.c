@@ -1,6 +1,7 @@
 /* A series made ready for its indicators: the window rule, deseasoning, detrending, the
  * round-off check and the trend-leakage test. Refusals fill a screen_detail; nothing prints. */
 #include "screen_internal.h"
+#include "../library/magnitude.h"
 #include "slowscan/status.h"
 
 #include <math.h>
@@ -94,25 +95,13 @@ static void count_finite(screen_prepared *ps)
 }
 
 /* Magnitudes beyond 2^+-100 are brought near 1 by a power of two before anything is
- * computed: the rolling sums hold squares and fourth powers (kurtosis), the drift fit and
- * the null models sums of squares, and at 1e300 those overflow to Inf (at 1e-300 they
- * underflow to 0), which turned a perfectly good series into "no variation" or NaN. A power
- * of two is exact in binary floating point, so every tau and p is what it would be for the
- * same series near 1 (scale invariance), and series within the bounds (every ordinary
- * record) are not touched at all. */
-#define SCALE_BOUND_EXP 100
-
+ * computed (library/magnitude.h): at 1e300 the rolling sums of squares overflowed to Inf
+ * and a good series came out as "no variation"; at 1e-300 they underflowed. Taus and
+ * p-values are those of the same series near 1; outputs are unscaled by the caller. */
 static void scale_series(screen_prepared *ps)
 {
-    double top = 0.0;
-    for (size_t i = 0; i < ps->n; i++)
-        if (isfinite(ps->value[i]))
-            top = fmax(top, fabs(ps->value[i]));
-    if (top == 0.0 || (top >= ldexp(1.0, -SCALE_BOUND_EXP) && top <= ldexp(1.0, SCALE_BOUND_EXP)))
-        return;
-    frexp(top, &ps->scale_exp); /* top = m 2^e, m in [0.5, 1) */
-    for (size_t i = 0; i < ps->n; i++)
-        ps->value[i] = ldexp(ps->value[i], -ps->scale_exp);
+    ps->scale_exp = magnitude_exponent(ps->value, ps->n);
+    magnitude_scale(ps->value, ps->n, ps->scale_exp);
 }
 
 double slowscan_screen_unscale(const screen_prepared *ps, double v, int power)

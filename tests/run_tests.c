@@ -49,6 +49,7 @@ void suite_timescales(void);
 void suite_emulate(void);
 void suite_forced(void);
 void suite_tail(void);
+void suite_edges(void);
 
 static const struct {
     const char *name;
@@ -76,6 +77,7 @@ static const struct {
     {"mpi", suite_mpi},           {"sequential", suite_sequential},
     {"ensemble", suite_ensemble},
     {"feedback", suite_feedback},     {"feedback_rates", suite_feedback_rates},
+    {"edges", suite_edges},
 };
 
 int main(int argc, char **argv)
