@@ -314,6 +314,8 @@ int cli_run_series_command(const cli_options *opts, const series_command *cmd)
     const cli_share *share = cli_share_get();
     int writer = !share || share->rank == 0;
     int rc = cli_inputs_load(opts, &in);
+    if (rc == EXIT_OK)
+        rc = cli_memory_guard(opts, &in); /* a run that cannot fit is refused before it starts */
     if (rc == EXIT_OK && cmd->open && writer)
         rc = cmd->open(opts, &outs, cmd->context);
     if (share) /* no process starts work another cannot do */

@@ -28,8 +28,8 @@ command -v valgrind >/dev/null 2>&1 || { echo "memcheck: valgrind is not install
 
 LOGS=$(mktemp -d "${TMPDIR:-/tmp}/slowscan-memcheck.XXXXXX")
 WRAP="$LOGS/slowscan"
-# A copy of the binary: a rebuild during the long run must not change what is checked.
-cp "$B/slowscan" "$LOGS/slowscan.bin" || exit 1
+# Copies of the binaries: a rebuild during the long run must not change what is checked.
+cp "$B/slowscan" "$LOGS/slowscan.bin" && cp "$B/run_tests" "$LOGS/run_tests" || exit 1
 # --track-origins says where an uninitialised value came from, at twice the time: asked
 # for with MEMCHECK_ORIGINS=1 when an error needs explaining.
 ORIGINS=
@@ -48,7 +48,7 @@ start=$(date +%s)
 status=0
 for s in $SUITES; do
     t0=$(date +%s)
-    SLOWSCAN_BIN="$WRAP" SLOWSCAN_LABEL="memcheck $s" "$B/run_tests" "$s" || status=1
+    SLOWSCAN_BIN="$WRAP" SLOWSCAN_LABEL="memcheck $s" "$LOGS/run_tests" "$s" || status=1
     echo "memcheck: suite $s took $(( $(date +%s) - t0 )) s"
 done
 

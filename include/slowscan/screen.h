@@ -351,6 +351,17 @@ SLOWSCAN_API
 int slowscan_screen_window(const screen_config *cfg, size_t n, double span, size_t *window,
                   screen_detail *detail);
 
+/* Bytes a screening run holds at once for series of at most n samples, `workers` series at a
+ * time (each with cfg->threads surrogate threads): its workspaces and the surrogate
+ * statistics of cfg->surrogates per test, and with keep_series (the batch driver's sink
+ * keeps each series: screen_batch.h) the reorder buffer's copies; screen/memory.c says what
+ * is counted and how it compares with a measured peak. Not the inputs, which the caller
+ * holds. An estimate from above, for refusing a run that cannot fit before it starts;
+ * SIZE_MAX when the count passes the address range. */
+SLOWSCAN_API
+size_t slowscan_screen_memory_estimate(const screen_config *cfg, size_t n, size_t workers,
+                                       int keep_series);
+
 /* The rolling spec (window, coverage, dt, step, band; no plan) of a prepared series, as
  * slowscan_screen_indicators uses it: with slowscan_rolling_step it says which windows carry a value. */
 SLOWSCAN_API
