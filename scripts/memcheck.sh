@@ -22,7 +22,7 @@ set -u
 B=${1:-build}
 ROOT=$(cd "$(dirname "$0")/.." && pwd)
 SUITES=${MEMCHECK_SUITES:-"cli dated_cli merge resume maps store messages netcdf robustness
-projection leakage golden feedback forced timescales emulate ensemble sequential edges"}
+projection leakage golden feedback forced timescales emulate ensemble sequential edges limits"}
 command -v valgrind >/dev/null 2>&1 || { echo "memcheck: valgrind is not installed" >&2; exit 1; }
 [ -x "$B/slowscan" ] && [ -x "$B/run_tests" ] || { echo "memcheck: build $B/slowscan and $B/run_tests first" >&2; exit 1; }
 
