@@ -4,6 +4,7 @@
 #include "../library/magnitude.h"
 #include "slowscan/status.h"
 
+#include <float.h>
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
@@ -106,7 +107,12 @@ static void scale_series(screen_prepared *ps)
 
 double slowscan_screen_unscale(const screen_prepared *ps, double v, int power)
 {
-    return ldexp(v, power * ps->scale_exp);
+    double u = ldexp(v, power * ps->scale_exp);
+    /* beyond the double range either way (the variance of a 1e300 series is 1e600, of a
+     * 1e-300 one 1e-600): no number rather than Inf or a 0 that is not one */
+    if (isfinite(v) && v != 0 && (isinf(u) || fabs(u) < DBL_MIN))
+        return NAN;
+    return u;
 }
 
 /* A residual at round-off level (a straight line under --detrend linear, say) carries no

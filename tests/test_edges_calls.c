@@ -245,7 +245,7 @@ static void summary_clean(const char *summary, const char *err, const char *what
         char name[64], cell[64], flag[32];
         csv_field(line + 1, 0, name, sizeof name);
         csv_field(line + 1, 11, flag, sizeof flag);
-        for (size_t k = 5; k <= 8; k++) {
+        for (size_t k = 2; k <= 8; k++) { /* n, window, bandwidth, tau, statistic, p, q */
             csv_field(line + 1, k, cell, sizeof cell);
             char *end;
             double v = strtod(cell, &end);
@@ -304,10 +304,18 @@ void edges_cli(void)
           rows[0], rows[1], rows[2]);
     for (size_t k = 0; k < 3; k++)
         free(rows[k]);
-    /* the detrend and indicators commands of the 1e-290 column: values in its own units */
-    snprintf(cmd, sizeof cmd, "%s detrend %s", check_binary(), check_tmp_path("edges-scaled.csv"));
+    /* the detrend and indicators commands of the 1e-290 column: values in its own units, a
+     * variance below the double range NA (1e-580), lag1 a number */
+    const char *scaled = check_tmp_path("edges-scaled.csv");
+    snprintf(cmd, sizeof cmd, "%s detrend %s", check_binary(), scaled);
     CHECK(check_run(cmd, &out, NULL) == 0 && out && !spelt_nonfinite(out) && strstr(out, "e-29"),
           "detrend of a 1e-290 series in its units");
+    free(out);
+    snprintf(cmd, sizeof cmd, "%s indicators --indicators variance,sd,lag1 %s", check_binary(), scaled);
+    CHECK(check_run(cmd, &out, NULL) == 0 && out && !spelt_nonfinite(out) &&
+              strstr(out, ",variance,NA\n") && !strstr(out, ",variance,0\n") &&
+              strstr(out, ",sd,1.") && strstr(out, "e-290\n") && !strstr(out, ",lag1,NA\n"),
+          "indicators of a 1e-290 series: variance NA (1e-580), sd in its units, lag1 numbers");
     free(out);
     free(cols);
 }

@@ -319,8 +319,8 @@ int slowscan_screen_prepare_with(screen_workspace *ws, const screen_config *cfg,
 SLOWSCAN_API
 void slowscan_screen_prepared_free(screen_prepared *ps);
 /* v, a number of ps's arrays raised to `power` (1 for values and sd, 2 for variance: see
- * slowscan_indicator_scale_power), in the input's units. Beyond the double range: +-Inf,
- * which the command writes as NA. */
+ * slowscan_indicator_scale_power), in the input's units; NaN when that passes the range of
+ * normal doubles (the variance of a 1e300 series, 1e600, or of a 1e-300 one, 1e-600). */
 SLOWSCAN_API
 double slowscan_screen_unscale(const screen_prepared *ps, double v, int power);
 /* Makes ps->null_source the residual of the control run's first ps->n samples, deseasoned
