@@ -61,13 +61,13 @@ static const char *fake_meminfo(const char *name, long kib)
 
 /* Runs the command under the fake limits; checks exit 1, one message line holding every
  * `want` string, and no output left; or exit 0 when want is NULL. */
-static void run_limited(const char *cgroup, const char *meminfo, const char *args,
-                        const char *const *want, const char *what)
+static void run_limited_env(const char *env, const char *cgroup, const char *meminfo,
+                            const char *args, const char *const *want, const char *what)
 {
     const char *out = check_tmp_path("limited-out.csv");
     remove(out);
     char cmd[2048], *err = NULL;
-    snprintf(cmd, sizeof cmd, "SLOWSCAN_CGROUP='%s' SLOWSCAN_MEMINFO='%s' %s %s -o %s %s",
+    snprintf(cmd, sizeof cmd, "%s SLOWSCAN_CGROUP='%s' SLOWSCAN_MEMINFO='%s' %s %s -o %s %s", env,
              cgroup, meminfo, check_binary(), args, out, check_tmp_path("limits.csv"));
     int rc = check_run(cmd, NULL, &err);
     if (!want) {
@@ -85,6 +85,12 @@ static void run_limited(const char *cgroup, const char *meminfo, const char *arg
               err ? err : "");
     CHECK(!check_file_exists(out), "%s: no output file left", what);
     free(err);
+}
+
+static void run_limited(const char *cgroup, const char *meminfo, const char *args,
+                        const char *const *want, const char *what)
+{
+    run_limited_env("", cgroup, meminfo, args, want, what);
 }
 
 static void refusals(void)
@@ -123,6 +129,10 @@ static void refusals(void)
                                 NULL};
     run_limited(none, plenty, "screen --threads 1 --surrogates 99", want_input, "the input");
     run_limited(none, plenty, "detrend", want_input, "detrend: the input");
+    /* a CSV read a table at a time from its temporary copy (here past 100 bytes): refused on
+     * its length before a table is taken */
+    run_limited_env("SLOWSCAN_STREAM_AFTER=100", none, plenty, "screen --threads 1 --surrogates 99",
+                    want_input, "a streamed CSV");
 }
 
 /* --threads: room for one worker's workspaces but not for two (the limit set between the
