@@ -259,6 +259,51 @@ static void summary_clean(const char *summary, const char *err, const char *what
     CHECK(rows > 0, "%s: summary rows", what);
 }
 
+/* Eight samples and an all-missing column through screen; recovery of the edge cases; the
+ * feedback command on a run near 1e300 and on a constant response: numbers or NA only. */
+static void edges_cli_commands(double *cols, const double *x)
+{
+    char cmd[2048], *out = NULL, *err = NULL;
+    const char *eight = check_tmp_path("edges-eight.csv");
+    check_write_file(eight, "t,a,b\n0,0.3,NA\n1,-1.2,NA\n2,0.8,NA\n3,1.9,NA\n4,-0.4,NA\n"
+                            "5,0.6,NA\n6,-2.2,NA\n7,1.1,NA\n");
+    snprintf(cmd, sizeof cmd, "%s screen --surrogates 19 %s", check_binary(), eight);
+    CHECK(check_run(cmd, &out, &err) == 0 && out && err && strstr(err, "fewer than 8 adjacent pairs") &&
+              strstr(err, "'b' has fewer than 2 finite samples"),
+          "eight samples, all missing: screened, reasons on stderr (%s)", err ? err : "");
+    summary_clean(out, err, "eight samples");
+    free(out), free(err);
+    snprintf(cmd, sizeof cmd, "%s recovery --surrogates 19 --json %s -o %s %s", check_binary(),
+             check_tmp_path("edges-recovery.json"), check_tmp_path("edges-recovery.csv"),
+             check_tmp_path("edges.csv"));
+    int rc = check_run(cmd, NULL, &err);
+    char *rec = check_read_file(check_tmp_path("edges-recovery.csv"));
+    char *rj = check_read_file(check_tmp_path("edges-recovery.json"));
+    CHECK(rc == 0 && rec && rj && !spelt_nonfinite(rec) && !spelt_nonfinite(rj),
+          "recovery of the edge cases: numbers or NA (exit %d: %s)", rc, err ? err : "");
+    free(rec), free(rj), free(err);
+    /* feedback: T a relaxation, N = 3.7 - 1.2 T + noise, both x 1e300; and T constant */
+    for (size_t i = 0; i < N; i++) {
+        double T = 4.0 * (1 - exp(-(double)i / 30.0)) + 0.1 * x[i];
+        cols[i] = 1e300 * T;
+        cols[N + i] = 1e300 * (3.7 - 1.2 * T + 0.2 * x[(i + 5) % N]);
+        cols[2 * N + i] = 2.0;
+    }
+    const char *run = check_tmp_path("edges-forced.csv");
+    check_write_table_csv(run, "t,T,N,C", 3, N, 1.0, cols);
+    const char *resp[2] = {"T", "C"};
+    for (size_t k = 0; k < 2; k++) {
+        snprintf(cmd, sizeof cmd, "%s feedback --flux N --response %s --window 60 %s",
+                 check_binary(), resp[k], run);
+        rc = check_run(cmd, &out, &err);
+        CHECK(rc == 0 && out && !spelt_nonfinite(out) && (k == 1 || strstr(out, ",-1.")),
+              "feedback, response %s: lambda in N/T units, numbers or NA (exit %d: %s)", resp[k],
+              rc, err ? err : "");
+        CHECK(k == 0 || (out && strstr(out, "no_fit")), "feedback, constant response: no fit");
+        free(out), free(err);
+    }
+}
+
 void edges_cli(void)
 {
     double x[N];
@@ -317,5 +362,6 @@ void edges_cli(void)
               strstr(out, ",sd,1.") && strstr(out, "e-290\n") && !strstr(out, ",lag1,NA\n"),
           "indicators of a 1e-290 series: variance NA (1e-580), sd in its units, lag1 numbers");
     free(out);
+    edges_cli_commands(cols, x);
     free(cols);
 }
