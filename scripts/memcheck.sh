@@ -16,6 +16,7 @@
 #   library              builds and runs programs against an install, not the command;
 #   calibration          400 series x 55 cases: hours under valgrind (its code paths are
 #                        screen's, which cli, golden and sequential run);
+#   golden               at --threads 1 and 2 (GOLDEN_MAX_THREADS=2): a third adds no path;
 #   tail, significance,  their command runs are screens with 999-9999 surrogates whose
 #   deseason, co2        paths cli and golden already cover; hours under valgrind.
 set -u
@@ -50,6 +51,8 @@ exec valgrind --leak-check=full --errors-for-leak-kinds=definite,indirect \\
 EOF
 chmod +x "$WRAP"
 
+# golden at --threads 1 and 2 only (a third thread takes no other path)
+export GOLDEN_MAX_THREADS=2
 start=$(date +%s)
 status=0
 for s in $SUITES; do
