@@ -9,7 +9,7 @@
 #   scripts/memcheck.sh [BUILD_DIR]          (MEMCHECK_SUITES="cli maps" to choose suites)
 #
 # Suites covered by default: every suite whose cases run the command and finish under
-# valgrind in about 30 minutes on two shared cores. Left out, with the reason:
+# valgrind in about 30 minutes on two shared cores. Left out or cut, with the reason:
 #   interrupt, progress  time-driven (signals after a delay, a progress line every N s):
 #                        valgrind's slowdown changes what they measure, not what we check;
 #   mpi                  runs slowscan-mpi under mpirun, not $SLOWSCAN_BIN;
@@ -17,8 +17,10 @@
 #   calibration          400 series x 55 cases: hours under valgrind (its code paths are
 #                        screen's, which cli, golden and sequential run);
 #   golden               at --threads 1 and 2 (GOLDEN_MAX_THREADS=2): a third adds no path;
-#   tail, significance,  their command runs are screens with 999-9999 surrogates whose
-#   deseason, co2        paths cli and golden already cover; hours under valgrind.
+#   tail, significance,  screens with 199-1000 surrogates (report: 99999) that would take
+#   deseason, co2,       most of an hour more; the paths they add (the aaft and iaaft nulls,
+#   report,              --tail gpd, the per-window indicators, harmonics) are run once each
+#   figure_layout        by the extra screens at the end; figures are drawn in cli and golden.
 set -u
 B=${1:-build}
 ROOT=$(cd "$(dirname "$0")/.." && pwd)
@@ -60,6 +62,21 @@ for s in $SUITES; do
     SLOWSCAN_BIN="$WRAP" SLOWSCAN_LABEL="memcheck $s" "$LOGS/run_tests" "$s" || status=1
     echo "memcheck: suite $s took $(( $(date +%s) - t0 )) s"
 done
+
+# Paths the suites above do not take through the command: the amplitude-keeping nulls, the
+# tail fit, the per-window and higher-moment indicators, a seasonal cycle of harmonics.
+t0=$(date +%s)
+G=tests/golden/batch.csv
+for args in "--null aaft --surrogates 19 --vars s0,s1" \
+            "--null iaaft --surrogates 19 --vars s0,s1" \
+            "--tail gpd --surrogates 1000 --threads 2 --vars s0" \
+            "--indicators redness,spectral_exponent,dfa,cv,skewness,kurtosis,sd,ar1,recovery --surrogates 19 --vars s0,s1" \
+            "--deseason 12.5 --harmonics 2 --surrogates 19 --vars s0"; do
+    # shellcheck disable=SC2086
+    "$WRAP" screen --no-progress $args -o /dev/null "$G" 2>/dev/null ||
+        { echo "memcheck: screen $args failed"; status=1; }
+done
+echo "memcheck: extra screens took $(( $(date +%s) - t0 )) s"
 
 # A log with errors in it: valgrind writes each error as it happens, and the summary's
 # count (which includes the definite and indirect leaks) at exit.
