@@ -20,7 +20,7 @@
 #   tail, significance,  screens with 199-1000 surrogates (report: 99999) that would take
 #   deseason, co2,       most of an hour more; the paths they add (the aaft and iaaft nulls,
 #   report,              --tail gpd, the per-window indicators, harmonics) are run once each
-#   figure_layout        by the extra screens at the end; figures are drawn in cli and golden.
+#   figure_layout        by the extra screens at the end; figures are drawn in cli and store.
 set -u
 B=${1:-build}
 ROOT=$(cd "$(dirname "$0")/.." && pwd)
