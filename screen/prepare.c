@@ -110,7 +110,7 @@ double slowscan_screen_unscale(const screen_prepared *ps, double v, int power)
     double u = ldexp(v, power * ps->scale_exp);
     /* beyond the double range either way (the variance of a 1e300 series is 1e600, of a
      * 1e-300 one 1e-600): no number rather than Inf or a 0 that is not one */
-    if (isfinite(v) && v != 0 && (isinf(u) || fabs(u) < DBL_MIN))
+    if (ps->scale_exp != 0 && isfinite(v) && v != 0 && (isinf(u) || fabs(u) < DBL_MIN))
         return NAN;
     return u;
 }
