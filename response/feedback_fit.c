@@ -106,19 +106,27 @@ static void finish_window(const feedback_config *cfg, double c00, double c01, do
     o->se_t_eq = sqrt(var) * fabs(cfg->scale);
 }
 
+/* v 2^e, or NaN when that passes the double range (lambda of N near 1e300 on T near
+ * 1e-300 would be 1e600): no Inf leaves the fit. */
+static void back(double *v, int e)
+{
+    double u = ldexp(*v, e);
+    *v = isinf(u) && isfinite(*v) ? NAN : u;
+}
+
 /* A window fitted to T 2^-ex and N 2^-ey back in the units of N (forcing), N/T (lambda),
  * T (T_eq) and their products; the rest is unitless. */
 static void unscale_window(feedback_window *o, int ex, int ey)
 {
-    o->forcing = ldexp(o->forcing, ey);
-    o->se_forcing = ldexp(o->se_forcing, ey);
-    o->se_forcing_adj = ldexp(o->se_forcing_adj, ey);
+    double *per_n[] = {&o->forcing, &o->se_forcing, &o->se_forcing_adj};
     double *per_t[] = {&o->lambda, &o->se_lambda, &o->se_lambda_adj, &o->lo, &o->hi};
+    for (size_t k = 0; k < sizeof per_n / sizeof per_n[0]; k++)
+        back(per_n[k], ey);
     for (size_t k = 0; k < sizeof per_t / sizeof per_t[0]; k++)
-        *per_t[k] = ldexp(*per_t[k], ey - ex);
-    o->cov = ldexp(o->cov, 2 * ey - ex);
-    o->t_eq = ldexp(o->t_eq, ex);
-    o->se_t_eq = ldexp(o->se_t_eq, ex);
+        back(per_t[k], ey - ex);
+    back(&o->cov, 2 * ey - ex);
+    back(&o->t_eq, ex);
+    back(&o->se_t_eq, ex);
 }
 
 static void clear_window(feedback_window *o)
