@@ -4,6 +4,7 @@
 #   make MPI=1      also build/slowscan-mpi, screen shared by the processes of mpirun
 #                   (OpenMPI's mpicc; nothing else needs MPI)
 #   make check      the test suite, plain and under AddressSanitizer + UBSan
+#   make memcheck   the suites that run the command, with it under valgrind (~30 min)
 #   make demo       screen the bundled demo data, draw its figures (demo-output/), print the table
 #   make bench      speed ratios, measured in one run
 #   make validate   the calibration battery at scale, four nulls (~20-30 min): build/validate.md
@@ -57,7 +58,7 @@ SCLI_OBJ  := $(CLI_SRC:%.c=$(B)/asan/%.o)
 STEST_OBJ := $(TEST_SRC:%.c=$(B)/asan/%.o)
 BENCH_BIN := $(BENCH_SRC:bench/%.c=$(B)/bench/%)
 
-.PHONY: all deps check python-check demo bench validate install install-python clean lib-sources
+.PHONY: all deps check python-check memcheck demo bench validate install install-python clean lib-sources
 # Programs link the static archives: the binary then runs from the build tree and from any
 # prefix without a library path, and the tests may reach module internals.
 STATIC_LIBS := $(B)/libslowscan-report.a $(B)/libslowscan.a
@@ -147,6 +148,14 @@ python-check: all
 	SLOWSCAN_LIBRARY=$(CURDIR)/$(B)/libslowscan.so.$(SOMAJOR) SLOWSCAN_BIN=$(CURDIR)/$(B)/slowscan \
 	  PYTHONPATH=$(CURDIR)/python PYTHONDONTWRITEBYTECODE=1 \
 	  /usr/bin/python3 -m pytest -q -p no:cacheprovider python/tests
+
+# The end-to-end suites with every run of the command under valgrind's memcheck: no leak
+# (definite or indirect), no invalid access, no uninitialised value (scripts/memcheck.sh says
+# which suites and why; MEMCHECK_SUITES="..." picks others).
+memcheck:
+	@sh scripts/install-deps.sh valgrind
+	@$(MAKE) --no-print-directory $(B)/slowscan $(B)/run_tests
+	sh scripts/memcheck.sh $(B)
 
 # The calibration battery of `make check` with more series and every memory-keeping null.
 VALIDATE_OBJ := $(B)/obj/tests/validate/validate.o $(B)/obj/tests/check.o \

@@ -185,6 +185,7 @@ typedef struct {
                                    series at a time (NULL: held whole in tables[f]) */
     series_table control; /* --control FILE: read like the inputs, but never cut in time */
     int has_control;
+    size_t *grid_times;   /* per input: a NetCDF grid's time steps (0 for a CSV table) */
 } cli_inputs;
 
 int cli_inputs_load(const cli_options *opts, cli_inputs *inputs);
@@ -339,6 +340,21 @@ typedef struct {
 } series_command;
 /* Load, open, visit, finish, then commit every output — or remove them all on failure. */
 int cli_run_series_command(const cli_options *opts, const series_command *command);
+
+/* The memory this process may still take (cli/memory.c): the room under the tightest cgroup
+ * limit (v2 or v1) and MemAvailable, the smaller; INFINITY where nothing limits or nothing
+ * could be read. */
+typedef struct {
+    double available, cgroup_room, cgroup_limit, cgroup_usage, meminfo;
+} cli_memory;
+void cli_memory_read(cli_memory *m);
+/* needed bytes against what is available: EXIT_OK, or EXIT_BAD_INPUT after the message
+ * "WHAT: the run needs about X of memory, more than the Y available (...); ADVICE". */
+int cli_memory_check(size_t needed, const char *what, const char *advice);
+/* screen, robustness and recovery: the run's estimate (slowscan_screen_memory_estimate) for
+ * the longest input series, checked before any work; the message names the option that
+ * asks too much (--surrogates, --budget, --max-per-series, --threads) or the input. */
+int cli_memory_guard(const cli_options *opts, const cli_inputs *in);
 
 /* The long rolling-indicator table `series,time,indicator,value` (indicators, screen --rolling). */
 extern const char cli_rolling_header[];

@@ -26,7 +26,7 @@ static int write_series(const cli_options *opts, const prepared_series *ps, void
         const double cells[] = {ps->value[i], ps->trend[i], ps->residual[i]};
         for (size_t c = 0; c < sizeof cells / sizeof cells[0]; c++) {
             fputc(',', run->out);
-            cli_put_number(run->out, cells[c]);
+            cli_put_number(run->out, slowscan_screen_unscale(ps, cells[c], 1));
         }
         fputc('\n', run->out);
     }

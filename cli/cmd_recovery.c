@@ -147,7 +147,8 @@ static void write_json(recovery_run *run, const prepared_series *ps, const recov
     ps->axis.unit != TIME_AXIS_NUMBER ? cli_json_string(run->json, cli_time_unit(&ps->axis))
                                       : (void)fputs("null", run->json);
     /* se_* are HC3; the model-based error of a1 and its t are kept beside them */
-    const double v[] = {f->a0, f->a1, f->c, f->se_a0, f->se_a1, f->t_a1, f->se_a1_model,
+    /* c is in the series' units (a series near 1e300 was fitted scaled: screen.h) */
+    const double v[] = {f->a0, f->a1, slowscan_screen_unscale(ps, f->c, 1), f->se_a0, f->se_a1, f->t_a1, f->se_a1_model,
                         f->t_a1_model, p};
     const char *k[] = {"a0", "a1", "c", "se_a0", "se_a1", "t_a1", "se_a1_model_based",
                        "t_a1_model_based", "p_value"};

@@ -81,9 +81,15 @@ static size_t make_record(const prepared_series *ps, const screen_result *res,
     char *text = extra + sizeof *origin;
     size_t room = sizeof extra - sizeof *origin;
     size_t len = (size_t)snprintf(text, room, "%s%c%s", cli_time_unit(&ps->axis), 0, ps->source);
-    series_record head = {.result = *res, .constant = ps->constant,
-                          .name_size = strlen(ps->name) + 1,
-                          .extra_size = sizeof *origin + (len < room ? len : room - 1) + 1};
+    /* The record goes to the journal and to other processes as bytes: its padding is zeroed
+     * (an initializer leaves it undefined, and valgrind saw stack garbage written to the
+     * journal) and the result copied bytewise, its own padding being zero from the library. */
+    series_record head;
+    memset(&head, 0, sizeof head);
+    memcpy(&head.result, res, sizeof *res);
+    head.constant = ps->constant;
+    head.name_size = strlen(ps->name) + 1;
+    head.extra_size = sizeof *origin + (len < room ? len : room - 1) + 1;
     size_t size = sizeof head + head.name_size + head.extra_size;
     if (cli_share_room(buf, cap, size) != EXIT_OK)
         return 0;
@@ -227,7 +233,7 @@ static int put_series(void *state, const screen_batch_item *item)
     screen_result patched;
     const screen_result *res = item->result;
     if (sink->run->seq) { /* --surrogates auto: the rounds' p-values and counts */
-        patched = *res;
+        memcpy(&patched, res, sizeof patched); /* padding and all: it becomes a record */
         cli_sequential_patch(sink->run->seq, item->index, &patched);
         res = &patched;
     }

@@ -33,7 +33,7 @@ static int write_replicates(const cli_options *opts, const prepared_series *ps,
             fprintf(run->out, ",%ld,", j + 1);
             cli_put_time(run->out, &ps->axis, ps->time[i]);
             fputc(',', run->out);
-            cli_put_number(run->out, run->buffer[i]);
+            cli_put_number(run->out, slowscan_screen_unscale(ps, run->buffer[i], 1));
             fputc('\n', run->out);
         }
     }

@@ -321,6 +321,8 @@ int cli_run_series_command(const cli_options *opts, const series_command *cmd)
     const cli_share *share = cli_share_get();
     int writer = !share || share->rank == 0;
     int rc = cli_inputs_load(opts, &in);
+    if (rc == EXIT_OK)
+        rc = cli_memory_guard(opts, &in); /* a run that cannot fit is refused before it starts */
     if (rc == EXIT_OK && cmd->open && writer)
         rc = cmd->open(opts, &outs, cmd->context);
     if (share) /* no process starts work another cannot do */
@@ -356,6 +358,7 @@ void cli_write_rolling(FILE *fp, const cli_options *opts, const prepared_series 
         /* Only the windows evaluated on the indicator's step have a row; an evaluated window
          * whose value is undefined is NA, as at step 1. */
         size_t step = slowscan_rolling_step(&spec, opts->indicators[j], ps->n);
+        int power = slowscan_indicator_scale_power(opts->indicators[j]);
         for (size_t i = ps->window - 1; i < ps->n; i++) {
             if (!rolling_evaluated(step, ps->n, i))
                 continue;
@@ -363,7 +366,8 @@ void cli_write_rolling(FILE *fp, const cli_options *opts, const prepared_series 
             fputc(',', fp);
             cli_put_time(fp, &ps->axis, ps->time[i]);
             fprintf(fp, ",%s,", name);
-            cli_put_number(fp, values[j][i]);
+            /* the series' own units (a 1e300 series' variance is beyond doubles: NA) */
+            cli_put_number(fp, slowscan_screen_unscale(ps, values[j][i], power));
             fputc('\n', fp);
         }
     }

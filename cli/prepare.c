@@ -86,7 +86,7 @@ static int load_control(const cli_options *opts, cli_inputs *in)
 
 /* A NetCDF input is opened once here, so that a bad file, variable or --select fails before
  * any work, and its cells counted; its cells are read later, a table at a time. */
-static int check_grid(const cli_options *opts, size_t f, size_t *cells)
+static int check_grid(const cli_options *opts, size_t f, size_t *cells, size_t *times)
 {
     if (opts->control_file) {
         cli_error("option --control: %s is a NetCDF grid; a control run is read for CSV inputs "
@@ -100,6 +100,7 @@ static int check_grid(const cli_options *opts, size_t f, size_t *cells)
     if (st != SLOWSCAN_OK)
         return io_fail(st, &err);
     *cells = slowscan_netcdf_series_count(r);
+    slowscan_netcdf_times(r, times, NULL, NULL);
     slowscan_netcdf_close(r);
     if (*cells == 0) {
         cli_error("%s: --select leaves no cell to analyse", opts->files[f]);
@@ -127,7 +128,8 @@ int cli_inputs_load(const cli_options *opts, cli_inputs *in)
     in->tables = calloc(opts->nfiles, sizeof *in->tables);
     in->grid_cells = calloc(opts->nfiles, sizeof *in->grid_cells);
     in->columns = calloc(opts->nfiles, sizeof *in->columns);
-    if (!in->tables || !in->grid_cells || !in->columns)
+    in->grid_times = calloc(opts->nfiles, sizeof *in->grid_times);
+    if (!in->tables || !in->grid_cells || !in->columns || !in->grid_times)
         return EXIT_INTERNAL;
     csv_read_options ro;
     time_units units;
@@ -142,7 +144,7 @@ int cli_inputs_load(const cli_options *opts, cli_inputs *in)
         if (cli_check_netcdf_name(opts->files[f], NULL) != EXIT_OK)
             return EXIT_BAD_INPUT;
         if (cli_is_netcdf(opts->files[f])) {
-            rc = check_grid(opts, f, &in->grid_cells[f]);
+            rc = check_grid(opts, f, &in->grid_cells[f], &in->grid_times[f]);
             continue;
         }
         if (cli_too_wide(opts->files[f])) {
@@ -180,6 +182,7 @@ void cli_inputs_free(cli_inputs *in)
     free(in->columns);
     free(in->tables);
     free(in->grid_cells);
+    free(in->grid_times);
     memset(in, 0, sizeof *in);
 }
 

@@ -66,13 +66,23 @@ static int draw_series(const cli_options *opts, const prepared_series *ps, void 
     double *owned;
     char label[300];
     const double *x = cli_figure_times(ps, &owned, label, sizeof label);
-    report_series_data data = {ps->name, label, ps->source, ps->n, x, ps->value,
-                               ps->trend, ps->window, list, tests};
-    if (rc == EXIT_OK && !x)
+    /* The series and trend in the input's units (a copy only for a scaled series, whose
+     * paths are drawn standardised and need none). */
+    double *plain = NULL;
+    const double *value = ps->value, *trend = ps->trend;
+    if (ps->scale_exp != 0 && (plain = malloc(2 * ps->n * sizeof *plain)) != NULL) {
+        for (size_t i = 0; i < 2 * ps->n; i++)
+            plain[i] = slowscan_screen_unscale(ps, i < ps->n ? ps->value[i] : ps->trend[i - ps->n], 1);
+        value = plain, trend = plain + ps->n;
+    }
+    report_series_data data = {ps->name, label, ps->source, ps->n, x, value,
+                               trend, ps->window, list, tests};
+    if (rc == EXIT_OK && (!x || (ps->scale_exp != 0 && !plain)))
         rc = EXIT_INTERNAL;
     if (rc == EXIT_OK)
         rc = cli_figure_draw(run->figures, &slowscan_report_series_figure, &data, "screen", ps->name);
     free(owned);
+    free(plain);
     if (!ps->constant)
         cli_indicator_values_free(opts, values);
     return rc;

@@ -70,3 +70,8 @@ size_t slowscan_indicator_min_window(indicator_kind kind)
 {
     return valid(kind) ? table[kind].min_window : 0;
 }
+
+int slowscan_indicator_scale_power(indicator_kind kind)
+{
+    return kind == INDICATOR_VARIANCE ? 2 : kind == INDICATOR_SD ? 1 : 0;
+}

@@ -2,6 +2,7 @@
  * total least squares with a known noise-variance ratio, the errors widened for the
  * residuals' autocorrelation, and the implied equilibrium T_eq = -F/lambda. */
 #include "feedback_internal.h"
+#include "../library/magnitude.h"
 #include "slowscan/status.h"
 
 #include <gsl/gsl_cdf.h>
@@ -105,6 +106,29 @@ static void finish_window(const feedback_config *cfg, double c00, double c01, do
     o->se_t_eq = sqrt(var) * fabs(cfg->scale);
 }
 
+/* v 2^e, or NaN when that passes the double range (lambda of N near 1e300 on T near
+ * 1e-300 would be 1e600): no Inf leaves the fit. */
+static void back(double *v, int e)
+{
+    double u = ldexp(*v, e);
+    *v = isinf(u) && isfinite(*v) ? NAN : u;
+}
+
+/* A window fitted to T 2^-ex and N 2^-ey back in the units of N (forcing), N/T (lambda),
+ * T (T_eq) and their products; the rest is unitless. */
+static void unscale_window(feedback_window *o, int ex, int ey)
+{
+    double *per_n[] = {&o->forcing, &o->se_forcing, &o->se_forcing_adj};
+    double *per_t[] = {&o->lambda, &o->se_lambda, &o->se_lambda_adj, &o->lo, &o->hi};
+    for (size_t k = 0; k < sizeof per_n / sizeof per_n[0]; k++)
+        back(per_n[k], ey);
+    for (size_t k = 0; k < sizeof per_t / sizeof per_t[0]; k++)
+        back(per_t[k], ey - ex);
+    back(&o->cov, 2 * ey - ex);
+    back(&o->t_eq, ex);
+    back(&o->se_t_eq, ex);
+}
+
 static void clear_window(feedback_window *o)
 {
     double *v[] = {&o->lambda, &o->se_lambda, &o->se_lambda_adj, &o->forcing, &o->se_forcing,
@@ -128,10 +152,16 @@ int feedback_fit_with(const double *time, const double *flux, const double *resp
     o->status = o->n < 4 ? SLOWSCAN_ESHORT : SLOWSCAN_OK;
     if (o->status != SLOWSCAN_OK)
         return SLOWSCAN_OK;
+    /* T and N near 1e300 (or 1e-300) overflow (underflow) the sums of squares: the fit is
+     * made on both brought near 1 by powers of two, and its numbers given their units back
+     * (unscale_window); r2, the autocorrelations and n_eff do not depend on the units. */
+    int ex = magnitude_exponent(x, o->n), ey = magnitude_exponent(y, o->n);
+    magnitude_scale(x, o->n, ex);
+    magnitude_scale(y, o->n, ey);
     double c00, c01, c11, sumsq;
     if (cfg->fit == FEEDBACK_TLS)
-        o->status = deming(x, y, o->n, cfg->noise_ratio, e, w, &o->forcing, &o->lambda, &c00,
-                           &c01, &c11);
+        o->status = deming(x, y, o->n, ldexp(cfg->noise_ratio, 2 * (ex - ey)), e, w, &o->forcing,
+                           &o->lambda, &c00, &c01, &c11);
     else if (gsl_stats_variance(x, 1, o->n) == 0)
         o->status = SLOWSCAN_ECONST;
     else if (gsl_fit_linear(x, 1, y, 1, o->n, &o->forcing, &o->lambda, &c00, &c01, &c11, &sumsq))
@@ -149,6 +179,7 @@ int feedback_fit_with(const double *time, const double *flux, const double *resp
     o->n_eff = effective_size(o->n, o->r_residual);
     o->teq_reason = FEEDBACK_TEQ_OK;
     finish_window(cfg, c00, c01, c11, o);
+    unscale_window(o, ex, ey);
     return SLOWSCAN_OK;
 }
 

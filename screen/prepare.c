@@ -1,8 +1,10 @@
 /* A series made ready for its indicators: the window rule, deseasoning, detrending, the
  * round-off check and the trend-leakage test. Refusals fill a screen_detail; nothing prints. */
 #include "screen_internal.h"
+#include "../library/magnitude.h"
 #include "slowscan/status.h"
 
+#include <float.h>
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
@@ -93,6 +95,26 @@ static void count_finite(screen_prepared *ps)
     ps->constant = ps->finite > 0 && lo == hi ? SCREEN_CONSTANT : SCREEN_VARIES;
 }
 
+/* Magnitudes beyond 2^+-100 are brought near 1 by a power of two before anything is
+ * computed (library/magnitude.h): at 1e300 the rolling sums of squares overflowed to Inf
+ * and a good series came out as "no variation"; at 1e-300 they underflowed. Taus and
+ * p-values are those of the same series near 1; outputs are unscaled by the caller. */
+static void scale_series(screen_prepared *ps)
+{
+    ps->scale_exp = magnitude_exponent(ps->value, ps->n);
+    magnitude_scale(ps->value, ps->n, ps->scale_exp);
+}
+
+double slowscan_screen_unscale(const screen_prepared *ps, double v, int power)
+{
+    double u = ldexp(v, power * ps->scale_exp);
+    /* beyond the double range either way (the variance of a 1e300 series is 1e600, of a
+     * 1e-300 one 1e-600): no number rather than Inf or a 0 that is not one */
+    if (ps->scale_exp != 0 && isfinite(v) && v != 0 && (isinf(u) || fabs(u) < DBL_MIN))
+        return NAN;
+    return u;
+}
+
 /* A residual at round-off level (a straight line under --detrend linear, say) carries no
  * information: its lag-1 autocorrelation would be computed from rounding noise. Treat it as
  * constant rather than report numbers made of round-off. */
@@ -122,6 +144,9 @@ static void test_leakage(const screen_config *cfg, screen_prepared *ps)
         return; /* too short to say anything, or the edges would overlap */
     ps->leakage_tested = slowscan_detrend_leakage_test(ps->residual, ps->n, (size_t)edge, LEAKAGE_LEVEL,
                                               &ps->leakage) == SLOWSCAN_OK;
+    /* the edge means in the input's units, as messages and the JSON print them */
+    ps->leakage.first.mean = slowscan_screen_unscale(ps, ps->leakage.first.mean, 1);
+    ps->leakage.last.mean = slowscan_screen_unscale(ps, ps->leakage.last.mean, 1);
 }
 
 static int same_detrend(const screen_workspace *ws, const detrend_spec *spec, double dt,
@@ -215,6 +240,7 @@ int slowscan_screen_prepare_with(screen_workspace *ws, const screen_config *give
     ps->null_count = in->null_count;
     memcpy(ps->value, in->values, in->n * sizeof(double));
     count_finite(ps);
+    scale_series(ps);
     if (!isnan(cfg->deseason) && (st = deseason_series(cfg, ps, d)) != SLOWSCAN_OK)
         return st;
     if (ps->finite < 2 || ps->constant) {

@@ -183,6 +183,10 @@ int screen_attach_control_with(screen_workspace *ws, const screen_config *cfg,
         st = SLOWSCAN_ECONST;
     }
     if (st == SLOWSCAN_OK) {
+        /* The control's residual in the series' units (each was scaled on its own). */
+        if (cps.scale_exp != ps->scale_exp)
+            for (size_t i = 0; i < cps.n; i++)
+                cps.residual[i] = ldexp(cps.residual[i], cps.scale_exp - ps->scale_exp);
         free(ps->owned);
         ps->owned = cps.value; /* residual lives in the same block */
         ps->null_source = cps.residual;

@@ -50,6 +50,8 @@ void suite_emulate(void);
 void suite_forced(void);
 void suite_tail(void);
 void suite_hostile(void);
+void suite_edges(void);
+void suite_limits(void);
 
 static const struct {
     const char *name;
@@ -77,6 +79,7 @@ static const struct {
     {"mpi", suite_mpi},           {"sequential", suite_sequential},
     {"ensemble", suite_ensemble},
     {"feedback", suite_feedback},     {"feedback_rates", suite_feedback_rates},
+    {"edges", suite_edges},           {"limits", suite_limits},
 };
 
 int main(int argc, char **argv)

@@ -83,6 +83,10 @@ int slowscan_indicator_per_window(indicator_kind kind);
  * frequencies must hold one), DFA_MIN_WINDOW for dfa. */
 SLOWSCAN_API
 size_t slowscan_indicator_min_window(indicator_kind kind);
+/* How the indicator scales with its series: k when multiplying the series by a multiplies
+ * the indicator by |a|^k (2 variance, 1 sd, 0 for every ratio, correlation and exponent). */
+SLOWSCAN_API
+int slowscan_indicator_scale_power(indicator_kind kind);
 
 /* DFA needs W/4 >= 8 so that its box sizes (4 .. W/4) span an octave: five sizes at W = 32.
  * Fewer sizes give a slope from two or three points. */

@@ -73,6 +73,12 @@ SLOWSCAN_API
 robustness_workspace *slowscan_robustness_workspace_alloc(size_t threads);
 SLOWSCAN_API
 void slowscan_robustness_workspace_free(robustness_workspace *ws);
+/* Bytes the grid of one series holds at once (its two screening workspaces and a prepared
+ * series per bandwidth), n samples and cfg->surrogates per test; as
+ * slowscan_screen_memory_estimate. */
+SLOWSCAN_API
+size_t slowscan_robustness_memory_estimate(const screen_config *cfg, const robustness_grid *grid,
+                                           size_t n);
 
 /* Runs the grid on one series: per method, each bandwidth is prepared (with the first
  * window, and the control run attached when in->control and the series varies), then the

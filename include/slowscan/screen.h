@@ -190,6 +190,13 @@ typedef struct {
     double *owned;                    /* storage behind null_source when it is not residual */
     int null_range;                   /* the input's replicate range (screen_input) */
     size_t null_first, null_count;
+    /* value, trend, residual, null_source, the replicates and the variance and sd paths are
+       in units of 2^scale_exp of the input's: 0 unless the input's largest magnitude lies
+       outside 2^-100 .. 2^100, where sums of squares and fourth powers would overflow (1e300)
+       or lose their digits to underflow (1e-300). A power of two changes no digit, so taus
+       and p-values are the same as at scale_exp 0. slowscan_screen_unscale gives the input's
+       units back. */
+    int scale_exp;
 } screen_prepared;
 
 /* The result of one series: plain data. */
@@ -311,6 +318,11 @@ int slowscan_screen_prepare_with(screen_workspace *ws, const screen_config *cfg,
                                  screen_detail *detail);
 SLOWSCAN_API
 void slowscan_screen_prepared_free(screen_prepared *ps);
+/* v, a number of ps's arrays raised to `power` (1 for values and sd, 2 for variance: see
+ * slowscan_indicator_scale_power), in the input's units; NaN when that passes the range of
+ * normal doubles (the variance of a 1e300 series, 1e600, or of a 1e-300 one, 1e-600). */
+SLOWSCAN_API
+double slowscan_screen_unscale(const screen_prepared *ps, double v, int power);
 /* Makes ps->null_source the residual of the control run's first ps->n samples, deseasoned
  * and detrended with ps's bandwidth and window in time units. Refused (SCREEN_RULE_CONTROL_*)
  * when the control has no such series (values NULL), fewer samples, another time step
@@ -338,6 +350,17 @@ int slowscan_screen_config_on_axis(screen_config *cfg, const time_axis *axis,
 SLOWSCAN_API
 int slowscan_screen_window(const screen_config *cfg, size_t n, double span, size_t *window,
                   screen_detail *detail);
+
+/* Bytes a screening run holds at once for series of at most n samples, `workers` series at a
+ * time (each with cfg->threads surrogate threads): its workspaces and the surrogate
+ * statistics of cfg->surrogates per test, and with keep_series (the batch driver's sink
+ * keeps each series: screen_batch.h) the reorder buffer's copies; screen/memory_estimate.c says what
+ * is counted and how it compares with a measured peak. Not the inputs, which the caller
+ * holds. An estimate from above, for refusing a run that cannot fit before it starts;
+ * SIZE_MAX when the count passes the address range. */
+SLOWSCAN_API
+size_t slowscan_screen_memory_estimate(const screen_config *cfg, size_t n, size_t workers,
+                                       int keep_series);
 
 /* The rolling spec (window, coverage, dt, step, band; no plan) of a prepared series, as
  * slowscan_screen_indicators uses it: with slowscan_rolling_step it says which windows carry a value. */
