@@ -110,6 +110,7 @@ typedef struct {
     double *owned;
     int null_range;
     size_t null_first, null_count;
+    int scale_exp;
 } screen_prepared;
 
 typedef struct {
