@@ -7,6 +7,7 @@
 #   make demo       screen the bundled demo data, draw its figures (demo-output/), print the table
 #   make bench      speed ratios, measured in one run
 #   make validate   the calibration battery at scale, four nulls (~20-30 min): build/validate.md
+#   make fuzz       FUZZ_SECONDS=60: each libFuzzer harness of tests/fuzz/ in turn (clang)
 #   make install    PREFIX=/usr/local DESTDIR=   (binary, libraries, headers, man page, slowscan.pc)
 # `check` and `demo` first install missing Debian packages (scripts/install-deps.sh).
 
@@ -57,7 +58,7 @@ SCLI_OBJ  := $(CLI_SRC:%.c=$(B)/asan/%.o)
 STEST_OBJ := $(TEST_SRC:%.c=$(B)/asan/%.o)
 BENCH_BIN := $(BENCH_SRC:bench/%.c=$(B)/bench/%)
 
-.PHONY: all deps check demo bench validate install clean lib-sources
+.PHONY: all deps check demo bench validate install clean lib-sources fuzz fuzz-deps
 # Programs link the static archives: the binary then runs from the build tree and from any
 # prefix without a library path, and the tests may reach module internals.
 STATIC_LIBS := $(B)/libslowscan-report.a $(B)/libslowscan.a
@@ -134,11 +135,60 @@ $(B)/bench/%: bench/%.c $(BENCH_LIB) $(wildcard bench/common/*.h) $(STATIC_LIBS)
 # The sanitized run goes ahead when the plain one fails (the calibration battery fails there
 # until the fixes it measures land); check fails if either did.
 check: deps
-	@$(MAKE) --no-print-directory all $(B)/run_tests $(B)/asan/slowscan $(B)/asan/run_tests $(CHECK_MPI)
+	@$(MAKE) --no-print-directory all $(B)/run_tests $(B)/asan/slowscan $(B)/asan/run_tests $(CHECK_MPI) \
+	  $(B)/fuzz_replay $(B)/asan/fuzz_replay
 	plain=0; SLOWSCAN_BIN=$(B)/slowscan SLOWSCAN_LABEL=plain $(B)/run_tests || plain=1; \
 	ASAN_OPTIONS=detect_leaks=1:abort_on_error=0 UBSAN_OPTIONS=print_stacktrace=1 \
 	  LSAN_OPTIONS=suppressions=$(CURDIR)/tests/lsan.supp:print_suppressions=0 \
 	  SLOWSCAN_BIN=$(B)/asan/slowscan SLOWSCAN_LABEL=sanitized $(B)/asan/run_tests && exit $$plain
+
+# Fuzzing (tests/fuzz/, DEVELOPERS.md). The harnesses built without libFuzzer (-DFUZZ_REPLAY)
+# with a main that replays the committed corpus and regression inputs: suite `fuzz` of make
+# check runs build/fuzz_replay and build/asan/fuzz_replay.
+FUZZ_NAMES := csv dates netcdf options lengths
+FUZZ_HARNESS_SRC := $(FUZZ_NAMES:%=tests/fuzz/fuzz_%.c) tests/fuzz/fuzz_common.c
+REPLAY_SRC := tests/fuzz/replay.c $(FUZZ_HARNESS_SRC)
+$(B)/obj/tests/fuzz/%.o $(B)/asan/tests/fuzz/%.o: WARN += -DFUZZ_REPLAY
+$(B)/fuzz_replay: $(REPLAY_SRC:%.c=$(B)/obj/%.o) $(filter-out $(B)/obj/cli/entry.o,$(CLI_OBJ)) $(STATIC_LIBS)
+	$(CC) $(CFLAGS) -o $@ $^ $(LIBS)
+$(B)/asan/fuzz_replay: $(REPLAY_SRC:%.c=$(B)/asan/%.o) $(filter-out $(B)/asan/cli/entry.o,$(SCLI_OBJ)) $(SLIB_OBJ)
+	$(CC) $(SAN) -o $@ $^ $(LIBS)
+
+# `make fuzz`: every source built again by clang with libFuzzer's coverage and ASan + UBSan
+# (build/fuzz/), one program per harness, each run for FUZZ_SECONDS on its seed corpus
+# (tests/fuzz/corpus/NAME) and regressions, one after another. New inputs go to
+# FUZZ_SCRATCH/NAME (outside the repository's tracked files), crashes to FUZZ_SCRATCH/NAME-*.
+# Only a minimised corpus is committed (DEVELOPERS.md says how).
+FUZZ_CC ?= clang
+FUZZ_SECONDS ?= 60
+FUZZ_SCRATCH ?= $(B)/fuzz-scratch
+FUZZ_FLAGS := -g -O1 -fno-omit-frame-pointer -fsanitize=address,undefined -fno-sanitize-recover=undefined
+FUZZ_RUN_FLAGS := -rss_limit_mb=2048 -timeout=10 -print_final_stats=1
+FUZZ_OBJ := $(patsubst %.c,$(B)/fuzz/obj/%.o,$(LIB_SRC) $(filter-out cli/entry.c,$(CLI_SRC)))
+FUZZ_BIN := $(FUZZ_NAMES:%=$(B)/fuzz/fuzz_%)
+$(B)/fuzz/obj/%.o: %.c
+	@mkdir -p $(dir $@)
+	@echo "CC(fuzz) $<"; $(FUZZ_CC) $(FUZZ_FLAGS) -fsanitize=fuzzer-no-link $(WARN) $(INCS) -MMD -MP -c $< -o $@
+$(B)/fuzz/libfuzzed.a: $(FUZZ_OBJ)
+	@rm -f $@
+	ar rcs $@ $^
+# -u slowscan_version: the archive member whose constructor turns GSL's aborting handler off.
+$(B)/fuzz/fuzz_%: $(B)/fuzz/obj/tests/fuzz/fuzz_%.o $(B)/fuzz/obj/tests/fuzz/fuzz_common.o $(B)/fuzz/libfuzzed.a
+	$(FUZZ_CC) $(FUZZ_FLAGS) -fsanitize=fuzzer -Wl,-u,slowscan_version -o $@ $^ $(LIBS)
+
+fuzz-deps: deps
+	@sh scripts/install-deps.sh clang
+	@sh scripts/install-deps.sh libclang-rt-$$($(FUZZ_CC) -dumpversion | cut -d. -f1)-dev
+
+fuzz: fuzz-deps
+	@$(MAKE) --no-print-directory $(FUZZ_BIN)
+	@for h in $(FUZZ_NAMES); do \
+	  mkdir -p $(FUZZ_SCRATCH)/$$h tests/fuzz/regressions/$$h || exit 1; \
+	  echo "== fuzz $$h for $(FUZZ_SECONDS) s"; \
+	  $(B)/fuzz/fuzz_$$h $(FUZZ_RUN_FLAGS) -max_total_time=$(FUZZ_SECONDS) \
+	    -artifact_prefix=$(FUZZ_SCRATCH)/$$h- $(FUZZ_SCRATCH)/$$h \
+	    tests/fuzz/corpus/$$h tests/fuzz/regressions/$$h || exit 1; \
+	done
 
 # The calibration battery of `make check` with more series and every memory-keeping null.
 VALIDATE_OBJ := $(B)/obj/tests/validate/validate.o $(B)/obj/tests/check.o \

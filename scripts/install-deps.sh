@@ -1,10 +1,12 @@
 #!/bin/sh
 # Installs what slowscan needs to build, test and draw, if it is missing.
 # On Debian (or a derivative) as root it runs apt-get; elsewhere it prints the list.
+# With arguments it installs those packages instead (make fuzz: clang, libclang-rt-NN-dev).
 set -e
 PKGS="gcc make pkg-config libopenmpi-dev openmpi-bin libfftw3-dev libgsl-dev libcsv-dev libnetcdf-dev libudunits2-dev libplplot-dev
 plplot-driver-cairo python3-numpy python3-scipy python3-pandas python3-statsmodels python3-cftime python3-netcdf4 netcdf-bin
 python3-cffi python3-xarray python3-pytest python3-dask"
+[ $# -gt 0 ] && PKGS="$*"
 missing=""
 if command -v dpkg-query >/dev/null 2>&1; then
     for p in $PKGS; do

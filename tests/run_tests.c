@@ -49,6 +49,7 @@ void suite_timescales(void);
 void suite_emulate(void);
 void suite_forced(void);
 void suite_tail(void);
+void suite_fuzz(void);
 
 static const struct {
     const char *name;
@@ -67,7 +68,7 @@ static const struct {
     {"store", suite_store},           {"progress", suite_progress},
     {"series_calls", suite_series_calls},
     {"timescales", suite_timescales}, {"emulate", suite_emulate}, {"forced", suite_forced},
-    {"tail", suite_tail},
+    {"tail", suite_tail},             {"fuzz", suite_fuzz},
     {"calendar", suite_calendar},
     {"time_column", suite_time_column}, {"netcdf", suite_netcdf},
     {"maps", suite_maps},
