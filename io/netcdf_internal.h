@@ -69,6 +69,12 @@ struct netcdf_reader {
 int netcdf_open_memory(const char *name, void *memory, size_t size,
                        const netcdf_read_options *options, netcdf_reader **reader, io_error *err);
 
+/* Walks the header of a classic-format file (the file at r->path, or the `size` bytes at
+ * memory) and refuses, with a message, one whose counts run past the end of the file, before
+ * netcdf-c reads it (netcdf_screen.c says why). Other formats pass untouched. */
+int netcdf_screen_header(const netcdf_reader *r, const void *memory, size_t size,
+                         io_error *err);
+
 /* Formats into err the message "PATH: what" and returns status (io_fail with the file). */
 int netcdf_fail(const netcdf_reader *r, io_error *err, int status, const char *fmt, ...)
     __attribute__((format(printf, 4, 5)));

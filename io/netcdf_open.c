@@ -308,8 +308,12 @@ static int named_variables(netcdf_reader *r, io_error *err)
 static int open_file(netcdf_reader *r, const char *path, void *memory, size_t size,
                      io_error *err)
 {
-    int st = memory ? nc_open_mem(path, NC_NOWRITE, size, memory, &r->ncid)
-                    : nc_open(path, NC_NOWRITE, &r->ncid);
+    r->ncid = -1;
+    int st = netcdf_screen_header(r, memory, size, err);
+    if (st != SLOWSCAN_OK)
+        return st;
+    st = memory ? nc_open_mem(path, NC_NOWRITE, size, memory, &r->ncid)
+                : nc_open(path, NC_NOWRITE, &r->ncid);
     if (st != NC_NOERR) {
         r->ncid = -1;
         return netcdf_fail(r, err, SLOWSCAN_EIO, "cannot read it as NetCDF: %s",

@@ -4,9 +4,39 @@
  * sanitized run uses build/asan/fuzz_replay, so ASan and UBSan watch the replay). */
 #include "check.h"
 
+#include <dirent.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+
+/* The NetCDF regressions are corrupt classic headers that crashed netcdf-c or made it
+ * allocate gigabytes; through the binary, as files, each is one refusal naming the file
+ * (io/netcdf_screen.c) and exit 1. The harness input's first byte is its options. */
+static void netcdf_regressions_refused(void)
+{
+    DIR *d = opendir("tests/fuzz/regressions/netcdf");
+    CHECK(d != NULL, "tests/fuzz/regressions/netcdf exists");
+    if (!d)
+        return;
+    for (struct dirent *e; (e = readdir(d)) != NULL;) {
+        if (e->d_name[0] == '.')
+            continue;
+        char in[600], command[2048];
+        snprintf(in, sizeof in, "tests/fuzz/regressions/netcdf/%s", e->d_name);
+        const char *nc = check_tmp_path("corrupt.nc");
+        snprintf(command, sizeof command, "tail -c +2 '%s' > '%s' && %s screen --surrogates 19 '%s'",
+                 in, nc, check_binary(), nc);
+        char *out = NULL, *err = NULL;
+        int rc = check_run(command, &out, &err);
+        CHECK(rc == 1 && err && strstr(err, nc) && strstr(err, "header is corrupt") &&
+                  strchr(err, '\n') == err + strlen(err) - 1,
+              "%s as a file: exit 1 (got %d), one message naming it: %s", e->d_name, rc,
+              err ? err : "");
+        free(out);
+        free(err);
+    }
+    closedir(d);
+}
 
 void suite_fuzz(void);
 void suite_fuzz(void)
@@ -30,4 +60,5 @@ void suite_fuzz(void)
     }
     free(out);
     free(err);
+    netcdf_regressions_refused();
 }
