@@ -4,10 +4,14 @@
  * allocates a name as long as the header says (gigabytes for a 1 kB file), uses a table
  * unchecked when that allocation fails, and reads past its buffer on a header whose counts
  * overrun the file (a SEGV in ncx_getn_longlong_int, also in ncdump;
- * tests/fuzz/regressions/netcdf/). Such a file is refused here, naming the byte where the
- * header stops making sense. The walk only reads; it checks nothing netcdf-c checks after
+ * tests/fuzz/regressions/netcdf/), and copies a name longer than NC_MAX_NAME, which it
+ * writes nowhere but reads back all the same, into its caller's NC_MAX_NAME + 1 bytes (a
+ * stack overflow in the reader, through nc_inq_dimname). Such a file is refused here, naming
+ * the byte where the header stops making sense. The walk only reads; it checks nothing netcdf-c checks after
  * it (types of values, dimension ids, where the data start). */
 #include "netcdf_internal.h"
+
+#include <netcdf.h>
 
 #include <stdint.h>
 #include <stdio.h>
@@ -20,6 +24,7 @@ typedef struct {
     uint64_t size, pos;
     int wide;                 /* CDF-5: counts are 8 bytes */
     int offset_bytes;         /* where a variable's data begin: 4 (CDF-1) or 8 */
+    const char *why;          /* what was wrong, when not a count past the end */
 } header_walk;
 
 /* n bytes into out (NULL: skipped); 0 past the end of the file. */
@@ -61,10 +66,17 @@ static uint64_t padded(uint64_t n)
     return n > UINT64_MAX - 3 ? 0 : (n + 3) / 4 * 4;
 }
 
+/* Every name the reader asks netcdf-c for lands in a buffer of NC_MAX_NAME + 1 bytes. */
 static int name(header_walk *w)
 {
     uint64_t n;
-    return count(w, &n) && n > 0 && padded(n) > 0 && take(w, NULL, padded(n));
+    if (!count(w, &n))
+        return 0;
+    if (n == 0 || n > NC_MAX_NAME) {
+        w->why = n ? "a name longer than NC_MAX_NAME bytes" : "an empty name";
+        return 0;
+    }
+    return take(w, NULL, padded(n));
 }
 
 /* The size of one value of a NetCDF external type, 0 for none. */
@@ -149,7 +161,8 @@ int netcdf_screen_header(const netcdf_reader *r, const void *memory, size_t size
         fclose(w.fp);
     if (!whole)
         return netcdf_fail(r, err, SLOWSCAN_EIO, "cannot read it as NetCDF: its header is "
-                           "corrupt (a count near byte %llu runs past the end of the file)",
+                           "corrupt (%s near byte %llu)",
+                           w.why ? w.why : "a count that runs past the end of the file",
                            (unsigned long long)w.pos);
     return SLOWSCAN_OK;
 }
