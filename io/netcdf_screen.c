@@ -140,13 +140,10 @@ int netcdf_screen_header(const netcdf_reader *r, const void *memory, size_t size
     header_walk w = {.mem = memory, .size = size};
     struct stat st;
     if (!memory) {
-        /* a file that cannot be opened or sized here is left to nc_open's own message */
-        if (!(w.fp = fopen(r->path, "rb")))
+        /* a file that cannot be opened or sized here is left to nc_open's own message; only
+         * regular files are opened (opening a FIFO would wait for its writer) */
+        if (stat(r->path, &st) != 0 || !S_ISREG(st.st_mode) || !(w.fp = fopen(r->path, "rb")))
             return SLOWSCAN_OK;
-        if (fstat(fileno(w.fp), &st) != 0 || !S_ISREG(st.st_mode)) {
-            fclose(w.fp);
-            return SLOWSCAN_OK;
-        }
         w.size = (uint64_t)st.st_size;
     }
     int classic = take(&w, magic, 4) && memcmp(magic, "CDF", 3) == 0 &&
