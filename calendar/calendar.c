@@ -165,6 +165,11 @@ int slowscan_calendar_check(calendar_kind kind, const calendar_date *t)
 {
     if (!t || t->year > YEAR_LIMIT || t->year < -YEAR_LIMIT)
         return SLOWSCAN_EINVAL;
+    /* an offset could move the instant out of the limit years, where no date could be given
+     * back for its day number (fuzzing: -5000000-1-1+05 on julian,
+     * tests/fuzz/regressions/dates/year-limit-offset) */
+    if (t->offset_minutes != 0 && (t->year == YEAR_LIMIT || t->year == -YEAR_LIMIT))
+        return SLOWSCAN_EINVAL;
     int days = slowscan_calendar_month_days(kind, t->year, t->month);
     if (days == 0 || t->day < 1 || t->day > days || t->hour < 0 || t->hour > 23 ||
         t->minute < 0 || t->minute > 59 || !(t->second >= 0.0 && t->second < 60.0) ||
