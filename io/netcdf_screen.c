@@ -15,6 +15,7 @@
 
 #include <stdint.h>
 #include <stdio.h>
+#include <stdlib.h>
 #include <string.h>
 #include <sys/stat.h>
 
@@ -25,6 +26,10 @@ typedef struct {
     int wide;                 /* CDF-5: counts are 8 bytes */
     int offset_bytes;         /* where a variable's data begin: 4 (CDF-1) or 8 */
     const char *why;          /* what was wrong, when not a count past the end */
+    uint64_t dims;            /* dimensions read so far */
+    uint64_t *lengths;        /* their lengths (dims of them) */
+    uint64_t unlimited;       /* the record dimension's id, UINT64_MAX: none */
+    int records;              /* some variable runs along the record dimension */
 } header_walk;
 
 /* n bytes into out (NULL: skipped); 0 past the end of the file. */
@@ -112,32 +117,75 @@ static int attribute(header_walk *w)
 static int dimension(header_walk *w)
 {
     uint64_t length;
-    return name(w) && count(w, &length);
+    if (!name(w) || !count(w, &length))
+        return 0;
+    if (length == 0 && w->unlimited == UINT64_MAX)
+        w->unlimited = w->dims;
+    w->lengths[w->dims++] = length;
+    return 1;
 }
 
+/* The dimension list, keeping the lengths (a dimension takes at least 12 bytes, so their
+ * count is bounded by the file before anything is allocated). */
+static int dimensions(header_walk *w)
+{
+    uint64_t tag, n;
+    if (!number(w, 4, &tag) || !count(w, &n) || (tag != 0x0A && (tag != 0 || n != 0)) ||
+        n > w->size / 12 || !(w->lengths = calloc(n ? (size_t)n : 1, sizeof *w->lengths)))
+        return 0;
+    for (uint64_t k = 0; k < n; k++)
+        if (!dimension(w))
+            return 0;
+    return 1;
+}
+
+/* A variable holds at least one byte per element (per record for a record variable), so no
+ * dimension of a variable but the record one can be longer than the file (fuzzing: a member
+ * dimension of 268435458 in 453 bytes, whose coordinates the reader then tried to allocate). */
 static int variable(header_walk *w)
 {
-    uint64_t ndims, type, vsize, begin;
-    int width = w->wide ? 8 : 4;
-    if (!name(w) || !count(w, &ndims) || ndims > (w->size - w->pos) / (uint64_t)width ||
-        !take(w, NULL, ndims * (uint64_t)width))
+    uint64_t ndims, type, vsize, begin, id, first = UINT64_MAX;
+    int width = w->wide ? 8 : 4, fixed_too_long = 0;
+    if (!name(w) || !count(w, &ndims) || ndims > (w->size - w->pos) / (uint64_t)width)
         return 0;
+    for (uint64_t k = 0; k < ndims; k++) {
+        if (!count(w, &id))
+            return 0;
+        if (k == 0)
+            first = id;
+        fixed_too_long |= id < w->dims && w->lengths[id] > w->size;
+    }
+    w->records |= ndims > 0 && first == w->unlimited;
+    if (fixed_too_long) {
+        w->why = "a dimension longer than the file";
+        return 0;
+    }
     return list(w, 0x0C, attribute) && number(w, 4, &type) && type_size(type) &&
            count(w, &vsize) && number(w, w->offset_bytes, &begin);
 }
 
+/* A record takes at least a byte of each record variable, so a record count larger than the
+ * file is corrupt (fuzzing: 4160749317 records in 1 kB, which the reader then tried to
+ * allocate a time axis for); all ones is netcdf-c's "streaming" (count unknown). */
 static int walk(header_walk *w)
 {
     uint64_t numrecs;
-    return count(w, &numrecs) && list(w, 0x0A, dimension) && list(w, 0x0C, attribute) &&
-           list(w, 0x0B, variable);
+    if (!count(w, &numrecs) || !dimensions(w) || !list(w, 0x0C, attribute) ||
+        !list(w, 0x0B, variable))
+        return 0;
+    uint64_t streaming = w->wide ? UINT64_MAX : UINT32_MAX;
+    if (w->records && numrecs != streaming && numrecs > w->size) {
+        w->why = "a record count larger than the file";
+        return 0;
+    }
+    return 1;
 }
 
 int netcdf_screen_header(const netcdf_reader *r, const void *memory, size_t size,
                          io_error *err)
 {
     unsigned char magic[4];
-    header_walk w = {.mem = memory, .size = size};
+    header_walk w = {.mem = memory, .size = size, .unlimited = UINT64_MAX};
     struct stat st;
     if (!memory) {
         /* a file that cannot be opened or sized here is left to nc_open's own message; only
@@ -156,6 +204,7 @@ int netcdf_screen_header(const netcdf_reader *r, const void *memory, size_t size
     }
     if (w.fp)
         fclose(w.fp);
+    free(w.lengths);
     if (!whole)
         return netcdf_fail(r, err, SLOWSCAN_EIO, "cannot read it as NetCDF: its header is "
                            "corrupt (%s near byte %llu)",
