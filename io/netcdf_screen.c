@@ -27,7 +27,8 @@ typedef struct {
     int offset_bytes;         /* where a variable's data begin: 4 (CDF-1) or 8 */
     const char *why;          /* what was wrong, when not a count past the end */
     uint64_t dims;            /* dimensions read so far */
-    uint64_t *lengths;        /* their lengths (dims of them) */
+    uint64_t *lengths;        /* their lengths (dims of them, room for cap) */
+    size_t cap;
     uint64_t unlimited;       /* the record dimension's id, UINT64_MAX: none */
     int records;              /* some variable runs along the record dimension */
 } header_walk;
@@ -121,21 +122,11 @@ static int dimension(header_walk *w)
         return 0;
     if (length == 0 && w->unlimited == UINT64_MAX)
         w->unlimited = w->dims;
-    w->lengths[w->dims++] = length;
-    return 1;
-}
-
-/* The dimension list, keeping the lengths (a dimension takes at least 12 bytes, so their
- * count is bounded by the file before anything is allocated). */
-static int dimensions(header_walk *w)
-{
-    uint64_t tag, n;
-    if (!number(w, 4, &tag) || !count(w, &n) || (tag != 0x0A && (tag != 0 || n != 0)) ||
-        n > w->size / 12 || !(w->lengths = calloc(n ? (size_t)n : 1, sizeof *w->lengths)))
+    /* each dimension took 12 bytes or more, so the file bounds this array */
+    if (slowscan_io_reserve((void **)&w->lengths, &w->cap, (size_t)w->dims, sizeof *w->lengths,
+                            16) != SLOWSCAN_OK)
         return 0;
-    for (uint64_t k = 0; k < n; k++)
-        if (!dimension(w))
-            return 0;
+    w->lengths[w->dims++] = length;
     return 1;
 }
 
@@ -170,7 +161,7 @@ static int variable(header_walk *w)
 static int walk(header_walk *w)
 {
     uint64_t numrecs;
-    if (!count(w, &numrecs) || !dimensions(w) || !list(w, 0x0C, attribute) ||
+    if (!count(w, &numrecs) || !list(w, 0x0A, dimension) || !list(w, 0x0C, attribute) ||
         !list(w, 0x0B, variable))
         return 0;
     uint64_t streaming = w->wide ? UINT64_MAX : UINT32_MAX;
