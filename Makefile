@@ -8,6 +8,7 @@
 #   make demo       screen the bundled demo data, draw its figures (demo-output/), print the table
 #   make bench      speed ratios, measured in one run
 #   make validate   the calibration battery at scale, four nulls (~20-30 min): build/validate.md
+#   make fuzz       FUZZ_SECONDS=60: each libFuzzer harness of tests/fuzz/ in turn (clang)
 #   make install    PREFIX=/usr/local DESTDIR=   (binary, libraries, headers, man page, slowscan.pc)
 # `check` and `demo` first install missing Debian packages (scripts/install-deps.sh).
 
@@ -58,7 +59,7 @@ SCLI_OBJ  := $(CLI_SRC:%.c=$(B)/asan/%.o)
 STEST_OBJ := $(TEST_SRC:%.c=$(B)/asan/%.o)
 BENCH_BIN := $(BENCH_SRC:bench/%.c=$(B)/bench/%)
 
-.PHONY: all deps check python-check memcheck demo bench validate install install-python clean lib-sources
+.PHONY: all deps check python-check memcheck demo bench validate install install-python clean lib-sources fuzz fuzz-deps
 # Programs link the static archives: the binary then runs from the build tree and from any
 # prefix without a library path, and the tests may reach module internals.
 STATIC_LIBS := $(B)/libslowscan-report.a $(B)/libslowscan.a
@@ -135,7 +136,8 @@ $(B)/bench/%: bench/%.c $(BENCH_LIB) $(wildcard bench/common/*.h) $(STATIC_LIBS)
 # The sanitized run goes ahead when the plain one fails (the calibration battery fails there
 # until the fixes it measures land); check fails if either did.
 check: deps
-	@$(MAKE) --no-print-directory all $(B)/run_tests $(B)/asan/slowscan $(B)/asan/run_tests $(CHECK_MPI)
+	@$(MAKE) --no-print-directory all $(B)/run_tests $(B)/asan/slowscan $(B)/asan/run_tests $(CHECK_MPI) \
+	  $(B)/fuzz_replay $(B)/asan/fuzz_replay
 	plain=0; SLOWSCAN_BIN=$(B)/slowscan SLOWSCAN_LABEL=plain $(B)/run_tests || plain=1; \
 	ASAN_OPTIONS=detect_leaks=1:abort_on_error=0 UBSAN_OPTIONS=print_stacktrace=1 \
 	  LSAN_OPTIONS=suppressions=$(CURDIR)/tests/lsan.supp:print_suppressions=0 \
@@ -156,6 +158,65 @@ memcheck:
 	@sh scripts/install-deps.sh valgrind
 	@$(MAKE) --no-print-directory $(B)/slowscan $(B)/run_tests
 	sh scripts/memcheck.sh $(B)
+
+# Fuzzing (tests/fuzz/, DEVELOPERS.md). The harnesses built without libFuzzer (-DFUZZ_REPLAY)
+# with a main that replays the committed corpus and regression inputs: suite `fuzz` of make
+# check runs build/fuzz_replay and build/asan/fuzz_replay.
+FUZZ_NAMES := csv dates netcdf options lengths
+FUZZ_HARNESS_SRC := $(FUZZ_NAMES:%=tests/fuzz/fuzz_%.c) tests/fuzz/fuzz_common.c
+REPLAY_SRC := tests/fuzz/replay.c $(FUZZ_HARNESS_SRC)
+$(B)/obj/tests/fuzz/%.o $(B)/asan/tests/fuzz/%.o: WARN += -DFUZZ_REPLAY
+$(B)/fuzz_replay: $(REPLAY_SRC:%.c=$(B)/obj/%.o) $(filter-out $(B)/obj/cli/entry.o,$(CLI_OBJ)) $(STATIC_LIBS)
+	$(CC) $(CFLAGS) -o $@ $^ $(LIBS)
+$(B)/asan/fuzz_replay: $(REPLAY_SRC:%.c=$(B)/asan/%.o) $(filter-out $(B)/asan/cli/entry.o,$(SCLI_OBJ)) $(SLIB_OBJ)
+	$(CC) $(SAN) -o $@ $^ $(LIBS)
+
+# `make fuzz`: every source built again by clang with libFuzzer's coverage and ASan + UBSan
+# (build/fuzz/), one program per harness, each run for FUZZ_SECONDS on its seed corpus
+# (tests/fuzz/corpus/NAME) and regressions, one after another. New inputs go to
+# FUZZ_SCRATCH/NAME (outside the repository's tracked files), crashes to FUZZ_SCRATCH/NAME-*.
+# Only a minimised corpus is committed (DEVELOPERS.md says how).
+FUZZ_CC ?= clang
+FUZZ_SECONDS ?= 60
+FUZZ_SCRATCH ?= $(B)/fuzz-scratch
+FUZZ_FLAGS := -g -O1 -fno-omit-frame-pointer -fsanitize=address,undefined -fno-sanitize-recover=undefined
+FUZZ_RUN_FLAGS := -rss_limit_mb=2048 -timeout=10 -print_final_stats=1
+# netcdf-c allocates names, attributes and tables as large as the header says (up to 2^64
+# bytes in CDF-5) before it finds the file shorter, and does not check every allocation
+# (DEVELOPERS.md, Fuzzing); under ASan even a lazily mapped allocation makes its shadow
+# resident. For that harness an allocation over 2 GiB returns NULL instead of ending the run,
+# and the run goes on past a crash or memory overflow (-fork=1 -ignore_*): each input kept in
+# FUZZ_SCRATCH/netcdf-* is then replayed to tell netcdf-c's failures from the reader's.
+FUZZ_ENV_netcdf := ASAN_OPTIONS=allocator_may_return_null=1:max_allocation_size_mb=2048
+FUZZ_FLAGS_netcdf := -fork=1 -ignore_crashes=1 -ignore_ooms=1 -ignore_timeouts=1
+FUZZ_OBJ := $(patsubst %.c,$(B)/fuzz/obj/%.o,$(LIB_SRC) $(filter-out cli/entry.c,$(CLI_SRC)))
+FUZZ_BIN := $(FUZZ_NAMES:%=$(B)/fuzz/fuzz_%)
+# keep the harness objects (make would delete them as intermediates of the pattern rule)
+.SECONDARY: $(FUZZ_NAMES:%=$(B)/fuzz/obj/tests/fuzz/fuzz_%.o) $(B)/fuzz/obj/tests/fuzz/fuzz_common.o
+$(B)/fuzz/obj/%.o: %.c
+	@mkdir -p $(dir $@)
+	@echo "CC(fuzz) $<"; $(FUZZ_CC) $(FUZZ_FLAGS) -fsanitize=fuzzer-no-link $(WARN) $(INCS) -MMD -MP -c $< -o $@
+$(B)/fuzz/libfuzzed.a: $(FUZZ_OBJ)
+	@rm -f $@
+	ar rcs $@ $^
+# -u slowscan_version: the archive member whose constructor turns GSL's aborting handler off.
+$(B)/fuzz/fuzz_%: $(B)/fuzz/obj/tests/fuzz/fuzz_%.o $(B)/fuzz/obj/tests/fuzz/fuzz_common.o $(B)/fuzz/libfuzzed.a
+	$(FUZZ_CC) $(FUZZ_FLAGS) -fsanitize=fuzzer -Wl,-u,slowscan_version -o $@ $^ $(LIBS)
+
+fuzz-deps: deps
+	@sh scripts/install-deps.sh clang
+	@sh scripts/install-deps.sh libclang-rt-$$($(FUZZ_CC) -dumpversion | cut -d. -f1)-dev
+
+# One harness's run (a shell command): its scratch corpus first (libFuzzer writes new inputs
+# to the first folder), then the committed seeds and regressions.
+FUZZ_RUN = mkdir -p $(FUZZ_SCRATCH)/$(1) tests/fuzz/regressions/$(1) && \
+  echo "== fuzz $(1) for $(FUZZ_SECONDS) s" && \
+  $(FUZZ_ENV_$(1)) $(B)/fuzz/fuzz_$(1) $(FUZZ_RUN_FLAGS) $(FUZZ_FLAGS_$(1)) -max_total_time=$(FUZZ_SECONDS) \
+    -artifact_prefix=$(FUZZ_SCRATCH)/$(1)- $(FUZZ_SCRATCH)/$(1) \
+    tests/fuzz/corpus/$(1) tests/fuzz/regressions/$(1)
+fuzz: fuzz-deps
+	@$(MAKE) --no-print-directory $(FUZZ_BIN)
+	@$(foreach h,$(FUZZ_NAMES),$(call FUZZ_RUN,$(h)) && ) true
 
 # The calibration battery of `make check` with more series and every memory-keeping null.
 VALIDATE_OBJ := $(B)/obj/tests/validate/validate.o $(B)/obj/tests/check.o \

@@ -269,6 +269,11 @@ static void series_name(netcdf_reader *r, const netcdf_variable *v, netcdf_serie
 
 int slowscan_netcdf_next(netcdf_reader *r, netcdf_series *s, io_error *err)
 {
+    /* a variable with an empty dimension besides time (an unlimited one still at length 0)
+     * has no cell: handing one out divided by its count of 0 (found by fuzzing,
+     * tests/fuzz/regressions/netcdf/empty-dimension-no-cells) */
+    while (r->var_at < r->nvars && r->vars[r->var_at].ncells == 0)
+        r->var_at++;
     if (r->var_at >= r->nvars)
         return NETCDF_END;
     const netcdf_variable *v = &r->vars[r->var_at];

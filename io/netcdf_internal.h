@@ -63,6 +63,18 @@ struct netcdf_reader {
     char name[512];                /* the current series' name */
 };
 
+/* slowscan_netcdf_open on a file held in memory (nc_open_mem; `memory` must stay untouched
+ * until the reader is closed), `name` standing for the file in messages. Not public: the
+ * fuzzing harness (tests/fuzz/fuzz_netcdf.c) reads its inputs through it, without a file. */
+int netcdf_open_memory(const char *name, void *memory, size_t size,
+                       const netcdf_read_options *options, netcdf_reader **reader, io_error *err);
+
+/* Walks the header of a classic-format file (the file at r->path, or the `size` bytes at
+ * memory) and refuses, with a message, one whose counts run past the end of the file, before
+ * netcdf-c reads it (netcdf_screen.c says why). Other formats pass untouched. */
+int netcdf_screen_header(const netcdf_reader *r, const void *memory, size_t size,
+                         io_error *err);
+
 /* Formats into err the message "PATH: what" and returns status (io_fail with the file). */
 int netcdf_fail(const netcdf_reader *r, io_error *err, int status, const char *fmt, ...)
     __attribute__((format(printf, 4, 5)));

@@ -5,6 +5,7 @@
 
 #include <math.h>
 #include <netcdf.h>
+#include <netcdf_mem.h>
 #include <stdarg.h>
 #include <stdlib.h>
 #include <string.h>
@@ -302,9 +303,17 @@ static int named_variables(netcdf_reader *r, io_error *err)
     return st;
 }
 
-static int open_file(netcdf_reader *r, const char *path, io_error *err)
+/* memory NULL: the file at path; else the `size` bytes at memory (netcdf_open_memory), with
+ * path only naming them in messages. Everything after the open is the same. */
+static int open_file(netcdf_reader *r, const char *path, void *memory, size_t size,
+                     io_error *err)
 {
-    int st = nc_open(path, NC_NOWRITE, &r->ncid);
+    r->ncid = -1;
+    int st = netcdf_screen_header(r, memory, size, err);
+    if (st != SLOWSCAN_OK)
+        return st;
+    st = memory ? nc_open_mem(path, NC_NOWRITE, size, memory, &r->ncid)
+                : nc_open(path, NC_NOWRITE, &r->ncid);
     if (st != NC_NOERR) {
         r->ncid = -1;
         return netcdf_fail(r, err, SLOWSCAN_EIO, "cannot read it as NetCDF: %s",
@@ -324,8 +333,8 @@ static int open_file(netcdf_reader *r, const char *path, io_error *err)
     return st;
 }
 
-int slowscan_netcdf_open(const char *path, const netcdf_read_options *options,
-                         netcdf_reader **reader, io_error *err)
+static int open_reader(const char *path, void *memory, size_t size,
+                       const netcdf_read_options *options, netcdf_reader **reader, io_error *err)
 {
     *reader = NULL;
     if (err)
@@ -336,13 +345,25 @@ int slowscan_netcdf_open(const char *path, const netcdf_read_options *options,
         return io_fail(err, SLOWSCAN_ENOMEM, "%s: out of memory", path);
     }
     r->options = options ? *options : slowscan_netcdf_read_options_default();
-    int st = open_file(r, path, err);
+    int st = open_file(r, path, memory, size, err);
     if (st != SLOWSCAN_OK) {
         slowscan_netcdf_close(r);
         return st;
     }
     *reader = r;
     return SLOWSCAN_OK;
+}
+
+int slowscan_netcdf_open(const char *path, const netcdf_read_options *options,
+                         netcdf_reader **reader, io_error *err)
+{
+    return open_reader(path, NULL, 0, options, reader, err);
+}
+
+int netcdf_open_memory(const char *name, void *memory, size_t size,
+                       const netcdf_read_options *options, netcdf_reader **reader, io_error *err)
+{
+    return open_reader(name, memory, size, options, reader, err);
 }
 
 void slowscan_netcdf_close(netcdf_reader *r)

@@ -34,12 +34,24 @@ static int near(double a, double b)
 
 static const double TROPICAL_YEAR_SECONDS = 3.15569259747e7;
 
+/* A unit word UDUNITS-2 is asked about: letters and underscores only (days, hr, s,
+ * common_year). Found by fuzzing (tests/fuzz/regressions/dates/): ut_parse leaks the name its
+ * scanner copied when the grammar then fails ("01--0s"), so words with digits, signs or
+ * operators, which no CF time unit needs, are refused before it sees them. */
+static int plain_word(const char *word)
+{
+    for (const char *c = word; *c; c++)
+        if (!isalpha((unsigned char)*c) && *c != '_')
+            return 0;
+    return *word != '\0';
+}
+
 /* Seconds in one `word`, or NaN when UDUNITS-2 does not know it as a time. */
 static double unit_seconds(const char *word, int *no_database)
 {
     pthread_once(&unit_system_once, load_unit_system);
     *no_database = !unit_system || !second_unit;
-    if (*no_database)
+    if (*no_database || !plain_word(word))
         return NAN;
     ut_unit *unit = ut_parse(unit_system, word, UT_ASCII);
     double seconds = NAN;

@@ -1,6 +1,7 @@
 #!/bin/sh
 # Installs what slowscan needs to build, test and draw, if it is missing; arguments name
-# further Debian packages (make memcheck passes valgrind).
+# further Debian packages (make memcheck passes valgrind,
+# make fuzz clang and libclang-rt-NN-dev).
 # On Debian (or a derivative) as root it runs apt-get; elsewhere it prints the list.
 set -e
 PKGS="gcc make pkg-config libopenmpi-dev openmpi-bin libfftw3-dev libgsl-dev libcsv-dev libnetcdf-dev libudunits2-dev libplplot-dev

@@ -52,6 +52,7 @@ void suite_tail(void);
 void suite_hostile(void);
 void suite_edges(void);
 void suite_limits(void);
+void suite_fuzz(void);
 
 static const struct {
     const char *name;
@@ -71,6 +72,7 @@ static const struct {
     {"series_calls", suite_series_calls},
     {"timescales", suite_timescales}, {"emulate", suite_emulate}, {"forced", suite_forced},
     {"tail", suite_tail},             {"hostile", suite_hostile},
+    {"fuzz", suite_fuzz},
     {"calendar", suite_calendar},
     {"time_column", suite_time_column}, {"netcdf", suite_netcdf},
     {"maps", suite_maps},

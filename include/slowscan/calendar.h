@@ -64,7 +64,8 @@ int slowscan_calendar_month_days(calendar_kind kind, long year, int month);
 
 /* SLOWSCAN_OK when *date exists in the calendar (fields in range, the day within its month,
  * not in the dropped days 1582-10-05..14 of the standard calendar), else SLOWSCAN_EINVAL.
- * Years are limited to |year| <= 5000000 so that day numbers stay exact in a double. */
+ * Years are limited to |year| <= 5000000 so that day numbers stay exact in a double; in the
+ * two limit years a UTC offset is refused (it could move the instant beyond them). */
 SLOWSCAN_API
 int slowscan_calendar_check(calendar_kind kind, const calendar_date *date);
 
