@@ -196,6 +196,34 @@ static size_t candidates(const row *a, size_t m, double fdr, int *cand)
     return size;
 }
 
+/* The cache of reference p-values: lines "k j p surrogates". */
+static size_t load_cache(const char *path, size_t series, row *f, int *cached)
+{
+    FILE *fp = path ? fopen(path, "r") : NULL;
+    size_t k, j, count = 0;
+    double p;
+    long m;
+    while (fp && fscanf(fp, "%zu %zu %lf %ld", &k, &j, &p, &m) == 4)
+        if (k < series && j < TESTS) {
+            f[k * TESTS + j] = (row){p, m, 0, 0};
+            count += j == 0 && !cached[k];
+            cached[k] = 1;
+        }
+    if (fp)
+        fclose(fp);
+    return count;
+}
+
+static void save_cache(const char *path, size_t series, const row *f, const int *add)
+{
+    FILE *fp = path ? fopen(path, "a") : NULL;
+    for (size_t k = 0; fp && k < series; k++)
+        for (size_t j = 0; add[k] && j < TESTS; j++)
+            fprintf(fp, "%zu %zu %.17g %ld\n", k, j, f[k * TESTS + j].p, f[k * TESTS + j].surrogates);
+    if (fp)
+        fclose(fp);
+}
+
 int main(int argc, char **argv)
 {
     size_t series = argc > 1 ? strtoul(argv[1], NULL, 10) : 10000, m = series * TESTS;
@@ -225,12 +253,33 @@ int main(int argc, char **argv)
             keep[k] |= cand[k * TESTS + j];
         subset += (size_t)keep[k];
     }
-    char cmd[2048];
-    snprintf(cmd, sizeof cmd, "%s screen --surrogates %d --threads 2 --quiet %s -o %s", bin,
-             REFERENCE, sub, ref_out);
-    if (write_csv(sub, series, x, keep) != 0 || run(cmd, &t_ref) != 0 ||
-        read_summary(ref_out, f, series, 0) != subset * TESTS)
-        return 2;
+    /* BENCH_SEQUENTIAL_CACHE=FILE (for trying the procedure by hand: the reference is
+     * deterministic): the reference p of every series screened so far, read first and
+     * extended; only the candidate series not in it are screened. */
+    const char *cache = getenv("BENCH_SEQUENTIAL_CACHE");
+    int *cached = calloc(series, sizeof *cached), *need = calloc(series, sizeof *need);
+    size_t known = load_cache(cache, series, f, cached), fresh = 0;
+    for (size_t k = 0; k < series; k++)
+        fresh += (size_t)(need[k] = keep[k] && !cached[k]);
+    t_ref = 0;
+    if (fresh > 0) {
+        char cmd[2048];
+        row *g = calloc(m, sizeof *g);
+        snprintf(cmd, sizeof cmd, "%s screen --surrogates %d --threads 2 --quiet %s -o %s", bin,
+                 REFERENCE, sub, ref_out);
+        if (write_csv(sub, series, x, need) != 0 || run(cmd, &t_ref) != 0 ||
+            read_summary(ref_out, g, series, 0) != fresh * TESTS)
+            return 2;
+        for (size_t i = 0; i < m; i++)
+            if (need[i / TESTS])
+                f[i] = g[i];
+        save_cache(cache, series, f, need);
+        free(g);
+    }
+    printf("  reference: %zu candidate series, %zu from the cache (%zu series in it), %zu "
+           "screened now\n", subset, subset - fresh, known, fresh);
+    subset = fresh; /* the timing below is of those screened now */
+    free(cached), free(need);
     for (size_t i = 0; i < m; i++)
         p[i] = keep[i / TESTS] ? f[i].p : 1.0;
     size_t reference = bh(p, m, 0.05, ref), undecided = 0, found = 0, both = 0, extra = 0;

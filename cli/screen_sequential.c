@@ -188,6 +188,51 @@ static int plan_next(screen_sequential *q, size_t *total)
     return EXIT_OK;
 }
 
+static int by_value(const void *a, const void *b)
+{
+    double x = *(const double *)a, y = *(const double *)b;
+    return (x > y) - (x < y);
+}
+
+/* SLOWSCAN_SEQUENTIAL_TRACE=1 (not a user setting; for the bench's diagnosis): after each
+ * round, where its surrogates went and what is still open, on stderr. */
+static void trace_round(const screen_sequential *q, size_t drawn_before, size_t add_next)
+{
+    if (!getenv("SLOWSCAN_SEQUENTIAL_TRACE"))
+        return;
+    size_t open_tests = 0, open_series = 0, at_cap = 0, cut = 0, asked = 0;
+    double *ratio = malloc((q->series * q->per_series + 1) * sizeof *ratio), *hat = NULL;
+    hat = malloc((q->series * q->per_series + 1) * sizeof *hat);
+    for (size_t g = 0; ratio && hat && g < q->series; g++) {
+        size_t want = q->drawn[g] ? q->drawn[g] : q->cfg.first_round;
+        size_t room = q->cfg.max_per_series - q->drawn[g];
+        want = want < room ? want : room;
+        open_series += q->open[g] != 0;
+        asked += q->open[g] ? want : 0;
+        cut += q->open[g] && q->add[g] < want;
+        for (size_t j = 0; j < q->per_series; j++) {
+            const sequential_test *t = &q->tests[g * q->per_series + j];
+            if (t->decision != SEQUENTIAL_OPEN || !t->tested)
+                continue;
+            at_cap += q->drawn[g] >= q->cfg.max_per_series;
+            ratio[open_tests] = t->lo > 0 ? t->hi / t->lo : INFINITY;
+            hat[open_tests++] = (1.0 + (double)t->hits) / (1.0 + (double)t->drawn);
+        }
+    }
+    if (ratio && hat && open_tests) {
+        qsort(ratio, open_tests, sizeof *ratio, by_value);
+        qsort(hat, open_tests, sizeof *hat, by_value);
+    }
+    fprintf(stderr, "trace round %zu: drew %zu; open tests %zu (series %zu, %zu tests at the "
+                    "cap); hi/lo of open: median %.3g max %.3g; p of open: %.3g..%.3g; next "
+                    "round asks %zu, gets %zu (%zu series cut); budget left %zu\n",
+            q->rounds, q->spent - drawn_before, open_tests, open_series, at_cap,
+            open_tests ? ratio[open_tests / 2] : NAN, open_tests ? ratio[open_tests - 1] : NAN,
+            open_tests ? hat[0] : NAN, open_tests ? hat[open_tests - 1] : NAN, asked, add_next,
+            cut, q->budget > q->spent ? q->budget - q->spent : 0);
+    free(ratio), free(hat);
+}
+
 int cli_sequential_run(const cli_options *opts, const cli_inputs *in, screen_run *run,
                        size_t total, int (*refuse)(const cli_options *, const screen_batch_failure *))
 {
@@ -206,6 +251,7 @@ int cli_sequential_run(const cli_options *opts, const cli_inputs *in, screen_run
     int rc = EXIT_OK;
     size_t rounds = slowscan_sequential_max_rounds(&q->cfg); /* the risk is spread over these */
     for (int first = 1; rc == EXIT_OK && (first || add > 0) && q->rounds < rounds; first = 0) {
+        size_t before = q->spent;
         rc = run_round(opts, in, run, q, first, refuse);
         q->rounds++;
         if (first) {
@@ -215,6 +261,8 @@ int cli_sequential_run(const cli_options *opts, const cli_inputs *in, screen_run
         }
         if (rc == EXIT_OK && (rc = plan_next(q, &add)) != EXIT_OK)
             cli_error("out of memory");
+        if (rc == EXIT_OK)
+            trace_round(q, before, add);
     }
     /* the budget is spent: the open tests against BH's threshold on the reported p */
     if (rc == EXIT_OK && slowscan_sequential_finish(&q->cfg, q->tests, total * q->per_series,
