@@ -2,7 +2,7 @@
  * number of surrogates M = 10^4 taken as the reference.
  *
  * Data: S series (default 10^4; `bench_sequential S B E` for fewer, B the budget per series,
- * default 1000; E, --risk, default 0.001) of 500 samples; every 100th
+ * default 1000; E, --risk, default 0.01) of 500 samples; every 100th
  * is AR(1) with its coefficient rising linearly from 0.2 to 0.9, the rest AR(1) with a
  * stationary coefficient 0.5 (GSL mt19937, seed 16). Default indicators (variance, lag1) and
  * recovery_trend: 3 tests per series.
@@ -157,7 +157,7 @@ static int run(const char *cmd, double *seconds)
 
 /* The auto run over `series` series of x into a[]: its time and surrogates. */
 static unsigned long per_series_budget = 1000; /* `bench_sequential S B`: B per series */
-static const char *risk = "0.001";              /* `bench_sequential S B E`: --risk E */
+static const char *risk = "0.01";               /* `bench_sequential S B E`: --risk E */
 
 static int auto_run(const char *bin, const char *csv, const char *out, size_t series, row *a,
                     double *seconds, size_t *drawn)

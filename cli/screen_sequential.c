@@ -18,7 +18,7 @@
 
 int cli_sequential_check(const cli_options *opts)
 {
-    int risk = opts->risk != 1e-3 || opts->risk_joint;
+    int risk = opts->risk != 1e-2 || opts->risk_joint;
     if (!opts->surrogates_auto && (opts->budget > 0 || opts->max_per_series != 100000 || risk)) {
         cli_error("option %s: only with --surrogates auto",
                   opts->budget > 0                ? "--budget"
