@@ -38,19 +38,10 @@ static void decide_counts(sequential_test *t)
                                  .drawn = drawn[k % 10] * (1 + k / 10)};
 }
 
-/* One round's decisions (and, with finish, the end's) in risk mode `joint` against
- * sequential_decide.py. */
-static void decide_against_reference(int joint, int finish)
+/* The levels of a test's intervals under cfg's risk (joint: divided by the tests). */
+static void spending_levels(const sequential_config *c, int joint)
 {
-    sequential_config cfg = slowscan_sequential_config_default();
-    cfg.fdr = 0.1;
-    cfg.joint = joint;
-    sequential_test t[DECIDE_TESTS];
-    decide_counts(t);
-    size_t open = 0;
-    CHECK(slowscan_sequential_decide(&cfg, t, DECIDE_TESTS, &open) == SLOWSCAN_OK, "decide");
-    if (finish)
-        CHECK(slowscan_sequential_finish(&cfg, t, DECIDE_TESTS, &open) == SLOWSCAN_OK, "finish");
+    sequential_config cfg = *c;
     /* the risk spent over the draws (Gandy 2009 spends a test's risk over its samples;
      * Gandy & Hahn's MMCTest over its testing times): an interval at n draws after one at n'
      * has level epsilon (F(n) - F(n')), F(n) = (n / K + log(1 + n/64) / log(1 + K/64)) / 2,
@@ -69,6 +60,22 @@ static void decide_against_reference(int joint, int finish)
     CHECK(slowscan_sequential_alpha_at(&even, DECIDE_TESTS, 64, 128) ==
               e / (double)slowscan_sequential_max_rounds(&cfg),
           "the even split: epsilon / R per round (joint %d)", joint);
+}
+
+/* One round's decisions (and, with finish, the end's) in risk mode `joint` against
+ * sequential_decide.py. */
+static void decide_against_reference(int joint, int finish)
+{
+    sequential_config cfg = slowscan_sequential_config_default();
+    cfg.fdr = 0.1;
+    cfg.joint = joint;
+    sequential_test t[DECIDE_TESTS];
+    decide_counts(t);
+    size_t open = 0;
+    CHECK(slowscan_sequential_decide(&cfg, t, DECIDE_TESTS, &open) == SLOWSCAN_OK, "decide");
+    if (finish)
+        CHECK(slowscan_sequential_finish(&cfg, t, DECIDE_TESTS, &open) == SLOWSCAN_OK, "finish");
+    spending_levels(&cfg, joint);
     double ref[3 * DECIDE_TESTS];
     char path[512], cmd[1024];
     snprintf(path, sizeof path, "%s", check_tmp_path("sequential_counts.txt"));
