@@ -521,8 +521,10 @@ void cli_sequential_report(const cli_options *opts, const screen_sequential *q)
 void cli_sequential_json(FILE *fp, const screen_sequential *q)
 {
     fprintf(fp, "  \"sequential\": {\n    \"procedure\": \"rounds of surrogates; Clopper-Pearson "
-                "intervals of every Monte Carlo p (level 1 - epsilon / max_rounds per round and "
-                "test, or with risk 'joint' 1 - epsilon / (tests x max_rounds)); "
+                "intervals of every Monte Carlo p (an interval at n draws after one at n' has "
+                "level 1 - epsilon (F(n) - F(n')), F(n) = (n / K + log(1 + n / first_round) / "
+                "log(1 + K / first_round)) / 2, K = max_per_series; with risk 'joint' epsilon is "
+                "divided by the tests); "
                 "Benjamini-Hochberg on their upper and lower limits settles each test "
                 "(after Gandy and Hahn's MMCTest and QuickMMCTest); when the budget is spent, "
                 "open tests whose interval lies on one side of BH's threshold on the reported p "
