@@ -448,6 +448,7 @@ typedef struct {
     struct journal *journal; /* NULL without --resume */
     char path[4200];
     size_t replayed;         /* series the journal gave back */
+    size_t rounds;           /* --surrogates auto: rounds it gave back (counted by the replay) */
 } cli_resume;
 int cli_resume_open(const cli_options *o,
                     int (*replay)(void *context, const void *record, size_t size),

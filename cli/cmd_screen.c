@@ -112,6 +112,8 @@ typedef struct {
     void *record;         /* the record being made */
     size_t record_cap;
     int rc; /* the exit code of a failed sink */
+    size_t rank, ranks; /* this process's share: the batch's series k is the run's
+                           replayed + k ranks + rank */
 } ordered_sink;
 
 /* A record into the run's store (the figures read each test's null from the quantiles of its
@@ -234,7 +236,8 @@ static int put_series(void *state, const screen_batch_item *item)
     const screen_result *res = item->result;
     if (sink->run->seq) { /* --surrogates auto: the rounds' p-values and counts */
         memcpy(&patched, res, sizeof patched); /* padding and all: it becomes a record */
-        cli_sequential_patch(sink->run->seq, item->index, &patched);
+        size_t g = sink->run->resume.replayed + item->index * sink->ranks + sink->rank;
+        cli_sequential_patch(sink->run->seq, g, &patched);
         res = &patched;
     }
     size_t size = make_record(ps, res, &sink->origins[item->index], &sink->record,
@@ -295,6 +298,7 @@ static int screen_share(const cli_options *opts, const cli_inputs *in, ordered_s
     if (cli_screen_source_arrays(in, src, all) != EXIT_OK)
         return EXIT_INTERNAL;
     sink->origins = src->origins;
+    sink->rank = src->rank, sink->ranks = src->ranks;
     /* this process's series: every ranks-th from its own rank, after the journal's */
     size_t left = all - src->skip;
     size_t mine = left / src->ranks + (src->rank < left % src->ranks);
@@ -343,6 +347,11 @@ static int screen_shared(const cli_options *opts, const cli_inputs *in, ordered_
 static int replay_series(void *state, const void *record, size_t size)
 {
     ordered_sink *sink = state;
+    int round = sink->run->seq ? cli_sequential_replay(sink->run->seq, record, size) : 0;
+    if (round != 0) { /* --surrogates auto: a finished round, kept for the rounds */
+        sink->run->resume.rounds += round > 0;
+        return round > 0 ? SLOWSCAN_OK : SLOWSCAN_ENOMEM;
+    }
     const void *series;
     size_t series_size;
     const char *rows;
@@ -363,27 +372,27 @@ static int run_series(const cli_options *opts, const cli_inputs *in, void *conte
     if (ens != EXIT_OK)
         return ens;
     ordered_sink sink = {.opts = opts, .run = run, .total = cli_inputs_series_count(in)};
-    /* --surrogates auto: its rounds first; the ordinary pass then draws no surrogates */
-    int rounds = opts->surrogates_auto
-                     ? cli_sequential_run(opts, in, run, sink.total, refuse_round)
-                     : EXIT_OK;
-    if (rounds != EXIT_OK)
-        return rounds;
     input_source src = {.ranks = 1, .rc = EXIT_OK};
-    cli_cursor_start(&src.cursor, opts, in);
     const cli_share *share = cli_share_get();
-    cli_progress_start(&sink.progress, opts, sink.total);
     if (share && opts->resume) {
         cli_error("option --resume: not in a run shared by several processes (journal each "
                   "job of a split field instead, and merge their summaries)");
-        cli_cursor_end(&src.cursor);
         return EXIT_BAD_INPUT;
     }
-    int rc = cli_resume_open(opts, replay_series, &sink, &run->resume);
-    src.skip = run->resume.replayed; /* the journal's series come first, in order */
+    cli_progress_start(&sink.progress, opts, sink.total);
+    /* --surrogates auto: the journal's rounds are taken back before the rounds run, its
+     * series (the ordinary pass's) to the outputs as ever */
+    int rc = opts->surrogates_auto ? cli_sequential_start(opts, run, sink.total) : EXIT_OK;
     if (rc == EXIT_OK)
-        rc = share ? screen_shared(opts, in, &sink, &src, share)
-                   : screen_share(opts, in, &sink, &src);
+        rc = cli_resume_open(opts, replay_series, &sink, &run->resume);
+    /* --surrogates auto: its rounds first; the ordinary pass then draws no surrogates */
+    if (rc == EXIT_OK && opts->surrogates_auto)
+        rc = cli_sequential_run(opts, in, run, refuse_round);
+    if (rc != EXIT_OK)
+        return rc;
+    cli_cursor_start(&src.cursor, opts, in);
+    src.skip = run->resume.replayed; /* the journal's series come first, in order */
+    rc = share ? screen_shared(opts, in, &sink, &src, share) : screen_share(opts, in, &sink, &src);
     if (rc == EXIT_OK && (!share || share->rank == 0))
         cli_report_leakage(opts, &sink.leakage);
     cli_screen_source_end(&src, sink.total);

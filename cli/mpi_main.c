@@ -155,6 +155,30 @@ static int receive(const cli_share *s, size_t from, share_kind *kind, void **dat
     return c.rc;
 }
 
+typedef struct {
+    uint64_t *values;
+    size_t count;
+} sum_call;
+
+static void sum_on_main(void *arg)
+{
+    sum_call *c = arg;
+    for (size_t done = 0; done < c->count;) { /* MPI counts are ints */
+        size_t part = c->count - done < (size_t)INT_MAX ? c->count - done : (size_t)INT_MAX;
+        MPI_Allreduce(MPI_IN_PLACE, c->values + done, (int)part, MPI_UINT64_T, MPI_SUM,
+                      MPI_COMM_WORLD);
+        done += part;
+    }
+}
+
+static int sum(const cli_share *s, uint64_t *values, size_t count)
+{
+    (void)s;
+    sum_call c = {values, count};
+    funnel(sum_on_main, &c);
+    return EXIT_OK;
+}
+
 /* A process other than 0 writes nothing and says nothing itself: process 0 prints its
  * failures from the words it sends. */
 static void silence(void)
@@ -213,7 +237,7 @@ int main(int argc, char **argv)
         MPI_Comm_size(MPI_COMM_WORLD, &ranks);
     }
     int shared = ranks > 1 && argc > 1 && strcmp(argv[1], "screen") == 0;
-    static cli_share share = {.agree = agree, .send = send, .receive = receive};
+    static cli_share share = {.agree = agree, .send = send, .receive = receive, .sum = sum};
     share.rank = (size_t)rank;
     share.ranks = (size_t)ranks;
     /* the command's own copy of the arguments: MPI_Init may rearrange argv meanwhile */

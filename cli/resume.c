@@ -125,11 +125,19 @@ int cli_resume_open(const cli_options *o, journal_replay replay, void *context,
         cli_error("option --resume: %s", err.message);
         return st == SLOWSCAN_ENOMEM ? EXIT_INTERNAL : EXIT_BAD_INPUT;
     }
-    if (r->replayed > 0 || state == JOURNAL_TORN)
+    r->replayed -= r->rounds; /* the records that are rounds of --surrogates auto */
+    if (r->rounds > 0)
+        cli_warning("%s: %zu finished rounds of --surrogates auto and %zu finished series "
+                    "taken from the journal%s", r->path, r->rounds, r->replayed,
+                    state == JOURNAL_TORN ? " (its torn last record is computed again)" : "");
+    else if (r->replayed > 0 || state == JOURNAL_TORN)
         cli_warning("%s: %zu finished series taken from the journal%s", r->path, r->replayed,
                     state == JOURNAL_TORN ? " (its torn last record is computed again)" : "");
-    cli_stop_note("; the journal keeps the finished series: run the same command with "
-                  "--resume to go on\n");
+    cli_stop_note(o->surrogates_auto
+                      ? "; the journal keeps the finished rounds and series: run the same "
+                        "command with --resume to go on\n"
+                      : "; the journal keeps the finished series: run the same command with "
+                        "--resume to go on\n");
     return EXIT_OK;
 }
 

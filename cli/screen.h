@@ -10,6 +10,8 @@
 #include "slowscan/screen_store.h"
 #include "slowscan/sequential.h"
 
+#include <stdint.h>
+
 
 /* Where a series came from: its input and, in a NetCDF grid, its place (grid_position). */
 typedef struct {
@@ -96,14 +98,26 @@ typedef struct screen_sequential {
     int *no_null;              /* per series: why it has no null (a status), 0: it has one */
     size_t *unconverged;       /* per series: iaaft draws that hit the iteration limit */
     size_t budget, spent, rounds, undecided, tested;
+    /* the round's counts as one vector (screen_sequential.c), summed over the processes of a
+     * shared run and journaled with --resume: series g's words from round_at[g], after
+     * round_head words of the processes' failures */
+    uint64_t *round;
+    size_t round_len, round_head, *round_at, failed_at;
+    void **journaled; /* --resume: the rounds the journal gave back, in order */
+    size_t *journaled_size, njournaled;
 } screen_sequential;
 
 /* Checks the options that do not go with --surrogates auto (message printed). */
 int cli_sequential_check(const cli_options *opts);
-/* The rounds over every series of `in` (total of them), then run->seq holds the decisions.
- * refuse: how a series that fails is told (the ordinary run's words). */
+/* run->seq for a run of `series` series (message printed on failure). */
+int cli_sequential_start(const cli_options *opts, screen_run *run, size_t series);
+/* A journal record (--resume) kept when it is a round of run->seq's: 1; not one: 0; -1: out
+ * of memory. */
+int cli_sequential_replay(screen_sequential *seq, const void *record, size_t size);
+/* The rounds over every series of `in` (those the journal holds taken from it; in a shared
+ * run each process draws for its own series and the counts are summed), then run->seq holds
+ * the decisions. refuse: how a series that fails is told (the ordinary run's words). */
 int cli_sequential_run(const cli_options *opts, const cli_inputs *in, screen_run *run,
-                       size_t total,
                        int (*refuse)(const cli_options *, const screen_batch_failure *));
 /* Series g's result of the ordinary pass with its sequential p-values, counts and warnings. */
 void cli_sequential_patch(const screen_sequential *seq, size_t g, screen_result *res);

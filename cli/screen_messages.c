@@ -62,7 +62,7 @@ void cli_science_defaults(const char *command, cli_options *o)
     o->null_options = c.null_options;
     o->fdr = c.fdr;
     o->max_per_series = 100000; /* --surrogates auto (sequential.h) */
-    o->risk = 1e-3;
+    o->risk = 1e-2;
     o->alternative = c.alternative;
     o->seed = c.seed;
 }

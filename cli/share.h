@@ -9,6 +9,7 @@
 #include "slowscan/io.h"
 
 #include <stddef.h>
+#include <stdint.h>
 #include <stdio.h>
 
 /* What one message between processes carries. */
@@ -30,6 +31,9 @@ struct cli_share {
      * room), its size in *size. */
     int (*receive)(const cli_share *s, size_t from, share_kind *kind, void **data,
                    size_t *size, size_t *cap);
+    /* Collective: values[count] summed element by element over every process, the sums on
+     * every process (--surrogates auto's counts after each round). */
+    int (*sum)(const cli_share *s, uint64_t *values, size_t count);
     void *state;
 };
 

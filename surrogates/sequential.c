@@ -10,8 +10,9 @@
 
 sequential_config slowscan_sequential_config_default(void)
 {
-    return (sequential_config){.fdr = 0.05, .epsilon = 1e-3, .max_per_series = 100000,
-                               .budget = 0, .first_round = 64, .block = 64, .joint = 0};
+    return (sequential_config){.fdr = 0.05, .epsilon = 1e-2, .max_per_series = 100000,
+                               .budget = 0, .first_round = 64, .block = 64, .joint = 0,
+                               .spending = SEQUENTIAL_SPEND_DRAWS};
 }
 
 size_t slowscan_sequential_max_rounds(const sequential_config *cfg)
@@ -52,13 +53,26 @@ double slowscan_sequential_alpha(const sequential_config *cfg, size_t tested)
     return cfg->epsilon / (cfg->joint ? (double)(tested ? tested : 1) * rounds : rounds);
 }
 
+double slowscan_sequential_alpha_at(const sequential_config *cfg, size_t tested, size_t from,
+                                    size_t to)
+{
+    if (cfg->spending == SEQUENTIAL_SPEND_ROUNDS)
+        return slowscan_sequential_alpha(cfg, tested);
+    /* half in proportion to the draws, half evenly over the doublings (in log n), so that a
+     * test settled after a few rounds still has a fair share */
+    double k = (double)(cfg->max_per_series ? cfg->max_per_series : 1);
+    double f = (double)(cfg->first_round ? cfg->first_round : 1);
+    double a = fmin((double)from, k), b = fmin((double)to, k);
+    double spent = 0.5 * (b - a) / k + 0.5 * (log1p(b / f) - log1p(a / f)) / log1p(k / f);
+    return cfg->epsilon * spent / (cfg->joint ? (double)(tested ? tested : 1) : 1.0);
+}
+
 int slowscan_sequential_decide(const sequential_config *cfg, sequential_test *tests,
                                size_t count, size_t *open)
 {
     size_t m = 0;
     for (size_t r = 0; r < count; r++)
         m += tests[r].tested != 0;
-    double alpha = slowscan_sequential_alpha(cfg, m);
     double *buf = calloc(3 * count + 1, sizeof *buf);
     unsigned char *sure = malloc(2 * count + 1);
     if (!buf || !sure) {
@@ -69,6 +83,8 @@ int slowscan_sequential_decide(const sequential_config *cfg, sequential_test *te
     for (size_t r = 0; r < count; r++) {
         sequential_test *t = &tests[r];
         if (t->tested && t->interval_at != t->drawn + 1) { /* +1: 0 means "none yet" */
+            size_t before = t->interval_at ? t->interval_at - 1 : 0;
+            double alpha = slowscan_sequential_alpha_at(cfg, m, before, t->drawn);
             slowscan_sequential_interval(t->hits, t->drawn, alpha, &t->lo, &t->hi);
             t->interval_at = t->drawn + 1;
         }

@@ -20,6 +20,8 @@
 #define MPI_BIN "build/slowscan-mpi"
 #define BATCH_ARGS "screen --surrogates 99 --indicators variance,lag1,recovery_trend"
 #define SHELF_ARGS "screen --deseason 12 --surrogates 99"
+#define AUTO_ARGS "screen --surrogates auto --budget 20000 --indicators variance,lag1,recovery_trend"
+#define AUTO_SHELF_ARGS "screen --deseason 12 --surrogates auto --budget 30000"
 
 /* the binaries as absolute paths (the runs change folder), the source tree */
 static char serial_bin[1100], mpi_bin[1100], root[512];
@@ -115,8 +117,9 @@ static void compare_runs(const char *label, const char *env, const char *args,
     free(want);
 }
 
-/* A series of process 1 refused: the serial run's message and exit code, no output left. */
-static void refusal_of_process_one(void)
+/* A series of process 1 refused: the serial run's message and exit code, no output left
+ * (`surrogates`: a fixed number, or auto, whose round 1 meets the refusal). */
+static void refusal_of_process_one(const char *surrogates)
 {
     /* column b (series 1, process 1's) has finite values only at its end: --deseason 10
      * finds a phase of the cycle with no sample */
@@ -139,11 +142,11 @@ static void refusal_of_process_one(void)
     snprintf(serial_dir, sizeof serial_dir, "%s", check_tmp_path("refused-serial"));
     snprintf(dir, sizeof dir, "%s", check_tmp_path("refused-shared"));
     char args[512 + 64];
-    snprintf(args, sizeof args, "screen --surrogates 19 --deseason 10 --json s.json");
+    snprintf(args, sizeof args, "screen %s --deseason 10 --json s.json", surrogates);
     int want_rc = run_in(serial_dir, 0, "", args, "", csv, &want);
     int rc = run_in(dir, 2, "", args, "", csv, &got);
-    CHECK(want_rc == 1 && rc == 1, "refusal by process 1: exit 1 like the serial run (got %d, "
-          "serial %d)", rc, want_rc);
+    CHECK(want_rc == 1 && rc == 1, "refusal by process 1 (%s): exit 1 like the serial run (got "
+          "%d, serial %d)", surrogates, rc, want_rc);
     CHECK(want && got && strcmp(want, got) == 0 && strstr(got, "column 'b'") &&
               strchr(got, '\n') == strrchr(got, '\n'),
           "refusal by process 1: the serial run's one message naming column 'b'\n  serial: %s"
@@ -209,11 +212,19 @@ void suite_mpi(void)
     /* every record through the spill files: the processes' own and process 0's store */
     compare_runs("golden batch, spilled", "SLOWSCAN_SPILL_AFTER=0", BATCH_ARGS "  --format table",
                  "", "tests/golden/batch.csv", table);
+    static const char *const auto_shelf_files[] = {"s.csv", "s.json", "s.nc", NULL};
     static const char *const shelf_files[] = {"s.csv", "s.json", "s.nc", "f/screen-overview.png",
                                               NULL};
     compare_runs("shelf grid", "", SHELF_ARGS, "--json s.json --maps s.nc --figures f",
                  "data/shelf.nc", shelf_files);
-    refusal_of_process_one();
+    /* --surrogates auto: each process draws its own series' rounds, the counts are summed
+     * after each; decisions, p and flags as the serial run's */
+    compare_runs("golden batch, --surrogates auto", "", AUTO_ARGS, "--json s.json",
+                 "tests/golden/batch.csv", batch_files);
+    compare_runs("shelf grid, --surrogates auto", "", AUTO_SHELF_ARGS, "--json s.json --maps s.nc",
+                 "data/shelf.nc", auto_shelf_files);
+    refusal_of_process_one("--surrogates 19");
+    refusal_of_process_one("--surrogates auto");
     rolling_refused();
     other_command();
 }

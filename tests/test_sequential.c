@@ -38,6 +38,30 @@ static void decide_counts(sequential_test *t)
                                  .drawn = drawn[k % 10] * (1 + k / 10)};
 }
 
+/* The levels of a test's intervals under cfg's risk (joint: divided by the tests). */
+static void spending_levels(const sequential_config *c, int joint)
+{
+    sequential_config cfg = *c;
+    /* the risk spent over the draws (Gandy 2009 spends a test's risk over its samples;
+     * Gandy & Hahn's MMCTest over its testing times): an interval at n draws after one at n'
+     * has level epsilon (F(n) - F(n')), F(n) = (n / K + log(1 + n/64) / log(1 + K/64)) / 2,
+     * and a test's levels add up to at most epsilon (from the definition) */
+    double k = (double)cfg.max_per_series, e = cfg.epsilon / (joint ? DECIDE_TESTS : 1);
+    double a1 = slowscan_sequential_alpha_at(&cfg, DECIDE_TESTS, 32768, 65536);
+    double want = e * (0.5 * 32768 / k + 0.5 * (log1p(1024.0) - log1p(512.0)) / log1p(k / 64));
+    double sum = 0;
+    for (size_t n = 64, before = 0; before < cfg.max_per_series; before = n, n *= 2)
+        sum += slowscan_sequential_alpha_at(&cfg, DECIDE_TESTS, before, n);
+    CHECK(fabs(a1 - want) <= 1e-12 * want && fabs(sum - e) <= 1e-12 * e,
+          "levels by draws: %g for 32768 -> 65536, %g over a doubling path to K (joint %d)", a1,
+          sum, joint);
+    sequential_config even = cfg;
+    even.spending = SEQUENTIAL_SPEND_ROUNDS;
+    CHECK(slowscan_sequential_alpha_at(&even, DECIDE_TESTS, 64, 128) ==
+              e / (double)slowscan_sequential_max_rounds(&cfg),
+          "the even split: epsilon / R per round (joint %d)", joint);
+}
+
 /* One round's decisions (and, with finish, the end's) in risk mode `joint` against
  * sequential_decide.py. */
 static void decide_against_reference(int joint, int finish)
@@ -51,19 +75,17 @@ static void decide_against_reference(int joint, int finish)
     CHECK(slowscan_sequential_decide(&cfg, t, DECIDE_TESTS, &open) == SLOWSCAN_OK, "decide");
     if (finish)
         CHECK(slowscan_sequential_finish(&cfg, t, DECIDE_TESTS, &open) == SLOWSCAN_OK, "finish");
-    double alpha = slowscan_sequential_alpha(&cfg, DECIDE_TESTS);
-    double want = cfg.epsilon / ((joint ? DECIDE_TESTS : 1) *
-                                 (double)slowscan_sequential_max_rounds(&cfg));
-    CHECK(alpha == want, "per-round level %g (joint %d)", alpha, joint);
+    spending_levels(&cfg, joint);
     double ref[3 * DECIDE_TESTS];
     char path[512], cmd[1024];
     snprintf(path, sizeof path, "%s", check_tmp_path("sequential_counts.txt"));
     FILE *f = fopen(path, "w");
-    for (size_t k = 0; f && k < DECIDE_TESTS; k++)
-        fprintf(f, "%zu %zu\n", t[k].hits, t[k].drawn);
+    for (size_t j = 0; f && j < DECIDE_TESTS; j++) /* each test's first interval */
+        fprintf(f, "%zu %zu %.17g\n", t[j].hits, t[j].drawn,
+                slowscan_sequential_alpha_at(&cfg, DECIDE_TESTS, 0, t[j].drawn));
     if (f)
         fclose(f);
-    snprintf(cmd, sizeof cmd, "sequential_decide.py %s %.17g %.17g%s", path, alpha, cfg.fdr,
+    snprintf(cmd, sizeof cmd, "sequential_decide.py %s per-test %.17g%s", path, cfg.fdr,
              finish ? " finish" : "");
     /* scipy.stats.beta.ppf and statsmodels multipletests(fdr_bh) */
     int got = check_python(cmd, ref, 3 * DECIDE_TESTS);
@@ -242,7 +264,7 @@ static void command(void)
              json);
     char *jout = NULL;
     int jrc = check_run(py, &jout, NULL);
-    CHECK(rc == 0 && jrc == 0 && jout && !strcmp(jout, "6000 100000 0.001 per test True 2 True\n"),
+    CHECK(rc == 0 && jrc == 0 && jout && !strcmp(jout, "6000 100000 0.01 per test True 2 True\n"),
           "JSON records the procedure: %s", jout ? jout : "");
     free(jout);
     /* a tiny budget: undecided tests, said on stderr */
@@ -260,10 +282,9 @@ static void command(void)
     CHECK(rc == 0 && err && strstr(err, "no discovery is possible"), "warns: %s", err ? err : "");
     free(err), err = NULL;
     /* refusals: one line naming the option, exit 1, no output file */
-    const char *refused[] = {"screen --budget 100", "screen --surrogates auto --resume",
-                             "robustness --surrogates auto", "screen --max-per-series 10 "
+    const char *refused[] = {"screen --budget 100", "robustness --surrogates auto", "screen --max-per-series 10 "
                                                              "--surrogates auto",
-                             "screen --risk 0.01", "screen --risk-joint",
+                             "screen --risk 0.02", "screen --risk-joint",
                              "screen --surrogates auto --risk 0.7"};
     for (size_t k = 0; k < sizeof refused / sizeof refused[0]; k++) {
         const char *o = check_tmp_path("sequential_refused.csv");

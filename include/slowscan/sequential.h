@@ -4,12 +4,18 @@
  * Surrogates are drawn in rounds. After each round every test i has S_i surrogate statistics
  * at least as extreme as its own (by the test's direction) among n_i drawn. Its unknown
  * Monte Carlo p (the chance one surrogate is at least as extreme) lies in a Clopper-Pearson
- * interval [L_i, U_i]. By default (joint = 0) the risk epsilon is per test: each round's
- * interval has level 1 - epsilon / R (R the largest number of rounds), so each test's
- * intervals over all its rounds hold its p except with probability epsilon (the expected
- * number of tests with a failed interval is at most epsilon x the tests). With joint = 1
- * the level is 1 - epsilon / (m R) (Bonferroni over m tests too): every interval of every
- * test holds with probability 1 - epsilon, at a far higher cost in surrogates.
+ * interval [L_i, U_i]. By default (joint = 0) the risk epsilon is per test, spent over its
+ * draws as Gandy (2009, J. Am. Stat. Assoc. 104:1504) spends a test's resampling risk over
+ * its samples and Gandy & Hahn's MMCTest over its testing times: a test's interval made at n
+ * draws, after one at n' (0: none), has two-sided level epsilon (F(n) - F(n')), F(n) = n / K
+ * (K = max_per_series), so its intervals together fail with probability at most
+ * epsilon F(n_last) <= epsilon (the expected number of tests with a failed interval is at
+ * most epsilon x the tests). The risk goes where the draws go: a test settled at 64 draws
+ * spends little, one still open near K has most of epsilon for its last intervals, where
+ * the decisions near the threshold are made (SEQUENTIAL_SPEND_ROUNDS: the former even
+ * split, epsilon / R per round, R the largest number of rounds). With joint = 1, epsilon
+ * is divided by the m tests too (Bonferroni): every interval of every test holds with
+ * probability 1 - epsilon, at a far higher cost in surrogates.
  * Benjamini-Hochberg at level q applied to the upper limits rejects a set A of tests, applied
  * to the lower limits a set B containing A (BH's rejection set only grows as p-values fall):
  * the tests in A would be rejected, those outside B accepted, whatever the p-values inside
@@ -33,9 +39,15 @@
 
 #include <stddef.h>
 
+/* How a test's risk is spread over its intervals. */
+typedef enum {
+    SEQUENTIAL_SPEND_ROUNDS = 0, /* epsilon / R for each round's interval */
+    SEQUENTIAL_SPEND_DRAWS       /* epsilon (F(n) - F(n')), F(n) = n / K: the default */
+} sequential_spending;
+
 typedef struct {
     double fdr;            /* q of Benjamini-Hochberg: 0.05 */
-    double epsilon;        /* resampling risk (--risk): 1e-3; per test, or for the whole
+    double epsilon;        /* resampling risk (--risk): 1e-2; per test, or for the whole
                               run with joint */
     size_t max_per_series; /* K, surrogates of one series at most: 100000 */
     size_t budget;         /* surrogates of the whole run (summed over series); 0: 200 per
@@ -43,6 +55,7 @@ typedef struct {
     size_t first_round;    /* surrogates of every series in round 1: 64 */
     size_t block;          /* round sizes are multiples of this (the stream block): 64 */
     int joint;             /* 0: epsilon per test (default); 1: for all tests jointly */
+    sequential_spending spending; /* SEQUENTIAL_SPEND_DRAWS */
 } sequential_config;
 
 SLOWSCAN_API
@@ -91,10 +104,16 @@ SLOWSCAN_API
 int slowscan_sequential_decide(const sequential_config *cfg, sequential_test *tests,
                                size_t count, size_t *open);
 
-/* The per-round two-sided level of a test's interval among `tested` tests: epsilon / R, or
- * epsilon / (tested R) with cfg->joint. */
+/* The per-round two-sided level of a test's interval among `tested` tests under
+ * SEQUENTIAL_SPEND_ROUNDS: epsilon / R, or epsilon / (tested R) with cfg->joint. */
 SLOWSCAN_API
 double slowscan_sequential_alpha(const sequential_config *cfg, size_t tested);
+
+/* The two-sided level of a test's interval made at `to` draws after one at `from` (0: none),
+ * among `tested` tests, by cfg->spending (per test, or divided by `tested` with joint). */
+SLOWSCAN_API
+double slowscan_sequential_alpha_at(const sequential_config *cfg, size_t tested, size_t from,
+                                    size_t to);
 
 /* After the last round: BH at level fdr on the reported p of all tested tests gives k
  * rejections and the threshold t = fdr max(k, 1) / m; an open test whose last interval lies

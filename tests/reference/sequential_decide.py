@@ -3,7 +3,8 @@
 Clopper-Pearson limits by scipy.stats.beta.ppf (Debian python3-scipy) at two-sided level
 ALPHA, Benjamini-Hochberg by statsmodels.stats.multitest.multipletests(method='fdr_bh') on
 the upper and on the lower limits. Usage: sequential_decide.py FILE ALPHA FDR [finish], FILE
-holding "hits drawn" per line (one line per test, all tested). Prints, per test, lo hi decision
+holding "hits drawn" per line (one line per test, all tested); ALPHA 'per-test': each line's
+third number is its test's level ("hits drawn alpha"). Prints, per test, lo hi decision
 (1 rejected, 2 accepted, 0 open). With `finish`, the open tests are then settled against
 t = FDR max(k, 1) / m, k the rejections of BH on the reported p (1 + hits) / (1 + drawn):
 rejected when hi <= t, accepted when lo > t, open otherwise."""
@@ -13,8 +14,11 @@ from scipy.stats import beta
 from statsmodels.stats.multitest import multipletests
 
 counts = np.loadtxt(sys.argv[1], ndmin=2)
-alpha, fdr = float(sys.argv[2]), float(sys.argv[3])
+alpha = None if sys.argv[2] == "per-test" else float(sys.argv[2])
+fdr = float(sys.argv[3])
 hits, drawn = counts[:, 0], counts[:, 1]
+if sys.argv[2] == "per-test":
+    alpha = counts[:, 2]
 lo = np.where(hits == 0, 0.0, beta.ppf(alpha / 2, hits, drawn - hits + 1))
 hi = np.where(hits >= drawn, 1.0, beta.ppf(1 - alpha / 2, hits + 1, drawn - hits))
 sure = multipletests(hi, alpha=fdr, method="fdr_bh")[0]
