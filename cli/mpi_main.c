@@ -7,10 +7,12 @@
  * 4.1: 0.23 s of wall time for 0.03 s of CPU), as long as loading a table of 2000 series. When
  * the launcher says which process this is (Open MPI's OMPI_COMM_WORLD_RANK/SIZE, MPICH's
  * PMI_RANK/SIZE), the command starts at once on a thread of its own and loads its inputs
- * while the main thread initialises MPI; the command's first message waits until that is done,
- * and MPI's own answer must match the launcher's or the run stops. Every MPI call is still
- * made from the main thread (MPI_THREAD_FUNNELED): the command thread hands each one over
- * (funnel) and waits for it. Without the launcher's word, MPI comes first as before. */
+ * while the main thread initialises MPI; MPI's own answer must match the launcher's or the
+ * run stops. Every MPI call is still made from the main thread (MPI_THREAD_FUNNELED): the
+ * command thread hands each one over (funnel) and waits for it, except the agreement to start
+ * (share.h: propose), which the main thread makes once MPI is up while the command already
+ * screens its first series (a table loads in less time than MPI_Init takes), and which the
+ * command reads later (answer). Without the launcher's word, MPI comes first as before. */
 #include "cli.h"
 #include "share.h"
 
@@ -34,8 +36,9 @@ typedef struct {
 static funnel_state funnel_box = {PTHREAD_MUTEX_INITIALIZER, PTHREAD_COND_INITIALIZER, NULL,
                                   NULL, 0, 0};
 
-/* Runs call(arg) on the main thread: at once when this is it, else handed over and waited. */
-static void funnel(void (*call)(void *), void *arg)
+/* Hands call(arg) to the main thread (after any call still pending) and, when `wait`, waits
+ * until it has run; without the command's own thread it runs here at once. */
+static void funnel_call(void (*call)(void *), void *arg, int wait)
 {
     funnel_state *f = &funnel_box;
     if (!f->threaded) {
@@ -43,15 +46,37 @@ static void funnel(void (*call)(void *), void *arg)
         return;
     }
     pthread_mutex_lock(&f->lock);
+    while (f->call) /* one call at a time: an earlier one not waited for may still be pending */
+        pthread_cond_wait(&f->cond, &f->lock);
     f->call = call;
     f->arg = arg;
     pthread_cond_broadcast(&f->cond);
-    while (f->call)
+    while (wait && f->call)
         pthread_cond_wait(&f->cond, &f->lock);
     pthread_mutex_unlock(&f->lock);
 }
 
-/* The main thread, once MPI is up: every call handed over, until the command returns. */
+/* Runs call(arg) on the main thread and waits for it. */
+static void funnel(void (*call)(void *), void *arg)
+{
+    funnel_call(call, arg, 1);
+}
+
+/* Whether the call handed over with `arg` has run; with `wait`, waits until it has. */
+static int funnel_ran(const void *arg, int wait)
+{
+    funnel_state *f = &funnel_box;
+    pthread_mutex_lock(&f->lock);
+    while (wait && f->call && f->arg == arg)
+        pthread_cond_wait(&f->cond, &f->lock);
+    int ran = !f->call || f->arg != arg;
+    pthread_mutex_unlock(&f->lock);
+    return ran;
+}
+
+/* The main thread, once MPI is up: every call handed over, until the command returns. The
+ * lock is let go during a call, so that the command thread can ask whether one it did not
+ * wait for has run. */
 static void serve_calls(void)
 {
     funnel_state *f = &funnel_box;
@@ -61,7 +86,11 @@ static void serve_calls(void)
             pthread_cond_wait(&f->cond, &f->lock);
         if (!f->call)
             break;
-        f->call(f->arg);
+        void (*call)(void *) = f->call;
+        void *arg = f->arg;
+        pthread_mutex_unlock(&f->lock);
+        call(arg);
+        pthread_mutex_lock(&f->lock);
         f->call = NULL;
         pthread_cond_broadcast(&f->cond);
     }
@@ -84,8 +113,6 @@ static void agree_on_main(void *arg)
     int agreed = all[0];
     for (size_t r = 1; agreed == EXIT_OK && r < s->ranks; r++)
         agreed = all[r];
-    if (all[0] == EXIT_OK && agreed != EXIT_OK && s->rank == 0)
-        cli_error("another process of the run could not start (exit code %d)", agreed);
     free(all);
     a->agreed = agreed;
 }
@@ -94,7 +121,24 @@ static int agree(const cli_share *s, int rc)
 {
     agree_call a = {s, rc, EXIT_INTERNAL};
     funnel(agree_on_main, &a);
+    if (rc == EXIT_OK && a.agreed != EXIT_OK && s->rank == 0)
+        cli_error("another process of the run could not start (exit code %d)", a.agreed);
     return a.agreed;
+}
+
+/* The one agreement not waited for (share.h: propose, answer). */
+static agree_call proposal;
+
+static void propose(const cli_share *s, int rc)
+{
+    proposal = (agree_call){s, rc, EXIT_INTERNAL};
+    funnel_call(agree_on_main, &proposal, 0);
+}
+
+static int answer(const cli_share *s, int wait)
+{
+    (void)s;
+    return funnel_ran(&proposal, wait) ? proposal.agreed : EXIT_OK;
 }
 
 typedef struct {
@@ -213,7 +257,8 @@ int main(int argc, char **argv)
         MPI_Comm_size(MPI_COMM_WORLD, &ranks);
     }
     int shared = ranks > 1 && argc > 1 && strcmp(argv[1], "screen") == 0;
-    static cli_share share = {.agree = agree, .send = send, .receive = receive};
+    static cli_share share = {.agree = agree, .propose = propose, .answer = answer,
+                             .send = send, .receive = receive};
     share.rank = (size_t)rank;
     share.ranks = (size_t)ranks;
     /* the command's own copy of the arguments: MPI_Init may rearrange argv meanwhile */
