@@ -77,9 +77,15 @@ static int send_outcome(const cli_share *s, const share_outcome *mine)
 /* Records travel in bundles, each record after its size (a uint64_t) and padded to 8 bytes: a
  * message per record cost both processes a hand-over to the MPI thread per series. Process 0
  * holds one bundle of each process at a time, so a bundle is kept under 16 MiB / K (at least
- * 64 KiB; a larger record travels alone). */
+ * 64 KiB; a larger record travels alone). The suites set SLOWSCAN_SHARE_BUNDLE=BYTES to send a
+ * small run in several bundles (not a user setting). */
 static size_t bundle_room(const cli_share *s)
 {
+    const char *text = getenv("SLOWSCAN_SHARE_BUNDLE");
+    char *end;
+    unsigned long bytes = text ? strtoul(text, &end, 10) : 0;
+    if (text && *text && !*end)
+        return (size_t)bytes;
     size_t room = ((size_t)16 << 20) / s->ranks, least = (size_t)64 << 10;
     return room < least ? least : room;
 }
