@@ -99,7 +99,7 @@ static size_t bundled(size_t size)
 /* A process other than 0: its records in order, in bundles, then how it ended. */
 static int send_share(const cli_share *s, record_spill *own, const share_outcome *mine)
 {
-    char *buf = NULL;
+    void *buf = NULL;
     size_t cap = 0, used = 0, room = bundle_room(s);
     int rc = EXIT_OK;
     for (size_t k = 0; rc == EXIT_OK && k < mine->count; k++) {
@@ -109,18 +109,22 @@ static int send_share(const cli_share *s, record_spill *own, const share_outcome
             rc = s->send(s, SHARE_RECORD, buf, used);
             used = 0;
         }
-        if (rc == EXIT_OK && cli_share_room((void **)&buf, &cap, used + bundled(size)) != EXIT_OK)
+        if (rc == EXIT_OK && cli_share_room(&buf, &cap, used + bundled(size)) != EXIT_OK)
             rc = EXIT_INTERNAL;
         if (rc == EXIT_OK) {
-            memset(buf + used, 0, bundled(size)); /* the padding is sent too */
-            memcpy(buf + used, &size, sizeof size);
-            if (slowscan_spill_read(own, k, buf + used + sizeof size, &err) != SLOWSCAN_OK)
+            char *at = (char *)buf + used;
+            memset(at, 0, bundled(size)); /* the padding is sent too */
+            memcpy(at, &size, sizeof size);
+            if (slowscan_spill_read(own, k, at + sizeof size, &err) != SLOWSCAN_OK)
                 rc = EXIT_INTERNAL;
-            used += bundled(size);
+            else
+                used += bundled(size);
         }
     }
-    if (rc == EXIT_OK && used > 0)
-        rc = s->send(s, SHARE_RECORD, buf, used);
+    if (used > 0) { /* the records bundled before a failure still go first */
+        int sent = s->send(s, SHARE_RECORD, buf, used);
+        rc = rc == EXIT_OK ? sent : rc;
+    }
     free(buf);
     if (rc != EXIT_OK) /* still end the stream, so process 0 does not wait for more */
         s->send(s, SHARE_FAILED, &rc, sizeof rc);
