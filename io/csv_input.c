@@ -47,6 +47,8 @@ int csv_cell_number(const char *s, double *v)
         *v = NAN;
         return 0;
     }
+    if (io_decimal_exact(s, v))
+        return 0;
     char *end;
     errno = 0;
     *v = strtod(s, &end);
