@@ -238,12 +238,13 @@ int cli_share_gather(const cli_share *s, record_spill *own, const share_outcome 
         return started;
     if (s->rank != 0)
         return send_share(s, own, mine);
-    gathering g = {.s = s, .ended = calloc(s->ranks, 1), .from = calloc(s->ranks, sizeof *g.from)};
+    /* calloc'd bundles (kind SHARE_RECORD, the first value, size 0) are empty: each
+     * process's first record is received */
+    gathering g = {.s = s, .ended = calloc(s->ranks, 1),
+                   .from = calloc(s->ranks, sizeof *g.from)};
     int rc = g.ended && g.from ? EXIT_OK : EXIT_INTERNAL;
     if (rc != EXIT_OK)
         cli_error("out of memory");
-    for (size_t from = 0; g.from && from < s->ranks; from++)
-        g.from[from].kind = SHARE_END; /* nothing received yet */
     for (size_t index = 0; rc == EXIT_OK; index++) {
         rc = next_record(&g, own, mine, index);
         if (rc == EXIT_OK)
