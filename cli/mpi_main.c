@@ -22,6 +22,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <time.h>
 
 /* One MPI call handed from the command thread to the main thread. */
 typedef struct {
@@ -102,6 +103,28 @@ typedef struct {
     int rc, agreed;
 } agree_call;
 
+/* Waiting without spinning: MPI's blocking calls poll flat out, and the main thread shares its
+ * core with the command thread (mpirun binds a process to one core), which screens while the
+ * agreement to start waits for a process still loading its inputs; a process that waits for
+ * another to finish its share would take CPU from it on a shared or oversubscribed node. The
+ * naps between polls grow from 20 us to 1 ms, so an answer comes at most 1 ms late and a long
+ * wait costs a thousand polls a second. */
+static void nap(long *ns)
+{
+    *ns = *ns < 20000 ? 20000 : *ns < 500000 ? 2 * *ns : 1000000;
+    const struct timespec t = {0, *ns};
+    nanosleep(&t, NULL);
+}
+
+static void wait_lazily(MPI_Request *request)
+{
+    int done = 0;
+    long ns = 0;
+    for (MPI_Test(request, &done, MPI_STATUS_IGNORE); !done;
+         MPI_Test(request, &done, MPI_STATUS_IGNORE))
+        nap(&ns);
+}
+
 static void agree_on_main(void *arg)
 {
     agree_call *a = arg;
@@ -109,7 +132,9 @@ static void agree_on_main(void *arg)
     int *all = malloc(s->ranks * sizeof *all);
     if (!all) /* cannot hear the others: end this process alike on every one */
         MPI_Abort(MPI_COMM_WORLD, EXIT_INTERNAL);
-    MPI_Allgather(&a->rc, 1, MPI_INT, all, 1, MPI_INT, MPI_COMM_WORLD);
+    MPI_Request request;
+    MPI_Iallgather(&a->rc, 1, MPI_INT, all, 1, MPI_INT, MPI_COMM_WORLD, &request);
+    wait_lazily(&request);
     int agreed = all[0];
     for (size_t r = 1; agreed == EXIT_OK && r < s->ranks; r++)
         agreed = all[r];
@@ -151,7 +176,10 @@ static void send_on_main(void *arg)
 {
     const send_call *c = arg;
     static const char none;
-    MPI_Send(c->data ? c->data : &none, c->size, MPI_BYTE, 0, (int)c->kind, MPI_COMM_WORLD);
+    MPI_Request request;
+    MPI_Isend(c->data ? c->data : &none, c->size, MPI_BYTE, 0, (int)c->kind, MPI_COMM_WORLD,
+              &request);
+    wait_lazily(&request);
 }
 
 static int send(const cli_share *s, share_kind kind, const void *data, size_t size)
@@ -177,7 +205,11 @@ static void receive_on_main(void *arg)
     receive_call *c = arg;
     MPI_Status status;
     int count;
-    MPI_Probe((int)c->from, MPI_ANY_TAG, MPI_COMM_WORLD, &status);
+    int arrived = 0;
+    long ns = 0;
+    for (MPI_Iprobe((int)c->from, MPI_ANY_TAG, MPI_COMM_WORLD, &arrived, &status); !arrived;
+         MPI_Iprobe((int)c->from, MPI_ANY_TAG, MPI_COMM_WORLD, &arrived, &status))
+        nap(&ns);
     MPI_Get_count(&status, MPI_BYTE, &count);
     if (cli_share_room(c->data, c->cap, (size_t)count) != EXIT_OK) {
         c->rc = EXIT_INTERNAL;
