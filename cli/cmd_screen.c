@@ -318,7 +318,7 @@ static int screen_share(const cli_options *opts, const cli_inputs *in, ordered_s
 static int screen_shared(const cli_options *opts, const cli_inputs *in, ordered_sink *sink,
                          input_source *src, const cli_share *share)
 {
-    src->rank = share->rank, src->ranks = share->ranks;
+    src->rank = share->rank, src->ranks = share->ranks, src->share = share;
     char *text = NULL;
     size_t len = 0;
     FILE *held = open_memstream(&text, &len);

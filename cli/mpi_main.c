@@ -7,10 +7,12 @@
  * 4.1: 0.23 s of wall time for 0.03 s of CPU), as long as loading a table of 2000 series. When
  * the launcher says which process this is (Open MPI's OMPI_COMM_WORLD_RANK/SIZE, MPICH's
  * PMI_RANK/SIZE), the command starts at once on a thread of its own and loads its inputs
- * while the main thread initialises MPI; the command's first message waits until that is done,
- * and MPI's own answer must match the launcher's or the run stops. Every MPI call is still
- * made from the main thread (MPI_THREAD_FUNNELED): the command thread hands each one over
- * (funnel) and waits for it. Without the launcher's word, MPI comes first as before. */
+ * while the main thread initialises MPI; MPI's own answer must match the launcher's or the
+ * run stops. Every MPI call is still made from the main thread (MPI_THREAD_FUNNELED): the
+ * command thread hands each one over (funnel) and waits for it, except the agreement to start
+ * (share.h: propose), which the main thread makes once MPI is up while the command already
+ * screens its first series (a table loads in less time than MPI_Init takes), and which the
+ * command reads later (answer). Without the launcher's word, MPI comes first as before. */
 #include "cli.h"
 #include "share.h"
 
@@ -20,6 +22,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <time.h>
 
 /* One MPI call handed from the command thread to the main thread. */
 typedef struct {
@@ -34,8 +37,9 @@ typedef struct {
 static funnel_state funnel_box = {PTHREAD_MUTEX_INITIALIZER, PTHREAD_COND_INITIALIZER, NULL,
                                   NULL, 0, 0};
 
-/* Runs call(arg) on the main thread: at once when this is it, else handed over and waited. */
-static void funnel(void (*call)(void *), void *arg)
+/* Hands call(arg) to the main thread (after any call still pending) and, when `wait`, waits
+ * until it has run; without the command's own thread it runs here at once. */
+static void funnel_call(void (*call)(void *), void *arg, int wait)
 {
     funnel_state *f = &funnel_box;
     if (!f->threaded) {
@@ -43,15 +47,37 @@ static void funnel(void (*call)(void *), void *arg)
         return;
     }
     pthread_mutex_lock(&f->lock);
+    while (f->call) /* one call at a time: an earlier one not waited for may still be pending */
+        pthread_cond_wait(&f->cond, &f->lock);
     f->call = call;
     f->arg = arg;
     pthread_cond_broadcast(&f->cond);
-    while (f->call)
+    while (wait && f->call)
         pthread_cond_wait(&f->cond, &f->lock);
     pthread_mutex_unlock(&f->lock);
 }
 
-/* The main thread, once MPI is up: every call handed over, until the command returns. */
+/* Runs call(arg) on the main thread and waits for it. */
+static void funnel(void (*call)(void *), void *arg)
+{
+    funnel_call(call, arg, 1);
+}
+
+/* Whether the call handed over with `arg` has run; with `wait`, waits until it has. */
+static int funnel_ran(const void *arg, int wait)
+{
+    funnel_state *f = &funnel_box;
+    pthread_mutex_lock(&f->lock);
+    while (wait && f->call && f->arg == arg)
+        pthread_cond_wait(&f->cond, &f->lock);
+    int ran = !f->call || f->arg != arg;
+    pthread_mutex_unlock(&f->lock);
+    return ran;
+}
+
+/* The main thread, once MPI is up: every call handed over, until the command returns. The
+ * lock is let go during a call, so that the command thread can ask whether one it did not
+ * wait for has run. */
 static void serve_calls(void)
 {
     funnel_state *f = &funnel_box;
@@ -61,7 +87,11 @@ static void serve_calls(void)
             pthread_cond_wait(&f->cond, &f->lock);
         if (!f->call)
             break;
-        f->call(f->arg);
+        void (*call)(void *) = f->call;
+        void *arg = f->arg;
+        pthread_mutex_unlock(&f->lock);
+        call(arg);
+        pthread_mutex_lock(&f->lock);
         f->call = NULL;
         pthread_cond_broadcast(&f->cond);
     }
@@ -73,6 +103,28 @@ typedef struct {
     int rc, agreed;
 } agree_call;
 
+/* Waiting without spinning: MPI's blocking calls poll flat out, and the main thread shares its
+ * core with the command thread (mpirun binds a process to one core), which screens while the
+ * agreement to start waits for a process still loading its inputs; a process that waits for
+ * another to finish its share would take CPU from it on a shared or oversubscribed node. The
+ * naps between polls grow from 20 us to 1 ms, so an answer comes at most 1 ms late and a long
+ * wait costs a thousand polls a second. */
+static void nap(long *ns)
+{
+    *ns = *ns < 20000 ? 20000 : *ns < 500000 ? 2 * *ns : 1000000;
+    const struct timespec t = {0, *ns};
+    nanosleep(&t, NULL);
+}
+
+static void wait_lazily(MPI_Request *request)
+{
+    int done = 0;
+    long ns = 0;
+    for (MPI_Test(request, &done, MPI_STATUS_IGNORE); !done;
+         MPI_Test(request, &done, MPI_STATUS_IGNORE))
+        nap(&ns);
+}
+
 static void agree_on_main(void *arg)
 {
     agree_call *a = arg;
@@ -80,12 +132,12 @@ static void agree_on_main(void *arg)
     int *all = malloc(s->ranks * sizeof *all);
     if (!all) /* cannot hear the others: end this process alike on every one */
         MPI_Abort(MPI_COMM_WORLD, EXIT_INTERNAL);
-    MPI_Allgather(&a->rc, 1, MPI_INT, all, 1, MPI_INT, MPI_COMM_WORLD);
+    MPI_Request request;
+    MPI_Iallgather(&a->rc, 1, MPI_INT, all, 1, MPI_INT, MPI_COMM_WORLD, &request);
+    wait_lazily(&request);
     int agreed = all[0];
     for (size_t r = 1; agreed == EXIT_OK && r < s->ranks; r++)
         agreed = all[r];
-    if (all[0] == EXIT_OK && agreed != EXIT_OK && s->rank == 0)
-        cli_error("another process of the run could not start (exit code %d)", agreed);
     free(all);
     a->agreed = agreed;
 }
@@ -94,7 +146,24 @@ static int agree(const cli_share *s, int rc)
 {
     agree_call a = {s, rc, EXIT_INTERNAL};
     funnel(agree_on_main, &a);
+    if (rc == EXIT_OK && a.agreed != EXIT_OK && s->rank == 0)
+        cli_error("another process of the run could not start (exit code %d)", a.agreed);
     return a.agreed;
+}
+
+/* The one agreement not waited for (share.h: propose, answer). */
+static agree_call proposal;
+
+static void propose(const cli_share *s, int rc)
+{
+    proposal = (agree_call){s, rc, EXIT_INTERNAL};
+    funnel_call(agree_on_main, &proposal, 0);
+}
+
+static int answer(const cli_share *s, int wait)
+{
+    (void)s;
+    return funnel_ran(&proposal, wait) ? proposal.agreed : EXIT_OK;
 }
 
 typedef struct {
@@ -107,7 +176,10 @@ static void send_on_main(void *arg)
 {
     const send_call *c = arg;
     static const char none;
-    MPI_Send(c->data ? c->data : &none, c->size, MPI_BYTE, 0, (int)c->kind, MPI_COMM_WORLD);
+    MPI_Request request;
+    MPI_Isend(c->data ? c->data : &none, c->size, MPI_BYTE, 0, (int)c->kind, MPI_COMM_WORLD,
+              &request);
+    wait_lazily(&request);
 }
 
 static int send(const cli_share *s, share_kind kind, const void *data, size_t size)
@@ -133,7 +205,11 @@ static void receive_on_main(void *arg)
     receive_call *c = arg;
     MPI_Status status;
     int count;
-    MPI_Probe((int)c->from, MPI_ANY_TAG, MPI_COMM_WORLD, &status);
+    int arrived = 0;
+    long ns = 0;
+    for (MPI_Iprobe((int)c->from, MPI_ANY_TAG, MPI_COMM_WORLD, &arrived, &status); !arrived;
+         MPI_Iprobe((int)c->from, MPI_ANY_TAG, MPI_COMM_WORLD, &arrived, &status))
+        nap(&ns);
     MPI_Get_count(&status, MPI_BYTE, &count);
     if (cli_share_room(c->data, c->cap, (size_t)count) != EXIT_OK) {
         c->rc = EXIT_INTERNAL;
@@ -237,7 +313,8 @@ int main(int argc, char **argv)
         MPI_Comm_size(MPI_COMM_WORLD, &ranks);
     }
     int shared = ranks > 1 && argc > 1 && strcmp(argv[1], "screen") == 0;
-    static cli_share share = {.agree = agree, .send = send, .receive = receive, .sum = sum};
+    static cli_share share = {.agree = agree, .propose = propose, .answer = answer,
+                              .send = send, .receive = receive, .sum = sum};
     share.rank = (size_t)rank;
     share.ranks = (size_t)ranks;
     /* the command's own copy of the arguments: MPI_Init may rearrange argv meanwhile */

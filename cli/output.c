@@ -325,8 +325,8 @@ int cli_run_series_command(const cli_options *opts, const series_command *cmd)
         rc = cli_memory_guard(opts, &in); /* a run that cannot fit is refused before it starts */
     if (rc == EXIT_OK && cmd->open && writer)
         rc = cmd->open(opts, &outs, cmd->context);
-    if (share) /* no process starts work another cannot do */
-        rc = share->agree(share, rc);
+    if (share) /* no process goes on with work another cannot do (share.h) */
+        rc = cli_share_begin(share, rc);
     if (rc == EXIT_OK && cmd->run)
         rc = cmd->run(opts, &in, cmd->context);
     else if (rc == EXIT_OK)

@@ -58,6 +58,7 @@ typedef struct {
     screen_origin *origins; /* one per series: where it came from */
     size_t rank, ranks;     /* a shared run: this process takes series i with i mod ranks = rank */
     size_t walked;          /* series of the inputs walked so far */
+    const struct cli_share *share; /* a shared run: asked between series whether to stop */
     size_t skip;            /* series the journal gave back (--resume): skipped */
     int rc;                 /* the cursor's own failure (its message printed) */
 } input_source;

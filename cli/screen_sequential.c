@@ -187,6 +187,11 @@ static int share_round(const cli_share *s, screen_sequential *q, int rc, const c
     uint64_t *head = q->round;
     head[s->rank] = rc != EXIT_OK ? (uint64_t)q->failed_at + 1 : 0;
     head[s->ranks + s->rank] = (uint64_t)(int64_t)rc;
+    /* the processes started without waiting for each other (share.h): a process that could
+     * not start takes no part in the sum, so its outcome is known before the first one */
+    int started = cli_share_settle(s);
+    if (started != EXIT_OK)
+        return started;
     if (s->sum(s, q->round, q->round_len) != EXIT_OK)
         return EXIT_INTERNAL;
     size_t who = s->ranks;

@@ -3,6 +3,7 @@
  * of --surrogates auto walks it once per round. */
 #include "cli.h"
 #include "screen.h"
+#include "share.h"
 #include "slowscan/status.h"
 
 #include <stdlib.h>
@@ -38,7 +39,12 @@ int cli_screen_next_series(void *state, size_t index, screen_input *out, screen_
     input_source *src = state;
     const series_table *t;
     size_t k;
-    int rc;
+    /* a shared run started before the others were known to start: stop when one could not */
+    int rc = src->share ? cli_share_stopped(src->share) : EXIT_OK;
+    if (rc != EXIT_OK) {
+        src->rc = rc;
+        return SLOWSCAN_EINVAL;
+    }
     do /* the journal's series and those of other processes are skipped, unread */
         rc = cli_cursor_next(&src->cursor, &t, &k);
     while (rc == EXIT_OK && (src->skip > 0 ? (src->skip--, 1)

@@ -1,6 +1,6 @@
 /* A run dealt over several processes (build/slowscan-mpi under mpirun): series i goes to
  * process i mod K, each screens its share, and process 0 alone gathers the plain-data records
- * in input order and writes the outputs. This header knows nothing of MPI: cli/mpi_share.c
+ * in input order and writes the outputs. This header knows nothing of MPI: cli/mpi_main.c
  * fills a cli_share with MPI calls, the plain binary never sets one, and the commands see only
  * what is here. */
 #ifndef SLOWSCAN_CLI_SHARE_H
@@ -25,6 +25,11 @@ struct cli_share {
     /* Collective: every process passes its exit code; all get process 0's when it failed,
      * else the worst of the others (so no process starts work another cannot do). */
     int (*agree)(const cli_share *s, int rc);
+    /* The same agreement without waiting for it (cli_share_begin): the collective runs once
+     * MPI is up, while this process already works; answer() gives its outcome (as agree's),
+     * with wait = 0 EXIT_OK while it is not known yet. */
+    void (*propose)(const cli_share *s, int rc);
+    int (*answer)(const cli_share *s, int wait);
     /* From a process other than 0 to process 0, in order. */
     int (*send)(const cli_share *s, share_kind kind, const void *data, size_t size);
     /* Process 0: the next message of process `from` into *data (grown with realloc, *cap its
@@ -39,6 +44,20 @@ struct cli_share {
 
 /* Makes *buf (realloc'd, *cap bytes) hold at least `need` bytes; EXIT_OK or EXIT_INTERNAL. */
 int cli_share_room(void **buf, size_t *cap, size_t need);
+
+/* Before a shared command's work: every process passes its exit code (as agree). A process
+ * that failed waits for the outcome and returns it; one that can start returns EXIT_OK at once
+ * and starts, without waiting for the others (they may still be starting: MPI_Init takes longer
+ * than loading a table). It then polls cli_share_stopped between series, and calls
+ * cli_share_settle before it exchanges anything else with the others. */
+int cli_share_begin(const cli_share *s, int rc);
+
+/* EXIT_OK while no other process is known to have failed to start, else the outcome. */
+int cli_share_stopped(const cli_share *s);
+
+/* Waits for the outcome of cli_share_begin: EXIT_OK, or the failure's exit code (process 0
+ * says that another process could not start). Only the first call waits or speaks. */
+int cli_share_settle(const cli_share *s);
 
 /* The run's share: NULL for one process (the plain binary, or mpirun -np 1). */
 const cli_share *cli_share_get(void);

@@ -52,6 +52,8 @@ int csv_cell_number(const char *s, double *v)
     const char *digits = s + (*s == '+' || *s == '-');
     if (digits[0] == '0' && (digits[1] == 'x' || digits[1] == 'X'))
         return 1;
+    if (io_decimal_exact(s, v))
+        return 0;
     char *end;
     errno = 0;
     *v = strtod(s, &end);

@@ -110,6 +110,9 @@ int csv_failf(csv_reader *r, int status, const char *fmt, ...) __attribute__((fo
 /* A cell as a number: 0 with *v (NaN for empty, NA, NaN), 1 not a number, 2 not finite (inf,
  * Infinity, or too large for a double). The data cells' rule and the time column's. */
 int csv_cell_number(const char *s, double *v);
+/* 1 with *v when s is a plain decimal ([+-]digits[.digits][e[+-]digits]) whose value one
+ * floating-point operation gives exactly as strtod would; 0 otherwise (s is then strtod's). */
+int io_decimal_exact(const char *s, double *v);
 /* Narrows s[0..*len) to drop surrounding spaces and tabs; NUL-terminates in place. */
 char *csv_trim(char *s, size_t *len);
 

@@ -11,6 +11,7 @@ void suite_detrend(void);
 void suite_sequential(void);
 void suite_deseason(void);
 void suite_io(void);
+void suite_decimal(void);
 void suite_indicators(void);
 void suite_spectral(void);
 void suite_kendall(void);
@@ -58,7 +59,7 @@ static const struct {
     const char *name;
     void (*run)(void);
 } suites[] = {
-    {"detrend", suite_detrend},       {"deseason", suite_deseason}, {"io", suite_io},   {"indicators", suite_indicators},
+    {"detrend", suite_detrend},       {"deseason", suite_deseason}, {"io", suite_io}, {"decimal", suite_decimal},   {"indicators", suite_indicators},
     {"spectral", suite_spectral},
     {"kendall", suite_kendall},       {"surrogates", suite_surrogates}, {"ar1_drift", suite_ar1_drift}, {"cli", suite_cli},
     {"significance", suite_significance}, {"projection", suite_projection},

@@ -5,7 +5,8 @@
  * golden and store): with 2 and 3 processes the summary, the JSON, the maps and the figures
  * are byte-identical to build/slowscan's, on the golden batch (tests/golden/batch.csv) and
  * on the shelf grid (data/shelf.nc), and so are the messages; a series refused by process 1
- * gives the serial run's one message and exit code and leaves no output; --rolling is refused
+ * gives the serial run's one message and exit code and leaves no output; so does a process 1
+ * that cannot start while process 0 screens (process 0's one line); --rolling is refused
  * naming the option; a command other than screen runs on process 0 alone, once.
  *
  * Skipped, saying why, when build/slowscan-mpi or mpirun is missing, and in the sanitized run
@@ -156,6 +157,27 @@ static void refusal_of_process_one(const char *surrogates)
     free(want), free(got);
 }
 
+/* Process 1 cannot start (its input is missing, as on a node that does not see the file: a
+ * launch of two programs gives it another file) while process 0, which does not wait for the
+ * others to start, is screening: process 0 stops, says so in one line, exits 1, and leaves
+ * no output. */
+static void start_failure_of_process_one(void)
+{
+    char dir[512], cmd[8192], *raw = NULL;
+    snprintf(dir, sizeof dir, "%s", check_tmp_path("unstarted"));
+    snprintf(cmd, sizeof cmd, "rm -rf '%s' && mkdir -p '%s' && cd '%s' && %s -np 1 %s %s -o s.csv "
+             "'%s/tests/golden/batch.csv' : -np 1 %s %s -o s.csv missing.csv", dir, dir, dir,
+             mpirun_prefix(), mpi_bin, BATCH_ARGS, root, mpi_bin, BATCH_ARGS);
+    int rc = check_run(cmd, NULL, &raw);
+    char *got = slowscan_lines(raw);
+    CHECK(rc == 1 && got && strcmp(got, "slowscan: another process of the run could not start "
+                                        "(exit code 1)\n") == 0,
+          "process 1 cannot start: exit 1 (got %d) and process 0's one message: %s", rc,
+          got ? got : "");
+    CHECK(!left(dir, "s.csv"), "process 1 cannot start: no output file left");
+    free(raw), free(got);
+}
+
 /* --rolling under several processes: refused, naming the option, nothing written. */
 static void rolling_refused(void)
 {
@@ -209,9 +231,11 @@ void suite_mpi(void)
     static const char *const batch_files[] = {"s.csv", "s.json", NULL}, *table[] = {"s.csv", NULL};
     compare_runs("golden batch", "", BATCH_ARGS, "--json s.json", "tests/golden/batch.csv",
                  batch_files);
-    /* every record through the spill files: the processes' own and process 0's store */
-    compare_runs("golden batch, spilled", "SLOWSCAN_SPILL_AFTER=0", BATCH_ARGS "  --format table",
-                 "", "tests/golden/batch.csv", table);
+    /* every record through the spill files: the processes' own and process 0's store; and
+     * sent to process 0 two records to a bundle (~3.3 kB each), not all in one */
+    compare_runs("golden batch, spilled, small bundles",
+                 "SLOWSCAN_SPILL_AFTER=0 SLOWSCAN_SHARE_BUNDLE=7000",
+                 BATCH_ARGS "  --format table", "", "tests/golden/batch.csv", table);
     static const char *const auto_shelf_files[] = {"s.csv", "s.json", "s.nc", NULL};
     static const char *const shelf_files[] = {"s.csv", "s.json", "s.nc", "f/screen-overview.png",
                                               NULL};
@@ -225,6 +249,7 @@ void suite_mpi(void)
                  "data/shelf.nc", auto_shelf_files);
     refusal_of_process_one("--surrogates 19");
     refusal_of_process_one("--surrogates auto");
+    start_failure_of_process_one();
     rolling_refused();
     other_command();
 }
