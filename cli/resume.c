@@ -14,6 +14,7 @@
 #include <stdint.h>
 #include <stdlib.h>
 #include <string.h>
+#include <time.h>
 #include <unistd.h>
 
 /* Options that change how a run looks, not what it computes: left out of its identity. */
@@ -149,6 +150,16 @@ int cli_resume_record(cli_resume *r, const void *record, size_t size)
     if (slowscan_journal_append(r->journal, record, size, &err) != SLOWSCAN_OK) {
         cli_error("option --resume: %s", err.message);
         return EXIT_BAD_INPUT;
+    }
+    /* A testing hook, not a setting: SLOWSCAN_JOURNAL_PAUSE_US holds each record for that
+     * many microseconds, so suite resume can kill a run at a chosen journal size even where
+     * records follow each other within microseconds (--surrogates auto's ordinary pass draws
+     * nothing, and finished faster than the suite could look at the journal). */
+    const char *pause = getenv("SLOWSCAN_JOURNAL_PAUSE_US");
+    if (pause && *pause) {
+        unsigned long us = strtoul(pause, NULL, 10);
+        struct timespec hold = {(time_t)(us / 1000000), (long)(us % 1000000) * 1000};
+        nanosleep(&hold, NULL);
     }
     return EXIT_OK;
 }

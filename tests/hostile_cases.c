@@ -326,7 +326,7 @@ const hostile_refusal hostile_refusals[] = {
      "feedback -o {out} --flux a --response b --baseline {in} {good}",
      "--baseline: " },
     {"NetCDF with a corrupted record count", NULL, make_nc_numrecs, "in/in.nc",
-     "detrend -o {out} {in}", "cut short"},
+     "detrend -o {out} {in}", "a record count larger than the file"},
     {"NetCDF-4 cut short", NULL, make_nc4_cut, "in/in.nc", SCREEN "{in}", "in.nc"},
     {"NetCDF with an infinite value", NULL, make_nc_infinite, "in/in.nc",
      "indicators -o {out} {in}", "variable 'tas', cell tas[lat=10], time index 1"},

@@ -49,7 +49,7 @@ static void kill_and_resume(long bytes, const char *name, const char *said, cons
     screen_cmd(run, sizeof run, name, "--resume");
     /* up to 5 minutes for the journal to grow: the sanitized build under a loaded machine
      * spends more than a minute in the rounds of --surrogates auto */
-    snprintf(cmd, sizeof cmd, "{ %s 2>/dev/null & pid=$!; j='%s/%s.csv.journal'; "
+    snprintf(cmd, sizeof cmd, "{ export SLOWSCAN_JOURNAL_PAUSE_US=20000; %s 2>/dev/null & pid=$!; j='%s/%s.csv.journal'; "
              "for i in $(seq 6000); do [ -f \"$j\" ] && [ $(stat -c %%s \"$j\") -ge %ld ] && "
              "break; sleep 0.05; done; kill -9 $pid; wait $pid; } ; %s 2>&1; echo \"rc=$?\"; "
              "ls -A '%s'", run, dir, name, bytes, run, dir);
