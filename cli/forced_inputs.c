@@ -187,28 +187,14 @@ double cli_forced_offset(const cli_options *o, const time_axis *axis, const doub
     return isnan(offset) ? 0 : offset;
 }
 
-/* The first and last times at which v is finite (NaN, NaN when never). */
-static void finite_reach(const series_table *t, const double *v, double *first, double *last)
-{
-    *first = *last = NAN;
-    for (size_t i = 0; i < t->n; i++)
-        if (isfinite(v[i])) {
-            if (isnan(*first))
-                *first = t->time[i];
-            *last = t->time[i];
-        }
-}
-
 /* Column k of run t minus baseline column bv (of table b) over the run's period. */
 static int anomaly(const cli_options *o, const series_table *b, const double *bv,
                    double offset, series_table *t, size_t k)
 {
     const cli_forced_options *f = &o->forced;
     double from = t->time[0] + offset, until = t->time[t->n - 1] + offset, first, last;
-    double step = b->n > 1 ? cli_mean_step(b->time, b->n) : 0;
-    finite_reach(b, bv, &first, &last);
-    /* half a step of slack: the two runs' samples may sit at different points of a step */
-    if (!(first <= from + 0.5 * step && last >= until - 0.5 * step)) {
+    if (slowscan_feedback_baseline_covers(t->time, t->n, b->time, bv, b->n, offset, &first,
+                                          &last) != SLOWSCAN_OK) {
         cli_error("option --baseline: %s does not cover the period of %s for column '%s' (it "
                   "has values from %.12g to %.12g; the run needs %.12g to %.12g after "
                   "--baseline-offset %.12g)", f->baseline, cli_source_name(t->source),

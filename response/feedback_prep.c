@@ -45,6 +45,26 @@ static int baseline_line(const double *bt, const double *bv, size_t nb, double f
     return st;
 }
 
+int slowscan_feedback_baseline_covers(const double *time, size_t n, const double *btime,
+                                      const double *bvalues, size_t nb, double offset,
+                                      double *first, double *last)
+{
+    *first = *last = NAN;
+    for (size_t i = 0; i < nb; i++)
+        if (isfinite(bvalues[i])) {
+            if (isnan(*first))
+                *first = btime[i];
+            *last = btime[i];
+        }
+    if (n == 0)
+        return SLOWSCAN_ESHORT;
+    double from = time[0] + offset, until = time[n - 1] + offset;
+    double step = nb > 1 ? (btime[nb - 1] - btime[0]) / (double)(nb - 1) : 0;
+    /* NaN ends (no finite sample) fail both comparisons */
+    return *first <= from + 0.5 * step && *last >= until - 0.5 * step ? SLOWSCAN_OK
+                                                                        : SLOWSCAN_ESHORT;
+}
+
 int slowscan_feedback_anomalies(const double *time, double *values, size_t n,
                                 const double *btime, const double *bvalues, size_t nb,
                                 double offset, feedback_baseline_mode mode)

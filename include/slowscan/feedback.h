@@ -126,6 +126,16 @@ int slowscan_feedback_anomalies(const double *time, double *values, size_t n,
                                 const double *btime, const double *bvalues, size_t nb,
                                 double offset, feedback_baseline_mode mode);
 
+/* Whether the baseline (btime, bvalues: nb samples, NaN missing) covers the run's period,
+ * time[0] + offset .. time[n-1] + offset: its first and last finite samples lie within half
+ * the baseline's mean step of those ends (the two runs' samples may sit at different points
+ * of a step). *first and *last: the baseline's first and last finite times (NaN when none),
+ * for the caller's message. SLOWSCAN_OK when it covers, SLOWSCAN_ESHORT when it does not. */
+SLOWSCAN_API
+int slowscan_feedback_baseline_covers(const double *time, size_t n, const double *btime,
+                                      const double *bvalues, size_t nb, double offset,
+                                      double *first, double *last);
+
 /* var(noise of N) / var(noise of T) estimated from a baseline run over the same period
  * (sample variances about each variable's least-squares line). */
 SLOWSCAN_API

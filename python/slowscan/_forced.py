@@ -119,12 +119,10 @@ class Run:
 
 def _anomaly(run, k, b, bv, offset, mode):
     start, until = run.time[0] + offset, run.time[-1] + offset
-    step = mean_step(b.time) if b.n > 1 else 0.0
-    have = np.flatnonzero(np.isfinite(bv))
-    first = b.time[have[0]] if len(have) else float("nan")
-    last = b.time[have[-1]] if len(have) else float("nan")
-    # half a step of slack: the two runs' samples may sit at different points of a step
-    if not (first <= start + 0.5 * step and last >= until - 0.5 * step):
+    reach = ffi.new("double[2]")
+    if lib.slowscan_feedback_baseline_covers(ptr(run.time), run.n, ptr(b.time), ptr(bv), b.n,
+                                             offset, reach, reach + 1) != 0:
+        first, last = reach[0], reach[1]
         raise SlowscanError(
             "baseline=: the baseline run does not cover the period of %s for column '%s' (it "
             "has values from %.12g to %.12g; the run needs %.12g to %.12g after "

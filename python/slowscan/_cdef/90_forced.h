@@ -58,6 +58,9 @@ int slowscan_feedback_run(const double *time, const double *flux, const double *
                           size_t count, feedback_drift *drift);
 
 typedef enum { FEEDBACK_BASELINE_MEAN = 0, FEEDBACK_BASELINE_DRIFT } feedback_baseline_mode;
+int slowscan_feedback_baseline_covers(const double *time, size_t n, const double *btime,
+                                      const double *bvalues, size_t nb, double offset,
+                                      double *first, double *last);
 int slowscan_feedback_anomalies(const double *time, double *values, size_t n,
                                 const double *btime, const double *bvalues, size_t nb,
                                 double offset, feedback_baseline_mode mode);
