@@ -512,11 +512,19 @@ void cli_sequential_report(const cli_options *opts, const screen_sequential *q)
 {
     (void)opts;
     double m = (double)q->tested, floor_p = 1.0 / ((double)q->cfg.max_per_series + 1.0);
-    if (q->tested > 0 && floor_p > q->cfg.fdr / m)
+    /* BH rejects the k smallest p when the k-th is at or below q k / m: with every p at or
+     * above the floor 1/(K+1), a discovery needs at least floor m / q tests tied there */
+    double ties = ceil(floor_p * m / q->cfg.fdr - 1e-9);
+    if (q->tested > 0 && floor_p > q->cfg.fdr / m && ties > m)
         cli_warning("option --surrogates auto: no discovery is possible: the smallest p, "
-                    "1/(K+1) = %.3g with --max-per-series %zu, is above q/m = %.3g for %zu "
-                    "tests; raise --max-per-series", floor_p, q->cfg.max_per_series,
-                    q->cfg.fdr / m, q->tested);
+                    "1/(K+1) = %.3g with --max-per-series %zu, is above q = %g; raise "
+                    "--max-per-series", floor_p, q->cfg.max_per_series, q->cfg.fdr);
+    else if (q->tested > 0 && floor_p > q->cfg.fdr / m)
+        cli_warning("option --surrogates auto: no test can be a discovery alone: the smallest "
+                    "p, 1/(K+1) = %.3g with --max-per-series %zu, is above q/m = %.3g for %zu "
+                    "tests, so discoveries need at least %.0f tests tied at that floor; raise "
+                    "--max-per-series", floor_p, q->cfg.max_per_series, q->cfg.fdr / m,
+                    q->tested, ties);
     if (q->undecided > 0)
         cli_warning("option --surrogates auto: %zu of %zu tests undecided: the budget (%zu "
                     "surrogates, --budget) ran out before their side of the FDR threshold "

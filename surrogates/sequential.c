@@ -67,6 +67,25 @@ double slowscan_sequential_alpha_at(const sequential_config *cfg, size_t tested,
     return cfg->epsilon * spent / (cfg->joint ? (double)(tested ? tested : 1) : 1.0);
 }
 
+/* A test's interval after new draws. At the cap K the test has become the fixed-K Monte
+ * Carlo test (Besag & Clifford 1991: a sequential test that runs to its largest size is the
+ * fixed-size one), whose p, (1 + hits) / (1 + K), is known exactly: its interval is that
+ * point, so BH settles it on the p a --surrogates K run gives (replicate j is the same draw),
+ * and a run capped at K reproduces the decisions of a fixed-K run for the tests it carries
+ * to the cap instead of leaving them undecided. Below the cap: the Clopper-Pearson interval
+ * at the level the risk spending gives to the draws since the last one. */
+static void update_interval(const sequential_config *cfg, size_t tested, sequential_test *t)
+{
+    if (cfg->max_per_series > 0 && t->drawn >= cfg->max_per_series) {
+        t->lo = t->hi = (1.0 + (double)t->hits) / (1.0 + (double)t->drawn);
+    } else {
+        size_t before = t->interval_at ? t->interval_at - 1 : 0;
+        double alpha = slowscan_sequential_alpha_at(cfg, tested, before, t->drawn);
+        slowscan_sequential_interval(t->hits, t->drawn, alpha, &t->lo, &t->hi);
+    }
+    t->interval_at = t->drawn + 1;
+}
+
 int slowscan_sequential_decide(const sequential_config *cfg, sequential_test *tests,
                                size_t count, size_t *open)
 {
@@ -82,12 +101,8 @@ int slowscan_sequential_decide(const sequential_config *cfg, sequential_test *te
     double *upper = buf, *lower = buf + count, *q = buf + 2 * count;
     for (size_t r = 0; r < count; r++) {
         sequential_test *t = &tests[r];
-        if (t->tested && t->interval_at != t->drawn + 1) { /* +1: 0 means "none yet" */
-            size_t before = t->interval_at ? t->interval_at - 1 : 0;
-            double alpha = slowscan_sequential_alpha_at(cfg, m, before, t->drawn);
-            slowscan_sequential_interval(t->hits, t->drawn, alpha, &t->lo, &t->hi);
-            t->interval_at = t->drawn + 1;
-        }
+        if (t->tested && t->interval_at != t->drawn + 1) /* +1: 0 means "none yet" */
+            update_interval(cfg, m, t);
         upper[r] = t->tested ? t->hi : NAN;
         lower[r] = t->tested ? t->lo : NAN;
     }

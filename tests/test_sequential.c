@@ -64,18 +64,21 @@ static void spending_levels(const sequential_config *c, int joint)
 
 /* One round's decisions (and, with finish, the end's) in risk mode `joint` against
  * sequential_decide.py. */
-static void decide_against_reference(int joint, int finish)
+static void decide_against_reference(int joint, int finish, size_t cap)
 {
     sequential_config cfg = slowscan_sequential_config_default();
     cfg.fdr = 0.1;
     cfg.joint = joint;
+    if (cap)
+        cfg.max_per_series = cap; /* tests at the cap: their limits are their reported p */
     sequential_test t[DECIDE_TESTS];
     decide_counts(t);
     size_t open = 0;
     CHECK(slowscan_sequential_decide(&cfg, t, DECIDE_TESTS, &open) == SLOWSCAN_OK, "decide");
     if (finish)
         CHECK(slowscan_sequential_finish(&cfg, t, DECIDE_TESTS, &open) == SLOWSCAN_OK, "finish");
-    spending_levels(&cfg, joint);
+    if (!cap)
+        spending_levels(&cfg, joint);
     double ref[3 * DECIDE_TESTS];
     char path[512], cmd[1024];
     snprintf(path, sizeof path, "%s", check_tmp_path("sequential_counts.txt"));
@@ -85,8 +88,8 @@ static void decide_against_reference(int joint, int finish)
                 slowscan_sequential_alpha_at(&cfg, DECIDE_TESTS, 0, t[j].drawn));
     if (f)
         fclose(f);
-    snprintf(cmd, sizeof cmd, "sequential_decide.py %s per-test %.17g%s", path, cfg.fdr,
-             finish ? " finish" : "");
+    snprintf(cmd, sizeof cmd, "sequential_decide.py %s per-test %.17g%s cap=%zu", path,
+             cfg.fdr, finish ? " finish" : "", cfg.max_per_series);
     /* scipy.stats.beta.ppf and statsmodels multipletests(fdr_bh) */
     int got = check_python(cmd, ref, 3 * DECIDE_TESTS);
     CHECK(got == 3 * DECIDE_TESTS, "sequential_decide.py gave %d numbers", got);
@@ -106,6 +109,17 @@ static void decide_against_reference(int joint, int finish)
     for (size_t k = 0; k < DECIDE_TESTS; k++)
         open_count += t[k].decision == SEQUENTIAL_OPEN;
     CHECK(open == open_count, "open count %zu", open);
+    size_t at_cap = 0, point = 0;
+    for (size_t k = 0; k < DECIDE_TESTS; k++) {
+        at_cap += t[k].drawn >= cfg.max_per_series;
+        /* before the end a test at the cap may wait on others' open intervals */
+        point += t[k].drawn >= cfg.max_per_series &&
+                 (!finish || t[k].decision != SEQUENTIAL_OPEN) && t[k].lo == t[k].hi &&
+                 t[k].lo == (1.0 + (double)t[k].hits) / (1.0 + (double)t[k].drawn);
+    }
+    CHECK(point == at_cap && (cap == 0 || at_cap > 0),
+          "%zu of %zu tests at the cap K = %zu settled on their fixed-K p", point, at_cap,
+          cfg.max_per_series);
     /* the reported p: (1 + S) / (1 + n) with the 95% Clopper-Pearson interval */
     double p, lo, hi, wlo, whi;
     slowscan_sequential_p(&t[3], &p, &lo, &hi);
@@ -210,6 +224,54 @@ static int run_out(const char *args, char **out, char **err)
     return check_run(cmd, out, err);
 }
 
+/* Field k (0-based) of a CSV row into buf; 0 when the row has fewer fields. */
+static int csv_field(const char *row, int k, char *buf, size_t size)
+{
+    for (; k > 0 && row; k--)
+        row = strpbrk(row, ",\n") && *strpbrk(row, ",\n") == ',' ? strchr(row, ',') + 1 : NULL;
+    if (!row)
+        return 0;
+    size_t len = strcspn(row, ",\n");
+    snprintf(buf, size, "%.*s", (int)(len < size ? len : size - 1), row);
+    return 1;
+}
+
+/* Capped at K = 128 with budget to spare, every test auto carries to the cap is the fixed-128
+ * test: its p and its flag are those of `--surrogates 128` (Besag & Clifford 1991: run to its
+ * largest size the sequential test is the fixed one; replicate j is the same draw), and none
+ * is undecided. */
+static void capped_equals_fixed(const char *csv)
+{
+    char args[2048], *capped = NULL, *fixed = NULL, *err = NULL;
+    snprintf(args, sizeof args, "screen --surrogates auto --max-per-series 128 --budget 100000 "
+             "--quiet %s", csv);
+    int rc = run_out(args, &capped, &err);
+    free(err);
+    snprintf(args, sizeof args, "screen --surrogates 128 %s", csv);
+    int rc_fixed = run_out(args, &fixed, NULL);
+    size_t compared = 0, differ = 0, rows = 0;
+    for (const char *row = capped ? strchr(capped, '\n') : NULL; row && row[1]; row = strchr(row + 1, '\n')) {
+        char key[128], used[32], p[64], flag[32], want_p[64], want_flag[32];
+        rows++;
+        if (!csv_field(row + 1, 10, used, sizeof used) || strcmp(used, "128") != 0)
+            continue;
+        size_t keylen = strcspn(row + 1, ",") + 1;
+        keylen += strcspn(row + 1 + keylen, ",") + 1; /* "series,indicator," */
+        snprintf(key, sizeof key, "\n%.*s", (int)keylen, row + 1);
+        const char *same = fixed ? strstr(fixed, key) : NULL;
+        csv_field(row + 1, 7, p, sizeof p), csv_field(row + 1, 11, flag, sizeof flag);
+        differ += !same || !csv_field(same + 1, 7, want_p, sizeof want_p) ||
+                  !csv_field(same + 1, 11, want_flag, sizeof want_flag) || strcmp(p, want_p) ||
+                  strcmp(flag, want_flag);
+        compared++;
+    }
+    CHECK(rc == 0 && rc_fixed == 0 && compared >= 30 && differ == 0 && capped &&
+              !strstr(capped, ",undecided,"),
+          "auto capped at 128: %zu of %zu tests at the cap, %zu differ from --surrogates 128 in "
+          "p or flag", compared, rows, differ);
+    free(capped), free(fixed);
+}
+
 /* The command: threads, the fixed-run equality of p, undecided, warnings, refusals. */
 static void command(void)
 {
@@ -274,9 +336,19 @@ static void command(void)
     CHECK(rc == 0 && tiny && strstr(tiny, ",undecided,") && err && strstr(err, "undecided"),
           "undecided with --budget 200");
     free(tiny), free(err), err = NULL;
+    capped_equals_fixed(csv);
     /* K too small for any discovery among 36 tests: 1/65 > 0.05/36 */
     snprintf(args, sizeof args, "screen --surrogates auto --max-per-series 64 %s", csv);
     char *ignored;
+    rc = run_out(args, &ignored, &err);
+    free(ignored);
+    /* BH rejects k tests tied at p = 1/65 when 1/65 <= 0.05 k / 36: k >= 12 (Benjamini &
+     * Hochberg 1995's step-up rule) */
+    CHECK(rc == 0 && err && strstr(err, "no test can be a discovery alone") &&
+              strstr(err, "at least 12 tests tied"), "warns: %s", err ? err : "");
+    free(err), err = NULL;
+    /* at --fdr 0.01 not even all 36 tied at 1/65 could be: 1/65 > 0.01 */
+    snprintf(args, sizeof args, "screen --surrogates auto --max-per-series 64 --fdr 0.01 %s", csv);
     rc = run_out(args, &ignored, &err);
     free(ignored);
     CHECK(rc == 0 && err && strstr(err, "no discovery is possible"), "warns: %s", err ? err : "");
@@ -339,13 +411,15 @@ static void simulated_screen(const sequential_config *cfg, gsl_rng *r, size_t m,
 /* Mean FDP over `screens` screens of m tests (alt alternatives), with a normal-theory 95%
  * interval of the mean, at `per_test` surrogates of budget per test and in risk mode joint.
  * SEQUENTIAL_SCREENS sets the count (bigger runs by hand). */
-static void false_discoveries(size_t per_test, int joint)
+static void false_discoveries(size_t per_test, int joint, size_t cap)
 {
     const char *env = getenv("SEQUENTIAL_SCREENS");
     size_t screens = env ? strtoul(env, NULL, 10) : 60, m = 300, alt = 30;
     sequential_config cfg = slowscan_sequential_config_default();
     cfg.fdr = 0.1;
     cfg.joint = joint;
+    if (cap) /* tests at the cap settled on their fixed-K p, a valid p of its own */
+        cfg.max_per_series = cap;
     cfg.budget = per_test * m; /* 1000: the alternatives need about 2000 surrogates each */
     gsl_rng *r = gsl_rng_alloc(gsl_rng_mt19937);
     gsl_rng_set(r, 2026);
@@ -362,9 +436,10 @@ static void false_discoveries(size_t per_test, int joint)
     double mean = sum / (double)screens;
     double sd = sqrt(fmax(0.0, (sum2 - (double)screens * mean * mean) / (double)(screens - 1)));
     double half = 1.959964 * sd / sqrt((double)screens);
-    printf("  sequential (%s risk, budget %zu per test): mean FDP %.4f [%.4f, %.4f] over %zu "
+    printf("  sequential (%s risk, budget %zu per test, K %zu): mean FDP %.4f [%.4f, %.4f] over %zu "
            "screens of %zu tests (%zu alternatives), q = %g (bound m0 q / m = %.3f); power %.3f, "
            "undecided %.2f per screen\n", joint ? "joint" : "per-test", per_test,
+           cfg.max_per_series,
            mean, mean - half, mean + half, screens, m, alt, cfg.fdr,
            cfg.fdr * (double)(m - alt) / (double)m, power / (double)screens,
            undecided / (double)screens);
@@ -377,13 +452,16 @@ static void false_discoveries(size_t per_test, int joint)
 
 void suite_sequential(void)
 {
-    decide_against_reference(0, 0);
-    decide_against_reference(1, 0);
-    decide_against_reference(0, 1);
+    decide_against_reference(0, 0, 0);
+    decide_against_reference(1, 0, 0);
+    decide_against_reference(0, 1, 0);
+    decide_against_reference(0, 0, 9000);
+    decide_against_reference(0, 1, 9000);
     next_round();
     ranges_equal_fixed();
     command();
-    false_discoveries(1000, 0);
-    false_discoveries(200, 0);
-    false_discoveries(1000, 1);
+    false_discoveries(1000, 0, 0);
+    false_discoveries(200, 0, 0);
+    false_discoveries(1000, 1, 0);
+    false_discoveries(1000, 0, 2048);
 }

@@ -19,7 +19,12 @@
  * Benjamini-Hochberg at level q applied to the upper limits rejects a set A of tests, applied
  * to the lower limits a set B containing A (BH's rejection set only grows as p-values fall):
  * the tests in A would be rejected, those outside B accepted, whatever the p-values inside
- * the intervals are; the rest are open and get more surrogates in the next round. This is the
+ * the intervals are; the rest are open and get more surrogates in the next round. A test
+ * whose finite surrogate statistics reach max_per_series K has become the fixed-K Monte Carlo
+ * test (Besag & Clifford 1991, Biometrika 78:301): its interval is the point
+ * (1 + hits) / (1 + K), the p of a --surrogates K run (replicate j is the same draw), so BH
+ * settles it as that run would, and a run capped at a fixed run's M reproduces the fixed
+ * run's p for every test it carries to the cap (not 'undecided'). This is the
  * idea of Gandy & Hahn's MMCTest (Scand. J. Stat. 2014), and the per-test risk with a fixed
  * total budget that of their QuickMMCTest (both recalled from memory, not checked; their
  * intervals and spending of epsilon may differ). When the budget is spent,
