@@ -4,7 +4,8 @@
  * surrogate whose p is below alpha (p falls as the statistic grows), x_end where the upper
  * limit becomes 0 and p returns to 1/(M+1). Averaged over sets of surrogates that is the
  * size, with no need to wait for 1-in-10^6 events; the interval is mean +- 1.96 standard
- * errors over the sets (normal approximation, common practice). The search stops 50 above
+ * errors over the sets (normal approximation, common practice), its lower end clipped at 0.
+ * The search stops 50 above
  * the largest surrogate; where p is not below alpha there, the mass beyond is counted as
  * rejected (an overestimate of the size: 0.02 alpha at alpha 1e-6 for Student t nulls,
  * nothing for normal ones). */
@@ -140,7 +141,9 @@ void tail_size_run(tail_null null, size_t m, int sets, unsigned long seed,
     for (int a = 0; a < 3; a++) {
         double mean = sum[a] / sets, var = fmax(0, sq[a] / sets - mean * mean);
         double half = 1.96 * sqrt(var / (sets > 1 ? sets - 1 : 1));
-        out->size[a] = mean, out->lo[a] = mean - half, out->hi[a] = mean + half;
+        /* a size is not negative: the normal interval of a mean over few sets of a skewed
+         * quantity can reach below 0 (one set carrying most of the mass), so it is clipped */
+        out->size[a] = mean, out->lo[a] = fmax(0.0, mean - half), out->hi[a] = mean + half;
     }
     int u = out->used_exact;
     qsort(ratio, (size_t)u, sizeof *ratio, by_double);
