@@ -457,7 +457,8 @@ int cli_resume_record(cli_resume *r, const void *record, size_t size);
 void cli_resume_close(cli_resume *r, int finished);
 /* Removes the temporaries a killed run left beside the outputs (before they are opened). */
 void cli_resume_clean(const cli_options *o);
-/* The stop says nothing (the processes of a shared run other than process 0). */
+/* The stop says nothing (the processes of a shared run other than process 0; any process
+ * once its command has ended). */
 void cli_stops_quiet(void);
 
 /* input_checks.c: reading options from the command's (CF units parsed on the calendar), the

@@ -51,6 +51,11 @@ int cli_main(int argc, char **argv)
         int rc = cli_parse(name, argc, argv, 2, &opts);
         if (rc == EXIT_OK)
             rc = commands[c].run(&opts);
+        /* The command has ended: its outputs are in place or removed and its message said.
+         * A stop from now on (a launcher ending the processes of a run one of whose other
+         * processes failed, after process 0 has said so) must not add a second line that
+         * claims nothing was written. */
+        cli_stops_quiet();
         cli_options_free(&opts);
         fftw_cleanup();
         return rc < 0 ? EXIT_OK : rc;
