@@ -75,26 +75,13 @@ static int fit_step(const cli_options *opts, emulate_run *run, size_t k, modes_s
     slowscan_timescales_workspace_free(ws);
     if (st != SLOWSCAN_OK)
         return cli_modes_refuse(opts, s, st);
-    run->sd = run->fit.sigma;
-    run->r1 = run->fit.r1;
-    double scale = 0;
-    for (size_t i = 0; i < s->n; i++)
-        scale = fmax(scale, fabs(s->y[i]));
-    /* residuals at round-off (a noise-free model run) are no noise estimate */
-    if (!opts->modes.control.text && !(run->sd > 1e-8 * scale)) {
+    if (slowscan_emulate_fit_noise(&run->fit, s->y, s->n, &run->sd, &run->r1) != SLOWSCAN_OK &&
+        !opts->modes.control.text) {
         cli_error("%s: column '%s': the fitted modes leave no residual noise (sd %.3g) to set "
                   "the band; give a control run with --control FILE:COL", s->source, s->name, run->sd);
         return EXIT_BAD_INPUT;
     }
     return EXIT_OK;
-}
-
-/* Two grids agree on their step (DESIGN §3's tolerance, 1e-6 relative). */
-static int same_step(double a, double b) { return fabs(a - b) <= 1e-6 * fabs(b); }
-
-static double table_step(const series_table *t)
-{
-    return cli_mean_step(t->time, t->n);
 }
 
 /* The step response per unit forcing at lags 0, dt, 2 dt, ...: the modes', or the step run's
@@ -126,19 +113,14 @@ static int step_response(const cli_options *opts, emulate_run *run, const modes_
 static int align_compare(const cli_options *opts, emulate_run *run, size_t k)
 {
     const series_table *c = &run->tables[COMPARE];
-    double dt = table_step(&run->tables[FORCING]);
-    for (size_t i = 0; i < run->n; i++)
-        run->actual[i] = NAN;
-    for (size_t i = 0; i < c->n; i++) {
-        double at = (c->time[i] - run->time[0]) / dt;
-        long m = lround(at);
-        if (fabs(at - (double)m) > 1e-6 || m < 0 || (size_t)m >= run->n) {
-            cli_error("option --compare %s: time %g (row %zu) is not on the forcing's grid "
-                      "(from %g in steps of %g)", opts->modes.compare.text, c->time[i],
-                      c->rows ? c->rows[i] : i + 2, run->time[0], dt);
-            return EXIT_BAD_INPUT;
-        }
-        run->actual[m] = c->values[k][i];
+    double dt;
+    size_t i;
+    if (slowscan_emulate_align(run->time, run->n, c->time, c->values[k], c->n, run->actual, &dt,
+                               &i) != SLOWSCAN_OK) {
+        cli_error("option --compare %s: time %g (row %zu) is not on the forcing's grid "
+                  "(from %g in steps of %g)", opts->modes.compare.text, c->time[i],
+                  c->rows ? c->rows[i] : i + 2, run->time[0], dt);
+        return EXIT_BAD_INPUT;
     }
     run->compared = 1;
     return EXIT_OK;
@@ -264,8 +246,9 @@ static int read_inputs(const cli_options *opts, emulate_run *run, size_t *k)
         if (rc != EXIT_OK)
             return rc;
     }
-    double fdt = table_step(&run->tables[FORCING]), sdt = table_step(&run->tables[STEP]);
-    if (!same_step(fdt, sdt)) {
+    const series_table *f = &run->tables[FORCING], *t = &run->tables[STEP];
+    double fdt, sdt;
+    if (slowscan_emulate_same_step(f->time, f->n, t->time, t->n, &fdt, &sdt) != SLOWSCAN_OK) {
         cli_error("option --forcing %s: time step %g differs from the step run's %g (resample "
                   "one of them)", m->forcing.text, fdt, sdt);
         return EXIT_BAD_INPUT;
