@@ -77,22 +77,15 @@ def emulate(step, forcing, step_forcing, compare=None, control=None, response=No
         runs[option] = _ready(table, [name], own, inputs, option)
         if option != "compare":
             _complete(option, runs[option])
-    fdt, sdt = (_forced.mean_step(runs[k].time) for k in ("forcing", "step"))
-    if not abs(fdt - sdt) <= 1e-6 * abs(sdt):
-        raise SlowscanError("forcing=: time step %g differs from the step run's %g (resample "
-                            "one of them)" % (fdt, sdt))
+    _same_step(runs["forcing"], runs["step"])
     s = Series(runs["step"], 0, None, opts, "emulate")
     fit = s.fit(opts)
-    sd, r1 = fit.sigma, fit.r1
-    if control is None and not sd > 1e-8 * np.max(np.abs(s.y)):
-        raise SlowscanError("%s: column '%s': the fitted modes leave no residual noise (sd "
-                            "%.3g) to set the band; give a control run with control="
-                            % (s.source, s.name, sd))
+    sd, r1 = _fit_noise(s, fit, control)
     f = runs["forcing"]
     emulated = _convolve(_response(s, fit, F, f.n, empirical), f.values[0], f.n)
     actual = np.full(f.n, np.nan)
     if compare is not None:
-        _align(runs["compare"], f, fdt, actual)
+        _align(runs["compare"], f, actual)
     if control is not None:
         sd, r1 = _control_noise(runs["control"])
     dep = _departure(opts, actual, emulated, sd, r1, s)
@@ -134,15 +127,34 @@ def _convolve(response, forcing, n):
     return out
 
 
-def _align(c, f, dt, actual):
-    """The compared run on the forcing's grid (NaN where it has no sample)."""
-    at = (c.time - f.time[0]) / dt
-    m = np.rint(at).astype(np.int64)
-    bad = np.flatnonzero((np.abs(at - m) > 1e-6) | (m < 0) | (m >= f.n))
-    if len(bad):
+def _same_step(f, step):
+    """The forcing's time step against the step run's (slowscan_emulate_same_step)."""
+    fdt, sdt = ffi.new("double *"), ffi.new("double *")
+    if lib.slowscan_emulate_same_step(ptr(f.time), f.n, ptr(step.time), step.n, fdt, sdt) != 0:
+        raise SlowscanError("forcing=: time step %g differs from the step run's %g (resample "
+                            "one of them)" % (fdt[0], sdt[0]))
+
+
+def _fit_noise(s, fit, control):
+    """The step run's residual noise (slowscan_emulate_fit_noise); refused at round-off
+    unless a control run gives the band."""
+    sd, r1 = ffi.new("double *"), ffi.new("double *")
+    if lib.slowscan_emulate_fit_noise(fit, ptr(s.y), s.n, sd, r1) != 0 and control is None:
+        raise SlowscanError("%s: column '%s': the fitted modes leave no residual noise (sd "
+                            "%.3g) to set the band; give a control run with control="
+                            % (s.source, s.name, sd[0]))
+    return sd[0], r1[0]
+
+
+def _align(c, f, actual):
+    """The compared run on the forcing's grid (NaN where it has no sample;
+    slowscan_emulate_align)."""
+    dt, bad = ffi.new("double *"), ffi.new("size_t *")
+    if lib.slowscan_emulate_align(ptr(f.time), f.n, ptr(c.time), ptr(c.values[0]), c.n,
+                                  ptr(actual), dt, bad) != 0:
+        i = bad[0]
         raise SlowscanError("compare=: time %g (sample %d) is not on the forcing's grid (from "
-                            "%g in steps of %g)" % (c.time[bad[0]], bad[0] + 1, f.time[0], dt))
-    actual[m] = c.values[0]
+                            "%g in steps of %g)" % (c.time[i], i + 1, f.time[0], dt[0]))
 
 
 def _control_noise(c):
