@@ -3,19 +3,15 @@
  * rule each, for the emulate command and the Python package alike. */
 #include "slowscan/emulate.h"
 #include "slowscan/status.h"
+#include "modes_internal.h"
 
 #include <math.h>
-
-static double mean_step(const double *time, size_t n)
-{
-    return n > 1 ? (time[n - 1] - time[0]) / (double)(n - 1) : NAN;
-}
 
 int slowscan_emulate_same_step(const double *ftime, size_t nf, const double *stime, size_t ns,
                                double *fstep, double *sstep)
 {
-    *fstep = mean_step(ftime, nf);
-    *sstep = mean_step(stime, ns);
+    *fstep = modes_mean_step(ftime, nf);
+    *sstep = modes_mean_step(stime, ns);
     /* NaN steps fail the comparison */
     return fabs(*fstep - *sstep) <= 1e-6 * fabs(*sstep) ? SLOWSCAN_OK : SLOWSCAN_EINVAL;
 }
@@ -24,7 +20,7 @@ int slowscan_emulate_align(const double *grid, size_t n, const double *time,
                            const double *values, size_t m, double *actual, double *step,
                            size_t *bad)
 {
-    *step = mean_step(grid, n);
+    *step = modes_mean_step(grid, n);
     *bad = 0;
     if (!(*step > 0))
         return SLOWSCAN_EINVAL;

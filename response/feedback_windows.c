@@ -3,6 +3,7 @@
  * cannot drift apart; they only word the refusals. */
 #include "slowscan/feedback.h"
 #include "slowscan/status.h"
+#include "modes_internal.h"
 
 #include <math.h>
 
@@ -80,7 +81,7 @@ int slowscan_feedback_windows(const double *time, size_t n, const time_axis *axi
     if (!time || n < 4)
         return refuse(d, FEEDBACK_REFUSAL_SAMPLES, SLOWSCAN_ESHORT);
     double whole = time[n - 1] - time[0];
-    d->step = whole / (double)(n - 1);
+    d->step = modes_mean_step(time, n);
     if (q->span)
         return span(time, n, q, c, d);
     double dt = d->step;

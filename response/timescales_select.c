@@ -3,6 +3,7 @@
  * one place for the timescales and emulate commands and the Python package. */
 #include "slowscan/timescales.h"
 #include "slowscan/status.h"
+#include "modes_internal.h"
 
 #include <math.h>
 
@@ -34,7 +35,7 @@ int slowscan_timescales_select(const double *time, const double *y, const double
     *s = (timescales_selection){.onset = onset, .dt = 1.0, .need = 3 * max_modes + 3,
                                 .refusal = TIMESCALES_REFUSAL_NONE};
     if (n > 1)
-        s->dt = (time[n - 1] - time[0]) / (double)(n - 1);
+        s->dt = modes_mean_step(time, n);
     /* a step just before the record: its first sample is one step into the response
      * (common practice, no source) */
     if (isnan(onset) && n > 0)
