@@ -22,6 +22,8 @@ typedef struct {
     int has_baseline;
     size_t n;               /* forcing samples */
     double *time, *forcing, *response, *emulated, *actual; /* n each, in one block */
+    double *difference, *lower, *upper; /* the band's columns (slowscan_emulate_band), n each */
+    emulate_side *side;
     timescales_result fit;
     double sd, r1;
     emulate_departure dep;
@@ -136,16 +138,15 @@ static void put_numbers(FILE *fp, const double *v, size_t count)
 
 static void write_rows(emulate_run *run)
 {
+    static const char *const sides[] = {"NA", "no", "above", "below"};
     FILE *fp = run->out;
     fputs("time,forcing,emulated,actual,difference,band_lower,band_upper,outside\n", fp);
-    double h = run->dep.half_width;
     for (size_t i = 0; i < run->n; i++) {
-        double d = run->actual[i] - run->emulated[i];
         cli_put_time(fp, &run->tables[FORCING].axis, run->time[i]);
-        const double v[] = {run->forcing[i], run->emulated[i], run->actual[i], d,
-                            run->emulated[i] - h, run->emulated[i] + h};
+        const double v[] = {run->forcing[i], run->emulated[i], run->actual[i],
+                            run->difference[i], run->lower[i], run->upper[i]};
         put_numbers(fp, v, sizeof v / sizeof v[0]);
-        fprintf(fp, ",%s\n", !isfinite(d) ? "NA" : d > h ? "above" : d < -h ? "below" : "no");
+        fprintf(fp, ",%s\n", sides[run->side[i]]);
     }
 }
 
@@ -262,8 +263,10 @@ static int emulate_forcing(const cli_options *opts, emulate_run *run, const size
 {
     const series_table *f = &run->tables[FORCING];
     run->n = f->n;
-    double *block = malloc(5 * run->n * sizeof *block);
-    if (!block) {
+    double *block = malloc(8 * run->n * sizeof *block);
+    run->side = malloc(run->n * sizeof *run->side);
+    if (!block || !run->side) {
+        free(block);
         cli_error("out of memory");
         return EXIT_INTERNAL;
     }
@@ -272,6 +275,9 @@ static int emulate_forcing(const cli_options *opts, emulate_run *run, const size
     run->response = block + 2 * run->n;
     run->emulated = block + 3 * run->n;
     run->actual = block + 4 * run->n;
+    run->difference = block + 5 * run->n;
+    run->lower = block + 6 * run->n;
+    run->upper = block + 7 * run->n;
     memcpy(run->time, f->time, run->n * sizeof *block);
     memcpy(run->forcing, f->values[k[FORCING]], run->n * sizeof *block);
     int rc = step_response(opts, run, s);
@@ -302,6 +308,9 @@ static int emulate_forcing(const cli_options *opts, emulate_run *run, const size
                   "residual; give --control FILE:COL)", s->source, s->name);
         rc = EXIT_BAD_INPUT;
     }
+    if (rc == EXIT_OK)
+        slowscan_emulate_band(run->actual, run->emulated, run->n, run->dep.half_width,
+                              run->difference, run->lower, run->upper, run->side);
     return rc;
 }
 
@@ -325,7 +334,7 @@ static int emulate(const cli_options *opts, const cli_inputs *in, void *context)
     }
     if (rc == EXIT_OK && run->figures)
         rc = cli_emulate_figure(run->figures, opts, &s, run->time, run->emulated, run->actual,
-                                run->n, &run->dep);
+                                run->lower, run->upper, run->n, &run->dep);
     free(owned);
     return rc;
 }
@@ -340,5 +349,6 @@ int cmd_emulate(const cli_options *opts)
     if (run.has_baseline)
         slowscan_series_table_free(&run.baseline);
     free(run.time);
+    free(run.side);
     return rc;
 }

@@ -63,9 +63,11 @@ void cli_modes_say(const cli_options *opts, const char *fmt, ...) __attribute__(
 /* timescales --figures: the modes over the data and the residuals. */
 int cli_timescales_figure(report_batch *figures, const modes_series *s, const timescales_result *r);
 
-/* emulate --figures: actual and emulated response, the noise band, the departure. */
+/* emulate --figures: actual and emulated response, the noise band (lower, upper: from
+ * slowscan_emulate_band), the departure. */
 int cli_emulate_figure(report_batch *figures, const cli_options *opts, const modes_series *s,
                        const double *time, const double *emulated, const double *actual,
-                       size_t n, const emulate_departure *dep);
+                       const double *lower, const double *upper, size_t n,
+                       const emulate_departure *dep);
 
 #endif

@@ -459,6 +459,14 @@ static void test_compare_rules(void)
     fit.r1 = 0.3;
     CHECK(slowscan_emulate_fit_noise(&fit, y, 3, &sd, &r1) == SLOWSCAN_ECONST && sd == 1e-9 &&
           r1 == 0.3, "sd 1e-9 below 1e-8 max |y| = 2e-8: round-off (sd and r1 still given)");
+    /* the band's columns: on the edge is inside, NaN is not compared */
+    const double act[] = {1, NAN, 2.5, -3}, emu[] = {0, 0, 0.5, 0};
+    double diff[4], lo[4], hi[4];
+    emulate_side sd4[4];
+    slowscan_emulate_band(act, emu, 4, 1, diff, lo, hi, sd4);
+    CHECK(sd4[0] == EMULATE_INSIDE && sd4[1] == EMULATE_NOT_COMPARED && sd4[2] == EMULATE_ABOVE &&
+          sd4[3] == EMULATE_BELOW && diff[2] == 2 && isnan(diff[1]) && lo[2] == -0.5 &&
+          hi[2] == 1.5, "band: inside on the edge, NA, above by 2, below by 3");
     fit.sigma = 3e-8;
     CHECK(slowscan_emulate_fit_noise(&fit, y, 3, &sd, &r1) == SLOWSCAN_OK && sd == 3e-8,
           "sd 3e-8 above 2e-8: a noise estimate");

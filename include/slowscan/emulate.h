@@ -117,6 +117,22 @@ SLOWSCAN_API
 int slowscan_emulate_fit_noise(const timescales_result *fit, const double *y, size_t n,
                                double *sd, double *r1);
 
+/* Where a sample of the compared run lies against the noise band. */
+typedef enum {
+    EMULATE_NOT_COMPARED = 0, /* the difference is not finite (no compared sample) */
+    EMULATE_INSIDE,
+    EMULATE_ABOVE,            /* difference > half_width */
+    EMULATE_BELOW             /* difference < -half_width */
+} emulate_side;
+
+/* The comparison sample by sample, by the rule slowscan_emulate_departure counts with:
+ * difference[i] = actual[i] - emulated[i], lower[i] and upper[i] = emulated[i] -+ half_width,
+ * side[i] the sample's side of the band. */
+SLOWSCAN_API
+void slowscan_emulate_band(const double *actual, const double *emulated, size_t n,
+                           double half_width, double *difference, double *lower, double *upper,
+                           emulate_side *side);
+
 /* The noise of a control run x[n]: the sd and lag-1 autocorrelation of its residual from a
  * least-squares line in the sample index (control runs drift). ESHORT for n < 4, EINVAL for
  * NaN. */

@@ -182,15 +182,21 @@ def _departure(opts, actual, emulated, sd, r1, s):
     return dep
 
 
+_SIDES = ("NA", "no", "above", "below")
+
+
 def _rows(f, emulated, actual, h):
-    d = actual - emulated
-    with np.errstate(invalid="ignore"):
-        outside = np.where(~np.isfinite(d), "NA", np.where(d > h, "above",
-                                                           np.where(d < -h, "below", "no")))
+    """The rows, the band's columns by slowscan_emulate_band."""
+    n = f.n
+    d, lower, upper = np.empty(n), np.empty(n), np.empty(n)
+    side = ffi.new("emulate_side[]", n)
+    lib.slowscan_emulate_band(ptr(actual), ptr(emulated), n, h, ptr(d), ptr(lower), ptr(upper),
+                              side)
+    outside = np.array([_SIDES[side[i]] for i in range(n)], dtype=object)
     return _forced.frame({"time": _forced.times(f.axis, f.time), "forcing": f.values[0],
                           "emulated": emulated, "actual": actual, "difference": d,
-                          "band_lower": emulated - h, "band_upper": emulated + h,
-                          "outside": outside.astype(object)}, EMULATE_COLUMNS)
+                          "band_lower": lower, "band_upper": upper, "outside": outside},
+                         EMULATE_COLUMNS)
 
 
 def _summary(opts, empirical, F, fit, control, sd, r1, dep, compared, f):

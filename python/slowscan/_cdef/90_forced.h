@@ -204,3 +204,9 @@ int slowscan_emulate_align(const double *grid, size_t n, const double *time,
                            size_t *bad);
 int slowscan_emulate_fit_noise(const timescales_result *fit, const double *y, size_t n,
                                double *sd, double *r1);
+typedef enum {
+    EMULATE_NOT_COMPARED = 0, EMULATE_INSIDE, EMULATE_ABOVE, EMULATE_BELOW
+} emulate_side;
+void slowscan_emulate_band(const double *actual, const double *emulated, size_t n,
+                           double half_width, double *difference, double *lower, double *upper,
+                           emulate_side *side);
