@@ -88,9 +88,9 @@ def emulate(step, forcing, step_forcing, compare=None, control=None, response=No
         _align(runs["compare"], f, actual)
     if control is not None:
         sd, r1 = _control_noise(runs["control"])
-    dep = _departure(opts, actual, emulated, sd, r1, s)
+    dep, level = _departure(opts, actual, emulated, sd, r1, s)
     out = _rows(f, emulated, actual, dep.half_width)
-    out.attrs["departure"] = _summary(opts, empirical, F, fit, control, sd, r1, dep,
+    out.attrs["departure"] = _summary(level, empirical, F, fit, control, sd, r1, dep,
                                       compare is not None, f)
     return out
 
@@ -179,7 +179,7 @@ def _departure(opts, actual, emulated, sd, r1, s):
                                       dep) != 0:
         raise SlowscanError("%s: column '%s': the noise band has no width (the step run's fit "
                             "leaves no residual; give control=)" % (s.source, s.name))
-    return dep
+    return dep, float(cfg.band_level)
 
 
 _SIDES = ("NA", "no", "above", "below")
@@ -199,12 +199,12 @@ def _rows(f, emulated, actual, h):
                          EMULATE_COLUMNS)
 
 
-def _summary(opts, empirical, F, fit, control, sd, r1, dep, compared, f):
+def _summary(level, empirical, F, fit, control, sd, r1, dep, compared, f):
     out = {"step_response": "step run values" if empirical else "fitted modes",
            "step_forcing": F, "modes": int(fit.nmodes),
            "noise_source": "control run (linear drift removed)" if control is not None
            else "step run residuals", "noise_sd": sd, "noise_lag1": r1,
-           "band_level": float(opts.get("band_level") or 0.99),
+           "band_level": level,
            "band_half_width": dep.half_width, "persist": int(dep.persist),
            "compared": compared, "departed": bool(dep.departed)}
     if dep.departed:

@@ -82,8 +82,13 @@ def _refused(run, k, f, sel, opts, command):
                              sel.need))
 
 
+# the library's default and most modes (TIMESCALES_MAX_MODES: the length of the result's table)
+_DEFAULT_MODES = lib.slowscan_timescales_config_default().max_modes
+_MOST_MODES = len(ffi.new("timescales_result *").modes)
+
+
 def max_modes(opts):
-    return _whole("max_modes", opts.get("max_modes", 3), 1, 5)
+    return _whole("max_modes", opts.get("max_modes", _DEFAULT_MODES), 1, _MOST_MODES)
 
 
 def _ready(table, names, opts, inputs, what):
