@@ -22,6 +22,8 @@ typedef struct {
     int has_baseline;
     size_t n;               /* forcing samples */
     double *time, *forcing, *response, *emulated, *actual; /* n each, in one block */
+    double *difference, *lower, *upper; /* the band's columns (slowscan_emulate_band), n each */
+    emulate_side *side;
     timescales_result fit;
     double sd, r1;
     emulate_departure dep;
@@ -75,26 +77,13 @@ static int fit_step(const cli_options *opts, emulate_run *run, size_t k, modes_s
     slowscan_timescales_workspace_free(ws);
     if (st != SLOWSCAN_OK)
         return cli_modes_refuse(opts, s, st);
-    run->sd = run->fit.sigma;
-    run->r1 = run->fit.r1;
-    double scale = 0;
-    for (size_t i = 0; i < s->n; i++)
-        scale = fmax(scale, fabs(s->y[i]));
-    /* residuals at round-off (a noise-free model run) are no noise estimate */
-    if (!opts->modes.control.text && !(run->sd > 1e-8 * scale)) {
+    if (slowscan_emulate_fit_noise(&run->fit, s->y, s->n, &run->sd, &run->r1) != SLOWSCAN_OK &&
+        !opts->modes.control.text) {
         cli_error("%s: column '%s': the fitted modes leave no residual noise (sd %.3g) to set "
                   "the band; give a control run with --control FILE:COL", s->source, s->name, run->sd);
         return EXIT_BAD_INPUT;
     }
     return EXIT_OK;
-}
-
-/* Two grids agree on their step (DESIGN §3's tolerance, 1e-6 relative). */
-static int same_step(double a, double b) { return fabs(a - b) <= 1e-6 * fabs(b); }
-
-static double table_step(const series_table *t)
-{
-    return cli_mean_step(t->time, t->n);
 }
 
 /* The step response per unit forcing at lags 0, dt, 2 dt, ...: the modes', or the step run's
@@ -126,19 +115,14 @@ static int step_response(const cli_options *opts, emulate_run *run, const modes_
 static int align_compare(const cli_options *opts, emulate_run *run, size_t k)
 {
     const series_table *c = &run->tables[COMPARE];
-    double dt = table_step(&run->tables[FORCING]);
-    for (size_t i = 0; i < run->n; i++)
-        run->actual[i] = NAN;
-    for (size_t i = 0; i < c->n; i++) {
-        double at = (c->time[i] - run->time[0]) / dt;
-        long m = lround(at);
-        if (fabs(at - (double)m) > 1e-6 || m < 0 || (size_t)m >= run->n) {
-            cli_error("option --compare %s: time %g (row %zu) is not on the forcing's grid "
-                      "(from %g in steps of %g)", opts->modes.compare.text, c->time[i],
-                      c->rows ? c->rows[i] : i + 2, run->time[0], dt);
-            return EXIT_BAD_INPUT;
-        }
-        run->actual[m] = c->values[k][i];
+    double dt;
+    size_t i;
+    if (slowscan_emulate_align(run->time, run->n, c->time, c->values[k], c->n, run->actual, &dt,
+                               &i) != SLOWSCAN_OK) {
+        cli_error("option --compare %s: time %g (row %zu) is not on the forcing's grid "
+                  "(from %g in steps of %g)", opts->modes.compare.text, c->time[i],
+                  c->rows ? c->rows[i] : i + 2, run->time[0], dt);
+        return EXIT_BAD_INPUT;
     }
     run->compared = 1;
     return EXIT_OK;
@@ -154,16 +138,15 @@ static void put_numbers(FILE *fp, const double *v, size_t count)
 
 static void write_rows(emulate_run *run)
 {
+    static const char *const sides[] = {"NA", "no", "above", "below"};
     FILE *fp = run->out;
     fputs("time,forcing,emulated,actual,difference,band_lower,band_upper,outside\n", fp);
-    double h = run->dep.half_width;
     for (size_t i = 0; i < run->n; i++) {
-        double d = run->actual[i] - run->emulated[i];
         cli_put_time(fp, &run->tables[FORCING].axis, run->time[i]);
-        const double v[] = {run->forcing[i], run->emulated[i], run->actual[i], d,
-                            run->emulated[i] - h, run->emulated[i] + h};
+        const double v[] = {run->forcing[i], run->emulated[i], run->actual[i],
+                            run->difference[i], run->lower[i], run->upper[i]};
         put_numbers(fp, v, sizeof v / sizeof v[0]);
-        fprintf(fp, ",%s\n", !isfinite(d) ? "NA" : d > h ? "above" : d < -h ? "below" : "no");
+        fprintf(fp, ",%s\n", sides[run->side[i]]);
     }
 }
 
@@ -264,8 +247,9 @@ static int read_inputs(const cli_options *opts, emulate_run *run, size_t *k)
         if (rc != EXIT_OK)
             return rc;
     }
-    double fdt = table_step(&run->tables[FORCING]), sdt = table_step(&run->tables[STEP]);
-    if (!same_step(fdt, sdt)) {
+    const series_table *f = &run->tables[FORCING], *t = &run->tables[STEP];
+    double fdt, sdt;
+    if (slowscan_emulate_same_step(f->time, f->n, t->time, t->n, &fdt, &sdt) != SLOWSCAN_OK) {
         cli_error("option --forcing %s: time step %g differs from the step run's %g (resample "
                   "one of them)", m->forcing.text, fdt, sdt);
         return EXIT_BAD_INPUT;
@@ -279,8 +263,10 @@ static int emulate_forcing(const cli_options *opts, emulate_run *run, const size
 {
     const series_table *f = &run->tables[FORCING];
     run->n = f->n;
-    double *block = malloc(5 * run->n * sizeof *block);
-    if (!block) {
+    double *block = malloc(8 * run->n * sizeof *block);
+    run->side = malloc(run->n * sizeof *run->side);
+    if (!block || !run->side) {
+        free(block);
         cli_error("out of memory");
         return EXIT_INTERNAL;
     }
@@ -289,6 +275,9 @@ static int emulate_forcing(const cli_options *opts, emulate_run *run, const size
     run->response = block + 2 * run->n;
     run->emulated = block + 3 * run->n;
     run->actual = block + 4 * run->n;
+    run->difference = block + 5 * run->n;
+    run->lower = block + 6 * run->n;
+    run->upper = block + 7 * run->n;
     memcpy(run->time, f->time, run->n * sizeof *block);
     memcpy(run->forcing, f->values[k[FORCING]], run->n * sizeof *block);
     int rc = step_response(opts, run, s);
@@ -319,6 +308,9 @@ static int emulate_forcing(const cli_options *opts, emulate_run *run, const size
                   "residual; give --control FILE:COL)", s->source, s->name);
         rc = EXIT_BAD_INPUT;
     }
+    if (rc == EXIT_OK)
+        slowscan_emulate_band(run->actual, run->emulated, run->n, run->dep.half_width,
+                              run->difference, run->lower, run->upper, run->side);
     return rc;
 }
 
@@ -342,7 +334,7 @@ static int emulate(const cli_options *opts, const cli_inputs *in, void *context)
     }
     if (rc == EXIT_OK && run->figures)
         rc = cli_emulate_figure(run->figures, opts, &s, run->time, run->emulated, run->actual,
-                                run->n, &run->dep);
+                                run->lower, run->upper, run->n, &run->dep);
     free(owned);
     return rc;
 }
@@ -357,5 +349,6 @@ int cmd_emulate(const cli_options *opts)
     if (run.has_baseline)
         slowscan_series_table_free(&run.baseline);
     free(run.time);
+    free(run.side);
     return rc;
 }

@@ -71,27 +71,48 @@ static int open_outputs(const cli_options *opts, cli_outputs *outs, void *contex
     return rc;
 }
 
-/* --fit-span A:B as times of the run's axis, inside the record. */
-static int fit_span(const cli_options *o, const cli_feedback_run *r, feedback_config *c)
+/* The library's refusal of the run's windows (slowscan_feedback_windows) in the options'
+ * words; `unread`: --fit-span's times could not be read on the run's axis. */
+static int refused(const cli_options *o, const cli_feedback_run *r, const feedback_config *c,
+                   const feedback_windows_detail *d, int unread)
 {
     const cli_feedback_options *f = &o->feedback;
-    if (slowscan_time_axis_value(&r->axis, f->span_from, NULL, &c->span_from) != SLOWSCAN_OK ||
-        slowscan_time_axis_value(&r->axis, f->span_until, NULL, &c->span_until) != SLOWSCAN_OK) {
-        cli_error("option --fit-span: '%s' is not two times of %s", f->span_text, r->source);
-        return EXIT_BAD_INPUT;
+    const char *window = o->window.text ? o->window.text : "(default)";
+    const char *names[] = {"--skip", "--window", "--stride"};
+    const char *texts[] = {o->forced.skip.text, o->window.text, f->stride.text};
+    switch (d->refusal) {
+    case FEEDBACK_REFUSAL_SAMPLES:
+        cli_error("%s: %zu samples; a feedback regression needs at least 4", r->source, r->n);
+        break;
+    case FEEDBACK_REFUSAL_SPAN:
+        if (unread)
+            cli_error("option --fit-span: '%s' is not two times of %s", f->span_text, r->source);
+        else
+            cli_error("option --fit-span: %s is not an increasing span inside the record of %s",
+                      f->span_text, r->source);
+        break;
+    case FEEDBACK_REFUSAL_UNIT:
+        return cli_forced_unmeasurable(names[d->length], texts[d->length], &r->axis);
+    case FEEDBACK_REFUSAL_SKIP:
+        cli_error("option --skip %s: leaves less than 4 samples of %s", o->forced.skip.text,
+                  r->source);
+        break;
+    case FEEDBACK_REFUSAL_WINDOW_LONG:
+        cli_error("option --window %s: %.12g time units is longer than the record of %s "
+                  "(%.12g after --skip)", window, c->window, r->source, d->rest);
+        break;
+    case FEEDBACK_REFUSAL_WINDOW_SHORT:
+        cli_error("option --window %s: fewer than 4 samples per window in %s", window, r->source);
+        break;
+    default:
+        cli_error("option --stride %s: shorter than the time step (%.12g) of %s", f->stride.text,
+                  d->step, r->source);
     }
-    double dt = cli_mean_step(r->time, r->n);
-    if (!(c->span_from < c->span_until) || c->span_from < r->time[0] - 1e-6 * dt ||
-        c->span_until > r->time[r->n - 1] + 1e-6 * dt) {
-        cli_error("option --fit-span: %s is not an increasing span inside the record of %s",
-                  f->span_text, r->source);
-        return EXIT_BAD_INPUT;
-    }
-    return EXIT_OK;
+    return EXIT_BAD_INPUT;
 }
 
-/* The library's configuration for one run: window (100 time units or 50%, the shorter, when
- * not given), stride (a tenth of the window, at least one step), skip, span. */
+/* The library's configuration for one run: the options as given, their defaults and checks
+ * by slowscan_feedback_windows. */
 static int configure(const cli_options *o, const cli_feedback_run *r, feedback_config *c)
 {
     const cli_feedback_options *f = &o->feedback;
@@ -99,49 +120,28 @@ static int configure(const cli_options *o, const cli_feedback_run *r, feedback_c
     c->fit = f->fit;
     c->noise_ratio = r->noise_ratio;
     c->scale = f->scale;
-    if (r->n < 4) {
-        cli_error("%s: %zu samples; a feedback regression needs at least 4", r->source, r->n);
-        return EXIT_BAD_INPUT;
-    }
-    if (f->span_text)
-        return fit_span(o, r, c);
-    double span = r->time[r->n - 1] - r->time[0], dt = cli_mean_step(r->time, r->n);
+    feedback_request q = slowscan_feedback_request_default();
     const cli_forced_length *skip = &o->forced.skip;
-    int rc = skip->text ? cli_forced_resolve(skip, "--skip", &r->axis, span, &c->skip) : EXIT_OK;
-    double rest = span - c->skip;
-    if (rc == EXIT_OK && !(rest >= 3 * dt)) {
-        cli_error("option --skip %s: leaves less than 4 samples of %s", skip->text, r->source);
-        return EXIT_BAD_INPUT;
-    }
-    cli_feedback_length half = {50, 1, 0, NULL};
-    if (rc == EXIT_OK && o->window.text) {
-        cli_feedback_length w = {o->window.amount, o->window.percent, (int)o->window.unit, o->window.text};
-        rc = cli_forced_resolve(&w, "--window", &r->axis, rest, &c->window);
-    } else if (rc == EXIT_OK) {
-        cli_forced_resolve(&half, "--window", &r->axis, rest, &c->window);
-        c->window = fmin(c->window, 100);
-    }
-    if (rc == EXIT_OK && c->window > rest + 1e-6 * dt) {
-        cli_error("option --window %s: %.12g time units is longer than the record of %s "
-                  "(%.12g after --skip)", o->window.text ? o->window.text : "(default)",
-                  c->window, r->source, rest);
-        return EXIT_BAD_INPUT;
-    }
-    if (rc == EXIT_OK && c->window < 3 * dt * (1 - 1e-9)) {
-        cli_error("option --window %s: fewer than 4 samples per window in %s",
-                  o->window.text ? o->window.text : "(default)", r->source);
-        return EXIT_BAD_INPUT;
-    }
-    c->stride = fmax(c->window / 10, dt);
-    if (rc == EXIT_OK && f->stride.text) {
-        rc = cli_forced_resolve(&f->stride, "--stride", &r->axis, rest, &c->stride);
-        if (rc == EXIT_OK && c->stride < dt * (1 - 1e-6)) {
-            cli_error("option --stride %s: shorter than the time step (%.12g) of %s",
-                      f->stride.text, dt, r->source);
-            return EXIT_BAD_INPUT;
+    q.skip = cli_forced_request(skip->amount, skip->percent, skip->unit, skip->text);
+    q.window = cli_forced_request(o->window.amount, o->window.percent, (int)o->window.unit,
+                                  o->window.text);
+    q.stride = cli_forced_request(f->stride.amount, f->stride.percent, f->stride.unit,
+                                  f->stride.text);
+    int unread = 0;
+    if (f->span_text) {
+        q.span = 1;
+        /* a time the axis cannot read stays NaN: the library refuses the span after its
+         * sample count */
+        if (slowscan_time_axis_value(&r->axis, f->span_from, NULL, &q.span_from) != SLOWSCAN_OK ||
+            slowscan_time_axis_value(&r->axis, f->span_until, NULL, &q.span_until) != SLOWSCAN_OK) {
+            q.span_from = q.span_until = NAN;
+            unread = 1;
         }
     }
-    return rc;
+    feedback_windows_detail d;
+    if (slowscan_feedback_windows(r->time, r->n, &r->axis, &q, c, &d) != SLOWSCAN_OK)
+        return refused(o, r, c, &d, unread);
+    return EXIT_OK;
 }
 
 static const char *equilibrium_note(const feedback_window *w)

@@ -7,7 +7,8 @@
 #include "slowscan/feedback.h"
 
 /* A length option as parsed by cli_parse_length: N% of the span, time units, or N with a
- * calendar unit; resolved per run on its axis (cli_forced_resolve). */
+ * calendar unit; handed to the library's requests (cli_forced_request), which measure it on
+ * a run's axis. */
 typedef struct {
     double amount;
     int percent;

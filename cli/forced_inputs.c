@@ -64,17 +64,17 @@ int cli_forced_check(const cli_options *o)
     return EXIT_OK;
 }
 
-int cli_forced_resolve(const cli_forced_length *len, const char *option, const time_axis *axis,
-                       double span, double *out)
+int cli_forced_unmeasurable(const char *option, const char *text, const time_axis *axis)
 {
-    screen_length l = {len->amount, len->percent, (length_unit)len->unit}, on;
-    if (slowscan_screen_length_on_axis(&l, axis, &on) != SLOWSCAN_OK) {
-        cli_error("option %s: %s cannot be measured on this time axis (%s)", option, len->text,
-                  axis->unit == TIME_AXIS_NUMBER ? "plain numbers: give time units" : "use its own unit");
-        return EXIT_BAD_INPUT;
-    }
-    *out = on.percent ? on.amount / 100 * span : on.amount;
-    return EXIT_OK;
+    cli_error("option %s: %s cannot be measured on this time axis (%s)", option, text,
+              axis->unit == TIME_AXIS_NUMBER ? "plain numbers: give time units" : "use its own unit");
+    return EXIT_BAD_INPUT;
+}
+
+screen_length cli_forced_request(double amount, int percent, int unit, const char *text)
+{
+    screen_length l = {text ? amount : NAN, percent, (length_unit)unit};
+    return l;
 }
 
 int cli_forced_column(const series_table *t, const char *option, const char *name,

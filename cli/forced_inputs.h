@@ -14,10 +14,12 @@ void cli_forced_defaults(cli_options *o);
 int cli_forced_choice(const char *n, const char *v, const char *a, const char *b, int *out);
 int cli_forced_check(const cli_options *o);
 
-/* A length in time units of `axis`: percent of `span`, calendar units converted; an exit code
- * with a message naming the option. */
-int cli_forced_resolve(const cli_forced_length *len, const char *option, const time_axis *axis,
-                       double span, double *out);
+/* The refusal of a length option (`text` as written) that has no meaning on `axis`; the
+ * exit code. */
+int cli_forced_unmeasurable(const char *option, const char *text, const time_axis *axis);
+
+/* A length option as the library's requests hold it: amount NaN when not given (text NULL). */
+screen_length cli_forced_request(double amount, int percent, int unit, const char *text);
 
 /* The index of column `name` of t, or a refusal naming the option and `what` (the file). */
 int cli_forced_column(const series_table *t, const char *option, const char *name,

@@ -51,22 +51,18 @@ int cli_timescales_figure(report_batch *figures, const modes_series *s, const ti
 
 int cli_emulate_figure(report_batch *figures, const cli_options *opts, const modes_series *s,
                        const double *time, const double *emulated, const double *actual,
-                       size_t n, const emulate_departure *dep)
+                       const double *lower, const double *upper, size_t n,
+                       const emulate_departure *dep)
 {
-    double *band = malloc(2 * n * sizeof *band), *owned = NULL;
+    double *owned = NULL;
     char label[300];
-    const double *x = band ? figure_x(s, time, n, &owned, label, sizeof label) : NULL;
+    const double *x = figure_x(s, time, n, &owned, label, sizeof label);
     if (!x) {
-        free(band);
         cli_error("out of memory");
         return EXIT_INTERNAL;
     }
-    for (size_t i = 0; i < n; i++) {
-        band[i] = emulated[i] - dep->half_width;
-        band[n + i] = emulated[i] + dep->half_width;
-    }
     report_emulate_data data = {.name = s->name, .time_name = label, .n = n, .time = x,
-                                .emulated = emulated, .lower = band, .upper = band + n,
+                                .emulated = emulated, .lower = lower, .upper = upper,
                                 .actual = opts->modes.compare.text ? actual : NULL,
                                 .departed = dep->departed,
                                 .departure_time = dep->departed ? x[dep->first] : 0,
@@ -74,6 +70,5 @@ int cli_emulate_figure(report_batch *figures, const cli_options *opts, const mod
                                 .size = dep->size, .band_level = opts->modes.band_level};
     int rc = cli_figure_draw(figures, &slowscan_report_emulate_figure, &data, "emulate", s->name);
     free(owned);
-    free(band);
     return rc;
 }

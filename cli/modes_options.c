@@ -1,5 +1,6 @@
 /* The option values of timescales and emulate (cli/modes.h), set from options.c's table. */
 #include "modes_cli.h"
+#include "slowscan/emulate.h"
 
 #include <errno.h>
 #include <math.h>
@@ -9,10 +10,10 @@
 void cli_modes_defaults(cli_options *o)
 {
     memset(&o->modes, 0, sizeof o->modes);
-    o->modes.max_modes = 3;
+    o->modes.max_modes = (long)slowscan_timescales_config_default().max_modes;
     o->modes.onset = NAN;
     o->modes.step_forcing = NAN;
-    o->modes.band_level = 0.99;
+    o->modes.band_level = slowscan_emulate_config_default().band_level;
 }
 
 int cli_set_joint(cli_options *o, const char *n, const char *v)

@@ -50,49 +50,52 @@ static size_t file_row(const series_table *t, size_t i)
     return t->rows ? t->rows[i] : i + 2;
 }
 
+/* The library's refusal of a run's samples (slowscan_timescales_select) in the options'
+ * words. */
+static int series_refused(const cli_options *opts, const series_table *t, size_t k, size_t f,
+                          const timescales_selection *sel)
+{
+    const char *source = cli_source_name(t->source);
+    switch (sel->refusal) {
+    case TIMESCALES_REFUSAL_UNIT:
+        return cli_forced_unmeasurable("--skip", opts->forced.skip.text, &t->axis);
+    case TIMESCALES_REFUSAL_MISSING:
+        cli_error("%s: row %zu, column '%s': missing value; %s needs a complete record "
+                  "(cut the span with --from/--until)", source, file_row(t, sel->sample),
+                  t->names[sel->column ? f : k], opts->command);
+        break;
+    default:
+        cli_error("%s: column '%s': %zu samples after the onset (%g)%s; %s with --max-modes %ld "
+                  "needs at least %zu", source, t->names[k], sel->count, sel->onset,
+                  sel->skip > 0 ? " and --skip" : "", opts->command, opts->modes.max_modes,
+                  sel->need);
+    }
+    return EXIT_BAD_INPUT;
+}
+
 int cli_modes_series(const cli_options *opts, const series_table *t, size_t k, size_t f,
                      modes_series *s, double **owned)
 {
-    const char *source = cli_source_name(t->source);
-    double dt = t->n > 1 ? cli_mean_step(t->time, t->n) : 1.0;
-    double onset = isnan(opts->modes.onset) ? t->time[0] - dt : opts->modes.onset, skip = 0;
     const cli_forced_length *skip_len = &opts->forced.skip;
-    if (skip_len->text && cli_forced_resolve(skip_len, "--skip", &t->axis,
-                                             t->time[t->n - 1] - t->time[0], &skip) != EXIT_OK)
-        return EXIT_BAD_INPUT;
-    *owned = malloc(4 * (t->n ? t->n : 1) * sizeof **owned);
+    screen_length skip = cli_forced_request(skip_len->amount, skip_len->percent, skip_len->unit,
+                                            skip_len->text);
+    *owned = malloc((t->n ? t->n : 1) * sizeof **owned);
     if (!*owned) {
         cli_error("out of memory");
         return EXIT_INTERNAL;
     }
-    double *rel = *owned, *time = rel + t->n, *y = time + t->n, *flux = y + t->n;
-    size_t n = 0;
-    for (size_t i = 0; i < t->n; i++) {
-        double since = t->time[i] - onset;
-        if (since < 0 || since < skip)
-            continue;
-        for (size_t j = 0; j < (f == (size_t)-1 ? 1u : 2u); j++)
-            if (isnan(t->values[j ? f : k][i])) {
-                cli_error("%s: row %zu, column '%s': missing value; %s needs a complete record "
-                          "(cut the span with --from/--until)", source, file_row(t, i),
-                          t->names[j ? f : k], opts->command);
-                return EXIT_BAD_INPUT;
-            }
-        rel[n] = since;
-        time[n] = t->time[i];
-        y[n] = t->values[k][i];
-        flux[n++] = f == (size_t)-1 ? NAN : t->values[f][i];
-    }
-    *s = (modes_series){.source = source, .name = t->names[k], .n = n, .t = rel, .time = time,
-                        .y = y, .flux = f == (size_t)-1 ? NULL : flux, .onset = onset, .dt = dt,
-                        .axis = &t->axis, .time_name = t->time_name, .flux_name = f == (size_t)-1 ? NULL : t->names[f]};
-    size_t need = 3 * (size_t)opts->modes.max_modes + 3;
-    if (n < need) {
-        cli_error("%s: column '%s': %zu samples after the onset (%g)%s; %s with --max-modes %ld "
-                  "needs at least %zu", source, s->name, n, onset,
-                  skip > 0 ? " and --skip" : "", opts->command, opts->modes.max_modes, need);
-        return EXIT_BAD_INPUT;
-    }
+    int joint = f != (size_t)-1;
+    timescales_selection sel;
+    if (slowscan_timescales_select(t->time, t->values[k], joint ? t->values[f] : NULL, t->n,
+                                   &t->axis, opts->modes.onset, &skip,
+                                   (size_t)opts->modes.max_modes, *owned, &sel) != SLOWSCAN_OK)
+        return series_refused(opts, t, k, f, &sel);
+    size_t i = sel.first;
+    *s = (modes_series){.source = cli_source_name(t->source), .name = t->names[k],
+                        .n = sel.count, .t = *owned, .time = t->time + i, .y = t->values[k] + i,
+                        .flux = joint ? t->values[f] + i : NULL, .onset = sel.onset,
+                        .dt = sel.dt, .axis = &t->axis, .time_name = t->time_name,
+                        .flux_name = joint ? t->names[f] : NULL};
     return EXIT_OK;
 }
 

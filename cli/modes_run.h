@@ -8,7 +8,7 @@
 #include "slowscan/emulate.h"
 
 /* One response (and, --joint, its flux) ready to fit: samples from the onset on (and from
- * --skip after it). Arrays owned by the run, valid during the visit. */
+ * --skip after it). Arrays valid during the visit. */
 typedef struct {
     const char *source, *name, *flux_name, *time_name;
     size_t n;
@@ -29,8 +29,10 @@ int cli_modes_run(const cli_options *opts,
                   modes_visitor visit, int (*finish)(const cli_options *, void *),
                   void *context);
 
-/* Column k of table t (and flux column f, or (size_t)-1) as a modes_series in *s, the arrays
- * in *owned (free() it). Refusals (a missing value, too few samples after --skip) printed. */
+/* Column k of table t (and flux column f, or (size_t)-1) as a modes_series in *s: the samples
+ * slowscan_timescales_select chooses, their times since the onset in *owned (free() it), the
+ * rest borrowed from t (keep t while s is used). Refusals (a missing value, too few samples
+ * after --skip) printed. */
 int cli_modes_series(const cli_options *opts, const series_table *t, size_t k, size_t f,
                      modes_series *s, double **owned);
 
@@ -61,9 +63,11 @@ void cli_modes_say(const cli_options *opts, const char *fmt, ...) __attribute__(
 /* timescales --figures: the modes over the data and the residuals. */
 int cli_timescales_figure(report_batch *figures, const modes_series *s, const timescales_result *r);
 
-/* emulate --figures: actual and emulated response, the noise band, the departure. */
+/* emulate --figures: actual and emulated response, the noise band (lower, upper: from
+ * slowscan_emulate_band), the departure. */
 int cli_emulate_figure(report_batch *figures, const cli_options *opts, const modes_series *s,
                        const double *time, const double *emulated, const double *actual,
-                       size_t n, const emulate_departure *dep);
+                       const double *lower, const double *upper, size_t n,
+                       const emulate_departure *dep);
 
 #endif

@@ -194,11 +194,29 @@ int slowscan_emulate_control_noise(const double *x, size_t n, double *sd, double
     return st;
 }
 
+static emulate_side band_side(double d, double half)
+{
+    return !isfinite(d) ? EMULATE_NOT_COMPARED : d > half ? EMULATE_ABOVE
+           : d < -half ? EMULATE_BELOW : EMULATE_INSIDE;
+}
+
 /* The side of the band sample i is on: +1 above, -1 below, 0 inside or not compared. */
 static int side(const double *actual, const double *emulated, size_t i, double half)
 {
-    double d = actual[i] - emulated[i];
-    return !isfinite(d) ? 0 : d > half ? 1 : d < -half ? -1 : 0;
+    emulate_side s = band_side(actual[i] - emulated[i], half);
+    return s == EMULATE_ABOVE ? 1 : s == EMULATE_BELOW ? -1 : 0;
+}
+
+void slowscan_emulate_band(const double *actual, const double *emulated, size_t n,
+                           double half_width, double *difference, double *lower, double *upper,
+                           emulate_side *side_of)
+{
+    for (size_t i = 0; i < n; i++) {
+        difference[i] = actual[i] - emulated[i];
+        lower[i] = emulated[i] - half_width;
+        upper[i] = emulated[i] + half_width;
+        side_of[i] = band_side(difference[i], half_width);
+    }
 }
 
 int slowscan_emulate_departure(const emulate_config *cfg, const double *actual,

@@ -1,4 +1,5 @@
-/* Small helpers of response/: lag-1 autocorrelation, effective sample size, input checks. */
+/* Small helpers of response/: lag-1 autocorrelation, effective sample size, the mean step,
+ * input checks. */
 #include "modes_internal.h"
 
 #include "slowscan/status.h"
@@ -20,6 +21,11 @@ double modes_effective_n(size_t n, double r1)
     if (!(ne <= (double)n)) /* r1 <= 0, or NaN */
         ne = (double)n;
     return ne < 2.0 ? 2.0 : ne;
+}
+
+double modes_mean_step(const double *time, size_t n)
+{
+    return n > 1 ? (time[n - 1] - time[0]) / (double)(n - 1) : NAN;
 }
 
 int modes_check_series(const double *t, const double *y, size_t n)

@@ -17,6 +17,9 @@ double modes_lag1(const double *x, size_t n);
  * [2, n]: anticorrelated residuals do not buy more samples than there are. */
 double modes_effective_n(size_t n, double r1);
 
+/* The mean step of time[0..n), (time[n-1] - time[0]) / (n - 1); NaN below 2 samples. */
+double modes_mean_step(const double *time, size_t n);
+
 /* 0 when t[0..n) is finite, >= 0 and strictly increasing and y has no NaN; else EINVAL. */
 int modes_check_series(const double *t, const double *y, size_t n);
 

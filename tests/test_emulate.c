@@ -422,6 +422,56 @@ static void test_command(void)
     test_command_refusals(step, ramp);
 }
 
+/* The comparison's rules, worked out by hand (ours: common practice, no source): the two
+ * grids' steps agree within a millionth, the compared run lies on the forcing's grid within a
+ * millionth of a step, a fit's residuals at round-off are no noise estimate. */
+static void test_compare_rules(void)
+{
+    const double grid[] = {0, 1, 2, 3, 4, 5, 6, 7, 8, 9}, same[] = {0, 1, 2, 3, 4},
+                 wide[] = {0, 1.5, 3}, close[] = {0, 1.0000005, 2.000001};
+    double fdt, sdt;
+    CHECK(slowscan_emulate_same_step(grid, 10, same, 5, &fdt, &sdt) == SLOWSCAN_OK && fdt == 1 &&
+          sdt == 1, "steps 1 and 1 agree");
+    CHECK(slowscan_emulate_same_step(grid, 10, close, 3, &fdt, &sdt) == SLOWSCAN_OK,
+          "steps 1 and 1.0000005 agree");
+    CHECK(slowscan_emulate_same_step(grid, 10, wide, 3, &fdt, &sdt) == SLOWSCAN_EINVAL &&
+          sdt == 1.5, "steps 1 and 1.5 differ");
+    CHECK(slowscan_emulate_same_step(grid, 10, same, 1, &fdt, &sdt) == SLOWSCAN_EINVAL &&
+          isnan(sdt), "one sample has no step");
+    const double ct[] = {2, 3, 4.0000001}, cv[] = {7, 8, 9};
+    double actual[10], step;
+    size_t bad = 99;
+    int ok = slowscan_emulate_align(grid, 10, ct, cv, 3, actual, &step, &bad) == SLOWSCAN_OK;
+    for (size_t j = 0; ok && j < 10; j++)
+        ok = j >= 2 && j <= 4 ? actual[j] == cv[j - 2] : isnan(actual[j]);
+    CHECK(ok && step == 1, "compared run at 2, 3, 4 placed there, NaN elsewhere");
+    const double off[] = {2, 3.5}, after[] = {2, 10}, before[] = {-1, 2};
+    CHECK(slowscan_emulate_align(grid, 10, off, cv, 2, actual, &step, &bad) == SLOWSCAN_EINVAL &&
+          bad == 1, "3.5 is off the grid (sample 1)");
+    CHECK(slowscan_emulate_align(grid, 10, after, cv, 2, actual, &step, &bad) == SLOWSCAN_EINVAL &&
+          bad == 1, "10 is past the grid's last time 9");
+    CHECK(slowscan_emulate_align(grid, 10, before, cv, 2, actual, &step, &bad) == SLOWSCAN_EINVAL &&
+          bad == 0, "-1 is before the grid");
+    timescales_result fit = {0};
+    const double y[] = {0.5, -2, 1};
+    double sd, r1;
+    fit.sigma = 1e-9;
+    fit.r1 = 0.3;
+    CHECK(slowscan_emulate_fit_noise(&fit, y, 3, &sd, &r1) == SLOWSCAN_ECONST && sd == 1e-9 &&
+          r1 == 0.3, "sd 1e-9 below 1e-8 max |y| = 2e-8: round-off (sd and r1 still given)");
+    /* the band's columns: on the edge is inside, NaN is not compared */
+    const double act[] = {1, NAN, 2.5, -3}, emu[] = {0, 0, 0.5, 0};
+    double diff[4], lo[4], hi[4];
+    emulate_side sd4[4];
+    slowscan_emulate_band(act, emu, 4, 1, diff, lo, hi, sd4);
+    CHECK(sd4[0] == EMULATE_INSIDE && sd4[1] == EMULATE_NOT_COMPARED && sd4[2] == EMULATE_ABOVE &&
+          sd4[3] == EMULATE_BELOW && diff[2] == 2 && isnan(diff[1]) && lo[2] == -0.5 &&
+          hi[2] == 1.5, "band: inside on the edge, NA, above by 2, below by 3");
+    fit.sigma = 3e-8;
+    CHECK(slowscan_emulate_fit_noise(&fit, y, 3, &sd, &r1) == SLOWSCAN_OK && sd == 3e-8,
+          "sd 3e-8 above 2e-8: a noise estimate");
+}
+
 void suite_emulate(void)
 {
     test_closed_form(200, "direct sum");
@@ -430,6 +480,7 @@ void suite_emulate(void)
     test_threshold();
     test_library_refusals();
     test_empirical_response();
+    test_compare_rules();
     test_command();
     test_false_departures();
 }

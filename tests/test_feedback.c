@@ -208,6 +208,131 @@ static void test_weights(void)
     CHECK(slowscan_feedback_latitude_weights(bad, 1, w) == SLOWSCAN_EINVAL, "latitude > 90 refused");
 }
 
+/* slowscan_feedback_windows on t = 0, 1, ..., n-1 (n <= 301) for request q; the status, *c
+ * and *d for the checks. */
+static int windows_on(size_t n, const time_axis *axis, const feedback_request *q,
+                      feedback_config *c, feedback_windows_detail *d)
+{
+    double t[301];
+    for (size_t i = 0; i < n && i < 301; i++)
+        t[i] = (double)i;
+    *c = slowscan_feedback_config_default();
+    return slowscan_feedback_windows(t, n, axis, q, c, d);
+}
+
+static screen_length length_of(double amount, int percent, length_unit unit)
+{
+    screen_length l = {amount, percent, unit};
+    return l;
+}
+
+/* The defaults, worked out by hand (the rule is ours: common practice, no source): window
+ * 50% of the record after skip, at most 100 time units; stride a tenth of the window, at
+ * least one step; percentages of the record after skip (skip's of the whole record). */
+static void test_window_defaults(void)
+{
+    const time_axis num = {TIME_AXIS_NUMBER, CALENDAR_STANDARD, DATE_DAY, 0, 0};
+    feedback_config c;
+    feedback_windows_detail d;
+    feedback_request q = slowscan_feedback_request_default();
+    CHECK(windows_on(301, &num, &q, &c, &d) == SLOWSCAN_OK && c.skip == 0 && c.window == 100 &&
+          c.stride == 10 && d.step == 1 && d.rest == 300,
+          "300 units: window capped at 100, stride 10 (%g, %g)", c.window, c.stride);
+    CHECK(windows_on(101, &num, &q, &c, &d) == SLOWSCAN_OK && c.window == 50 && c.stride == 5,
+          "100 units: window 50%% = 50, stride 5 (%g, %g)", c.window, c.stride);
+    q.skip = length_of(20, 1, LENGTH_AXIS); /* 20% of 100 */
+    CHECK(windows_on(101, &num, &q, &c, &d) == SLOWSCAN_OK && c.skip == 20 && d.rest == 80 &&
+          c.window == 40 && c.stride == 4, "skip 20%%: 20, window 40, stride 4 (%g, %g, %g)",
+          c.skip, c.window, c.stride);
+    q.window = length_of(25, 1, LENGTH_AXIS);
+    q.stride = length_of(10, 1, LENGTH_AXIS);
+    CHECK(windows_on(101, &num, &q, &c, &d) == SLOWSCAN_OK && c.window == 20 && c.stride == 8,
+          "window 25%% and stride 10%% of the 80 after skip: 20, 8 (%g, %g)", c.window, c.stride);
+    q = slowscan_feedback_request_default();
+    q.window = length_of(4, 0, LENGTH_AXIS);
+    CHECK(windows_on(101, &num, &q, &c, &d) == SLOWSCAN_OK && c.window == 4 && c.stride == 1,
+          "window 4: stride one step, not 0.4 (%g)", c.stride);
+    const time_axis months = {TIME_AXIS_MONTHS, CALENDAR_STANDARD, DATE_MONTH, 0, 0};
+    q = slowscan_feedback_request_default();
+    q.skip = length_of(2, 0, LENGTH_YEARS);
+    CHECK(windows_on(121, &months, &q, &c, &d) == SLOWSCAN_OK && c.skip == 24 &&
+          c.window == 48 && fabs(c.stride - 4.8) < 1e-12,
+          "months: skip 2y = 24, window 48, stride 4.8 (%g, %g, %g)", c.skip, c.window, c.stride);
+    q = slowscan_feedback_request_default();
+    q.span = 1;
+    q.span_from = 10;
+    q.span_until = 100.0000005; /* within a millionth of a step of the last sample */
+    CHECK(windows_on(101, &num, &q, &c, &d) == SLOWSCAN_OK && c.span_from == 10 &&
+          c.span_until == 100.0000005, "span 10..100 taken");
+}
+
+/* Each refusal, in the order the checks run. */
+static void test_window_refusals(void)
+{
+    const time_axis num = {TIME_AXIS_NUMBER, CALENDAR_STANDARD, DATE_DAY, 0, 0};
+    const struct {
+        const char *what;
+        size_t n;
+        double skip, window, stride;
+        length_unit unit; /* of the window */
+        int span;
+        double from, until;
+        int status;
+        feedback_refusal why;
+    } cases[] = {
+        {"3 samples", 3, NAN, NAN, NAN, LENGTH_AXIS, 0, 0, 0, SLOWSCAN_ESHORT,
+         FEEDBACK_REFUSAL_SAMPLES},
+        {"3 samples before a bad span", 3, NAN, NAN, NAN, LENGTH_AXIS, 1, NAN, NAN,
+         SLOWSCAN_ESHORT, FEEDBACK_REFUSAL_SAMPLES},
+        {"span decreasing", 101, NAN, NAN, NAN, LENGTH_AXIS, 1, 50, 10, SLOWSCAN_EINVAL,
+         FEEDBACK_REFUSAL_SPAN},
+        {"span past the end", 101, NAN, NAN, NAN, LENGTH_AXIS, 1, 10, 100.00001, SLOWSCAN_EINVAL,
+         FEEDBACK_REFUSAL_SPAN},
+        {"span before the start", 101, NAN, NAN, NAN, LENGTH_AXIS, 1, -0.00001, 50,
+         SLOWSCAN_EINVAL, FEEDBACK_REFUSAL_SPAN},
+        {"span not read", 101, NAN, NAN, NAN, LENGTH_AXIS, 1, NAN, NAN, SLOWSCAN_EINVAL,
+         FEEDBACK_REFUSAL_SPAN},
+        {"skip leaves 2 steps", 101, 98, NAN, NAN, LENGTH_AXIS, 0, 0, 0, SLOWSCAN_EINVAL,
+         FEEDBACK_REFUSAL_SKIP},
+        {"skip leaves 3 steps: the default window 1.5 is short", 101, 97, NAN, NAN, LENGTH_AXIS,
+         0, 0, 0, SLOWSCAN_EINVAL, FEEDBACK_REFUSAL_WINDOW_SHORT},
+        {"window in years on a number axis", 101, NAN, 10, NAN, LENGTH_YEARS, 0, 0, 0,
+         SLOWSCAN_EINVAL, FEEDBACK_REFUSAL_UNIT},
+        {"window 101 of 100", 101, NAN, 101, NAN, LENGTH_AXIS, 0, 0, 0, SLOWSCAN_EINVAL,
+         FEEDBACK_REFUSAL_WINDOW_LONG},
+        {"window 2: 3 samples", 101, NAN, 2, NAN, LENGTH_AXIS, 0, 0, 0, SLOWSCAN_EINVAL,
+         FEEDBACK_REFUSAL_WINDOW_SHORT},
+        {"stride half a step", 101, NAN, NAN, 0.5, LENGTH_AXIS, 0, 0, 0, SLOWSCAN_EINVAL,
+         FEEDBACK_REFUSAL_STRIDE_SHORT},
+    };
+    for (size_t k = 0; k < sizeof cases / sizeof cases[0]; k++) {
+        feedback_request q = slowscan_feedback_request_default();
+        q.skip = length_of(cases[k].skip, 0, LENGTH_AXIS);
+        q.window = length_of(cases[k].window, 0, cases[k].unit);
+        q.stride = length_of(cases[k].stride, 0, LENGTH_AXIS);
+        q.span = cases[k].span;
+        q.span_from = cases[k].from;
+        q.span_until = cases[k].until;
+        feedback_config c;
+        feedback_windows_detail d;
+        int st = windows_on(cases[k].n, &num, &q, &c, &d);
+        CHECK(st == cases[k].status && d.refusal == cases[k].why, "%s: status %d, refusal %d",
+              cases[k].what, st, (int)d.refusal);
+    }
+    feedback_request q = slowscan_feedback_request_default();
+    q.skip = length_of(1, 0, LENGTH_DAYS);
+    feedback_config c;
+    feedback_windows_detail d;
+    CHECK(windows_on(101, &num, &q, &c, &d) == SLOWSCAN_EINVAL &&
+          d.refusal == FEEDBACK_REFUSAL_UNIT && d.length == FEEDBACK_LENGTH_SKIP,
+          "skip in days on a number axis: the skip named");
+    q = slowscan_feedback_request_default();
+    q.window = length_of(101, 0, LENGTH_AXIS);
+    CHECK(windows_on(101, &num, &q, &c, &d) == SLOWSCAN_EINVAL && c.window == 101 &&
+          d.rest == 100 && d.step == 1, "window too long: the message's numbers (%g, %g)",
+          c.window, d.rest);
+}
+
 void suite_feedback_cli(void);
 void suite_feedback_grid(void);
 void suite_feedback_branch(void);
@@ -220,6 +345,8 @@ void suite_feedback(void)
     test_annual_means();
     test_baseline();
     test_weights();
+    test_window_defaults();
+    test_window_refusals();
     suite_feedback_cli();
     suite_feedback_grid();
     suite_feedback_branch();

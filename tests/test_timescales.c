@@ -312,6 +312,54 @@ static void test_command(void)
     modes_expect_refusal("missing value", args, "row 4, column 'tas': missing value");
 }
 
+/* slowscan_timescales_select on t = 1..20 (step 1), worked out by hand; the defaults are
+ * ours (common practice, no source): the step one step before the first sample, skip
+ * measured from the onset, 3 K + 3 samples for K modes. */
+static void test_select(void)
+{
+    const time_axis num = {TIME_AXIS_NUMBER, CALENDAR_STANDARD, DATE_DAY, 0, 0};
+    double t[20], y[20], f[20], since[20];
+    for (size_t i = 0; i < 20; i++) {
+        t[i] = (double)i + 1;
+        y[i] = 1 - exp(-t[i] / 5);
+        f[i] = 4 * exp(-t[i] / 5);
+    }
+    screen_length none = {NAN, 0, LENGTH_AXIS}, skip5 = {5, 0, LENGTH_AXIS};
+    timescales_selection s;
+    CHECK(slowscan_timescales_select(t, y, f, 20, &num, NAN, &none, 3, since, &s) == SLOWSCAN_OK &&
+          s.onset == 0 && s.dt == 1 && s.first == 0 && s.count == 20 && s.need == 12 &&
+          since[0] == 1 && since[19] == 20, "default onset 0: every sample, since 1..20");
+    CHECK(slowscan_timescales_select(t, y, NULL, 20, &num, 5, &none, 3, since, &s) == SLOWSCAN_OK &&
+          s.first == 4 && s.count == 16 && since[0] == 0, "onset 5: from t = 5, since 0");
+    CHECK(slowscan_timescales_select(t, y, NULL, 20, &num, NAN, &skip5, 3, since, &s) ==
+          SLOWSCAN_OK && s.skip == 5 && s.first == 4 && since[0] == 5,
+          "skip 5 after the onset 0: from t = 5");
+    screen_length half = {50, 1, LENGTH_AXIS}; /* 50% of the span 19: 9.5 */
+    CHECK(slowscan_timescales_select(t, y, NULL, 20, &num, NAN, &half, 3, since, &s) ==
+          SLOWSCAN_ESHORT && s.refusal == TIMESCALES_REFUSAL_SAMPLES && s.skip == 9.5 &&
+          s.count == 11 && s.need == 12, "skip 50%%: 11 samples, 12 needed for 3 modes");
+    CHECK(slowscan_timescales_select(t, y, NULL, 20, &num, NAN, &half, 2, since, &s) ==
+          SLOWSCAN_OK && s.need == 9, "skip 50%%: enough for 2 modes (9)");
+    screen_length years = {1, 0, LENGTH_YEARS};
+    CHECK(slowscan_timescales_select(t, y, NULL, 20, &num, NAN, &years, 3, since, &s) ==
+          SLOWSCAN_EINVAL && s.refusal == TIMESCALES_REFUSAL_UNIT,
+          "skip in years on a number axis refused");
+    y[2] = NAN; /* t = 3: before the onset 5, not chosen */
+    CHECK(slowscan_timescales_select(t, y, f, 20, &num, 5, &none, 3, since, &s) == SLOWSCAN_OK,
+          "a gap before the onset is not used");
+    f[5] = NAN; /* t = 6 */
+    y[6] = NAN;
+    CHECK(slowscan_timescales_select(t, y, f, 20, &num, 5, &none, 3, since, &s) ==
+          SLOWSCAN_EINVAL && s.refusal == TIMESCALES_REFUSAL_MISSING && s.sample == 5 &&
+          s.column == 1, "the flux's gap at sample 5 comes first (%zu, %d)", s.sample, s.column);
+    y[5] = NAN;
+    CHECK(slowscan_timescales_select(t, y, f, 20, &num, 5, &none, 3, since, &s) ==
+          SLOWSCAN_EINVAL && s.sample == 5 && s.column == 0, "the response first at one sample");
+    CHECK(slowscan_timescales_select(t, y, f, 1, &num, NAN, &none, 1, since, &s) ==
+          SLOWSCAN_ESHORT && s.dt == 1 && s.onset == 0 && s.count == 1,
+          "one sample: step 1, onset one step before it");
+}
+
 void suite_timescales(void)
 {
     test_reference();
@@ -321,5 +369,6 @@ void suite_timescales(void)
     test_joint();
     test_joint_reference();
     test_refusals();
+    test_select();
     test_command();
 }

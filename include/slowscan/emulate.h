@@ -91,6 +91,48 @@ int slowscan_emulate_departure(const emulate_config *cfg, const double *actual,
                                const double *emulated, size_t n, double sd, double r1,
                                emulate_departure *out);
 
+/* Whether the forcing record (ftime: nf samples) and the step run (stime: ns) share their time
+ * step, within a millionth (DESIGN's grid tolerance, relative to the step run's): the
+ * emulation advances the step response one forcing step at a time. *fstep and *sstep: the
+ * two mean steps (NaN for fewer than 2 samples). SLOWSCAN_OK, or SLOWSCAN_EINVAL. */
+SLOWSCAN_API
+int slowscan_emulate_same_step(const double *ftime, size_t nf, const double *stime, size_t ns,
+                               double *fstep, double *sstep);
+
+/* The compared run (time, values: m samples) placed on the forcing's grid (grid: n samples,
+ * regular): actual[j] = values[i] where time[i] lies within a millionth of a step of
+ * grid[0] + j step, j < n; NaN at grid times without a sample. *step: the grid's mean step.
+ * SLOWSCAN_EINVAL when a sample lies off the grid or outside it (*bad: the first such) or the
+ * grid has fewer than 2 samples (*bad 0); actual is then unspecified. */
+SLOWSCAN_API
+int slowscan_emulate_align(const double *grid, size_t n, const double *time,
+                           const double *values, size_t m, double *actual, double *step,
+                           size_t *bad);
+
+/* The noise band's estimate from the step run's own fit: *sd and *r1, the sd and lag-1
+ * autocorrelation of its residuals (fit->sigma, fit->r1). SLOWSCAN_ECONST when the residuals
+ * are at round-off, sd <= 1e-8 max |y| over the fitted values y[n] (a noise-free model run
+ * gives no noise estimate; *sd and *r1 are still set). */
+SLOWSCAN_API
+int slowscan_emulate_fit_noise(const timescales_result *fit, const double *y, size_t n,
+                               double *sd, double *r1);
+
+/* Where a sample of the compared run lies against the noise band. */
+typedef enum {
+    EMULATE_NOT_COMPARED = 0, /* the difference is not finite (no compared sample) */
+    EMULATE_INSIDE,
+    EMULATE_ABOVE,            /* difference > half_width */
+    EMULATE_BELOW             /* difference < -half_width */
+} emulate_side;
+
+/* The comparison sample by sample, by the rule slowscan_emulate_departure counts with:
+ * difference[i] = actual[i] - emulated[i], lower[i] and upper[i] = emulated[i] -+ half_width,
+ * side[i] the sample's side of the band. */
+SLOWSCAN_API
+void slowscan_emulate_band(const double *actual, const double *emulated, size_t n,
+                           double half_width, double *difference, double *lower, double *upper,
+                           emulate_side *side);
+
 /* The noise of a control run x[n]: the sd and lag-1 autocorrelation of its residual from a
  * least-squares line in the sample index (control runs drift). ESHORT for n < 4, EINVAL for
  * NaN. */

@@ -17,6 +17,7 @@
 
 #include "slowscan/export.h"
 #include "slowscan/calendar.h"
+#include "slowscan/screen.h"
 
 #include <stddef.h>
 
@@ -109,6 +110,63 @@ SLOWSCAN_API
 int slowscan_feedback_run(const double *time, const double *flux, const double *response,
                           size_t n, const feedback_config *cfg, feedback_window *out,
                           size_t count, feedback_drift *drift);
+
+/* --- the windows of a run from what the user asked --- */
+
+/* The lengths given for a run's windows, or a fit span, before defaults and checks
+ * (slowscan_feedback_windows). Each length as parsed: percent of a span, the axis' own time
+ * units, or a calendar unit (screen_length); amount NaN: not given. */
+typedef struct {
+    screen_length skip;   /* left out at the start of the record; not given: none */
+    screen_length window; /* percent of the record after skip; not given: 50% of it, at most
+                             100 time units */
+    screen_length stride; /* percent of the record after skip; not given: a tenth of the
+                             window, at least one mean step */
+    int span;             /* 1: one fit over [span_from, span_until] instead of windows */
+    double span_from, span_until; /* times of the run's axis; NaN: not a time of the run */
+} feedback_request;
+
+SLOWSCAN_API
+feedback_request slowscan_feedback_request_default(void);
+
+/* Which length a refusal is about. */
+typedef enum {
+    FEEDBACK_LENGTH_SKIP = 0,
+    FEEDBACK_LENGTH_WINDOW,
+    FEEDBACK_LENGTH_STRIDE
+} feedback_length;
+
+/* Why slowscan_feedback_windows refused a request (the caller words it). */
+typedef enum {
+    FEEDBACK_REFUSAL_NONE = 0,
+    FEEDBACK_REFUSAL_SAMPLES,      /* the record has fewer than 4 samples */
+    FEEDBACK_REFUSAL_SPAN,         /* the span is not increasing inside the record (within a
+                                      millionth of a step), or not read */
+    FEEDBACK_REFUSAL_UNIT,         /* `length` cannot be measured on the run's axis */
+    FEEDBACK_REFUSAL_SKIP,         /* skip leaves fewer than 4 samples */
+    FEEDBACK_REFUSAL_WINDOW_LONG,  /* the window is longer than the record after skip */
+    FEEDBACK_REFUSAL_WINDOW_SHORT, /* the window holds fewer than 4 samples */
+    FEEDBACK_REFUSAL_STRIDE_SHORT  /* the stride is shorter than the mean step */
+} feedback_refusal;
+
+typedef struct {
+    feedback_refusal refusal;
+    feedback_length length; /* FEEDBACK_REFUSAL_UNIT: the length that has no meaning */
+    double step;            /* the record's mean step */
+    double rest;            /* the record's span after skip (NaN before skip is known) */
+} feedback_windows_detail;
+
+/* The configuration's skip, window and stride (or its span) for a run of n samples at
+ * time[0..n) on `axis`, from `request`: lengths on the axis (slowscan_screen_length_on_axis),
+ * percentages of the record after skip (skip's of the whole record), the defaults above, then
+ * the checks, in this order: at least 4 samples; with a span, the span; otherwise skip, the
+ * window (not longer than the record after skip, at least 4 samples), the stride (at least
+ * one step). SLOWSCAN_OK, or SLOWSCAN_ESHORT (fewer than 4 samples) / SLOWSCAN_EINVAL with
+ * *detail saying which rule refused; cfg's other fields are left as they are. */
+SLOWSCAN_API
+int slowscan_feedback_windows(const double *time, size_t n, const time_axis *axis,
+                              const feedback_request *request, feedback_config *cfg,
+                              feedback_windows_detail *detail);
 
 /* --- pre-processing --- */
 

@@ -24,6 +24,7 @@
 #define SLOWSCAN_TIMESCALES_H
 
 #include "slowscan/export.h"
+#include "slowscan/screen.h"
 
 #include <stddef.h>
 
@@ -100,6 +101,44 @@ SLOWSCAN_API
 int slowscan_timescales_fit_joint(timescales_workspace *ws, const timescales_config *cfg,
                                   const double *t, const double *y, const double *f, size_t n,
                                   timescales_result *out);
+
+/* --- the samples a fit uses, from what the user asked --- */
+
+/* Why slowscan_timescales_select refused a run (the caller words it). */
+typedef enum {
+    TIMESCALES_REFUSAL_NONE = 0,
+    TIMESCALES_REFUSAL_UNIT,    /* skip cannot be measured on the run's axis */
+    TIMESCALES_REFUSAL_MISSING, /* a chosen sample is missing: `sample`, `column` */
+    TIMESCALES_REFUSAL_SAMPLES  /* fewer than `need` samples chosen */
+} timescales_refusal;
+
+/* The samples of a step-forced run a fit uses: first .. n-1 (times increase, so those at or
+ * after both the onset and onset + skip are the record's end). */
+typedef struct {
+    double onset;  /* the onset used: as given, or one mean step before the first sample */
+    double dt;     /* the record's mean step (1 for a single sample) */
+    double skip;   /* skip in time units (0: none) */
+    size_t first;  /* the first sample chosen */
+    size_t count;  /* samples chosen, n - first */
+    size_t need;   /* samples a fit of max_modes needs: 3 max_modes + 3 */
+    timescales_refusal refusal;
+    size_t sample; /* TIMESCALES_REFUSAL_MISSING: the missing sample's index in time[] */
+    int column;    /* TIMESCALES_REFUSAL_MISSING: 0 the response, 1 the flux */
+} timescales_selection;
+
+/* Chooses the samples of a run (time[0..n), increasing, on `axis`; response y, flux f or
+ * NULL) that a fit of up to max_modes modes uses: onset NaN means one mean step before the
+ * first sample (the step came just before the first sample); skip (amount NaN: none; a
+ * percentage of the record's span time[n-1] - time[0]) is measured from the onset. A chosen
+ * sample has time - onset >= 0 and >= skip. since[0..count) receives time[first + j] - onset,
+ * the times the fit takes (since: n entries, or NULL). Refusals in this order: skip without
+ * a meaning on the axis (EINVAL), the first chosen sample missing in y or f (y first at the
+ * same sample; EINVAL), fewer than 3 max_modes + 3 samples chosen (ESHORT); *out says
+ * which. */
+SLOWSCAN_API
+int slowscan_timescales_select(const double *time, const double *y, const double *f, size_t n,
+                               const time_axis *axis, double onset, const screen_length *skip,
+                               size_t max_modes, double *since, timescales_selection *out);
 
 /* The fitted response sum_k a_k (1 - exp(-t/tau_k)) at t[0..n) into out (and the flux
  * sum_k c_k exp(-t/tau_k) into flux, when flux is not NULL and the fit is joint). */

@@ -77,27 +77,20 @@ def emulate(step, forcing, step_forcing, compare=None, control=None, response=No
         runs[option] = _ready(table, [name], own, inputs, option)
         if option != "compare":
             _complete(option, runs[option])
-    fdt, sdt = (_forced.mean_step(runs[k].time) for k in ("forcing", "step"))
-    if not abs(fdt - sdt) <= 1e-6 * abs(sdt):
-        raise SlowscanError("forcing=: time step %g differs from the step run's %g (resample "
-                            "one of them)" % (fdt, sdt))
+    _same_step(runs["forcing"], runs["step"])
     s = Series(runs["step"], 0, None, opts, "emulate")
     fit = s.fit(opts)
-    sd, r1 = fit.sigma, fit.r1
-    if control is None and not sd > 1e-8 * np.max(np.abs(s.y)):
-        raise SlowscanError("%s: column '%s': the fitted modes leave no residual noise (sd "
-                            "%.3g) to set the band; give a control run with control="
-                            % (s.source, s.name, sd))
+    sd, r1 = _fit_noise(s, fit, control)
     f = runs["forcing"]
     emulated = _convolve(_response(s, fit, F, f.n, empirical), f.values[0], f.n)
     actual = np.full(f.n, np.nan)
     if compare is not None:
-        _align(runs["compare"], f, fdt, actual)
+        _align(runs["compare"], f, actual)
     if control is not None:
         sd, r1 = _control_noise(runs["control"])
-    dep = _departure(opts, actual, emulated, sd, r1, s)
+    dep, level = _departure(opts, actual, emulated, sd, r1, s)
     out = _rows(f, emulated, actual, dep.half_width)
-    out.attrs["departure"] = _summary(opts, empirical, F, fit, control, sd, r1, dep,
+    out.attrs["departure"] = _summary(level, empirical, F, fit, control, sd, r1, dep,
                                       compare is not None, f)
     return out
 
@@ -134,15 +127,34 @@ def _convolve(response, forcing, n):
     return out
 
 
-def _align(c, f, dt, actual):
-    """The compared run on the forcing's grid (NaN where it has no sample)."""
-    at = (c.time - f.time[0]) / dt
-    m = np.rint(at).astype(np.int64)
-    bad = np.flatnonzero((np.abs(at - m) > 1e-6) | (m < 0) | (m >= f.n))
-    if len(bad):
+def _same_step(f, step):
+    """The forcing's time step against the step run's (slowscan_emulate_same_step)."""
+    fdt, sdt = ffi.new("double *"), ffi.new("double *")
+    if lib.slowscan_emulate_same_step(ptr(f.time), f.n, ptr(step.time), step.n, fdt, sdt) != 0:
+        raise SlowscanError("forcing=: time step %g differs from the step run's %g (resample "
+                            "one of them)" % (fdt[0], sdt[0]))
+
+
+def _fit_noise(s, fit, control):
+    """The step run's residual noise (slowscan_emulate_fit_noise); refused at round-off
+    unless a control run gives the band."""
+    sd, r1 = ffi.new("double *"), ffi.new("double *")
+    if lib.slowscan_emulate_fit_noise(fit, ptr(s.y), s.n, sd, r1) != 0 and control is None:
+        raise SlowscanError("%s: column '%s': the fitted modes leave no residual noise (sd "
+                            "%.3g) to set the band; give a control run with control="
+                            % (s.source, s.name, sd[0]))
+    return sd[0], r1[0]
+
+
+def _align(c, f, actual):
+    """The compared run on the forcing's grid (NaN where it has no sample;
+    slowscan_emulate_align)."""
+    dt, bad = ffi.new("double *"), ffi.new("size_t *")
+    if lib.slowscan_emulate_align(ptr(f.time), f.n, ptr(c.time), ptr(c.values[0]), c.n,
+                                  ptr(actual), dt, bad) != 0:
+        i = bad[0]
         raise SlowscanError("compare=: time %g (sample %d) is not on the forcing's grid (from "
-                            "%g in steps of %g)" % (c.time[bad[0]], bad[0] + 1, f.time[0], dt))
-    actual[m] = c.values[0]
+                            "%g in steps of %g)" % (c.time[i], i + 1, f.time[0], dt[0]))
 
 
 def _control_noise(c):
@@ -167,26 +179,32 @@ def _departure(opts, actual, emulated, sd, r1, s):
                                       dep) != 0:
         raise SlowscanError("%s: column '%s': the noise band has no width (the step run's fit "
                             "leaves no residual; give control=)" % (s.source, s.name))
-    return dep
+    return dep, float(cfg.band_level)
+
+
+_SIDES = ("NA", "no", "above", "below")
 
 
 def _rows(f, emulated, actual, h):
-    d = actual - emulated
-    with np.errstate(invalid="ignore"):
-        outside = np.where(~np.isfinite(d), "NA", np.where(d > h, "above",
-                                                           np.where(d < -h, "below", "no")))
+    """The rows, the band's columns by slowscan_emulate_band."""
+    n = f.n
+    d, lower, upper = np.empty(n), np.empty(n), np.empty(n)
+    side = ffi.new("emulate_side[]", n)
+    lib.slowscan_emulate_band(ptr(actual), ptr(emulated), n, h, ptr(d), ptr(lower), ptr(upper),
+                              side)
+    outside = np.array([_SIDES[side[i]] for i in range(n)], dtype=object)
     return _forced.frame({"time": _forced.times(f.axis, f.time), "forcing": f.values[0],
                           "emulated": emulated, "actual": actual, "difference": d,
-                          "band_lower": emulated - h, "band_upper": emulated + h,
-                          "outside": outside.astype(object)}, EMULATE_COLUMNS)
+                          "band_lower": lower, "band_upper": upper, "outside": outside},
+                         EMULATE_COLUMNS)
 
 
-def _summary(opts, empirical, F, fit, control, sd, r1, dep, compared, f):
+def _summary(level, empirical, F, fit, control, sd, r1, dep, compared, f):
     out = {"step_response": "step run values" if empirical else "fitted modes",
            "step_forcing": F, "modes": int(fit.nmodes),
            "noise_source": "control run (linear drift removed)" if control is not None
            else "step run residuals", "noise_sd": sd, "noise_lag1": r1,
-           "band_level": float(opts.get("band_level") or 0.99),
+           "band_level": level,
            "band_half_width": dep.half_width, "persist": int(dep.persist),
            "compared": compared, "departed": bool(dep.departed)}
     if dep.departed:

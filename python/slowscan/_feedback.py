@@ -114,7 +114,8 @@ def _ratio_from(b, run, offset):
 
 
 def _configure(run, opts, ratio):
-    """The library's configuration of the run, as the command makes it (cmd_feedback.c)."""
+    """The library's configuration of the run, as the command makes it (cmd_feedback.c): the
+    options as given; their defaults and checks are slowscan_feedback_windows'."""
     c = ffi.new("feedback_config *", lib.slowscan_feedback_config_default())
     fit = opts.get("fit") or "ols"
     if fit not in ("ols", "tls"):
@@ -126,57 +127,58 @@ def _configure(run, opts, ratio):
     c.noise_ratio = ratio
     if opts.get("scale") is not None:
         c.scale = _number("scale", opts["scale"])
-    if run.n < 4:
-        raise SlowscanError("%s: %d samples; a feedback regression needs at least 4"
-                            % (run.source, run.n))
+    q = ffi.new("feedback_request *", lib.slowscan_feedback_request_default())
+    unread = None
     if opts.get("fit_span") is not None:
-        _fit_span(run, opts["fit_span"], c)
-        return c
-    _windows(run, opts, c)
+        q.span = 1
+        unread = _span(run, opts["fit_span"], q)
+    else:
+        for key in ("skip", "window", "stride"):
+            setattr(q, key, _forced.request(key, opts.get(key))[0])
+    d = ffi.new("feedback_windows_detail *")
+    if lib.slowscan_feedback_windows(_forced.ptr(run.time), run.n, ffi.addressof(run.axis), q,
+                                     c, d) != 0:
+        raise _refusal(run, opts, c, d[0], unread)
     return c
 
 
-def _fit_span(run, span, c):
+def _span(run, span, q):
+    """fit_span=(A, B) as times of the run into q; the error of a span that cannot be read,
+    raised only when the library refuses the span (after its sample count, as the command)."""
     try:
-        a, b = span
-    except (TypeError, ValueError):
-        raise TypeError("fit_span=: a pair (A, B) of times is needed") from None
-    c.span_from = _forced.axis_value(run.axis, "fit_span", a)
-    c.span_until = _forced.axis_value(run.axis, "fit_span", b)
-    dt = _forced.mean_step(run.time)
-    if not (c.span_from < c.span_until) or c.span_from < run.time[0] - 1e-6 * dt or \
-            c.span_until > run.time[-1] + 1e-6 * dt:
-        raise SlowscanError("fit_span=%r: not an increasing span inside the record of %s"
-                            % (span, run.source))
+        try:
+            a, b = span
+        except (TypeError, ValueError):
+            raise TypeError("fit_span=: a pair (A, B) of times is needed") from None
+        q.span_from = _forced.axis_value(run.axis, "fit_span", a)
+        q.span_until = _forced.axis_value(run.axis, "fit_span", b)
+    except (TypeError, SlowscanError) as e:
+        q.span_from = q.span_until = float("nan")
+        return e
+    return None
 
 
-def _windows(run, opts, c):
-    """window=, stride=, skip= resolved on the run's axis, with the command's checks."""
-    span, dt = run.time[-1] - run.time[0], _forced.mean_step(run.time)
-    if opts.get("skip") is not None:
-        c.skip = _forced.length("skip", opts["skip"], run.axis, span)
-    rest = span - c.skip
-    if not rest >= 3 * dt:
-        raise SlowscanError("skip=%r: leaves less than 4 samples of %s"
-                            % (opts.get("skip"), run.source))
-    given = opts.get("window")
-    if given is not None:
-        c.window = _forced.length("window", given, run.axis, rest)
-    else:
-        c.window = min(_forced.length("window", "50%", run.axis, rest), 100)
-    label = "(default)" if given is None else repr(given)
-    if c.window > rest + 1e-6 * dt:
-        raise SlowscanError("window=%s: %.12g time units is longer than the record of %s "
-                            "(%.12g after skip=)" % (label, c.window, run.source, rest))
-    if c.window < 3 * dt * (1 - 1e-9):
-        raise SlowscanError("window=%s: fewer than 4 samples per window in %s"
-                            % (label, run.source))
-    c.stride = max(c.window / 10, dt)
-    if opts.get("stride") is not None:
-        c.stride = _forced.length("stride", opts["stride"], run.axis, rest)
-        if c.stride < dt * (1 - 1e-6):
-            raise SlowscanError("stride=%r: shorter than the time step (%.12g) of %s"
-                                % (opts["stride"], dt, run.source))
+def _refusal(run, opts, c, d, unread):
+    """The library's refusal of the run's windows (slowscan_feedback_windows) in keywords."""
+    label = "(default)" if opts.get("window") is None else repr(opts["window"])
+    why = {lib.FEEDBACK_REFUSAL_SAMPLES: lambda: "%s: %d samples; a feedback regression "
+           "needs at least 4" % (run.source, run.n),
+           lib.FEEDBACK_REFUSAL_SPAN: lambda: "fit_span=%r: not an increasing span inside the "
+           "record of %s" % (opts.get("fit_span"), run.source),
+           lib.FEEDBACK_REFUSAL_SKIP: lambda: "skip=%r: leaves less than 4 samples of %s"
+           % (opts.get("skip"), run.source),
+           lib.FEEDBACK_REFUSAL_WINDOW_LONG: lambda: "window=%s: %.12g time units is longer "
+           "than the record of %s (%.12g after skip=)" % (label, c.window, run.source, d.rest),
+           lib.FEEDBACK_REFUSAL_WINDOW_SHORT: lambda: "window=%s: fewer than 4 samples per "
+           "window in %s" % (label, run.source),
+           lib.FEEDBACK_REFUSAL_STRIDE_SHORT: lambda: "stride=%r: shorter than the time step "
+           "(%.12g) of %s" % (opts.get("stride"), d.step, run.source)}
+    if d.refusal == lib.FEEDBACK_REFUSAL_SPAN and unread is not None:
+        return unread
+    if d.refusal == lib.FEEDBACK_REFUSAL_UNIT:
+        key = ("skip", "window", "stride")[d.length]
+        return _forced.unmeasurable(key, opts.get(key), run.axis)
+    return SlowscanError(why[d.refusal]())
 
 
 def _row(axis, w):

@@ -2,7 +2,8 @@
 a run's chosen columns as a table of their own (annual means by month length with
 annual=True, slowscan_feedback_annual_means), anomalies against a baseline (control) run
 (baseline=, baseline_mode=, baseline_offset=; slowscan_feedback_anomalies), and lengths such
-as skip= measured on a run's axis (slowscan_screen_length_on_axis). Inputs go through the
+as skip= as the library's requests take them (slowscan_feedback_windows and
+slowscan_timescales_select measure them on a run's axis). Inputs go through the
 package's one normalisation (_inputs.Table)."""
 import math
 
@@ -37,10 +38,6 @@ def read(data, inputs, source, cut=True):
 
 def table_time(table):
     return np.frombuffer(ffi.buffer(table.c.time, table.c.n * 8), np.float64).copy()
-
-
-def mean_step(time):
-    return (time[-1] - time[0]) / (len(time) - 1) if len(time) > 1 else float("nan")
 
 
 def time_text(axis, v):
@@ -147,17 +144,22 @@ def column(table, name, what, option=None):
         option + ": " if option else "", what, name, ", ".join(table.names)))
 
 
-def length(option, value, axis, span):
-    """A length option (time units, 'N%' of span, or with y/mon/d on a dated axis) in time
-    units of `axis` (cli_forced_resolve)."""
-    amount, percent, unit = _config._length(option, value)
-    given = ffi.new("screen_length *", {"amount": amount, "percent": percent, "unit": unit})
-    on = ffi.new("screen_length *")
-    if lib.slowscan_screen_length_on_axis(given, ffi.addressof(axis), on) != 0:
-        raise SlowscanError("%s=%r cannot be measured on this time axis (%s)" % (
-            option, value, "plain numbers: give time units" if axis.unit ==
-            lib.TIME_AXIS_NUMBER else "use its own unit"))
-    return on.amount / 100 * span if on.percent else on.amount
+def request(option, value):
+    """A length option (time units, 'N%' of a span, or with y/mon/d on a dated axis) as the
+    library's requests hold it, a screen_length * (amount NaN: not given); the library measures
+    it on the run's axis (cli_forced_request)."""
+    if value is None:
+        amount, percent, unit = float("nan"), 0, lib.LENGTH_AXIS
+    else:
+        amount, percent, unit = _config._length(option, value)
+    return ffi.new("screen_length *", {"amount": amount, "percent": percent, "unit": unit})
+
+
+def unmeasurable(option, value, axis):
+    """The refusal of a length with no meaning on the run's axis (cli_forced_unmeasurable)."""
+    return SlowscanError("%s=%r cannot be measured on this time axis (%s)" % (
+        option, value, "plain numbers: give time units" if axis.unit ==
+        lib.TIME_AXIS_NUMBER else "use its own unit"))
 
 
 def axis_value(axis, option, value):

@@ -25,34 +25,24 @@ _REFUSALS = {lib.SLOWSCAN_ECONST: "the response does not vary",
 
 
 class Series:
-    """A response (and a flux) from the onset on, as cli_modes_series makes it."""
+    """A response (and a flux) from the onset on, as cli_modes_series makes it: the samples
+    slowscan_timescales_select chooses."""
 
     def __init__(self, run, k, f, opts, command):
         self.source, self.name = run.source, run.names[k]
-        self.dt = _forced.mean_step(run.time) if run.n > 1 else 1.0
         onset = opts.get("onset")
-        self.onset = run.time[0] - self.dt if onset is None else _number("onset", onset)
-        skip = 0.0
-        if opts.get("skip") is not None:
-            skip = _forced.length("skip", opts["skip"], run.axis, run.time[-1] - run.time[0])
-        since = run.time - self.onset
-        keep = (since >= 0) & (since >= skip)
-        for j in ([k] if f is None else [k, f]):
-            bad = np.flatnonzero(keep & np.isnan(run.values[j]))
-            if len(bad):
-                raise SlowscanError("%s: sample %d, column '%s': missing value; %s needs a "
-                                    "complete record (cut the span with start=/end=)"
-                                    % (run.source, bad[0] + 1, run.names[j], command))
-        self.t, self.time, self.y = since[keep], run.time[keep], run.values[k][keep]
-        self.flux = None if f is None else run.values[f][keep]
-        self.n = len(self.t)
-        need = 3 * max_modes(opts) + 3
-        if self.n < need:
-            raise SlowscanError("%s: column '%s': %d samples after the onset (%g)%s; %s with "
-                                "max_modes=%d needs at least %d" % (
-                                    run.source, self.name, self.n, self.onset,
-                                    " and skip=" if skip > 0 else "", command, max_modes(opts),
-                                    need))
+        onset = float("nan") if onset is None else _number("onset", onset)
+        skip, kmax = _forced.request("skip", opts.get("skip")), max_modes(opts)
+        since, sel = np.empty(max(run.n, 1)), ffi.new("timescales_selection *")
+        flux = ffi.NULL if f is None else ptr(run.values[f])
+        if lib.slowscan_timescales_select(ptr(run.time), ptr(run.values[k]), flux, run.n,
+                                          ffi.addressof(run.axis), onset, skip, kmax,
+                                          ptr(since), sel) != 0:
+            raise _refused(run, k, f, sel[0], opts, command)
+        self.onset, self.dt, first = sel.onset, sel.dt, sel.first
+        self.t, self.time, self.y = since[:sel.count], run.time[first:], run.values[k][first:]
+        self.flux = None if f is None else run.values[f][first:]
+        self.n = int(sel.count)
 
     def fit(self, opts):
         """The library's fit of the modes (joint with the flux when there is one)."""
@@ -76,8 +66,29 @@ class Series:
         return r
 
 
+def _refused(run, k, f, sel, opts, command):
+    """The library's refusal of a run's samples (slowscan_timescales_select) in keywords."""
+    if sel.refusal == lib.TIMESCALES_REFUSAL_UNIT:
+        return _forced.unmeasurable("skip", opts.get("skip"), run.axis)
+    if sel.refusal == lib.TIMESCALES_REFUSAL_MISSING:
+        return SlowscanError("%s: sample %d, column '%s': missing value; %s needs a complete "
+                             "record (cut the span with start=/end=)" % (
+                                 run.source, sel.sample + 1, run.names[f if sel.column else k],
+                                 command))
+    return SlowscanError("%s: column '%s': %d samples after the onset (%g)%s; %s with "
+                         "max_modes=%d needs at least %d" % (
+                             run.source, run.names[k], sel.count, sel.onset,
+                             " and skip=" if sel.skip > 0 else "", command, max_modes(opts),
+                             sel.need))
+
+
+# the library's default and most modes (TIMESCALES_MAX_MODES: the length of the result's table)
+_DEFAULT_MODES = lib.slowscan_timescales_config_default().max_modes
+_MOST_MODES = len(ffi.new("timescales_result *").modes)
+
+
 def max_modes(opts):
-    return _whole("max_modes", opts.get("max_modes", 3), 1, 5)
+    return _whole("max_modes", opts.get("max_modes", _DEFAULT_MODES), 1, _MOST_MODES)
 
 
 def _ready(table, names, opts, inputs, what):

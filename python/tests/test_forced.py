@@ -106,6 +106,74 @@ def test_feedback_refusals():
                           flux="N", response="T")
 
 
+# Each refusal of slowscan_feedback_windows in the package's words, beside the command's in
+# its own (the same rule and numbers; the rule is ours: common practice, no source).
+_WINDOW_REFUSALS = [
+    (dict(skip=297), ["--skip", 297], r"skip=297: leaves less than 4 samples of",
+     "option --skip 297: leaves less than 4 samples of"),
+    (dict(window=400), ["--window", 400],
+     r"window=400: 400 time units is longer than the record of .* \(299 after skip=\)",
+     "option --window 400: 400 time units is longer than the record of"),
+    (dict(window=2), ["--window", 2], r"window=2: fewer than 4 samples per window in",
+     "option --window 2: fewer than 4 samples per window in"),
+    (dict(stride=0.5), ["--stride", 0.5], r"stride=0.5: shorter than the time step \(1\) of",
+     "option --stride 0.5: shorter than the time step (1) of"),
+    (dict(window="10y"), ["--window", "10y"],
+     r"window='10y' cannot be measured on this time axis \(plain numbers",
+     "option --window: 10y cannot be measured on this time axis (plain numbers"),
+    (dict(fit_span=(1900, 1800)), ["--fit-span", "1900:1800"],
+     r"fit_span=\(1900, 1800\): not an increasing span inside the record of",
+     "option --fit-span: 1900:1800 is not an increasing span inside the record of"),
+    (dict(fit_span=(1900, 2200)), ["--fit-span", "1900:2200"],
+     r"fit_span=\(1900, 2200\): not an increasing span", "is not an increasing span"),
+]
+
+
+@pytest.mark.parametrize("options,args,python,command", _WINDOW_REFUSALS)
+def test_feedback_window_refusals_as_the_command(options, args, python, command):
+    with pytest.raises(slowscan.SlowscanError, match=python):
+        slowscan.feedback(_read(STEP4X), flux="net_flux", response="tas", **options)
+    cli = run_cli("feedback", "--flux", "net_flux", "--response", "tas", *args, STEP4X,
+                  check=False)
+    assert cli.returncode == 1 and command in cli.stderr, cli.stderr
+
+
+def test_feedback_span_not_read():
+    run = _read(STEP4X)
+    with pytest.raises(TypeError, match=r"fit_span=: a pair \(A, B\)"):
+        slowscan.feedback(run, flux="net_flux", response="tas", fit_span=5)
+    with pytest.raises(slowscan.SlowscanError, match="fit_span='x': not a time of the run"):
+        slowscan.feedback(run, flux="net_flux", response="tas", fit_span=("x", 1900))
+
+
+def test_modes_selection_refusals():
+    run = _read(STEP2X)
+    with pytest.raises(slowscan.SlowscanError, match=r"12 samples after the onset \(1849\); "
+                       r"timescales with max_modes=5 needs at least 18"):
+        slowscan.timescales(run.iloc[:12], response="tas", max_modes=5)
+    with pytest.raises(slowscan.SlowscanError, match=r"samples after the onset \(1849\) and "
+                       r"skip=; timescales with max_modes=3 needs at least 12"):
+        slowscan.timescales(run, response="tas", skip="97%")
+    with pytest.raises(slowscan.SlowscanError, match=r"skip='2y' cannot be measured"):
+        slowscan.timescales(run, response="tas", skip="2y")
+    gap = run.copy()
+    gap.iloc[5, gap.columns.get_loc("net_flux")] = np.nan
+    gap.iloc[7, gap.columns.get_loc("tas")] = np.nan
+    with pytest.raises(slowscan.SlowscanError, match="sample 6, column 'net_flux': missing"):
+        slowscan.timescales(gap, response="tas", flux="net_flux", joint=True)
+    slowscan.timescales(gap, response="tas", onset=1860, max_modes=1)  # the gaps precede it
+
+
+def test_emulate_compare_off_the_grid():
+    step, ramp = _read(STEP2X), _read(RAMP)
+    shifted = ramp["tas"].copy()
+    shifted.index = shifted.index + 0.5
+    with pytest.raises(slowscan.SlowscanError, match=r"compare=: time 1850.5 \(sample 1\) is "
+                       r"not on the forcing's grid \(from 1850 in steps of 1\)"):
+        slowscan.emulate(step["tas"], ramp["forcing"], 3.7, compare=shifted,
+                         control=_read(CONTROL)["tas"])
+
+
 def test_timescales_equal_cli(tmp_path):
     out = tmp_path / "fits.json"
     with pytest.warns(slowscan.SlowscanWarning, match="multiscale"):

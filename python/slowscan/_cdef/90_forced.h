@@ -57,6 +57,32 @@ int slowscan_feedback_run(const double *time, const double *flux, const double *
                           size_t n, const feedback_config *cfg, feedback_window *out,
                           size_t count, feedback_drift *drift);
 
+typedef struct {
+    screen_length skip;
+    screen_length window;
+    screen_length stride;
+    int span;
+    double span_from, span_until;
+} feedback_request;
+feedback_request slowscan_feedback_request_default(void);
+typedef enum {
+    FEEDBACK_LENGTH_SKIP = 0, FEEDBACK_LENGTH_WINDOW, FEEDBACK_LENGTH_STRIDE
+} feedback_length;
+typedef enum {
+    FEEDBACK_REFUSAL_NONE = 0, FEEDBACK_REFUSAL_SAMPLES, FEEDBACK_REFUSAL_SPAN,
+    FEEDBACK_REFUSAL_UNIT, FEEDBACK_REFUSAL_SKIP, FEEDBACK_REFUSAL_WINDOW_LONG,
+    FEEDBACK_REFUSAL_WINDOW_SHORT, FEEDBACK_REFUSAL_STRIDE_SHORT
+} feedback_refusal;
+typedef struct {
+    feedback_refusal refusal;
+    feedback_length length;
+    double step;
+    double rest;
+} feedback_windows_detail;
+int slowscan_feedback_windows(const double *time, size_t n, const time_axis *axis,
+                              const feedback_request *request, feedback_config *cfg,
+                              feedback_windows_detail *detail);
+
 typedef enum { FEEDBACK_BASELINE_MEAN = 0, FEEDBACK_BASELINE_DRIFT } feedback_baseline_mode;
 int slowscan_feedback_baseline_covers(const double *time, size_t n, const double *btime,
                                       const double *bvalues, size_t nb, double offset,
@@ -119,6 +145,25 @@ int slowscan_timescales_fit_joint(timescales_workspace *ws, const timescales_con
                                   const double *t, const double *y, const double *f, size_t n,
                                   timescales_result *out);
 
+typedef enum {
+    TIMESCALES_REFUSAL_NONE = 0, TIMESCALES_REFUSAL_UNIT, TIMESCALES_REFUSAL_MISSING,
+    TIMESCALES_REFUSAL_SAMPLES
+} timescales_refusal;
+typedef struct {
+    double onset;
+    double dt;
+    double skip;
+    size_t first;
+    size_t count;
+    size_t need;
+    timescales_refusal refusal;
+    size_t sample;
+    int column;
+} timescales_selection;
+int slowscan_timescales_select(const double *time, const double *y, const double *f, size_t n,
+                               const time_axis *axis, double onset, const screen_length *skip,
+                               size_t max_modes, double *since, timescales_selection *out);
+
 typedef struct {
     double band_level;
     size_t persist;
@@ -152,3 +197,16 @@ int slowscan_emulate_departure(const emulate_config *cfg, const double *actual,
                                const double *emulated, size_t n, double sd, double r1,
                                emulate_departure *out);
 int slowscan_emulate_control_noise(const double *x, size_t n, double *sd, double *r1);
+int slowscan_emulate_same_step(const double *ftime, size_t nf, const double *stime, size_t ns,
+                               double *fstep, double *sstep);
+int slowscan_emulate_align(const double *grid, size_t n, const double *time,
+                           const double *values, size_t m, double *actual, double *step,
+                           size_t *bad);
+int slowscan_emulate_fit_noise(const timescales_result *fit, const double *y, size_t n,
+                               double *sd, double *r1);
+typedef enum {
+    EMULATE_NOT_COMPARED = 0, EMULATE_INSIDE, EMULATE_ABOVE, EMULATE_BELOW
+} emulate_side;
+void slowscan_emulate_band(const double *actual, const double *emulated, size_t n,
+                           double half_width, double *difference, double *lower, double *upper,
+                           emulate_side *side);
