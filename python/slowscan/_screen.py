@@ -118,6 +118,8 @@ def summary_rows(run):
     cfg, seq = run.cfg, run.sequential
     null, m = _null_label(cfg, seq is not None), int(cfg.surrogates)
     columns = COLUMNS if seq is None else AUTO_COLUMNS
+    tail = cfg.tail.method != lib.TAIL_OFF
+    columns = columns + ["p_source"] if tail else columns  # where each p came from
     cols = {c: [] for c in columns}
     lo, hi = ffi.new("double *"), ffi.new("double *")
     for k, (name, s) in enumerate(run.series()):
@@ -144,6 +146,8 @@ def summary_rows(run):
             cols["null"].append(null)
             cols["surrogates"].append(m if seq is None else int(t.surrogates))
             cols["flag"].append(ffi.string(lib.slowscan_screen_flag_name(flag)).decode())
+            if tail:
+                cols["p_source"].append(_p_source(t))
     frame = pd.DataFrame(cols, columns=columns)
     return frame.astype({"n": np.int64, "surrogates": np.int64})
 
@@ -184,6 +188,35 @@ def sequential_config(options):
     cfg.max_per_series, cfg.epsilon = cap, float(risk)
     cfg.joint, cfg.budget = int(bool(given["risk_joint"])), budget or 0
     return cfg
+
+
+def tail_options(options, seq):
+    """Pops tail= from options: the library's tail_options for "gpd" (p beyond the
+    surrogates from a generalised Pareto fit, as the command's --tail gpd), None for "none"
+    or no tail; refused as the command refuses it, with keyword names."""
+    method = options.pop("tail", None)
+    if method is None or method == "none":
+        return None
+    if method != "gpd":
+        raise SlowscanError("tail=%r: unknown method (gpd, or none)" % (method,))
+    tail = ffi.new("tail_options *", lib.slowscan_tail_options_default())
+    if seq is not None:
+        raise SlowscanError("tail='gpd' needs a fixed number of surrogates (surrogates=M, M >= "
+                            "1000); it cannot be combined with surrogates='auto'")
+    need, m = lib.slowscan_tail_min_surrogates(tail), options.get("surrogates", 1000)
+    if isinstance(m, (int, np.integer)) and not isinstance(m, bool) and m < need:
+        raise SlowscanError("tail='gpd' needs surrogates=%d or more (the fit takes at least %d "
+                            "exceedances, at most %.0f%% of the surrogates); got surrogates=%d"
+                            % (need, tail.min_exceedances, 100 * tail.max_fraction, m))
+    tail.method = lib.TAIL_GPD
+    return tail
+
+
+def _p_source(t):
+    """Where a test's p came from, as the command's p_source column says."""
+    if t.tail.used:
+        return "tail_estimate"
+    return "NA" if t.p_value != t.p_value else "surrogates"
 
 
 def sequential_report(run):
@@ -227,6 +260,9 @@ def screen(data, progress=None, maps=True, **options):
     the FDR threshold is settled, with budget=None (200 per test), max_per_series=100000,
     risk=0.01, risk_joint=False), null="phase", iaaft_tol, iaaft_iterations, block_length,
     seed=1, fdr=0.05, alternative=None (each test's direction), noise_trend=False,
+    tail=None ("gpd": p below 1/(M+1) estimated from a generalised Pareto fit to the
+    surrogates' upper tail, an upper bound, as the command's --tail gpd; surrogates >= 1000;
+    adds the p_source column),
     threads=None (every core); for the input: time=, names=, calendar=, time_units=,
     missing=, start=, end=, log=False. progress: called with a Progress tuple after each block
     of surrogates and each finished series (from the library's worker threads).
@@ -240,12 +276,15 @@ def screen(data, progress=None, maps=True, **options):
     from . import _grid
     options = dict(options)
     seq = sequential_config(options)
+    tail = tail_options(options, seq)
     if _grid.is_grid(data):
-        if seq is not None:
-            raise SlowscanError("surrogates='auto': not for grids yet (give a number of "
-                                "surrogates)")
+        if seq is not None or tail is not None:
+            raise SlowscanError("%s: not for grids yet" % ("surrogates='auto'" if seq is not None
+                                                           else "tail='gpd'"))
         return _grid.screen_grid(data, progress, maps, options)
     table, cfg, ctx, keep = setup("screen", data, options)
+    if tail is not None:
+        cfg.tail = tail[0]
     warn_few_surrogates(cfg)
     if seq is not None:
         seq.fdr = cfg.fdr  # the decisions' BH level is the run's
