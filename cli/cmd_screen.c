@@ -180,8 +180,9 @@ size_t cli_screen_series_rows(screen_run *run, size_t k, screen_row *rows, int *
                                origin, cli_ensemble_role(run, origin.input, s.name), NAN,
                                NAN, NAN};
     for (size_t j = 0; run->seq && j < res->ntests; j++) { /* --surrogates auto */
-        rows[j].flag = cli_sequential_flag(run->seq, k, j, &res->tests[j], s.flag[j]);
-        cli_sequential_interval(run->seq, k, j, &rows[j].p_low, &rows[j].p_high);
+        rows[j].flag = slowscan_screen_sequential_flag(run->seq->run, k, j, &res->tests[j],
+                                                       s.flag[j]);
+        slowscan_screen_sequential_interval(run->seq->run, k, j, &rows[j].p_low, &rows[j].p_high);
     }
     *rc = EXIT_OK;
     return res->ntests;
@@ -237,7 +238,7 @@ static int put_series(void *state, const screen_batch_item *item)
     if (sink->run->seq) { /* --surrogates auto: the rounds' p-values and counts */
         memcpy(&patched, res, sizeof patched); /* padding and all: it becomes a record */
         size_t g = sink->run->resume.replayed + item->index * sink->ranks + sink->rank;
-        cli_sequential_patch(sink->run->seq, g, &patched);
+        slowscan_screen_sequential_patch(sink->run->seq->run, g, &patched);
         res = &patched;
     }
     size_t size = make_record(ps, res, &sink->origins[item->index], &sink->record,
@@ -516,7 +517,7 @@ static int finish(const cli_options *opts, void *context)
     if (rc == EXIT_OK && run->maps)
         rc = cli_screen_maps_fill(run);
     if (rc == EXIT_OK && run->seq)
-        cli_sequential_report(opts, run->seq);
+        cli_sequential_report(run->seq);
     return rc == EXIT_OK ? write_summary(opts, run) : rc;
 }
 

@@ -8,7 +8,7 @@
 #include "slowscan/netcdf_maps.h"
 #include "slowscan/screen_batch.h"
 #include "slowscan/screen_store.h"
-#include "slowscan/sequential.h"
+#include "slowscan/screen_sequential.h"
 
 #include <stdint.h>
 
@@ -84,29 +84,30 @@ typedef struct {
     size_t maps_input;     /* the input the maps are of */
     size_t figure_series;  /* series drawn so far */
     struct cli_ensemble_run *ensemble; /* --ensemble, else NULL */
-    struct screen_sequential *seq;     /* --surrogates auto, else NULL */
+    struct cli_sequential *seq;        /* --surrogates auto, else NULL */
 } screen_run;
 
-/* --surrogates auto (screen_sequential.c, the library's sequential.h): rounds of surrogates
- * over every series before the run's one ordinary pass, which carries no surrogates of its
- * own; each series' counts, per test, and what its rounds warned of. */
-typedef struct screen_sequential {
-    sequential_config cfg;
-    size_t series, per_series; /* tests: series x per_series, series-major */
-    sequential_test *tests;
-    size_t *drawn, *add;       /* per series: replicates drawn so far, in this round */
-    int *open;                 /* per series: a test still open */
-    int *no_null;              /* per series: why it has no null (a status), 0: it has one */
-    size_t *unconverged;       /* per series: iaaft draws that hit the iteration limit */
-    size_t budget, spent, rounds, undecided, tested;
-    /* the round's counts as one vector (screen_sequential.c), summed over the processes of a
-     * shared run and journaled with --resume: series g's words from round_at[g], after
-     * round_head words of the processes' failures */
-    uint64_t *round;
-    size_t round_len, round_head, *round_at, failed_at;
-    void **journaled; /* --resume: the rounds the journal gave back, in order */
+/* --surrogates auto (screen_sequential.c): the library's rounds (screen_sequential.h) over
+ * every series before the run's one ordinary pass, which carries no surrogates of its own;
+ * around them what only the command does (a round's walk of the inputs, the sums over
+ * processes, the journal). */
+typedef struct cli_sequential {
+    screen_sequential *run; /* the library's state: counts, decisions */
+    size_t series;
+    void **journaled;       /* --resume: the rounds the journal gave back, in order */
     size_t *journaled_size, njournaled;
-} screen_sequential;
+    /* a round's hooks */
+    const cli_options *opts;
+    const cli_inputs *in;
+    screen_run *screen;
+    int (*refuse)(const cli_options *, const screen_batch_failure *);
+    input_source src;  /* the round's walk of the inputs */
+    size_t failed_at;  /* the series this process failed at */
+    int rc;            /* the exit code a hook ended the rounds with (message printed) */
+    FILE *held, *before; /* a shared run: the round's messages, held until the processes agree */
+    char *text;
+    size_t len;
+} cli_sequential;
 
 /* Checks the options that do not go with --surrogates auto (message printed). */
 int cli_sequential_check(const cli_options *opts);
@@ -114,25 +115,17 @@ int cli_sequential_check(const cli_options *opts);
 int cli_sequential_start(const cli_options *opts, screen_run *run, size_t series);
 /* A journal record (--resume) kept when it is a round of run->seq's: 1; not one: 0; -1: out
  * of memory. */
-int cli_sequential_replay(screen_sequential *seq, const void *record, size_t size);
+int cli_sequential_replay(cli_sequential *seq, const void *record, size_t size);
 /* The rounds over every series of `in` (those the journal holds taken from it; in a shared
  * run each process draws for its own series and the counts are summed), then run->seq holds
  * the decisions. refuse: how a series that fails is told (the ordinary run's words). */
 int cli_sequential_run(const cli_options *opts, const cli_inputs *in, screen_run *run,
                        int (*refuse)(const cli_options *, const screen_batch_failure *));
-/* Series g's result of the ordinary pass with its sequential p-values, counts and warnings. */
-void cli_sequential_patch(const screen_sequential *seq, size_t g, screen_result *res);
-/* The flag of test j of series g (the decision; `stored`: the store's, for untested tests),
- * and its p interval. */
-screen_flag cli_sequential_flag(const screen_sequential *seq, size_t g, size_t j,
-                                const screen_test *t, screen_flag stored);
-void cli_sequential_interval(const screen_sequential *seq, size_t g, size_t j, double *lo,
-                             double *hi);
-/* Warnings at the end: no discovery possible, tests undecided. */
-void cli_sequential_report(const cli_options *opts, const screen_sequential *seq);
+/* Warnings at the end, in the library's words: no discovery possible, tests undecided. */
+void cli_sequential_report(const cli_sequential *seq);
 /* The procedure and its parameters, as members of the JSON's parameters object. */
-void cli_sequential_json(FILE *fp, const screen_sequential *seq);
-void cli_sequential_free(screen_sequential *seq);
+void cli_sequential_json(FILE *fp, const cli_sequential *seq);
+void cli_sequential_free(cli_sequential *seq);
 
 /* The rows of stored series k into rows[SCREEN_MAX_TESTS]; returns how many, or 0 with the
  * message printed and *rc set. */

@@ -24,6 +24,7 @@
 #include "slowscan/journal.h"
 #include "slowscan/screen.h"
 #include "slowscan/screen_batch.h"
+#include "slowscan/screen_sequential.h"
 #include "slowscan/robustness.h"
 #include "slowscan/recovery.h"
 #include "slowscan/ensemble.h"

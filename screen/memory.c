@@ -37,7 +37,14 @@ static int put_series(void *state, const screen_batch_item *item)
 {
     memory_state *m = state;
     screen_memory_run *run = m->run;
-    m->status = slowscan_screen_store_add(run->store, item->input->name, item->result, NULL, 0,
+    const screen_result *res = item->result;
+    screen_result patched;
+    if (run->sequential) { /* the rounds' p-values, counts and warnings */
+        memcpy(&patched, res, sizeof patched);
+        slowscan_screen_sequential_patch(run->sequential, item->index, &patched);
+        res = &patched;
+    }
+    m->status = slowscan_screen_store_add(run->store, item->input->name, res, NULL, 0,
                                           &run->error);
     if (m->status != SLOWSCAN_OK)
         return m->status;
@@ -61,10 +68,20 @@ int slowscan_screen_memory_run(const screen_config *cfg, screen_memory_run *run,
     memset(failure, 0, sizeof *failure);
     run->stored = 0;
     run->error.message[0] = '\0';
-    if (!run->table || !run->store)
+    if (!run->table || !run->store ||
+        (run->sequential &&
+         slowscan_screen_sequential_summary(run->sequential).series != run->table->nseries))
         return SLOWSCAN_EINVAL;
     memory_state m = {run, SLOWSCAN_OK};
     screen_source source = {next_series, NULL, run->table->nseries, &m};
+    screen_config fixed = *cfg;
+    if (run->sequential) { /* the rounds set each series' replicate range */
+        fixed.surrogates = 0;
+        cfg = &fixed;
+        int st = slowscan_screen_sequential_run(run->sequential, cfg, &source, NULL, failure);
+        if (st != SLOWSCAN_OK)
+            return st;
+    }
     screen_sink sink = {.put = put_series, .state = &m, .keep_series = 0,
                         .progress = run->progress ? surrogates_drawn : NULL};
     int st = slowscan_screen_batch_run(cfg, &source, &sink, failure);

@@ -491,3 +491,39 @@ size_t slowscan_message_ensemble_split(char *buf, size_t size, const char *ensem
         "follow a path that no member follows", 100 * o->final_share);
     return m.len;
 }
+
+/* --surrogates auto: BH rejects the k smallest p when the k-th is at or below q k / m; with
+ * every p at or above the floor 1/(K+1), a discovery needs at least floor m / q tests tied
+ * there. The options are named as the command line spells them (a binding rewrites them). */
+size_t slowscan_message_sequential_floor(char *buf, size_t size,
+                                         const screen_sequential_summary *s)
+{
+    message_out m = message_begin(buf, size, NULL);
+    double tests = (double)s->tested, fdr = s->config.fdr;
+    double floor_p = 1.0 / ((double)s->config.max_per_series + 1.0);
+    double ties = ceil(floor_p * tests / fdr - 1e-9);
+    if (s->tested == 0 || !(floor_p > fdr / tests))
+        return m.len;
+    put(&m, "option --surrogates auto: ");
+    if (ties > tests)
+        put(&m, "no discovery is possible: the smallest p, 1/(K+1) = %.3g with "
+                "--max-per-series %zu, is above q = %g; raise --max-per-series", floor_p,
+            s->config.max_per_series, fdr);
+    else
+        put(&m, "no test can be a discovery alone: the smallest p, 1/(K+1) = %.3g with "
+                "--max-per-series %zu, is above q/m = %.3g for %zu tests, so discoveries need "
+                "at least %.0f tests tied at that floor; raise --max-per-series", floor_p,
+            s->config.max_per_series, fdr / tests, s->tested, ties);
+    return m.len;
+}
+
+size_t slowscan_message_sequential_undecided(char *buf, size_t size,
+                                             const screen_sequential_summary *s)
+{
+    message_out m = message_begin(buf, size, NULL);
+    if (s->undecided > 0)
+        put(&m, "option --surrogates auto: %zu of %zu tests undecided: the budget (%zu "
+                "surrogates, --budget) ran out before their side of the FDR threshold was "
+                "settled", s->undecided, s->tested, s->budget);
+    return m.len;
+}

@@ -1,5 +1,5 @@
 /* Sequential Monte Carlo testing (--surrogates auto; surrogates/sequential.c and
- * cli/screen_sequential.c).
+ * screen/sequential_run.c, whose own checks are in test_sequential_run.c).
  *
  * - One round's decisions against a direct computation: Clopper-Pearson limits by
  *   scipy.stats.beta.ppf, Benjamini-Hochberg by statsmodels' multipletests on the upper and on
@@ -450,6 +450,8 @@ static void false_discoveries(size_t per_test, int joint, size_t cap)
           "the alternatives are found (power %.3f)", power / (double)screens);
 }
 
+void sequential_run_checks(void); /* test_sequential_run.c: the library's rounds */
+
 void suite_sequential(void)
 {
     decide_against_reference(0, 0, 0);
@@ -459,6 +461,7 @@ void suite_sequential(void)
     decide_against_reference(0, 1, 9000);
     next_round();
     ranges_equal_fixed();
+    sequential_run_checks();
     command();
     false_discoveries(1000, 0, 0);
     false_discoveries(200, 0, 0);

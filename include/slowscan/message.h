@@ -19,6 +19,7 @@
 
 #include "slowscan/ensemble.h"
 #include "slowscan/screen.h"
+#include "slowscan/screen_sequential.h"
 
 #include <stddef.h>
 
@@ -103,5 +104,16 @@ size_t slowscan_message_ensemble_split(char *buf, size_t size, const char *ensem
                                        const ensemble_split *split,
                                        const ensemble_split_options *options,
                                        const message_context *ctx);
+
+/* The warnings of a run of --surrogates auto (screen_sequential.h), each 0 and an empty
+ * text when it does not apply: the smallest p, 1/(K+1), above what BH needs for a discovery
+ * (none possible, or only with enough tests tied at that floor); tests the budget left
+ * undecided. The options are named as the command line spells them. */
+SLOWSCAN_API
+size_t slowscan_message_sequential_floor(char *buf, size_t size,
+                                         const screen_sequential_summary *summary);
+SLOWSCAN_API
+size_t slowscan_message_sequential_undecided(char *buf, size_t size,
+                                             const screen_sequential_summary *summary);
 
 #endif

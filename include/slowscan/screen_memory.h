@@ -14,6 +14,7 @@
 #include "slowscan/io.h"
 #include "slowscan/screen.h"
 #include "slowscan/screen_batch.h"
+#include "slowscan/screen_sequential.h"
 #include "slowscan/screen_store.h"
 
 #include <stddef.h>
@@ -29,14 +30,21 @@ typedef struct {
     void *context;
     size_t stored;             /* out: series added to the store by this run */
     io_error error;            /* out: the store's failure (SLOWSCAN_EIO, ENOMEM) */
+    /* Optional (--surrogates auto): a state made for table->nseries series with cfg. The
+     * table is then the whole run: its rounds (slowscan_screen_sequential_run) come first,
+     * then the ordinary pass without surrogates (cfg->surrogates is not used), each result
+     * patched from the rounds before it goes into the store; the flags come from
+     * slowscan_screen_sequential_flag (series g = the table's index). Progress reports the
+     * ordinary pass only. */
+    screen_sequential *sequential;
 } screen_memory_run;
 
 /* Every field zero or NULL. */
 SLOWSCAN_API
 screen_memory_run slowscan_screen_memory_default(void);
 
-/* Screens every series of run->table with cfg (cfg->threads threads) into run->store.
- * SLOWSCAN_OK; the status of the first series refused (described in *failure, as
+/* Screens every series of run->table with cfg (cfg->threads threads) into run->store
+ * (with run->sequential: its rounds first). SLOWSCAN_OK; the status of the first series refused (described in *failure, as
  * slowscan_screen_batch_run describes it; series before it are in the store); or the
  * store's failure (SCREEN_RULE_NONE in failure->detail, the message in run->error). */
 SLOWSCAN_API

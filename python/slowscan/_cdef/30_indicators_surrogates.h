@@ -65,3 +65,5 @@ typedef struct {
     double p_predictive;
     double p_exponential;
 } tail_result;
+tail_options slowscan_tail_options_default(void);
+size_t slowscan_tail_min_surrogates(const tail_options *opt);

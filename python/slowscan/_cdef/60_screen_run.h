@@ -31,6 +31,7 @@ typedef struct {
     void *context;
     size_t stored;
     io_error error;
+    screen_sequential *sequential;
 } screen_memory_run;
 screen_memory_run slowscan_screen_memory_default(void);
 int slowscan_screen_memory_run(const screen_config *cfg, screen_memory_run *run,

@@ -24,3 +24,7 @@ size_t slowscan_message_leakage(char *buf, size_t size, const detrend_leakage *l
 size_t slowscan_message_leakage_summary(char *buf, size_t size, size_t count, size_t tested,
                                         const char *const *first, size_t nfirst,
                                         const message_context *ctx);
+size_t slowscan_message_sequential_floor(char *buf, size_t size,
+                                         const screen_sequential_summary *summary);
+size_t slowscan_message_sequential_undecided(char *buf, size_t size,
+                                             const screen_sequential_summary *summary);
