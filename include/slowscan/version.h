@@ -8,10 +8,10 @@
 
 #include "slowscan/export.h"
 
-#define SLOWSCAN_VERSION_MAJOR 2
+#define SLOWSCAN_VERSION_MAJOR 3
 #define SLOWSCAN_VERSION_MINOR 0
 #define SLOWSCAN_VERSION_PATCH 0
-#define SLOWSCAN_VERSION_STRING "2.0.0"
+#define SLOWSCAN_VERSION_STRING "3.0.0"
 
 /* The version of the library linked at run time (SLOWSCAN_VERSION_STRING of its build), to
  * compare with the headers a program was compiled against. */

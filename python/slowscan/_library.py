@@ -2,14 +2,14 @@
 
 The library is looked for, in order: the path in the environment variable
 SLOWSCAN_LIBRARY; the path `make install` recorded in _installed.py; the name
-libslowscan.so.2 through the loader's own search (LD_LIBRARY_PATH, ld.so.cache).
+libslowscan.so.3 through the loader's own search (LD_LIBRARY_PATH, ld.so.cache).
 The declarations are the files of _cdef/, read in sorted order (see _cdef/README).
 """
 import os
 
 import cffi
 
-SONAME = "libslowscan.so.2"
+SONAME = "libslowscan.so.3"
 _CDEF_DIR = os.path.join(os.path.dirname(__file__), "_cdef")
 
 
@@ -44,7 +44,7 @@ def _open(ffi):
         except OSError as e:
             tried.append("%s (%s)" % (path, e))
     raise ImportError("slowscan: cannot load the shared library; tried " + "; ".join(tried) +
-                      ". Set SLOWSCAN_LIBRARY to the path of libslowscan.so.2.")
+                      ". Set SLOWSCAN_LIBRARY to the path of libslowscan.so.3.")
 
 
 ffi = cffi.FFI()

@@ -17,8 +17,8 @@ def test_destdir_usr(tmp_path):
     make("install", "DESTDIR=%s" % tmp_path, "PREFIX=/usr")
     pkg = tmp_path / "usr/lib/python3/dist-packages/slowscan"
     assert (pkg / "__init__.py").is_file() and (pkg / "_cdef/40_screen.h").is_file()
-    assert 'LIBRARY = "/usr/lib/libslowscan.so.2"' in (pkg / "_installed.py").read_text()
-    assert (tmp_path / "usr/lib/libslowscan.so.2").exists()
+    assert 'LIBRARY = "/usr/lib/libslowscan.so.3"' in (pkg / "_installed.py").read_text()
+    assert (tmp_path / "usr/lib/libslowscan.so.3").exists()
 
 
 def test_installed_package_runs(tmp_path):
@@ -33,4 +33,4 @@ def test_installed_package_runs(tmp_path):
             "print(len(slowscan.detrend(np.sin(np.arange(20.0)))))")
     out = subprocess.run(["/usr/bin/python3", "-c", code], cwd=tmp_path, env=env,
                          capture_output=True, text=True, check=True).stdout.split()
-    assert out == [str(prefix / "lib/libslowscan.so.2"), "20"]
+    assert out == [str(prefix / "lib/libslowscan.so.3"), "20"]
