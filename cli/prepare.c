@@ -102,8 +102,13 @@ static int check_grid(const cli_options *opts, size_t f, size_t *cells, size_t *
     *cells = slowscan_netcdf_series_count(r);
     slowscan_netcdf_times(r, times, NULL, NULL);
     slowscan_netcdf_close(r);
-    if (*cells == 0) {
-        cli_error("%s: --select leaves no cell to analyse", opts->files[f]);
+    if (*cells == 0) { /* blame --select only when it was given: a dimension of length 0
+                        * leaves no cell either (found by fuzzing) */
+        if (opts->select)
+            cli_error("%s: --select leaves no cell to analyse", opts->files[f]);
+        else
+            cli_error("%s: no cell to analyse (a dimension of its data variables has length 0)",
+                      opts->files[f]);
         return EXIT_BAD_INPUT;
     }
     return EXIT_OK;

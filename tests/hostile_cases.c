@@ -178,6 +178,16 @@ static void make_nc_version(const char *path) { damage(path, "classic", 0, 3, "\
 static void make_nc_numrecs(const char *path) { damage(path, "classic", 0, 4, "\x7f"); }
 static void make_nc4_cut(const char *path) { damage(path, "netcdf4", 3000, 0, NULL); }
 
+/* A NetCDF-4 grid whose second dimension (unlimited, allowed there in NetCDF-4) has no
+ * entry: no cell, and no --select to blame (the fuzzer's empty-dimension inputs). */
+static void make_nc_empty_dimension(const char *path)
+{
+    run_ncgen(path, "netCDF-4",
+              "netcdf e {\ndimensions: time = 3 ; lat = UNLIMITED ;\nvariables:\n"
+              "  double time(time) ; time:units = \"days since 2000-01-01\" ;\n"
+              "  double lat(lat) ;\n  float tas(time, lat) ;\ndata:\n time = 0,1,2 ;\n}\n");
+}
+
 static void make_journal_garbage(const char *path) { make_garbage(path); }
 
 /* A well-formed journal header naming another run. */
@@ -328,6 +338,8 @@ const hostile_refusal hostile_refusals[] = {
     {"NetCDF with a corrupted record count", NULL, make_nc_numrecs, "in/in.nc",
      "detrend -o {out} {in}", "a record count larger than the file"},
     {"NetCDF-4 cut short", NULL, make_nc4_cut, "in/in.nc", SCREEN "{in}", "in.nc"},
+    {"NetCDF with an empty dimension", NULL, make_nc_empty_dimension, "in/in.nc", SCREEN "{in}",
+     "in.nc: no cell to analyse (a dimension"},
     {"NetCDF with an infinite value", NULL, make_nc_infinite, "in/in.nc",
      "indicators -o {out} {in}", "variable 'tas', cell tas[lat=10], time index 1"},
     {"--maps is a directory", NULL, NULL, NULL, SCREEN "--maps {dir} {nc}", "--maps"},
