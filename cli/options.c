@@ -603,7 +603,13 @@ void cli_warning(const char *fmt, ...)
     va_end(ap);
 }
 
+/* The null's name in the outputs, which is also its streams' (screen_config.null_name). */
 const char *cli_null_name(const cli_options *o)
 {
-    return o->use_control ? "control" : slowscan_surrogate_name((surrogate_kind)o->null_model);
+    screen_config cfg = slowscan_screen_config_default();
+    cfg.null_kind = (surrogate_kind)o->null_model;
+    cfg.null_name = slowscan_surrogate_name(cfg.null_kind);
+    if (o->use_control)
+        slowscan_screen_config_control(&cfg);
+    return cfg.null_name;
 }

@@ -2,6 +2,7 @@
  * grid, take logs, then per series deseason and detrend. Every failure prints one message
  * naming the file, row, column or option, and returns an exit code. */
 #include "cli.h"
+#include "slowscan/screen_memory.h"
 #include "slowscan/status.h"
 
 #include <math.h>
@@ -272,14 +273,7 @@ const char *cli_source_name(const char *source)
 
 screen_input cli_control_input(const cli_inputs *in, const char *name)
 {
-    const series_table *c = &in->control;
-    screen_input control = {.name = name, .source = shown(c->source), .time_name = c->time_name, .time = c->time, .values = NULL, .n = c->n, .control = NULL, .axis = c->axis};
-    for (size_t k = 0; k < c->nseries; k++)
-        if (strcmp(c->names[k], name) == 0) {
-            control.values = c->values[k];
-            break;
-        }
-    return control;
+    return slowscan_screen_control_input(&in->control, name, shown(in->control.source));
 }
 
 int cli_attach_control(const cli_options *o, const cli_inputs *in, prepared_series *ps)

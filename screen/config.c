@@ -34,6 +34,12 @@ screen_config slowscan_screen_config_default(void)
     return c;
 }
 
+void slowscan_screen_config_control(screen_config *cfg)
+{
+    cfg->null_kind = SURROGATE_PHASE; /* of the control run's residual */
+    cfg->null_name = "control";      /* its own streams: not the phase null's draws */
+}
+
 size_t slowscan_screen_test_count(const screen_config *cfg)
 {
     return cfg->nindicators + (cfg->drift_test != 0);

@@ -105,6 +105,47 @@ static void memory_run_stores(const series_table *t, screen_config cfg, const ex
     slowscan_screen_store_free(store);
 }
 
+/* A control run (--null control, what Python's control= passes): each series' surrogates
+ * from its same-named series of run.control, as slowscan_screen_series makes them with that
+ * control attached; a control without the series is refused as CONTROL_MISSING, naming it,
+ * with failure.input.control NULL after the run (common practice, no source). */
+static void memory_run_control(const series_table *t, screen_config cfg)
+{
+    slowscan_screen_config_control(&cfg);
+    cfg.threads = 2;
+    screen_workspace *ws = slowscan_screen_workspace_alloc(1);
+    screen_input control = slowscan_screen_control_input(t, t->names[2], "control.csv");
+    screen_input in = {.name = t->names[2], .source = t->source, .time_name = t->time_name,
+                       .time = t->time, .values = t->values[2], .n = t->n, .control = &control};
+    screen_result want;
+    screen_detail d;
+    int st = slowscan_screen_series(ws, &cfg, &in, &want, &d);
+    slowscan_screen_workspace_free(ws);
+    screen_store *store = slowscan_screen_store_alloc(4, NULL);
+    screen_memory_run run = slowscan_screen_memory_default();
+    run.table = t, run.store = store, run.control = t, run.control_source = "control.csv";
+    screen_batch_failure f;
+    st |= slowscan_screen_memory_run(&cfg, &run, &f);
+    screen_stored got;
+    io_error err;
+    st |= slowscan_screen_store_read(store, 2, &got, &err);
+    CHECK(st == SLOWSCAN_OK && control.values == t->values[2] &&
+          memcmp(&got.result.tests[0].p_value, &want.tests[0].p_value, sizeof(double)) == 0,
+          "memory run with a control: status %d, p %g, one series alone %g", st,
+          got.result.tests[0].p_value, want.tests[0].p_value);
+    slowscan_screen_store_free(store);
+    series_table none = *t;
+    none.nseries = 0; /* a control run without any of the series */
+    store = slowscan_screen_store_alloc(4, NULL);
+    run.store = store, run.control = &none;
+    st = slowscan_screen_memory_run(&cfg, &run, &f);
+    CHECK(st == SLOWSCAN_EINVAL && f.index == 0 && f.detail.control &&
+          f.detail.rule == SCREEN_RULE_CONTROL_MISSING && f.input.control == NULL,
+          "a control without the series: status %d, index %zu, rule %d", st, f.index,
+          (int)f.detail.rule);
+    slowscan_screen_store_free(store);
+}
+
 void suite_batch(void)
 {
     series_table t;
@@ -124,6 +165,7 @@ void suite_batch(void)
     }
     slowscan_screen_workspace_free(ws);
     memory_run_stores(&t, cfg, &e);
+    memory_run_control(&t, cfg);
     /* 1 and 3 threads over the 8 series; 16: fewer series than threads, shared surrogates */
     const size_t threads[] = {1, 3, 16};
     for (size_t r = 0; r < 3; r++) {

@@ -330,6 +330,11 @@ double slowscan_screen_unscale(const screen_prepared *ps, double v, int power);
 SLOWSCAN_API
 int slowscan_screen_attach_control(const screen_config *cfg, screen_prepared *ps,
                           const screen_input *control, screen_detail *detail);
+/* The null of a control run (the command's --null control): phase surrogates made from each
+ * series' control (screen_input.control, attached by slowscan_screen_attach_control), on
+ * random streams named "control", the name the outputs give this null (cfg->null_name). */
+SLOWSCAN_API
+void slowscan_screen_config_control(screen_config *cfg);
 /* W of cfg->window for a series of n samples spanning `span`, or a refusal in *detail. */
 /* A length in a calendar unit as a length in the axis' own unit (percentages and axis units
  * unchanged). SLOWSCAN_EINVAL when the axis cannot measure it: any calendar unit on a plain

@@ -37,11 +37,26 @@ typedef struct {
      * slowscan_screen_sequential_flag (series g = the table's index). Progress reports the
      * ordinary pass only. */
     screen_sequential *sequential;
+    /* Optional (--null control, with slowscan_screen_config_control): the control run, a
+     * table readied as the inputs are. Each series gets its series of the same name
+     * (slowscan_screen_control_input) as screen_input.control; a refusal of it comes back
+     * with failure->detail.control set and failure->input.control NULL (the control lives
+     * only as long as the run). control_source names it (NULL: control->source). */
+    const series_table *control;
+    const char *control_source;
 } screen_memory_run;
 
 /* Every field zero or NULL. */
 SLOWSCAN_API
 screen_memory_run slowscan_screen_memory_default(void);
+
+/* The series `name` of a control run as screen_input.control of a series of that name:
+ * the control's time and axis, its values NULL when it has no such series (which
+ * slowscan_screen_attach_control refuses, SCREEN_RULE_CONTROL_MISSING). Names match
+ * exactly, as the command matches a CSV's columns. source NULL: control->source. */
+SLOWSCAN_API
+screen_input slowscan_screen_control_input(const series_table *control, const char *name,
+                                           const char *source);
 
 /* Screens every series of run->table with cfg (cfg->threads threads) into run->store
  * (with run->sequential: its rounds first). SLOWSCAN_OK; the status of the first series refused (described in *failure, as

@@ -6,6 +6,7 @@ import collections
 import numpy as np
 import pandas as pd
 
+from . import _control
 from ._errors import SlowscanError, _python_words, refusal, warn, words
 from ._library import ffi, lib
 from ._series import Leakage, setup
@@ -35,6 +36,7 @@ class Run:
         self.user_progress, self.error = progress, None
         self.callback = None
         self.sequential = None  # surrogates="auto": the library's rounds, after add
+        self.control = None  # control=: the control run's Table (_control.attach)
         if progress is not None:
             self.callback = ffi.callback("void(void *, const screen_progress *)",
                                          self._progress, onerror=self._callback_error)
@@ -57,6 +59,8 @@ class Run:
         src = ffi.new("char[]", source.encode())
         run = ffi.new("screen_memory_run *", lib.slowscan_screen_memory_default())
         run.table, run.source, run.store = table.c, src, self.store
+        if self.control is not None:
+            run.control, run.control_source = self.control.c, self.ctx.c.control_source
         if sequential is not None:
             state = lib.slowscan_screen_sequential_alloc(sequential, self.cfg, table.c.nseries)
             if state == ffi.NULL:
@@ -258,7 +262,11 @@ def screen(data, progress=None, maps=True, **options):
     indicators="variance,lag1,recovery_trend", min_coverage=0.8, recovery="log", step=None,
     band=None, surrogates=1000 (or "auto": rounds of surrogates until each test's side of
     the FDR threshold is settled, with budget=None (200 per test), max_per_series=100000,
-    risk=0.01, risk_joint=False), null="phase", iaaft_tol, iaaft_iterations, block_length,
+    risk=0.01, risk_joint=False), null="phase" (or "control" with control=: phase surrogates
+    of the control run's same-named series' residual, as the command's --null control; the
+    control run a DataFrame, a Series or values with control_time=, read with the data's
+    input options but not cut to start=/end=; not for grids), iaaft_tol, iaaft_iterations,
+    block_length,
     seed=1, fdr=0.05, alternative=None (each test's direction), noise_trend=False,
     tail=None ("gpd": p below 1/(M+1) estimated from a generalised Pareto fit to the
     surrogates' upper tail, an upper bound, as the command's --tail gpd; surrogates >= 1000;
@@ -275,9 +283,11 @@ def screen(data, progress=None, maps=True, **options):
     """
     from . import _grid
     options = dict(options)
+    control = _control.pop_control(options)
     seq = sequential_config(options)
     tail = tail_options(options, seq)
     if _grid.is_grid(data):
+        _control.refuse_grid(control)
         if seq is not None or tail is not None:
             raise SlowscanError("%s: not for grids yet" % ("surrogates='auto'" if seq is not None
                                                            else "tail='gpd'"))
@@ -289,6 +299,8 @@ def screen(data, progress=None, maps=True, **options):
     if seq is not None:
         seq.fdr = cfg.fdr  # the decisions' BH level is the run's
     run = Run(cfg, ctx, progress, total=table.c.nseries)
+    if control is not None:
+        _control.attach(run, control, data, options)
     run.add(table, table.source, seq)
     run.decide()
     frame = summary_rows(run)

@@ -38,6 +38,7 @@ typedef struct {
 } screen_config;
 
 screen_config slowscan_screen_config_default(void);
+void slowscan_screen_config_control(screen_config *cfg);
 
 typedef enum { SCREEN_TEST_RECOVERY_TREND = 11, SCREEN_TEST_KIND_COUNT } screen_test_kind;
 

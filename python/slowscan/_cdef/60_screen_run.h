@@ -32,8 +32,12 @@ typedef struct {
     size_t stored;
     io_error error;
     screen_sequential *sequential;
+    const series_table *control;
+    const char *control_source;
 } screen_memory_run;
 screen_memory_run slowscan_screen_memory_default(void);
+screen_input slowscan_screen_control_input(const series_table *control, const char *name,
+                                           const char *source);
 int slowscan_screen_memory_run(const screen_config *cfg, screen_memory_run *run,
                                screen_batch_failure *failure);
 enum { SCREEN_STORE_SPILL_AFTER = 4096 };
