@@ -27,7 +27,7 @@ def pop_control(options):
         return None
     if not wanted:
         raise SlowscanError("control= needs null='control'")
-    del options["null"]  # the library's control null is set on the config (use)
+    del options["null"]  # the library's control null is set on the config (attach)
     return control, time
 
 
