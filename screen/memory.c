@@ -1,6 +1,6 @@
 /* A table in memory through the batch driver into a store (screen_memory.h): the source
- * hands out the table's columns as they are (nothing copied), the sink adds each result to
- * the store in input order. */
+ * hands out the table's columns as they are (nothing copied), or is the caller's own; the
+ * sink adds each result to the store in input order. */
 #include "slowscan/screen_memory.h"
 #include "slowscan/status.h"
 
@@ -68,12 +68,15 @@ int slowscan_screen_memory_run(const screen_config *cfg, screen_memory_run *run,
     memset(failure, 0, sizeof *failure);
     run->stored = 0;
     run->error.message[0] = '\0';
-    if (!run->table || !run->store ||
-        (run->sequential &&
-         slowscan_screen_sequential_summary(run->sequential).series != run->table->nseries))
+    if ((!run->table && !run->series) || !run->store)
         return SLOWSCAN_EINVAL;
     memory_state m = {run, SLOWSCAN_OK};
-    screen_source source = {next_series, NULL, run->table->nseries, &m};
+    screen_source source = run->series ? *run->series
+                                       : (screen_source){next_series, NULL, run->table->nseries,
+                                                         &m};
+    if (run->sequential &&
+        slowscan_screen_sequential_summary(run->sequential).series != source.count)
+        return SLOWSCAN_EINVAL;
     screen_config fixed = *cfg;
     if (run->sequential) { /* the rounds set each series' replicate range */
         fixed.surrogates = 0;

@@ -132,6 +132,37 @@ static void check_subset(void)
     free(err), free(header);
 }
 
+/* --surrogates auto with a budget too small to settle every test: the maps equal the summary,
+ * 'undecided' included, which flag_values and flag_meanings then describe (CF 1.9 section
+ * 3.5: every flag value has its meaning). */
+static void check_undecided(void)
+{
+    char grid[512], maps[512], summary[512];
+    snprintf(grid, sizeof grid, "%s", check_tmp_path("grid.nc"));
+    snprintf(maps, sizeof maps, "%s", check_tmp_path("auto.nc"));
+    snprintf(summary, sizeof summary, "%s", check_tmp_path("auto.csv"));
+    if (!make_grid(grid, "NETCDF4"))
+        return;
+    int rc;
+    char *err = NULL, extra[600];
+    snprintf(extra, sizeof extra, "--surrogates auto --budget 300 --maps '%s'", maps);
+    char *text = run(extra, grid, summary, &rc, &err);
+    double said[8] = {0};
+    int n = compare(maps, summary, said, 8);
+    CHECK(rc == 0 && text && strstr(text, ",undecided,") && n == 6 && said[0] == 69 &&
+              said[1] == 0 && said[3] == 0,
+          "--surrogates auto: the maps equal the summary, undecided included (rc %d, rows %g, "
+          "differ %g): %s", rc, said[0], said[1], err ? err : "");
+    char cmd[1200], *header = NULL;
+    snprintf(cmd, sizeof cmd, "ncdump -h '%s'", maps);
+    check_run(cmd, &header, NULL);
+    CHECK(header && strstr(header, "tas_lag1_flag:flag_values = 0b, 1b, 2b, 3b, 4b, 5b") &&
+              strstr(header, "flag_meanings = \"untested none rising falling insufficient "
+                             "undecided\""),
+          "--surrogates auto: flag_values and flag_meanings go on to undecided");
+    free(text), free(err), free(header);
+}
+
 /* One message naming --maps, exit 1, and no file (nor temporary file) left. */
 static void check_refused(const char *what, const char *args, const char *needle,
                           const char *target)
@@ -201,5 +232,6 @@ void suite_maps(void)
     check_whole_grid("NETCDF4", "netCDF-4");
     check_whole_grid("NETCDF3_64BIT_OFFSET", "64-bit offset");
     check_subset();
+    check_undecided();
     check_refusals();
 }

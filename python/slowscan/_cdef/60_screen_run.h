@@ -1,4 +1,12 @@
 /* screen_batch.h, screen_store.h, screen_memory.h */
+enum { SCREEN_BATCH_END = -1 };
+typedef struct {
+    int (*next)(void *state, size_t index, screen_input *in, screen_detail *detail);
+    void (*release)(void *state, size_t index);
+    size_t count;
+    void *state;
+} screen_source;
+
 typedef struct {
     size_t index;
     screen_input input;
@@ -32,6 +40,7 @@ typedef struct {
     size_t stored;
     io_error error;
     screen_sequential *sequential;
+    screen_source *series;
 } screen_memory_run;
 screen_memory_run slowscan_screen_memory_default(void);
 int slowscan_screen_memory_run(const screen_config *cfg, screen_memory_run *run,
