@@ -84,7 +84,8 @@ int cli_screen_maps_open(const cli_options *opts, cli_outputs *outs, screen_run 
     netcdf_maps_spec spec = {.input = opts->files[run->maps_input],
                              .read = cli_netcdf_options(opts), .tests = tests,
                              .ntests = ntests, .history = history,
-                             .tail_estimates = opts->tail.method != 0};
+                             .tail_estimates = opts->tail.method != 0,
+                             .undecided = opts->surrogates_auto};
     io_error err = {{0}};
     int st = slowscan_netcdf_maps_open(opts->maps_output, &spec, &outs->maps, &err);
     free(history);

@@ -30,6 +30,7 @@ struct netcdf_maps {
     test_maps *maps;       /* [variable * ntests + test] */
     int written;
     int tail_estimates; /* the spec's */
+    int undecided;      /* the spec's */
 };
 
 /* A dimension of the output: an input dimension with its selection and coordinate. */
@@ -104,6 +105,7 @@ int slowscan_netcdf_maps_open(const char *path, const netcdf_maps_spec *spec,
     }
     m->ntests = spec->ntests;
     m->tail_estimates = spec->tail_estimates;
+    m->undecided = spec->undecided;
     memcpy(m->tests, spec->tests, spec->ntests * sizeof *spec->tests);
     int st = slowscan_netcdf_open(spec->input, &spec->read, &m->reader, err);
     if (st == SLOWSCAN_OK && (st = alloc_maps(m)) != SLOWSCAN_OK)
@@ -247,9 +249,10 @@ static void statistic_words(int test, const char *var, char *buf, size_t size)
 }
 
 /* One map variable: float with _FillValue and units "1", or the byte flag. */
-static int define_map(int out, const char *var, int test, const char *what, const int *dimids,
-                      int ndims, int tail, int *varid)
+static int define_map(const netcdf_maps *m, int out, const char *var, int test, const char *what,
+                      const int *dimids, int ndims, int *varid)
 {
+    int tail = m->tail_estimates;
     char name[NC_MAX_NAME + 1], words[512];
     const char *tname = slowscan_screen_test_name(test);
     snprintf(name, sizeof name, "%s_%s_%s", var, tname, what);
@@ -276,16 +279,16 @@ static int define_map(int out, const char *var, int test, const char *what, cons
         return st;
     st = nc_put_att_schar(out, *varid, "_FillValue", NC_BYTE, 1, &FLAG_FILL);
     /* the flags as screen_flag numbers them, with the names the summary prints */
-    signed char values[SCREEN_FLAG_INSUFFICIENT + 1];
+    int last = m->undecided ? SCREEN_FLAG_UNDECIDED : SCREEN_FLAG_INSUFFICIENT;
+    signed char values[SCREEN_FLAG_UNDECIDED + 1];
     size_t len = 0;
-    for (int f = 0; f <= SCREEN_FLAG_INSUFFICIENT; f++) {
+    for (int f = 0; f <= last; f++) {
         values[f] = (signed char)f;
         len += (size_t)snprintf(words + len, sizeof words - len, "%s%s", f ? " " : "",
                                 slowscan_screen_flag_name((screen_flag)f));
     }
     if (st == NC_NOERR)
-        st = nc_put_att_schar(out, *varid, "flag_values", NC_BYTE, SCREEN_FLAG_INSUFFICIENT + 1,
-                              values);
+        st = nc_put_att_schar(out, *varid, "flag_values", NC_BYTE, (size_t)last + 1, values);
     if (st == NC_NOERR)
         st = put_text(out, *varid, "flag_meanings", words);
     return st;
@@ -308,9 +311,8 @@ static int define_maps(const netcdf_maps *m, int out, const out_dim *dims, size_
                     dimids[k] = dims[i].out_dimid;
         for (size_t j = 0; j < m->ntests; j++)
             for (int k = 0; k < 4 && st == NC_NOERR; k++)
-                st = define_map(out, var->name, m->tests[j], MAP_KINDS[k], dimids, var->ncoords,
-                                m->tail_estimates,
-                                &varids[(v * m->ntests + j) * 4 + (size_t)k]);
+                st = define_map(m, out, var->name, m->tests[j], MAP_KINDS[k], dimids,
+                                var->ncoords, &varids[(v * m->ntests + j) * 4 + (size_t)k]);
     }
     return st;
 }

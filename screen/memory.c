@@ -1,6 +1,6 @@
 /* A table in memory through the batch driver into a store (screen_memory.h): the source
- * hands out the table's columns as they are (nothing copied), the sink adds each result to
- * the store in input order. */
+ * hands out the table's columns as they are (nothing copied), or is the caller's own; the
+ * sink adds each result to the store in input order. */
 #include "slowscan/screen_memory.h"
 #include "slowscan/status.h"
 
@@ -86,21 +86,21 @@ static void surrogates_drawn(void *state, const screen_progress *progress)
 }
 
 /* The rounds (with run->sequential), then the ordinary pass into the store. */
-static int run_passes(const screen_config *cfg, memory_state *m, screen_batch_failure *failure)
+static int run_passes(const screen_config *cfg, memory_state *m, screen_source *source,
+                      screen_batch_failure *failure)
 {
     screen_memory_run *run = m->run;
-    screen_source source = {next_series, NULL, run->table->nseries, m};
     screen_config fixed = *cfg;
     if (run->sequential) { /* the rounds set each series' replicate range */
         fixed.surrogates = 0;
         cfg = &fixed;
-        int st = slowscan_screen_sequential_run(run->sequential, cfg, &source, NULL, failure);
+        int st = slowscan_screen_sequential_run(run->sequential, cfg, source, NULL, failure);
         if (st != SLOWSCAN_OK)
             return st;
     }
     screen_sink sink = {.put = put_series, .state = m, .keep_series = 0,
                         .progress = run->progress ? surrogates_drawn : NULL};
-    int st = slowscan_screen_batch_run(cfg, &source, &sink, failure);
+    int st = slowscan_screen_batch_run(cfg, source, &sink, failure);
     return m->status != SLOWSCAN_OK ? m->status : st;
 }
 
@@ -110,14 +110,21 @@ int slowscan_screen_memory_run(const screen_config *cfg, screen_memory_run *run,
     memset(failure, 0, sizeof *failure);
     run->stored = 0;
     run->error.message[0] = '\0';
-    if (!run->table || !run->store ||
-        (run->sequential &&
-         slowscan_screen_sequential_summary(run->sequential).series != run->table->nseries))
+    if ((!run->table && !run->series) || !run->store)
+        return SLOWSCAN_EINVAL;
+    /* a control is matched by the table's names: not with a caller's source */
+    if (run->series && run->control)
         return SLOWSCAN_EINVAL;
     memory_state m = {run, SLOWSCAN_OK, NULL};
+    screen_source source = run->series ? *run->series
+                                       : (screen_source){next_series, NULL, run->table->nseries,
+                                                         &m};
+    if (run->sequential &&
+        slowscan_screen_sequential_summary(run->sequential).series != source.count)
+        return SLOWSCAN_EINVAL;
     if (run->control && !(m.controls = calloc(run->table->nseries + 1, sizeof *m.controls)))
         return SLOWSCAN_ENOMEM;
-    int st = run_passes(cfg, &m, failure);
+    int st = run_passes(cfg, &m, &source, failure);
     free(m.controls);
     failure->input.control = NULL; /* it pointed into m.controls */
     return st;

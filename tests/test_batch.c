@@ -75,14 +75,17 @@ static void count_stored(void *context, const screen_progress *p)
 }
 
 /* A table screened in memory into a store (screen_memory.h, what the Python package calls):
- * every series stored in order with the results of slowscan_screen_series, told once each. */
-static void memory_run_stores(const series_table *t, screen_config cfg, const expect_sink *e)
+ * every series stored in order with the results of slowscan_screen_series, told once each;
+ * the same from the caller's source instead of the table (a grid's blocks). */
+static void memory_run_stores(const series_table *t, screen_config cfg, const expect_sink *e,
+                              screen_source *series)
 {
     cfg.threads = 2;
     screen_store *store = slowscan_screen_store_alloc(4, NULL); /* spills after 4 series */
     size_t told = 0;
     screen_memory_run run = slowscan_screen_memory_default();
-    run.table = t, run.store = store, run.progress = count_stored, run.context = &told;
+    run.table = series ? NULL : t, run.series = series;
+    run.store = store, run.progress = count_stored, run.context = &told;
     screen_batch_failure f;
     int st = slowscan_screen_memory_run(&cfg, &run, &f);
     size_t same = 0, n = t->nseries < 16 ? t->nseries : 16;
@@ -146,6 +149,57 @@ static void memory_run_control(const series_table *t, screen_config cfg)
     slowscan_screen_store_free(store);
 }
 
+/* One store's p-values and flags (the rounds') over its series, for comparing two runs. */
+static size_t stored_p(screen_store *store, const screen_sequential *q, double *p, int *flag,
+                       size_t cap)
+{
+    size_t k = 0;
+    screen_stored got;
+    io_error err;
+    for (size_t g = 0; g < slowscan_screen_store_count(store); g++) {
+        if (slowscan_screen_store_read(store, g, &got, &err) != SLOWSCAN_OK)
+            return 0;
+        for (size_t j = 0; j < got.result.ntests && k < cap; j++, k++) {
+            p[k] = got.result.tests[j].p_value;
+            flag[k] = (int)slowscan_screen_sequential_flag(q, g, j, &got.result.tests[j],
+                                                           got.flag[j]);
+        }
+    }
+    return k;
+}
+
+/* The rounds of --surrogates auto over a table and over the same series from the caller's
+ * source (walked again each round, as a grid's blocks are): the same p-values and flags. */
+static void memory_run_sequential(const series_table *t, screen_config cfg)
+{
+    enum { CAP = 16 * SCREEN_MAX_TESTS };
+    double p[2][CAP];
+    int flag[2][CAP];
+    size_t n[2] = {0, 0};
+    table_source whole = {t, (size_t)-1, 0, 0};
+    screen_source from_source = {next_series, release_series, t->nseries, &whole};
+    sequential_config seq = slowscan_sequential_config_default();
+    seq.fdr = cfg.fdr, seq.budget = 4000;
+    cfg.threads = 2;
+    for (int r = 0; r < 2; r++) {
+        screen_store *store = slowscan_screen_store_alloc(4, NULL);
+        screen_sequential *q = slowscan_screen_sequential_alloc(&seq, &cfg, t->nseries);
+        screen_memory_run run = slowscan_screen_memory_default();
+        run.table = r ? NULL : t, run.series = r ? &from_source : NULL;
+        run.store = store, run.sequential = q;
+        screen_batch_failure f;
+        if (slowscan_screen_memory_run(&cfg, &run, &f) == SLOWSCAN_OK &&
+            slowscan_screen_store_decide(store, cfg.fdr) == SLOWSCAN_OK)
+            n[r] = stored_p(store, q, p[r], flag[r], CAP);
+        slowscan_screen_sequential_free(q);
+        slowscan_screen_store_free(store);
+    }
+    CHECK(n[0] > 0 && n[0] == n[1] && !memcmp(p[0], p[1], n[0] * sizeof(double)) &&
+          !memcmp(flag[0], flag[1], n[0] * sizeof(int)) && whole.given > t->nseries,
+          "rounds from a source as from the table: %zu and %zu tests, %zu series given",
+          n[0], n[1], whole.given);
+}
+
 void suite_batch(void)
 {
     series_table t;
@@ -164,8 +218,14 @@ void suite_batch(void)
         memcpy(e.want_path[k], slowscan_screen_workspace_path(ws, 0), t.n * sizeof(double));
     }
     slowscan_screen_workspace_free(ws);
-    memory_run_stores(&t, cfg, &e);
+    memory_run_stores(&t, cfg, &e, NULL);
     memory_run_control(&t, cfg);
+    table_source whole = {&t, (size_t)-1, 0, 0};
+    screen_source from_source = {next_series, release_series, t.nseries, &whole};
+    memory_run_stores(&t, cfg, &e, &from_source);
+    CHECK(whole.given == t.nseries && whole.released == t.nseries,
+          "memory run from a source: %zu given, %zu released", whole.given, whole.released);
+    memory_run_sequential(&t, cfg);
     /* 1 and 3 threads over the 8 series; 16: fewer series than threads, shared surrogates */
     const size_t threads[] = {1, 3, 16};
     for (size_t r = 0; r < 3; r++) {

@@ -101,35 +101,76 @@ static void check_whole_grid(const char *format, const char *kind)
     remove(maps);
 }
 
+/* One run on the NETCDF4 grid with `options` and --maps NAME.nc (summary NAME.csv): its exit
+ * code and message, summary text, what netcdf_maps.py says of the maps against the summary
+ * (n values in said), and the maps' header. 0: no grid to run on. */
+typedef struct {
+    int rc, n;
+    double said[8];
+    char *summary, *err, *header;
+} maps_run;
+
+static int run_maps(const char *options, const char *name, maps_run *r)
+{
+    char grid[512], maps[512], summary[512], file[64];
+    snprintf(grid, sizeof grid, "%s", check_tmp_path("grid.nc"));
+    snprintf(file, sizeof file, "%s.nc", name);
+    snprintf(maps, sizeof maps, "%s", check_tmp_path(file));
+    snprintf(file, sizeof file, "%s.csv", name);
+    snprintf(summary, sizeof summary, "%s", check_tmp_path(file));
+    *r = (maps_run){0};
+    if (!make_grid(grid, "NETCDF4"))
+        return 0;
+    char extra[1200], cmd[1200];
+    snprintf(extra, sizeof extra, "%s --maps '%s'", options, maps);
+    r->summary = run(extra, grid, summary, &r->rc, &r->err);
+    r->n = compare(maps, summary, r->said, 8);
+    snprintf(cmd, sizeof cmd, "ncdump -h '%s'", maps);
+    check_run(cmd, &r->header, NULL);
+    return 1;
+}
+
+static void maps_run_free(maps_run *r)
+{
+    free(r->summary), free(r->err), free(r->header);
+}
+
 /* --vars and --select subset the maps' variables and dimensions; without surrogates p and q
  * are fill and every flag untested. */
 static void check_subset(void)
 {
-    char grid[512], maps[512], summary[512];
-    snprintf(grid, sizeof grid, "%s", check_tmp_path("grid.nc"));
-    snprintf(maps, sizeof maps, "%s", check_tmp_path("sub.nc"));
-    snprintf(summary, sizeof summary, "%s", check_tmp_path("sub.csv"));
-    if (!make_grid(grid, "NETCDF4"))
+    maps_run r;
+    if (!run_maps("--vars tas --select lat=0:10,lon=5:15 --surrogates 0", "sub", &r))
         return;
-    int rc;
-    char *err = NULL, extra[600];
-    snprintf(extra, sizeof extra, "--vars tas --select lat=0:10,lon=5:15 --surrogates 0 "
-             "--maps '%s'", maps);
-    free(run(extra, grid, summary, &rc, &err));
-    double said[8] = {0};
-    int n = compare(maps, summary, said, 8);
+    const double *said = r.said;
     /* lat 0, 10 x lon 5, 10, 15 of tas: 6 cells, tas[lat=0,lon=15] all missing */
-    CHECK(rc == 0 && n == 6 && said[0] == 15 && said[1] == 0 && said[2] == 1 && said[3] == 0 &&
-              said[4] == 2 && said[5] == 3,
+    CHECK(r.rc == 0 && r.n == 6 && said[0] == 15 && said[1] == 0 && said[2] == 1 &&
+              said[3] == 0 && said[4] == 2 && said[5] == 3,
           "--select lat=0:10,lon=5:15: maps of 2 x 3 cells equal the summary (rc %d, rows %g, "
-          "differ %g, empty %g, not fill %g, dims %g x %g): %s", rc, said[0], said[1], said[2],
-          said[3], said[4], said[5], err ? err : "");
-    char cmd[1200], *header = NULL;
-    snprintf(cmd, sizeof cmd, "ncdump -h '%s'", maps);
-    check_run(cmd, &header, NULL);
-    CHECK(header && !strstr(header, "pr_") && strstr(header, "tas_lag1_flag"),
+          "differ %g, empty %g, not fill %g, dims %g x %g): %s", r.rc, said[0], said[1],
+          said[2], said[3], said[4], said[5], r.err ? r.err : "");
+    CHECK(r.header && !strstr(r.header, "pr_") && strstr(r.header, "tas_lag1_flag"),
           "--vars tas: only tas is mapped");
-    free(err), free(header);
+    maps_run_free(&r);
+}
+
+/* --surrogates auto with a budget too small to settle every test: the maps equal the summary,
+ * 'undecided' included, which flag_values and flag_meanings then describe (CF 1.9 section
+ * 3.5: every flag value has its meaning). */
+static void check_undecided(void)
+{
+    maps_run r;
+    if (!run_maps("--surrogates auto --budget 300", "auto", &r))
+        return;
+    CHECK(r.rc == 0 && r.summary && strstr(r.summary, ",undecided,") && r.n == 6 &&
+              r.said[0] == 69 && r.said[1] == 0 && r.said[3] == 0,
+          "--surrogates auto: the maps equal the summary, undecided included (rc %d, rows %g, "
+          "differ %g): %s", r.rc, r.said[0], r.said[1], r.err ? r.err : "");
+    CHECK(r.header && strstr(r.header, "tas_lag1_flag:flag_values = 0b, 1b, 2b, 3b, 4b, 5b") &&
+              strstr(r.header, "flag_meanings = \"untested none rising falling insufficient "
+                               "undecided\""),
+          "--surrogates auto: flag_values and flag_meanings go on to undecided");
+    maps_run_free(&r);
 }
 
 /* One message naming --maps, exit 1, and no file (nor temporary file) left. */
@@ -201,5 +242,6 @@ void suite_maps(void)
     check_whole_grid("NETCDF4", "netCDF-4");
     check_whole_grid("NETCDF3_64BIT_OFFSET", "64-bit offset");
     check_subset();
+    check_undecided();
     check_refusals();
 }

@@ -42,6 +42,8 @@ typedef struct {
     const char *history;       /* the command line that made the maps (NULL: none) */
     int tail_estimates;        /* 1: p may be a tail estimate (screen_config.tail, tail.h);
                                   the p maps' long_name says so */
+    int undecided;             /* 1: a flag may be undecided (rounds of surrogates,
+                                  screen_sequential.h); flag_values go on to it */
 } netcdf_maps_spec;
 
 typedef struct netcdf_maps netcdf_maps;

@@ -5,7 +5,8 @@
  * (screen_batch.h: threads over series, results in input order) into a screen_store, whose
  * decision (slowscan_screen_store_decide) then gives the q-values over everything added —
  * over several tables when they are added one after another (the blocks of a field too large
- * to hold at once). Nothing here prints or reads files. */
+ * to hold at once; with rounds of surrogates, which need the whole field in one run, the
+ * blocks come from the caller's source instead). Nothing here prints or reads files. */
 #ifndef SLOWSCAN_SCREEN_MEMORY_H
 #define SLOWSCAN_SCREEN_MEMORY_H
 
@@ -44,6 +45,12 @@ typedef struct {
      * only as long as the run). control_source names it (NULL: control->source). */
     const series_table *control;
     const char *control_source;
+    /* Optional, instead of table: the series from the caller's source (a field read a block
+     * of cells at a time, too large to hold at once), asked from index 0 again for every
+     * round of `sequential` and for the ordinary pass, so all its series are one run (series
+     * g = the source's index). Its count must be the series it gives (the state's series;
+     * with no state, 0 when unknown). `table` and `source` are then not used. */
+    screen_source *series;
 } screen_memory_run;
 
 /* Every field zero or NULL. */
@@ -58,10 +65,11 @@ SLOWSCAN_API
 screen_input slowscan_screen_control_input(const series_table *control, const char *name,
                                            const char *source);
 
-/* Screens every series of run->table with cfg (cfg->threads threads) into run->store
- * (with run->sequential: its rounds first). SLOWSCAN_OK; the status of the first series refused (described in *failure, as
- * slowscan_screen_batch_run describes it; series before it are in the store); or the
- * store's failure (SCREEN_RULE_NONE in failure->detail, the message in run->error). */
+/* Screens every series of run->table (or run->series) with cfg (cfg->threads threads) into
+ * run->store (with run->sequential: its rounds first). SLOWSCAN_OK; the status of the first
+ * series refused (described in *failure, as slowscan_screen_batch_run describes it; series
+ * before it are in the store); or the store's failure (SCREEN_RULE_NONE in failure->detail,
+ * the message in run->error). */
 SLOWSCAN_API
 int slowscan_screen_memory_run(const screen_config *cfg, screen_memory_run *run,
                                screen_batch_failure *failure);

@@ -3,7 +3,11 @@ other dimensions) is one series, named as the command names a NetCDF grid's cell
 (slowscan_netcdf_series_name: VAR[lat=-33,lon=151]), so its random streams — and so its
 numbers — are those of `slowscan screen FILE.nc`. A dask-backed array is read one block of
 cells (all times) at a time; every block goes into one store, so the q-values are over the
-whole grid. The result is a Dataset of maps, as --maps writes them."""
+whole grid. With surrogates="auto" every cell of every block is one run of the library's
+rounds (one BH family): the blocks are read again for each round, as the command re-reads a
+NetCDF grid. The result is a Dataset of maps, as --maps writes them."""
+import threading
+
 import numpy as np
 import pandas as pd
 
@@ -11,11 +15,10 @@ from . import _config
 from ._errors import MessageContext, SlowscanError, warn
 from ._inputs import Table
 from ._library import ffi, lib
-from ._screen import COLUMNS, Run, summary_rows, warn_few_surrogates
+from ._screen import COLUMNS, Run, sequential_report, summary_rows, warn_few_surrogates
 from ._series import ready_options, split_options
 
 FLAG_FILL = -127  # the maps' _FillValue of a flag (a cell without a result)
-FLAG_MEANINGS = "untested none rising falling insufficient"
 
 
 def is_grid(data):
@@ -91,34 +94,61 @@ def _blocks(data, shape):
     yield (0,) * len(shape), np.asarray(data)
 
 
+def _long_name(var, test, kind, what, tail):
+    """A map's long_name, in the words of the command's --maps (io/netcdf_maps.c)."""
+    if what == "statistic":
+        if lib.slowscan_screen_test_rolling(kind):
+            return "Kendall tau of the rolling %s of %s against time" % (test, var)
+        return ("t-value of the drift of the lag-1 coefficient in a drifting AR(1) fit (%s) of "
+                "%s" % (test, var))
+    if what == "p_value":
+        return "p-value of the %s test of %s against surrogates%s" % (test, var, (
+            "; where the statistic lies beyond every surrogate, an estimate from a generalised "
+            "Pareto fit to their upper tail") if tail else "")
+    if what == "q_value":
+        return "Benjamini-Hochberg q-value of the %s test of %s over every test of the run" % (
+            test, var)
+    return "screening flag of the %s test of %s" % (test, var)
+
+
 class _Maps:
-    def __init__(self, cells, tests):
-        self.cells, self.tests = cells, tests
+    def __init__(self, cells, tests, seq=None, tail=False):  # tests: name -> kind
+        self.cells, self.tests, self.seq, self.tail = cells, tests, seq, tail
         ncell = int(np.prod(cells.shape)) if cells.shape else 1
         self.stat = {t: np.full(ncell, np.nan, np.float32) for t in tests}
         self.p = {t: np.full(ncell, np.nan, np.float32) for t in tests}
         self.q = {t: np.full(ncell, np.nan, np.float32) for t in tests}
         self.flag = {t: np.full(ncell, FLAG_FILL, np.int8) for t in tests}
 
-    def put(self, cell, stored):
+    def put(self, k, cell, stored):
+        """Series k of the run (its rounds' flags with surrogates="auto") at cell."""
         res = stored.result
         for j in range(res.ntests):
             t = ffi.string(lib.slowscan_screen_test_name(res.tests[j].kind)).decode()
             self.stat[t][cell] = res.tests[j].statistic
             self.p[t][cell] = res.tests[j].p_value
             self.q[t][cell] = stored.q_value[j]
-            self.flag[t][cell] = stored.flag[j]
+            self.flag[t][cell] = stored.flag[j] if self.seq is None else \
+                lib.slowscan_screen_sequential_flag(self.seq, k, j, ffi.addressof(res.tests, j),
+                                                    stored.flag[j])
+
+    def _flags(self):
+        """flag_values and flag_meanings as the command's maps give them: up to undecided
+        with surrogates="auto"."""
+        last = lib.SCREEN_FLAG_UNDECIDED if self.seq is not None else lib.SCREEN_FLAG_INSUFFICIENT
+        names = [ffi.string(lib.slowscan_screen_flag_name(f)).decode() for f in range(last + 1)]
+        return {"flag_values": np.arange(last + 1, dtype=np.int8), "flag_meanings": " ".join(names)}
 
     def dataset(self, da, time_dim):
         import xarray as xr
         var, dims, shape = self.cells.variable, self.cells.dims, self.cells.shape
         out = {}
         for t in self.tests:
-            out["%s_%s_statistic" % (var, t)] = (dims, self.stat[t].reshape(shape), {"units": "1"})
-            out["%s_%s_p_value" % (var, t)] = (dims, self.p[t].reshape(shape), {"units": "1"})
-            out["%s_%s_q_value" % (var, t)] = (dims, self.q[t].reshape(shape), {"units": "1"})
-            out["%s_%s_flag" % (var, t)] = (dims, self.flag[t].reshape(shape), {
-                "flag_values": np.arange(5, dtype=np.int8), "flag_meanings": FLAG_MEANINGS})
+            for what, values in (("statistic", self.stat), ("p_value", self.p),
+                                 ("q_value", self.q), ("flag", self.flag)):
+                attrs = {"long_name": _long_name(var, t, self.tests[t], what, self.tail)}
+                attrs.update(self._flags() if what == "flag" else {"units": "1"})
+                out["%s_%s_%s" % (var, t, what)] = (dims, values[t].reshape(shape), attrs)
         coords = {name: c for name, c in da.coords.items() if time_dim not in c.dims}
         ds = xr.Dataset(out, coords=coords)
         for name in ds.data_vars:
@@ -127,7 +157,9 @@ class _Maps:
         return ds
 
 
-def screen_grid(data, progress, maps, options):
+def screen_grid(data, progress, maps, options, seq=None, tail=None):
+    """slowscan.screen of a grid; seq (a sequential_config: surrogates="auto") and tail (a
+    tail_options: tail="gpd") as screen made them from the keywords."""
     inputs, rest = split_options(dict(options))
     time_dim = rest.pop("time_dim", None)
     for bad in ("time", "names"):
@@ -135,50 +167,142 @@ def screen_grid(data, progress, maps, options):
             raise TypeError("%s=: a DataArray carries its own %s" % (bad, bad))
     keep = []
     cfg = _config.make_config("screen", rest, keep)
+    if tail is not None:
+        cfg.tail = tail[0]
+    if seq is not None:
+        seq.fdr = cfg.fdr  # the decisions' BH level is the run's
     arrays, time_dim = _arrays(data, time_dim)
+    grids = [_grid_of(da, time_dim) for da in arrays]
     warn_few_surrogates(cfg)
     run = Run(cfg, MessageContext(config=cfg), progress,
               total=sum(int(np.prod(a.shape)) // a.sizes[time_dim] for a in arrays))
-    placed = [_screen_array(run, da, time_dim, inputs) for da in arrays]
+    if seq is None:  # block by block into the store
+        placed = [_place(g, time_dim, inputs, lambda t, v=g[1].variable: run.add(t, v))
+                  for g in grids]
+    else:  # every block read first (its notices said, its cells placed), then the rounds
+        placed = [_place(g, time_dim, inputs, lambda t: None) for g in grids]
+        # the rounds are sized by every cell, those without a value too, as the command sizes
+        # them (it counts a grid's cells before reading them): the same rounds and numbers
+        source = _Source(run, grids, time_dim, inputs, run.total)
+        run.add(None, grids[0][1].variable, seq, series=source.c)
     run.decide()
     if not maps:
-        return summary_rows(run) if any(p[1] for p in placed) else pd.DataFrame(columns=COLUMNS)
-    tests = [ffi.string(lib.slowscan_screen_test_name(lib.slowscan_screen_test_of(cfg, j))).decode()
+        frame = summary_rows(run) if any(placed) else pd.DataFrame(columns=COLUMNS)
+        if seq is not None:
+            frame.attrs["sequential"] = sequential_report(run)
+        return frame
+    kinds = [lib.slowscan_screen_test_of(cfg, j)
              for j in range(lib.slowscan_screen_test_count(cfg))]
-    grids = [_Maps(cells, tests) for cells, _ in placed]
-    owner = [(g, cell) for g, (_, positions) in zip(grids, placed) for cell in positions]
-    for (grid, cell), (name, stored) in zip(owner, run.series()):
-        grid.put(cell, stored)
+    tests = {ffi.string(lib.slowscan_screen_test_name(kind)).decode(): kind for kind in kinds}
+    state = run.sequential
+    out = [_Maps(cells, tests, state, tail is not None) for _, cells in grids]
+    owner = [(g, cell) for g, positions in zip(out, placed) for cell in positions]
+    for k, ((grid, cell), (name, stored)) in enumerate(zip(owner, run.series())):
+        grid.put(k, cell, stored)
+    if seq is not None:
+        sequential_report(run)  # the run's warnings (the maps carry no run-level numbers)
     import xarray as xr
-    return xr.merge([g.dataset(da.transpose(time_dim, ...), time_dim)
-                     for g, da in zip(grids, arrays)], combine_attrs="drop")
+    return xr.merge([g.dataset(da, time_dim) for g, (da, _) in zip(out, grids)],
+                    combine_attrs="drop_conflicts")
 
 
-def _screen_array(run, da, time_dim, inputs):
-    """Every cell of one DataArray into the run, block by block: (cells, flat positions of
-    the cells screened, in the order they went in)."""
+def _grid_of(da, time_dim):
+    """(the DataArray with time first, its _Cells)."""
     variable = str(da.name) if da.name is not None else "series"
     others = [d for d in da.dims if d != time_dim]
     da = da.transpose(time_dim, *others)
-    cells = _Cells(da, others, variable)
+    return da, _Cells(da, others, variable)
+
+
+def _block_tables(da, cells, time_dim, inputs, notices=True):
+    """Each block of the grid as (a Table of its cells with a value, or None when it has none;
+    their flat positions; the count of cells without any value)."""
     times = da[time_dim].values
-    positions, empty = [], 0
     for offset, block in _blocks(da.data, cells.shape):
         values = block.reshape(block.shape[0], -1)
         index = [tuple(o + i for o, i in zip(offset, ix)) for ix in np.ndindex(*block.shape[1:])]
         present = [k for k in range(values.shape[1]) if not np.all(np.isnan(values[:, k]))]
-        empty += values.shape[1] - len(present)
+        empty = values.shape[1] - len(present)
         if not present:
+            yield None, [], empty
             continue
         table = Table(values[:, present], time=times, names=[cells.name(index[k]) for k in present],
                       calendar=inputs.get("calendar"), time_units=inputs.get("time_units"),
-                      missing=inputs.get("missing"), source=variable)
+                      missing=inputs.get("missing"), source=cells.variable, notices=notices)
         table.ready(**ready_options(inputs))
-        run.add(table, variable)
-        positions.extend(np.ravel_multi_index(index[k], cells.shape) if cells.shape else 0
-                         for k in present)
+        yield table, [np.ravel_multi_index(index[k], cells.shape) if cells.shape else 0
+                      for k in present], empty
+
+
+def _place(grid, time_dim, inputs, add):
+    """Every block of one grid with a value handed to add(table), its notices said: the flat
+    positions of the cells with a value, in the order they went in."""
+    da, cells = grid
+    positions, empty = [], 0
+    for table, where, none in _block_tables(da, cells, time_dim, inputs):
+        empty += none
+        if table is not None:
+            add(table)
+            positions.extend(where)
     if empty:
         warn("%s: %d cell%s no value at all (every time missing) and %s not analysed"
-             % (variable, empty, "s hold" if empty != 1 else " holds",
+             % (cells.variable, empty, "s hold" if empty != 1 else " holds",
                 "are" if empty != 1 else "is"))
-    return cells, positions
+    return positions
+
+
+class _Source:
+    """The cells of the grids as the library's screen_source (screen_memory_run.series): the
+    library asks for series 0 again at each round of surrogates="auto" and for the ordinary
+    pass, and each walk reads the blocks again; a block's table lives until the library has
+    released each of its series. Called from the library's threads, one next at a time."""
+
+    def __init__(self, run, grids, time_dim, inputs, count):
+        self.run, self.grids, self.time_dim, self.inputs = run, grids, time_dim, inputs
+        self.lock = threading.Lock()
+        self._next = ffi.callback("int(void *, size_t, screen_input *, screen_detail *)",
+                                  self.next_series)
+        self._release = ffi.callback("void(void *, size_t)", self.release)
+        self.c = ffi.new("screen_source *")
+        self.c.next, self.c.release, self.c.count = self._next, self._release, count
+        self.walk, self.table, self.k, self.live, self.owner = iter(()), None, 0, {}, {}
+        self.block = 0  # the index at which the walk's current table began
+
+    def _tables(self):
+        for da, cells in self.grids:
+            for table, _, _ in _block_tables(da, cells, self.time_dim, self.inputs, False):
+                if table is not None:
+                    yield table
+
+    def next_series(self, state, index, series, detail):
+        try:
+            with self.lock:
+                if index == 0:  # a new walk: a round, or the ordinary pass
+                    self.walk, self.table, self.k, self.live, self.owner = \
+                        self._tables(), None, 0, {}, {}
+                while self.table is None or self.k == self.table.c.nseries:
+                    self.table, self.k = next(self.walk, None), 0
+                    if self.table is None:
+                        return lib.SCREEN_BATCH_END
+                    self.live[index] = [self.table, self.table.c.nseries]
+                    self.block = index
+                t, k = self.table.c, self.k
+                fresh = ffi.new("screen_input *")
+                fresh.name, fresh.source, fresh.time_name = t.names[k], t.source, t.time_name
+                fresh.time, fresh.values, fresh.n, fresh.axis = t.time, t.values[k], t.n, t.axis
+                series[0] = fresh[0]
+                self.owner[index], self.k = self.block, k + 1
+                return lib.SLOWSCAN_OK
+        except Exception as exc:  # said once the library returns, as Run's callbacks are
+            if self.run.error is None:
+                self.run.error = exc
+            detail.rule = lib.SCREEN_RULE_NONE
+            return lib.SLOWSCAN_EIO
+
+    def release(self, state, index):
+        with self.lock:
+            block = self.owner.pop(index, None)
+            if block is not None:
+                self.live[block][1] -= 1
+                if self.live[block][1] == 0:
+                    del self.live[block]

@@ -53,16 +53,23 @@ class Run:
         if self.error is None:  # the first one is raised once the library returns
             self.error = exc_value
 
-    def add(self, table, source, sequential=None):
+    def add(self, table, source, sequential=None, series=None):
         """Screens every series of table into the store (cfg.threads threads); with a
-        sequential_config (surrogates="auto") the table is the whole run, its rounds first."""
+        sequential_config (surrogates="auto") the table is the whole run, its rounds first.
+        series (instead of table): a screen_source, walked again for each round (a grid's
+        blocks)."""
         src = ffi.new("char[]", source.encode())
         run = ffi.new("screen_memory_run *", lib.slowscan_screen_memory_default())
-        run.table, run.source, run.store = table.c, src, self.store
+        run.source, run.store = src, self.store
+        if series is None:
+            run.table = table.c
+        else:
+            run.series = series
         if self.control is not None:
             run.control, run.control_source = self.control.c, self.ctx.c.control_source
         if sequential is not None:
-            state = lib.slowscan_screen_sequential_alloc(sequential, self.cfg, table.c.nseries)
+            count = table.c.nseries if series is None else series.count
+            state = lib.slowscan_screen_sequential_alloc(sequential, self.cfg, count)
             if state == ffi.NULL:
                 raise MemoryError("slowscan: out of memory")
             self.sequential = run.sequential = ffi.gc(state, lib.slowscan_screen_sequential_free)
@@ -255,7 +262,8 @@ def screen(data, progress=None, maps=True, **options):
     dimension (time_dim= names it when it is not "time" or the one dated coordinate): every
     cell is screened (a dask-backed array block by block, all times of a block at once), the
     q-values are over every cell, and the result is an xarray Dataset of maps, as `--maps`
-    writes them (maps=False: the summary DataFrame instead).
+    writes them (maps=False: the summary DataFrame instead); with surrogates="auto" every cell
+    is one run of the rounds, the blocks read again for each.
 
     Options, with the command's defaults: detrend="gaussian-linear", bandwidth="10%",
     deseason=None, deseason_window=None, harmonics=0, window="50%",
@@ -288,10 +296,7 @@ def screen(data, progress=None, maps=True, **options):
     tail = tail_options(options, seq)
     if _grid.is_grid(data):
         _control.refuse_grid(control)
-        if seq is not None or tail is not None:
-            raise SlowscanError("%s: not for grids yet" % ("surrogates='auto'" if seq is not None
-                                                           else "tail='gpd'"))
-        return _grid.screen_grid(data, progress, maps, options)
+        return _grid.screen_grid(data, progress, maps, options, seq, tail)
     table, cfg, ctx, keep = setup("screen", data, options)
     if tail is not None:
         cfg.tail = tail[0]

@@ -120,15 +120,3 @@ def test_auto_refusal_of_the_command_has_the_same_words():
                   DATA + "/stations.csv", check=False)
     assert cli.returncode == 1
     assert "option --max-per-series: '10' is not a whole number from 64 to 1000000" in cli.stderr
-
-
-def test_auto_and_tail_refused_for_grids():
-    # a grid's cells come in blocks that the rounds cannot walk yet: refused, not ignored
-    xr = pytest.importorskip("xarray")
-    df = pd.read_csv(DATA + "/stations.csv", index_col=0).iloc[:, :2]
-    grid = xr.DataArray(df.values, dims=("time", "x"), coords={"time": df.index.values})
-    for options, words in ((dict(surrogates="auto"), "surrogates='auto': not for grids yet"),
-                           (dict(surrogates=1000, tail="gpd"), "tail='gpd': not for grids yet")):
-        with pytest.raises(SlowscanError) as caught:
-            slowscan.screen(grid, **options)
-        assert words in str(caught.value)

@@ -1,4 +1,12 @@
 /* screen_batch.h, screen_store.h, screen_memory.h */
+enum { SCREEN_BATCH_END = -1 };
+typedef struct {
+    int (*next)(void *state, size_t index, screen_input *in, screen_detail *detail);
+    void (*release)(void *state, size_t index);
+    size_t count;
+    void *state;
+} screen_source;
+
 typedef struct {
     size_t index;
     screen_input input;
@@ -34,6 +42,7 @@ typedef struct {
     screen_sequential *sequential;
     const series_table *control;
     const char *control_source;
+    screen_source *series;
 } screen_memory_run;
 screen_memory_run slowscan_screen_memory_default(void);
 screen_input slowscan_screen_control_input(const series_table *control, const char *name,
