@@ -28,6 +28,7 @@ struct screen_sequential {
     uint64_t *round;           /* the round's vector: reserve words, then the counts */
     size_t round_len, reserve, *round_at;
     size_t *map;               /* a round's batch index -> its series */
+    size_t *order;             /* the inputs' order of the series (NULL: index order) */
     double *ratio, *hat;       /* scratch of the round's summary, one per test */
 };
 
@@ -44,7 +45,7 @@ void slowscan_screen_sequential_free(screen_sequential *q)
         return;
     free(q->tests), free(q->drawn), free(q->add), free(q->open), free(q->no_null);
     free(q->unconverged), free(q->round_at), free(q->round), free(q->map);
-    free(q->ratio), free(q->hat);
+    free(q->ratio), free(q->hat), free(q->order);
     free(q);
 }
 
@@ -80,6 +81,32 @@ screen_sequential *slowscan_screen_sequential_alloc(const sequential_config *seq
     return q;
 }
 
+int slowscan_screen_sequential_order(screen_sequential *q, const size_t *order)
+{
+    if (!q || q->rounds > 0)
+        return SLOWSCAN_EINVAL;
+    size_t *copy = NULL;
+    if (order) {
+        char *seen = calloc(q->series + 1, 1);
+        copy = malloc((q->series + 1) * sizeof *copy);
+        int st = seen && copy ? SLOWSCAN_OK : SLOWSCAN_ENOMEM;
+        for (size_t k = 0; st == SLOWSCAN_OK && k < q->series; k++) { /* a permutation */
+            if (order[k] >= q->series || seen[order[k]])
+                st = SLOWSCAN_EINVAL;
+            else
+                seen[order[k]] = 1, copy[k] = order[k];
+        }
+        free(seen);
+        if (st != SLOWSCAN_OK) {
+            free(copy);
+            return st;
+        }
+    }
+    free(q->order);
+    q->order = copy;
+    return SLOWSCAN_OK;
+}
+
 static size_t round_width(const screen_sequential *q)
 {
     return ROUND_HEAD + ROUND_TEST * q->per_series;
@@ -104,6 +131,15 @@ static int round_layout(screen_sequential *q, int first)
     return (q->round = calloc(at + 1, sizeof *q->round)) ? SLOWSCAN_OK : SLOWSCAN_ENOMEM;
 }
 
+/* Whether any test of series g has a statistic (set by round 1). */
+static int series_tested(const screen_sequential *q, size_t g)
+{
+    for (size_t j = 0; j < q->per_series; j++)
+        if (q->tests[g * q->per_series + j].tested)
+            return 1;
+    return 0;
+}
+
 /* The counts of the round in q->round added to the run's. */
 static void round_apply(screen_sequential *q, int first)
 {
@@ -123,7 +159,11 @@ static void round_apply(screen_sequential *q, int first)
             t->drawn += c[2];
         }
         q->drawn[g] += q->add[g];
-        q->spent += q->add[g];
+        /* a series that drew nothing (no null, or no test with a statistic: an empty cell of
+         * a grid) keeps its nominal count, as a fixed run reports M for it, but costs the
+         * budget nothing: empty cells must not starve the rounds of the others */
+        if (!q->no_null[g] && series_tested(q, g))
+            q->spent += q->add[g];
     }
 }
 
@@ -248,8 +288,8 @@ static int plan_next(screen_sequential *q, size_t *total)
         for (size_t j = 0; j < q->per_series; j++)
             q->open[g] |= q->tests[g * q->per_series + j].decision == SEQUENTIAL_OPEN;
     }
-    slowscan_sequential_next(&q->cfg, q->series, q->drawn, q->open, q->spent, q->budget, q->add,
-                             total);
+    slowscan_sequential_next_in_order(&q->cfg, q->series, q->drawn, q->open, q->spent, q->budget,
+                                      q->order, q->add, total);
     return SLOWSCAN_OK;
 }
 
@@ -298,7 +338,8 @@ static void first_plan(screen_sequential *q, size_t *add)
     q->budget = slowscan_sequential_budget(&q->cfg, q->series * q->per_series);
     for (size_t g = 0; g < q->series; g++)
         q->open[g] = 1;
-    slowscan_sequential_next(&q->cfg, q->series, q->drawn, q->open, 0, q->budget, q->add, add);
+    slowscan_sequential_next_in_order(&q->cfg, q->series, q->drawn, q->open, 0, q->budget,
+                                      q->order, q->add, add);
 }
 
 int slowscan_screen_sequential_run(screen_sequential *q, const screen_config *cfg,

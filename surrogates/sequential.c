@@ -141,9 +141,10 @@ static size_t cut_sum(const size_t *add, size_t series, size_t c)
 }
 
 /* Cuts the requests to the largest common cap (a multiple of block) that fits in `left`, then
- * hands what is left a block at a time to the series cut, in series order. */
+ * hands what is left a block at a time to the series cut, in the order `order` gives them
+ * (NULL: index order). */
 static size_t grant_common_cap(const sequential_config *cfg, size_t series, size_t *add,
-                               size_t left)
+                               size_t left, const size_t *order)
 {
     size_t block = cfg->block ? cfg->block : 1, lo = 0, hi = 0;
     for (size_t s = 0; s < series; s++)
@@ -158,7 +159,8 @@ static size_t grant_common_cap(const sequential_config *cfg, size_t series, size
     }
     size_t cap = lo * block, total = cut_sum(add, series, cap);
     left -= total;
-    for (size_t s = 0; s < series; s++) {
+    for (size_t k = 0; k < series; k++) {
+        size_t s = order ? order[k] : k;
         size_t over = add[s] > cap ? add[s] - cap : 0, extra = left >= block ? block : 0;
         extra = over < extra ? over : extra;
         add[s] = (add[s] < cap ? add[s] : cap) + extra;
@@ -167,16 +169,24 @@ static size_t grant_common_cap(const sequential_config *cfg, size_t series, size
     return total;
 }
 
-void slowscan_sequential_next(const sequential_config *cfg, size_t series,
-                              const size_t *drawn, const int *open, size_t spent,
-                              size_t budget, size_t *add, size_t *total)
+void slowscan_sequential_next_in_order(const sequential_config *cfg, size_t series,
+                                       const size_t *drawn, const int *open, size_t spent,
+                                       size_t budget, const size_t *order, size_t *add,
+                                       size_t *total)
 {
     size_t left = budget > spent ? budget - spent : 0, asked = 0;
     for (size_t s = 0; s < series; s++) {
         add[s] = open[s] ? request(cfg, drawn[s]) : 0;
         asked += add[s];
     }
-    *total = asked <= left ? asked : grant_common_cap(cfg, series, add, left);
+    *total = asked <= left ? asked : grant_common_cap(cfg, series, add, left, order);
+}
+
+void slowscan_sequential_next(const sequential_config *cfg, size_t series,
+                              const size_t *drawn, const int *open, size_t spent,
+                              size_t budget, size_t *add, size_t *total)
+{
+    slowscan_sequential_next_in_order(cfg, series, drawn, open, spent, budget, NULL, add, total);
 }
 
 /* BH's threshold on the reported p of the tested tests: fdr max(k, 1) / m. */

@@ -165,4 +165,15 @@ void sequential_run_checks(void)
     slowscan_screen_sequential_free(drawn);
     slowscan_screen_sequential_free(replayed);
     slowscan_screen_sequential_free(threads);
+    /* the inputs' order: a permutation, set before the rounds, or refused */
+    screen_config cfg = slowscan_screen_config_default();
+    sequential_config seq = slowscan_sequential_config_default();
+    screen_sequential *q = slowscan_screen_sequential_alloc(&seq, &cfg, 3);
+    const size_t twice[] = {0, 2, 2}, out[] = {0, 1, 3}, fine[] = {2, 0, 1};
+    CHECK(q && slowscan_screen_sequential_order(q, twice) == SLOWSCAN_EINVAL &&
+              slowscan_screen_sequential_order(q, out) == SLOWSCAN_EINVAL &&
+              slowscan_screen_sequential_order(q, fine) == SLOWSCAN_OK &&
+              slowscan_screen_sequential_order(q, NULL) == SLOWSCAN_OK,
+          "the inputs' order: a repeated or out-of-range index refused, a permutation taken");
+    slowscan_screen_sequential_free(q);
 }

@@ -97,6 +97,15 @@ screen_sequential *slowscan_screen_sequential_alloc(const sequential_config *seq
 SLOWSCAN_API
 void slowscan_screen_sequential_free(screen_sequential *run);
 
+/* The order of the run's inputs when the source walks its series in another (a grid read a
+ * block of cells at a time): order[k] is the index of the k-th series in input order, a
+ * permutation of 0..series-1 (NULL: index order). It decides only who gets what is left of a
+ * short budget after the common cap (slowscan_sequential_next_in_order), so that the rounds
+ * are those of the command, which walks its inputs in order. Before the rounds; SLOWSCAN_OK,
+ * SLOWSCAN_EINVAL (not a permutation, or the rounds have begun) or SLOWSCAN_ENOMEM. */
+SLOWSCAN_API
+int slowscan_screen_sequential_order(screen_sequential *run, const size_t *order);
+
 /* The rounds: every series of `source` (this process's, in order; walked again each round)
  * through the batch driver with cfg until every test is settled, the budget is spent or the
  * rounds run out, then the open tests settled against BH's threshold. SLOWSCAN_OK; the

@@ -147,5 +147,14 @@ SLOWSCAN_API
 void slowscan_sequential_next(const sequential_config *cfg, size_t series,
                               const size_t *drawn, const int *open, size_t spent,
                               size_t budget, size_t *add, size_t *total);
+/* The same, what is left after the common cap handed out in the order order[0], order[1], ...
+ * (a permutation of the series; NULL: index order). A caller that walks its series in another
+ * order than the run's inputs (a grid read by blocks) passes the inputs' order, so its rounds
+ * are those of a walk in input order. */
+SLOWSCAN_API
+void slowscan_sequential_next_in_order(const sequential_config *cfg, size_t series,
+                                       const size_t *drawn, const int *open, size_t spent,
+                                       size_t budget, const size_t *order, size_t *add,
+                                       size_t *total);
 
 #endif

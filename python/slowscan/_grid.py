@@ -181,10 +181,12 @@ def screen_grid(data, progress, maps, options, seq=None, tail=None):
                   for g in grids]
     else:  # every block read first (its notices said, its cells placed), then the rounds
         placed = [_place(g, time_dim, inputs, lambda t: None) for g in grids]
-        # the rounds are sized by every cell, those without a value too, as the command sizes
-        # them (it counts a grid's cells before reading them): the same rounds and numbers
+        # every cell is a series of the run, those without a value too, as the command counts
+        # a grid's cells before reading them; a cell that draws nothing costs the budget
+        # nothing (the library's rounds), so the rounds and numbers are the command's
         source = _Source(run, grids, time_dim, inputs, run.total)
-        run.add(None, grids[0][1].variable, seq, series=source.c)
+        run.add(None, grids[0][1].variable, seq, series=source.c,
+                order=_input_order(placed, run.total))
     run.decide()
     if not maps:
         frame = summary_rows(run) if any(placed) else pd.DataFrame(columns=COLUMNS)
@@ -232,6 +234,15 @@ def _block_tables(da, cells, time_dim, inputs, notices=True):
         table.ready(**ready_options(inputs))
         yield table, [np.ravel_multi_index(index[k], cells.shape) if cells.shape else 0
                       for k in present], empty
+
+
+def _input_order(placed, total):
+    """The walk's series in the command's order (variable by variable, cells in the array's
+    order; the cells without a value, which the walk never gives, last): what is left of a
+    short budget goes to the series in that order, so a chunked grid gets the command's
+    rounds (slowscan_screen_sequential_order)."""
+    keys = [(g, position) for g, positions in enumerate(placed) for position in positions]
+    return sorted(range(len(keys)), key=keys.__getitem__) + list(range(len(keys), total))
 
 
 def _place(grid, time_dim, inputs, add):

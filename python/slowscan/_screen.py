@@ -53,11 +53,11 @@ class Run:
         if self.error is None:  # the first one is raised once the library returns
             self.error = exc_value
 
-    def add(self, table, source, sequential=None, series=None):
+    def add(self, table, source, sequential=None, series=None, order=None):
         """Screens every series of table into the store (cfg.threads threads); with a
         sequential_config (surrogates="auto") the table is the whole run, its rounds first.
         series (instead of table): a screen_source, walked again for each round (a grid's
-        blocks)."""
+        blocks); order: its series in the inputs' order (slowscan_screen_sequential_order)."""
         src = ffi.new("char[]", source.encode())
         run = ffi.new("screen_memory_run *", lib.slowscan_screen_memory_default())
         run.source, run.store = src, self.store
@@ -73,6 +73,9 @@ class Run:
             if state == ffi.NULL:
                 raise MemoryError("slowscan: out of memory")
             self.sequential = run.sequential = ffi.gc(state, lib.slowscan_screen_sequential_free)
+            if order is not None and lib.slowscan_screen_sequential_order(
+                    state, ffi.new("size_t[]", list(order) or [0])) != 0:
+                raise SlowscanError("slowscan: the grid's series order is not a permutation")
         if self.callback is not None:
             run.progress = self.callback
         failure = ffi.new("screen_batch_failure *")

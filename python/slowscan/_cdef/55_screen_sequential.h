@@ -30,6 +30,7 @@ typedef struct {
 screen_sequential *slowscan_screen_sequential_alloc(const sequential_config *seq,
                                                     const screen_config *cfg, size_t series);
 void slowscan_screen_sequential_free(screen_sequential *run);
+int slowscan_screen_sequential_order(screen_sequential *run, const size_t *order);
 screen_flag slowscan_screen_sequential_flag(const screen_sequential *run, size_t g, size_t j,
                                             const screen_test *test, screen_flag stored);
 void slowscan_screen_sequential_interval(const screen_sequential *run, size_t g, size_t j,
