@@ -111,7 +111,7 @@ static int prepare_bandwidths(method_pass *p)
         screen_prepared *ps = &ws->prepared[b];
         ws->nprepared = b + 1;
         st = slowscan_screen_prepare(&cell, p->in, ps, p->detail);
-        if (st == SLOWSCAN_OK && p->in->control && !ps->constant)
+        if (st == SLOWSCAN_OK && p->in->control)
             st = slowscan_screen_attach_control(&cell, ps, p->in->control, p->detail);
     }
     return st;

@@ -164,6 +164,8 @@ int screen_attach_control_with(screen_workspace *ws, const screen_config *cfg,
                                screen_prepared *ps, const screen_input *control,
                                screen_detail *d)
 {
+    if (ps->constant) /* its tests are insufficient whatever the null: nothing to attach */
+        return SLOWSCAN_OK;
     int st = check_control(ps, control, d);
     if (st != SLOWSCAN_OK) {
         d->control = 1;
@@ -216,7 +218,7 @@ int slowscan_screen_series(screen_workspace *ws, const screen_config *cfg, const
     slowscan_screen_prepared_free(&ws->prepared);
     screen_prepared *ps = &ws->prepared;
     int st = slowscan_screen_prepare_with(ws, cfg, in, ps, d);
-    if (st == SLOWSCAN_OK && in->control && !ps->constant)
+    if (st == SLOWSCAN_OK && in->control)
         st = screen_attach_control_with(ws, cfg, ps, in->control, d);
     if (st != SLOWSCAN_OK)
         return st;

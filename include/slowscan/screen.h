@@ -326,7 +326,9 @@ double slowscan_screen_unscale(const screen_prepared *ps, double v, int power);
 /* Makes ps->null_source the residual of the control run's first ps->n samples, deseasoned
  * and detrended with ps's bandwidth and window in time units. Refused (SCREEN_RULE_CONTROL_*)
  * when the control has no such series (values NULL), fewer samples, another time step
- * (relative 1e-6), or fewer than 8 finite samples or no variation; else its own refusals. */
+ * (relative 1e-6), or fewer than 8 finite samples or no variation; else its own refusals.
+ * A series that does not vary (ps->constant) keeps no control: SLOWSCAN_OK, nothing checked
+ * (its tests are insufficient whatever the null), so a caller need not test that first. */
 SLOWSCAN_API
 int slowscan_screen_attach_control(const screen_config *cfg, screen_prepared *ps,
                           const screen_input *control, screen_detail *detail);

@@ -1,13 +1,15 @@
-"""screen(control=..., null="control"): surrogates made from a control run, as the command's
-`--null control --control FILE`. The control run is a table of its own (a DataFrame, a
-Series, or values with control_time=), read as the command reads --control: the data's
-calendar=, time_units=, missing=, grid (resample=, max_gap=) and log=, never cut by
-start=/end= (those choose the data's span). The library matches its series to the data's by
-name (slowscan_screen_control_input, through screen_memory_run.control), attaches each one's
-residual and refuses a missing, short, flat one or one on another step in its own words."""
-from ._errors import SlowscanError
+"""screen(), robustness() and recovery() with control=..., null="control": surrogates made
+from a control run, as the commands' `--null control --control FILE`. The control run is a
+table of its own (a DataFrame, a Series, or values with control_time=), read as the command
+reads --control: the data's calendar=, time_units=, missing=, grid (resample=, max_gap=)
+and log=, never cut by start=/end= (those choose the data's span). The library matches its
+series to the data's by name (slowscan_screen_control_input: screen's through
+screen_memory_run.control, robustness's as screen_input.control, recovery's attached to each
+prepared series), attaches each one's residual and refuses a missing, short, flat one or one
+on another step in its own words."""
+from ._errors import SlowscanError, refusal
 from ._inputs import Table
-from ._library import lib
+from ._library import ffi, lib
 from ._series import ready_options, split_options
 
 SOURCE = "control"  # how messages name the control run (as "input" names the data)
@@ -55,10 +57,33 @@ def _table(control, data, inputs):
     return t.ready(**ready)
 
 
-def attach(run, control, data, options):
+def use(cfg, ctx, control, data, options):
     """Reads the control run with the data's input options, sets the library's control null
-    on run.cfg and names the control run in run.ctx's messages; Run.add hands it to the
-    memory run (screen_memory_run.control)."""
-    run.control = _table(control, data, split_options(dict(options))[0])
-    lib.slowscan_screen_config_control(run.cfg)
-    run.ctx.c.control_source = run.ctx._text(SOURCE)
+    on cfg and names the control run in ctx's messages; returns its Table."""
+    table = _table(control, data, split_options(dict(options))[0])
+    lib.slowscan_screen_config_control(cfg)
+    ctx.c.control_source = ctx._text(SOURCE)
+    return table
+
+
+def attach(run, control, data, options):
+    """use() for a screening Run: Run.add hands the control run to the memory run
+    (screen_memory_run.control)."""
+    run.control = use(run.cfg, run.ctx, control, data, options)
+
+
+def series_input(control, name, ctx):
+    """The control run's series `name` (a char * of the data's table) as the
+    screen_input.control of that series (slowscan_screen_control_input; its values NULL when
+    the control run has none, which the library refuses)."""
+    return ffi.new("screen_input *", lib.slowscan_screen_control_input(
+        control.c, name, ctx.c.control_source))
+
+
+def attach_series(cfg, ps, control, name, ctx):
+    """The control run's series `name` attached to one prepared series (its surrogates made
+    from the control's residual), as the command's recovery attaches it; refusals raise."""
+    detail = ffi.new("screen_detail *")
+    st = lib.slowscan_screen_attach_control(cfg, ps, series_input(control, name, ctx), detail)
+    if st != 0:
+        raise refusal(st, detail, ctx)

@@ -7,7 +7,7 @@ import math
 import numpy as np
 import pandas as pd
 
-from . import _config
+from . import _config, _control
 from ._errors import MessageContext, SlowscanError, refusal, status_text, warn, words
 from ._forced import time_text
 from ._library import ffi, lib
@@ -56,9 +56,11 @@ def recovery(data, project=False, project_draws=1000, **options):
 
     Options, with the command's defaults: detrend="gaussian-linear", bandwidth="10%",
     deseason=None, deseason_window=None, harmonics=0, noise_trend=False, surrogates=0 (M > 0:
-    the surrogate p-value of t(a1)), null="phase", iaaft_tol, iaaft_iterations,
-    block_length, seed=1, alternative=None, threads=None (every core); project=False (True:
-    the projected crossing of lambda = 0, as --project), project_draws=1000 (at least 500);
+    the surrogate p-value of t(a1)), null="phase" (or "control" with control= and
+    control_time=, as screen()'s: phase surrogates of the control run's same-named series),
+    iaaft_tol, iaaft_iterations, block_length, seed=1, alternative=None, threads=None (every
+    core); project=False (True: the projected crossing of lambda = 0, as --project),
+    project_draws=1000 (at least 500);
     for the input: time=, names=, calendar=, time_units=, missing=, start=, end=, log=False,
     resample=, max_gap=.
 
@@ -71,7 +73,11 @@ def recovery(data, project=False, project_draws=1000, **options):
             not 500 <= project_draws <= 10**8:
         raise SlowscanError("project_draws=%r: a whole number >= 500 is needed"
                             % (project_draws,))
+    options = dict(options)
+    control = _control.pop_control(options)
     table, cfg, ctx, keep = tested_setup("recovery", data, options)
+    if control is not None:
+        control = _control.use(cfg, ctx, control, data, options)
     rcfg = ffi.new("recovery_config *", lib.slowscan_recovery_config_default())
     if project:
         rcfg.projection_draws = project_draws
@@ -83,6 +89,8 @@ def recovery(data, project=False, project_draws=1000, **options):
     for k, name in enumerate(table.names):
         with prepared(cfg, table, k, ctx, table.source) as ps:
             leakage.add(name, ps.leakage, ps.leakage_tested)
+            if control is not None:  # as the command: after the leakage is counted
+                _control.attach_series(cfg, ps, control, table.c.names[k], ctx)
             r, path = _one_series(ws, cfg, rcfg, ps, ctx)
             if r.fit_status != 0:
                 warn("%s: column '%s': no drifting AR(1) fit (%s); no rows written for it"
@@ -193,7 +201,9 @@ def robustness(data, windows=None, bandwidths=None, detrends=None, **options):
     'A,B,C' or a sequence of lengths; detrends=: methods, comma-separated or a sequence
     (default: the one detrend=). Other options as screen()'s, with this command's defaults:
     indicators="variance,lag1" (recovery_trend only when named), surrogates=0 (tau only;
-    M > 0 gives p-values), seed=1, threads=None (every core).
+    M > 0 gives p-values), seed=1, threads=None (every core); null="control" with control=
+    (and control_time=) as screen()'s: each bandwidth's surrogates from the control run's
+    same-named series.
 
     Returns a DataFrame series, indicator, detrend, window, bandwidth, tau, statistic,
     p_value (window and bandwidth in time units; recovery_trend has no window). Its
@@ -202,7 +212,10 @@ def robustness(data, windows=None, bandwidths=None, detrends=None, **options):
     row "all").
     """
     given = dict(options)
+    control = _control.pop_control(given)
     table, cfg, ctx, keep = tested_setup("robustness", data, given)
+    if control is not None:
+        control = _control.use(cfg, ctx, control, data, given)
     base = given.get("detrend") or ffi.string(
         lib.slowscan_detrend_method_name(cfg.detrend.method)).decode()
     methods = _methods(detrends, base)
@@ -222,7 +235,7 @@ def robustness(data, windows=None, bandwidths=None, detrends=None, **options):
         raise MemoryError("slowscan: out of memory")
     rows, fractions = [], []
     for k, name in enumerate(table.names):
-        counts = _grid_series(ws, grid, cfg, table, k, ctx, methods, rows)
+        counts = _grid_series(ws, grid, cfg, table, k, ctx, methods, rows, control)
         fractions.extend(_fraction_rows(cfg, name, methods, counts))
     frame = pd.DataFrame(rows, columns=GRID_COLUMNS)
     frame.attrs["fractions"] = pd.DataFrame(fractions, columns=FRACTION_COLUMNS).astype(
@@ -230,8 +243,10 @@ def robustness(data, windows=None, bandwidths=None, detrends=None, **options):
     return frame
 
 
-def _grid_series(ws, grid, cfg, table, k, ctx, methods, rows):
-    """One series through the grid: its rows appended, its counts ([method][test]) returned."""
+def _grid_series(ws, grid, cfg, table, k, ctx, methods, rows, control=None):
+    """One series through the grid: its rows appended, its counts ([method][test]) returned.
+    control: the control run's Table; the library attaches its same-named series to each
+    bandwidth's residual (screen_input.control)."""
     name = table.names[k]
     counts = ffi.new("robustness_counts[]", len(methods) * 12)
     errors = []
@@ -255,18 +270,22 @@ def _grid_series(ws, grid, cfg, table, k, ctx, methods, rows):
     sink = ffi.callback("int(void *, const robustness_cell *)", take)
     src = ffi.new("char[]", table.source.encode())
     inp = series_input(table, k, src)
+    if control is not None:
+        ctl = _control.series_input(control, inp.name, ctx)  # alive through the call
+        inp.control = ctl
     detail = ffi.new("screen_detail *")
     where = ffi.new("robustness_position *")
     st = lib.slowscan_robustness_series(ws, grid, cfg, inp, sink, ffi.NULL, detail, where)
     if errors:
         raise errors[0]
     if st != 0:
-        raise refusal(st, detail, _cell_context(cfg, grid, where, table.source, name))
+        raise refusal(st, detail, _cell_context(cfg, grid, where, table.source, name, ctx))
     return counts
 
 
-def _cell_context(cfg, grid, where, source, name):
-    """The message context of a refusal: the options of the cell it met in force."""
+def _cell_context(cfg, grid, where, source, name, run):
+    """The message context of a refusal: the options of the cell it met in force (and the
+    control run named as run's context names it)."""
     cell = ffi.new("screen_config *", cfg[0])
     cell.detrend = grid.methods[where.method]
     if where.window_index != _NO_WINDOW:
@@ -274,7 +293,8 @@ def _cell_context(cfg, grid, where, source, name):
     if lib.slowscan_detrend_uses_bandwidth(cell.detrend.method):
         cell.bandwidth = grid.bandwidths[where.bandwidth_index]
     ctx = MessageContext(source=source, series=name, config=cell)
-    ctx._keep.append(cell)
+    ctx.c.control_source = run.c.control_source
+    ctx._keep.extend((cell, run))
     return ctx
 
 

@@ -172,6 +172,8 @@ typedef void (*screen_progress_fn)(void *context, const screen_progress *progres
 int slowscan_screen_prepare(const screen_config *cfg, const screen_input *in,
                             screen_prepared *out, screen_detail *detail);
 void slowscan_screen_prepared_free(screen_prepared *ps);
+int slowscan_screen_attach_control(const screen_config *cfg, screen_prepared *ps,
+                                   const screen_input *control, screen_detail *detail);
 int slowscan_screen_config_on_axis(screen_config *cfg, const time_axis *axis,
                                    screen_detail *detail);
 int slowscan_screen_window(const screen_config *cfg, size_t n, double span, size_t *window,
