@@ -184,6 +184,22 @@ static void refusals_and_warnings(void)
     for (size_t j = 0; st == SLOWSCAN_OK && j < r.ntests; j++)
         CHECK(isnan(r.tests[j].statistic) && r.tests[j].reason == SCREEN_REASON_NO_VARIATION,
               "constant series, test %zu: no variation", j);
+    /* A control run lacking the series: nothing to attach to a series that does not vary,
+     * CONTROL_MISSING for one that does (common practice, no source). */
+    screen_input missing = {.name = "flat", .source = "control", .time_name = "t", .time = time, .values = NULL, .n = N, .control = NULL};
+    for (int varies = 0; varies < 2; varies++) {
+        screen_prepared ps;
+        in.values = varies ? wavy : flat;
+        st = slowscan_screen_prepare(&cfg, &in, &ps, &d);
+        int attached = slowscan_screen_attach_control(&cfg, &ps, &missing, &d);
+        CHECK(st == SLOWSCAN_OK && (varies ? attached == SLOWSCAN_EINVAL && d.control &&
+                                                 d.rule == SCREEN_RULE_CONTROL_MISSING
+                                           : attached == SLOWSCAN_OK && ps.constant &&
+                                                 ps.null_source == ps.residual),
+              "a control lacking the series, which %s: status %d", varies ? "varies" : "is flat",
+              attached);
+        slowscan_screen_prepared_free(&ps);
+    }
     cfg.window = (screen_length){.amount = 2, .percent = 1}; /* round(0.02 x 39) + 1 = 2 samples */
     in.values = wavy;
     st = slowscan_screen_series(ws, &cfg, &in, &r, &d);
