@@ -280,7 +280,7 @@ static int prepare_and_visit(const cli_options *opts, const cli_inputs *in,
     int rc = cli_prepare_series(opts, t, k, &ps);
     if (rc == EXIT_OK)
         cli_tally_leakage(&pv->leakage, ps.source, ps.name, &ps.leakage, ps.leakage_tested);
-    if (rc == EXIT_OK && !ps.constant)
+    if (rc == EXIT_OK) /* a series that does not vary needs none: the library's rule */
         rc = cli_attach_control(opts, in, &ps);
     if (rc == EXIT_OK)
         rc = pv->visit(opts, &ps, pv->context);

@@ -237,38 +237,47 @@ static int define_dims(const netcdf_reader *r, int out, out_dim *dims, size_t *n
     return st;
 }
 
-/* What the statistic of a test is, for its long_name. */
-static void statistic_words(int test, const char *var, char *buf, size_t size)
+size_t slowscan_netcdf_maps_long_name(char *buf, size_t size, netcdf_map_kind kind, int test,
+                                      const char *var, int tail_estimates)
 {
     const char *name = slowscan_screen_test_name(test);
-    if (slowscan_screen_test_rolling(test))
-        snprintf(buf, size, "Kendall tau of the rolling %s of %s against time", name, var);
-    else
-        snprintf(buf, size, "t-value of the drift of the lag-1 coefficient in a drifting "
-                 "AR(1) fit (%s) of %s", name, var);
+    int n;
+    switch (kind) {
+    case NETCDF_MAP_STATISTIC:
+        n = slowscan_screen_test_rolling(test)
+                ? snprintf(buf, size, "Kendall tau of the rolling %s of %s against time", name,
+                           var)
+                : snprintf(buf, size, "t-value of the drift of the lag-1 coefficient in a "
+                           "drifting AR(1) fit (%s) of %s", name, var);
+        break;
+    case NETCDF_MAP_P_VALUE:
+        n = snprintf(buf, size, "p-value of the %s test of %s against surrogates%s", name, var,
+                     tail_estimates ? "; where the statistic lies beyond every surrogate, an "
+                                      "estimate from a generalised Pareto fit to their upper "
+                                      "tail" : "");
+        break;
+    case NETCDF_MAP_Q_VALUE:
+        n = snprintf(buf, size, "Benjamini-Hochberg q-value of the %s test of %s over every "
+                     "test of the run", name, var);
+        break;
+    default:
+        n = snprintf(buf, size, "screening flag of the %s test of %s", name, var);
+    }
+    return n < 0 ? 0 : (size_t)n;
 }
 
 /* One map variable: float with _FillValue and units "1", or the byte flag. */
-static int define_map(const netcdf_maps *m, int out, const char *var, int test, const char *what,
-                      const int *dimids, int ndims, int *varid)
+static const char *const MAP_KINDS[4] = {"statistic", "p_value", "q_value", "flag"};
+
+static int define_map(const netcdf_maps *m, int out, const char *var, int test,
+                      netcdf_map_kind kind, const int *dimids, int ndims, int *varid)
 {
-    int tail = m->tail_estimates;
     char name[NC_MAX_NAME + 1], words[512];
-    const char *tname = slowscan_screen_test_name(test);
-    snprintf(name, sizeof name, "%s_%s_%s", var, tname, what);
-    int flag = strcmp(what, "flag") == 0;
+    snprintf(name, sizeof name, "%s_%s_%s", var, slowscan_screen_test_name(test),
+             MAP_KINDS[kind]);
+    int flag = kind == NETCDF_MAP_FLAG;
     int st = nc_def_var(out, name, flag ? NC_BYTE : NC_FLOAT, ndims, dimids, varid);
-    if (strcmp(what, "statistic") == 0)
-        statistic_words(test, var, words, sizeof words);
-    else if (strcmp(what, "p_value") == 0)
-        snprintf(words, sizeof words, "p-value of the %s test of %s against surrogates%s", tname,
-                 var, tail ? "; where the statistic lies beyond every surrogate, an estimate "
-                             "from a generalised Pareto fit to their upper tail" : "");
-    else if (strcmp(what, "q_value") == 0)
-        snprintf(words, sizeof words, "Benjamini-Hochberg q-value of the %s test of %s over "
-                 "every test of the run", tname, var);
-    else
-        snprintf(words, sizeof words, "screening flag of the %s test of %s", tname, var);
+    slowscan_netcdf_maps_long_name(words, sizeof words, kind, test, var, m->tail_estimates);
     if (st == NC_NOERR)
         st = put_text(out, *varid, "long_name", words);
     if (st == NC_NOERR && !flag)
@@ -294,8 +303,6 @@ static int define_map(const netcdf_maps *m, int out, const char *var, int test, 
     return st;
 }
 
-static const char *const MAP_KINDS[4] = {"statistic", "p_value", "q_value", "flag"};
-
 /* The four maps of every variable x test; their ids into varids[(v * ntests + j) * 4 + k]. */
 static int define_maps(const netcdf_maps *m, int out, const out_dim *dims, size_t ndims,
                        int *varids)
@@ -311,7 +318,7 @@ static int define_maps(const netcdf_maps *m, int out, const out_dim *dims, size_
                     dimids[k] = dims[i].out_dimid;
         for (size_t j = 0; j < m->ntests; j++)
             for (int k = 0; k < 4 && st == NC_NOERR; k++)
-                st = define_map(m, out, var->name, m->tests[j], MAP_KINDS[k], dimids,
+                st = define_map(m, out, var->name, m->tests[j], (netcdf_map_kind)k, dimids,
                                 var->ncoords, &varids[(v * m->ntests + j) * 4 + (size_t)k]);
     }
     return st;

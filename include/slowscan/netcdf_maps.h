@@ -48,6 +48,21 @@ typedef struct {
 
 typedef struct netcdf_maps netcdf_maps;
 
+/* The four maps of a variable x test, in the order of their names' suffixes. */
+typedef enum {
+    NETCDF_MAP_STATISTIC = 0, /* VAR_TEST_statistic */
+    NETCDF_MAP_P_VALUE,       /* VAR_TEST_p_value */
+    NETCDF_MAP_Q_VALUE,       /* VAR_TEST_q_value */
+    NETCDF_MAP_FLAG           /* VAR_TEST_flag */
+} netcdf_map_kind;
+
+/* The long_name of map `kind` of test `test` (a screen_test_kind) of variable `var`, as the
+ * maps carry it (tail_estimates: the spec's), into buf (snprintf-style; its length). The
+ * one wording for every writer of such maps (the command's --maps, Python's grids). */
+SLOWSCAN_API
+size_t slowscan_netcdf_maps_long_name(char *buf, size_t size, netcdf_map_kind kind, int test,
+                                      const char *var, int tail_estimates);
+
 /* Opens the input as netcdf_input.h reads it and makes the temporary file beside `path`.
  * SLOWSCAN_EINVAL: path "-" (a NetCDF file needs a name), no tests, or the input refused
  * (its message); SLOWSCAN_EIO: path is a directory or its folder is not writable;

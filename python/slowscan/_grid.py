@@ -94,21 +94,16 @@ def _blocks(data, shape):
     yield (0,) * len(shape), np.asarray(data)
 
 
-def _long_name(var, test, kind, what, tail):
-    """A map's long_name, in the words of the command's --maps (io/netcdf_maps.c)."""
-    if what == "statistic":
-        if lib.slowscan_screen_test_rolling(kind):
-            return "Kendall tau of the rolling %s of %s against time" % (test, var)
-        return ("t-value of the drift of the lag-1 coefficient in a drifting AR(1) fit (%s) of "
-                "%s" % (test, var))
-    if what == "p_value":
-        return "p-value of the %s test of %s against surrogates%s" % (test, var, (
-            "; where the statistic lies beyond every surrogate, an estimate from a generalised "
-            "Pareto fit to their upper tail") if tail else "")
-    if what == "q_value":
-        return "Benjamini-Hochberg q-value of the %s test of %s over every test of the run" % (
-            test, var)
-    return "screening flag of the %s test of %s" % (test, var)
+def _long_name(var, kind, what, tail):
+    """A map's long_name in the library's words (slowscan_netcdf_maps_long_name: the
+    command's --maps)."""
+    buf = ffi.new("char[512]")
+    lib.slowscan_netcdf_maps_long_name(buf, 512, _MAP_KINDS[what], kind, var.encode(), tail)
+    return ffi.string(buf).decode()
+
+
+_MAP_KINDS = {"statistic": lib.NETCDF_MAP_STATISTIC, "p_value": lib.NETCDF_MAP_P_VALUE,
+              "q_value": lib.NETCDF_MAP_Q_VALUE, "flag": lib.NETCDF_MAP_FLAG}
 
 
 class _Maps:
@@ -146,7 +141,7 @@ class _Maps:
         for t in self.tests:
             for what, values in (("statistic", self.stat), ("p_value", self.p),
                                  ("q_value", self.q), ("flag", self.flag)):
-                attrs = {"long_name": _long_name(var, t, self.tests[t], what, self.tail)}
+                attrs = {"long_name": _long_name(var, self.tests[t], what, self.tail)}
                 attrs.update(self._flags() if what == "flag" else {"units": "1"})
                 out["%s_%s_%s" % (var, t, what)] = (dims, values[t].reshape(shape), attrs)
         coords = {name: c for name, c in da.coords.items() if time_dim not in c.dims}

@@ -79,3 +79,13 @@ int slowscan_table_suspect_code(const series_table *table, size_t k, suspect_cod
 size_t slowscan_netcdf_series_name(char *buf, size_t size, const char *variable,
                                    const char *const *coord_name, const double *coord_value,
                                    size_t ncoords);
+
+/* netcdf_maps.h: the maps' long_names */
+typedef enum {
+    NETCDF_MAP_STATISTIC = 0,
+    NETCDF_MAP_P_VALUE,
+    NETCDF_MAP_Q_VALUE,
+    NETCDF_MAP_FLAG
+} netcdf_map_kind;
+size_t slowscan_netcdf_maps_long_name(char *buf, size_t size, netcdf_map_kind kind, int test,
+                                      const char *var, int tail_estimates);
