@@ -194,8 +194,6 @@ void cli_inputs_free(cli_inputs *inputs);
  * in time; `option` and `what` name it in messages. */
 int cli_load_whole_table(const cli_options *opts, const char *path, const char *option,
                          const char *what, series_table *table);
-/* The mean time step of a record, (t[n-1] - t[0]) / (n - 1); NaN for fewer than 2 samples. */
-double cli_mean_step(const double *time, size_t n);
 /* Number of series over all tables; series k of the run in order. */
 size_t cli_inputs_series_count(const cli_inputs *inputs);
 

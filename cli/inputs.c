@@ -197,7 +197,3 @@ int cli_cursor_next(cli_cursor *c, const series_table **t, size_t *k)
     }
 }
 
-double cli_mean_step(const double *time, size_t n)
-{
-    return n > 1 ? (time[n - 1] - time[0]) / (double)(n - 1) : NAN;
-}

@@ -1,6 +1,7 @@
 /* The windows of a feedback run, their flags relative to the first window, and the one
  * drift test of the run. */
 #include "feedback_internal.h"
+#include "modes_internal.h"
 #include "slowscan/status.h"
 
 #include <gsl/gsl_cdf.h>
@@ -37,7 +38,7 @@ static int layout(const double *time, size_t n, const feedback_config *c, window
         return SLOWSCAN_EINVAL;
     if (c->fit == FEEDBACK_TLS && !(c->noise_ratio > 0 && isfinite(c->noise_ratio)))
         return SLOWSCAN_EINVAL;
-    double dt = (time[n - 1] - time[0]) / (double)(n - 1);
+    double dt = modes_mean_step(time, n);
     if (!isnan(c->span_from) || !isnan(c->span_until)) {
         L->first = first_at(time, n, c->span_from, dt);
         size_t end = first_at(time, n, c->span_until + dt, dt); /* one past the last */
